@@ -1,0 +1,58 @@
+import { z } from 'zod';
+
+/** Runtime settings, read once from the environment and validated at start-up. Defaults are documented in README. */
+const envSchema = z.object({
+  BW_HOST: z.string().default('127.0.0.1'),
+  BW_PORT: z.coerce.number().int().min(0).max(65535).default(4300),
+  BW_DB_HOST: z.string().default('127.0.0.1'),
+  BW_DB_PORT: z.coerce.number().int().min(1).max(65535).default(3307),
+  BW_DB_NAME: z.string().regex(/^[A-Za-z0-9_]+$/, 'letters, digits and _ only').default('brightward'),
+  BW_DB_USER: z.string().min(1).default('brightward'),
+  BW_DB_PASSWORD: z.string().default('brightward-local'),
+  BW_DB_POOL_MAX: z.coerce.number().int().min(1).max(64).default(6),
+  BW_BROKER_HOST: z.string().default('127.0.0.1'),
+  BW_BROKER_PORT: z.coerce.number().int().min(0).max(65535).default(1884),
+  BW_SESSION_SECRET: z.string().min(32, 'at least 32 characters').optional(),
+  BW_SESSION_HOURS: z.coerce.number().min(0.1).max(24 * 30).default(12),
+  BW_WEB_DIR: z.string().default('dist/web/browser'),
+  BW_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  BW_SIGNIN_LIMIT_PER_MIN: z.coerce.number().int().min(1).default(10),
+  BW_BCRYPT_COST: z.coerce.number().int().min(4).max(15).default(10),
+});
+
+export interface Config {
+  host: string;
+  port: number;
+  db: { host: string; port: number; database: string; user: string; password: string; poolMax: number };
+  broker: { host: string; port: number };
+  /** HMAC secret of session tokens; when unset a random one is made per process (sessions end on restart). */
+  sessionSecret: string | undefined;
+  sessionHours: number;
+  webDir: string;
+  logLevel: z.infer<typeof envSchema>['BW_LOG_LEVEL'];
+  signInLimitPerMinute: number;
+  bcryptCost: number;
+}
+
+export class ConfigError extends Error {}
+
+export function loadConfig(env: Record<string, string | undefined> = process.env): Config {
+  const parsed = envSchema.safeParse(env);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`);
+    throw new ConfigError(`Invalid configuration:\n  ${lines.join('\n  ')}`);
+  }
+  const e = parsed.data;
+  return {
+    host: e.BW_HOST,
+    port: e.BW_PORT,
+    db: { host: e.BW_DB_HOST, port: e.BW_DB_PORT, database: e.BW_DB_NAME, user: e.BW_DB_USER, password: e.BW_DB_PASSWORD, poolMax: e.BW_DB_POOL_MAX },
+    broker: { host: e.BW_BROKER_HOST, port: e.BW_BROKER_PORT },
+    sessionSecret: e.BW_SESSION_SECRET,
+    sessionHours: e.BW_SESSION_HOURS,
+    webDir: e.BW_WEB_DIR,
+    logLevel: e.BW_LOG_LEVEL,
+    signInLimitPerMinute: e.BW_SIGNIN_LIMIT_PER_MIN,
+    bcryptCost: e.BW_BCRYPT_COST,
+  };
+}

@@ -1,0 +1,78 @@
+import type { Db } from './db';
+import type { Unit } from '../../shared/contracts/api';
+import type { SiteScope } from './site-repository';
+
+export interface UnitRow {
+  id: number;
+  serial: string;
+  site_id: number;
+  rated_power_wp: number;
+  detector_tilt_deg: number;
+  tilt_min_deg: number;
+  tilt_max_deg: number;
+  azimuth_min_deg: number;
+  azimuth_max_deg: number;
+  plan_x_m: number;
+  plan_y_m: number;
+  firmware: string;
+  disabled: number | boolean;
+  device_secret_hash: string;
+}
+
+export class UnitRepository {
+  constructor(private readonly db: Db) {}
+
+  private base(scope: SiteScope) {
+    const q = this.db('units as u').join('sites as s', 's.id', 'u.site_id').select('u.*', 's.name as site_name', 's.owner_id').orderBy('u.serial');
+    if (scope.ownerId !== null) q.where('s.owner_id', scope.ownerId);
+    return q;
+  }
+
+  async list(scope: SiteScope, siteId?: number): Promise<Unit[]> {
+    const q = this.base(scope);
+    if (siteId !== undefined) q.where('u.site_id', siteId);
+    return (await q).map(toUnit);
+  }
+
+  async findById(id: number, scope: SiteScope): Promise<Unit | undefined> {
+    const row = await this.base(scope).where('u.id', id).first();
+    return row ? toUnit(row) : undefined;
+  }
+
+  /** Credentials lookup for the broker: serial → secret hash and whether the unit may connect. */
+  findCredentials(serial: string): Promise<Pick<UnitRow, 'id' | 'serial' | 'site_id' | 'device_secret_hash' | 'disabled'> | undefined> {
+    return this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled');
+  }
+
+  async findBySerial(serial: string): Promise<{ id: number } | undefined> {
+    return this.db('units').where({ serial }).first('id');
+  }
+
+  async insert(row: Omit<UnitRow, 'id'>): Promise<number> {
+    const [id] = await this.db('units').insert(row);
+    return id as number;
+  }
+
+  async update(id: number, patch: Partial<Omit<UnitRow, 'id'>>): Promise<void> {
+    if (Object.keys(patch).length) await this.db('units').where({ id }).update(patch);
+  }
+}
+
+function toUnit(r: UnitRow & { site_name: string }): Unit {
+  return {
+    id: r.id,
+    serial: r.serial,
+    siteId: r.site_id,
+    siteName: r.site_name,
+    ratedPowerWp: r.rated_power_wp,
+    detectorTiltDeg: r.detector_tilt_deg,
+    tiltMinDeg: r.tilt_min_deg,
+    tiltMaxDeg: r.tilt_max_deg,
+    azimuthMinDeg: r.azimuth_min_deg,
+    azimuthMaxDeg: r.azimuth_max_deg,
+    planXM: r.plan_x_m,
+    planYM: r.plan_y_m,
+    firmware: r.firmware,
+    disabled: Boolean(r.disabled),
+  };
+}

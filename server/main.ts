@@ -1,0 +1,43 @@
+import { pino } from 'pino';
+import { ConfigError, loadConfig } from './config';
+import { StartupError, startStack } from './stack';
+
+/** Entry point: validate config, start the stack, stop cleanly on SIGINT/SIGTERM. */
+async function main(): Promise<void> {
+  let config;
+  try {
+    config = loadConfig();
+  } catch (err) {
+    if (err instanceof ConfigError) {
+      console.error(err.message);
+      process.exit(2);
+    }
+    throw err;
+  }
+  const log = pino({ level: config.logLevel });
+  let stack;
+  try {
+    stack = await startStack(config, log);
+  } catch (err) {
+    if (err instanceof StartupError) {
+      console.error(`Brightward cannot start: ${err.message}`);
+      process.exit(1);
+    }
+    throw err;
+  }
+  log.info({ url: stack.url, brokerPort: stack.broker.port }, 'Brightward server ready');
+  const shutdown = (signal: string) => {
+    log.info({ signal }, 'stopping');
+    stack.stop().then(
+      () => process.exit(0),
+      (err) => {
+        log.error({ err }, 'unclean stop');
+        process.exit(1);
+      },
+    );
+  };
+  process.once('SIGINT', shutdown);
+  process.once('SIGTERM', shutdown);
+}
+
+void main();

@@ -1,0 +1,26 @@
+import { z } from 'zod';
+import { badRequest } from '../errors/app-error';
+
+/** Parses a body or query with a zod schema; a failure becomes a 400 that names every bad field. */
+export function parse<T extends z.ZodType>(schema: T, value: unknown): z.infer<T> {
+  const r = schema.safeParse(value ?? {});
+  if (r.success) return r.data;
+  const fields: Record<string, string> = {};
+  for (const issue of r.error.issues) {
+    if (issue.code === 'unrecognized_keys') {
+      for (const k of issue.keys) fields[[...issue.path, k].join('.')] = 'Unknown field.';
+      continue;
+    }
+    const key = issue.path.join('.') || '(body)';
+    fields[key] ??= issue.message;
+  }
+  throw badRequest(`The request has ${Object.keys(fields).length} invalid field(s): ${Object.keys(fields).join(', ')}.`, fields);
+}
+
+export const idParam = z.strictObject({ id: z.coerce.number().int().positive('Must be a positive whole number.') });
+
+const zones = new Set([...Intl.supportedValuesOf('timeZone'), 'UTC']);
+export const timeZone = z.string().refine((z) => zones.has(z), 'Must be an IANA time zone such as Europe/Berlin.');
+
+export const num = (min: number, max: number, unit: string) =>
+  z.number({ error: `Must be a number (${unit}).` }).min(min, `Must be between ${min} and ${max} ${unit}.`).max(max, `Must be between ${min} and ${max} ${unit}.`);

@@ -1,0 +1,55 @@
+#!/usr/bin/env bash
+# `npm start`: private MariaDB (installed from Debian's packages if missing) → migrations and demo seed (empty database only)
+# → dashboard build (when sources changed) → server with embedded broker → simulator. Ctrl-C stops all of it, MariaDB included.
+set -uo pipefail
+cd "$(dirname "$0")/../.."
+export NG_CLI_ANALYTICS=false
+PORT=${BW_PORT:-4300}
+HOST=${BW_HOST:-127.0.0.1}
+children=()
+
+stop_all() {
+  trap - INT TERM EXIT
+  echo; echo "[start] stopping…"
+  for pid in "${children[@]}"; do kill -TERM "$pid" 2>/dev/null; done
+  for pid in "${children[@]}"; do wait "$pid" 2>/dev/null; done
+  bash server/scripts/db.sh stop
+  exit 0
+}
+trap stop_all INT TERM
+trap 'bash server/scripts/db.sh stop' EXIT
+
+bash server/scripts/db.sh start || exit 1
+node --import tsx server/scripts/migrate.ts latest --seed || exit 1
+
+# Rebuild the dashboard when it is missing or any source is newer than the last build.
+index=dist/web/browser/index.html
+if [ ! -f "$index" ] || [ -n "$(find src shared angular.json -newer "$index" -type f -print -quit)" ]; then
+  echo "[start] building the dashboard (about half a minute)…"
+  npx ng build >/tmp/brightward-build.log 2>&1 || { tail -40 /tmp/brightward-build.log; exit 1; }
+fi
+
+node --import tsx server/main.ts &
+children+=($!)
+for _ in $(seq 1 100); do curl -sf "http://$HOST:$PORT/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
+if ! kill -0 "${children[0]}" 2>/dev/null; then echo "[start] the server did not start (see above)"; exit 1; fi
+
+if [ -f simulator/main.ts ] && [ "${BW_SIMULATOR:-on}" != off ]; then
+  node --import tsx simulator/main.ts --demo &
+  children+=($!)
+fi
+
+cat <<MSG
+
+  Brightward is running at http://$HOST:$PORT
+  Demo sign-ins (password for all: brightward-demo):
+    admin@saltmarsh.example      admin            engineer@saltmarsh.example   engineer
+    tech1@saltmarsh.example      technician       crew1@saltmarsh.example      field crew
+    owner@quillmoor.example      owner (Quillmoor Energy Cooperative)
+    owner@fenwicklane.example    owner (Fenwick Lane Schools Trust)
+  MQTT broker on ${BW_BROKER_HOST:-127.0.0.1}:${BW_BROKER_PORT:-1884}. Press Ctrl-C to stop everything.
+
+MSG
+wait -n "${children[@]}"
+echo "[start] a process exited; stopping the rest"
+stop_all

@@ -1,0 +1,212 @@
+import bcrypt from 'bcryptjs';
+import type {
+  CreateUserRequest, Owner, OwnerInput, Site, SiteInput, Unit, UnitInput, UpdateUserRequest, User,
+} from '../../shared/contracts/api';
+import { badRequest, conflict, notFound } from '../errors/app-error';
+import type { AuditRepository } from '../data/audit-repository';
+import type { OwnerRepository } from '../data/owner-repository';
+import type { SiteRepository, SiteRow } from '../data/site-repository';
+import type { UnitRepository, UnitRow } from '../data/unit-repository';
+import { toUser, type UserRepository } from '../data/user-repository';
+import { scopeOf, type Caller } from './caller';
+import { hashDeviceSecret, newDeviceSecret } from './device-secret';
+
+export interface AdminRepositories {
+  users: UserRepository;
+  owners: OwnerRepository;
+  sites: SiteRepository;
+  units: UnitRepository;
+  audit: AuditRepository;
+}
+
+/** People, owners, sites and units: reads scoped to the caller, writes (admin only, checked by routes) audited. */
+export class AdminService {
+  constructor(
+    private readonly repo: AdminRepositories,
+    private readonly bcryptCost: number,
+  ) {}
+
+  // ---- people
+  async listUsers(): Promise<User[]> {
+    return (await this.repo.users.list()).map(toUser);
+  }
+
+  async createUser(by: Caller, input: CreateUserRequest): Promise<User> {
+    const email = input.email.toLowerCase();
+    if (await this.repo.users.findByEmail(email)) throw conflict('That e-mail is already in use.', { email: 'Already in use.' });
+    const ownerId = await this.checkOwnerLink(input.role, input.ownerId ?? null);
+    const id = await this.repo.users.insert({
+      email, name: input.name, role: input.role, owner_id: ownerId,
+      password_hash: await bcrypt.hash(input.password, this.bcryptCost),
+    });
+    await this.repo.audit.append({ userId: by.id, action: 'user-create', target: `user:${id}`, detail: { email, role: input.role } });
+    return this.getUser(id);
+  }
+
+  async updateUser(by: Caller, id: number, patch: UpdateUserRequest): Promise<User> {
+    const current = await this.repo.users.findById(id);
+    if (!current) throw notFound('User');
+    const role = patch.role ?? current.role;
+    const ownerId = await this.checkOwnerLink(role, patch.ownerId !== undefined ? patch.ownerId : role === 'owner' ? current.owner_id : null);
+    if (id === by.id && (patch.disabled || (patch.role && patch.role !== 'admin'))) {
+      throw badRequest('You cannot disable yourself or remove your own admin role.', patch.disabled ? { disabled: 'Not for your own account.' } : { role: 'Not for your own account.' });
+    }
+    await this.repo.users.update(id, {
+      ...(patch.name !== undefined ? { name: patch.name } : {}),
+      role, owner_id: ownerId,
+      ...(patch.disabled !== undefined ? { disabled: patch.disabled } : {}),
+    });
+    await this.repo.audit.append({ userId: by.id, action: 'user-update', target: `user:${id}`, detail: patch });
+    return this.getUser(id);
+  }
+
+  async resetPassword(by: Caller, id: number, password: string): Promise<void> {
+    if (!(await this.repo.users.findById(id))) throw notFound('User');
+    await this.repo.users.update(id, { password_hash: await bcrypt.hash(password, this.bcryptCost) });
+    await this.repo.audit.append({ userId: by.id, action: 'user-password-reset', target: `user:${id}` });
+  }
+
+  private async getUser(id: number): Promise<User> {
+    return toUser((await this.repo.users.findById(id))!);
+  }
+
+  /** Owner users must name an existing owner; other roles must not have one. */
+  private async checkOwnerLink(role: string, ownerId: number | null): Promise<number | null> {
+    if (role !== 'owner') {
+      if (ownerId !== null) throw badRequest('Only owner users belong to an owner.', { ownerId: 'Leave empty for this role.' });
+      return null;
+    }
+    if (ownerId === null) throw badRequest('An owner user must belong to an owner.', { ownerId: 'Choose the owner.' });
+    if (!(await this.repo.owners.findById(ownerId))) throw badRequest('No such owner.', { ownerId: 'No such owner.' });
+    return ownerId;
+  }
+
+  // ---- owners
+  listOwners(): Promise<Owner[]> {
+    return this.repo.owners.list();
+  }
+
+  async createOwner(by: Caller, input: OwnerInput): Promise<Owner> {
+    if (await this.repo.owners.findByName(input.name)) throw conflict('An owner with that name exists.', { name: 'Already in use.' });
+    const id = await this.repo.owners.insert({ name: input.name, contact_email: input.contactEmail ?? null });
+    await this.repo.audit.append({ userId: by.id, action: 'owner-create', target: `owner:${id}`, detail: input });
+    return (await this.repo.owners.findById(id))!;
+  }
+
+  async updateOwner(by: Caller, id: number, patch: Partial<OwnerInput>): Promise<Owner> {
+    if (!(await this.repo.owners.findById(id))) throw notFound('Owner');
+    if (patch.name) {
+      const other = await this.repo.owners.findByName(patch.name);
+      if (other && other.id !== id) throw conflict('An owner with that name exists.', { name: 'Already in use.' });
+    }
+    await this.repo.owners.update(id, {
+      ...(patch.name !== undefined ? { name: patch.name } : {}),
+      ...(patch.contactEmail !== undefined ? { contact_email: patch.contactEmail } : {}),
+    });
+    await this.repo.audit.append({ userId: by.id, action: 'owner-update', target: `owner:${id}`, detail: patch });
+    return (await this.repo.owners.findById(id))!;
+  }
+
+  // ---- sites
+  listSites(c: Caller): Promise<Site[]> {
+    return this.repo.sites.list(scopeOf(c));
+  }
+
+  async getSite(c: Caller, id: number): Promise<Site> {
+    const s = await this.repo.sites.findById(id, scopeOf(c));
+    if (!s) throw notFound('Site');
+    return s;
+  }
+
+  async createSite(by: Caller, input: SiteInput): Promise<Site> {
+    await this.checkSite(input);
+    const id = await this.repo.sites.insert(siteRow(input) as Omit<SiteRow, 'id'>);
+    await this.repo.audit.append({ userId: by.id, action: 'site-create', target: `site:${id}`, detail: input });
+    return this.getSite(by, id);
+  }
+
+  async updateSite(by: Caller, id: number, patch: Partial<SiteInput>): Promise<Site> {
+    await this.getSite(by, id);
+    await this.checkSite(patch, id);
+    await this.repo.sites.update(id, siteRow(patch));
+    await this.repo.audit.append({ userId: by.id, action: 'site-update', target: `site:${id}`, detail: patch });
+    return this.getSite(by, id);
+  }
+
+  private async checkSite(input: Partial<SiteInput>, id?: number): Promise<void> {
+    if (input.ownerId !== undefined && !(await this.repo.owners.findById(input.ownerId))) throw badRequest('No such owner.', { ownerId: 'No such owner.' });
+    if (input.name !== undefined) {
+      const other = await this.repo.sites.findByName(input.name);
+      if (other && other.id !== id) throw conflict('A site with that name exists.', { name: 'Already in use.' });
+    }
+  }
+
+  // ---- units
+  listUnits(c: Caller, siteId?: number): Promise<Unit[]> {
+    return this.repo.units.list(scopeOf(c), siteId);
+  }
+
+  async getUnit(c: Caller, id: number): Promise<Unit> {
+    const u = await this.repo.units.findById(id, scopeOf(c));
+    if (!u) throw notFound('Unit');
+    return u;
+  }
+
+  async createUnit(by: Caller, input: UnitInput): Promise<{ unit: Unit; deviceSecret: string }> {
+    await this.checkUnit(input);
+    const deviceSecret = newDeviceSecret();
+    const id = await this.repo.units.insert({ ...(unitRow(input) as Omit<UnitRow, 'id' | 'device_secret_hash'>), device_secret_hash: hashDeviceSecret(deviceSecret) });
+    await this.repo.audit.append({ userId: by.id, action: 'unit-create', target: `unit:${id}`, detail: input });
+    return { unit: await this.getUnit(by, id), deviceSecret };
+  }
+
+  async updateUnit(by: Caller, id: number, patch: Partial<UnitInput>): Promise<Unit> {
+    const current = await this.getUnit(by, id);
+    await this.checkUnit({ ...current, ...patch }, id);
+    await this.repo.units.update(id, unitRow(patch));
+    await this.repo.audit.append({ userId: by.id, action: 'unit-update', target: `unit:${id}`, detail: patch });
+    return this.getUnit(by, id);
+  }
+
+  async rotateDeviceSecret(by: Caller, id: number): Promise<{ deviceSecret: string }> {
+    await this.getUnit(by, id);
+    const deviceSecret = newDeviceSecret();
+    await this.repo.units.update(id, { device_secret_hash: hashDeviceSecret(deviceSecret) });
+    await this.repo.audit.append({ userId: by.id, action: 'unit-secret-rotate', target: `unit:${id}` });
+    return { deviceSecret };
+  }
+
+  private async checkUnit(u: UnitInput, id?: number): Promise<void> {
+    const fields: Record<string, string> = {};
+    if (u.tiltMinDeg >= u.tiltMaxDeg) fields['tiltMaxDeg'] = 'Must be greater than the minimum tilt.';
+    if (u.azimuthMinDeg >= u.azimuthMaxDeg) fields['azimuthMaxDeg'] = 'Must be greater than the minimum azimuth.';
+    if (Object.keys(fields).length) throw badRequest('The axis limits are inconsistent.', fields);
+    if (!(await this.repo.sites.findById(u.siteId, { ownerId: null }))) throw badRequest('No such site.', { siteId: 'No such site.' });
+    const other = await this.repo.units.findBySerial(u.serial);
+    if (other && other.id !== id) throw conflict('A unit with that serial exists.', { serial: 'Already in use.' });
+  }
+}
+
+function siteRow(i: Partial<SiteInput>): Partial<Omit<SiteRow, 'id'>> {
+  const r: Record<string, unknown> = {};
+  if (i.ownerId !== undefined) r['owner_id'] = i.ownerId;
+  if (i.name !== undefined) r['name'] = i.name;
+  if (i.latitudeDeg !== undefined) r['latitude_deg'] = i.latitudeDeg;
+  if (i.longitudeDeg !== undefined) r['longitude_deg'] = i.longitudeDeg;
+  if (i.elevationM !== undefined) r['elevation_m'] = i.elevationM;
+  if (i.timeZone !== undefined) r['time_zone'] = i.timeZone;
+  if (i.albedo !== undefined) r['albedo'] = i.albedo;
+  if (i.indoor !== undefined) r['indoor'] = i.indoor;
+  return r;
+}
+
+function unitRow(i: Partial<UnitInput>): Partial<Omit<UnitRow, 'id'>> {
+  const map: Record<keyof UnitInput, string> = {
+    serial: 'serial', siteId: 'site_id', ratedPowerWp: 'rated_power_wp', detectorTiltDeg: 'detector_tilt_deg',
+    tiltMinDeg: 'tilt_min_deg', tiltMaxDeg: 'tilt_max_deg', azimuthMinDeg: 'azimuth_min_deg', azimuthMaxDeg: 'azimuth_max_deg',
+    planXM: 'plan_x_m', planYM: 'plan_y_m', firmware: 'firmware', disabled: 'disabled',
+  };
+  const r: Record<string, unknown> = {};
+  for (const [k, col] of Object.entries(map)) if (i[k as keyof UnitInput] !== undefined) r[col] = i[k as keyof UnitInput];
+  return r;
+}
