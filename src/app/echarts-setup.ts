@@ -1,0 +1,35 @@
+/**
+ * The parts of ECharts the dashboard uses, registered once. Loaded lazily (see app.config.ts)
+ * so pages without charts never download the chart library.
+ */
+import * as echarts from 'echarts/core';
+import { BarChart, HeatmapChart, LineChart, ScatterChart } from 'echarts/charts';
+import {
+  DataZoomComponent,
+  DatasetComponent,
+  GridComponent,
+  LegendComponent,
+  MarkLineComponent,
+  TitleComponent,
+  TooltipComponent,
+  VisualMapComponent,
+} from 'echarts/components';
+import { CanvasRenderer } from 'echarts/renderers';
+
+echarts.use([
+  LineChart,
+  BarChart,
+  ScatterChart,
+  HeatmapChart,
+  GridComponent,
+  TooltipComponent,
+  TitleComponent,
+  LegendComponent,
+  DatasetComponent,
+  DataZoomComponent,
+  MarkLineComponent,
+  VisualMapComponent,
+  CanvasRenderer,
+]);
+
+export default echarts;

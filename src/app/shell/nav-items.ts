@@ -1,0 +1,33 @@
+import { ROLES, type Role } from '../../../shared/contracts/api';
+
+export interface NavItem {
+  /** Absolute router path. */
+  path: string;
+  label: string;
+  /** Material Symbols ligature. */
+  icon: string;
+  group: 'Fleet' | 'Administration';
+  /** Roles that may open the page; the route's role guard uses the same list. */
+  roles: readonly Role[];
+}
+
+/** The one table of pages in the navigation and who may use each. */
+export const NAV_ITEMS: readonly NavItem[] = [
+  { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: ROLES },
+  { path: '/admin/people', label: 'People', icon: 'group', group: 'Administration', roles: ['admin'] },
+  { path: '/admin/owners', label: 'Owners', icon: 'handshake', group: 'Administration', roles: ['admin'] },
+  { path: '/admin/sites', label: 'Site setup', icon: 'edit_location_alt', group: 'Administration', roles: ['admin'] },
+  { path: '/admin/units', label: 'Units and credentials', icon: 'solar_power', group: 'Administration', roles: ['admin'] },
+];
+
+/** The navigation entries a role may see, in table order. */
+export function navItemsFor(role: Role | null): NavItem[] {
+  return role ? NAV_ITEMS.filter((item) => item.roles.includes(role)) : [];
+}
+
+/** The roles allowed on a navigation path, for a route's `data.roles`. */
+export function rolesFor(path: string): readonly Role[] {
+  const item = NAV_ITEMS.find((candidate) => candidate.path === path);
+  if (!item) throw new Error(`No navigation entry for ${path}`);
+  return item.roles;
+}

@@ -1,0 +1,71 @@
+import { AbstractControl, ValidationErrors, ValidatorFn } from '@angular/forms';
+
+/** Serial numbers: capital letters, digits and dashes, 3–32 characters, not starting with a dash. */
+export const SERIAL_PATTERN = /^[A-Z0-9][A-Z0-9-]{2,31}$/;
+export const MIN_PASSWORD_LENGTH = 10;
+
+/** A number from `min` to `max` inclusive; the unit is only used in the message. */
+export function inRange(min: number, max: number, unit = ''): ValidatorFn {
+  return (control: AbstractControl): ValidationErrors | null => {
+    const value = control.value;
+    if (value === null || value === undefined || value === '') return null;
+    const number = Number(value);
+    return Number.isFinite(number) && number >= min && number <= max ? null : { range: { min, max, unit } };
+  };
+}
+
+/** The value must be greater than the sibling control `minName` (e.g. tilt max > tilt min). */
+export function above(minName: string, minLabel: string): ValidatorFn {
+  return (control: AbstractControl): ValidationErrors | null => {
+    const low = control.parent?.get(minName)?.value;
+    const value = control.value;
+    if (low === null || low === undefined || value === null || value === undefined || value === '') return null;
+    return Number(value) > Number(low) ? null : { above: { minLabel } };
+  };
+}
+
+/** The value must be one of `allowed` (e.g. an IANA time zone name). */
+export function oneOf(allowed: readonly string[]): ValidatorFn {
+  const set = new Set(allowed);
+  return (control: AbstractControl): ValidationErrors | null =>
+    !control.value || set.has(control.value) ? null : { oneOf: true };
+}
+
+export function serial(control: AbstractControl): ValidationErrors | null {
+  return !control.value || SERIAL_PATTERN.test(control.value) ? null : { serial: true };
+}
+
+/** Minus sign, not hyphen, in messages about negative bounds. */
+function show(value: number): string {
+  return value < 0 ? `−${Math.abs(value)}` : String(value);
+}
+
+/**
+ * One sentence for the first error on a control, naming the field. A message from the server
+ * (`server`) wins, because it is the final word on what was wrong.
+ */
+export function errorText(errors: ValidationErrors | null | undefined, label: string): string {
+  if (!errors) return '';
+  if (errors['server']) return String(errors['server']);
+  if (errors['required']) return `${label} is required.`;
+  if (errors['email']) return 'Enter an email address like name@example.org.';
+  if (errors['range']) {
+    const { min, max, unit } = errors['range'] as { min: number; max: number; unit: string };
+    return `${label} must be from ${show(min)} to ${show(max)}${unit}.`;
+  }
+  if (errors['above']) return `${label} must be greater than ${(errors['above'] as { minLabel: string }).minLabel}.`;
+  if (errors['minlength']) {
+    return `${label} needs at least ${(errors['minlength'] as { requiredLength: number }).requiredLength} characters.`;
+  }
+  if (errors['maxlength']) {
+    return `${label} may have at most ${(errors['maxlength'] as { requiredLength: number }).requiredLength} characters.`;
+  }
+  if (errors['serial']) return 'Use 3–32 capital letters, digits or dashes, starting with a letter or digit.';
+  if (errors['oneOf']) return `Choose a ${label.toLowerCase()} from the list.`;
+  return `${label} is not valid.`;
+}
+
+/** Every IANA time zone the browser knows, for pickers. */
+export function timeZones(): string[] {
+  return typeof Intl.supportedValuesOf === 'function' ? Intl.supportedValuesOf('timeZone') : ['UTC'];
+}
