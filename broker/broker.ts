@@ -14,6 +14,8 @@ export interface BrokerOptions {
   /** Topic prefix of a unit; a unit may publish and subscribe only below it. */
   unitPrefix: (serial: string) => string;
   onClientGone?: (principal: Principal, clientId: string) => void;
+  /** A publish the ACL refused (aedes then disconnects the client: MQTT 3.1.1 has no per-message refusal). */
+  onDenied?: (principal: Principal | undefined, topic: string) => void;
 }
 
 export interface RunningBroker {
@@ -50,13 +52,14 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       const p = principals.get(client);
       if (p?.kind === 'service') return done(null);
       if (p?.kind === 'unit' && packet.topic.startsWith(opts.unitPrefix(p.serial))) return done(null);
+      opts.onDenied?.(p, packet.topic);
       done(new Error(`publish outside own prefix: ${packet.topic}`));
     },
     authorizeSubscribe: (client, sub, done) => {
       const p = client ? principals.get(client) : undefined;
       if (p?.kind === 'service') return done(null, sub);
       if (p?.kind === 'unit' && sub.topic.startsWith(opts.unitPrefix(p.serial)) && !sub.topic.includes('+') && !sub.topic.includes('#')) return done(null, sub);
-      done(new Error(`subscribe outside own prefix: ${sub.topic}`), null);
+      done(null, null); // a null subscription answers SUBACK 0x80 (failure) and keeps the client connected
     },
   });
   if (opts.onClientGone) {

@@ -4,6 +4,14 @@ import * as m20261202090100 from './20261202090100_create_sites';
 import * as m20261202090200 from './20261202090200_create_units';
 import * as m20261202090300 from './20261202090300_create_users';
 import * as m20261202090400 from './20261202090400_create_audit_log';
+import * as m20261202100000 from './20261202100000_create_telemetry';
+import * as m20261202100100 from './20261202100100_create_telemetry_1m';
+import * as m20261202100200 from './20261202100200_create_telemetry_15m';
+import * as m20261202100300 from './20261202100300_create_energy_daily';
+import * as m20261202100400 from './20261202100400_create_unit_events';
+import * as m20261202100500 from './20261202100500_create_weather';
+import * as m20261202100600 from './20261202100600_create_commands';
+import * as m20261202100700 from './20261202100700_add_units_hold';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -15,6 +23,14 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202090200_create_units': m20261202090200,
   '20261202090300_create_users': m20261202090300,
   '20261202090400_create_audit_log': m20261202090400,
+  '20261202100000_create_telemetry': m20261202100000,
+  '20261202100100_create_telemetry_1m': m20261202100100,
+  '20261202100200_create_telemetry_15m': m20261202100200,
+  '20261202100300_create_energy_daily': m20261202100300,
+  '20261202100400_create_unit_events': m20261202100400,
+  '20261202100500_create_weather': m20261202100500,
+  '20261202100600_create_commands': m20261202100600,
+  '20261202100700_add_units_hold': m20261202100700,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

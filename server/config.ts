@@ -17,6 +17,11 @@ const envSchema = z.object({
   BW_WEB_DIR: z.string().default('dist/web/browser'),
   BW_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   BW_SIGNIN_LIMIT_PER_MIN: z.coerce.number().int().min(1).default(10),
+  BW_RAW_RETENTION_DAYS: z.coerce.number().int().min(1).max(36500).default(400),
+  BW_INGEST_BATCH_ROWS: z.coerce.number().int().min(1).max(20000).default(1000),
+  BW_INGEST_FLUSH_MS: z.coerce.number().int().min(1).max(60000).default(250),
+  BW_INGEST_MAX_BUFFER_ROWS: z.coerce.number().int().min(1000).default(200000),
+  BW_INGEST_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(2),
   BW_BCRYPT_COST: z.coerce.number().int().min(4).max(15).default(10),
 });
 
@@ -32,6 +37,7 @@ export interface Config {
   logLevel: z.infer<typeof envSchema>['BW_LOG_LEVEL'];
   signInLimitPerMinute: number;
   bcryptCost: number;
+  ingest: { retentionDays: number; batchRows: number; flushMs: number; maxBufferRows: number; flushConcurrency: number };
 }
 
 export class ConfigError extends Error {}
@@ -54,5 +60,6 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     logLevel: e.BW_LOG_LEVEL,
     signInLimitPerMinute: e.BW_SIGNIN_LIMIT_PER_MIN,
     bcryptCost: e.BW_BCRYPT_COST,
+    ingest: { retentionDays: e.BW_RAW_RETENTION_DAYS, batchRows: e.BW_INGEST_BATCH_ROWS, flushMs: e.BW_INGEST_FLUSH_MS, maxBufferRows: e.BW_INGEST_MAX_BUFFER_ROWS, flushConcurrency: e.BW_INGEST_CONCURRENCY },
   };
 }

@@ -14,6 +14,17 @@ import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
 import { deviceSecretMatches } from './services/device-secret';
+import { TelemetryRepository } from './data/telemetry-repository';
+import { CommandRepository } from './data/command-repository';
+import { UnitDirectory } from './services/unit-directory';
+import { IngestService, type IngestListeners, type IngestOptions } from './services/ingest-service';
+import { RollupWorker } from './services/rollup-worker';
+import { LiveHub } from './services/live-hub';
+import { CommandService, type CommandOptions } from './services/command-service';
+import { subscribeUnits } from './consumers/mqtt-consumer';
+import { telemetryRoutes } from './routes/telemetry-routes';
+import { attachLiveSocket } from './routes/live-socket';
+import { unitTopic } from '../shared/contracts/topics';
 import { createApp } from './app';
 import { startBroker, type Principal, type RunningBroker } from '../broker/broker';
 import { unitPrefix } from '../shared/contracts/topics';
@@ -24,6 +35,11 @@ export interface Stack {
   url: string;
   db: Db;
   broker: RunningBroker;
+  ingest: IngestService;
+  rollups: RollupWorker;
+  live: LiveHub;
+  commands: CommandService;
+  units: UnitDirectory;
   http: Server;
   log: Logger;
   stop(): Promise<void>;
@@ -32,7 +48,15 @@ export interface Stack {
 export class StartupError extends Error {}
 
 /** Wires database, broker and HTTP server in one process (the ingest subscribes to the broker in-process). */
-export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel })): Promise<Stack> {
+export interface StackOptions {
+  ingest?: Partial<IngestOptions>;
+  commands?: Partial<CommandOptions>;
+  /** Extra listeners on the ingest (benchmarks). */
+  listeners?: IngestListeners;
+  rollupIntervalMs?: number;
+}
+
+export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel }), opts: StackOptions = {}): Promise<Stack> {
   const db = createDb(config.db);
   try {
     await db.raw('SELECT 1');
@@ -49,10 +73,33 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   });
   const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, config.bcryptCost);
 
+  const directory = new UnitDirectory(db);
+  await directory.load();
+  const telemetry = new TelemetryRepository(db);
+  const live = new LiveHub(directory);
+  const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
+  let commands: CommandService | undefined;
+  const ingest = new IngestService(
+    telemetry, directory, log,
+    {
+      telemetry: (u, t) => { live.onTelemetry(u, t); opts.listeners?.telemetry?.(u, t); },
+      event: opts.listeners?.event,
+      ack: (u, a) => void commands?.onAck(u, a).catch((err) => log.error({ err }, 'command ack failed')),
+      status: (u, st) => {
+        live.onStatus(u, st);
+        if (st.online) void commands?.onOnline(u).catch((err) => log.error({ err }, 'queued command dispatch failed'));
+      },
+      committed: opts.listeners?.committed,
+    },
+    { ...config.ingest, ...opts.ingest },
+    (rows) => rollups.markStored(rows),
+  );
+
   const broker = await startBroker({
     host: config.broker.host,
     port: config.broker.port,
     unitPrefix,
+    onDenied: (p, topic) => ingest.countDenied(p?.kind === 'unit' ? p.serial : '?', topic),
     authenticate: async (username, password): Promise<Principal | null> => {
       const u = await units.findCredentials(username);
       if (!u || u.disabled || !deviceSecretMatches(password, u.device_secret_hash)) return null;
@@ -63,11 +110,30 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     throw new StartupError(`Cannot start the MQTT broker on ${config.broker.host}:${config.broker.port}: ${(err as Error).message}. Set BW_BROKER_PORT to a free port.`);
   });
 
+  const unsubscribe = await subscribeUnits(broker.aedes, ingest, log);
+  commands = new CommandService(
+    new CommandRepository(db), audit, units, directory, live,
+    (serial, command) =>
+      new Promise<void>((res, rej) =>
+        broker.aedes.publish(
+          { cmd: 'publish', topic: unitTopic(serial, 'commands'), payload: Buffer.from(JSON.stringify(command)), qos: 1, retain: false, dup: false },
+          (err) => (err ? rej(err) : res()),
+        ),
+      ),
+    log,
+    opts.commands,
+  );
+  live.start();
+  rollups.start();
+  commands.start();
+
   const app = createApp({
     db, log, auth, admin, version: VERSION, webDir: config.webDir,
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
+    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups })],
   });
   const http = createServer(app);
+  attachLiveSocket(http, auth, live, log);
   await new Promise<void>((res, rej) => {
     http.once('error', (err) => rej(new StartupError(`Cannot listen on ${config.host}:${config.port}: ${err.message}. Set BW_PORT to a free port.`)));
     http.listen(config.port, config.host, () => res());
@@ -80,8 +146,15 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     (stopping ??= (async () => {
       http.closeAllConnections();
       await new Promise<void>((res) => http.close(() => res()));
+      commands!.stop();
+      live.stop();
       await broker.close();
+      await unsubscribe().catch(() => undefined);
+      await ingest.drain(5000);
+      ingest.stop();
+      rollups.stop();
+      await rollups.runOnce().catch(() => undefined);
       await db.destroy();
     })());
-  return { url, db, broker, http, log, stop };
+  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory };
 }

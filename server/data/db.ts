@@ -19,7 +19,8 @@ export function createDb(db: Config['db']): Db {
       decimalNumbers: true,
       dateStrings: false,
     },
-    pool: { min: 0, max: db.poolMax },
+    // Session time zone UTC, so SQL date functions agree with the UTC values mysql2 writes.
+    pool: { min: 0, max: db.poolMax, afterCreate: (conn: { query: (sql: string, cb: (err: Error | null) => void) => void }, done: (err: Error | null, conn: unknown) => void) => conn.query("SET time_zone = '+00:00'", (err) => done(err, conn)) },
     migrations: { migrationSource, tableName: 'knex_migrations' },
   });
 }

@@ -17,6 +17,7 @@ export interface UnitRow {
   firmware: string;
   disabled: number | boolean;
   device_secret_hash: string;
+  on_hold?: number | boolean;
 }
 
 export class UnitRepository {

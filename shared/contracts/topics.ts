@@ -2,11 +2,12 @@
  * MQTT topics of wire format v1 (MQTT 3.1.1). A unit owns everything below `bw/v1/units/<serial>/`.
  *   telemetry  unit → server, QoS 1      events  unit → server, QoS 1      acks  unit → server, QoS 1
  *   status     unit → server, retained; also the unit's last will ("offline")
- *   commands   server → unit, QoS 1
+*   commands   server → unit, QoS 1      weather  unit carrying the site station → server, QoS 1
  */
 export const WIRE_VERSION = 1;
 export const unitPrefix = (serial: string) => `bw/v1/units/${serial}/`;
-export const unitTopic = (serial: string, leaf: 'telemetry' | 'events' | 'acks' | 'status' | 'commands') => `${unitPrefix(serial)}${leaf}`;
+export type UnitLeaf = 'telemetry' | 'events' | 'acks' | 'status' | 'commands' | 'weather';
+export const unitTopic = (serial: string, leaf: UnitLeaf) => `${unitPrefix(serial)}${leaf}`;
 /** Parses `bw/v1/units/<serial>/<leaf>`; null for anything else. */
 export function parseUnitTopic(topic: string): { serial: string; leaf: string } | null {
   const m = /^bw\/v1\/units\/([A-Z0-9][A-Z0-9-]{2,31})\/([a-z]+)$/.exec(topic);

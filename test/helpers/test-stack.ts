@@ -1,12 +1,26 @@
 import { pino } from 'pino';
-import { startStack, type Stack } from '../../server/stack';
+import { startStack, type Stack, type StackOptions } from '../../server/stack';
 import { createTestDatabase, type TestDatabase } from './test-db';
 
+export interface TestStackOptions {
+  seed?: boolean;
+  env?: Record<string, string>;
+  stack?: StackOptions;
+  /** Reach the database through this port instead (e.g. a proxy the test can cut). */
+  dbPort?: number;
+}
+
 /** The whole server (HTTP, broker, database) on free ports against a fresh test database, serving the built dashboard. */
-export async function startTestStack(opts: { seed?: boolean; env?: Record<string, string> } = {}): Promise<Stack & { testDb: TestDatabase }> {
+export async function startTestStack(opts: TestStackOptions = {}): Promise<Stack & { testDb: TestDatabase }> {
   const testDb = await createTestDatabase(opts);
-  const config = { ...testDb.config, port: 0, broker: { ...testDb.config.broker, port: 0 }, sessionSecret: 'test-secret-test-secret-test-secret-0' };
-  const stack = await startStack(config, pino({ level: process.env['BW_LOG_LEVEL'] ?? 'silent' }));
+  const config = {
+    ...testDb.config,
+    port: 0,
+    broker: { ...testDb.config.broker, port: 0 },
+    db: { ...testDb.config.db, port: opts.dbPort ?? testDb.config.db.port },
+    sessionSecret: 'test-secret-test-secret-test-secret-0',
+  };
+  const stack = await startStack(config, pino({ level: process.env['BW_TEST_LOG_LEVEL'] ?? 'silent' }), opts.stack);
   return {
     ...stack,
     testDb,

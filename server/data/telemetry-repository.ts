@@ -1,0 +1,121 @@
+import type { Knex } from 'knex';
+import type { Db } from './db';
+
+/** A validated telemetry row as stored (UTC `Date`s). */
+export interface TelemetryRow {
+  unit_id: number;
+  ts: Date;
+  seq: number;
+  tilt_plus_wm2: number;
+  tilt_minus_wm2: number;
+  azimuth_plus_wm2: number;
+  azimuth_minus_wm2: number;
+  poa_wm2: number;
+  tilt_deg: number;
+  azimuth_deg: number;
+  cmd_tilt_deg: number;
+  cmd_azimuth_deg: number;
+  tilt_motor_a: number;
+  azimuth_motor_a: number;
+  dc_power_w: number;
+  module_temp_c: number;
+  mode: string;
+  received_at: Date;
+}
+
+export const TELEMETRY_COLUMNS: (keyof TelemetryRow)[] = [
+  'unit_id', 'ts', 'seq', 'tilt_plus_wm2', 'tilt_minus_wm2', 'azimuth_plus_wm2', 'azimuth_minus_wm2', 'poa_wm2', 'tilt_deg',
+  'azimuth_deg', 'cmd_tilt_deg', 'cmd_azimuth_deg', 'tilt_motor_a', 'azimuth_motor_a', 'dc_power_w', 'module_temp_c', 'mode', 'received_at',
+];
+
+export interface EventRow { unit_id: number; ts: Date; kind: string; body: string }
+export interface WeatherRow { site_id: number; ts: Date; ghi_wm2: number; dhi_wm2: number | null; air_temp_c: number; wind_ms: number; gust_ms: number }
+
+const MINUTE_MS = 60_000;
+const QUARTER_MS = 15 * MINUTE_MS;
+
+/** Raw telemetry and its rollups. Inserts are `INSERT IGNORE` on the (unit, ts) key: a resend never duplicates. */
+export class TelemetryRepository {
+  constructor(private readonly db: Db) {}
+
+  /** Multi-row insert; returns how many rows were new (the rest were duplicates). */
+  async insertTelemetry(rows: TelemetryRow[]): Promise<number> {
+    if (!rows.length) return 0;
+    return this.insertIgnore('telemetry', TELEMETRY_COLUMNS as string[], rows as unknown as Record<string, unknown>[]);
+  }
+
+  async insertEvents(rows: EventRow[]): Promise<number> {
+    return rows.length ? this.insertIgnore('unit_events', ['unit_id', 'ts', 'kind', 'body'], rows as unknown as Record<string, unknown>[]) : 0;
+  }
+
+  async insertWeather(rows: WeatherRow[]): Promise<number> {
+    return rows.length
+      ? this.insertIgnore('weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[])
+      : 0;
+  }
+
+  private async insertIgnore(table: string, cols: string[], rows: Record<string, unknown>[]): Promise<number> {
+    const tuple = `(${cols.map(() => '?').join(',')})`;
+    const values: Knex.RawBinding[] = [];
+    for (const r of rows) for (const c of cols) values.push(r[c] as Knex.RawBinding);
+    const sql = `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`;
+    const [res] = (await this.db.raw(sql, values)) as unknown as [{ affectedRows: number }];
+    return res.affectedRows;
+  }
+
+  /** Recomputes the 1-minute rollup of the given minute buckets (epoch ms of the minute start) for the given units. */
+  async rollupMinutes(minuteStartMs: number, unitIds: number[]): Promise<void> {
+    if (!unitIds.length) return;
+    const from = new Date(minuteStartMs);
+    const to = new Date(minuteStartMs + MINUTE_MS);
+    await this.db.raw(
+      `INSERT INTO telemetry_1m (unit_id, bucket, samples, poa_avg_wm2, poa_max_wm2, dc_power_avg_w, energy_wh, tilt_avg_deg, azimuth_avg_deg, module_temp_avg_c)
+       SELECT unit_id, ?, COUNT(*), AVG(poa_wm2), MAX(poa_wm2), AVG(dc_power_w), AVG(dc_power_w) / 60, AVG(tilt_deg),
+              MOD(DEGREES(ATAN2(AVG(SIN(RADIANS(azimuth_deg))), AVG(COS(RADIANS(azimuth_deg))))) + 360, 360), AVG(module_temp_c)
+       FROM telemetry WHERE unit_id IN (${unitIds.map(() => '?').join(',')}) AND ts >= ? AND ts < ? GROUP BY unit_id
+       ON DUPLICATE KEY UPDATE samples = VALUES(samples), poa_avg_wm2 = VALUES(poa_avg_wm2), poa_max_wm2 = VALUES(poa_max_wm2),
+         dc_power_avg_w = VALUES(dc_power_avg_w), energy_wh = VALUES(energy_wh), tilt_avg_deg = VALUES(tilt_avg_deg),
+         azimuth_avg_deg = VALUES(azimuth_avg_deg), module_temp_avg_c = VALUES(module_temp_avg_c)`,
+      [from, ...unitIds, from, to],
+    );
+  }
+
+  /** Recomputes the 15-minute rollup of one bucket from the 1-minute rows. */
+  async rollupQuarter(quarterStartMs: number, unitIds: number[]): Promise<void> {
+    if (!unitIds.length) return;
+    const from = new Date(quarterStartMs);
+    const to = new Date(quarterStartMs + QUARTER_MS);
+    await this.db.raw(
+      `INSERT INTO telemetry_15m (unit_id, bucket, minutes, samples, poa_avg_wm2, poa_max_wm2, dc_power_avg_w, energy_wh)
+       SELECT unit_id, ?, COUNT(*), SUM(samples), AVG(poa_avg_wm2), MAX(poa_max_wm2), AVG(dc_power_avg_w), SUM(energy_wh)
+       FROM telemetry_1m WHERE unit_id IN (${unitIds.map(() => '?').join(',')}) AND bucket >= ? AND bucket < ? GROUP BY unit_id
+       ON DUPLICATE KEY UPDATE minutes = VALUES(minutes), samples = VALUES(samples), poa_avg_wm2 = VALUES(poa_avg_wm2),
+         poa_max_wm2 = VALUES(poa_max_wm2), dc_power_avg_w = VALUES(dc_power_avg_w), energy_wh = VALUES(energy_wh)`,
+      [from, ...unitIds, from, to],
+    );
+  }
+
+  /** Quarter-hour rows of one unit in a UTC window (used to sum a local day). */
+  quartersBetween(unitId: number, from: Date, to: Date): Promise<{ bucket: Date; energy_wh: number; minutes: number }[]> {
+    return this.db('telemetry_15m').where('unit_id', unitId).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('bucket', 'energy_wh', 'minutes');
+  }
+
+  async upsertDaily(rows: { unit_id: number; local_date: string; energy_wh: number; minutes: number }[]): Promise<void> {
+    if (!rows.length) return;
+    await this.db('energy_daily').insert(rows).onConflict(['unit_id', 'local_date']).merge(['energy_wh', 'minutes']);
+  }
+
+  /** Deletes raw rows older than the retention, in chunks so the table is never locked for long. */
+  async purgeRawBefore(cutoff: Date, chunk = 50_000): Promise<number> {
+    let total = 0;
+    for (;;) {
+      const [res] = (await this.db.raw('DELETE FROM telemetry WHERE ts < ? LIMIT ?', [cutoff, chunk])) as unknown as [{ affectedRows: number }];
+      total += res.affectedRows;
+      if (res.affectedRows < chunk) return total;
+    }
+  }
+
+  recent(unitId: number, from: Date, to: Date, limit = 20_000): Promise<TelemetryRow[]> {
+    return this.db<TelemetryRow>('telemetry').where('unit_id', unitId).andWhere('ts', '>=', from).andWhere('ts', '<', to).orderBy('ts').limit(limit);
+  }
+}

@@ -1,0 +1,67 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { COMMAND_KINDS, unitConfigSchema } from '../../shared/contracts/wire';
+import type { AdminService } from '../services/admin-service';
+import type { CommandService } from '../services/command-service';
+import type { IngestService } from '../services/ingest-service';
+import type { LiveHub } from '../services/live-hub';
+import type { TelemetryRepository } from '../data/telemetry-repository';
+import type { RollupWorker } from '../services/rollup-worker';
+import { badRequest } from '../errors/app-error';
+import { callerOf, requireRole } from './access';
+import { idParam, parse } from './validation';
+
+const commandBody = z.strictObject({
+  kind: z.enum(COMMAND_KINDS, `Must be one of ${COMMAND_KINDS.join(', ')}.`),
+  tiltDeg: z.number().min(0, 'Must be between 0 and 90 °.').max(90, 'Must be between 0 and 90 °.').optional(),
+  azimuthDeg: z.number().min(0, 'Must be between 0 and 360 °.').max(360, 'Must be between 0 and 360 °.').optional(),
+  config: unitConfigSchema.optional(),
+  confirm: z.boolean().optional(),
+});
+
+const rangeQuery = z.strictObject({
+  from: z.iso.datetime({ offset: true, error: 'Must be an ISO 8601 time with an offset.' }),
+  to: z.iso.datetime({ offset: true, error: 'Must be an ISO 8601 time with an offset.' }),
+});
+
+export interface TelemetryRouteDeps {
+  admin: AdminService;
+  commands: CommandService;
+  ingest: IngestService;
+  live: LiveHub;
+  telemetry: TelemetryRepository;
+  rollups: RollupWorker;
+}
+
+/** Live state, raw telemetry, commands and ingest metrics. Mounted behind requireSession. */
+export function telemetryRoutes(d: TelemetryRouteDeps): Router {
+  const r = Router();
+  const id = (params: unknown) => parse(idParam, params).id;
+
+  r.get('/units/:id/state', async (req, res) => {
+    const unit = await d.admin.getUnit(callerOf(req), id(req.params)); // 404 outside the caller's scope
+    res.json(d.live.get(unit.id) ?? null);
+  });
+
+  r.get('/units/:id/telemetry', async (req, res) => {
+    const unit = await d.admin.getUnit(callerOf(req), id(req.params));
+    const q = parse(rangeQuery, req.query);
+    const from = new Date(q.from);
+    const to = new Date(q.to);
+    if (!(from < to)) throw badRequest('The range is empty.', { to: 'Must be after from.' });
+    res.json(await d.telemetry.recent(unit.id, from, to));
+  });
+
+  r.get('/units/:id/commands', async (req, res) => {
+    res.json(await d.commands.list(callerOf(req), id(req.params)));
+  });
+
+  r.post('/units/:id/commands', requireRole('admin', 'engineer', 'technician', 'crew'), async (req, res) => {
+    res.status(201).json(await d.commands.issue(callerOf(req), id(req.params), parse(commandBody, req.body)));
+  });
+
+  r.get('/metrics', requireRole('admin', 'engineer', 'technician'), (_req, res) => {
+    res.json({ ingest: { ...d.ingest.counters, buffered: d.ingest.bufferedRows }, rollups: { passes: d.rollups.passes } });
+  });
+  return r;
+}

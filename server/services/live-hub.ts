@@ -1,0 +1,153 @@
+import type { CommandView, LiveClientMessage, LiveServerMessage, UnitLiveState } from '../../shared/contracts/live';
+import type { Telemetry, UnitStatus } from '../../shared/contracts/wire';
+import type { Caller } from './caller';
+import type { UnitDirectory, UnitInfo } from './unit-directory';
+
+export interface LiveSession {
+  handle(msg: LiveClientMessage): void;
+  close(): void;
+}
+
+interface Subscriber {
+  caller: Caller;
+  send: (msg: LiveServerMessage) => void;
+  sites: Set<number>;
+  units: Set<number>;
+  fleet: boolean;
+}
+
+/**
+ * Latest state per unit and the dashboards listening to it. Unit state is coalesced and pushed at most once per
+ * `coalesceMs` per unit; commands and alarms go out at once. Transport-agnostic: the WebSocket layer feeds it.
+ */
+export class LiveHub {
+  private readonly state = new Map<number, UnitLiveState>();
+  private readonly dirty = new Set<number>();
+  private readonly subscribers = new Set<Subscriber>();
+  private timer: NodeJS.Timeout | undefined;
+
+  constructor(
+    private readonly units: UnitDirectory,
+    private readonly coalesceMs = 1000,
+  ) {}
+
+  start(): void {
+    this.timer = setInterval(() => this.flush(), this.coalesceMs);
+    this.timer.unref();
+  }
+
+  stop(): void {
+    clearInterval(this.timer);
+  }
+
+  get(unitId: number): UnitLiveState | undefined {
+    return this.state.get(unitId);
+  }
+
+  onTelemetry(unit: UnitInfo, t: Telemetry): void {
+    const s = this.ensure(unit);
+    // Resent buffers arrive oldest first; only newer reports change the live picture.
+    if (s.lastReportAt && t.ts <= s.lastReportAt) return;
+    Object.assign(s, {
+      online: true, lastReportAt: t.ts, mode: t.mode, poaWm2: t.poaWm2, dcPowerW: t.dcPowerW, tiltDeg: t.tiltDeg,
+      azimuthDeg: t.azimuthDeg, cmdTiltDeg: t.cmdTiltDeg, cmdAzimuthDeg: t.cmdAzimuthDeg, tiltDiffWm2: t.tiltPlusWm2 - t.tiltMinusWm2,
+      azimuthDiffWm2: t.azimuthPlusWm2 - t.azimuthMinusWm2, moduleTempC: t.moduleTempC, onHold: unit.onHold,
+    });
+    this.dirty.add(unit.id);
+  }
+
+  onStatus(unit: UnitInfo, st: UnitStatus): void {
+    const s = this.ensure(unit);
+    if (s.online !== st.online) {
+      s.online = st.online;
+      this.dirty.add(unit.id);
+    }
+  }
+
+  onHoldChanged(unit: UnitInfo): void {
+    this.ensure(unit).onHold = unit.onHold;
+    this.dirty.add(unit.id);
+  }
+
+  /** Command changes reach everyone watching that unit (or its site, or the fleet) at once. */
+  publishCommand(command: CommandView): void {
+    const unit = this.units.byUnitId(command.unitId);
+    if (!unit) return;
+    for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'command', command });
+  }
+
+  publishAlarm(unitId: number, alarm: unknown): void {
+    const unit = this.units.byUnitId(unitId);
+    if (!unit) return;
+    for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'alarm', alarm });
+  }
+
+  connect(caller: Caller, send: (msg: LiveServerMessage) => void): LiveSession {
+    const sub: Subscriber = { caller, send, sites: new Set(), units: new Set(), fleet: false };
+    this.subscribers.add(sub);
+    send({ type: 'hello', userId: caller.id, role: caller.role });
+    return {
+      handle: (msg) => this.handle(sub, msg),
+      close: () => this.subscribers.delete(sub),
+    };
+  }
+
+  private handle(sub: Subscriber, msg: LiveClientMessage): void {
+    const on = msg.type === 'subscribe';
+    if (msg.fleet) {
+      sub.fleet = on;
+      if (on) sub.send({ type: 'snapshot', fleet: true, units: this.visible(sub.caller).map((u) => this.ensure(u)) });
+    } else if (msg.siteId !== undefined) {
+      const units = this.visible(sub.caller).filter((u) => u.siteId === msg.siteId);
+      if (!units.length && on) return sub.send({ type: 'error', code: 'not_found', message: `Site ${msg.siteId} not found.` });
+      if (on) sub.sites.add(msg.siteId);
+      else sub.sites.delete(msg.siteId);
+      if (on) sub.send({ type: 'snapshot', siteId: msg.siteId, units: units.map((u) => this.ensure(u)) });
+    } else if (msg.unitId !== undefined) {
+      const unit = this.visible(sub.caller).find((u) => u.id === msg.unitId);
+      if (!unit && on) return sub.send({ type: 'error', code: 'not_found', message: `Unit ${msg.unitId} not found.` });
+      if (on) sub.units.add(msg.unitId);
+      else sub.units.delete(msg.unitId);
+      if (on && unit) sub.send({ type: 'snapshot', unitId: msg.unitId, units: [this.ensure(unit)] });
+    } else {
+      sub.send({ type: 'error', code: 'bad_message', message: 'Subscribe to one of: fleet, siteId, unitId.' });
+    }
+  }
+
+  /** Owners see their own units only; everyone else the whole fleet. */
+  private visible(caller: Caller): UnitInfo[] {
+    const all = this.units.all();
+    return caller.role === 'owner' ? all.filter((u) => u.ownerId === caller.ownerId) : all;
+  }
+
+  private watches(sub: Subscriber, unit: UnitInfo): boolean {
+    if (sub.caller.role === 'owner' && unit.ownerId !== sub.caller.ownerId) return false;
+    return sub.fleet || sub.sites.has(unit.siteId) || sub.units.has(unit.id);
+  }
+
+  /** Sends each changed unit once to each subscriber watching it. */
+  flush(): void {
+    if (!this.dirty.size) return;
+    const ids = [...this.dirty];
+    this.dirty.clear();
+    for (const id of ids) {
+      const unit = this.units.byUnitId(id);
+      const s = this.state.get(id);
+      if (!unit || !s) continue;
+      for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'unit', unit: s });
+    }
+  }
+
+  private ensure(unit: UnitInfo): UnitLiveState {
+    let s = this.state.get(unit.id);
+    if (!s) {
+      s = {
+        unitId: unit.id, serial: unit.serial, siteId: unit.siteId, online: false, lastReportAt: null, mode: null, poaWm2: null,
+        dcPowerW: null, tiltDeg: null, azimuthDeg: null, cmdTiltDeg: null, cmdAzimuthDeg: null, tiltDiffWm2: null,
+        azimuthDiffWm2: null, moduleTempC: null, onHold: unit.onHold,
+      };
+      this.state.set(unit.id, s);
+    }
+    return s;
+  }
+}

@@ -1,0 +1,95 @@
+import type { Logger } from 'pino';
+import type { TelemetryRepository, TelemetryRow } from '../data/telemetry-repository';
+import type { UnitDirectory } from './unit-directory';
+import { localDate, utcWindowOfLocalDate } from './local-time';
+
+const MINUTE = 60_000;
+const QUARTER = 15 * MINUTE;
+
+/**
+ * Keeps the 1-minute, 15-minute and daily rollups current. Stored rows mark their buckets dirty; a pass recomputes
+ * each dirty bucket from the level below, so late and out-of-order samples land in the right place.
+ */
+export class RollupWorker {
+  private dirtyMinutes = new Map<number, Set<number>>();
+  private running: Promise<void> | undefined;
+  private timer: NodeJS.Timeout | undefined;
+  passes = 0;
+
+  constructor(
+    private readonly repo: TelemetryRepository,
+    private readonly units: UnitDirectory,
+    private readonly log: Logger,
+    private readonly intervalMs = 2000,
+  ) {}
+
+  markStored(rows: TelemetryRow[]): void {
+    for (const r of rows) {
+      const m = Math.floor(r.ts.getTime() / MINUTE) * MINUTE;
+      let set = this.dirtyMinutes.get(m);
+      if (!set) this.dirtyMinutes.set(m, (set = new Set()));
+      set.add(r.unit_id);
+    }
+  }
+
+  start(): void {
+    this.timer = setInterval(() => void this.runOnce().catch((err) => this.log.error({ err }, 'rollup pass failed')), this.intervalMs);
+    this.timer.unref();
+  }
+
+  stop(): void {
+    clearInterval(this.timer);
+  }
+
+  /** One pass over everything dirty so far (tests call it directly). */
+  runOnce(): Promise<void> {
+    this.running ??= this.pass().finally(() => (this.running = undefined));
+    return this.running;
+  }
+
+  private async pass(): Promise<void> {
+    const minutes = this.dirtyMinutes;
+    if (!minutes.size) return;
+    this.dirtyMinutes = new Map();
+    const quarters = new Map<number, Set<number>>();
+    try {
+      for (const [m, ids] of minutes) {
+        await this.repo.rollupMinutes(m, [...ids]);
+        const q = Math.floor(m / QUARTER) * QUARTER;
+        let set = quarters.get(q);
+        if (!set) quarters.set(q, (set = new Set()));
+        for (const id of ids) set.add(id);
+      }
+      const days = new Map<string, Set<number>>(); // "date" → unit ids
+      for (const [q, ids] of quarters) {
+        await this.repo.rollupQuarter(q, [...ids]);
+        for (const id of ids) {
+          const tz = this.units.byUnitId(id)?.timeZone ?? 'UTC';
+          const d = localDate(q, tz);
+          let set = days.get(d);
+          if (!set) days.set(d, (set = new Set()));
+          set.add(id);
+        }
+      }
+      const daily: { unit_id: number; local_date: string; energy_wh: number; minutes: number }[] = [];
+      for (const [d, ids] of days) {
+        const { from, to } = utcWindowOfLocalDate(d);
+        for (const id of ids) {
+          const tz = this.units.byUnitId(id)?.timeZone ?? 'UTC';
+          const rows = (await this.repo.quartersBetween(id, from, to)).filter((r) => localDate(r.bucket.getTime(), tz) === d);
+          daily.push({ unit_id: id, local_date: d, energy_wh: rows.reduce((s, r) => s + r.energy_wh, 0), minutes: rows.reduce((s, r) => s + r.minutes, 0) });
+        }
+      }
+      await this.repo.upsertDaily(daily);
+      this.passes++;
+    } catch (err) {
+      // Put the work back; the next pass retries it.
+      for (const [m, ids] of minutes) {
+        let set = this.dirtyMinutes.get(m);
+        if (!set) this.dirtyMinutes.set(m, (set = new Set()));
+        for (const id of ids) set.add(id);
+      }
+      throw err;
+    }
+  }
+}

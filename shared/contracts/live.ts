@@ -1,0 +1,63 @@
+import type { CommandKind, UnitConfig, UnitMode } from './wire';
+
+/** The latest known state of a unit, as pushed to dashboards (at most once a second per unit). */
+export interface UnitLiveState {
+  unitId: number;
+  serial: string;
+  siteId: number;
+  online: boolean;
+  /** Unit timestamp of the latest report (ISO UTC), null before the first. */
+  lastReportAt: string | null;
+  mode: UnitMode | null;
+  poaWm2: number | null;
+  dcPowerW: number | null;
+  tiltDeg: number | null;
+  azimuthDeg: number | null;
+  cmdTiltDeg: number | null;
+  cmdAzimuthDeg: number | null;
+  /** Photodifferentials: plus − minus detector [W/m²]. */
+  tiltDiffWm2: number | null;
+  azimuthDiffWm2: number | null;
+  moduleTempC: number | null;
+  onHold: boolean;
+}
+
+export const COMMAND_STATUSES = ['queued', 'sent', 'acknowledged', 'completed', 'rejected', 'timed-out'] as const;
+export type CommandStatus = (typeof COMMAND_STATUSES)[number];
+
+export interface CommandView {
+  id: string;
+  unitId: number;
+  kind: CommandKind;
+  params: { tiltDeg?: number; azimuthDeg?: number; config?: UnitConfig } | null;
+  status: CommandStatus;
+  reason: string | null;
+  issuedBy: { id: number; name: string };
+  issuedAt: string;
+  sentAt: string | null;
+  ackedAt: string | null;
+  finishedAt: string | null;
+}
+
+export interface IssueCommandRequest {
+  kind: CommandKind;
+  tiltDeg?: number;
+  azimuthDeg?: number;
+  config?: UnitConfig;
+  /** Required `true` for commands that move the structure: the caller confirms nobody is within reach. */
+  confirm?: boolean;
+}
+
+/** Browser → server over `/ws`. */
+export type LiveClientMessage =
+  | { type: 'subscribe'; siteId?: number; unitId?: number; fleet?: boolean }
+  | { type: 'unsubscribe'; siteId?: number; unitId?: number; fleet?: boolean };
+
+/** Server → browser over `/ws`. A `snapshot` follows every subscribe (and so every reconnect). */
+export type LiveServerMessage =
+  | { type: 'hello'; userId: number; role: string }
+  | { type: 'snapshot'; siteId?: number; unitId?: number; fleet?: boolean; units: UnitLiveState[] }
+  | { type: 'unit'; unit: UnitLiveState }
+  | { type: 'command'; command: CommandView }
+  | { type: 'alarm'; alarm: unknown }
+  | { type: 'error'; code: string; message: string };
