@@ -1,0 +1,332 @@
+/**
+ * End-to-end checks of the dashboard in headless Chromium against the real server on a fresh,
+ * seeded test database. Run by `npm test` (which starts the test MariaDB and sets BW_DB_*), after
+ * `npm run build`. Screenshots go to test/.output/e2e/. Prints "N passed, M failed".
+ */
+import { existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { startTestStack } from '../helpers/test-stack';
+
+const ROOT = fileURLToPath(new URL('../..', import.meta.url));
+const OUTPUT = join(ROOT, 'test/.output/e2e');
+const CHROMIUM = process.env['BW_CHROMIUM'] ?? '/usr/bin/chromium';
+const PASSWORD = 'brightward-demo';
+
+type RoleName = 'admin' | 'engineer' | 'technician' | 'crew' | 'owner';
+
+interface DemoUser {
+  email: string;
+  name: string;
+  role: RoleName;
+  roleLabel: string;
+  /** Exactly the sites this user must see; null = every site of the demo world. */
+  sites: string[] | null;
+}
+
+const ALL_SITES = ['Eastfield Depot Yard', 'Fenwick Lane School Courtyard', 'Glasshouse Atrium', 'Harbourside Library Roof'];
+const DEMO_USERS: DemoUser[] = [
+  { email: 'admin@saltmarsh.example', name: 'Ada Kestrel', role: 'admin', roleLabel: 'Administrator', sites: null },
+  { email: 'engineer@saltmarsh.example', name: 'Ravi Lindqvist', role: 'engineer', roleLabel: 'Engineer', sites: null },
+  { email: 'tech1@saltmarsh.example', name: 'Mara Okonjo', role: 'technician', roleLabel: 'O&M technician', sites: null },
+  { email: 'tech2@saltmarsh.example', name: 'Tomasz Velde', role: 'technician', roleLabel: 'O&M technician', sites: null },
+  { email: 'crew1@saltmarsh.example', name: 'Ines Calder', role: 'crew', roleLabel: 'Field crew', sites: null },
+  { email: 'crew2@saltmarsh.example', name: 'Kwame Ruiz', role: 'crew', roleLabel: 'Field crew', sites: null },
+  {
+    email: 'owner@quillmoor.example',
+    name: 'Priya Halvorsen',
+    role: 'owner',
+    roleLabel: 'Owner',
+    sites: ['Eastfield Depot Yard', 'Harbourside Library Roof'],
+  },
+  {
+    email: 'owner@fenwicklane.example',
+    name: 'Jonah Whitcombe',
+    role: 'owner',
+    roleLabel: 'Owner',
+    sites: ['Fenwick Lane School Courtyard', 'Glasshouse Atrium'],
+  },
+];
+
+const NAV: Record<RoleName, string[]> = {
+  admin: ['Sites', 'People', 'Owners', 'Site setup', 'Units and credentials'],
+  engineer: ['Sites'],
+  technician: ['Sites'],
+  crew: ['Sites'],
+  owner: ['Sites'],
+};
+
+class CheckFailed extends Error {}
+
+function expectEqual<T>(actual: T, expected: T, what: string): void {
+  const a = JSON.stringify(actual);
+  const e = JSON.stringify(expected);
+  if (a !== e) throw new CheckFailed(`${what}: expected ${e}, got ${a}`);
+}
+
+function expectTrue(condition: boolean, what: string): void {
+  if (!condition) throw new CheckFailed(what);
+}
+
+async function main(): Promise<number> {
+  const index = join(ROOT, 'dist/web/browser/index.html');
+  if (!existsSync(index)) {
+    console.error(`No built dashboard at ${index}. Run "npm run build" first.`);
+    return 1;
+  }
+  if (!existsSync(CHROMIUM)) {
+    console.error(`No Chromium at ${CHROMIUM}. Install Debian's "chromium" package (apt-get install chromium) or set BW_CHROMIUM.`);
+    return 1;
+  }
+  mkdirSync(OUTPUT, { recursive: true });
+
+  const stack = await startTestStack({ seed: true });
+  const base = stack.url;
+  const profile = mkdtempSync(join(tmpdir(), 'bw-e2e-chromium-'));
+  let context: BrowserContext | undefined;
+  let passed = 0;
+  let failed = 0;
+  const offMachine: string[] = [];
+
+  try {
+    context = await chromium.launchPersistentContext(profile, {
+      executablePath: CHROMIUM,
+      headless: true,
+      viewport: { width: 1280, height: 800 },
+      args: [
+        '--headless',
+        '--no-sandbox',
+        '--disable-gpu',
+        '--disable-quic',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
+    });
+    context.setDefaultTimeout(10_000);
+    const origin = new URL(base).origin;
+    context.on('request', (request) => {
+      const url = request.url();
+      if (!url.startsWith(origin) && !url.startsWith('data:') && !url.startsWith('blob:')) offMachine.push(url);
+    });
+    const page = context.pages()[0] ?? (await context.newPage());
+
+    async function check(name: string, body: () => Promise<void>): Promise<void> {
+      const started = Date.now();
+      try {
+        await body();
+        passed++;
+        console.log(`  ok    ${name} (${Date.now() - started} ms)`);
+      } catch (error) {
+        failed++;
+        const shot = join(OUTPUT, `failed-${passed + failed}.png`);
+        await page.screenshot({ path: shot, fullPage: true }).catch(() => undefined);
+        console.log(`  FAIL  ${name}\n        ${error instanceof Error ? error.message.split('\n')[0] : String(error)}\n        screenshot: ${shot}`);
+      }
+    }
+
+    const shotsTaken = new Set<RoleName>();
+
+    await check('a signed-out visitor is sent to sign-in, keeping the page asked for', async () => {
+      await page.goto(`${base}/admin/people`);
+      await page.waitForURL(/\/sign-in\?returnUrl=%2Fadmin%2Fpeople$/);
+      await page.getByRole('heading', { name: 'Sign in to Brightward' }).waitFor();
+      await page.screenshot({ path: join(OUTPUT, 'sign-in.png') });
+    });
+
+    await check('a wrong password shows the error and stays on sign-in', async () => {
+      await page.goto(`${base}/sign-in`);
+      await page.getByLabel('Email address').fill('admin@saltmarsh.example');
+      await page.getByLabel('Password', { exact: true }).fill('not-the-password');
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      const alert = page.getByTestId('sign-in-problem');
+      await alert.waitFor();
+      expectTrue(((await alert.textContent()) ?? '').includes('email address or password is not right'), 'wrong-password message');
+      expectTrue(new URL(page.url()).pathname === '/sign-in', 'still on the sign-in page');
+      await page.screenshot({ path: join(OUTPUT, 'sign-in-wrong-password.png') });
+    });
+
+    await check('empty fields get a message each', async () => {
+      await page.goto(`${base}/sign-in`);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      const errors = await page.locator('mat-error').allTextContents();
+      expectEqual(
+        errors.map((text) => text.trim()),
+        ['Enter your email address.', 'Enter your password.'],
+        'field messages',
+      );
+    });
+
+    for (const user of DEMO_USERS) {
+      await check(`${user.role} ${user.email} signs in and sees only their pages and sites`, async () => {
+        await signIn(page, base, user.email);
+        await page.waitForURL(`${base}/sites`);
+        const nav = (await page.getByTestId('main-nav').locator('a [matlistitemtitle]').allTextContents()).map((t) => t.trim());
+        expectEqual(nav, NAV[user.role], 'navigation items');
+        const chip = ((await page.getByTestId('role-chip').textContent()) ?? '').trim();
+        expectTrue(chip.endsWith(user.roleLabel), `role chip shows "${user.roleLabel}" (got "${chip}")`);
+        expectTrue(((await page.getByTestId('user-menu').textContent()) ?? '').includes(user.name), 'user name in the toolbar');
+        await page.locator('ul.cards li.card').first().waitFor();
+        const sites = (await page.locator('ul.cards li.card h2').allTextContents()).map((t) => t.trim()).sort();
+        if (user.sites) {
+          expectEqual(sites, user.sites, 'sites of this owner');
+        } else {
+          for (const name of ALL_SITES) expectTrue(sites.includes(name), `site "${name}" listed`);
+        }
+        if (!shotsTaken.has(user.role)) {
+          shotsTaken.add(user.role);
+          await page.screenshot({ path: join(OUTPUT, `${user.role}.png`) });
+        }
+      });
+
+      if (user.role !== 'admin') {
+        await check(`${user.role} ${user.email} is shown no-access on an admin page`, async () => {
+          await page.goto(`${base}/admin/units`);
+          await page.getByRole('heading', { name: 'No access to this page' }).waitFor();
+          expectTrue(new URL(page.url()).pathname === '/no-access', 'on /no-access');
+        });
+      }
+
+      await check(`${user.role} ${user.email} signs out`, async () => {
+        await signOut(page, base);
+        await page.goto(`${base}/sites`);
+        await page.waitForURL(/\/sign-in\?returnUrl=%2Fsites$/);
+      });
+    }
+
+    await check('an owner opening another owner’s site sees "not found"', async () => {
+      await signIn(page, base, 'owner@quillmoor.example');
+      await page.waitForURL(`${base}/sites`);
+      const fenwickId = await siteIdByName(stack, 'Glasshouse Atrium');
+      await page.goto(`${base}/sites/${fenwickId}`);
+      await page.getByRole('heading', { name: 'Site not found' }).waitFor();
+      await signOut(page, base);
+    });
+
+    const newSite = `Millbrook Museum Roof ${Date.now() % 100000}`;
+    await check('admin adds a site through the form and sees it listed', async () => {
+      await signIn(page, base, 'admin@saltmarsh.example');
+      await page.waitForURL(`${base}/sites`);
+      await page.goto(`${base}/admin/sites`);
+      await page.getByRole('table', { name: 'Sites' }).getByText('Harbourside Library Roof').waitFor();
+      await page.getByTestId('add-site').click();
+      const dialog = page.getByRole('dialog');
+      await dialog.getByRole('heading', { name: 'Add a site' }).waitFor();
+      // Out-of-range value first: the form must refuse it with the range in words.
+      await dialog.getByTestId('latitudeDeg').fill('95');
+      await dialog.getByTestId('latitudeDeg').blur();
+      await dialog.getByText('Latitude must be from −90 to 90°.').waitFor();
+      await dialog.getByTestId('name').fill(newSite);
+      await dialog.getByTestId('ownerId').click();
+      await page.getByRole('option', { name: 'Fenwick Lane Schools Trust' }).click();
+      await dialog.getByTestId('latitudeDeg').fill('51.4521');
+      await dialog.getByTestId('longitudeDeg').fill('-2.5910');
+      await dialog.getByTestId('elevationM').fill('31');
+      await dialog.getByTestId('albedo').fill('0.22');
+      await dialog.getByTestId('timeZone').fill('Europe/Lon');
+      await page.getByRole('option', { name: 'Europe/London' }).click();
+      await page.screenshot({ path: join(OUTPUT, 'admin-add-site.png') });
+      await dialog.getByTestId('save').click();
+      await dialog.waitFor({ state: 'detached' });
+      await page.getByRole('table', { name: 'Sites' }).getByRole('link', { name: newSite }).waitFor();
+      await page.goto(`${base}/sites`);
+      await page.locator('ul.cards li.card h2', { hasText: newSite }).waitFor();
+    });
+
+    await check('admin adding a site with a taken name sees the server’s message on the field', async () => {
+      await page.goto(`${base}/admin/sites`);
+      await page.getByTestId('add-site').click();
+      const dialog = page.getByRole('dialog');
+      await dialog.getByTestId('name').fill(newSite);
+      await dialog.getByTestId('ownerId').click();
+      await page.getByRole('option', { name: 'Fenwick Lane Schools Trust' }).click();
+      await dialog.getByTestId('latitudeDeg').fill('51.45');
+      await dialog.getByTestId('longitudeDeg').fill('-2.59');
+      await dialog.getByTestId('timeZone').fill('Europe/London');
+      await page.getByRole('option', { name: 'Europe/London' }).click();
+      await dialog.getByTestId('save').click();
+      // The server decides what is wrong; the dialog must stay open and show a problem.
+      await dialog.getByTestId('form-problem').waitFor();
+      expectTrue(await dialog.isVisible(), 'dialog still open');
+      await dialog.getByRole('button', { name: 'Cancel' }).click();
+      await dialog.waitFor({ state: 'detached' });
+    });
+
+    await check('admin adds a unit and is shown its device secret once', async () => {
+      await page.goto(`${base}/admin/units`);
+      await page.getByRole('button', { name: 'Add a unit' }).click();
+      const dialog = page.getByRole('dialog');
+      const serial = `E2E-${Date.now() % 1000000}`;
+      await dialog.getByLabel('Serial number').fill(serial);
+      await dialog.getByRole('combobox', { name: 'Site' }).click();
+      await page.getByRole('option', { name: newSite }).click();
+      await dialog.getByLabel('Firmware version').fill('2.4.1');
+      await dialog.getByRole('button', { name: 'Add unit' }).click();
+      const secretDialog = page.getByRole('dialog').filter({ hasText: 'will not be shown again' });
+      await secretDialog.waitFor();
+      const secret = ((await secretDialog.getByTestId('device-secret').textContent()) ?? '').trim();
+      expectTrue(secret.length >= 16, `a device secret is shown (got ${secret.length} characters)`);
+      await page.screenshot({ path: join(OUTPUT, 'admin-device-secret.png') });
+      const done = secretDialog.getByRole('button', { name: 'Done' });
+      expectTrue(await done.isDisabled(), 'Done waits until the admin confirms the secret is stored');
+      await secretDialog.getByText('I have stored the secret safely').click();
+      await done.click();
+      await secretDialog.waitFor({ state: 'detached' });
+      await page.getByRole('table', { name: 'Tracker units' }).getByText(serial).waitFor();
+    });
+
+    await check('the shell works on a 360 px wide phone screen', async () => {
+      await page.setViewportSize({ width: 360, height: 740 });
+      await page.goto(`${base}/sites`);
+      await page.getByRole('button', { name: 'Open navigation' }).click();
+      await page.getByTestId('main-nav').getByRole('link', { name: 'People' }).click();
+      await page.getByRole('heading', { name: 'People' }).waitFor();
+      await page.screenshot({ path: join(OUTPUT, 'admin-phone-people.png') });
+      await page.setViewportSize({ width: 1280, height: 800 });
+      await signOut(page, base);
+    });
+
+    await check('no request left the machine', async () => {
+      expectEqual(offMachine, [], 'requests to other hosts');
+    });
+  } finally {
+    await context?.close().catch(() => undefined);
+    rmSync(profile, { recursive: true, force: true });
+    await stack.stop();
+  }
+
+  console.log(`${passed} passed, ${failed} failed`);
+  return failed === 0 ? 0 : 1;
+}
+
+async function signIn(page: Page, base: string, email: string): Promise<void> {
+  await page.goto(`${base}/sign-in`);
+  await page.getByLabel('Email address').fill(email);
+  await page.getByLabel('Password', { exact: true }).fill(PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+}
+
+async function signOut(page: Page, base: string): Promise<void> {
+  await page.getByTestId('user-menu').click();
+  await page.getByTestId('sign-out').click();
+  await page.waitForURL(`${base}/sign-in`);
+}
+
+async function siteIdByName(stack: { db: { (table: string): unknown } }, name: string): Promise<number> {
+  const db = stack.db as unknown as (table: string) => { where(c: object): { first(col: string): Promise<{ id: number } | undefined> } };
+  const row = await db('sites').where({ name }).first('id');
+  if (!row) throw new CheckFailed(`no site named ${name} in the test database`);
+  return row.id;
+}
+
+main().then(
+  (code) => process.exit(code),
+  (error: unknown) => {
+    console.error(error);
+    console.log('0 passed, 1 failed');
+    process.exit(1);
+  },
+);
