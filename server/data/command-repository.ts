@@ -6,7 +6,8 @@ export interface CommandRow {
   id: string;
   unit_id: number;
   kind: CommandKind;
-  params: string | null;
+  /** JSON text when written; the driver may hand it back parsed. */
+  params: string | Record<string, unknown> | null;
   status: CommandStatus;
   reason: string | null;
   issued_by: number;

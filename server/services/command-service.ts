@@ -85,10 +85,23 @@ export class CommandService {
     return this.repo.listForUnit(unitId);
   }
 
-  /** The unit answered a command. */
-  async onAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
+  private readonly ackChains = new Map<string, Promise<void>>();
+
+  /** The unit answered a command. Answers to one command are applied in arrival order. */
+  onAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
+    const prev = this.ackChains.get(ack.commandId) ?? Promise.resolve();
+    const next = prev.then(() => this.applyAck(unit, ack));
+    this.ackChains.set(ack.commandId, next);
+    void next.finally(() => {
+      if (this.ackChains.get(ack.commandId) === next) this.ackChains.delete(ack.commandId);
+    }).catch(() => undefined);
+    return next;
+  }
+
+  private async applyAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
     const cmd = (await this.repo.open()).find((c) => c.id === ack.commandId && c.unit_id === unit.id);
     if (!cmd) return; // late answer to a finished command, or not ours
+    if (ack.result === 'accepted' && cmd.status === 'acknowledged') return;
     const at = new Date(this.opts.now());
     if (ack.result === 'rejected') {
       await this.repo.update(cmd.id, { status: 'rejected', reason: ack.reason ?? 'rejected by the unit', acked_at: cmd.acked_at ?? at, finished_at: at });
@@ -128,12 +141,18 @@ export class CommandService {
   }
 
   private async send(unit: UnitInfo, cmd: CommandRow): Promise<void> {
-    const params = cmd.params ? JSON.parse(cmd.params) : {};
+    const params = cmd.params ? (typeof cmd.params === 'string' ? JSON.parse(cmd.params) : cmd.params) : {};
     const at = new Date(this.opts.now());
-    await this.publish(unit.serial, { v: 1, commandId: cmd.id, ts: at.toISOString(), kind: cmd.kind, ...params });
+    // Mark it sent first: the unit's answer can arrive before the publish call returns.
     await this.repo.update(cmd.id, { status: 'sent', sent_at: at });
     cmd.status = 'sent';
     cmd.sent_at = at;
+    try {
+      await this.publish(unit.serial, { v: 1, commandId: cmd.id, ts: at.toISOString(), kind: cmd.kind, ...params });
+    } catch (err) {
+      await this.repo.update(cmd.id, { status: 'queued', sent_at: null });
+      throw err;
+    }
   }
 
   private async finish(cmd: CommandRow, status: 'rejected' | 'timed-out', reason: string): Promise<void> {

@@ -25,11 +25,11 @@ export async function publish(client: MqttClient, serial: string, leaf: Paramete
 }
 
 /** Polls until `check` returns a truthy value or the time runs out. */
-export async function waitFor<T>(check: () => T | Promise<T>, timeoutMs = 5000, what = 'condition'): Promise<T> {
+export async function waitFor<T>(check: () => T | Promise<T>, timeoutMs = 5000, what = 'condition'): Promise<NonNullable<T>> {
   const end = Date.now() + timeoutMs;
   for (;;) {
     const v = await check();
-    if (v) return v;
+    if (v) return v as NonNullable<T>;
     if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
     await new Promise((r) => setTimeout(r, 25));
   }

@@ -31,7 +31,7 @@ describe('device credentials and topic ACL', () => {
   it('does not let unit A publish as unit B: the publish is dropped, counted, and A is disconnected', async () => {
     const before = stack.ingest.counters.rejected.acl_denied;
     const a = await connectUnit(stack.broker.port, 'QHL-2402');
-    const closed = new Promise((r) => a.once('close', r));
+    const closed = new Promise<void>((r) => a.once('close', () => r()));
     a.publish(unitTopic('QHL-2403', 'telemetry'), JSON.stringify(sample(1, Date.now())), { qos: 1 });
     await closed;
     expect(stack.ingest.counters.rejected.acl_denied).toBe(before + 1);
