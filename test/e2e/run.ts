@@ -178,9 +178,23 @@ async function main(): Promise<number> {
         }
         if (!shotsTaken.has(user.role)) {
           shotsTaken.add(user.role);
-          await page.screenshot({ path: join(OUTPUT, `${user.role}.png`) });
+          await page.screenshot({ path: join(OUTPUT, `${user.role}.png`), animations: 'disabled' });
         }
       });
+
+      if (user.email === 'tech1@saltmarsh.example') {
+        await check('a technician opens a site and sees its units, read-only', async () => {
+          await page.locator('ul.cards li.card a', { hasText: 'Harbourside Library Roof' }).click();
+          await page.getByRole('heading', { name: 'Harbourside Library Roof' }).waitFor();
+          const table = page.getByRole('table', { name: 'Tracker units of this site' });
+          await table.locator('tr.mat-mdc-row').first().waitFor();
+          const rows = await table.locator('tr.mat-mdc-row').count();
+          expectTrue(rows >= 1, `unit rows shown (${rows})`);
+          expectTrue((await page.getByRole('button', { name: /edit/i }).count()) === 0, 'no edit buttons');
+          expectTrue((await page.getByRole('link', { name: 'Manage units' }).count()) === 0, 'no link to unit management');
+          await page.screenshot({ path: join(OUTPUT, 'technician-site.png'), animations: 'disabled' });
+        });
+      }
 
       if (user.role !== 'admin') {
         await check(`${user.role} ${user.email} is shown no-access on an admin page`, async () => {
@@ -236,21 +250,19 @@ async function main(): Promise<number> {
       await page.locator('ul.cards li.card h2', { hasText: newSite }).waitFor();
     });
 
-    await check('admin adding a site with a taken name sees the server’s message on the field', async () => {
-      await page.goto(`${base}/admin/sites`);
-      await page.getByTestId('add-site').click();
+    await check('admin adding a person with a taken email sees the server’s message under that field', async () => {
+      await page.goto(`${base}/admin/people`);
+      await page.getByRole('button', { name: 'Add a person' }).click();
       const dialog = page.getByRole('dialog');
-      await dialog.getByTestId('name').fill(newSite);
-      await dialog.getByTestId('ownerId').click();
-      await page.getByRole('option', { name: 'Fenwick Lane Schools Trust' }).click();
-      await dialog.getByTestId('latitudeDeg').fill('51.45');
-      await dialog.getByTestId('longitudeDeg').fill('-2.59');
-      await dialog.getByTestId('timeZone').fill('Europe/London');
-      await page.getByRole('option', { name: 'Europe/London' }).click();
-      await dialog.getByTestId('save').click();
-      // The server decides what is wrong; the dialog must stay open and show a problem.
-      await dialog.getByTestId('form-problem').waitFor();
-      expectTrue(await dialog.isVisible(), 'dialog still open');
+      await dialog.getByLabel('Email address').fill('crew1@saltmarsh.example');
+      await dialog.getByLabel('Full name').fill('Second Ines');
+      await dialog.getByLabel('First password').fill('long-enough-password');
+      await dialog.getByRole('button', { name: 'Add person' }).click();
+      const emailError = dialog.locator('mat-form-field', { has: page.getByLabel('Email address') }).locator('mat-error');
+      await emailError.waitFor();
+      expectTrue(((await emailError.textContent()) ?? '').trim().length > 0, 'a message under the email field');
+      expectTrue(await dialog.getByText('Some fields need attention').isVisible(), 'banner points to the fields');
+      await page.screenshot({ path: join(OUTPUT, 'admin-person-taken-email.png'), animations: 'disabled' });
       await dialog.getByRole('button', { name: 'Cancel' }).click();
       await dialog.waitFor({ state: 'detached' });
     });
@@ -269,7 +281,7 @@ async function main(): Promise<number> {
       await secretDialog.waitFor();
       const secret = ((await secretDialog.getByTestId('device-secret').textContent()) ?? '').trim();
       expectTrue(secret.length >= 16, `a device secret is shown (got ${secret.length} characters)`);
-      await page.screenshot({ path: join(OUTPUT, 'admin-device-secret.png') });
+      await page.screenshot({ path: join(OUTPUT, 'admin-device-secret.png'), animations: 'disabled' });
       const done = secretDialog.getByRole('button', { name: 'Done' });
       expectTrue(await done.isDisabled(), 'Done waits until the admin confirms the secret is stored');
       await secretDialog.getByText('I have stored the secret safely').click();
@@ -284,8 +296,27 @@ async function main(): Promise<number> {
       await page.getByRole('button', { name: 'Open navigation' }).click();
       await page.getByTestId('main-nav').getByRole('link', { name: 'People' }).click();
       await page.getByRole('heading', { name: 'People' }).waitFor();
-      await page.screenshot({ path: join(OUTPUT, 'admin-phone-people.png') });
+      await page.screenshot({ path: join(OUTPUT, 'admin-phone-people.png'), animations: 'disabled' });
       await page.setViewportSize({ width: 1280, height: 800 });
+    });
+
+    await check('dark colours follow the device, and the toggle overrides them', async () => {
+      await page.emulateMedia({ colorScheme: 'dark' });
+      await page.goto(`${base}/sites`);
+      await page.locator('ul.cards li.card').first().waitFor();
+      const darkBackground = await page.evaluate(() => getComputedStyle(document.body).backgroundColor);
+      await page.screenshot({ path: join(OUTPUT, 'admin-dark.png'), animations: 'disabled' });
+      await page.getByRole('button', { name: /^Colours: Follow device/ }).click();
+      await page.getByRole('button', { name: /^Colours: Light/ }).waitFor();
+      const lightBackground = await page.evaluate(() => getComputedStyle(document.body).backgroundColor);
+      expectTrue(darkBackground !== lightBackground, `background changes (${darkBackground} vs ${lightBackground})`);
+      await page.reload();
+      await page.getByRole('button', { name: /^Colours: Light/ }).waitFor();
+      // Back to following the device for whoever uses this profile next.
+      await page.getByRole('button', { name: /^Colours: Light/ }).click();
+      await page.getByRole('button', { name: /^Colours: Dark/ }).click();
+      await page.getByRole('button', { name: /^Colours: Follow device/ }).waitFor();
+      await page.emulateMedia({ colorScheme: 'light' });
       await signOut(page, base);
     });
 
