@@ -181,3 +181,5 @@ export function spaEventsForLocalDate(site: Site, unixMs: number, offsetMinutes:
   const utDayStart = localStart + offsetMinutes * 60_000; // 0 h UT of the same calendar date
   return spaRiseTransitSet({ utDayStartUnixMs: utDayStart, deltaTS, latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg });
 }
+export { declinationCooperDeg } from './declination-cooper-1969';
+export { equationOfTimeSpencerMin } from './equation-of-time-spencer-1971';
