@@ -35,7 +35,7 @@ export const DEMO_SITES = [
 export const UNITS_PER_SITE = 6;
 
 /** Detector tilt per unit index: most units well set up, a few too narrow for a cluttered sky (they can be trapped). */
-const DETECTOR_TILTS_DEG = [20, 20, 15, 20, 8, 20];
+export const DETECTOR_TILTS_DEG = [20, 20, 15, 20, 8, 20];
 
 export const demoSerial = (siteCode: string, i: number) => `${siteCode}-${String(2401 + i)}`;
 

@@ -1,0 +1,276 @@
+/**
+ * A fleet of virtual units on their sites: pure and steppable, no I/O. `createFleet(spec, { rng })`, then `step(dtS)` (or
+ * `advanceTo(unixMs)`) returns the messages units whose link is up send in that time, backlog first. Commands go in with
+ * `command()`, the transport state with `setTransport()`. Ground truth (injected faults and observed traps and wind stows)
+ * and baseline energies are available in memory; the CLI writes them to files.
+ */
+import type { Command } from '../shared/contracts/wire';
+import { isoUtc } from './clock';
+import { FAULT_KINDS, FAULT_MEAN_HOURS, type ActiveFault, type FaultKind, type FaultPlan, type TruthKind, type TruthRecord } from './faults';
+import type { Rng } from './rng';
+import { createScenarioWorld, type SiteConditions, type SiteInfo, type SiteWorld } from './scenarios';
+import { irradianceTiltAz, normalFromTiltAzimuth, type SkyField } from './sky-field';
+import { VirtualUnit, type OutboundMessage, type UnitSpec } from './unit-model';
+
+export interface FleetSiteSpec {
+  site: SiteInfo;
+  scenario: string;
+  units: UnitSpec[];
+  /** A ready-made world instead of the named scenario (tests: a frozen sky). */
+  world?: SiteWorld;
+}
+
+export interface FleetSpec {
+  sites: FleetSiteSpec[];
+  startUnixMs: number;
+  faults?: FaultPlan;
+  /** Longest internal step [s]; default 1. */
+  maxStepS?: number;
+  /** Sky rebuild interval [s]; default 60. */
+  skyRefreshS?: number;
+}
+
+/** Energy of a unit and of its two twins under the same sky since the start of the run. */
+export interface BaselineEnergy {
+  serial: string;
+  siteCode: string;
+  /** Plane-of-array irradiation [Wh/m²]. */
+  unitPoaWhm2: number;
+  fixedTiltPoaWhm2: number;
+  sunFollowingPoaWhm2: number;
+  /** DC energy [Wh] (twins: same module and temperature model, clean). */
+  unitDcWh: number;
+  fixedTiltDcWh: number;
+  sunFollowingDcWh: number;
+}
+
+export interface Fleet {
+  readonly units: readonly VirtualUnit[];
+  unit(serial: string): VirtualUnit | undefined;
+  now(): number;
+  /** Advances simulated time by dt seconds; returns the messages that left the units. */
+  step(dtS: number): OutboundMessage[];
+  /** Advances to an instant (no-op when it is not later than now). */
+  advanceTo(unixMs: number): OutboundMessage[];
+  /** Delivers a command to a unit (as if it arrived on its commands topic). */
+  command(serial: string, cmd: Command): void;
+  /** Tells the fleet whether a unit's transport is connected. */
+  setTransport(serial: string, up: boolean): void;
+  /** Every truth record so far (open ones with end null). */
+  truth(): TruthRecord[];
+  baselines(): BaselineEnergy[];
+  /** Latest conditions at a site. */
+  conditions(siteCode: string): SiteConditions | undefined;
+  /** Best irradiance over every orientation the units can reach, for a sky field [W/m²]. */
+  bestReachable(field: SkyField): { tiltDeg: number; azimuthDeg: number; wm2: number };
+  /** Starts an injected fault now (tests, scripted runs). */
+  injectFault(serial: string, kind: FaultKind, durationS: number, target?: number): void;
+}
+
+const TRAP_RATIO = 0.8;
+const TRAP_OPEN_S = 600;
+const TRAP_CLOSE_S = 120;
+const TEMP_COEFF_PER_K = -0.0037;
+const NOCT_RISE_K_PER_WM2 = 25 / 800;
+
+interface SiteRun {
+  spec: FleetSiteSpec;
+  world: SiteWorld;
+  units: VirtualUnit[];
+  last?: SiteConditions;
+  fixedPoaWhm2: number;
+  sunPoaWhm2: number;
+  /** DC per rated watt [Wh/Wp]. */
+  fixedDcPerWp: number;
+  sunDcPerWp: number;
+}
+
+interface Observer {
+  candidateSinceMs: number | null;
+  clearSinceMs: number | null;
+  open: TruthRecord | null;
+}
+
+export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
+  const rng = deps.rng;
+  let now = spec.startUnixMs;
+  const maxStep = spec.maxStepS ?? 1;
+  const sites: SiteRun[] = spec.sites.map((s) => ({
+    spec: s,
+    world: s.world ?? createScenarioWorld(s.scenario, s.site, rng, { skyRefreshS: spec.skyRefreshS }),
+    units: s.units.map((u) => new VirtualUnit(u, rng.fork(`unit:${u.serial}`), now)),
+    fixedPoaWhm2: 0,
+    sunPoaWhm2: 0,
+    fixedDcPerWp: 0,
+    sunDcPerWp: 0,
+  }));
+  const units = sites.flatMap((s) => s.units);
+  const bySerial = new Map(units.map((u) => [u.serial, u]));
+  const siteOf = new Map<VirtualUnit, SiteRun>();
+  for (const s of sites) for (const u of s.units) siteOf.set(u, s);
+  const faultRng = rng.fork('faults');
+  const plan = Object.entries(spec.faults ?? {}).filter(([, r]) => (r ?? 0) > 0) as [FaultKind, number][];
+  const closed: TruthRecord[] = [];
+  const openFaults = new Map<ActiveFault, { unit: VirtualUnit; record: TruthRecord }>();
+  const trapObs = new Map<VirtualUnit, Observer>(units.map((u) => [u, { candidateSinceMs: null, clearSinceMs: null, open: null }]));
+  const windOpen = new Map<VirtualUnit, TruthRecord>();
+  const bestCache = new WeakMap<SkyField, { tiltDeg: number; azimuthDeg: number; wm2: number }>();
+
+  function bestReachable(field: SkyField) {
+    const hit = bestCache.get(field);
+    if (hit) return hit;
+    let best = { tiltDeg: 0, azimuthDeg: 0, wm2: -1 };
+    for (let t = 0; t <= 85; t += 5) for (let a = 0; a < 360; a += 10) {
+      const e = irradianceTiltAz(field, t, a);
+      if (e > best.wm2) best = { tiltDeg: t, azimuthDeg: a, wm2: e };
+    }
+    const c = best;
+    for (let t = Math.max(0, c.tiltDeg - 5); t <= Math.min(85, c.tiltDeg + 5); t += 1) for (let a = c.azimuthDeg - 10; a <= c.azimuthDeg + 10; a += 1) {
+      const e = irradianceTiltAz(field, t, a);
+      if (e > best.wm2) best = { tiltDeg: t, azimuthDeg: ((a % 360) + 360) % 360, wm2: e };
+    }
+    bestCache.set(field, best);
+    return best;
+  }
+
+  function startFault(u: VirtualUnit, kind: FaultKind, durationS: number, target: number) {
+    const f: ActiveFault = { kind, startMs: now, endMs: now + durationS * 1000, target };
+    u.startFault(f, now);
+    openFaults.set(f, { unit: u, record: { serial: u.serial, fault: kind, start: isoUtc(now), end: null } });
+  }
+
+  function observe(u: VirtualUnit, c: SiteConditions) {
+    // Wind stow as observed truth.
+    const w = windOpen.get(u);
+    if (u.windStow && !w) windOpen.set(u, { serial: u.serial, fault: 'wind-stow', start: isoUtc(now), end: null });
+    if (!u.windStow && w) {
+      w.end = isoUtc(now);
+      closed.push(w);
+      windOpen.delete(u);
+    }
+    // Trap: settled well below the best reachable orientation, with nothing else wrong.
+    const o = trapObs.get(u)!;
+    const best = bestReachable(c.field);
+    const otherFault = u.faults.some((f) => f.kind !== 'trap' && f.kind !== 'comms-loss' && f.kind !== 'soiling');
+    const cond = best.wm2 >= 100 && u.mode === 'settled' && !otherFault && (u.last?.truePoaWm2 ?? 0) < TRAP_RATIO * best.wm2;
+    if (cond) {
+      o.clearSinceMs = null;
+      if (o.candidateSinceMs === null) o.candidateSinceMs = now;
+      if (!o.open && now - o.candidateSinceMs >= TRAP_OPEN_S * 1000) o.open = { serial: u.serial, fault: 'trap', start: isoUtc(o.candidateSinceMs), end: null };
+    } else {
+      o.candidateSinceMs = null;
+      if (o.open) {
+        if (o.clearSinceMs === null) o.clearSinceMs = now;
+        if (now - o.clearSinceMs >= TRAP_CLOSE_S * 1000) {
+          o.open.end = isoUtc(o.clearSinceMs);
+          closed.push(o.open);
+          o.open = null;
+          o.clearSinceMs = null;
+        }
+      }
+    }
+  }
+
+  function twins(s: SiteRun, c: SiteConditions, dtS: number) {
+    const lat = s.spec.site.latitudeDeg;
+    const fixed = irradianceTiltAz(c.field, Math.abs(lat), lat >= 0 ? 180 : 0);
+    const sun = c.sunDir ? c.field.irradiance(c.sunDir[2] >= Math.cos((85 * Math.PI) / 180) ? c.sunDir : normalFromTiltAzimuth(85, c.sunAzimuthDeg)) : irradianceTiltAz(c.field, 0, 0);
+    const dc = (e: number) => (e / 1000) * (1 + TEMP_COEFF_PER_K * (c.weather.airTempC + e * NOCT_RISE_K_PER_WM2 - 25));
+    s.fixedPoaWhm2 += (fixed * dtS) / 3600;
+    s.sunPoaWhm2 += (sun * dtS) / 3600;
+    s.fixedDcPerWp += (Math.max(0, dc(fixed)) * dtS) / 3600;
+    s.sunDcPerWp += (Math.max(0, dc(sun)) * dtS) / 3600;
+  }
+
+  function drain(): OutboundMessage[] {
+    const out: OutboundMessage[] = [];
+    for (const u of units) if (u.linkUp && u.outbox.size > 0) for (const m of u.outbox.drain()) out.push(m);
+    return out;
+  }
+
+  function substep(dtS: number) {
+    now += dtS * 1000;
+    // Faults end, then new ones may start.
+    for (const [f, { unit, record }] of openFaults) {
+      if (f.endMs <= now) {
+        unit.endFault(f, now);
+        record.end = isoUtc(now);
+        closed.push(record);
+        openFaults.delete(f);
+      }
+    }
+    if (plan.length) {
+      for (const u of units) for (const [kind, rate] of plan) {
+        if (!u.hasFault(kind) && faultRng.chance((rate * dtS) / 86_400)) {
+          const dur = Math.max(300, faultRng.exponential(FAULT_MEAN_HOURS[kind] * 3600));
+          startFault(u, kind, dur, Math.floor(faultRng.next() * 4));
+        }
+      }
+    }
+    for (const s of sites) {
+      const c = s.world.at(now, dtS);
+      s.last = c;
+      twins(s, c, dtS);
+      for (const u of s.units) {
+        u.step(c, dtS);
+        observe(u, c);
+      }
+    }
+  }
+
+  const fleet: Fleet = {
+    units,
+    unit: (serial) => bySerial.get(serial),
+    now: () => now,
+    step(dtS) {
+      let left = dtS;
+      while (left > 1e-9) {
+        const d = Math.min(maxStep, left);
+        substep(d);
+        left -= d;
+      }
+      return drain();
+    },
+    advanceTo(unixMs) {
+      const dt = (unixMs - now) / 1000;
+      return dt > 0 ? fleet.step(dt) : drain();
+    },
+    command(serial, cmd) {
+      const u = bySerial.get(serial);
+      if (u) u.handleCommand(cmd, now);
+    },
+    setTransport(serial, up) {
+      const u = bySerial.get(serial);
+      if (u) u.transportUp = up;
+    },
+    truth() {
+      const open: TruthRecord[] = [...[...openFaults.values()].map((x) => x.record), ...[...trapObs.values()].flatMap((o) => (o.open ? [o.open] : [])), ...windOpen.values()];
+      return [...closed, ...open.map((r) => ({ ...r }))];
+    },
+    baselines() {
+      return sites.flatMap((s) =>
+        s.units.map((u) => ({
+          serial: u.serial,
+          siteCode: s.spec.site.code,
+          unitPoaWhm2: u.energy.poaWhm2,
+          fixedTiltPoaWhm2: s.fixedPoaWhm2,
+          sunFollowingPoaWhm2: s.sunPoaWhm2,
+          unitDcWh: u.energy.dcWh,
+          fixedTiltDcWh: s.fixedDcPerWp * u.ratedPowerWp,
+          sunFollowingDcWh: s.sunDcPerWp * u.ratedPowerWp,
+        })),
+      );
+    },
+    conditions: (code) => sites.find((s) => s.spec.site.code === code)?.last,
+    bestReachable,
+    injectFault(serial, kind, durationS, target = 0) {
+      const u = bySerial.get(serial);
+      if (!u) throw new RangeError(`no unit ${serial}`);
+      if (!(FAULT_KINDS as readonly string[]).includes(kind)) throw new RangeError(`unknown fault ${kind}`);
+      startFault(u, kind, durationS, target);
+    },
+  };
+  return fleet;
+}
+
+export type { TruthKind };
