@@ -1,0 +1,81 @@
+import { describe, expect, it } from 'vitest';
+import { clampedCosineCoefficient } from '../../shared/sphere/clamped-cosine-ramamoorthi-hanrahan-2001';
+import { directionFromAzimuthElevation, normalFromTiltAzimuth } from '../../shared/sphere/directions';
+import { gaussLegendreOn } from '../../shared/sphere/gauss-legendre';
+import { evaluateSh, normalizedLegendre, realShBasis, shCount, shIndex } from '../../shared/sphere/spherical-harmonics';
+import { projectGridOnSh, sphereGrid } from '../../shared/sphere/sphere-grid';
+
+// Ramamoorthi & Hanrahan 2001 (JOSA A 18(10); SIGGRAPH 2001): E_lm = Â_l L_lm for the clamped-cosine kernel.
+describe('clamped-cosine coefficients Â_l', () => {
+  it('Â0 … Â6 = π, 2π/3, π/4, 0, −π/24, 0, π/64 (values from memory, reproduced — physics.md §3)', () => {
+    const expected = [Math.PI, (2 * Math.PI) / 3, Math.PI / 4, 0, -Math.PI / 24, 0, Math.PI / 64];
+    expected.forEach((v, l) => expect(Math.abs(clampedCosineCoefficient(l) - v)).toBeLessThan(1e-15));
+  });
+  it('the closed form equals 2π∫₀¹ x P_l(x) dx by Gauss–Legendre quadrature up to l = 40', () => {
+    const g = gaussLegendreOn(40, 0, 1);
+    const p = new Float64Array(((40 + 1) * (40 + 2)) / 2);
+    for (let l = 0; l <= 40; l++) {
+      let q = 0;
+      for (let i = 0; i < g.x.length; i++) {
+        normalizedLegendre(40, g.x[i]!, p);
+        const pl = p[(l * (l + 1)) / 2]! * Math.sqrt((4 * Math.PI) / (2 * l + 1)); // P̄_l0 → P_l
+        q += g.w[i]! * g.x[i]! * pl;
+      }
+      expect(Math.abs(2 * Math.PI * q - clampedCosineCoefficient(l))).toBeLessThan(1e-13);
+    }
+  });
+  // R&H printed the constants from 6-digit Y_lm factors (e.g. 3 · π/4 · 0.315392 = 0.743125 vs 0.7431239 exact): tol 2e-6
+  it('quadratic-form constants c1…c5 = 0.429043, 0.511664, 0.743125, 0.886227, 0.247708 (from memory, reproduced)', () => {
+    const y = realShBasis(2, [1, 0, 0]);
+    const yz = realShBasis(2, [0, 0, 1]);
+    const a = [0, 1, 2].map(clampedCosineCoefficient);
+    expect(Math.abs(a[2]! * y[shIndex(2, 2)]! - 0.429043)).toBeLessThan(2e-6); // c1 = Â2 · 0.546274
+    expect(Math.abs((a[1]! * y[shIndex(1, 1)]!) / 2 - 0.511664)).toBeLessThan(2e-6); // c2 = Â1 · 0.488603 / 2
+    expect(Math.abs(a[2]! * 1.5 * yz[shIndex(2, 0)]! - 0.743125)).toBeLessThan(2e-6); // c3 = 3 Â2 · 0.315392
+    expect(Math.abs(a[0]! * y[0]! - 0.886227)).toBeLessThan(2e-6); // c4 = Â0 · 0.282095
+    expect(Math.abs((a[2]! * yz[shIndex(2, 0)]!) / 2 - 0.247708)).toBeLessThan(2e-6); // c5 = Â2 · 0.315392
+  });
+});
+
+describe('order-2 reconstruction of a point source (physics.md §3, exact [SC])', () => {
+  it('E2(0) = 1.0625, E2(90°) = 0.09375 (the 9.4 % worst case), E2(180°) = 0.0625', () => {
+    const s = directionFromAzimuthElevation(0, 90);
+    const coeff = realShBasis(2, s); // L_lm of a unit-irradiance point source = Y_lm(s)
+    for (let l = 0; l <= 2; l++) for (let m = -l; m <= l; m++) coeff[shIndex(l, m)] *= clampedCosineCoefficient(l);
+    expect(evaluateSh(2, coeff, normalFromTiltAzimuth(0, 0))).toBeCloseTo(1.0625, 12);
+    expect(evaluateSh(2, coeff, normalFromTiltAzimuth(90, 33))).toBeCloseTo(0.09375, 12);
+    expect(evaluateSh(2, coeff, normalFromTiltAzimuth(180, 0))).toBeCloseTo(0.0625, 12);
+  });
+});
+
+describe('projection on the sphere grid', () => {
+  it('is orthonormal up to order 24', () => {
+    const grid = sphereGrid(64, 360);
+    const order = 24;
+    const vals = new Float64Array(grid.nRows * grid.nAzimuth);
+    const basis = new Float64Array(shCount(order));
+    const picks: [number, number][] = [[0, 0], [3, -2], [7, 5], [24, 24], [24, -13]];
+    for (const [l, m] of picks) {
+      for (let i = 0; i < grid.nRows; i++) {
+        for (let j = 0; j < grid.nAzimuth; j++) {
+          realShBasis(order, directionFromAzimuthElevation(grid.columnAzimuthDeg[j]!, grid.rowElevationDeg[i]!), basis);
+          vals[i * grid.nAzimuth + j] = basis[shIndex(l, m)]!;
+        }
+      }
+      const c = projectGridOnSh(grid, vals, order);
+      c.forEach((v, k) => expect(Math.abs(v - (k === shIndex(l, m) ? 1 : 0))).toBeLessThan(1e-10));
+    }
+  });
+  it('isotropic upper hemisphere: even l ≥ 2 vanish and l ≤ 1 already gives π(1 + cos β)/2', () => {
+    const grid = sphereGrid(32, 64);
+    const vals = new Float64Array(grid.nRows * grid.nAzimuth);
+    for (let i = 0; i < grid.nHalf; i++) vals.fill(1, i * grid.nAzimuth, (i + 1) * grid.nAzimuth);
+    const c = projectGridOnSh(grid, vals, 6);
+    for (const l of [2, 4, 6]) expect(Math.abs(c[shIndex(l, 0)]!)).toBeLessThan(1e-12);
+    const e1 = c.slice(0, 4);
+    for (let l = 0; l <= 1; l++) for (let m = -l; m <= l; m++) e1[shIndex(l, m)] *= clampedCosineCoefficient(l);
+    for (const b of [0, 30, 60, 90, 150]) {
+      expect(evaluateSh(1, e1, normalFromTiltAzimuth(b, 40))).toBeCloseTo((Math.PI * (1 + Math.cos((b * Math.PI) / 180))) / 2, 12);
+    }
+  });
+});
