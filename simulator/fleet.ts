@@ -67,7 +67,8 @@ export interface Fleet {
   injectFault(serial: string, kind: FaultKind, durationS: number, target?: number): void;
 }
 
-const TRAP_RATIO = 0.8;
+/** A settled unit below this fraction of the best reachable irradiance, with nothing else wrong, counts as trapped. */
+export const TRAP_RATIO = 0.85;
 const TRAP_OPEN_S = 600;
 const TRAP_CLOSE_S = 120;
 const TEMP_COEFF_PER_K = -0.0037;

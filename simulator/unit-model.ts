@@ -104,6 +104,7 @@ export class VirtualUnit {
   private readonly weatherIntervalS: number;
   private calmS = 0;
   private balancedS = 0;
+  private anchor: [number, number] = [NaN, NaN];
   private stuckS = 0;
   private lastReportMs = -Infinity;
   private lastWeatherMs = -Infinity;
@@ -182,9 +183,15 @@ export class VirtualUnit {
     } else {
       const cfg = this.deadbandOverride === null && this.gainFactor === 1 ? this.config : { ...this.config, gain: this.config.gain * this.gainFactor, deadbandWm2: this.deadbandOverride ?? this.config.deadbandWm2 };
       const out = controlStep(cfg, r, this.tilt.encoderDeg, dtS);
-      this.balancedS = out.balanced ? this.balancedS + dtS : 0;
       setTarget(this.tiltSpec, this.tilt, this.tilt.encoderDeg + out.dTiltDeg);
       setTarget(this.azimuthSpec, this.azimuth, this.azimuth.encoderDeg + out.dAzimuthDeg);
+      // Settled = no net motion beyond 1° for a while (noise flicking across the deadband, or pushing against a
+      // travel limit, does not count as seeking).
+      if (Math.abs(this.tilt.encoderDeg - this.anchor[0]) > 1 || Math.abs(this.azimuth.encoderDeg - this.anchor[1]) > 1) {
+        this.anchor = [this.tilt.encoderDeg, this.azimuth.encoderDeg];
+        this.balancedS = 0;
+      } else this.balancedS += dtS;
+      void out.balanced;
     }
     // Move.
     stepAxis(this.tiltSpec, this.tilt, dtS);

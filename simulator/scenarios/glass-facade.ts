@@ -10,12 +10,12 @@ import type { SiteInfo, SkyParts } from './site';
 import { BREEZY } from './weather';
 
 export const CITY_HORIZON: HorizonPoints = [
-  [0, 6], [95, 8], [100, 34], [160, 34], [165, 9], [230, 9], [300, 12], [350, 6],
+  [0, 6], [40, 8], [45, 24], [100, 24], [100, 46], [165, 46], [170, 9], [230, 9], [300, 12], [350, 6],
 ];
 
 export const FACADES: readonly ReflectorInput[] = [
-  { normalAzimuthDeg: 90, azimuthFromDeg: 225, azimuthToDeg: 300, elevationFromDeg: 1, elevationToDeg: 40, reflectance: 0.38 },
-  { normalAzimuthDeg: 180, azimuthFromDeg: 320, azimuthToDeg: 40, elevationFromDeg: 1, elevationToDeg: 45, reflectance: 0.3 },
+  { normalAzimuthDeg: 90, azimuthFromDeg: 200, azimuthToDeg: 300, elevationFromDeg: 1, elevationToDeg: 42, reflectance: 0.4 },
+  { normalAzimuthDeg: 180, azimuthFromDeg: 300, azimuthToDeg: 60, elevationFromDeg: 1, elevationToDeg: 45, reflectance: 0.3 },
 ];
 
 export function glassFacade(site: SiteInfo, opts: { horizon?: HorizonPoints; reflectors?: readonly ReflectorInput[] } = {}): SkyParts {

@@ -10,6 +10,7 @@ import { createSiteWorld, type SiteInfo, type SiteWorld, type SkyParts, type Wor
 import { urbanCanyon } from './urban-canyon';
 
 export type { SiteInfo, SiteWorld, SiteConditions, WeatherNow } from './site';
+export { frozenWorld } from './site';
 
 export const SCENARIOS: Record<string, { description: string; parts: (site: SiteInfo) => SkyParts }> = {
   'clear-day': { description: 'clear sky, open site', parts: clearDay },

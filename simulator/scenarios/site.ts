@@ -118,3 +118,9 @@ export function createSiteWorld(scenario: string, site: SiteInfo, parts: SkyPart
     },
   };
 }
+
+/** A site whose sky and weather stay as they were at `skyUnixMs` while time goes on (checks at one instant of a scenario). */
+export function frozenWorld(world: SiteWorld, skyUnixMs: number): SiteWorld {
+  const c = world.at(skyUnixMs, 0);
+  return { site: world.site, scenario: `${world.scenario} (frozen)`, hasWeatherStation: world.hasWeatherStation, at: (unixMs) => ({ ...c, unixMs }) };
+}
