@@ -5,13 +5,12 @@
  * (normals n cos δ ± t sin δ, t = ∂n/∂tilt) and one pair sideways, in the azimuth direction
  * (n cos δ ± u sin δ, u = horizontal unit vector toward increasing azimuth). The photodifferentials are
  * P_tilt = E(+) − E(−) and P_azimuth = E(+) − E(−). Along one great circle P = ∫_{α−δ}^{α+δ} E′ = 2δ · (box-filtered E)′,
- * so a unit climbing its differentials climbs the landscape box-filtered over ±δ: the blurred landscape here is that
- * box average taken along the tilt great circle and then along the sideways great circle (separable).
+ * so a unit climbing its differentials climbs the landscape box-filtered over ±δ (see blurred-landscape.ts for the
+ * two-dimensional, rotation-invariant version used for peak counting).
  * Identities (derived from Lambert's law): beam only, P = −2·DNI·sin α·sin δ (α = angle off the sun in the plane of
  * motion); isotropic sky, P_tilt = −D·sin β·sin δ; ground adds +ρG·sin β·sin δ.
  */
 import { normalFromTiltAzimuth, tiltAzimuthOf, type Vec3 } from '../sphere/directions';
-import type { Landscape } from './landscape-grid';
 
 const RAD = Math.PI / 180;
 
@@ -110,97 +109,4 @@ export function ascentTrajectoryWith(
     az = ta.tiltDeg < 1e-9 ? az : ta.azimuthDeg;
   }
   return { points, converged: false };
-}
-
-/** Cumulative trapezoid integral of a sampled line with unit spacing, and its integral over [a, b] in index units. */
-function lineIntegral(values: Float64Array, cum: Float64Array, a: number, b: number): number {
-  const n = values.length;
-  const at = (x: number): number => {
-    if (x <= 0) return x * values[0]!; // constant extension below the first node
-    if (x >= n - 1) return cum[n - 1]! + (x - (n - 1)) * values[n - 1]!;
-    const k = Math.floor(x);
-    const f = x - k;
-    const v0 = values[k]!;
-    const v1 = values[k + 1]!;
-    return cum[k]! + f * v0 + (f * f * (v1 - v0)) / 2;
-  };
-  return at(b) - at(a);
-}
-
-/**
- * Box-blurred landscape for detector tilt δ: average of E over ±δ along the tilt great circle (through the zenith to
- * the opposite azimuth), then over ±δ along the sideways great circle. Needs a periodic (full-circle) azimuth grid
- * starting at tilt 0; values beyond the last tilt row are held constant (compute the landscape with a margin of δ).
- */
-export function blurLandscape(l: Landscape, detectorTiltDeg: number): Landscape {
-  if (!Number.isFinite(detectorTiltDeg) || detectorTiltDeg < 0 || detectorTiltDeg > 45) {
-    throw new RangeError(`detectorTiltDeg: must be a finite number in [0, 45]; got ${detectorTiltDeg}`);
-  }
-  if (!l.periodicAzimuth || Math.abs(l.tiltsDeg[0]!) > 1e-9) throw new RangeError('blurLandscape: needs a full-circle azimuth grid starting at tilt 0');
-  if (detectorTiltDeg === 0) return { ...l, values: l.values.slice(), method: 'blurred' };
-  const nT = l.tiltsDeg.length;
-  const nA = l.azimuthsDeg.length;
-  const step = l.stepDeg;
-  const half = detectorTiltDeg / step; // half-width in tilt index units
-  const tiltBlur = new Float64Array(nT * nA);
-  // 1) along tilt: extended line for column j = column j+180° reversed (negative tilts) + column j
-  const line = new Float64Array(2 * nT - 1);
-  const cum = new Float64Array(2 * nT - 1);
-  for (let j = 0; j < nA; j++) {
-    const opp = Math.round(j + nA / 2) % nA;
-    for (let i = 0; i < nT; i++) {
-      line[nT - 1 + i] = l.values[i * nA + j]!;
-      line[nT - 1 - i] = l.values[i * nA + opp]!;
-    }
-    cum[0] = 0;
-    for (let k = 1; k < line.length; k++) cum[k] = cum[k - 1]! + (line[k - 1]! + line[k]!) / 2;
-    for (let i = 0; i < nT; i++) {
-      const c = nT - 1 + i;
-      tiltBlur[i * nA + j] = lineIntegral(line, cum, c - half, c + half) / (2 * half);
-    }
-  }
-  // 2) sideways: points n cos ψ + u sin ψ have tilt acos(cos β cos ψ) and azimuth A + atan2(sin ψ, sin β cos ψ)
-  const out = new Float64Array(nT * nA);
-  const nS = Math.max(2, Math.ceil((2 * detectorTiltDeg) / step));
-  const azStep = l.azimuthStepDeg;
-  for (let i = 0; i < nT; i++) {
-    const b = l.tiltsDeg[i]! * RAD;
-    const rows: number[] = [];
-    const fr: number[] = [];
-    const shifts: number[] = [];
-    const fs: number[] = [];
-    const ws: number[] = [];
-    for (let s = 0; s <= nS; s++) {
-      const psi = (-detectorTiltDeg + (2 * detectorTiltDeg * s) / nS) * RAD;
-      const tilt = Math.acos(Math.max(-1, Math.min(1, Math.cos(b) * Math.cos(psi)))) / RAD;
-      const dAz = Math.atan2(Math.sin(psi), Math.sin(b) * Math.cos(psi)) / RAD;
-      const ti = Math.min(nT - 1, tilt / step);
-      const r0 = Math.min(nT - 2, Math.floor(ti));
-      rows.push(r0);
-      fr.push(Math.min(1, ti - r0));
-      const sa = dAz / azStep;
-      const s0 = Math.floor(sa);
-      shifts.push(s0);
-      fs.push(sa - s0);
-      ws.push(s === 0 || s === nS ? 0.5 : 1);
-    }
-    const wsum = ws.reduce((x, y) => x + y, 0);
-    for (let j = 0; j < nA; j++) {
-      let acc = 0;
-      for (let s = 0; s <= nS; s++) {
-        const r0 = rows[s]!;
-        const f = fr[s]!;
-        const j0 = (((j + shifts[s]!) % nA) + nA) % nA;
-        const j1 = (j0 + 1) % nA;
-        const g = fs[s]!;
-        const v00 = tiltBlur[r0 * nA + j0]!;
-        const v01 = tiltBlur[r0 * nA + j1]!;
-        const v10 = tiltBlur[(r0 + 1) * nA + j0]!;
-        const v11 = tiltBlur[(r0 + 1) * nA + j1]!;
-        acc += ws[s]! * ((1 - f) * ((1 - g) * v00 + g * v01) + f * ((1 - g) * v10 + g * v11));
-      }
-      out[i * nA + j] = acc / wsum;
-    }
-  }
-  return { ...l, values: out, method: 'blurred' };
 }

@@ -15,14 +15,16 @@
  */
 import { normalFromTiltAzimuth, type Vec3 } from '../sphere/directions';
 import type { Sky } from '../sky-radiance/sky';
-import { ascentTrajectoryWith, blurLandscape, detectorReadingsWith, type DetectorReadings, type TrajectoryPoint, type UnitControl } from './detector-pairs';
+import { ascentTrajectoryWith, detectorReadingsWith, type DetectorReadings, type TrajectoryPoint, type UnitControl } from './detector-pairs';
+import { blurLandscape } from './blurred-landscape';
 import { irradianceBruteAtNormal, landscapeBruteValues } from './irradiance-brute';
 import { irradianceFastAtNormal, landscapeFastValues, SH_ORDER } from './irradiance-fast';
 import { analysePeaks, basinShares, defaultMinProminenceWm2, gridGraph, type Peak } from './landscape-analysis';
 import { validateGridOptions, type Landscape, type LandscapeGridOptions } from './landscape-grid';
 
 export { buildSky, extendedRadiance, type Sky, type SkyInput, type SkyType } from '../sky-radiance/sky';
-export { blurLandscape, type DetectorReadings, type TrajectoryPoint, type UnitControl } from './detector-pairs';
+export { type DetectorReadings, type TrajectoryPoint, type UnitControl } from './detector-pairs';
+export { blurLandscape, capRadiusForDetectorTiltDeg } from './blurred-landscape';
 export { type Landscape, type LandscapeGridOptions } from './landscape-grid';
 export { analysePeaks, basinShares, type Peak } from './landscape-analysis';
 export { SH_ORDER };
@@ -39,7 +41,7 @@ export function computeLandscape(sky: Sky, options: LandscapeOptions = {}): Land
   const g = validateGridOptions(options);
   const method = options.method ?? 'fast';
   const values = method === 'brute' ? landscapeBruteValues(sky, g.tilts, g.azimuths) : landscapeFastValues(sky, g.tilts, g.azimuths);
-  return { stepDeg: g.stepDeg, tiltsDeg: g.tilts, azimuthsDeg: g.azimuths, azimuthStepDeg: g.azimuthStepDeg, periodicAzimuth: g.periodic, values, method };
+  return { stepDeg: g.stepDeg, tiltsDeg: g.tilts, azimuthsDeg: g.azimuths, azimuthStepDeg: g.azimuthStepDeg, periodicAzimuth: g.periodic, values, method, sky };
 }
 
 /** Irradiance on a plane given by its unit normal [east, north, up]. */
@@ -125,10 +127,11 @@ export interface LandscapeReport {
 /**
  * Full analysis over the reachable range: global maximum; every prominent local maximum with its basin share under
  * gradient ascent with detector tilt δ; the smallest δ (0.5° steps up to maxDetectorTiltDeg) whose blurred landscape
- * has a single peak (null if none). The search scans δ every 2° and refines the last 2° bracket in 0.5° steps, so it
- * relies on the peak count not rising again within 2° (true on every test sky; see test/shared). When the raw
- * landscape already has one peak the answer is the smallest detector tilt considered, 0.5°. The landscape is computed with a tilt margin so detectors beyond the range see
- * real values.
+ * has a single peak (null if none). Blurred landscapes come from the fast path (even when `method` is 'brute') and
+ * average over directions beyond the reachable range too (detectors see past the actuator limits). The search scans
+ * δ every 2° and refines the last 2° bracket in 0.5° steps, so it relies on the peak count not rising again within
+ * 2° (it never rises on the test skies; see test/shared). When the raw landscape already has one peak the answer is
+ * the smallest detector tilt considered, 0.5°.
  */
 export function analyseLandscape(sky: Sky, options: LandscapeAnalysisOptions = {}): LandscapeReport {
   const stepDeg = options.stepDeg ?? 1;
@@ -138,16 +141,13 @@ export function analyseLandscape(sky: Sky, options: LandscapeAnalysisOptions = {
   const maxDelta = options.maxDetectorTiltDeg ?? 30;
   if (!Number.isFinite(delta) || delta < 0 || delta > 45) throw new RangeError(`detectorTiltDeg: must be a finite number in [0, 45]; got ${delta}`);
   if (!Number.isFinite(maxDelta) || maxDelta < 0.5 || maxDelta > 45) throw new RangeError(`maxDetectorTiltDeg: must be a finite number in [0.5, 45]; got ${maxDelta}`);
-  const margin = Math.max(delta, maxDelta);
-  const padded = computeLandscape(sky, { stepDeg, tiltRangeDeg: [0, Math.min(180, tiltRange[1] + margin + stepDeg)], method: options.method });
-  const reachable = (l: Landscape) => cropLandscape(l, tiltRange, azRange);
-  const raw = reachable(padded);
+  const raw = computeLandscape(sky, { stepDeg, tiltRangeDeg: tiltRange, azimuthRangeDeg: azRange, method: options.method });
   const graph = gridGraph(raw);
   const rawPeaks = analysePeaks(raw, options.minProminenceWm2, graph);
   const threshold = rawPeaks.minProminenceWm2;
-  const shares = basinShares(rawPeaks, reachable(blurLandscape(padded, delta)));
+  const shares = basinShares(rawPeaks, blurLandscape(raw, delta));
   // Smallest δ on the 0.5° grid with a single peak: scan every 2°, then refine inside the last bracket.
-  const peakCount = (d: number) => analysePeaks(reachable(blurLandscape(padded, d)), threshold, graph).peaks.length;
+  const peakCount = (d: number) => analysePeaks(blurLandscape(raw, d), threshold, graph).peaks.length;
   let minSingle: number | null = null;
   if (rawPeaks.peaks.length === 1) minSingle = 0.5;
   else {

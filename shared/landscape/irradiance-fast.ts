@@ -11,6 +11,7 @@
  * unit-radiance step edge; measured against the brute-force reference (irradiance-brute) on the benchmark and test
  * skies the mean relative error is < 0.1 % and the max < 1 % where E > 10 W/m² (see README-landscape.md).
  */
+import { capAverageMultipliers, capAveragedClampedCosineTable, lookupCapTable } from '../sphere/cap-average';
 import { clampedCosineCoefficients } from '../sphere/clamped-cosine-ramamoorthi-hanrahan-2001';
 import { directionFromAzimuthElevation, normalFromTiltAzimuth, type Vec3 } from '../sphere/directions';
 import { evaluateSh, evaluateShOnTiltAzimuthGrid, shIndex } from '../sphere/spherical-harmonics';
@@ -18,6 +19,7 @@ import { projectGridOnSh, sphereGrid, type SphereGrid } from '../sphere/sphere-g
 import { horizonMeanElevationDeg } from '../sky-radiance/horizon-profile';
 import { reflectorAzimuthOverlapDeg } from '../sky-radiance/facade-reflectors';
 import { pointSourceIrradiance, reflectorRadiance, type Sky } from '../sky-radiance/sky';
+import { dot } from '../sphere/directions';
 
 export const SH_ORDER = 24;
 const GRID_HALF_ROWS = 64;
@@ -127,16 +129,31 @@ export function irradianceFastAtNormal(sky: Sky, n: Vec3, order = SH_ORDER): num
   return Math.max(0, evaluateSh(m.order, m.irradianceCoefficients, n, m.scratch) + pointSourceIrradiance(sky, n));
 }
 
-/** Fast landscape on a tilt × azimuth grid. */
-export function landscapeFastValues(sky: Sky, tiltsDeg: Float64Array, azimuthsDeg: Float64Array, order = SH_ORDER): Float64Array {
+/** Irradiance coefficients of the sky, optionally cap-averaged over angular radius `capRadiusRad`. */
+function coefficientsFor(sky: Sky, order: number, capRadiusRad: number): Float64Array {
   const m = fastModel(sky, order);
-  const out = evaluateShOnTiltAzimuthGrid(m.order, m.irradianceCoefficients, tiltsDeg, azimuthsDeg);
+  if (capRadiusRad <= 0) return m.irradianceCoefficients;
+  const k = capAverageMultipliers(order, capRadiusRad);
+  const c = m.irradianceCoefficients.slice();
+  for (let l = 0; l <= order; l++) for (let mm = -l; mm <= l; mm++) c[shIndex(l, mm)] *= k[l]!;
+  return c;
+}
+
+/**
+ * Fast landscape on a tilt × azimuth grid. With `capRadiusDeg` > 0 the result is the landscape averaged over a
+ * spherical cap of that radius around each normal (exact in the harmonic domain; tabulated for the sharp sources).
+ */
+export function landscapeFastValues(sky: Sky, tiltsDeg: Float64Array, azimuthsDeg: Float64Array, order = SH_ORDER, capRadiusDeg = 0): Float64Array {
+  const capRad = (capRadiusDeg * Math.PI) / 180;
+  const out = evaluateShOnTiltAzimuthGrid(order, coefficientsFor(sky, order, capRad), tiltsDeg, azimuthsDeg);
   const nA = azimuthsDeg.length;
   if (sky.pointSources.length > 0) {
+    const table = capRad > 0 ? capAveragedClampedCosineTable(capRad) : null;
     for (let i = 0; i < tiltsDeg.length; i++) {
       for (let j = 0; j < nA; j++) {
         const n = normalFromTiltAzimuth(tiltsDeg[i]!, azimuthsDeg[j]!);
-        out[i * nA + j] += pointSourceIrradiance(sky, n);
+        if (!table) out[i * nA + j] += pointSourceIrradiance(sky, n);
+        else for (const p of sky.pointSources) out[i * nA + j] += p.irradianceWm2 * lookupCapTable(table, dot(n, p.direction));
       }
     }
   }

@@ -3,6 +3,8 @@
  * Tilt from horizontal (0 = facing up), azimuth clockwise from north; row-major values [tiltIndex * nAzimuth + azimuthIndex].
  * When the azimuth range covers the full circle the grid is periodic in azimuth (no duplicate 360° column).
  */
+import type { Sky } from '../sky-radiance/sky';
+
 export interface Landscape {
   stepDeg: number;
   tiltsDeg: Float64Array;
@@ -13,6 +15,10 @@ export interface Landscape {
   /** Irradiance on each panel normal, W/m². */
   values: Float64Array;
   method: 'fast' | 'brute' | 'blurred';
+  /** The sky it was computed from (lets blurLandscape recompute it averaged). */
+  sky?: Sky;
+  /** For a blurred landscape: the detector tilt δ it represents. */
+  detectorTiltDeg?: number;
 }
 
 export interface LandscapeGridOptions {

@@ -5,3 +5,4 @@ export { clampedCosineCoefficient, clampedCosineCoefficients } from './clamped-c
 export { shCount, shIndex, normalizedLegendre, realShBasis, evaluateSh, evaluateShOnTiltAzimuthGrid } from './spherical-harmonics';
 export { sphereGrid, projectGridOnSh, type SphereGrid } from './sphere-grid';
 export { skyDomeIrradianceOnPlane } from './plane-quadrature';
+export { capAverageMultipliers, capAveragedClampedCosineTable, lookupCapTable } from './cap-average';
