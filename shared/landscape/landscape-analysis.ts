@@ -233,17 +233,20 @@ function ascentTargets(graph: GridGraph, values: Float64Array): Int32Array {
 
 /**
  * Basin share of each prominent peak of `raw`: the solid-angle share of starting orientations from which gradient
- * ascent on `blurred` (the landscape a unit with detector tilt δ climbs) ends in that peak's basin. A blurred
- * maximum is attributed to the raw peak reached from it by ascent on `raw`. Shares sum to 1.
+ * ascent on `blurred` (the landscape a unit with detector tilt δ climbs) ends in that peak's basin. Ascent that stops
+ * on a blurred ripple (prominence below the raw threshold) continues to the blurred peak that absorbs it; a blurred
+ * peak is attributed to the raw peak reached from it by ascent on `raw`. Shares sum to 1.
  */
 export function basinShares(raw: PeakAnalysis, blurred: Landscape): Map<number, number> {
   const g = raw.graph;
-  const endBlurred = ascentTargets(g, nodeValues(g, blurred));
+  const blurredPeaks = analysePeaks(blurred, raw.minProminenceWm2, g);
+  const endBlurred = ascentTargets(g, blurredPeaks.values);
   const endRaw = ascentTargets(g, raw.values);
   const shares = new Map<number, number>();
   let total = 0;
   for (let v = 0; v < g.nodeCount; v++) {
-    const peak = raw.peakOfMaximum.get(endRaw[endBlurred[v]!]!)!;
+    const blurredPeak = blurredPeaks.peakOfMaximum.get(endBlurred[v]!)!;
+    const peak = raw.peakOfMaximum.get(endRaw[blurredPeak]!)!;
     shares.set(peak, (shares.get(peak) ?? 0) + g.weights[v]!);
     total += g.weights[v]!;
   }
