@@ -23,16 +23,21 @@ interface Subscriber {
 export class LiveHub {
   private readonly state = new Map<number, UnitLiveState>();
   private readonly dirty = new Set<number>();
+  private readonly lastSent = new Map<number, number>();
   private readonly subscribers = new Set<Subscriber>();
   private timer: NodeJS.Timeout | undefined;
 
   constructor(
     private readonly units: UnitDirectory,
+    /** Minimum time between two pushes of the same unit [ms]. */
     private readonly coalesceMs = 1000,
+    /** How often changed units are looked at [ms]; bounds the added latency. */
+    private readonly tickMs = 100,
+    private readonly now: () => number = Date.now,
   ) {}
 
   start(): void {
-    this.timer = setInterval(() => this.flush(), this.coalesceMs);
+    this.timer = setInterval(() => this.flush(), this.tickMs);
     this.timer.unref();
   }
 
@@ -125,16 +130,24 @@ export class LiveHub {
     return sub.fleet || sub.sites.has(unit.siteId) || sub.units.has(unit.id);
   }
 
-  /** Sends each changed unit once to each subscriber watching it. */
+  /** Sends each changed unit that has not been sent within `coalesceMs`, batched per subscriber. */
   flush(): void {
-    if (!this.dirty.size) return;
-    const ids = [...this.dirty];
-    this.dirty.clear();
-    for (const id of ids) {
+    if (!this.dirty.size || !this.subscribers.size) return;
+    const now = this.now();
+    const due: { unit: UnitInfo; state: UnitLiveState }[] = [];
+    for (const id of this.dirty) {
+      if ((this.lastSent.get(id) ?? -Infinity) + this.coalesceMs > now) continue;
+      this.dirty.delete(id);
       const unit = this.units.byUnitId(id);
-      const s = this.state.get(id);
-      if (!unit || !s) continue;
-      for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'unit', unit: s });
+      const state = this.state.get(id);
+      if (!unit || !state) continue;
+      this.lastSent.set(id, now);
+      due.push({ unit, state });
+    }
+    if (!due.length) return;
+    for (const sub of this.subscribers) {
+      const units = due.filter((d) => this.watches(sub, d.unit)).map((d) => d.state);
+      if (units.length) sub.send({ type: 'units', units });
     }
   }
 

@@ -57,7 +57,8 @@ export type LiveClientMessage =
 export type LiveServerMessage =
   | { type: 'hello'; userId: number; role: string }
   | { type: 'snapshot'; siteId?: number; unitId?: number; fleet?: boolean; units: UnitLiveState[] }
-  | { type: 'unit'; unit: UnitLiveState }
+  /** Changed units since the last message, each at most once a second. */
+  | { type: 'units'; units: UnitLiveState[] }
   | { type: 'command'; command: CommandView }
   | { type: 'alarm'; alarm: unknown }
   | { type: 'error'; code: string; message: string };

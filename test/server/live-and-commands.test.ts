@@ -68,14 +68,14 @@ describe('live WebSocket', () => {
     const u = await connectUnit(stack.broker.port, 'QHL-2401');
     const t0 = Date.now() - 5000;
     for (let i = 0; i < 5; i++) await publish(u, 'QHL-2401', 'telemetry', sample(i, t0 + i * 1000, { poaWm2: 700 + i }));
-    const update = await waitFor(() => messages.find((m) => m.type === 'unit' && m.unit.serial === 'QHL-2401'), 3000, 'unit update');
-    // Five reports inside one coalescing window arrive as one update carrying the newest values.
-    await new Promise((r) => setTimeout(r, 1200));
-    const updates = messages.filter((m) => m.type === 'unit' && m.unit.serial === 'QHL-2401');
+    const updatesOf = (serial: string) => messages.flatMap((m) => (m.type === 'units' ? m.units.filter((u) => u.serial === serial) : []));
+    const first = await waitFor(() => updatesOf('QHL-2401')[0], 3000, 'unit update');
+    expect(first.online).toBe(true);
+    // Five reports inside one coalescing window arrive as at most two pushes, the last carrying the newest values.
+    await new Promise((r) => setTimeout(r, 1300));
+    const updates = updatesOf('QHL-2401');
     expect(updates.length).toBeLessThanOrEqual(2);
-    const last = updates.at(-1)!;
-    expect(last.type === 'unit' && last.unit.poaWm2).toBe(704);
-    expect(update.type === 'unit' && update.unit.online).toBe(true);
+    expect(updates.at(-1)!.poaWm2).toBe(704);
     ws.close();
     await u.endAsync();
   });
@@ -93,7 +93,7 @@ describe('live WebSocket', () => {
     const u = await connectUnit(stack.broker.port, 'QHL-2402');
     await publish(u, 'QHL-2402', 'telemetry', sample(1, Date.now()));
     await new Promise((r) => setTimeout(r, 1300));
-    expect(messages.some((m) => m.type === 'unit' && m.unit.serial === 'QHL-2402')).toBe(false);
+    expect(messages.some((m) => m.type === 'units' && m.units.some((u) => u.serial === 'QHL-2402'))).toBe(false);
     ws.close();
     await u.endAsync();
   });
@@ -113,8 +113,9 @@ describe('commands', () => {
     const done = await waitFor(async () => (await agent.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string }) => c.id === res.body.id && c.status === 'completed'), 3000, 'completed');
     expect(done.ackedAt).not.toBeNull();
     expect(done.finishedAt).not.toBeNull();
-    const pushed = messages.filter((m) => m.type === 'command').map((m) => (m.type === 'command' ? m.command.status : ''));
-    expect(pushed).toEqual(expect.arrayContaining(['sent', 'acknowledged', 'completed']));
+    const pushed = () => messages.flatMap((m) => (m.type === 'command' && m.command.id === res.body.id ? [m.command.status] : []));
+    await waitFor(() => pushed().includes('completed'), 2000, 'the completed push');
+    expect(pushed()).toEqual(['sent', 'acknowledged', 'completed']);
     const audit = await stack.db('audit_log').where({ action: 'command', target: `unit:${id}` });
     expect(audit).toHaveLength(1);
     ws.close();
