@@ -1,0 +1,114 @@
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+
+const root = join(__dirname, '..', '..');
+function cli(...args: string[]) {
+  const r = spawnSync(process.execPath, ['--import', 'tsx', 'shared/cli/main.ts', ...args], { cwd: root, encoding: 'utf8' });
+  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+const dir = mkdtempSync(join(tmpdir(), 'brightward-cli-'));
+function skyFile(value: unknown): string {
+  const path = join(dir, `${Math.abs(JSON.stringify(value).split('').reduce((h, c) => (h * 31 + c.charCodeAt(0)) | 0, 7))}.json`);
+  writeFileSync(path, typeof value === 'string' ? value : JSON.stringify(value));
+  return path;
+}
+
+describe('brightward sun', () => {
+  it('reproduces the SPA worked example (Reda & Andreas 2008, Table A5.1) and the pinned local-day events', () => {
+    const r = cli('sun', '--lat', '39.742476', '--lon', '-105.1786', '--elev', '1830.14', '--pressure', '820', '--temp', '11', '--delta-t', '67',
+      '--time', '2003-10-17T12:30:30-07:00', '--slope', '30', '--surface-azimuth', '170');
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(Math.abs(out.zenithDeg - 50.11162)).toBeLessThan(1e-5); // Table A5.1
+    expect(Math.abs(out.azimuthDeg - 194.340241)).toBeLessThan(1e-5); // Table A5.1
+    expect(Math.abs(out.incidenceDeg - 25.187)).toBeLessThan(1e-5); // Table A5.1 (rotation −10° from south = 170° from north)
+    expect(out.transit).toBe('2003-10-17T11:46:04.959-07:00'); // physics.md §1 [SC] 11:46:04.96
+    expect(out.sunset).toBe('2003-10-17T17:18:50.960-07:00'); // physics.md §1 [SC] 17:18:50.96 (local day)
+    expect(out.spaAppendixA2.sunset.startsWith('2003-10-16T17:20:19')).toBe(true); // NREL tester 17:20:19 (previous evening)
+    expect(r.stdout).not.toMatch(/NaN|Infinity/);
+  });
+
+  const bad: [string[], RegExp][] = [
+    [['--lat', '91', '--lon', '0', '--time', '2020-01-01T00:00:00Z'], /--lat: must be in \[-90, 90\]/],
+    [['--lat', 'NaN', '--lon', '0', '--time', '2020-01-01T00:00:00Z'], /--lat: must be a finite number/],
+    [['--lat', '10', '--lon', 'Infinity', '--time', '2020-01-01T00:00:00Z'], /--lon: must be a finite number/],
+    [['--lat', '10', '--lon', '0', '--time', '2020-01-01T12:00:00'], /--time: expected an ISO 8601 instant with an offset/],
+    [['--lat', '10', '--lon', '0'], /--time: required/],
+    [['--lat', '10', '--lon', '0', '--time', '2020-01-01T12:00:00Z', '--slope', '30'], /--surface-azimuth: required together with --slope/],
+  ];
+  for (const [args, message] of bad) {
+    it(`rejects ${args.join(' ')}`, () => {
+      const r = cli('sun', ...args);
+      expect(r.code).toBe(2);
+      expect(r.stdout).toBe('');
+      expect(r.stderr).toMatch(message);
+    });
+  }
+});
+
+describe('brightward landscape', () => {
+  const facade = skyFile({
+    sun: { azimuthDeg: 110, elevationDeg: 20, dniWm2: 700 },
+    dhiWm2: 100,
+    skyType: 12,
+    reflectors: [{ normalAzimuthDeg: 90, azimuthFromDeg: 230, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 40, reflectance: 0.35 }],
+  });
+  it('reports the global maximum, the trap with prominence and basin share, and the single-peak detector tilt', () => {
+    const r = cli('landscape', '--sky', facade, '--step', '2', '--detector-tilt', '5');
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.globalMax).toEqual({ tiltDeg: 70, azimuthDeg: 110, wm2: expect.any(Number) });
+    expect(out.globalMax.wm2).toBeGreaterThan(700);
+    expect(out.localMaxima).toHaveLength(2);
+    for (const m of out.localMaxima) expect(Object.keys(m).sort()).toEqual(['azimuthDeg', 'basinShare', 'prominenceWm2', 'tiltDeg', 'wm2']);
+    expect(out.localMaxima[0].basinShare + out.localMaxima[1].basinShare).toBeCloseTo(1, 5);
+    expect(typeof out.minSinglePeakDetectorTiltDeg).toBe('number');
+    expect(r.stdout).not.toMatch(/NaN|Infinity/);
+  });
+
+  it('gives null when no detector tilt up to the maximum makes one peak', () => {
+    const lamps = skyFile({ lamps: [{ azimuthDeg: 0, elevationDeg: 20, irradianceWm2: 60 }, { azimuthDeg: 180, elevationDeg: 20, irradianceWm2: 45 }] });
+    const out = JSON.parse(cli('landscape', '--sky', lamps, '--step', '3', '--max-detector-tilt', '10').stdout);
+    expect(out.minSinglePeakDetectorTiltDeg).toBeNull();
+  });
+
+  const bad: [string[], RegExp][] = [
+    [['--step', '0'], /--step: must be in \(0, 10\]/],
+    [['--step', '10.5'], /--step: must be in \(0, 10\]/],
+    [['--step', 'NaN'], /--step: must be a finite number/],
+    [['--detector-tilt', '-1'], /--detector-tilt: must be in \[0, 45\]/],
+  ];
+  for (const [args, message] of bad) {
+    it(`rejects ${args.join(' ')}`, () => {
+      const r = cli('landscape', '--sky', facade, ...args);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(message);
+    });
+  }
+
+  it('names the bad field of a sky file, and refuses broken JSON and missing files', () => {
+    const unsorted = cli('landscape', '--sky', skyFile({ skyType: 16, horizon: [[20, 5], [10, 5]] }));
+    expect(unsorted.code).toBe(2);
+    expect(unsorted.stderr).toMatch(/skyType: must be .*1…15/);
+    expect(unsorted.stderr).toMatch(/horizon\[1\]\[0\]: must be sorted by azimuth/);
+    const latitude = cli('landscape', '--sky', skyFile({ site: { latitudeDeg: -95, longitudeDeg: 0 }, time: '2020-06-01T12:00:00Z' }));
+    expect(latitude.stderr).toMatch(/site\.latitudeDeg: must be in \[-90, 90\]/);
+    const noOffset = cli('landscape', '--sky', skyFile({ site: { latitudeDeg: 45, longitudeDeg: 0 }, time: '2020-06-01T12:00:00' }));
+    expect(noOffset.stderr).toMatch(/time: must be an ISO 8601 instant with an offset/);
+    const broken = cli('landscape', '--sky', skyFile('{"skyType": '));
+    expect(broken.code).toBe(2);
+    expect(broken.stderr).toMatch(/--sky: not valid JSON/);
+    const missing = cli('landscape', '--sky', join(dir, 'nope.json'));
+    expect(missing.code).toBe(2);
+    expect(missing.stderr).toMatch(/--sky: cannot read/);
+  });
+
+  it('rejects an unknown command', () => {
+    const r = cli('moon');
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/command: unknown command "moon"/);
+  });
+});
