@@ -138,12 +138,14 @@ export function createPublisher(fleet: Fleet, opts: PublisherOptions): Publisher
     connected: () => [...clients.values()].filter((c) => c.connected).length,
     async stop() {
       stopping = true;
+      const within = <T>(p: Promise<T>, ms: number) => Promise.race([p, new Promise<void>((res) => setTimeout(res, ms).unref())]);
       await Promise.all(
         [...clients.entries()].map(async ([serial, c]) => {
           if (c.connected) {
-            await c.publishAsync(unitTopic(serial, 'status'), JSON.stringify({ v: 1, online: false, ts: isoUtc(opts.now()) }), { qos: 1, retain: true }).catch(() => {});
+            await within(c.publishAsync(unitTopic(serial, 'status'), JSON.stringify({ v: 1, online: false, ts: isoUtc(opts.now()) }), { qos: 1, retain: true }).catch(() => {}), 2000);
+            await within(c.endAsync().catch(() => {}), 2000);
           }
-          await c.endAsync().catch(() => {});
+          c.end(true); // no-op when already ended; stops reconnect attempts otherwise
         }),
       );
     },
