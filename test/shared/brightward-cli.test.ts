@@ -112,3 +112,13 @@ describe('brightward landscape', () => {
     expect(r.stderr).toMatch(/command: unknown command "moon"/);
   });
 });
+
+describe('the installed bin shim', () => {
+  it('shared/cli/brightward.mjs runs the same command line through tsx', () => {
+    const r = spawnSync(process.execPath, ['shared/cli/brightward.mjs', 'sun', '--lat', '0', '--lon', '0', '--time', '2020-03-20T12:00:00Z'], { cwd: root, encoding: 'utf8' });
+    expect(r.status).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.zenithDeg).toBeGreaterThan(0);
+    expect(out.zenithDeg).toBeLessThan(3); // equinox noon on the equator: sun near the zenith (declination ≈ 0)
+  });
+});
