@@ -58,8 +58,27 @@ export function standardPressureHpa(elevationM: number): number {
   return 1013.25 * Math.pow(1 - 2.25577e-5 * elevationM, 5.25588);
 }
 
+function requireRange(value: number, field: string, lo: number, hi: number): void {
+  if (typeof value !== 'number' || !Number.isFinite(value) || value < lo || value > hi) {
+    throw new RangeError(`${field}: must be a finite number in [${lo}, ${hi}]; got ${value}`);
+  }
+}
+
+/** Throw a RangeError naming the field when a site or instant is outside what SPA accepts. */
+export function validateSiteAndInstant(site: Site, unixMs: number): void {
+  requireRange(site.latitudeDeg, 'latitudeDeg', -90, 90);
+  requireRange(site.longitudeDeg, 'longitudeDeg', -180, 180);
+  requireRange(site.elevationM, 'elevationM', -6_500_000, 100_000);
+  // SPA's validity: years −2000 … 6000
+  requireRange(unixMs, 'time (epoch ms)', Date.UTC(-2000, 0, 1), Date.UTC(6000, 11, 31));
+}
+
 /** Topocentric sun position (SPA) for a site and instant (epoch ms). */
 export function solarPosition(site: Site, unixMs: number, options: SolarPositionOptions = {}): SunPosition {
+  validateSiteAndInstant(site, unixMs);
+  if (options.pressureHpa !== undefined) requireRange(options.pressureHpa, 'pressureHpa', 0, 5000);
+  if (options.temperatureC !== undefined) requireRange(options.temperatureC, 'temperatureC', -273, 6000);
+  if (options.deltaTS !== undefined) requireRange(options.deltaTS, 'deltaTS', -8000, 8000);
   const deltaTS = options.deltaTS ?? deltaTSecondsEspenakMeeus(decimalYear(unixMs));
   const pressureHpa = options.pressureHpa ?? standardPressureHpa(site.elevationM);
   const temperatureC = options.temperatureC ?? 15;
@@ -127,6 +146,7 @@ export interface SunEvents {
  * criterion of A.2 — and transit where the topocentric hour angle crosses 0. Times to ≈ 1 ms of the root.
  */
 export function sunEventsOfLocalDay(site: Site, unixMs: number, offsetMinutes: number, options: SolarPositionOptions = {}): SunEvents {
+  validateSiteAndInstant(site, unixMs);
   const start = localDayStartUnixMs(unixMs, offsetMinutes);
   const deltaTS = options.deltaTS ?? deltaTSecondsEspenakMeeus(decimalYear(start + 43_200_000));
   const h0 = -(0.26667 + 0.5667);

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { analyseLandscape, blurLandscape, buildSky, capRadiusForDetectorTiltDeg, computeLandscape, type SkyInput } from '../../shared/landscape/index';
+import { analyseLandscape, blurLandscape, buildSky, capRadiusForDetectorTiltDeg, computeLandscape, detectorReadings, type SkyInput } from '../../shared/landscape/index';
+import { skyFromFile } from '../../shared/sky-file/index';
 import { analysePeaks, basinShares, gridGraph } from '../../shared/landscape/landscape-analysis';
 import { seededRandom } from './seeded-random';
 import { testSkies } from './test-skies';
@@ -161,5 +162,32 @@ describe('landscape analysis', () => {
     expect(() => computeLandscape(facadeSky, { stepDeg: 0 })).toThrow(/stepDeg: .*0 < step ≤ 10/);
     expect(() => computeLandscape(facadeSky, { stepDeg: 10.5 })).toThrow(/stepDeg/);
     expect(() => computeLandscape(facadeSky, { stepDeg: Number.NaN })).toThrow(/stepDeg/);
+  });
+});
+
+describe('degenerate skies never produce NaN', () => {
+  it('night, poles, sun at the zenith behind a full horizon, sun on the horizon, empty sky, sky-wide mirror', () => {
+    const files: unknown[] = [
+      { site: { latitudeDeg: 52, longitudeDeg: 4.5 }, time: '2026-12-21T23:00:00+01:00', skyType: 12 },
+      { site: { latitudeDeg: 90, longitudeDeg: 0 }, time: '2026-06-21T12:00:00Z', skyType: 12 },
+      { site: { latitudeDeg: -90, longitudeDeg: 0 }, time: '2026-06-21T12:00:00Z' },
+      { sun: { azimuthDeg: 0, elevationDeg: 90, dniWm2: 900 }, dhiWm2: 100, skyType: 15, horizon: [[0, 90]] },
+      { sun: { azimuthDeg: 360, elevationDeg: -5, dniWm2: 900 }, dhiWm2: 0, skyType: 7 },
+      { sun: { azimuthDeg: 180, elevationDeg: 0, dniWm2: 900 }, ghiWm2: 50, skyType: 14, albedo: 1 },
+      {},
+      {
+        sun: { azimuthDeg: 10, elevationDeg: 40, dniWm2: 500 },
+        dhiWm2: 100,
+        reflectors: [{ normalAzimuthDeg: 0, normalElevationDeg: 90, azimuthFromDeg: 0, azimuthToDeg: 0, elevationFromDeg: -90, elevationToDeg: 90, reflectance: 1 }],
+      },
+    ];
+    for (const f of files) {
+      const { sky } = skyFromFile(f);
+      const report = analyseLandscape(sky, { stepDeg: 5, detectorTiltDeg: 10 });
+      const text = JSON.stringify(report) + JSON.stringify(detectorReadings(sky, 0, 0, 10));
+      expect(text, JSON.stringify(f)).not.toMatch(/NaN|Infinity/);
+      expect(report.localMaxima.length, JSON.stringify(f)).toBeGreaterThanOrEqual(1);
+      for (const v of computeLandscape(sky, { stepDeg: 5 }).values) expect(Number.isFinite(v) && v >= 0).toBe(true);
+    }
   });
 });

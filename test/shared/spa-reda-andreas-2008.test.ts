@@ -133,3 +133,13 @@ describe('instants with an offset', () => {
     expect(p.deltaTS).toBeLessThan(70);
   });
 });
+
+describe('bad input to solar position', () => {
+  it('names the field and its range', () => {
+    expect(() => solarPosition({ ...site, latitudeDeg: 90.5 }, 0)).toThrow(/latitudeDeg: must be a finite number in \[-90, 90\]/);
+    expect(() => solarPosition({ ...site, longitudeDeg: Number.NaN }, 0)).toThrow(/longitudeDeg/);
+    expect(() => solarPosition(site, Number.POSITIVE_INFINITY)).toThrow(/time/);
+    expect(() => solarPosition(site, 0, { pressureHpa: -1 })).toThrow(/pressureHpa/);
+    expect(() => sunEventsOfLocalDay({ ...site, latitudeDeg: -91 }, 0, 0)).toThrow(/latitudeDeg/);
+  });
+});
