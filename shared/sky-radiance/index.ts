@@ -6,3 +6,4 @@ export { horizonProfile, horizonElevationDeg, horizonMeanElevationDeg, type Hori
 export { buildReflector, reflectorContains, type Reflector, type ReflectorInput } from './facade-reflectors';
 export { buildLamp, type Lamp, type LampInput } from './lamps';
 export { sunDiscVisibleFraction, SUN_ANGULAR_RADIUS_DEG } from './sun-disc';
+export { perezSkyDiffuse, PEREZ_1990_COEFFICIENTS, type PerezResult } from './transposition-perez-1990';
