@@ -12,6 +12,7 @@ import * as m20261202100400 from './20261202100400_create_unit_events';
 import * as m20261202100500 from './20261202100500_create_weather';
 import * as m20261202100600 from './20261202100600_create_commands';
 import * as m20261202100700 from './20261202100700_add_units_hold';
+import * as m20261202110000 from './20261202110000_add_sites_survey';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -31,6 +32,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202100500_create_weather': m20261202100500,
   '20261202100600_create_commands': m20261202100600,
   '20261202100700_add_units_hold': m20261202100700,
+  '20261202110000_add_sites_survey': m20261202110000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

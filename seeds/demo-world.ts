@@ -2,6 +2,10 @@ import bcrypt from 'bcryptjs';
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import { hashDeviceSecret } from '../server/services/device-secret';
+import type { SiteSurvey } from '../shared/contracts/api';
+import { CITY_HORIZON, FACADES } from '../simulator/scenarios/glass-facade';
+import { COURTYARD_HORIZON } from '../simulator/scenarios/urban-canyon';
+import { ATRIUM_LAMPS, ATRIUM_WALL_DEG } from '../simulator/scenarios/atrium-lamps';
 
 /**
  * The invented demo world: an O&M operator ("Saltmarsh Field Services"), two owners, four sites and 24 units.
@@ -34,6 +38,14 @@ export const DEMO_SITES = [
 
 export const UNITS_PER_SITE = 6;
 
+/** Site surveys of the demo world: the same geometry the simulator's scenarios use, so model and demo fleet agree. */
+export const DEMO_SURVEYS: Record<string, SiteSurvey> = {
+  QHL: { skyType: 12, horizon: CITY_HORIZON.map(([a, e]) => [a, e]), reflectors: FACADES.map((f) => ({ normalElevationDeg: 0, ...f })), lamps: [] },
+  QED: { skyType: 12, horizon: [], reflectors: [], lamps: [] },
+  FSC: { skyType: 12, horizon: COURTYARD_HORIZON.map(([a, e]) => [a, e]), reflectors: [], lamps: [] },
+  FGA: { skyType: 'isotropic', horizon: [[0, ATRIUM_WALL_DEG]], reflectors: [], lamps: ATRIUM_LAMPS.map(({ azimuthDeg, elevationDeg, irradianceWm2 }) => ({ azimuthDeg, elevationDeg, irradianceWm2 })) },
+};
+
 /** Detector tilt per unit index: most units well set up, a few too narrow for a cluttered sky (they can be trapped). */
 export const DETECTOR_TILTS_DEG = [20, 20, 15, 20, 8, 20];
 
@@ -52,7 +64,7 @@ export async function seedDemoWorld(db: Knex, bcryptCost = 10): Promise<{ seeded
     for (const o of DEMO_OWNERS) ownerIds.set(o.name, (await trx('owners').insert(o))[0] as number);
     for (const s of DEMO_SITES) {
       const { owner, code, ...site } = s;
-      const [siteId] = await trx('sites').insert({ ...site, owner_id: ownerIds.get(owner) });
+      const [siteId] = await trx('sites').insert({ ...site, owner_id: ownerIds.get(owner), survey: JSON.stringify(DEMO_SURVEYS[code]) });
       const rows = Array.from({ length: UNITS_PER_SITE }, (_, i) => {
         const serial = demoSerial(code, i);
         return {

@@ -24,6 +24,8 @@ import { CommandService, type CommandOptions } from './services/command-service'
 import { subscribeUnits } from './consumers/mqtt-consumer';
 import { telemetryRoutes } from './routes/telemetry-routes';
 import { attachLiveSocket } from './routes/live-socket';
+import { siteModelRoutes } from './routes/site-model-routes';
+import { SiteModelService } from './services/site-model-service';
 import { unitTopic } from '../shared/contracts/topics';
 import { createApp } from './app';
 import { startBroker, type Principal, type RunningBroker } from '../broker/broker';
@@ -40,6 +42,7 @@ export interface Stack {
   live: LiveHub;
   commands: CommandService;
   units: UnitDirectory;
+  siteModel: SiteModelService;
   http: Server;
   log: Logger;
   stop(): Promise<void>;
@@ -73,6 +76,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   });
   const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, config.bcryptCost);
 
+  const siteModel = new SiteModelService(db);
   const directory = new UnitDirectory(db);
   await directory.load();
   const telemetry = new TelemetryRepository(db);
@@ -130,7 +134,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const app = createApp({
     db, log, auth, admin, version: VERSION, webDir: config.webDir,
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
-    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups })],
+    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit)],
   });
   const http = createServer(app);
   attachLiveSocket(http, auth, live, log);
@@ -156,5 +160,5 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await rollups.runOnce().catch(() => undefined);
       await db.destroy();
     })());
-  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory };
+  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel };
 }

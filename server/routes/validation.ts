@@ -1,20 +1,11 @@
 import { z } from 'zod';
-import { badRequest } from '../errors/app-error';
+import { validationError } from '../errors/validation-error';
 
 /** Parses a body or query with a zod schema; a failure becomes a 400 that names every bad field. */
 export function parse<T extends z.ZodType>(schema: T, value: unknown): z.infer<T> {
   const r = schema.safeParse(value ?? {});
   if (r.success) return r.data;
-  const fields: Record<string, string> = {};
-  for (const issue of r.error.issues) {
-    if (issue.code === 'unrecognized_keys') {
-      for (const k of issue.keys) fields[[...issue.path, k].join('.')] = 'Unknown field.';
-      continue;
-    }
-    const key = issue.path.join('.') || '(body)';
-    fields[key] ??= issue.message;
-  }
-  throw badRequest(`The request has ${Object.keys(fields).length} invalid field(s): ${Object.keys(fields).join(', ')}.`, fields);
+  throw validationError(r.error);
 }
 
 export const idParam = z.strictObject({ id: z.coerce.number().int().positive('Must be a positive whole number.') });
