@@ -60,7 +60,7 @@ setInterval(() => {
   }
 }, 10);
 
-setInterval(() => process.send?.({ type: 'counts', published, acked }), 500);
+setInterval(() => process.send?.({ type: 'counts', published, acked }), 200);
 
 process.on('message', (m: { type: string; rate?: number }) => {
   if (m.type === 'rate') {

@@ -12,7 +12,7 @@
  * Â_l falls only as l^(−5/2); that is why sharp sources never go through the harmonics. For the extended radiance,
  * whose own coefficients also fall off, the error measured against the brute-force reference (irradiance-brute) on
  * the benchmark skies is ≈ 0.002 % mean and < 1 % max where E > 10 W/m²; the tests hold it to 1 % / 3 % on seeded
- * random skies (see README-landscape.md).
+ * random skies (see shared/README.md).
  */
 import { capAverageMultipliers, capAveragedClampedCosineTable, lookupCapTable } from '../sphere/cap-average';
 import { clampedCosineCoefficients } from '../sphere/clamped-cosine-ramamoorthi-hanrahan-2001';
