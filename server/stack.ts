@@ -19,6 +19,7 @@ import { CommandRepository } from './data/command-repository';
 import { UnitDirectory } from './services/unit-directory';
 import { IngestService, type IngestListeners, type IngestOptions } from './services/ingest-service';
 import { RollupWorker } from './services/rollup-worker';
+import { RetentionJob } from './services/retention-job';
 import { LiveHub } from './services/live-hub';
 import { CommandService, type CommandOptions } from './services/command-service';
 import { subscribeUnits } from './consumers/mqtt-consumer';
@@ -43,6 +44,7 @@ export interface Stack {
   commands: CommandService;
   units: UnitDirectory;
   siteModel: SiteModelService;
+  retention: RetentionJob;
   http: Server;
   log: Logger;
   stop(): Promise<void>;
@@ -127,8 +129,10 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     log,
     opts.commands,
   );
+  const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
   live.start();
   rollups.start();
+  retention.start();
   commands.start();
 
   const app = createApp({
@@ -157,8 +161,9 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await ingest.drain(5000);
       ingest.stop();
       rollups.stop();
+      retention.stop();
       await rollups.runOnce().catch(() => undefined);
       await db.destroy();
     })());
-  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel };
+  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel, retention };
 }

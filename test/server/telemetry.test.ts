@@ -139,4 +139,17 @@ describe('storage', () => {
     expect(daily.reduce((s, d) => s + d.minutes, 0)).toBe(20);
     await u.endAsync();
   });
+
+  it('deletes raw samples past the retention and keeps newer ones', async () => {
+    const id = unitId('QED-2405');
+    const base = { seq: 1, tilt_plus_wm2: 1, tilt_minus_wm2: 1, azimuth_plus_wm2: 1, azimuth_minus_wm2: 1, poa_wm2: 1, tilt_deg: 1, azimuth_deg: 1, cmd_tilt_deg: 1, cmd_azimuth_deg: 1, tilt_motor_a: 0, azimuth_motor_a: 0, dc_power_w: 1, module_temp_c: 1, mode: 'settled', received_at: new Date() };
+    const now = Date.now();
+    await stack.db('telemetry').insert([
+      { ...base, unit_id: id, ts: new Date(now - 401 * 86_400_000) },
+      { ...base, unit_id: id, ts: new Date(now - 399 * 86_400_000) },
+    ]);
+    expect(await stack.retention.runOnce()).toBe(1);
+    const left = await stack.db('telemetry').where({ unit_id: id });
+    expect(left.map((r) => Math.round((now - r.ts.getTime()) / 86_400_000))).toEqual([399]);
+  });
 });
