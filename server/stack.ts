@@ -27,6 +27,11 @@ import { telemetryRoutes } from './routes/telemetry-routes';
 import { attachLiveSocket } from './routes/live-socket';
 import { siteModelRoutes } from './routes/site-model-routes';
 import { SiteModelService } from './services/site-model-service';
+import { traceRoutes } from './routes/trace-routes';
+import { landscapeRoutes } from './routes/landscape-routes';
+import { TraceService } from './services/trace-service';
+import { LandscapeService } from './services/landscape-service';
+import { TraceRepository } from './data/trace-repository';
 import { unitTopic } from '../shared/contracts/topics';
 import { createApp } from './app';
 import { startBroker, type Principal, type RunningBroker } from '../broker/broker';
@@ -79,6 +84,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, config.bcryptCost);
 
   const siteModel = new SiteModelService(db);
+  const landscapes = new LandscapeService(siteModel);
   const directory = new UnitDirectory(db);
   await directory.load();
   const telemetry = new TelemetryRepository(db);
@@ -138,7 +144,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const app = createApp({
     db, log, auth, admin, version: VERSION, webDir: config.webDir,
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
-    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit)],
+    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit),
+      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at))), landscapeRoutes(admin, landscapes)],
   });
   const http = createServer(app);
   attachLiveSocket(http, auth, live, log);

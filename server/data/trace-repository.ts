@@ -1,0 +1,128 @@
+import type { Db } from './db';
+import type { TraceQuantity } from '../../shared/contracts/traces';
+
+/** SQL expression of each trace quantity over a `telemetry` row. */
+const QUANTITY_SQL: Record<TraceQuantity, string> = {
+  tiltPlusWm2: 'tilt_plus_wm2',
+  tiltMinusWm2: 'tilt_minus_wm2',
+  azimuthPlusWm2: 'azimuth_plus_wm2',
+  azimuthMinusWm2: 'azimuth_minus_wm2',
+  tiltDiffWm2: 'tilt_plus_wm2 - tilt_minus_wm2',
+  azimuthDiffWm2: 'azimuth_plus_wm2 - azimuth_minus_wm2',
+  tiltDeg: 'tilt_deg',
+  cmdTiltDeg: 'cmd_tilt_deg',
+  azimuthDeg: 'azimuth_deg',
+  cmdAzimuthDeg: 'cmd_azimuth_deg',
+  poaWm2: 'poa_wm2',
+  dcPowerW: 'dc_power_w',
+};
+
+/** One bucket as the database returns it: `b` index, `n` samples, then `<q>_lo` / `<q>_hi` per quantity. */
+export type BucketRow = { b: number; n: number } & Record<string, number | null>;
+
+export interface RawTraceRow {
+  ts: Date;
+  mode: string;
+  tilt_plus_wm2: number;
+  tilt_minus_wm2: number;
+  azimuth_plus_wm2: number;
+  azimuth_minus_wm2: number;
+  poa_wm2: number;
+  tilt_deg: number;
+  azimuth_deg: number;
+  cmd_tilt_deg: number;
+  cmd_azimuth_deg: number;
+  tilt_motor_a: number;
+  azimuth_motor_a: number;
+  dc_power_w: number;
+  module_temp_c: number;
+}
+
+export interface EventMarkRow {
+  ts: Date;
+  kind: string;
+  body: unknown;
+}
+
+/** Reads traces: min/max per time bucket computed by MariaDB, raw rows in pages for export, events and alarms. */
+export class TraceRepository {
+  private alarmsTable = false;
+
+  constructor(private readonly db: Db) {}
+
+  /**
+   * Minimum and maximum of each quantity per bucket of `bucketMs` (whole seconds) starting at `from`, over `[from, to)`.
+   * Reads the primary key range (unit_id, ts) only; the grouping happens in the database. Long ranges are split into
+   * `parts` bucket-aligned slices queried at once, so the database can use more than one core.
+   */
+  async buckets(unitId: number, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[], parts = 1): Promise<BucketRow[]> {
+    const aggregates = quantities.map((q) => `MIN(${QUANTITY_SQL[q]}) AS \`${q}_lo\`, MAX(${QUANTITY_SQL[q]}) AS \`${q}_hi\``).join(', ');
+    const sql = `SELECT TIMESTAMPDIFF(SECOND, ?, ts) DIV ? AS b, COUNT(*) AS n, ${aggregates}
+       FROM telemetry WHERE unit_id = ? AND ts >= ? AND ts < ?
+       GROUP BY b ORDER BY b`;
+    const bucketS = Math.max(1, Math.round(bucketMs / 1000));
+    const total = Math.ceil((to.getTime() - from.getTime()) / (bucketS * 1000));
+    const perPart = Math.ceil(total / Math.max(1, parts));
+    const slices: [Date, Date][] = [];
+    for (let first = 0; first < total; first += perPart) {
+      const a = new Date(from.getTime() + first * bucketS * 1000);
+      const b = new Date(Math.min(to.getTime(), from.getTime() + (first + perPart) * bucketS * 1000));
+      slices.push([a, b]);
+    }
+    const results = await Promise.all(
+      slices.map(async ([a, b]) => {
+        const [rows] = (await this.db.raw(sql, [from, bucketS, unitId, a, b])) as unknown as [BucketRow[]];
+        return rows;
+      }),
+    );
+    return results.flat();
+  }
+
+  /** Raw rows in time order, `limit` at a time after `after` (exclusive), for streaming exports. */
+  rawPage(unitId: number, after: Date, to: Date, limit: number, inclusive = false): Promise<RawTraceRow[]> {
+    return this.db('telemetry')
+      .where('unit_id', unitId)
+      .andWhere('ts', inclusive ? '>=' : '>', after)
+      .andWhere('ts', '<', to)
+      .orderBy('ts')
+      .limit(limit)
+      .select(
+        'ts', 'mode', 'tilt_plus_wm2', 'tilt_minus_wm2', 'azimuth_plus_wm2', 'azimuth_minus_wm2', 'poa_wm2', 'tilt_deg', 'azimuth_deg',
+        'cmd_tilt_deg', 'cmd_azimuth_deg', 'tilt_motor_a', 'azimuth_motor_a', 'dc_power_w', 'module_temp_c',
+      );
+  }
+
+  /** Events the unit reported in the range, without the bulky scan sample chunks. */
+  events(unitId: number, from: Date, to: Date, limit = 500): Promise<EventMarkRow[]> {
+    return this.db('unit_events')
+      .where('unit_id', unitId)
+      .andWhere('ts', '>=', from)
+      .andWhere('ts', '<', to)
+      .whereNot('kind', 'scan-samples')
+      .orderBy('ts')
+      .limit(limit)
+      .select('ts', 'kind', 'body');
+  }
+
+  /**
+   * Alarms of the unit raised in the range, or null when there is no alarm table yet. Reads only columns every alarm
+   * record is expected to have (`unit_id`, `raised_at` or `opened_at`, `kind`/`type`, `severity`, `state`).
+   */
+  async alarms(unitId: number, from: Date, to: Date, limit = 500): Promise<Record<string, unknown>[] | null> {
+    // Remember only a table that exists: the alarm service may add it while the server runs.
+    if (!this.alarmsTable) {
+      const exists = await this.db.schema.hasTable('alarms').catch(() => false);
+      if (!exists) return null;
+      this.alarmsTable = true;
+    }
+    try {
+      const cols = await this.db('alarms').columnInfo();
+      const at = ['raised_at', 'opened_at', 'started_at', 'created_at'].find((c) => c in cols);
+      if (!at || !('unit_id' in cols)) return null;
+      return await this.db('alarms').where('unit_id', unitId).andWhere(at, '>=', from).andWhere(at, '<', to).orderBy(at).limit(limit)
+        .select(this.db.raw(`\`${at}\` AS at_ts`), '*');
+    } catch {
+      return null;
+    }
+  }
+}

@@ -1,0 +1,173 @@
+import type { Unit } from '../../shared/contracts/api';
+import { MAX_CSV_DAYS, TRACE_QUANTITIES, TRACE_QUANTITY_INFO, type TraceMark, type TraceQuantity, type TraceSeries, type UnitTraces } from '../../shared/contracts/traces';
+import type { TraceRepository, RawTraceRow } from '../data/trace-repository';
+import { badRequest } from '../errors/app-error';
+
+const DAY_MS = 86_400_000;
+/** Largest range of one traces request [days]. */
+export const MAX_TRACE_DAYS = 92;
+/** Instants at which the modelled best is evaluated over a range, at most. */
+const BEST_SAMPLES = 96;
+
+const round2 = (x: number | null) => (x === null ? null : Math.round(x * 100) / 100);
+
+/** The modelled best in-plane irradiance of a site at an instant (a landscape's global maximum). */
+export type ModelledBest = (siteId: number, atMs: number) => Promise<number>;
+
+/** Quantities and columns of the CSV export, in column order after `timestamp_utc`. */
+const CSV_COLUMNS: { name: string; value: (r: RawTraceRow) => string | number }[] = [
+  { name: 'mode', value: (r) => r.mode },
+  { name: TRACE_QUANTITY_INFO.tiltPlusWm2.csv, value: (r) => r.tilt_plus_wm2 },
+  { name: TRACE_QUANTITY_INFO.tiltMinusWm2.csv, value: (r) => r.tilt_minus_wm2 },
+  { name: TRACE_QUANTITY_INFO.azimuthPlusWm2.csv, value: (r) => r.azimuth_plus_wm2 },
+  { name: TRACE_QUANTITY_INFO.azimuthMinusWm2.csv, value: (r) => r.azimuth_minus_wm2 },
+  { name: TRACE_QUANTITY_INFO.tiltDiffWm2.csv, value: (r) => round(r.tilt_plus_wm2 - r.tilt_minus_wm2) },
+  { name: TRACE_QUANTITY_INFO.azimuthDiffWm2.csv, value: (r) => round(r.azimuth_plus_wm2 - r.azimuth_minus_wm2) },
+  { name: TRACE_QUANTITY_INFO.poaWm2.csv, value: (r) => r.poa_wm2 },
+  { name: TRACE_QUANTITY_INFO.tiltDeg.csv, value: (r) => r.tilt_deg },
+  { name: TRACE_QUANTITY_INFO.cmdTiltDeg.csv, value: (r) => r.cmd_tilt_deg },
+  { name: TRACE_QUANTITY_INFO.azimuthDeg.csv, value: (r) => r.azimuth_deg },
+  { name: TRACE_QUANTITY_INFO.cmdAzimuthDeg.csv, value: (r) => r.cmd_azimuth_deg },
+  { name: 'tilt_motor_current_A', value: (r) => r.tilt_motor_a },
+  { name: 'azimuth_motor_current_A', value: (r) => r.azimuth_motor_a },
+  { name: TRACE_QUANTITY_INFO.dcPowerW.csv, value: (r) => r.dc_power_w },
+  { name: 'module_temperature_C', value: (r) => r.module_temp_c },
+];
+
+function round(x: number): number {
+  return Math.round(x * 1000) / 1000;
+}
+
+/** One CSV field per RFC 4180: quoted when it holds a comma, quote or line break; empty for missing. */
+export function csvField(v: string | number | null | undefined): string {
+  if (v === null || v === undefined || (typeof v === 'number' && !Number.isFinite(v))) return '';
+  const s = String(v);
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+export function csvHeader(): string {
+  return ['timestamp_utc', ...CSV_COLUMNS.map((c) => c.name)].join(',') + '\r\n';
+}
+
+export function csvRow(r: RawTraceRow): string {
+  return [r.ts.toISOString(), ...CSV_COLUMNS.map((c) => csvField(c.value(r)))].map(String).join(',') + '\r\n';
+}
+
+/** Validates a trace range; returns it as dates. */
+export function checkRange(fromIso: string, toIso: string, maxDays: number): { from: Date; to: Date } {
+  const from = new Date(fromIso);
+  const to = new Date(toIso);
+  if (!(from < to)) throw badRequest('The range is empty.', { to: 'Must be after from.' });
+  if (to.getTime() - from.getTime() > maxDays * DAY_MS) throw badRequest(`Choose at most ${maxDays} days.`, { to: `Must be within ${maxDays} days of from.` });
+  return { from, to };
+}
+
+/** Downsampled traces for the explorer and the raw rows for export. */
+export class TraceService {
+  constructor(
+    private readonly repo: TraceRepository,
+    private readonly best?: ModelledBest,
+  ) {}
+
+  /** Min/max per bucket of every quantity over [from, to), with `points` buckets at most, and the overlays. */
+  async traces(unit: Unit, from: Date, to: Date, points: number): Promise<UnitTraces> {
+    const spanMs = to.getTime() - from.getTime();
+    // Whole seconds (at least 1 s), so bucket edges are easy to read and the count never exceeds `points`.
+    const bucketMs = Math.max(1000, Math.ceil(spanMs / points / 1000) * 1000);
+    const [rows, events, alarms, modelledBest] = await Promise.all([
+      this.repo.buckets(unit.id, from, to, bucketMs, TRACE_QUANTITIES, spanMs > 2 * DAY_MS ? 4 : 1),
+      this.repo.events(unit.id, from, to),
+      this.repo.alarms(unit.id, from, to),
+      this.modelledBest(unit.siteId, from, to),
+    ]);
+    const series = Object.fromEntries(TRACE_QUANTITIES.map((q) => [q, { min: [], max: [] } as TraceSeries])) as Record<TraceQuantity, TraceSeries>;
+    const t: number[] = [];
+    const samples: number[] = [];
+    let total = 0;
+    for (const r of rows) {
+      t.push(from.getTime() + Number(r.b) * bucketMs);
+      const n = Number(r.n);
+      samples.push(n);
+      total += n;
+      for (const q of TRACE_QUANTITIES) {
+        series[q].min.push(round2(r[`${q}_lo`] === null ? null : Number(r[`${q}_lo`])));
+        series[q].max.push(round2(r[`${q}_hi`] === null ? null : Number(r[`${q}_hi`])));
+      }
+    }
+    return {
+      unitId: unit.id,
+      serial: unit.serial,
+      from: from.toISOString(),
+      to: to.toISOString(),
+      bucketMs,
+      t,
+      samples,
+      series,
+      rows: total,
+      source: 'raw',
+      events: events.map((e) => ({ at: e.ts.toISOString(), kind: e.kind, text: eventText(e.kind, parseBody(e.body)) })),
+      alarms: alarms === null ? null : alarms.map(alarmMark),
+      modelledBest,
+    };
+  }
+
+  /** Streams the raw rows of [from, to) as RFC 4180 CSV (CRLF, header first), page by page. */
+  async *csv(unit: Unit, from: Date, to: Date, pageRows = 5000): AsyncGenerator<string> {
+    yield csvHeader();
+    let after = from;
+    let inclusive = true;
+    for (;;) {
+      const page = await this.repo.rawPage(unit.id, after, to, pageRows, inclusive);
+      if (!page.length) return;
+      yield page.map(csvRow).join('');
+      if (page.length < pageRows) return;
+      after = page[page.length - 1]!.ts;
+      inclusive = false;
+    }
+  }
+
+  static readonly maxCsvDays = MAX_CSV_DAYS;
+
+  private async modelledBest(siteId: number, from: Date, to: Date): Promise<UnitTraces['modelledBest']> {
+    if (!this.best) return { t: [], wm2: [] };
+    const span = to.getTime() - from.getTime();
+    // Every 15 minutes for short ranges; evenly spread (at most BEST_SAMPLES) for long ones.
+    const step = Math.max(15 * 60_000, Math.ceil(span / BEST_SAMPLES / 60_000) * 60_000);
+    const first = Math.ceil(from.getTime() / step) * step;
+    const t: number[] = [];
+    for (let x = first; x < to.getTime(); x += step) t.push(x);
+    try {
+      const wm2 = await Promise.all(t.map((x) => this.best!(siteId, x)));
+      return { t, wm2 };
+    } catch {
+      return { t: [], wm2: [] };
+    }
+  }
+}
+
+function parseBody(body: unknown): Record<string, unknown> {
+  if (typeof body === 'string') {
+    try {
+      return JSON.parse(body) as Record<string, unknown>;
+    } catch {
+      return {};
+    }
+  }
+  return (body ?? {}) as Record<string, unknown>;
+}
+
+function eventText(kind: string, b: Record<string, unknown>): string {
+  const parts = [kind.replace(/-/g, ' ')];
+  if (typeof b['mode'] === 'string') parts.push(`→ ${b['mode']}`);
+  if (typeof b['code'] === 'string') parts.push(String(b['code']));
+  if (typeof b['message'] === 'string') parts.push(String(b['message']));
+  return parts.join(' · ');
+}
+
+function alarmMark(a: Record<string, unknown>): TraceMark {
+  const at = a['at_ts'] instanceof Date ? (a['at_ts'] as Date).toISOString() : new Date(String(a['at_ts'])).toISOString();
+  const kind = String(a['kind'] ?? a['type'] ?? a['code'] ?? 'alarm');
+  const severity = a['severity'] !== undefined ? ` (${String(a['severity'])})` : '';
+  const title = typeof a['title'] === 'string' ? a['title'] : typeof a['message'] === 'string' ? a['message'] : kind.replace(/-/g, ' ');
+  return { at, kind, text: `${title}${severity}` };
+}
