@@ -95,9 +95,9 @@ export class TelemetryRepository {
     );
   }
 
-  /** Quarter-hour rows of one unit in a UTC window (used to sum a local day). */
-  quartersBetween(unitId: number, from: Date, to: Date): Promise<{ bucket: Date; energy_wh: number; minutes: number }[]> {
-    return this.db('telemetry_15m').where('unit_id', unitId).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('bucket', 'energy_wh', 'minutes');
+  /** Quarter-hour rows of some units in a UTC window (used to sum local days). */
+  quartersBetween(unitIds: number[], from: Date, to: Date): Promise<{ unit_id: number; bucket: Date; energy_wh: number; minutes: number }[]> {
+    return this.db('telemetry_15m').whereIn('unit_id', unitIds).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('unit_id', 'bucket', 'energy_wh', 'minutes');
   }
 
   async upsertDaily(rows: { unit_id: number; local_date: string; energy_wh: number; minutes: number }[]): Promise<void> {

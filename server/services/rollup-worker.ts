@@ -73,12 +73,16 @@ export class RollupWorker {
       }
       const daily: { unit_id: number; local_date: string; energy_wh: number; minutes: number }[] = [];
       for (const [d, ids] of days) {
+        // One query per local date for all its units; each unit's quarters are then cut to its own zone's day.
         const { from, to } = utcWindowOfLocalDate(d);
-        for (const id of ids) {
-          const tz = this.units.byUnitId(id)?.timeZone ?? 'UTC';
-          const rows = (await this.repo.quartersBetween(id, from, to)).filter((r) => localDate(r.bucket.getTime(), tz) === d);
-          daily.push({ unit_id: id, local_date: d, energy_wh: rows.reduce((s, r) => s + r.energy_wh, 0), minutes: rows.reduce((s, r) => s + r.minutes, 0) });
+        const sums = new Map<number, { energy_wh: number; minutes: number }>([...ids].map((id) => [id, { energy_wh: 0, minutes: 0 }]));
+        for (const r of await this.repo.quartersBetween([...ids], from, to)) {
+          if (localDate(r.bucket.getTime(), this.units.byUnitId(r.unit_id)?.timeZone ?? 'UTC') !== d) continue;
+          const sum = sums.get(r.unit_id)!;
+          sum.energy_wh += r.energy_wh;
+          sum.minutes += r.minutes;
         }
+        for (const [id, sum] of sums) daily.push({ unit_id: id, local_date: d, ...sum });
       }
       await this.repo.upsertDaily(daily);
       this.passes++;

@@ -1,0 +1,68 @@
+/**
+ * Comms loss: a unit silent for `commsIntervals` report intervals (measured per unit from its own timestamps), or whose
+ * last-will message said it went offline, is lost. Judged on the engine's clock (arrival time), not on the units'
+ * timestamps, so a store-and-forward backlog arriving late does not hide the gap. A site where most units are silent at
+ * once is dark: one site alarm instead of one per unit (the health engine does the grouping).
+ */
+import type { HealthSettings } from './health-settings';
+
+interface UnitState {
+  lastArrivalMs: number;
+  lastTsMs: number;
+  intervalMs: number | null;
+  offlineSinceMs: number | null;
+}
+
+export interface CommsView {
+  silent: boolean;
+  silentForMs: number;
+  lastArrivalMs: number;
+  offlineByWill: boolean;
+  intervalMs: number;
+}
+
+export class CommsDetector {
+  private readonly units = new Map<number, UnitState>();
+
+  /** A message of any kind arrived from the unit at `nowMs` carrying timestamp `tsMs`. */
+  heard(unitId: number, nowMs: number, tsMs: number, isTelemetry: boolean): void {
+    const u = this.units.get(unitId);
+    if (!u) {
+      this.units.set(unitId, { lastArrivalMs: nowMs, lastTsMs: tsMs, intervalMs: null, offlineSinceMs: null });
+      return;
+    }
+    if (isTelemetry && tsMs > u.lastTsMs) {
+      const gap = tsMs - u.lastTsMs;
+      // Typical interval: follows small gaps quickly, ignores outages (gaps far above the current estimate).
+      if (u.intervalMs === null) u.intervalMs = gap;
+      else if (gap < 3 * u.intervalMs) u.intervalMs = 0.8 * u.intervalMs + 0.2 * gap;
+      u.lastTsMs = tsMs;
+    }
+    u.lastArrivalMs = Math.max(u.lastArrivalMs, nowMs);
+    u.offlineSinceMs = null;
+  }
+
+  /** The unit's last will (or a clean offline status) arrived. */
+  offline(unitId: number, nowMs: number): void {
+    const u = this.units.get(unitId);
+    if (u) u.offlineSinceMs ??= nowMs;
+    else this.units.set(unitId, { lastArrivalMs: nowMs, lastTsMs: nowMs, intervalMs: null, offlineSinceMs: nowMs });
+  }
+
+  view(unitId: number, nowMs: number, s: HealthSettings): CommsView | undefined {
+    const u = this.units.get(unitId);
+    if (!u) return undefined;
+    const intervalMs = u.intervalMs ?? s.reportIntervalS * 1000;
+    const silentForMs = nowMs - u.lastArrivalMs;
+    const offlineByWill = u.offlineSinceMs !== null;
+    return { silent: offlineByWill || silentForMs > s.commsIntervals * intervalMs, silentForMs, lastArrivalMs: u.lastArrivalMs, offlineByWill, intervalMs };
+  }
+
+  known(): number[] {
+    return [...this.units.keys()];
+  }
+
+  forget(unitId: number): void {
+    this.units.delete(unitId);
+  }
+}

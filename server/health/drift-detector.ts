@@ -1,0 +1,84 @@
+/**
+ * Detector mismatch, drift, dead or saturated detector. A unit's closed loop balances its pairs whatever their gains, so a
+ * pair that has drifted still reads "balanced": the raw imbalance says little. Instead each detector is compared with what
+ * it should read where the unit points: its reading over the modelled reading at its normal, divided by the same ratio
+ * for the in-plane reference cell. A healthy detector gives 1 (within its calibration); a drifting one departs from 1;
+ * a dead one gives about 0; a saturated one reads at full scale. Only instants where the pair should agree with the model
+ * are used: daylight, enough light on the detector, and model and reference cell agreeing (so clouds passing between
+ * report and model, or an unsurveyed obstruction, are left out). The median over a window smooths what remains.
+ */
+import type { Telemetry } from '../../shared/contracts/wire';
+import type { HealthSettings } from './health-settings';
+import type { SiteModel } from './site-model';
+import { judged, median, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
+
+export const DETECTORS = ['tiltPlus', 'tiltMinus', 'azimuthPlus', 'azimuthMinus'] as const;
+type Detector = (typeof DETECTORS)[number];
+
+interface UnitState {
+  window: { atMs: number; x: (number | null)[] }[];
+  judgedMs: number;
+}
+
+/** Medians are recomputed at most this often per unit [ms]; reports in between add samples only. */
+const JUDGE_EVERY_MS = 30_000;
+
+export class DriftDetector {
+  private readonly units = new Map<number, UnitState>();
+
+  assess(unit: UnitRef, t: Telemetry, atMs: number, model: SiteModel | undefined, daylight: boolean, open: boolean, s: HealthSettings): Assessment {
+    let u = this.units.get(unit.unitId);
+    if (!u) this.units.set(unit.unitId, (u = { window: [], judgedMs: -Infinity }));
+    const windowMs = s.driftWindowMin * 60_000;
+    while (u.window.length && atMs - u.window[0]!.atMs > windowMs) u.window.shift();
+    if (!daylight || !model || t.mode === 'fault') return judged(null);
+    const m = model.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
+    if (m.panelWm2 < s.driftMinWm2 || t.poaWm2 < s.driftMinWm2) return judged(null);
+    const ref = t.poaWm2 / m.panelWm2;
+    if (Math.abs(ref - 1) > s.driftModelAgreement) return judged(null);
+    const reading = (d: Detector) => t[`${d}Wm2` as const];
+    const modelled = (d: Detector) => m[`${d}Wm2` as const];
+    const x = DETECTORS.map((d) => {
+      if (reading(d) >= s.saturationWm2) return Infinity;
+      return modelled(d) >= s.driftMinWm2 ? reading(d) / modelled(d) / ref : null;
+    });
+    u.window.push({ atMs, x });
+    if (atMs - u.judgedMs < JUDGE_EVERY_MS) return judged(null);
+    u.judgedMs = atMs;
+    const medians = DETECTORS.map((_, i) => {
+      const xs = u.window.map((w) => w.x[i]!).filter((v): v is number => v !== null);
+      return xs.length >= 5 ? median(xs) : null;
+    });
+    const known = medians.filter((v): v is number => v !== null);
+    if (known.length === 0) return judged(null);
+    const worst = medians.reduce<{ i: number; dev: number }>((b, v, i) => (v !== null && Math.abs(v - 1) > b.dev ? { i, dev: Math.abs(v - 1) } : b), { i: -1, dev: 0 });
+    if (worst.dev > s.driftTolerance) {
+      const name = DETECTORS[worst.i]!;
+      const v = medians[worst.i]!;
+      const kind = v === Infinity ? 'saturated' : v < s.deadFraction ? 'dead' : 'drifting';
+      return judged(true, () => ({
+        severity: kind === 'drifting' ? 'P4' : 'P3',
+        message:
+          kind === 'saturated' ? `Detector ${name} reads at full scale (${round1(reading(name))} W/m²).`
+          : kind === 'dead' ? `Detector ${name} reads ${round1(v * 100)} % of what it should (dead or disconnected).`
+          : `Detector ${name} reads ${round1(v * 100)} % of what it should where the unit points (gain drift ${round1((v - 1) * 100)} %); the unit balances on a skewed pair and points off its peak.`,
+        advice: `Clean and inspect the ${name} detector and its connector; recalibrate the pair or replace the detector. Until then the unit tracks with an offset.`,
+        evidence: {
+          readings: readingsSnapshot(t),
+          modelled: Object.fromEntries(DETECTORS.map((d) => [d, round1(modelled(d))])),
+          modelledPanelWm2: round1(m.panelWm2),
+          normalisedMedian: Object.fromEntries(DETECTORS.map((d, i) => [d, medians[i] === null ? null : Math.round(medians[i]! * 1000) / 1000])),
+          detector: name,
+          finding: kind,
+          windowMin: s.driftWindowMin,
+        },
+      }));
+    }
+    if (worst.dev < s.driftClearTolerance && known.length === DETECTORS.length) return judged(false);
+    return judged(open ? null : false);
+  }
+
+  forget(unitId: number): void {
+    this.units.delete(unitId);
+  }
+}

@@ -1,0 +1,181 @@
+/**
+ * The health engine: feeds each unit's telemetry, events and status through the detectors and keeps the alarm book.
+ * Pure and synchronous: the clock (arrival time, for comms) and the site models are injected, so the server feeds it
+ * from the ingest with the landscape engine behind the models, and the offline evaluation feeds it from the simulator
+ * with the simulator's own sky. Per-unit detectors run on the units' own timestamps; comms runs on the clock at `tick()`.
+ *
+ * Alarm hygiene (see alarm-book.ts for the lifecycle): daylight gating for production checks; a dark site raises one site
+ * alarm and suppresses its units' alarms; a trap is not raised while stall, drift or hunting explains the deficit.
+ */
+import type { Telemetry, UnitEvent, UnitStatus, Weather } from '../../shared/contracts/wire';
+import { AlarmBook, type AlarmBookListeners, type AlarmTiming } from './alarm-book';
+import type { Alarm, AlarmKind, AlarmSubject, StowEvent } from './alarm-types';
+import { CommsDetector, type CommsView } from './comms-detector';
+import { DriftDetector } from './drift-detector';
+import { DEFAULT_HEALTH_SETTINGS, MIN_MS, type HealthSettings } from './health-settings';
+import { HuntingDetector } from './hunting-detector';
+import type { SiteModel, SiteModelProvider } from './site-model';
+import { SoilingDetector } from './soiling-detector';
+import { StallDetector } from './stall-detector';
+import { StowWatch } from './stow-watch';
+import { TrapDetector, type PeerReading } from './trap-detector';
+import { round1, type Assessment, type UnitRef } from './unit-sample';
+
+export interface HealthEngineOptions {
+  /** Arrival clock [ms] (the server's wall clock, or the simulator's time offline). */
+  now: () => number;
+  models: SiteModelProvider;
+  /** Settings of a site (defaults with its overrides). */
+  settingsFor?: (siteId: number) => HealthSettings;
+  listeners?: AlarmBookListeners & { stow?: (e: StowEvent) => void };
+}
+
+const CAUSES: AlarmKind[] = ['stall', 'drift', 'hunting'];
+
+export class HealthEngine {
+  readonly book: AlarmBook;
+  private readonly trap = new TrapDetector();
+  private readonly stall = new StallDetector();
+  private readonly drift = new DriftDetector();
+  private readonly hunting = new HuntingDetector();
+  private readonly soiling = new SoilingDetector();
+  private readonly comms = new CommsDetector();
+  private readonly stow = new StowWatch();
+  private readonly units = new Map<number, UnitRef>();
+  private readonly peers = new Map<number, Map<number, PeerReading>>();
+  private readonly darkSites = new Set<number>();
+  private readonly settingsFor: (siteId: number) => HealthSettings;
+
+  constructor(private readonly opts: HealthEngineOptions) {
+    this.book = new AlarmBook(opts.listeners);
+    this.settingsFor = opts.settingsFor ?? (() => DEFAULT_HEALTH_SETTINGS);
+  }
+
+  /** Whether production checks run at a site now (modelled best orientation bright enough; sun up outdoors). */
+  static daylight(m: SiteModel | undefined, s: HealthSettings): boolean {
+    if (!m) return false;
+    return m.globalMax.wm2 >= s.daylightMinWm2 && (m.indoor || m.sunElevationDeg >= s.daylightMinSunElevationDeg);
+  }
+
+  telemetry(unit: UnitRef, t: Telemetry): void {
+    this.units.set(unit.unitId, unit);
+    const atMs = Date.parse(t.ts);
+    const s = this.settingsFor(unit.siteId);
+    this.heard(unit, atMs, true, s);
+    const model = this.opts.models.siteModel(unit.siteId, atMs);
+    const daylight = HealthEngine.daylight(model, s);
+    let sitePeers = this.peers.get(unit.siteId);
+    if (!sitePeers) this.peers.set(unit.siteId, (sitePeers = new Map()));
+    sitePeers.set(unit.unitId, { unitId: unit.unitId, poaWm2: t.poaWm2, mode: t.mode, atMs });
+    const subject = this.subjectOf(unit);
+    const suppressed = this.darkSites.has(unit.siteId);
+    const open = (k: AlarmKind) => this.book.openAlarm(subject, k) !== null;
+    const put = (kind: AlarmKind, a: Assessment, delayOnMin: number, clearDelayMin: number) =>
+      this.book.assess(subject, kind, a.condition, atMs, timing(delayOnMin, clearDelayMin), a.detail, suppressed);
+
+    put('stall', this.stall.assess(unit, t, atMs, s, this.stow.demanding(unit.siteId)), s.stallDelayOnMin, s.stallClearDelayMin);
+    put('drift', this.drift.assess(unit, t, atMs, model, daylight, open('drift'), s), s.driftDelayOnMin, s.driftClearDelayMin);
+    put('hunting', this.hunting.assess(unit, t, atMs, daylight, open('hunting'), s), s.huntingDelayOnMin, s.huntingClearDelayMin);
+    const otherCause = CAUSES.find((k) => this.book.holding(subject, k)) ?? null;
+    const trappedAtSite = [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length;
+    put('trap', this.trap.assess(unit, t, atMs, { model, daylight, peers: [...sitePeers.values()], otherCause, open: open('trap'), trappedAtSite }, s), s.trapDelayOnMin, s.trapClearDelayMin);
+    put('soiling', this.soiling.assess(unit, t, atMs, daylight, open('soiling'), s), s.soilingDelayOnMin, s.soilingClearDelayMin);
+    put('not-stowed', this.stow.assess(unit, t, atMs, s), s.stowArrivalMin, 0);
+  }
+
+  event(unit: UnitRef, e: UnitEvent): void {
+    this.units.set(unit.unitId, unit);
+    const atMs = Date.parse(e.ts);
+    this.heard(unit, atMs, false, this.settingsFor(unit.siteId));
+    this.stall.event(unit, e);
+    if (e.kind === 'mode-change' && (e.code === 'wind-stow' || e.code === 'wind-stow-released')) {
+      this.opts.listeners?.stow?.({ unitId: unit.unitId, serial: unit.serial, siteId: unit.siteId, atMs, kind: e.code === 'wind-stow' ? 'stowed' : 'released', message: e.message ?? '' });
+    }
+  }
+
+  status(unit: UnitRef, st: UnitStatus): void {
+    this.units.set(unit.unitId, unit);
+    const now = this.opts.now();
+    if (st.online) this.heard(unit, st.ts ? Date.parse(st.ts) : now, false, this.settingsFor(unit.siteId));
+    else this.comms.offline(unit.unitId, now);
+  }
+
+  /** A site weather-station reading (it also counts as a message from the unit that carries the station, if given). */
+  weather(siteId: number, w: Weather, from?: UnitRef): void {
+    const atMs = Date.parse(w.ts);
+    const s = this.settingsFor(siteId);
+    if (from) {
+      this.units.set(from.unitId, from);
+      this.heard(from, atMs, false, s);
+    }
+    this.stow.weather(siteId, w, atMs, s);
+  }
+
+  /** Periodic check on the clock (every few seconds): comms loss per unit, dark sites. */
+  tick(): void {
+    const now = this.opts.now();
+    const bySite = new Map<number, (CommsView & { unit: UnitRef })[]>();
+    for (const id of this.comms.known()) {
+      const unit = this.units.get(id);
+      if (!unit) continue;
+      const v = this.comms.view(id, now, this.settingsFor(unit.siteId))!;
+      let list = bySite.get(unit.siteId);
+      if (!list) bySite.set(unit.siteId, (list = []));
+      list.push({ unit, ...v });
+    }
+    for (const [siteId, list] of bySite) {
+      const s = this.settingsFor(siteId);
+      const day = HealthEngine.daylight(this.opts.models.siteModel(siteId, now), s);
+      const silent = list.filter((x) => x.silent);
+      const dark = list.length >= 2 && silent.length >= 2 && silent.length >= s.siteDarkFraction * list.length;
+      const site: AlarmSubject = { unitId: null, serial: null, siteId };
+      const commsTiming = timing(day ? s.commsDelayOnMin : s.commsNightDelayOnMin, s.commsClearDelayMin);
+      const siteAlarm = this.book.assess(site, 'site-comms', dark, now, commsTiming, () => ({
+        severity: day ? 'P2' : 'P3',
+        message: `${silent.length} of ${list.length} units silent${day ? '' : ' (night)'}: the site's gateway, backhaul or power is down.`,
+        advice: 'Check the site gateway, its backhaul and power first; check whether the units still produce (meter or inverter). After reconnection confirm the buffered data came in.',
+        evidence: { silentUnits: silent.map((x) => ({ serial: x.unit.serial, silentMin: round1(x.silentForMs / MIN_MS), byLastWill: x.offlineByWill })), units: list.length, night: !day },
+      }));
+      if (dark) this.darkSites.add(siteId);
+      else this.darkSites.delete(siteId);
+      for (const x of list) {
+        const subject = this.subjectOf(x.unit);
+        if (siteAlarm) {
+          this.book.clear(subject, 'comms', now, 'superseded by site alarm');
+          continue;
+        }
+        this.book.assess(subject, 'comms', x.silent, now, commsTiming, () => ({
+          severity: day ? 'P3' : 'P4',
+          message: `No message for ${round1(x.silentForMs / MIN_MS)} min${x.offlineByWill ? ' (the unit went offline without a clean disconnect)' : ''}; expected one every ${round1(x.intervalMs / 1000)} s.`,
+          advice: 'Check the unit controller\'s power and modem; check whether it still produces. It stores and forwards its reports, so confirm the gap fills after reconnection.',
+          evidence: { lastMessageAt: new Date(x.lastArrivalMs).toISOString(), silentMin: round1(x.silentForMs / MIN_MS), byLastWill: x.offlineByWill, intervalS: round1(x.intervalMs / 1000), night: !day },
+        }), dark);
+      }
+    }
+  }
+
+  /** Forgets a unit (deleted, or moved to another site). */
+  forget(unitId: number): void {
+    const u = this.units.get(unitId);
+    for (const d of [this.trap, this.stall, this.drift, this.hunting, this.soiling, this.comms]) d.forget(unitId);
+    if (u) this.peers.get(u.siteId)?.delete(unitId);
+    this.units.delete(unitId);
+  }
+
+  openAlarms(): Alarm[] {
+    return this.book.open();
+  }
+
+  private heard(unit: UnitRef, tsMs: number, isTelemetry: boolean, s: HealthSettings): void {
+    const now = this.opts.now();
+    this.comms.heard(unit.unitId, now, tsMs, isTelemetry);
+    // A message clears the unit's comms alarm at once (its clear delay applies).
+    this.book.assess(this.subjectOf(unit), 'comms', false, now, timing(s.commsDelayOnMin, s.commsClearDelayMin), () => ({ severity: 'P4', message: '', advice: '', evidence: {} }));
+  }
+
+  private subjectOf(u: UnitRef): AlarmSubject {
+    return { unitId: u.unitId, serial: u.serial, siteId: u.siteId };
+  }
+}
+
+const timing = (delayOnMin: number, clearDelayMin: number): AlarmTiming => ({ delayOnMs: delayOnMin * MIN_MS, clearDelayMs: clearDelayMin * MIN_MS });

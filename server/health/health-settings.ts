@@ -1,0 +1,189 @@
+/**
+ * Health thresholds: one documented default per setting, overridable per site. Every number here is a setting, not a
+ * constant of nature; the comments say where a default comes from ("common practice" = usual in tracker O&M, not tied to
+ * one source). Times in minutes, irradiance in W/m², angles in degrees, currents in A.
+ */
+import { z } from 'zod';
+
+export const SEVERITIES = ['P1', 'P2', 'P3', 'P4'] as const;
+export type Severity = (typeof SEVERITIES)[number];
+
+export interface HealthSettings {
+  // ---- daylight gating
+  /** Production checks run only while the modelled best orientation of the site gets at least this [W/m²] (common practice: 50–100). */
+  daylightMinWm2: number;
+  /** …and the sun is at least this high, for outdoor sites [°] (common practice: 5–10). Indoor sites (lamps) use the irradiance alone. */
+  daylightMinSunElevationDeg: number;
+
+  // ---- local-maximum trap
+  /** Trapped when the in-plane irradiance is below this fraction of the modelled global maximum. */
+  trapRatio: number;
+  /** …and below this fraction of the site peers' upper quartile (when the site has at least two comparable peers). */
+  trapPeerRatio: number;
+  /** Which quantile of the peers' in-plane irradiance stands for "what the site gets". */
+  trapPeerQuantile: number;
+  /** The model counts as confirmed at the unit's own orientation when measured and modelled in-plane irradiance agree within this fraction; then a trap is raised even when every peer is trapped too. */
+  trapModelAgreement: number;
+  /** A trap clears once the unit gets more than this fraction of the global maximum (hysteresis above trapRatio). */
+  trapClearRatio: number;
+  /** A unit that has been seeking for longer than this is no longer settled [min] (shorter re-seeks keep the state). */
+  trapSeekGraceMin: number;
+  trapDelayOnMin: number;
+  trapClearDelayMin: number;
+  /** Units of one site trapped at once from which the trap alarms become P2. */
+  trapManyUnits: number;
+
+  // ---- actuator stall / slip
+  /** Motor current that counts as an anomaly (stall or overload) [A]; common practice 1.2–1.5 × rated, here ≈ 2.5 × running current. */
+  motorOverCurrentA: number;
+  /** Commanded minus measured angle beyond which a drive that makes no progress counts as stalled [°]. */
+  stallAngleErrorDeg: number;
+  /** Progress below this between two reports counts as none [°] (common practice: < 0.2° over 30 s of drive). */
+  stallNoProgressDeg: number;
+  stallDelayOnMin: number;
+  stallClearDelayMin: number;
+
+  // ---- detector drift / dead / saturated
+  /** A detector whose reading, relative to the reference cell and normalised by the modelled landscape, departs from 1 by more than this drifts (common practice: gain mismatch > 3–5 %). */
+  driftTolerance: number;
+  /** Back within this to clear (hysteresis). */
+  driftClearTolerance: number;
+  /** Below this normalised reading a detector is dead. */
+  deadFraction: number;
+  /** A reading at or above this is saturated [W/m²]. */
+  saturationWm2: number;
+  /** Samples are used only where the model agrees with the reference cell within this fraction. */
+  driftModelAgreement: number;
+  /** …and the modelled reading of the detector is at least this [W/m²]. */
+  driftMinWm2: number;
+  /** Median over this window [min]. */
+  driftWindowMin: number;
+  driftDelayOnMin: number;
+  driftClearDelayMin: number;
+
+  // ---- hunting
+  /** A reversal is a change of direction of motion of at least this between reports [°]. */
+  huntingStepDeg: number;
+  /** Reversals per hour (both axes) above which a unit hunts (common practice: a multiple of the clear-sky baseline). */
+  huntingReversalsPerHour: number;
+  /** …while its net motion is below this fraction of the path travelled. */
+  huntingNetFraction: number;
+  huntingWindowMin: number;
+  huntingDelayOnMin: number;
+  huntingClearDelayMin: number;
+
+  // ---- comms loss
+  /** Silent for this many report intervals counts as lost (common practice: > 3). */
+  commsIntervals: number;
+  /** Report interval assumed before one is measured [s]. */
+  reportIntervalS: number;
+  /** Delay before a comms alarm in daylight [min] (common practice: up to 15). */
+  commsDelayOnMin: number;
+  /** …and at night, when the alarm is also one severity lower [min]. */
+  commsNightDelayOnMin: number;
+  commsClearDelayMin: number;
+  /** A site counts as dark when at least this fraction of its units is silent (and at least two are). */
+  siteDarkFraction: number;
+
+  // ---- soiling / underperformance
+  /** Temperature coefficient of module power [1/K] (crystalline silicon, common practice −0.3…−0.45 %/K). */
+  powerTempCoeffPerK: number;
+  /** Samples for the performance index need at least this in-plane irradiance [W/m²]. */
+  soilingMinPoaWm2: number;
+  /** Own history kept for the clean reference [days]. */
+  soilingHistoryDays: number;
+  /** Clean reference: this quantile of the hourly medians in the history. */
+  soilingReferenceQuantile: number;
+  /** Loss against the clean reference that raises the alarm (common practice: 3–5 %). */
+  soilingLossThreshold: number;
+  /** Loss below which it clears (hysteresis; a cleaning or rain brings the index back). */
+  soilingClearLoss: number;
+  /** Hourly medians needed before the reference counts. */
+  soilingMinHours: number;
+  soilingDelayOnMin: number;
+  soilingClearDelayMin: number;
+
+  // ---- stow
+  /** Gust above which every unit of the site must stow [m/s] (manufacturer value; often 14–20). */
+  stowGustMs: number;
+  /** Time allowed to reach stow [min] (common practice: 2–5). */
+  stowArrivalMin: number;
+  /** Tilt counted as stowed [°]. */
+  stowTiltDeg: number;
+  /** Gusts stay below the limit this long before the stow watch ends [min]. */
+  stowReleaseMin: number;
+}
+
+export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
+  daylightMinWm2: 100,
+  daylightMinSunElevationDeg: 5,
+
+  trapRatio: 0.8,
+  trapPeerRatio: 0.85,
+  trapPeerQuantile: 0.75,
+  trapModelAgreement: 0.1,
+  trapClearRatio: 0.88,
+  trapSeekGraceMin: 3,
+  trapDelayOnMin: 10,
+  trapClearDelayMin: 3,
+  trapManyUnits: 3,
+
+  motorOverCurrentA: 3,
+  stallAngleErrorDeg: 1,
+  stallNoProgressDeg: 0.2,
+  stallDelayOnMin: 1,
+  stallClearDelayMin: 3,
+
+  driftTolerance: 0.06,
+  driftClearTolerance: 0.03,
+  deadFraction: 0.1,
+  saturationWm2: 4990,
+  driftModelAgreement: 0.1,
+  driftMinWm2: 100,
+  driftWindowMin: 10,
+  driftDelayOnMin: 10,
+  driftClearDelayMin: 10,
+
+  huntingStepDeg: 0.5,
+  huntingReversalsPerHour: 60,
+  huntingNetFraction: 0.3,
+  huntingWindowMin: 10,
+  huntingDelayOnMin: 5,
+  huntingClearDelayMin: 10,
+
+  commsIntervals: 3,
+  reportIntervalS: 5,
+  commsDelayOnMin: 5,
+  commsNightDelayOnMin: 30,
+  commsClearDelayMin: 0,
+  siteDarkFraction: 0.6,
+
+  powerTempCoeffPerK: -0.0037,
+  soilingMinPoaWm2: 300,
+  soilingHistoryDays: 14,
+  soilingReferenceQuantile: 0.9,
+  soilingLossThreshold: 0.04,
+  soilingClearLoss: 0.02,
+  soilingMinHours: 3,
+  soilingDelayOnMin: 60,
+  soilingClearDelayMin: 30,
+
+  stowGustMs: 18,
+  stowArrivalMin: 3,
+  stowTiltDeg: 2,
+  stowReleaseMin: 10,
+});
+
+const positive = z.number().finite().nonnegative();
+/** Per-site overrides: any subset of the settings, each a finite number ≥ 0 (the temperature coefficient may be negative). */
+export const healthSettingsOverrideSchema = z
+  .strictObject(Object.fromEntries(Object.keys(DEFAULT_HEALTH_SETTINGS).map((k) => [k, (k === 'powerTempCoeffPerK' ? z.number().finite() : positive).optional()])) as Record<keyof HealthSettings, z.ZodOptional<z.ZodNumber>>)
+  .refine((s) => s.trapRatio === undefined || s.trapRatio < 1, { message: 'trapRatio must be below 1', path: ['trapRatio'] });
+export type HealthSettingsOverride = Partial<HealthSettings>;
+
+/** Defaults with a site's overrides on top. */
+export function resolveHealthSettings(override: HealthSettingsOverride | null | undefined): HealthSettings {
+  return { ...DEFAULT_HEALTH_SETTINGS, ...(override ?? {}) };
+}
+
+export const MIN_MS = 60_000;

@@ -1,0 +1,86 @@
+/**
+ * Hunting: the unit keeps reversing its motion with little net progress (gain too high, deadband too small, a loose
+ * detector). Counted on the reported angles over a sliding window: a reversal is a change of direction between two
+ * motions of at least `huntingStepDeg`, azimuth motion weighted by sin(tilt) (an azimuth step near the zenith hardly moves
+ * the panel normal). Not while scanning (a scan sweeps back and forth by design), stowed, held or in fault; not at night.
+ */
+import type { Telemetry } from '../../shared/contracts/wire';
+import type { HealthSettings } from './health-settings';
+import { azimuthDelta, judged, MOTION_FREE_MODES, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
+
+interface UnitState {
+  samples: { atMs: number; tiltDeg: number; azimuthDeg: number }[];
+}
+
+export interface MotionStats {
+  reversalsPerHour: number;
+  pathDeg: number;
+  netDeg: number;
+  spanMin: number;
+}
+
+/** Reversals, path and net motion of a sequence of orientations. */
+export function motionStats(samples: readonly { atMs: number; tiltDeg: number; azimuthDeg: number }[], stepDeg: number): MotionStats {
+  let reversals = 0;
+  let path = 0;
+  const lastSign = [0, 0];
+  const acc = [0, 0];
+  for (let i = 1; i < samples.length; i++) {
+    const a = samples[i - 1]!;
+    const b = samples[i]!;
+    const w = Math.max(0.2, Math.sin((((a.tiltDeg + b.tiltDeg) / 2) * Math.PI) / 180));
+    const d = [b.tiltDeg - a.tiltDeg, azimuthDelta(a.azimuthDeg, b.azimuthDeg) * w];
+    for (let k = 0; k < 2; k++) {
+      path += Math.abs(d[k]!);
+      acc[k]! += d[k]!;
+      if (Math.abs(acc[k]!) >= stepDeg) {
+        const sign = Math.sign(acc[k]!);
+        if (lastSign[k] !== 0 && sign !== lastSign[k]) reversals++;
+        lastSign[k] = sign;
+        acc[k] = 0;
+      }
+    }
+  }
+  const first = samples[0];
+  const last = samples[samples.length - 1];
+  let net = 0;
+  if (first && last) {
+    const w = Math.max(0.2, Math.sin((((first.tiltDeg + last.tiltDeg) / 2) * Math.PI) / 180));
+    net = Math.hypot(last.tiltDeg - first.tiltDeg, azimuthDelta(first.azimuthDeg, last.azimuthDeg) * w);
+  }
+  const spanMin = first && last ? (last.atMs - first.atMs) / 60_000 : 0;
+  return { reversalsPerHour: spanMin > 0 ? (reversals * 60) / spanMin : 0, pathDeg: path, netDeg: net, spanMin };
+}
+
+export class HuntingDetector {
+  private readonly units = new Map<number, UnitState>();
+
+  assess(unit: UnitRef, t: Telemetry, atMs: number, daylight: boolean, open: boolean, s: HealthSettings): Assessment {
+    let u = this.units.get(unit.unitId);
+    if (!u) this.units.set(unit.unitId, (u = { samples: [] }));
+    if (MOTION_FREE_MODES.has(t.mode) || !daylight) {
+      u.samples = [];
+      return judged(false);
+    }
+    u.samples.push({ atMs, tiltDeg: t.tiltDeg, azimuthDeg: t.azimuthDeg });
+    const windowMs = s.huntingWindowMin * 60_000;
+    while (u.samples.length && atMs - u.samples[0]!.atMs > windowMs) u.samples.shift();
+    const st = motionStats(u.samples, s.huntingStepDeg);
+    if (st.spanMin < 0.8 * s.huntingWindowMin) return judged(open ? null : false);
+    const hunting = st.reversalsPerHour >= s.huntingReversalsPerHour && st.netDeg < s.huntingNetFraction * st.pathDeg;
+    if (hunting) {
+      return judged(true, () => ({
+        severity: 'P3',
+        message: `${round1(st.reversalsPerHour)} reversals per hour over the last ${round1(st.spanMin)} min: ${round1(st.pathDeg)}° travelled for ${round1(st.netDeg)}° of net motion.`,
+        advice: 'Lower the gain or widen the deadband (configure), and check the detectors for a loose mount or intermittent reading; hunting wears the drive.',
+        evidence: { readings: readingsSnapshot(t), ...Object.fromEntries(Object.entries(st).map(([k, v]) => [k, round1(v)])) },
+      }));
+    }
+    if (st.reversalsPerHour < s.huntingReversalsPerHour / 2) return judged(false);
+    return judged(open ? null : false);
+  }
+
+  forget(unitId: number): void {
+    this.units.delete(unitId);
+  }
+}

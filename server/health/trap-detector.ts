@@ -1,0 +1,101 @@
+/**
+ * Local-maximum trap: the unit is settled (its photodifferentials inside the deadband, so it reports itself healthy) while
+ * its in-plane irradiance is well below (a) the modelled global maximum of its site at that instant and (b) what its site
+ * peers get. When every peer is as low (a site-wide trap, e.g. all units on a facade reflection) the peer comparison cannot
+ * help; the model is then trusted only where it is confirmed at the unit's own orientation (measured and modelled in-plane
+ * irradiance agree). Not while stowed, held, scanning or in fault; not at night; not when another open cause (stall,
+ * drift, hunting) explains the deficit.
+ */
+import type { Telemetry } from '../../shared/contracts/wire';
+import type { HealthSettings } from './health-settings';
+import type { SiteModel } from './site-model';
+import { judged, MOTION_FREE_MODES, quantile, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
+
+export interface PeerReading {
+  unitId: number;
+  poaWm2: number;
+  mode: string;
+  atMs: number;
+}
+
+export interface TrapContext {
+  model: SiteModel | undefined;
+  daylight: boolean;
+  peers: readonly PeerReading[];
+  /** Another condition holding on the unit that explains a deficit (its kind), or null. */
+  otherCause: string | null;
+  /** Whether a trap alarm is open on the unit (hysteresis band). */
+  open: boolean;
+  /** Units of the site with a trap holding now (for severity). */
+  trappedAtSite: number;
+}
+
+const PEER_MAX_AGE_MS = 120_000;
+
+export class TrapDetector {
+  private readonly lastSettledMs = new Map<number, number>();
+
+  assess(unit: UnitRef, t: Telemetry, atMs: number, ctx: TrapContext, s: HealthSettings): Assessment {
+    if (MOTION_FREE_MODES.has(t.mode) || unit.onHold) return judged(false);
+    if (!ctx.daylight) return judged(false);
+    if (ctx.otherCause) return judged(false);
+    const m = ctx.model;
+    if (!m) return judged(null);
+    if (t.mode === 'settled') this.lastSettledMs.set(unit.unitId, atMs);
+    else {
+      const last = this.lastSettledMs.get(unit.unitId);
+      // A short re-seek (the local maximum moves with the sun) keeps the state; a long one means the unit is climbing.
+      if (last !== undefined && atMs - last < s.trapSeekGraceMin * 60_000) return judged(null);
+      return judged(false);
+    }
+    const best = m.globalMax.wm2;
+    const ratio = t.poaWm2 / best;
+    if (ratio >= s.trapClearRatio) return judged(false);
+    if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
+    const peers = ctx.peers.filter((p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'));
+    const peerHigh = peers.length >= 2 ? quantile(peers.map((p) => p.poaWm2), s.trapPeerQuantile) : null;
+    const belowPeers = peerHigh === null || t.poaWm2 < s.trapPeerRatio * peerHigh;
+    const here = m.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg).panelWm2;
+    const modelConfirmed = here > 0 && Math.abs(t.poaWm2 / here - 1) <= s.trapModelAgreement;
+    if (!belowPeers && !modelConfirmed) return judged(ctx.open ? null : false);
+    return judged(true, () => {
+      const a = m.analyse?.() ?? {};
+      const minTilt = a.minSinglePeakDetectorTiltDeg ?? m.minSinglePeakDetectorTiltDeg;
+      const lossWm2 = best - t.poaWm2;
+      const lossPct = (lossWm2 / best) * 100;
+      const g = m.globalMax;
+      const tiltAdvice = minTilt == null
+        ? 'no detector tilt up to 30° makes this sky single-peaked, so plan periodic scans'
+        : minTilt > unit.detectorTiltDeg
+          ? `raise the detector tilt from ${round1(unit.detectorTiltDeg)}° to at least ${round1(minTilt)}°, the smallest that leaves this site's landscape a single peak`
+          : `the detector tilt (${round1(unit.detectorTiltDeg)}°) already exceeds the site's single-peak tilt (${round1(minTilt)}°) for this sky; check the detectors and the deadband`;
+      return {
+        severity: ctx.trappedAtSite >= s.trapManyUnits ? 'P2' : 'P3',
+        message:
+          `Settled at tilt ${round1(t.tiltDeg)}°, azimuth ${round1(t.azimuthDeg)}° on ${round1(t.poaWm2)} W/m² while the brightest orientation ` +
+          `(tilt ${round1(g.tiltDeg)}°, azimuth ${round1(g.azimuthDeg)}°) gets ${round1(best)} W/m²: losing ${round1(lossWm2)} W/m² (${round1(lossPct)} %).`,
+        advice: `Send a scan, then go to the brightest orientation it finds; ${tiltAdvice}.`,
+        evidence: {
+          readings: readingsSnapshot(t),
+          model: {
+            atMs: m.atMs,
+            globalMax: g,
+            modelledHereWm2: round1(here),
+            localMaxima: a.localMaxima ?? m.localMaxima,
+            minSinglePeakDetectorTiltDeg: minTilt ?? null,
+            sunElevationDeg: round1(m.sunElevationDeg),
+          },
+          lossWm2: round1(lossWm2),
+          lossPct: round1(lossPct),
+          peers: { count: peers.length, upperQuartileWm2: peerHigh === null ? null : round1(peerHigh) },
+          siteWide: !belowPeers,
+          detectorTiltDeg: unit.detectorTiltDeg,
+        },
+      };
+    });
+  }
+
+  forget(unitId: number): void {
+    this.lastSettledMs.delete(unitId);
+  }
+}
