@@ -1,0 +1,70 @@
+/**
+ * The evaluation's fault schedule: which unit gets which fault, when and for how long. Faults start while the sun is up
+ * (a stall at night, with nothing asking the drive to move, is invisible to any detector until morning) and last long
+ * enough to matter; a unit has one fault at a time, with a gap between faults; a share of the fleet stays fault-free.
+ * Everything is drawn from a seeded stream, so a seed gives the same schedule.
+ */
+import { solarPosition } from '../../../shared/solar-position';
+import type { FaultKind } from '../../../simulator/faults';
+import type { Rng } from '../../../simulator/rng';
+import type { SiteInfo } from '../../../simulator/scenarios';
+
+export interface ScheduledFault {
+  serial: string;
+  kind: FaultKind;
+  startMs: number;
+  durationS: number;
+  target: number;
+}
+
+/** Kinds injected, and how long each lasts [h] (uniform in the range). Soiling runs from its start to a cleaning. */
+export const EVAL_FAULTS: { kind: FaultKind; hours: [number, number] }[] = [
+  { kind: 'trap', hours: [2, 4] },
+  { kind: 'stall', hours: [1, 3] },
+  { kind: 'drift', hours: [3, 10] },
+  { kind: 'dead-detector', hours: [2, 5] },
+  { kind: 'hunting', hours: [1, 3] },
+  { kind: 'comms-loss', hours: [0.25, 1.5] },
+  { kind: 'soiling', hours: [40, 96] },
+];
+
+const HOUR = 3_600_000;
+
+export interface ScheduleInput {
+  units: { serial: string; site: SiteInfo }[];
+  startMs: number;
+  endMs: number;
+  rng: Rng;
+  /** Share of units left fault-free. */
+  faultFreeShare: number;
+}
+
+/** Whether the sun is at least `deg` high at a site. */
+export function sunAbove(site: SiteInfo, ms: number, deg: number): boolean {
+  return solarPosition({ latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM }, ms).elevationDeg >= deg;
+}
+
+export function scheduleFaults(input: ScheduleInput): ScheduledFault[] {
+  const out: ScheduledFault[] = [];
+  const { rng } = input;
+  input.units.forEach((u, i) => {
+    if (rng.next() < input.faultFreeShare) return;
+    let t = input.startMs + rng.uniform(2, 10) * HOUR;
+    let soiled = false;
+    for (let guard = 0; guard < 200 && t < input.endMs; guard++) {
+      const options = EVAL_FAULTS.filter((f) => f.kind !== 'soiling' || (!soiled && input.endMs - t > 48 * HOUR));
+      const f = options[Math.floor(rng.next() * options.length)]!;
+      const hours = rng.uniform(f.hours[0], f.hours[1]);
+      // Start at the next quarter hour with the sun up now and for the first hour of the fault.
+      let start = t;
+      while (start < input.endMs && !(sunAbove(u.site, start, 15) && sunAbove(u.site, start + HOUR, 15))) start += HOUR / 4;
+      if (start + HOUR > input.endMs) break;
+      const durationS = Math.round(Math.min(hours * HOUR, f.kind === 'soiling' ? input.endMs - start : hours * HOUR) / 1000);
+      out.push({ serial: u.serial, kind: f.kind, startMs: start, durationS, target: Math.floor(rng.next() * 4) });
+      if (f.kind === 'soiling') soiled = true;
+      t = start + durationS * 1000 + rng.uniform(1, 4) * HOUR;
+    }
+    void i;
+  });
+  return out.sort((a, b) => a.startMs - b.startMs);
+}

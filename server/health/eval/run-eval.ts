@@ -1,0 +1,269 @@
+/**
+ * Offline evaluation of the health detectors: a simulated fleet with injected faults runs through the same engine the
+ * server uses (no broker, no database), and the alarms are scored against the simulator's ground truth.
+ *
+ * Scoring (per detector kind):
+ *  - an alarm matches a truth record of its kind on the same unit when the alarm's open interval overlaps the record's
+ *    interval extended by `graceMin` after its end (clear delays and late reports);
+ *  - precision = matching alarms / alarms of the kind; recall = eligible records matched / eligible records;
+ *    delay = raise time − record start of the first matching alarm (median, minutes);
+ *  - a record is eligible for recall when it lasted at least the kind's minimum observable time (`MIN_OBSERVABLE_MIN`:
+ *    an alarm philosophy with a delay-on cannot, by design, raise on a shorter condition) and is not cut off by the end of
+ *    the run before that time;
+ *  - false alarms = alarms of any kind that overlap no truth record of any kind on their unit (site alarms: on any unit
+ *    of the site), per 100 unit-days.
+ * Truth kinds: `trap` is the simulator's observed trap (settled below 85 % of the best reachable irradiance for 10 min,
+ * nothing else wrong), not the injected "knock" that may or may not trap the unit; `drift` includes dead detectors;
+ * `comms` is the injected comms loss.
+ */
+import { detectorNormals } from '../../../simulator/detectors';
+import { DETECTOR_TILTS_DEG } from '../../../seeds/demo-world';
+import { DEMO_SCENARIO_BY_SITE, demoSiteInfo } from '../../../simulator/demo-fleet';
+import { createFleet, type FleetSiteSpec } from '../../../simulator/fleet';
+import type { TruthRecord } from '../../../simulator/faults';
+import { createRng } from '../../../simulator/rng';
+import { isoUtc } from '../../../simulator/clock';
+import type { SkyField } from '../../../simulator/sky-field';
+import { analyseLandscape } from '../../../shared/landscape';
+import type { Telemetry, UnitEvent, Weather } from '../../../shared/contracts/wire';
+import type { Alarm } from '../alarm-types';
+import { HealthEngine } from '../health-engine';
+import { DEFAULT_HEALTH_SETTINGS, type HealthSettings } from '../health-settings';
+import type { SiteModel, SiteModelProvider } from '../site-model';
+import { median, type UnitRef } from '../unit-sample';
+import { scheduleFaults, type ScheduledFault } from './fault-schedule';
+
+export const SCORED_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'soiling'] as const;
+export type ScoredKind = (typeof SCORED_KINDS)[number];
+
+const TRUTH_KIND: Record<string, ScoredKind | undefined> = {
+  trap: 'trap', stall: 'stall', drift: 'drift', 'dead-detector': 'drift', hunting: 'hunting', 'comms-loss': 'comms', soiling: 'soiling',
+};
+
+/** Minimum duration of a truth record for it to count toward recall [min]. */
+export const MIN_OBSERVABLE_MIN: Record<ScoredKind, number> = { trap: 20, stall: 15, drift: 60, hunting: 30, comms: 15, soiling: 24 * 60 };
+
+export interface EvalOptions {
+  seed: number;
+  units: number;
+  hours: number;
+  /** No injected faults (false-alarm rate of a healthy fleet; traps the sky itself causes still count as truth). */
+  faultFree?: boolean;
+  /** Share of units left fault-free in a faulty run. */
+  faultFreeShare?: number;
+  startIso?: string;
+  graceMin?: number;
+  settings?: HealthSettings;
+  /** Compute the full landscape analysis for trap evidence (slower). */
+  evidence?: boolean;
+}
+
+export interface KindScore {
+  precision: number | null;
+  recall: number | null;
+  medianDelayMin: number | null;
+  alarms: number;
+  truths: number;
+  eligible: number;
+}
+
+export interface EvalResult {
+  seed: number;
+  unitDays: number;
+  detectors: Record<ScoredKind, KindScore>;
+  falseAlarmsPer100UnitDays: number;
+  falseAlarms: number;
+  otherAlarms: Record<string, number>;
+  injected: number;
+  faultFree: boolean;
+  runtimeS: number;
+}
+
+export interface EvalRun {
+  result: EvalResult;
+  alarms: Alarm[];
+  truth: TruthRecord[];
+  schedule: ScheduledFault[];
+  serialOf: Map<number, string>;
+}
+
+/** The evaluation fleet: the four demo scenarios, units spread over them, detector tilts as in the demo world. */
+export function evalFleetSites(units: number): FleetSiteSpec[] {
+  const codes = Object.keys(DEMO_SCENARIO_BY_SITE);
+  return codes.map((code, si) => {
+    const n = Math.floor(units / codes.length) + (si < units % codes.length ? 1 : 0);
+    const site = demoSiteInfo(code);
+    return {
+      site,
+      scenario: DEMO_SCENARIO_BY_SITE[code]!,
+      units: Array.from({ length: n }, (_, i) => ({
+        serial: `${code}-E${String(i + 1).padStart(3, '0')}`,
+        siteCode: code,
+        wear: (i % 4) * 0.08,
+        controller: { detectorTiltDeg: DETECTOR_TILTS_DEG[i % DETECTOR_TILTS_DEG.length]!, reportIntervalS: 5 },
+        weatherStation: i === 0 && !site.indoor,
+      })),
+    };
+  }).filter((s) => s.units.length > 0);
+}
+
+export function runEval(o: EvalOptions): EvalRun {
+  const t0 = performance.now();
+  const startMs = Date.parse(o.startIso ?? '2026-05-04T00:00:00Z');
+  const endMs = startMs + o.hours * 3_600_000;
+  const sites = evalFleetSites(o.units);
+  const fleet = createFleet({ sites, startUnixMs: startMs }, { rng: createRng(o.seed) });
+  const siteIdOf = new Map(sites.map((s, i) => [s.site.code, i + 1]));
+  const codeOf = new Map(sites.map((s, i) => [i + 1, s.site.code]));
+  const indoorOf = new Map(sites.map((s, i) => [i + 1, s.site.indoor]));
+  const refs = new Map<string, UnitRef>();
+  let nextId = 1;
+  for (const s of sites) for (const u of s.units) refs.set(u.serial, { unitId: nextId++, serial: u.serial, siteId: siteIdOf.get(s.site.code)!, detectorTiltDeg: u.controller!.detectorTiltDeg! });
+  const serialOf = new Map([...refs.values()].map((r) => [r.unitId, r.serial]));
+
+  // Model provider: the simulator's own sky at the latest step (in this benchmark the model is the world; the server
+  // models the sky from the site survey and weather instead — see README-health). Reports within 10 s of it may use it.
+  const current = new Map<number, { field: SkyField; model: SiteModel }>();
+  const analyses = new Map<string, ReturnType<NonNullable<SiteModel['analyse']>>>();
+  const provider: SiteModelProvider = {
+    siteModel(siteId, atMs) {
+      const code = codeOf.get(siteId)!;
+      const c = fleet.conditions(code);
+      if (!c || Math.abs(c.unixMs - atMs) > 10_000) return undefined;
+      const hit = current.get(siteId);
+      if (hit && hit.field === c.field) {
+        hit.model.atMs = c.unixMs;
+        return hit.model;
+      }
+      const field = c.field;
+      const hourKey = `${code}@${Math.floor(c.unixMs / 3_600_000)}`;
+      const model: SiteModel = {
+        atMs: c.unixMs,
+        sunElevationDeg: c.sunElevationDeg,
+        indoor: indoorOf.get(siteId)!,
+        globalMax: fleet.bestReachable(field),
+        readings(tiltDeg, azimuthDeg, detectorTiltDeg) {
+          const n = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
+          return { panelWm2: field.irradiance(n.panel), tiltPlusWm2: field.irradiance(n.tiltPlus), tiltMinusWm2: field.irradiance(n.tiltMinus), azimuthPlusWm2: field.irradiance(n.azimuthPlus), azimuthMinusWm2: field.irradiance(n.azimuthMinus) };
+        },
+        analyse: o.evidence
+          ? () => {
+              let a = analyses.get(hourKey);
+              if (!a) {
+                const r = analyseLandscape(field.sky, { stepDeg: 2, tiltRangeDeg: [0, 85] });
+                a = { localMaxima: r.localMaxima, minSinglePeakDetectorTiltDeg: r.minSinglePeakDetectorTiltDeg };
+                analyses.set(hourKey, a);
+              }
+              return a;
+            }
+          : undefined,
+      };
+      current.set(siteId, { field, model });
+      return model;
+    },
+  };
+
+  const settings = o.settings ?? DEFAULT_HEALTH_SETTINGS;
+  const engine = new HealthEngine({ now: () => fleet.now(), models: provider, settingsFor: () => settings });
+  const schedule = o.faultFree
+    ? []
+    : scheduleFaults({
+        units: sites.flatMap((s) => s.units.map((u) => ({ serial: u.serial, site: s.site }))),
+        startMs, endMs, rng: createRng(`eval-faults:${o.seed}`), faultFreeShare: o.faultFreeShare ?? 0.25,
+      });
+  let next = 0;
+  const stepS = 5;
+  const injectedKeys = new Set<string>();
+  while (fleet.now() < endMs) {
+    while (next < schedule.length && schedule[next]!.startMs <= fleet.now()) {
+      const f = schedule[next++]!;
+      fleet.injectFault(f.serial, f.kind, f.durationS, f.target);
+      injectedKeys.add(`${f.serial}|${f.kind}|${isoUtc(fleet.now())}`);
+    }
+    const msgs = fleet.step(stepS);
+    for (const m of msgs) {
+      const ref = refs.get(m.serial)!;
+      if (m.leaf === 'telemetry') engine.telemetry(ref, m.payload as Telemetry);
+      else if (m.leaf === 'events') engine.event(ref, m.payload as UnitEvent);
+      else if (m.leaf === 'weather') engine.weather(ref.siteId, m.payload as Weather, ref);
+    }
+    engine.tick();
+  }
+  const alarms = engine.book.all();
+  const truth = fleet.truth();
+  const result = score({ alarms, truth, injectedKeys, serialOf, refs: [...refs.values()], startMs, endMs, graceMin: o.graceMin ?? 30, units: refs.size, hours: o.hours });
+  result.seed = o.seed;
+  result.injected = schedule.length;
+  result.faultFree = !!o.faultFree;
+  result.runtimeS = Math.round((performance.now() - t0) / 100) / 10;
+  return { result, alarms, truth, schedule, serialOf };
+}
+
+interface ScoreInput {
+  alarms: Alarm[];
+  truth: TruthRecord[];
+  /** serial|kind|start of injected records (to tell an injected trap "knock" from an observed trap). */
+  injectedKeys: Set<string>;
+  serialOf: Map<number, string>;
+  refs: UnitRef[];
+  startMs: number;
+  endMs: number;
+  graceMin: number;
+  units: number;
+  hours: number;
+}
+
+export function score(i: ScoreInput): EvalResult {
+  const graceMs = i.graceMin * 60_000;
+  const truth = i.truth
+    .filter((r) => r.fault !== 'wind-stow')
+    .map((r) => {
+      const injected = i.injectedKeys.has(`${r.serial}|${r.fault}|${r.start}`);
+      const kind = r.fault === 'trap' && injected ? undefined : TRUTH_KIND[r.fault];
+      return { serial: r.serial, fault: r.fault, kind, startMs: Date.parse(r.start), endMs: r.end ? Date.parse(r.end) : i.endMs };
+    });
+  const alarmEnd = (a: Alarm) => a.clearedMs ?? i.endMs;
+  const overlaps = (a: Alarm, t: { startMs: number; endMs: number }) => a.raisedMs <= t.endMs + graceMs && alarmEnd(a) >= t.startMs;
+  const siteSerials = new Map<number, Set<string>>();
+  for (const r of i.refs) {
+    let s = siteSerials.get(r.siteId);
+    if (!s) siteSerials.set(r.siteId, (s = new Set()));
+    s.add(r.serial);
+  }
+  const detectors = {} as Record<ScoredKind, KindScore>;
+  for (const kind of SCORED_KINDS) {
+    const as = i.alarms.filter((a) => a.kind === kind);
+    const ts = truth.filter((t) => t.kind === kind);
+    const tp = as.filter((a) => ts.some((t) => t.serial === a.serial && overlaps(a, t))).length;
+    const minMs = MIN_OBSERVABLE_MIN[kind] * 60_000;
+    const eligible = ts.filter((t) => t.endMs - t.startMs >= minMs && t.startMs + minMs <= i.endMs);
+    const delays: number[] = [];
+    let found = 0;
+    for (const t of eligible) {
+      const hits = as.filter((a) => a.serial === t.serial && overlaps(a, t));
+      if (hits.length) {
+        found++;
+        delays.push((Math.min(...hits.map((a) => a.raisedMs)) - t.startMs) / 60_000);
+      }
+    }
+    detectors[kind] = {
+      precision: as.length ? round3(tp / as.length) : null,
+      recall: eligible.length ? round3(found / eligible.length) : null,
+      medianDelayMin: delays.length ? Math.round(median(delays) * 10) / 10 : null,
+      alarms: as.length,
+      truths: ts.length,
+      eligible: eligible.length,
+    };
+  }
+  const isFalse = (a: Alarm) => {
+    const serials = a.serial ? new Set([a.serial]) : (siteSerials.get(a.siteId) ?? new Set<string>());
+    return !truth.some((t) => serials.has(t.serial) && overlaps(a, t));
+  };
+  const falseAlarms = i.alarms.filter(isFalse).length;
+  const unitDays = (i.units * i.hours) / 24;
+  const otherAlarms: Record<string, number> = {};
+  for (const a of i.alarms) if (!(SCORED_KINDS as readonly string[]).includes(a.kind)) otherAlarms[a.kind] = (otherAlarms[a.kind] ?? 0) + 1;
+  return { seed: 0, unitDays: round3(unitDays), detectors, falseAlarmsPer100UnitDays: round3((falseAlarms / unitDays) * 100), falseAlarms, otherAlarms, injected: 0, faultFree: false, runtimeS: 0 };
+}
+
+const round3 = (x: number) => Math.round(x * 1000) / 1000;
