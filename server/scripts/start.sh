@@ -11,8 +11,11 @@ children=()
 stop_all() {
   trap - INT TERM EXIT
   echo; echo "[start] stopping…"
-  for pid in "${children[@]}"; do kill -TERM "$pid" 2>/dev/null; done
-  for pid in "${children[@]}"; do wait "$pid" 2>/dev/null; done
+  # Newest first: the simulator disconnects before the broker goes, the server drains before MariaDB stops.
+  for ((i = ${#children[@]} - 1; i >= 0; i--)); do
+    kill -TERM "${children[$i]}" 2>/dev/null
+    wait "${children[$i]}" 2>/dev/null
+  done
   bash server/scripts/db.sh stop
   exit 0
 }
@@ -29,13 +32,14 @@ if [ ! -f "$index" ] || [ -n "$(find src shared angular.json -newer "$index" -ty
   npx ng build >/tmp/brightward-build.log 2>&1 || { tail -40 /tmp/brightward-build.log; exit 1; }
 fi
 
-node --import tsx server/main.ts &
+# Own sessions: Ctrl-C reaches this script only, which then stops the children in order.
+setsid node --import tsx server/main.ts &
 children+=($!)
 for _ in $(seq 1 100); do curl -sf "http://$HOST:$PORT/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
 if ! kill -0 "${children[0]}" 2>/dev/null; then echo "[start] the server did not start (see above)"; exit 1; fi
 
 if [ -f simulator/main.ts ] && [ "${BW_SIMULATOR:-on}" != off ]; then
-  node --import tsx simulator/main.ts --demo &
+  setsid node --import tsx simulator/main.ts --demo &
   children+=($!)
 fi
 
