@@ -1,4 +1,6 @@
-import { Routes } from '@angular/router';
+import { inject } from '@angular/core';
+import { Router, Routes } from '@angular/router';
+import { Session } from './auth/session';
 import { authGuard } from './auth/auth-guard';
 import { roleGuard } from './auth/role-guard';
 import { rolesFor } from './shell/nav-items';
@@ -14,8 +16,47 @@ export const routes: Routes = [
     canActivate: [authGuard],
     loadComponent: () => import('./shell/shell').then((m) => m.Shell),
     children: [
-      // Every role lands on its sites until role-specific boards exist.
-      { path: '', pathMatch: 'full', redirectTo: 'sites' },
+      // Staff land on the fleet board; owners on their sites.
+      {
+        path: '',
+        pathMatch: 'full',
+        children: [],
+        canActivate: [
+          async () => {
+            const router = inject(Router);
+            const me = await inject(Session).restore();
+            return router.createUrlTree([me && rolesFor('/fleet').includes(me.role) ? '/fleet' : '/sites']);
+          },
+        ],
+      },
+      {
+        path: 'fleet',
+        title: 'Fleet board · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/fleet') },
+        loadComponent: () => import('./fleet/fleet-board').then((m) => m.FleetBoard),
+      },
+      {
+        path: 'units/:id',
+        title: 'Unit · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/fleet') },
+        loadComponent: () => import('./units/unit-view').then((m) => m.UnitView),
+      },
+      {
+        path: 'traces',
+        title: 'Trace explorer · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/traces') },
+        loadComponent: () => import('./traces/trace-explorer').then((m) => m.TraceExplorer),
+      },
+      {
+        path: 'landscape',
+        title: 'Landscape · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/landscape') },
+        loadComponent: () => import('./landscape/landscape-view').then((m) => m.LandscapeView),
+      },
       {
         path: 'sites',
         canActivate: [roleGuard],

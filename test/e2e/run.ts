@@ -51,10 +51,10 @@ const DEMO_USERS: DemoUser[] = [
 ];
 
 const NAV: Record<RoleName, string[]> = {
-  admin: ['Sites', 'People', 'Owners', 'Site setup', 'Units and credentials'],
-  engineer: ['Sites'],
-  technician: ['Sites'],
-  crew: ['Sites'],
+  admin: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
+  engineer: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape'],
+  technician: ['Fleet board', 'Sites', 'Trace explorer'],
+  crew: ['Fleet board', 'Sites'],
   owner: ['Sites'],
 };
 
@@ -163,7 +163,9 @@ async function main(): Promise<number> {
     for (const user of DEMO_USERS) {
       await check(`${user.role} ${user.email} signs in and sees only their pages and sites`, async () => {
         await signIn(page, base, user.email);
-        await page.waitForURL(`${base}/sites`);
+        // Staff land on the fleet board, owners on their sites.
+        await page.waitForURL(`${base}/${user.role === 'owner' ? 'sites' : 'fleet'}`);
+        if (user.role !== 'owner') await page.goto(`${base}/sites`);
         const nav = (await page.getByTestId('main-nav').locator('a [matlistitemtitle]').allTextContents()).map((t) => t.trim());
         expectEqual(nav, NAV[user.role], 'navigation items');
         const chip = ((await page.getByTestId('role-chip').textContent()) ?? '').trim();
@@ -223,7 +225,7 @@ async function main(): Promise<number> {
     const newSite = `Millbrook Museum Roof ${Date.now() % 100000}`;
     await check('admin adds a site through the form and sees it listed', async () => {
       await signIn(page, base, 'admin@saltmarsh.example');
-      await page.waitForURL(`${base}/sites`);
+      await page.waitForURL(`${base}/fleet`);
       await page.goto(`${base}/admin/sites`);
       await page.getByRole('table', { name: 'Sites' }).getByText('Harbourside Library Roof').waitFor();
       await page.getByTestId('add-site').click();

@@ -2,10 +2,10 @@ import { ROLES, type Role } from '../../../shared/contracts/api';
 import { NAV_ITEMS, navItemsFor, rolesFor } from './nav-items';
 
 const EXPECTED: Record<Role, string[]> = {
-  admin: ['Sites', 'People', 'Owners', 'Site setup', 'Units and credentials'],
-  engineer: ['Sites'],
-  technician: ['Sites'],
-  crew: ['Sites'],
+  admin: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
+  engineer: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape'],
+  technician: ['Fleet board', 'Sites', 'Trace explorer'],
+  crew: ['Fleet board', 'Sites'],
   owner: ['Sites'],
 };
 

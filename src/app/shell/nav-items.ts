@@ -13,7 +13,10 @@ export interface NavItem {
 
 /** The one table of pages in the navigation and who may use each. */
 export const NAV_ITEMS: readonly NavItem[] = [
+  { path: '/fleet', label: 'Fleet board', icon: 'dashboard', group: 'Fleet', roles: ['admin', 'engineer', 'technician', 'crew'] },
   { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: ROLES },
+  { path: '/traces', label: 'Trace explorer', icon: 'query_stats', group: 'Fleet', roles: ['admin', 'engineer', 'technician'] },
+  { path: '/landscape', label: 'Landscape', icon: 'landscape', group: 'Fleet', roles: ['admin', 'engineer'] },
   { path: '/admin/people', label: 'People', icon: 'group', group: 'Administration', roles: ['admin'] },
   { path: '/admin/owners', label: 'Owners', icon: 'handshake', group: 'Administration', roles: ['admin'] },
   { path: '/admin/sites', label: 'Site setup', icon: 'edit_location_alt', group: 'Administration', roles: ['admin'] },

@@ -1,0 +1,103 @@
+import type { CommandView, UnitLiveState } from '../../../shared/contracts/live';
+import { toAlarmView } from '../live/alarm-api';
+import { shortfallPercent, siteTime, statusLook, utcTime } from '../live/unit-status';
+import { commandChoices, describeCommand, MOTION_CAUTION, upsertCommand } from './commands';
+import { appendLive } from './last-hour';
+import { domeRadius, horizonLine, normalToDome } from './sky-dome';
+
+const state = (over: Partial<UnitLiveState> = {}): UnitLiveState => ({
+  unitId: 1, serial: 'QHL-2401', siteId: 1, online: true, lastReportAt: '2026-06-21T10:00:00Z', mode: 'settled', poaWm2: 800, dcPowerW: 300,
+  tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 30, cmdAzimuthDeg: 180, tiltDiffWm2: 0, azimuthDiffWm2: 0, moduleTempC: 30, onHold: false, ...over,
+});
+const reasons = (role: Parameters<typeof commandChoices>[0], s: UnitLiveState | null) =>
+  Object.fromEntries(commandChoices(role, s).map((c) => [c.kind, c.disabledReason]));
+
+describe('command panel', () => {
+  it('lets a technician move a unit that is not held', () => {
+    const r = reasons('technician', state());
+    expect(r['scan']).toBeNull();
+    expect(r['goto']).toBeNull();
+    expect(r['stow']).toBeNull();
+    expect(r['hold']).toBeNull();
+    expect(r['release-hold']).toMatch(/not on hold/);
+    expect(r['release-stow']).toMatch(/not stowed/);
+  });
+
+  it('disables every motion on a held unit and says why, but allows releasing the hold', () => {
+    const r = reasons('engineer', state({ onHold: true, mode: 'held' }));
+    for (const k of ['scan', 'goto', 'stow', 'release-stow']) expect(r[k]).toMatch(/maintenance hold/);
+    expect(r['release-hold']).toBeNull();
+    expect(r['hold']).toMatch(/Already/);
+  });
+
+  it('gives crews hold and release only, and owners nothing', () => {
+    const crew = reasons('crew', state());
+    expect(crew['hold']).toBeNull();
+    expect(crew['scan']).toMatch(/Field crews/);
+    expect(Object.values(reasons('owner', state())).every((x) => x !== null)).toBe(true);
+  });
+
+  it('names the unit and the motion, and the caution covers the hazards and the rule that software is not lockout', () => {
+    expect(describeCommand('QHL-2401', 'goto', { tiltDeg: 35, azimuthDeg: 170 })).toContain('QHL-2401 will turn its panel to tilt 35° and azimuth 170°');
+    expect(describeCommand('QHL-2401', 'stow')).toContain('QHL-2401');
+    for (const words of [/pinch/, /stored mechanical energy/, /DC voltage/, /wind/, /not a lockout/, /Local codes and licensed practice/]) {
+      expect(MOTION_CAUTION).toMatch(words);
+    }
+  });
+
+  it('keeps the history newest first, replacing a command when its status changes', () => {
+    const c = (id: string, at: string, status: CommandView['status']): CommandView =>
+      ({ id, unitId: 1, kind: 'scan', params: null, status, reason: null, issuedBy: { id: 1, name: 'A' }, issuedAt: at, sentAt: null, ackedAt: null, finishedAt: null });
+    let h = upsertCommand([], c('a', '2026-01-01T10:00:00Z', 'queued'));
+    h = upsertCommand(h, c('b', '2026-01-01T11:00:00Z', 'sent'));
+    h = upsertCommand(h, c('a', '2026-01-01T10:00:00Z', 'completed'));
+    expect(h.map((x) => `${x.id}:${x.status}`)).toEqual(['b:sent', 'a:completed']);
+  });
+});
+
+describe('unit view values', () => {
+  it('shows state by word and icon; offline and hold win over the reported mode', () => {
+    expect(statusLook(state())).toMatchObject({ label: 'Settled', icon: 'check_circle' });
+    expect(statusLook(state({ online: false }))).toMatchObject({ label: 'Offline', icon: 'cloud_off' });
+    expect(statusLook(state({ onHold: true, mode: 'seeking' }))).toMatchObject({ label: 'Maintenance hold' });
+    expect(statusLook(null).label).toBe('No reports yet');
+  });
+
+  it('compares with the modelled best only in daylight', () => {
+    expect(shortfallPercent(800, 1000)).toBe(20);
+    expect(shortfallPercent(1100, 1000)).toBe(0);
+    expect(shortfallPercent(5, 20)).toBeNull();
+    expect(shortfallPercent(null, 1000)).toBeNull();
+  });
+
+  it('writes times in the site zone with the UTC instant for tooltips', () => {
+    expect(siteTime('2026-06-21T12:00:05Z', 'Europe/Berlin')).toMatch(/^14:00:05 (CEST|GMT\+2)$/);
+    expect(siteTime('2026-12-21T12:00:05Z', 'Europe/London', true)).toMatch(/21 Dec 2026.*12:00:05/);
+    expect(utcTime('2026-06-21T12:00:05.123Z')).toBe('2026-06-21 12:00:05 UTC');
+  });
+
+  it('adds each newer live report to the last hour and drops older points', () => {
+    const t0 = Date.parse('2026-06-21T10:00:00Z');
+    const pts = [{ t: t0 - 3_700_000, poa: 1, power: 1, tilt: 1, cmdTilt: 1, azimuth: 1, cmdAzimuth: 1 }];
+    const next = appendLive(pts, state({ lastReportAt: new Date(t0).toISOString(), poaWm2: 812 }));
+    expect(next.map((p) => p.poa)).toEqual([812]);
+    expect(appendLive(next, state({ lastReportAt: new Date(t0).toISOString() }))).toHaveLength(1);
+  });
+
+  it('puts the panel normal on the sky dome (tilt 30° looks at elevation 60°) with the zenith in the centre', () => {
+    expect(normalToDome(30, 190)).toEqual({ azimuthDeg: 190, elevationDeg: 60 });
+    expect(normalToDome(0, -10).azimuthDeg).toBe(350);
+    expect(domeRadius(90)).toBe(0);
+    expect(domeRadius(0)).toBe(90);
+    expect(domeRadius(-5)).toBe(90);
+    const h = horizonLine([[0, 10], [90, 30]]);
+    expect(h.find(([az]) => az === 44)![1]).toBeCloseTo(19.78, 1);
+    expect(h.find(([az]) => az === 226)![1]).toBeCloseTo(20, 0);
+  });
+
+  it('reads alarm records tolerantly and ignores what is not an alarm', () => {
+    expect(toAlarmView({ id: 5, kind: 'trap', severity: 'P2', unitId: 3, raisedMs: 0, message: 'x' })).toMatchObject({ id: '5', kind: 'trap', severity: 'P2', raisedAt: '1970-01-01T00:00:00.000Z' });
+    expect(toAlarmView({ hello: 1 })).toBeNull();
+    expect(toAlarmView(null)).toBeNull();
+  });
+});

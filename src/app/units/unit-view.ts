@@ -1,0 +1,256 @@
+import { ChangeDetectionStrategy, Component, computed, DestroyRef, effect, inject, input, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatTooltipModule } from '@angular/material/tooltip';
+import { RouterLink } from '@angular/router';
+import { NgxEchartsDirective } from 'ngx-echarts';
+import { interval } from 'rxjs';
+import type { Site, Unit } from '../../../shared/contracts/api';
+import type { SiteLandscape } from '../../../shared/contracts/landscape';
+import type { CommandView, UnitLiveState } from '../../../shared/contracts/live';
+import { Session } from '../auth/session';
+import { SiteApi } from '../sites/site-api';
+import { UnitApi } from '../sites/unit-api';
+import { toApiProblem } from '../ui/api-error';
+import { Notify } from '../ui/notify';
+import { AlarmApi, alarmKindLabel, toAlarmView, type AlarmView } from '../live/alarm-api';
+import { FleetApi } from '../live/fleet-api';
+import { LinkBadge } from '../live/link-badge';
+import { LiveConnection } from '../live/live-connection';
+import { readPalette, TONE_SYMBOL } from '../live/tone-palette';
+import { ago, siteTime, statusLook, utcTime, withUnit } from '../live/unit-status';
+import { ColourScheme } from '../shell/colour-scheme';
+import { CommandConfirm, type CommandConfirmData } from './command-confirm';
+import { commandChoices, commandParams, describeCommand, HOLD_CAUTION, MOTION_CAUTION, STATUS_LOOK, upsertCommand, type CommandChoice } from './commands';
+import { appendLive, lastHourOptions, pointFromRow, type HourPoint } from './last-hour';
+import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
+
+/** One unit, live: values, last hour, where it points against the modelled sky, commands, alarms and history. */
+@Component({
+  selector: 'bw-unit-view',
+  imports: [
+    FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatTooltipModule,
+    RouterLink, NgxEchartsDirective, LinkBadge,
+  ],
+  templateUrl: './unit-view.html',
+  styleUrl: './unit-view.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class UnitView {
+  private readonly unitApi = inject(UnitApi);
+  private readonly siteApi = inject(SiteApi);
+  private readonly api = inject(FleetApi);
+  private readonly alarmApi = inject(AlarmApi);
+  private readonly session = inject(Session);
+  private readonly dialog = inject(MatDialog);
+  private readonly notify = inject(Notify);
+  private readonly scheme = inject(ColourScheme);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly live = inject(LiveConnection);
+
+  /** Route parameter `:id`. */
+  readonly id = input.required<string>();
+
+  protected readonly unit = signal<Unit | null>(null);
+  protected readonly site = signal<Site | null>(null);
+  protected readonly state = signal<UnitLiveState | null>(null);
+  protected readonly loading = signal(true);
+  protected readonly notFound = signal(false);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly hour = signal<HourPoint[]>([]);
+  protected readonly hourLoading = signal(true);
+  protected readonly landscape = signal<SiteLandscape | null>(null);
+  protected readonly landscapeProblem = signal<string | null>(null);
+  protected readonly commands = signal<CommandView[]>([]);
+  protected readonly commandsProblem = signal<string | null>(null);
+  protected readonly alarms = signal<AlarmView[]>([]);
+  protected readonly alarmsUnavailable = signal<string | null>(null);
+  protected readonly sending = signal<string | null>(null);
+  protected readonly now = signal(Date.now());
+  protected readonly gotoTilt = signal<number | null>(null);
+  protected readonly gotoAzimuth = signal<number | null>(null);
+
+  protected readonly look = computed(() => statusLook(this.state()));
+  protected readonly onHold = computed(() => Boolean(this.state()?.onHold || this.state()?.mode === 'held'));
+  protected readonly choices = computed(() => commandChoices(this.session.role(), this.state()));
+  protected readonly canSeeTraces = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
+  protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
+  protected readonly hourOptions = computed(() => {
+    void this.scheme.current();
+    return lastHourOptions(this.hour(), readPalette(), this.zone(), Math.max(this.now(), this.hour().at(-1)?.t ?? 0));
+  });
+  protected readonly domeOptions = computed(() => {
+    void this.scheme.current();
+    const p = readPalette();
+    const pts: DomePoint[] = [];
+    const l = this.landscape();
+    if (l) {
+      const others = l.localMaxima.filter((m) => m.tiltDeg !== l.globalMax.tiltDeg || m.azimuthDeg !== l.globalMax.azimuthDeg);
+      for (const [i, m] of others.entries()) {
+        pts.push({ name: i === 0 ? 'Lesser peak' : `Lesser peak ${i + 1}`, ...normalToDome(m.tiltDeg, m.azimuthDeg), symbol: 'diamond', size: 14, colour: p.caution, label: `${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %` });
+      }
+      const g = l.localMaxima.find((m) => m.tiltDeg === l.globalMax.tiltDeg && m.azimuthDeg === l.globalMax.azimuthDeg);
+      pts.push({ name: 'Modelled best', ...normalToDome(l.globalMax.tiltDeg, l.globalMax.azimuthDeg), symbol: 'pin', size: 24, colour: p.good, label: `best ${Math.round(l.globalMax.wm2)} W/m²${g ? ` · basin ${Math.round(g.basinShare * 100)} %` : ''}` });
+      if (l.sun) pts.push({ name: 'Sun', azimuthDeg: l.sun.azimuthDeg, elevationDeg: l.sun.elevationDeg, symbol: 'circle', size: 20, colour: p.accent, label: 'sun' });
+    }
+    const s = this.state();
+    if (s?.tiltDeg !== null && s?.tiltDeg !== undefined && s.azimuthDeg !== null) {
+      pts.push({ name: 'Panel points here', ...normalToDome(s.tiltDeg, s.azimuthDeg), symbol: TONE_SYMBOL[this.look().tone] === 'emptyCircle' ? 'emptyCircle' : 'triangle', size: 18, colour: p.primary, label: s.serial });
+    }
+    return skyDomeOptions({ points: pts }, p);
+  });
+
+  protected readonly siteTime = siteTime;
+  protected readonly utcTime = utcTime;
+  protected readonly ago = ago;
+  protected readonly withUnit = withUnit;
+  protected readonly statusLabel = STATUS_LOOK;
+  protected readonly commandParams = commandParams;
+  protected readonly alarmKindLabel = alarmKindLabel;
+
+  constructor() {
+    effect(() => {
+      const id = Number(this.id());
+      untracked(() => this.load(id));
+    });
+    this.live.messages.pipe(takeUntilDestroyed()).subscribe((msg) => {
+      const u = this.unit();
+      if (!u) return;
+      if (msg.type === 'snapshot' || msg.type === 'units') {
+        const s = msg.units.find((x) => x.unitId === u.id);
+        if (s) {
+          this.state.set(s);
+          this.hour.set(appendLive(this.hour(), s));
+        }
+      } else if (msg.type === 'command' && msg.command.unitId === u.id) {
+        this.commands.set(upsertCommand(this.commands(), msg.command));
+      } else if (msg.type === 'alarm') {
+        const a = toAlarmView(msg.alarm);
+        if (a && a.unitId === u.id) this.alarms.set([...this.alarms().filter((x) => x.id !== a.id), a]);
+      }
+    });
+    interval(5000).pipe(takeUntilDestroyed()).subscribe(() => this.now.set(Date.now()));
+    interval(300_000).pipe(takeUntilDestroyed()).subscribe(() => this.loadLandscape());
+  }
+
+  protected load(id: number): void {
+    this.loading.set(true);
+    this.notFound.set(false);
+    this.problem.set(null);
+    if (!Number.isInteger(id) || id <= 0) {
+      this.notFound.set(true);
+      this.loading.set(false);
+      return;
+    }
+    this.unitApi.get(id).subscribe({
+      next: (unit) => {
+        this.unit.set(unit);
+        this.loading.set(false);
+        this.live.watch({ unitId: unit.id }, this.destroyRef);
+        this.siteApi.get(unit.siteId).subscribe({ next: (s) => this.site.set(s), error: () => undefined });
+        this.api.state(unit.id).subscribe({ next: (s) => s && this.state.set(s), error: () => undefined });
+        this.loadHour(unit.id);
+        this.loadLandscape();
+        this.loadCommands();
+        this.alarmApi.list({ unitId: unit.id }).subscribe((r) => {
+          if (r.available) this.alarms.set(r.alarms);
+          else this.alarmsUnavailable.set(r.reason);
+        });
+      },
+      error: (e: unknown) => {
+        const p = toApiProblem(e);
+        if (p.status === 404) this.notFound.set(true);
+        else this.problem.set(p.message);
+        this.loading.set(false);
+      },
+    });
+  }
+
+  private loadHour(unitId: number): void {
+    const to = new Date(Date.now() + 60_000);
+    this.hourLoading.set(true);
+    this.api.telemetry(unitId, new Date(to.getTime() - 3_660_000), to).subscribe({
+      next: (rows) => {
+        const merged = [...rows.map(pointFromRow), ...this.hour()].sort((a, b) => a.t - b.t).filter((p, i, a) => i === 0 || p.t !== a[i - 1]!.t);
+        this.hour.set(merged);
+        this.hourLoading.set(false);
+      },
+      error: () => this.hourLoading.set(false),
+    });
+  }
+
+  protected loadLandscape(): void {
+    const u = this.unit();
+    if (!u) return;
+    this.landscapeProblem.set(null);
+    this.api.landscape(u.siteId, new Date(), u.detectorTiltDeg, false, 3).subscribe({
+      next: (l) => {
+        this.landscape.set(l);
+        if (this.gotoTilt() === null) {
+          this.gotoTilt.set(l.globalMax.tiltDeg);
+          this.gotoAzimuth.set(l.globalMax.azimuthDeg);
+        }
+      },
+      error: (e: unknown) => this.landscapeProblem.set(toApiProblem(e).message),
+    });
+  }
+
+  private loadCommands(): void {
+    const u = this.unit();
+    if (!u) return;
+    this.api.commands(u.id).subscribe({
+      next: (list) => this.commands.set(list.reduce((acc, c) => upsertCommand(acc, c), [] as CommandView[])),
+      error: (e: unknown) => this.commandsProblem.set(toApiProblem(e).message),
+    });
+  }
+
+  protected gotoValid(): boolean {
+    const t = this.gotoTilt();
+    const a = this.gotoAzimuth();
+    return t !== null && a !== null && t >= 0 && t <= 90 && a >= 0 && a <= 360;
+  }
+
+  protected send(choice: CommandChoice): void {
+    const u = this.unit();
+    if (!u || choice.disabledReason) return;
+    if (choice.kind === 'goto' && !this.gotoValid()) {
+      this.notify.problem('Enter a tilt between 0 and 90° and an azimuth between 0 and 360°.');
+      return;
+    }
+    const target = choice.kind === 'goto' ? { tiltDeg: this.gotoTilt()!, azimuthDeg: this.gotoAzimuth()! } : undefined;
+    const data: CommandConfirmData = {
+      serial: u.serial,
+      siteName: this.site()?.name ?? u.siteName,
+      title: `${choice.label} — ${u.serial}?`,
+      description: describeCommand(u.serial, choice.kind, target),
+      caution: choice.motion ? MOTION_CAUTION : HOLD_CAUTION,
+      motion: choice.motion,
+      confirmLabel: choice.label,
+      confirmIcon: choice.icon,
+    };
+    this.dialog
+      .open(CommandConfirm, { data, width: '560px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
+      .afterClosed()
+      .subscribe((ok) => {
+        if (ok !== true) return;
+        this.sending.set(choice.kind);
+        this.api.issue(u.id, { kind: choice.kind, ...target, ...(choice.motion ? { confirm: true } : {}) }).subscribe({
+          next: (c) => {
+            this.sending.set(null);
+            this.commands.set(upsertCommand(this.commands(), c));
+            this.notify.done(`${choice.label}: sent to ${u.serial}.`);
+          },
+          error: (e: unknown) => {
+            this.sending.set(null);
+            this.notify.problem(`${choice.label} was not sent. ${toApiProblem(e).message}`);
+          },
+        });
+      });
+  }
+}
