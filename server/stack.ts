@@ -169,7 +169,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       ingest.stop();
       rollups.stop();
       retention.stop();
-      await rollups.runOnce().catch(() => undefined);
+      await rollups.runOnce({ includeOpenMinutes: true }).catch(() => undefined);
       await db.destroy();
     })());
   return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel, retention };

@@ -36,11 +36,22 @@ export class DriftDetector {
     if (m.panelWm2 < s.driftMinWm2 || t.poaWm2 < s.driftMinWm2) return judged(null);
     const ref = t.poaWm2 / m.panelWm2;
     if (Math.abs(ref - 1) > s.driftModelAgreement) return judged(null);
+    // Smooth enough here that the pointing uncertainty cannot explain a deviation?
+    const tol = s.driftPointingToleranceDeg;
+    const azTol = tol / Math.max(0.2, Math.sin((t.tiltDeg * Math.PI) / 180));
+    const around = [
+      model.readings(t.tiltDeg + tol, t.azimuthDeg, unit.detectorTiltDeg),
+      model.readings(Math.max(0, t.tiltDeg - tol), t.azimuthDeg, unit.detectorTiltDeg),
+      model.readings(t.tiltDeg, t.azimuthDeg + azTol, unit.detectorTiltDeg),
+      model.readings(t.tiltDeg, t.azimuthDeg - azTol, unit.detectorTiltDeg),
+    ];
+    const steep = (d: 'panel' | Detector) => around.some((r) => Math.abs(r[`${d}Wm2` as const] / m[`${d}Wm2` as const] - 1) > s.driftMaxModelChange);
+    if (steep('panel')) return judged(null);
     const reading = (d: Detector) => t[`${d}Wm2` as const];
     const modelled = (d: Detector) => m[`${d}Wm2` as const];
     const x = DETECTORS.map((d) => {
       if (reading(d) >= s.saturationWm2) return Infinity;
-      return modelled(d) >= s.driftMinWm2 ? reading(d) / modelled(d) / ref : null;
+      return modelled(d) >= s.driftMinWm2 && !steep(d) ? reading(d) / modelled(d) / ref : null;
     });
     u.window.push({ atMs, x });
     if (atMs - u.judgedMs < JUDGE_EVERY_MS) return judged(null);
@@ -74,7 +85,7 @@ export class DriftDetector {
         },
       }));
     }
-    if (worst.dev < s.driftClearTolerance && known.length === DETECTORS.length) return judged(false);
+    if (worst.dev < s.driftClearTolerance && known.length >= 2) return judged(false);
     return judged(open ? null : false);
   }
 

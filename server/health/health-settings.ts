@@ -56,6 +56,10 @@ export interface HealthSettings {
   driftModelAgreement: number;
   /** …and the modelled reading of the detector is at least this [W/m²]. */
   driftMinWm2: number;
+  /** Pointing uncertainty of a reported orientation (backlash, encoder resolution) [°]. */
+  driftPointingToleranceDeg: number;
+  /** Samples are used only where the modelled readings change by less than this fraction within the pointing uncertainty (smooth landscape). */
+  driftMaxModelChange: number;
   /** Median over this window [min]. */
   driftWindowMin: number;
   driftDelayOnMin: number;
@@ -69,6 +73,8 @@ export interface HealthSettings {
   /** …while its net motion is below this fraction of the path travelled. */
   huntingNetFraction: number;
   huntingWindowMin: number;
+  /** When at least this share of a site's reporting units move like that at once, it is the sky (passing clouds), not one unit. */
+  huntingSiteShare: number;
   huntingDelayOnMin: number;
   huntingClearDelayMin: number;
 
@@ -135,19 +141,22 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   stallClearDelayMin: 3,
 
   driftTolerance: 0.06,
-  driftClearTolerance: 0.03,
+  driftClearTolerance: 0.04,
   deadFraction: 0.1,
   saturationWm2: 4990,
   driftModelAgreement: 0.1,
   driftMinWm2: 100,
+  driftPointingToleranceDeg: 0.5,
+  driftMaxModelChange: 0.02,
   driftWindowMin: 10,
   driftDelayOnMin: 10,
   driftClearDelayMin: 10,
 
-  huntingStepDeg: 0.5,
-  huntingReversalsPerHour: 60,
+  huntingStepDeg: 2,
+  huntingReversalsPerHour: 50,
   huntingNetFraction: 0.3,
   huntingWindowMin: 10,
+  huntingSiteShare: 0.5,
   huntingDelayOnMin: 5,
   huntingClearDelayMin: 10,
 

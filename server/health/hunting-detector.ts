@@ -9,8 +9,14 @@ import type { HealthSettings } from './health-settings';
 import { azimuthDelta, judged, MOTION_FREE_MODES, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
 
 interface UnitState {
+  siteId: number;
   samples: { atMs: number; tiltDeg: number; azimuthDeg: number }[];
+  /** Whether the unit's latest window looked like hunting, and when. */
+  moving: boolean;
+  atMs: number;
 }
+
+const SITE_RECENT_MS = 120_000;
 
 export interface MotionStats {
   reversalsPerHour: number;
@@ -57,7 +63,9 @@ export class HuntingDetector {
 
   assess(unit: UnitRef, t: Telemetry, atMs: number, daylight: boolean, open: boolean, s: HealthSettings): Assessment {
     let u = this.units.get(unit.unitId);
-    if (!u) this.units.set(unit.unitId, (u = { samples: [] }));
+    if (!u) this.units.set(unit.unitId, (u = { siteId: unit.siteId, samples: [], moving: false, atMs }));
+    u.atMs = atMs;
+    u.moving = false;
     if (MOTION_FREE_MODES.has(t.mode) || !daylight) {
       u.samples = [];
       return judged(false);
@@ -67,8 +75,12 @@ export class HuntingDetector {
     while (u.samples.length && atMs - u.samples[0]!.atMs > windowMs) u.samples.shift();
     const st = motionStats(u.samples, s.huntingStepDeg);
     if (st.spanMin < 0.8 * s.huntingWindowMin) return judged(open ? null : false);
-    const hunting = st.reversalsPerHour >= s.huntingReversalsPerHour && st.netDeg < s.huntingNetFraction * st.pathDeg;
-    if (hunting) {
+    u.moving = st.reversalsPerHour >= s.huntingReversalsPerHour && st.netDeg < s.huntingNetFraction * st.pathDeg;
+    // The same restlessness on most of the site at once is the sky changing (passing clouds), not this unit.
+    const site = [...this.units.entries()].filter(([id, x]) => id !== unit.unitId && x.siteId === unit.siteId && atMs - x.atMs <= SITE_RECENT_MS);
+    const siteMoving = site.length >= 2 && site.filter(([, x]) => x.moving).length >= s.huntingSiteShare * site.length;
+    if (u.moving && siteMoving) return judged(open ? null : false);
+    if (u.moving) {
       return judged(true, () => ({
         severity: 'P3',
         message: `${round1(st.reversalsPerHour)} reversals per hour over the last ${round1(st.spanMin)} min: ${round1(st.pathDeg)}° travelled for ${round1(st.netDeg)}° of net motion.`,

@@ -21,6 +21,9 @@ export class RollupWorker {
     private readonly units: UnitDirectory,
     private readonly log: Logger,
     private readonly intervalMs = 2000,
+    /** A minute is rolled up once it has been closed this long, so a live minute is scanned once, not every pass [ms]. */
+    private readonly graceMs = 5000,
+    private readonly now: () => number = Date.now,
   ) {}
 
   markStored(rows: TelemetryRow[]): void {
@@ -41,16 +44,24 @@ export class RollupWorker {
     clearInterval(this.timer);
   }
 
-  /** One pass over everything dirty so far (tests call it directly). */
-  runOnce(): Promise<void> {
-    this.running ??= this.pass().finally(() => (this.running = undefined));
+  /** One pass over every closed dirty minute (tests call it directly). */
+  async runOnce(opts: { includeOpenMinutes?: boolean } = {}): Promise<void> {
+    while (this.running) await this.running;
+    this.running = this.pass(opts.includeOpenMinutes ?? false).finally(() => (this.running = undefined));
     return this.running;
   }
 
-  private async pass(): Promise<void> {
-    const minutes = this.dirtyMinutes;
+  private async pass(includeOpen: boolean): Promise<void> {
+    if (!this.dirtyMinutes.size) return;
+    // Take the closed minutes; the open ones wait for a later pass (or are taken too at shutdown).
+    const ripeBefore = includeOpen ? Infinity : this.now() - MINUTE - this.graceMs;
+    const minutes = new Map<number, Set<number>>();
+    for (const [m, ids] of this.dirtyMinutes) {
+      if (m > ripeBefore) continue;
+      minutes.set(m, ids);
+      this.dirtyMinutes.delete(m);
+    }
     if (!minutes.size) return;
-    this.dirtyMinutes = new Map();
     const quarters = new Map<number, Set<number>>();
     try {
       for (const [m, ids] of minutes) {

@@ -56,6 +56,8 @@ export interface EvalOptions {
   settings?: HealthSettings;
   /** Compute the full landscape analysis for trap evidence (slower). */
   evidence?: boolean;
+  /** Sees every telemetry report with the fleet (diagnostics). */
+  observe?: (unit: UnitRef, t: Telemetry, fleet: ReturnType<typeof createFleet>) => void;
 }
 
 export interface KindScore {
@@ -183,7 +185,10 @@ export function runEval(o: EvalOptions): EvalRun {
     const msgs = fleet.step(stepS);
     for (const m of msgs) {
       const ref = refs.get(m.serial)!;
-      if (m.leaf === 'telemetry') engine.telemetry(ref, m.payload as Telemetry);
+      if (m.leaf === 'telemetry') {
+        engine.telemetry(ref, m.payload as Telemetry);
+        o.observe?.(ref, m.payload as Telemetry, fleet);
+      }
       else if (m.leaf === 'events') engine.event(ref, m.payload as UnitEvent);
       else if (m.leaf === 'weather') engine.weather(ref.siteId, m.payload as Weather, ref);
     }
