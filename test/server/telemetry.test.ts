@@ -112,9 +112,11 @@ describe('storage', () => {
     const t0 = Math.floor((Date.now() - 86_400_000) / 900_000) * 900_000; // a quarter-hour start yesterday
     for (let i = 0; i < 240; i += 2) await publish(u, serial, 'telemetry', sample(i, t0 + i * 5000)); // 20 min, gaps
     await waitFor(async () => (await count('telemetry', { unit_id: id })) === 120, 5000, '120 rows');
+    await stack.ingest.drain(); // the rows are marked for rollup right after their commit
     await stack.rollups.runOnce();
     for (let i = 1; i < 240; i += 2) await publish(u, serial, 'telemetry', sample(i, t0 + i * 5000)); // the late half
     await waitFor(async () => (await count('telemetry', { unit_id: id })) === 240, 5000, '240 rows');
+    await stack.ingest.drain();
     await stack.rollups.runOnce();
 
     const raw = await stack.db('telemetry').where({ unit_id: id }).orderBy('ts');
@@ -151,5 +153,23 @@ describe('storage', () => {
     expect(await stack.retention.runOnce()).toBe(1);
     const left = await stack.db('telemetry').where({ unit_id: id });
     expect(left.map((r) => Math.round((now - r.ts.getTime()) / 86_400_000))).toEqual([399]);
+  });
+
+  it('stores weather against the site of the unit that carries the station, and unit events once', async () => {
+    const serial = 'FSC-2404';
+    const u = await connectUnit(stack.broker.port, serial);
+    const ts = new Date(Date.now() - 60_000).toISOString();
+    const siteId = stack.units.get(serial)!.siteId;
+    await publish(u, serial, 'weather', { v: 1, ts, ghiWm2: 420, dhiWm2: 130, airTempC: 12.5, windMs: 4.2, gustMs: 9.1 });
+    await publish(u, serial, 'weather', { v: 1, ts, ghiWm2: 420, airTempC: 12.5, windMs: 4.2, gustMs: 9.1 }); // resend
+    const event = { v: 1, ts, kind: 'mode-change', mode: 'stowed', code: 'wind-stow', message: 'gust 19.2 m/s' };
+    await publish(u, serial, 'events', event);
+    await publish(u, serial, 'events', event);
+    await waitFor(async () => (await count('weather', { site_id: siteId })) === 1 && (await count('unit_events', { unit_id: unitId(serial) })) === 1, 5000, 'weather and event rows');
+    await new Promise((r) => setTimeout(r, 200));
+    const w = await stack.db('weather').where({ site_id: siteId }).first();
+    expect(w).toMatchObject({ ghi_wm2: 420, dhi_wm2: 130, wind_ms: 4.2 });
+    expect(await count('unit_events', { unit_id: unitId(serial) })).toBe(1);
+    await u.endAsync();
   });
 });
