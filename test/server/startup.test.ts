@@ -1,0 +1,24 @@
+import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+
+const main = fileURLToPath(new URL('../../server/main.ts', import.meta.url));
+const run = (env: Record<string, string>) =>
+  spawnSync(process.execPath, ['--import', 'tsx', main], { env: { PATH: process.env['PATH'] ?? '', BW_LOG_LEVEL: 'silent', ...env }, encoding: 'utf8', timeout: 20_000 });
+
+describe('start-up', () => {
+  it('stops with one clear line naming host, port and the fix when MariaDB is unreachable', () => {
+    const r = run({ BW_DB_HOST: '127.0.0.1', BW_DB_PORT: '9', BW_PORT: '0', BW_BROKER_PORT: '0' });
+    expect(r.status).toBe(1);
+    const lines = r.stderr.trim().split('\n');
+    expect(lines).toHaveLength(1);
+    expect(lines[0]).toMatch(/MariaDB at 127\.0\.0\.1:9 .*connection refused.*npm run db -- start/);
+  });
+
+  it('refuses invalid configuration, naming each bad variable', () => {
+    const r = run({ BW_PORT: 'eighty', BW_LOG_LEVEL: 'loud' });
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/BW_PORT/);
+    expect(r.stderr).toMatch(/BW_LOG_LEVEL/);
+  });
+});
