@@ -1,3 +1,171 @@
-import { ChangeDetectionStrategy, Component } from '@angular/core';
-@Component({ selector: 'bw-landscape-view', template: `<section class="page"><h1>Landscape</h1></section>`, changeDetection: ChangeDetectionStrategy.OnPush })
-export class LandscapeView {}
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { FormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { MatSliderModule } from '@angular/material/slider';
+import { MatTabsModule } from '@angular/material/tabs';
+import { MatTooltipModule } from '@angular/material/tooltip';
+import { ActivatedRoute, Router } from '@angular/router';
+import { NgxEchartsDirective } from 'ngx-echarts';
+import { Subject, Subscription, debounceTime } from 'rxjs';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import type { Site } from '../../../shared/contracts/api';
+import type { LandscapeDay, SiteLandscape } from '../../../shared/contracts/landscape';
+import { FleetApi } from '../live/fleet-api';
+import { readPalette } from '../live/tone-palette';
+import { siteTime, utcTime } from '../live/unit-status';
+import { ColourScheme } from '../shell/colour-scheme';
+import { SiteApi } from '../sites/site-api';
+import { toApiProblem } from '../ui/api-error';
+import { localDateOf, zonedMidnightUtc } from '../traces/trace-charts';
+import { dayOptions, heatmapOptions, maximaMarks } from './landscape-charts';
+import { SurveyEditor } from './survey-editor';
+
+/** Minutes after local midnight → "HH:MM". */
+export function minutesLabel(m: number): string {
+  return `${String(Math.floor(m / 60)).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
+}
+
+/** The site's modelled irradiance landscape at an instant, the blurred one a detector pair climbs, its peaks, and the day. */
+@Component({
+  selector: 'bw-landscape-view',
+  imports: [
+    FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatSelectModule, MatSliderModule,
+    MatTabsModule, MatTooltipModule, NgxEchartsDirective, SurveyEditor,
+  ],
+  templateUrl: './landscape-view.html',
+  styleUrl: './landscape-view.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class LandscapeView {
+  private readonly api = inject(FleetApi);
+  private readonly siteApi = inject(SiteApi);
+  private readonly route = inject(ActivatedRoute);
+  private readonly router = inject(Router);
+  private readonly scheme = inject(ColourScheme);
+
+  protected readonly sites = signal<Site[]>([]);
+  protected readonly siteId = signal<number | null>(null);
+  protected readonly date = signal(localDateOf(Date.now(), 'UTC'));
+  /** Minutes after local midnight, 15-minute steps. */
+  protected readonly minutes = signal(12 * 60);
+  protected readonly detectorTilt = signal(10);
+  protected readonly landscape = signal<SiteLandscape | null>(null);
+  protected readonly day = signal<LandscapeDay | null>(null);
+  protected readonly loading = signal(false);
+  protected readonly dayLoading = signal(false);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly dayProblem = signal<string | null>(null);
+
+  protected readonly site = computed(() => this.sites().find((s) => s.id === this.siteId()) ?? null);
+  protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
+  protected readonly atMs = computed(() => zonedMidnightUtc(this.date(), this.zone()) + this.minutes() * 60_000);
+  protected readonly marks = computed(() => (this.landscape() ? maximaMarks(this.landscape()!) : []));
+  private readonly peak = computed(() => this.landscape()?.globalMax.wm2);
+  protected readonly rawOptions = computed(() => {
+    void this.scheme.current();
+    const l = this.landscape();
+    return l?.grid ? heatmapOptions(l, 'values', readPalette(), this.peak()) : null;
+  });
+  protected readonly blurredOptions = computed(() => {
+    void this.scheme.current();
+    const l = this.landscape();
+    return l?.grid ? heatmapOptions(l, 'blurred', readPalette(), this.peak()) : null;
+  });
+  protected readonly dayChart = computed(() => {
+    void this.scheme.current();
+    const d = this.day();
+    const zone = this.zone();
+    return d && d.hours.length ? dayOptions(d, readPalette(), (iso) => siteTime(iso, zone).slice(0, 5)) : null;
+  });
+  protected readonly siteTime = siteTime;
+  protected readonly utcTime = utcTime;
+  protected readonly minutesLabel = minutesLabel;
+  protected readonly degrees = (v: number) => `${v}°`;
+
+  private readonly changes = new Subject<void>();
+  private request: Subscription | null = null;
+
+  constructor() {
+    this.changes.pipe(debounceTime(350), takeUntilDestroyed()).subscribe(() => this.loadLandscape());
+    this.siteApi.list().subscribe({
+      next: (sites) => {
+        this.sites.set(sites);
+        const wanted = Number(this.route.snapshot.queryParamMap.get('site'));
+        const first = sites.find((s) => s.id === wanted) ?? sites.find((s) => !s.indoor) ?? sites[0];
+        if (first) this.chooseSite(first.id);
+      },
+      error: (e: unknown) => this.problem.set(toApiProblem(e).message),
+    });
+  }
+
+  protected chooseSite(id: number): void {
+    this.siteId.set(id);
+    this.date.set(localDateOf(Date.now(), this.zone()));
+    void this.router.navigate([], { queryParams: { site: id }, replaceUrl: true });
+    this.loadLandscape();
+    this.loadDay();
+  }
+
+  protected changed(): void {
+    this.changes.next();
+  }
+
+  protected dateChanged(d: string): void {
+    if (!/^\d{4}-\d{2}-\d{2}$/.test(d)) return;
+    this.date.set(d);
+    this.loadLandscape();
+    this.loadDay();
+  }
+
+  protected showHour(iso: string): void {
+    const local = siteTime(iso, this.zone()).slice(0, 5).split(':').map(Number) as [number, number];
+    this.minutes.set(local[0] * 60 + local[1]);
+    this.loadLandscape();
+  }
+
+  protected loadLandscape(): void {
+    const id = this.siteId();
+    if (id === null) return;
+    this.request?.unsubscribe();
+    this.loading.set(true);
+    this.problem.set(null);
+    this.request = this.api.landscape(id, new Date(this.atMs()), this.detectorTilt()).subscribe({
+      next: (l) => {
+        this.landscape.set(l);
+        this.loading.set(false);
+      },
+      error: (e: unknown) => {
+        this.problem.set(toApiProblem(e).message);
+        this.loading.set(false);
+      },
+    });
+  }
+
+  protected loadDay(): void {
+    const id = this.siteId();
+    if (id === null) return;
+    this.dayLoading.set(true);
+    this.dayProblem.set(null);
+    this.api.landscapeDay(id, this.date()).subscribe({
+      next: (d) => {
+        this.day.set(d);
+        this.dayLoading.set(false);
+      },
+      error: (e: unknown) => {
+        this.dayProblem.set(toApiProblem(e).message);
+        this.dayLoading.set(false);
+      },
+    });
+  }
+
+  /** The survey was saved: the model changed, so recompute. */
+  protected surveySaved(): void {
+    this.loadLandscape();
+    this.loadDay();
+  }
+}
