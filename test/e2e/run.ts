@@ -9,6 +9,9 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { startTestStack } from '../helpers/test-stack';
+import { connectUnit, publish, sample } from '../helpers/fake-unit';
+import type { Telemetry } from '../../shared/contracts/wire';
+import { insertDayOfTelemetry } from './demo-data';
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const OUTPUT = join(ROOT, 'test/.output/e2e');
@@ -166,6 +169,7 @@ async function main(): Promise<number> {
         // Staff land on the fleet board, owners on their sites.
         await page.waitForURL(`${base}/${user.role === 'owner' ? 'sites' : 'fleet'}`);
         if (user.role !== 'owner') await page.goto(`${base}/sites`);
+        await page.getByTestId('main-nav').locator('a').first().waitFor();
         const nav = (await page.getByTestId('main-nav').locator('a [matlistitemtitle]').allTextContents()).map((t) => t.trim());
         expectEqual(nav, NAV[user.role], 'navigation items');
         const chip = ((await page.getByTestId('role-chip').textContent()) ?? '').trim();
@@ -322,6 +326,145 @@ async function main(): Promise<number> {
       await signOut(page, base);
     });
 
+    // ---- Live screens: fleet board, unit view, trace explorer, landscape view ----
+    const unitSerial = 'QED-2401';
+    const unitId = await unitIdBySerial(stack, unitSerial);
+    const fake = await connectUnit(stack.broker.port, unitSerial);
+    let seq = 1;
+    const report = (over: Partial<Telemetry>) => publish(fake, unitSerial, 'telemetry', sample(seq++, Date.now(), over));
+
+    await check('a technician sees a unit change state live on the fleet board within 3 s', async () => {
+      await signIn(page, base, 'tech1@saltmarsh.example');
+      await page.waitForURL(`${base}/fleet`);
+      await page.getByTestId('link-state').filter({ hasText: 'Live' }).waitFor();
+      await page.getByTestId(`state-${unitSerial}`).waitFor();
+      await publish(fake, unitSerial, 'status', { v: 1, online: true }, true);
+      let started = Date.now();
+      await report({ dcPowerW: 321, mode: 'settled' });
+      await page.getByTestId(`power-${unitSerial}`).filter({ hasText: '321 W' }).waitFor({ timeout: 3000 });
+      const firstMs = Date.now() - started;
+      await page.waitForTimeout(1100); // the hub sends each unit at most once a second
+      started = Date.now();
+      await report({ dcPowerW: 12, mode: 'scanning' });
+      await page.getByTestId(`state-${unitSerial}`).filter({ hasText: 'Scanning' }).waitFor({ timeout: 3000 });
+      const secondMs = Date.now() - started;
+      expectTrue(firstMs < 3000 && secondMs < 3000, `seen after ${firstMs} ms and ${secondMs} ms`);
+      console.log(`        live change seen after ${firstMs} ms and ${secondMs} ms`);
+      await page.getByTestId('fleet-search').fill('QED');
+      expectEqual(await page.locator('tr[data-unit]').count(), 6, 'search narrows the board to one site');
+      await page.getByTestId('fleet-search').fill('');
+      await page.screenshot({ path: join(OUTPUT, 'fleet-board.png'), animations: 'disabled' });
+    });
+
+    await check('the unit view shows live values, and every motion command asks for confirmation with the cautions', async () => {
+      await page.goto(`${base}/units/${unitId}`);
+      await page.getByRole('heading', { name: unitSerial }).waitFor();
+      await page.getByTestId('unit-state').filter({ hasText: 'Scanning' }).waitFor();
+      await report({ dcPowerW: 287, mode: 'settled' });
+      await page.getByTestId('live-power').filter({ hasText: '287 W' }).waitFor({ timeout: 3000 });
+      await page.getByTestId('cmd-stow').click();
+      const dialog = page.getByRole('dialog');
+      await dialog.getByText(`${unitSerial} will drive to its stow position`).waitFor();
+      const caution = (await dialog.getByTestId('command-caution').textContent()) ?? '';
+      for (const words of ['pinch', 'stored mechanical energy', 'DC voltage', 'wind', 'not a lockout', 'Local codes and licensed practice']) {
+        expectTrue(caution.includes(words), `caution mentions "${words}"`);
+      }
+      expectTrue(await dialog.getByTestId('confirm').isDisabled(), 'confirm disabled until the sender states nobody is within reach');
+      await dialog.getByTestId('people-clear').click();
+      await dialog.locator('[data-testid="confirm"]:enabled').waitFor({ timeout: 2000 }).catch(() => undefined);
+      expectTrue(await dialog.getByTestId('confirm').isEnabled(), 'confirm enabled after the check');
+      await page.screenshot({ path: join(OUTPUT, 'unit-command-confirm.png'), animations: 'disabled' });
+      await dialog.getByTestId('confirm').click();
+      await page.getByTestId('command-history').getByText('stow').waitFor();
+      await page.screenshot({ path: join(OUTPUT, 'unit-view.png'), fullPage: true, animations: 'disabled' });
+    });
+
+    await check('a unit on maintenance hold shows it and refuses motion in the panel', async () => {
+      await report({ mode: 'held' });
+      await page.getByTestId('hold-banner').waitFor({ timeout: 3000 });
+      expectTrue(await page.getByTestId('cmd-scan').isDisabled(), 'scan disabled on hold');
+      await page.getByText('The unit is on maintenance hold: motion is refused').first().waitFor();
+      await page.screenshot({ path: join(OUTPUT, 'unit-view-on-hold.png'), animations: 'disabled' });
+      await report({ mode: 'settled' });
+      await signOut(page, base);
+    });
+
+    const dayStart = Date.UTC(2026, 5, 20);
+    const roofUnit = await unitIdBySerial(stack, 'QHL-2401');
+    await insertDayOfTelemetry(stack.db, roofUnit, dayStart);
+    await check('an engineer opens a day in the trace explorer and zooms in, and finer data loads', async () => {
+      await signIn(page, base, 'engineer@saltmarsh.example');
+      await page.waitForURL(`${base}/fleet`);
+      const from = new Date(dayStart).toISOString();
+      const to = new Date(dayStart + 86_400_000).toISOString();
+      const first = page.waitForResponse((r) => r.url().includes(`/api/units/${roofUnit}/traces?`) && r.status() === 200);
+      await page.goto(`${base}/traces?units=${roofUnit}&from=${from}&to=${to}`);
+      const body = (await (await first).json()) as { rows: number; bucketMs: number; events: unknown[] };
+      expectEqual(body.rows, 17_280, 'reports in the day');
+      expectTrue(body.events.length === 2, 'events overlaid');
+      const chart = page.getByTestId('trace-chart');
+      await chart.waitFor();
+      await page.waitForTimeout(500);
+      const before = (await page.getByTestId('visible-range').textContent()) ?? '';
+      const finer = page.waitForResponse((r) => r.url().includes(`/api/units/${roofUnit}/traces?`) && !r.url().includes(encodeURIComponent(from)) && r.status() === 200, { timeout: 10_000 });
+      const box = (await chart.boundingBox())!;
+      await page.mouse.move(box.x + box.width * 0.45, box.y + box.height * 0.3);
+      for (let i = 0; i < 8; i++) {
+        await page.mouse.wheel(0, -300);
+        await page.waitForTimeout(60);
+      }
+      const detail = (await (await finer).json()) as { bucketMs: number };
+      expectTrue(detail.bucketMs < body.bucketMs, `finer buckets after zoom (${detail.bucketMs} ms < ${body.bucketMs} ms)`);
+      await page.waitForTimeout(500);
+      const after = (await page.getByTestId('visible-range').textContent()) ?? '';
+      expectTrue(after !== before, `visible range changed (${after})`);
+      const csv = await page.locator('[data-testid="csv-QHL-2401"]').getAttribute('href');
+      expectTrue(Boolean(csv?.includes('/traces.csv?')), 'CSV link for the visible range');
+      await page.screenshot({ path: join(OUTPUT, 'trace-explorer.png'), fullPage: true, animations: 'disabled' });
+    });
+
+    await check('the landscape view shows two peaks with basins for the library roof on a summer morning', async () => {
+      const roof = await siteIdByName(stack, 'Harbourside Library Roof');
+      await page.goto(`${base}/landscape?site=${roof}&date=2026-06-21&time=09:00`);
+      await page.getByTestId('landscape-summary').filter({ hasText: '2 peaks' }).waitFor({ timeout: 15_000 });
+      const rows = page.getByTestId('maxima-table').locator('tbody tr');
+      expectEqual(await rows.count(), 2, 'peaks listed');
+      expectTrue(((await rows.nth(0).textContent()) ?? '').includes('Modelled best'), 'global peak first');
+      await page.getByTestId('day-recommendation').waitFor({ timeout: 15_000 });
+      await page.waitForTimeout(800);
+      await page.screenshot({ path: join(OUTPUT, 'landscape-view.png'), fullPage: true, animations: 'disabled' });
+    });
+
+    await check('a horizon CSV with bad rows is refused line by line and nothing changes', async () => {
+      await page.getByTestId('horizon-csv').setInputFiles({
+        name: 'horizon.csv', mimeType: 'text/csv', buffer: Buffer.from('azimuth,elevation\r\n0,5\r\n400,3\r\n90,x\r\n'),
+      });
+      const problems = page.getByTestId('csv-problems');
+      await problems.waitFor();
+      const text = (await problems.textContent()) ?? '';
+      expectTrue(text.includes('Line 3') && text.includes('Line 4'), `bad lines named (${text.slice(0, 120)})`);
+      expectTrue(await page.getByTestId('survey-save').isDisabled(), 'nothing to save');
+      await page.getByTestId('survey-problems').waitFor({ state: 'detached' }).catch(() => undefined);
+      await page.getByTestId('csv-problems').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: join(OUTPUT, 'survey-editor-bad-csv.png'), animations: 'disabled' });
+    });
+
+    await check('the fleet board and unit view work on a 360 px phone screen and in dark colours', async () => {
+      await page.setViewportSize({ width: 360, height: 740 });
+      await page.goto(`${base}/fleet`);
+      await page.getByTestId(`state-${unitSerial}`).waitFor();
+      await page.screenshot({ path: join(OUTPUT, 'fleet-board-phone.png'), animations: 'disabled' });
+      await page.setViewportSize({ width: 1280, height: 800 });
+      await page.emulateMedia({ colorScheme: 'dark' });
+      await page.goto(`${base}/units/${unitId}`);
+      await page.getByRole('heading', { name: unitSerial }).waitFor();
+      await page.waitForTimeout(800);
+      await page.screenshot({ path: join(OUTPUT, 'unit-view-dark.png'), animations: 'disabled' });
+      await page.emulateMedia({ colorScheme: 'light' });
+      await signOut(page, base);
+    });
+    await fake.endAsync().catch(() => undefined);
+
     await check('no request left the machine', async () => {
       expectEqual(offMachine, [], 'requests to other hosts');
     });
@@ -346,6 +489,13 @@ async function signOut(page: Page, base: string): Promise<void> {
   await page.getByTestId('user-menu').click();
   await page.getByTestId('sign-out').click();
   await page.waitForURL(`${base}/sign-in`);
+}
+
+async function unitIdBySerial(stack: { db: unknown }, serial: string): Promise<number> {
+  const db = stack.db as (table: string) => { where(c: object): { first(col: string): Promise<{ id: number } | undefined> } };
+  const row = await db('units').where({ serial }).first('id');
+  if (!row) throw new CheckFailed(`no unit ${serial} in the test database`);
+  return row.id;
 }
 
 async function siteIdByName(stack: { db: { (table: string): unknown } }, name: string): Promise<number> {

@@ -105,8 +105,13 @@ export class LandscapeView {
 
   protected chooseSite(id: number): void {
     this.siteId.set(id);
-    this.date.set(localDateOf(Date.now(), this.zone()));
-    void this.router.navigate([], { queryParams: { site: id }, replaceUrl: true });
+    // A link may name the day and the site-local time (?date=YYYY-MM-DD&time=HH:MM); otherwise today.
+    const q = this.route.snapshot.queryParamMap;
+    const date = q.get('date');
+    const time = /^(\d{2}):(\d{2})$/.exec(q.get('time') ?? '');
+    this.date.set(date && /^\d{4}-\d{2}-\d{2}$/.test(date) ? date : localDateOf(Date.now(), this.zone()));
+    if (time) this.minutes.set(Math.min(1425, Number(time[1]) * 60 + Number(time[2])));
+    void this.router.navigate([], { queryParams: { site: id }, queryParamsHandling: 'merge', replaceUrl: true });
     this.loadLandscape();
     this.loadDay();
   }
