@@ -18,7 +18,11 @@ type Detector = (typeof DETECTORS)[number];
 interface UnitState {
   window: { atMs: number; x: (number | null)[] }[];
   judgedMs: number;
+  sampledMs: number;
 }
+
+/** Reports closer together than this add no sample (the window needs a few dozen, not every report) [ms]. */
+const SAMPLE_EVERY_MS = 15_000;
 
 /** Medians are recomputed at most this often per unit [ms]; reports in between add samples only. */
 const JUDGE_EVERY_MS = 30_000;
@@ -28,10 +32,11 @@ export class DriftDetector {
 
   assess(unit: UnitRef, t: Telemetry, atMs: number, model: SiteModel | undefined, daylight: boolean, open: boolean, s: HealthSettings): Assessment {
     let u = this.units.get(unit.unitId);
-    if (!u) this.units.set(unit.unitId, (u = { window: [], judgedMs: -Infinity }));
+    if (!u) this.units.set(unit.unitId, (u = { window: [], judgedMs: -Infinity, sampledMs: -Infinity }));
     const windowMs = s.driftWindowMin * 60_000;
     while (u.window.length && atMs - u.window[0]!.atMs > windowMs) u.window.shift();
-    if (!daylight || !model || t.mode === 'fault') return judged(null);
+    if (!daylight || !model || t.mode === 'fault' || atMs - u.sampledMs < SAMPLE_EVERY_MS) return judged(null);
+    u.sampledMs = atMs;
     const m = model.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
     if (m.panelWm2 < s.driftMinWm2 || t.poaWm2 < s.driftMinWm2) return judged(null);
     const ref = t.poaWm2 / m.panelWm2;

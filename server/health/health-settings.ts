@@ -30,6 +30,8 @@ export interface HealthSettings {
   trapSeekGraceMin: number;
   trapDelayOnMin: number;
   trapClearDelayMin: number;
+  /** Each detector must read at least this fraction of its partner: a dead or failing detector is a different fault. */
+  trapPairSanity: number;
   /** Units of one site trapped at once from which the trap alarms become P2. */
   trapManyUnits: number;
 
@@ -124,14 +126,15 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   daylightMinWm2: 100,
   daylightMinSunElevationDeg: 5,
 
-  trapRatio: 0.8,
-  trapPeerRatio: 0.85,
+  trapRatio: 0.84,
+  trapPeerRatio: 0.9,
   trapPeerQuantile: 0.75,
   trapModelAgreement: 0.1,
   trapClearRatio: 0.88,
   trapSeekGraceMin: 3,
   trapDelayOnMin: 10,
   trapClearDelayMin: 3,
+  trapPairSanity: 0.05,
   trapManyUnits: 3,
 
   motorOverCurrentA: 3,

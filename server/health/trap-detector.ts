@@ -48,6 +48,8 @@ export class TrapDetector {
       if (last !== undefined && atMs - last < s.trapSeekGraceMin * 60_000) return judged(null);
       return judged(false);
     }
+    const pairOk = (a: number, b: number) => Math.min(a, b) >= s.trapPairSanity * Math.max(a, b);
+    if (!pairOk(t.tiltPlusWm2, t.tiltMinusWm2) || !pairOk(t.azimuthPlusWm2, t.azimuthMinusWm2)) return judged(false);
     const best = m.globalMax.wm2;
     const ratio = t.poaWm2 / best;
     if (ratio >= s.trapClearRatio) return judged(false);

@@ -17,9 +17,13 @@ export interface ScheduledFault {
   target: number;
 }
 
-/** Kinds injected, and how long each lasts [h] (uniform in the range). Soiling runs from its start to a cleaning. */
+/**
+ * Kinds injected, and how long each lasts [h] (uniform in the range). Soiling runs from its start to a cleaning.
+ * Traps are not injected: the scenarios' skies (facade reflections, courtyard shade, lamps, broken cloud) trap units with
+ * narrow detectors by themselves, and the simulator records every trap it observes as truth. (The simulator's injected
+ * "trap" narrows the detectors to 4°, which is a change of detector geometry the drift detector rightly reports.)
+ */
 export const EVAL_FAULTS: { kind: FaultKind; hours: [number, number] }[] = [
-  { kind: 'trap', hours: [2, 4] },
   { kind: 'stall', hours: [1, 3] },
   { kind: 'drift', hours: [3, 10] },
   { kind: 'dead-detector', hours: [2, 5] },
