@@ -13,6 +13,8 @@ import * as m20261202100500 from './20261202100500_create_weather';
 import * as m20261202100600 from './20261202100600_create_commands';
 import * as m20261202100700 from './20261202100700_add_units_hold';
 import * as m20261202110000 from './20261202110000_add_sites_survey';
+import * as m20261202120000 from './20261202120000_create_alarms';
+import * as m20261202120100 from './20261202120100_create_site_health_settings';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -33,6 +35,8 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202100600_create_commands': m20261202100600,
   '20261202100700_add_units_hold': m20261202100700,
   '20261202110000_add_sites_survey': m20261202110000,
+  '20261202120000_create_alarms': m20261202120000,
+  '20261202120100_create_site_health_settings': m20261202120100,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -27,6 +27,9 @@ import { telemetryRoutes } from './routes/telemetry-routes';
 import { attachLiveSocket } from './routes/live-socket';
 import { siteModelRoutes } from './routes/site-model-routes';
 import { SiteModelService } from './services/site-model-service';
+import { HealthService, type HealthServiceOptions } from './services/health-service';
+import { AlarmRepository, HealthReadRepository } from './data/alarm-repository';
+import { alarmRoutes } from './routes/alarm-routes';
 import { traceRoutes } from './routes/trace-routes';
 import { landscapeRoutes } from './routes/landscape-routes';
 import { TraceService } from './services/trace-service';
@@ -50,6 +53,7 @@ export interface Stack {
   units: UnitDirectory;
   siteModel: SiteModelService;
   retention: RetentionJob;
+  health: HealthService;
   http: Server;
   log: Logger;
   stop(): Promise<void>;
@@ -64,6 +68,7 @@ export interface StackOptions {
   /** Extra listeners on the ingest (benchmarks). */
   listeners?: IngestListeners;
   rollupIntervalMs?: number;
+  health?: Partial<HealthServiceOptions>;
 }
 
 export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel }), opts: StackOptions = {}): Promise<Stack> {
@@ -90,15 +95,17 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const telemetry = new TelemetryRepository(db);
   const live = new LiveHub(directory);
   const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
+  const health = new HealthService(new AlarmRepository(db), new HealthReadRepository(db), directory, siteModel, admin, live, log, opts.health);
   let commands: CommandService | undefined;
   const ingest = new IngestService(
     telemetry, directory, log,
     {
-      telemetry: (u, t) => { live.onTelemetry(u, t); opts.listeners?.telemetry?.(u, t); },
-      event: opts.listeners?.event,
+      telemetry: (u, t) => { live.onTelemetry(u, t); health.telemetry(u, t); opts.listeners?.telemetry?.(u, t); },
+      event: (u, e) => { health.event(u, e); opts.listeners?.event?.(u, e); },
       ack: (u, a) => void commands?.onAck(u, a).catch((err) => log.error({ err }, 'command ack failed')),
       status: (u, st) => {
         live.onStatus(u, st);
+        health.status(u, st);
         if (st.online) void commands?.onOnline(u).catch((err) => log.error({ err }, 'queued command dispatch failed'));
       },
       committed: opts.listeners?.committed,
@@ -140,12 +147,13 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   rollups.start();
   retention.start();
   commands.start();
+  await health.start();
 
   const app = createApp({
     db, log, auth, admin, version: VERSION, webDir: config.webDir,
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
     routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit),
-      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at))), landscapeRoutes(admin, landscapes)],
+      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at))), landscapeRoutes(admin, landscapes), alarmRoutes(health)],
   });
   const http = createServer(app);
   attachLiveSocket(http, auth, live, log);
@@ -167,10 +175,11 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await unsubscribe().catch(() => undefined);
       await ingest.drain(5000);
       ingest.stop();
+      await health.stop();
       rollups.stop();
       retention.stop();
       await rollups.runOnce({ includeOpenMinutes: true }).catch(() => undefined);
       await db.destroy();
     })());
-  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel, retention };
+  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel, retention, health };
 }

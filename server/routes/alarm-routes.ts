@@ -1,0 +1,65 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import type { HealthService } from '../services/health-service';
+import { callerOf, requireRole } from './access';
+import { idParam, parse } from './validation';
+
+const listQuery = z.strictObject({
+  siteId: z.coerce.number().int().positive('Must be a positive whole number.').optional(),
+  unitId: z.coerce.number().int().positive('Must be a positive whole number.').optional(),
+  state: z.enum(['active', 'cleared'], 'Must be active or cleared.').optional(),
+  limit: z.coerce.number().int().min(1, 'Must be between 1 and 1000.').max(1000, 'Must be between 1 and 1000.').optional(),
+});
+
+const scanQuery = z.strictObject({ commandId: z.string().min(1).max(64).optional() });
+
+const runBody = z.strictObject({
+  from: z.iso.datetime({ offset: true, error: 'Must be an ISO 8601 time with an offset.' }),
+  to: z.iso.datetime({ offset: true, error: 'Must be an ISO 8601 time with an offset.' }),
+  unitIds: z.array(z.number().int().positive()).min(1).max(500).optional(),
+});
+
+/**
+ * Health alarms, scan results, per-site health settings and on-demand runs. Mounted behind requireSession; owners see only
+ * their own sites' alarms (404 otherwise, as for units and sites).
+ *   GET  /alarms?siteId&unitId&state&limit     newest first
+ *   GET  /alarms/:id
+ *   POST /alarms/:id/acknowledge               technician, engineer, admin
+ *   GET  /units/:id/scans/latest[?commandId]   the unit's scan rebuilt: measured maximum, local maxima, model, goto offer
+ *   GET  /sites/:id/health-settings            defaults, the site's overrides, effective values
+ *   PUT  /sites/:id/health-settings            engineer, admin: replaces the site's overrides
+ *   POST /health/run { from, to, unitIds? }    engineer, technician, admin: the alarms the detectors raise over stored data
+ */
+export function alarmRoutes(health: HealthService): Router {
+  const r = Router();
+  const id = (params: unknown) => parse(idParam, params).id;
+
+  r.get('/alarms', async (req, res) => {
+    res.json(await health.list(callerOf(req), parse(listQuery, req.query)));
+  });
+
+  r.get('/alarms/:id', async (req, res) => {
+    res.json(await health.get(callerOf(req), id(req.params)));
+  });
+
+  r.post('/alarms/:id/acknowledge', requireRole('technician', 'engineer', 'admin'), async (req, res) => {
+    res.json(await health.acknowledge(callerOf(req), id(req.params)));
+  });
+
+  r.get('/units/:id/scans/latest', async (req, res) => {
+    res.json(await health.scanResult(callerOf(req), id(req.params), parse(scanQuery, req.query).commandId));
+  });
+
+  r.get('/sites/:id/health-settings', async (req, res) => {
+    res.json(await health.siteSettings(callerOf(req), id(req.params)));
+  });
+
+  r.put('/sites/:id/health-settings', requireRole('engineer', 'admin'), async (req, res) => {
+    res.json(await health.saveSiteSettings(callerOf(req), id(req.params), req.body));
+  });
+
+  r.post('/health/run', requireRole('engineer', 'technician', 'admin'), async (req, res) => {
+    res.json(await health.runRange(callerOf(req), parse(runBody, req.body)));
+  });
+  return r;
+}
