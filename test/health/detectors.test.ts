@@ -1,0 +1,171 @@
+import { describe, expect, it } from 'vitest';
+import { normalFromTiltAzimuth } from '../../shared/sphere/directions';
+import { T0, UNIT, feed, modelOf, peer, report, sunLandscape, testEngine } from './synthetic';
+
+// Sun at azimuth 180°, elevation 50°: the global maximum is the panel facing it, tilt 40°, azimuth 180°.
+const irr = sunLandscape(180, 50);
+const model = (at: number) => modelOf(irr, at);
+const MIN = 60_000;
+
+describe('trap detector', () => {
+  // A second bright spot (a facade reflection) at tilt 60°, azimuth 80°: a local maximum well below the sun's.
+  const cluttered = (n: readonly number[]) => irr(n) + 0 * n[0]!;
+  const onTrap = { tiltDeg: 70, azimuthDeg: 80 }; // far from the sun: E ≈ 100 + 800·cos(angle) well below the peak
+
+  it('raises after the delay-on for a settled unit well below the model and its peers, with where, loss and advice', () => {
+    const e = testEngine(model);
+    const best = model(T0).globalMax;
+    feed(e, T0, 30, [
+      { unit: UNIT, make: (at) => report(cluttered, at, onTrap) },
+      ...[1, 2, 3].map((i) => ({ unit: peer(i), make: (at: number) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) })),
+    ]);
+    const traps = e.raised.filter((a) => a.kind === 'trap');
+    expect(traps).toHaveLength(1);
+    const a = traps[0]!;
+    expect(a.serial).toBe(UNIT.serial);
+    expect(a.raisedMs - a.firstSeenMs).toBe(10 * MIN); // delay-on
+    expect(a.message).toContain(`tilt ${best.tiltDeg}°, azimuth ${best.azimuthDeg}°`);
+    expect(a.message).toMatch(/losing \d+(\.\d)? W\/m² \(\d+(\.\d)? %\)/);
+    expect(a.advice).toMatch(/scan/);
+    expect(a.advice).toMatch(/detector tilt/);
+    expect((a.evidence as { lossWm2: number }).lossWm2).toBeGreaterThan(0.16 * best.wm2);
+    expect(a.severity).toBe('P3');
+  });
+
+  it('stays quiet for a unit on the peak, at night, on hold, or seeking', () => {
+    for (const [name, m, make] of [
+      ['on the peak', model, (at: number) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 })],
+      ['night', (at: number) => modelOf(irr, at, { sunElevationDeg: -5 }), (at: number) => report(irr, at, onTrap)],
+      ['held', model, (at: number) => report(irr, at, { ...onTrap, mode: 'held' })],
+      ['seeking', model, (at: number) => report(irr, at, { ...onTrap, mode: 'seeking' })],
+    ] as const) {
+      const e = testEngine(m);
+      feed(e, T0, 30, [{ unit: UNIT, make }]);
+      expect(e.raised.filter((a) => a.kind === 'trap'), name).toHaveLength(0);
+    }
+  });
+
+  it('does not raise when the model is not confirmed here and the peers are just as low (model error, not a trap)', () => {
+    // The model says 2× what the site measures everywhere.
+    const doubled = (n: readonly number[]) => 2 * irr(n);
+    const e = testEngine((at) => modelOf(doubled, at));
+    feed(e, T0, 30, [
+      { unit: UNIT, make: (at) => report(irr, at, onTrap) },
+      ...[1, 2].map((i) => ({ unit: peer(i), make: (at: number) => report(irr, at, onTrap) })),
+    ]);
+    expect(e.raised.filter((a) => a.kind === 'trap')).toHaveLength(0);
+  });
+
+  it('clears automatically once the unit gets back above the clear ratio (after the clear delay)', () => {
+    const e = testEngine(model);
+    const end = feed(e, T0, 20, [{ unit: UNIT, make: (at) => report(irr, at, onTrap) }]);
+    expect(e.raised).toHaveLength(1);
+    feed(e, end, 10, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
+    expect(e.cleared.map((a) => a.kind)).toEqual(['trap']);
+    expect(e.cleared[0]!.clearedMs! - end).toBe(3 * MIN);
+  });
+});
+
+describe('stall detector', () => {
+  it('raises for an axis commanded away that does not move and draws stall current', () => {
+    const e = testEngine(model);
+    feed(e, T0, 5, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 40, tiltMotorA: 3.8, mode: 'seeking' }) }]);
+    const s = e.raised.filter((a) => a.kind === 'stall');
+    expect(s).toHaveLength(1);
+    expect(s[0]!.message).toMatch(/tilt axis/);
+    expect(s[0]!.severity).toBe('P2');
+  });
+
+  it('stays quiet for a drive that moves at normal current, and clears once the stalled axis moves again', () => {
+    const e = testEngine(model);
+    feed(e, T0, 10, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 20 + i * 0.2, azimuthDeg: 180, cmdTiltDeg: 21 + i * 0.2, tiltMotorA: 1.3, mode: 'seeking' }) }]);
+    expect(e.raised).toHaveLength(0);
+    const end = feed(e, T0 + 10 * MIN, 3, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 40, tiltMotorA: 3.8, mode: 'seeking' }) }]);
+    expect(e.raised.map((a) => a.kind)).toEqual(['stall']);
+    feed(e, end, 5, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 30 + i, azimuthDeg: 180, cmdTiltDeg: 31 + i, tiltMotorA: 1.2, mode: 'seeking' }) }]);
+    expect(e.cleared.map((a) => a.kind)).toEqual(['stall']);
+  });
+});
+
+describe('drift detector', () => {
+  it('names the detector that reads low against the model where the unit points, and calls a dead one dead', () => {
+    for (const [gains, finding] of [[[1, 0.85, 1, 1], 'drifting'], [[1, 1, 0.001, 1], 'dead']] as const) {
+      const e = testEngine(model);
+      feed(e, T0, 30, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180, gains: [...gains] }) }]);
+      const d = e.raised.filter((a) => a.kind === 'drift');
+      expect(d).toHaveLength(1);
+      expect((d[0]!.evidence as { detector: string; finding: string }).detector).toBe(finding === 'dead' ? 'azimuthPlus' : 'tiltMinus');
+      expect((d[0]!.evidence as { finding: string }).finding).toBe(finding);
+    }
+  });
+
+  it('accepts the usual calibration spread (±2 %) and stays quiet', () => {
+    const e = testEngine(model);
+    feed(e, T0, 60, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 35, azimuthDeg: 170, gains: [1.02, 0.98, 1.01, 0.99] }) }]);
+    expect(e.raised).toHaveLength(0);
+  });
+});
+
+describe('hunting detector', () => {
+  it('raises for a unit swinging back and forth without getting anywhere', () => {
+    const e = testEngine(model);
+    feed(e, T0, 20, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 40 + (i % 2 ? 4 : -4), azimuthDeg: 180, mode: 'seeking' }) }]);
+    const h = e.raised.filter((a) => a.kind === 'hunting');
+    expect(h).toHaveLength(1);
+    expect(h[0]!.message).toMatch(/reversals per hour/);
+  });
+
+  it('stays quiet for a unit following the sun slowly, and for a scan sweeping back and forth', () => {
+    const e = testEngine(model);
+    feed(e, T0, 30, [
+      { unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 40 + i * 0.02, azimuthDeg: 180 + i * 0.02, mode: 'settled' }) },
+      { unit: peer(1), make: (at, i) => report(irr, at, { tiltDeg: 40, azimuthDeg: (i % 24) < 12 ? i % 12 * 30 : 360 - (i % 12) * 30, mode: 'scanning' }) },
+    ]);
+    expect(e.raised).toHaveLength(0);
+  });
+});
+
+describe('soiling detector', () => {
+  it('raises when power per in-plane irradiance falls 5 % below the unit\'s own clean history, and not before', () => {
+    const e = testEngine(model);
+    let end = feed(e, T0, 4 * 60, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
+    expect(e.raised).toHaveLength(0);
+    end = feed(e, end, 3 * 60, [{ unit: UNIT, make: (at) => { const t = report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }); return { ...t, dcPowerW: t.dcPowerW * 0.93 }; } }]);
+    const s = e.raised.filter((a) => a.kind === 'soiling');
+    expect(s).toHaveLength(1);
+    expect((s[0]!.evidence as { lossPct: number }).lossPct).toBeCloseTo(7, 0);
+    feed(e, end, 3 * 60, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
+    expect(e.cleared.map((a) => a.kind)).toEqual(['soiling']); // cleaned
+  });
+});
+
+describe('comms detector and stow watch', () => {
+  it('raises comms loss after the silence and the delay-on, and clears on the next report', () => {
+    const e = testEngine(model);
+    let at = feed(e, T0, 5, [{ unit: UNIT, make: (t) => report(irr, t, { tiltDeg: 40, azimuthDeg: 180 }) }]);
+    for (; at < T0 + 15 * MIN; at += 5000) {
+      e.setNow(at);
+      e.engine.tick();
+    }
+    const c = e.raised.filter((a) => a.kind === 'comms');
+    expect(c).toHaveLength(1);
+    expect(c[0]!.raisedMs - (T0 + 5 * MIN)).toBeLessThanOrEqual(5 * MIN + 20_000);
+    feed(e, at, 1, [{ unit: UNIT, make: (t) => report(irr, t, { tiltDeg: 40, azimuthDeg: 180 }) }]);
+    expect(e.cleared.map((a) => a.kind)).toEqual(['comms']);
+  });
+
+  it('a unit still up at tilt 40° three minutes into gusts above the stow limit is critical; a stowed one is not', () => {
+    const e = testEngine(model);
+    e.engine.weather(1, { v: 1, ts: new Date(T0).toISOString(), ghiWm2: 700, airTempC: 20, windMs: 14, gustMs: 22 });
+    feed(e, T0, 5, [
+      { unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180, mode: 'fault' }) },
+      { unit: peer(1), make: (at) => report(irr, at, { tiltDeg: 0, azimuthDeg: 180, mode: 'stowed' }) },
+    ]);
+    const n = e.raised.filter((a) => a.kind === 'not-stowed');
+    expect(n.map((a) => a.serial)).toEqual([UNIT.serial]);
+    expect(n[0]!.severity).toBe('P1');
+    expect(n[0]!.raisedMs - T0).toBe(3 * MIN);
+  });
+});
+
+void normalFromTiltAzimuth;
