@@ -24,10 +24,10 @@ import { localDateOf, traceChartOptions, zonedMidnightUtc, type TraceWindow } fr
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;
 
-export type RangePreset = 'hour' | 'day24' | 'day' | 'week' | 'month';
+export type RangePreset = 'hour' | 'day24' | 'day' | 'week' | 'month' | 'custom';
 
 /** The window a preset stands for, ending now (or the chosen local day for 'day'). */
-export function presetWindow(preset: RangePreset, nowMs: number, day: string, timeZone: string): TraceWindow {
+export function presetWindow(preset: Exclude<RangePreset, 'custom'>, nowMs: number, day: string, timeZone: string): TraceWindow {
   switch (preset) {
     case 'hour':
       return { fromMs: nowMs - HOUR, toMs: nowMs };
@@ -119,7 +119,10 @@ export class TraceExplorer {
         const to = Date.parse(q.get('to') ?? '');
         if (ids.length) this.selected.set(ids.slice(0, 4));
         this.day.set(localDateOf(Date.now() - DAY, this.zone()));
-        if (ids.length && from < to) this.load({ fromMs: from, toMs: to });
+        if (ids.length && from < to) {
+          this.preset.set('custom');
+          this.load({ fromMs: from, toMs: to });
+        }
         else if (ids.length) this.apply();
       },
       error: (e: unknown) => this.listProblem.set(toApiProblem(e).message),
@@ -128,12 +131,19 @@ export class TraceExplorer {
 
   /** Loads the chosen preset. */
   protected apply(): void {
-    this.load(presetWindow(this.preset(), Date.now(), this.day(), this.zone()));
+    const preset = this.preset();
+    if (preset === 'custom') {
+      const w = this.window();
+      if (w) this.load(w);
+      return;
+    }
+    this.load(presetWindow(preset, Date.now(), this.day(), this.zone()), true);
   }
 
-  protected load(w: TraceWindow): void {
+  protected load(w: TraceWindow, first = false): void {
     const ids = this.selected();
     if (!ids.length) return;
+    if (first || !this.firstWindow) this.firstWindow = w;
     this.request?.unsubscribe();
     this.loading.set(true);
     this.problem.set(null);
@@ -165,7 +175,10 @@ export class TraceExplorer {
     if (this.zoomTimer) clearTimeout(this.zoomTimer);
     const loaded = this.traces()[0];
     if (!loaded || !needsDetail(loaded, w, this.chartPoints())) return;
-    this.zoomTimer = setTimeout(() => this.load(w), 500);
+    this.zoomTimer = setTimeout(() => {
+      this.preset.set('custom');
+      this.load(w);
+    }, 500);
   }
 
   private chartInstance: { getOption(): { dataZoom?: { startValue?: number; endValue?: number }[] } } | null = null;
@@ -176,9 +189,12 @@ export class TraceExplorer {
     this.onZoom(this.chartInstance);
   }
 
+  /** Back to the range first chosen (or linked). */
   protected resetZoom(): void {
-    this.apply();
+    const first = this.firstWindow;
+    if (first) this.load(first);
   }
+  private firstWindow: TraceWindow | null = null;
 
   protected csvLinks(): { serial: string; href: string }[] {
     const w = this.window();
