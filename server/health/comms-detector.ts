@@ -19,6 +19,8 @@ export interface CommsView {
   lastArrivalMs: number;
   offlineByWill: boolean;
   intervalMs: number;
+  /** When the unit counted as silent (last-will arrival, or the last message plus the allowed intervals) [ms]. */
+  silentSinceMs: number;
 }
 
 export class CommsDetector {
@@ -55,7 +57,9 @@ export class CommsDetector {
     const intervalMs = u.intervalMs ?? s.reportIntervalS * 1000;
     const silentForMs = nowMs - u.lastArrivalMs;
     const offlineByWill = u.offlineSinceMs !== null;
-    return { silent: offlineByWill || silentForMs > s.commsIntervals * intervalMs, silentForMs, lastArrivalMs: u.lastArrivalMs, offlineByWill, intervalMs };
+    const allowedMs = s.commsIntervals * intervalMs;
+    const silentSinceMs = offlineByWill ? Math.min(u.offlineSinceMs!, u.lastArrivalMs + allowedMs) : u.lastArrivalMs + allowedMs;
+    return { silent: offlineByWill || silentForMs > allowedMs, silentForMs, lastArrivalMs: u.lastArrivalMs, offlineByWill, intervalMs, silentSinceMs };
   }
 
   known(): number[] {

@@ -144,6 +144,8 @@ export class HealthEngine {
           this.book.clear(subject, 'comms', now, 'superseded by site alarm');
           continue;
         }
+        // The silence started before this tick: let the delay-on run from its start.
+        if (x.silent && !this.book.holding(subject, 'comms')) this.book.assess(subject, 'comms', true, Math.min(now, x.silentSinceMs), commsTiming, () => ({ severity: 'P4', message: '', advice: '', evidence: {} }), true);
         this.book.assess(subject, 'comms', x.silent, now, commsTiming, () => ({
           severity: day ? 'P3' : 'P4',
           message: `No message for ${round1(x.silentForMs / MIN_MS)} min${x.offlineByWill ? ' (the unit went offline without a clean disconnect)' : ''}; expected one every ${round1(x.intervalMs / 1000)} s.`,
