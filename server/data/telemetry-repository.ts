@@ -32,6 +32,14 @@ export interface EventRow { unit_id: number; ts: Date; kind: string; body: strin
 export interface WeatherRow { site_id: number; ts: Date; ghi_wm2: number; dhi_wm2: number | null; air_temp_c: number; wind_ms: number; gust_ms: number }
 
 const MINUTE_MS = 60_000;
+
+/** Column stem in `telemetry_1m` and the expression over a raw row, for each quantity whose per-minute extremes are kept. */
+const EXTREMES: [string, string][] = [
+  ['tilt_plus_wm2', 'tilt_plus_wm2'], ['tilt_minus_wm2', 'tilt_minus_wm2'], ['azimuth_plus_wm2', 'azimuth_plus_wm2'],
+  ['azimuth_minus_wm2', 'azimuth_minus_wm2'], ['tilt_diff_wm2', 'tilt_plus_wm2 - tilt_minus_wm2'],
+  ['azimuth_diff_wm2', 'azimuth_plus_wm2 - azimuth_minus_wm2'], ['tilt_deg', 'tilt_deg'], ['cmd_tilt_deg', 'cmd_tilt_deg'],
+  ['azimuth_deg', 'azimuth_deg'], ['cmd_azimuth_deg', 'cmd_azimuth_deg'], ['poa_wm2', 'poa_wm2'], ['dc_power_w', 'dc_power_w'],
+];
 const QUARTER_MS = 15 * MINUTE_MS;
 
 /** Raw telemetry and its rollups. Inserts are `INSERT IGNORE` on the (unit, ts) key: a resend never duplicates. */
@@ -63,20 +71,24 @@ export class TelemetryRepository {
     return res.affectedRows;
   }
 
-  /** Recomputes the 1-minute rollup of the given minute buckets (epoch ms of the minute start) for the given units. */
+  /** Recomputes the 1-minute rollup of one minute bucket (epoch ms of the minute start) for the given units. */
   async rollupMinutes(minuteStartMs: number, unitIds: number[]): Promise<void> {
     if (!unitIds.length) return;
-    const from = new Date(minuteStartMs);
-    const to = new Date(minuteStartMs + MINUTE_MS);
+    await this.rollupMinuteRange(unitIds, new Date(minuteStartMs), new Date(minuteStartMs + MINUTE_MS));
+  }
+
+  /** Recomputes the 1-minute rollup of every minute in [from, to) for the given units (also used to rebuild rollups). */
+  async rollupMinuteRange(unitIds: number[], from: Date, to: Date): Promise<void> {
+    if (!unitIds.length) return;
+    const sets = ['samples', 'poa_avg_wm2', 'poa_max_wm2', 'dc_power_avg_w', 'energy_wh', 'tilt_avg_deg', 'azimuth_avg_deg', 'module_temp_avg_c', ...EXTREMES.flatMap(([c]) => [`${c}_min`, `${c}_max`])];
     await this.db.raw(
-      `INSERT INTO telemetry_1m (unit_id, bucket, samples, poa_avg_wm2, poa_max_wm2, dc_power_avg_w, energy_wh, tilt_avg_deg, azimuth_avg_deg, module_temp_avg_c)
-       SELECT unit_id, ?, COUNT(*), AVG(poa_wm2), MAX(poa_wm2), AVG(dc_power_w), AVG(dc_power_w) / 60, AVG(tilt_deg),
-              MOD(DEGREES(ATAN2(AVG(SIN(RADIANS(azimuth_deg))), AVG(COS(RADIANS(azimuth_deg))))) + 360, 360), AVG(module_temp_c)
-       FROM telemetry WHERE unit_id IN (${unitIds.map(() => '?').join(',')}) AND ts >= ? AND ts < ? GROUP BY unit_id
-       ON DUPLICATE KEY UPDATE samples = VALUES(samples), poa_avg_wm2 = VALUES(poa_avg_wm2), poa_max_wm2 = VALUES(poa_max_wm2),
-         dc_power_avg_w = VALUES(dc_power_avg_w), energy_wh = VALUES(energy_wh), tilt_avg_deg = VALUES(tilt_avg_deg),
-         azimuth_avg_deg = VALUES(azimuth_avg_deg), module_temp_avg_c = VALUES(module_temp_avg_c)`,
-      [from, ...unitIds, from, to],
+      `INSERT INTO telemetry_1m (unit_id, bucket, ${sets.join(', ')})
+       SELECT unit_id, FROM_UNIXTIME(FLOOR(UNIX_TIMESTAMP(ts) / 60) * 60) AS minute, COUNT(*), AVG(poa_wm2), MAX(poa_wm2), AVG(dc_power_w), AVG(dc_power_w) / 60,
+              AVG(tilt_deg), MOD(DEGREES(ATAN2(AVG(SIN(RADIANS(azimuth_deg))), AVG(COS(RADIANS(azimuth_deg))))) + 360, 360), AVG(module_temp_c),
+              ${EXTREMES.map(([, expr]) => `MIN(${expr}), MAX(${expr})`).join(', ')}
+       FROM telemetry WHERE unit_id IN (${unitIds.map(() => '?').join(',')}) AND ts >= ? AND ts < ? GROUP BY unit_id, minute
+       ON DUPLICATE KEY UPDATE ${sets.map((c) => `${c} = VALUES(${c})`).join(', ')}`,
+      [...unitIds, from, to],
     );
   }
 

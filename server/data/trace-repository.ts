@@ -17,6 +17,22 @@ const QUANTITY_SQL: Record<TraceQuantity, string> = {
   dcPowerW: 'dc_power_w',
 };
 
+/** Column stem of each quantity's per-minute extremes in `telemetry_1m` (`<stem>_min`, `<stem>_max`). */
+const MINUTE_STEM: Record<TraceQuantity, string> = {
+  tiltPlusWm2: 'tilt_plus_wm2',
+  tiltMinusWm2: 'tilt_minus_wm2',
+  azimuthPlusWm2: 'azimuth_plus_wm2',
+  azimuthMinusWm2: 'azimuth_minus_wm2',
+  tiltDiffWm2: 'tilt_diff_wm2',
+  azimuthDiffWm2: 'azimuth_diff_wm2',
+  tiltDeg: 'tilt_deg',
+  cmdTiltDeg: 'cmd_tilt_deg',
+  azimuthDeg: 'azimuth_deg',
+  cmdAzimuthDeg: 'cmd_azimuth_deg',
+  poaWm2: 'poa_wm2',
+  dcPowerW: 'dc_power_w',
+};
+
 /** One bucket as the database returns it: `b` index, `n` samples, then `<q>_lo` / `<q>_hi` per quantity. */
 export type BucketRow = { b: number; n: number } & Record<string, number | null>;
 
@@ -55,27 +71,41 @@ export class TraceRepository {
    * Reads the primary key range (unit_id, ts) only; the grouping happens in the database. Long ranges are split into
    * `parts` bucket-aligned slices queried at once, so the database can use more than one core.
    */
-  async buckets(unitId: number, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[], parts = 1): Promise<BucketRow[]> {
+  async buckets(unitId: number, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[], parts = 1, origin: Date = from): Promise<BucketRow[]> {
     const aggregates = quantities.map((q) => `MIN(${QUANTITY_SQL[q]}) AS \`${q}_lo\`, MAX(${QUANTITY_SQL[q]}) AS \`${q}_hi\``).join(', ');
     const sql = `SELECT TIMESTAMPDIFF(SECOND, ?, ts) DIV ? AS b, COUNT(*) AS n, ${aggregates}
        FROM telemetry WHERE unit_id = ? AND ts >= ? AND ts < ?
        GROUP BY b ORDER BY b`;
     const bucketS = Math.max(1, Math.round(bucketMs / 1000));
-    const total = Math.ceil((to.getTime() - from.getTime()) / (bucketS * 1000));
+    const total = Math.ceil((to.getTime() - origin.getTime()) / (bucketS * 1000));
     const perPart = Math.ceil(total / Math.max(1, parts));
     const slices: [Date, Date][] = [];
-    for (let first = 0; first < total; first += perPart) {
-      const a = new Date(from.getTime() + first * bucketS * 1000);
-      const b = new Date(Math.min(to.getTime(), from.getTime() + (first + perPart) * bucketS * 1000));
+    for (let first = Math.floor((from.getTime() - origin.getTime()) / (bucketS * 1000)); first < total; first += perPart) {
+      const a = new Date(Math.max(from.getTime(), origin.getTime() + first * bucketS * 1000));
+      const b = new Date(Math.min(to.getTime(), origin.getTime() + (first + perPart) * bucketS * 1000));
       slices.push([a, b]);
     }
     const results = await Promise.all(
       slices.map(async ([a, b]) => {
-        const [rows] = (await this.db.raw(sql, [from, bucketS, unitId, a, b])) as unknown as [BucketRow[]];
+        const [rows] = (await this.db.raw(sql, [origin, bucketS, unitId, a, b])) as unknown as [BucketRow[]];
         return rows;
       }),
     );
     return results.flat();
+  }
+
+  /**
+   * The same buckets read from the 1-minute rollup over [from, to) (minute-aligned; `bucketMs` a whole number of minutes):
+   * a month is 43,200 rows instead of half a million.
+   */
+  async bucketsFromMinutes(unitId: number, origin: Date, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[]): Promise<BucketRow[]> {
+    const aggregates = quantities.map((q) => `MIN(${MINUTE_STEM[q]}_min) AS \`${q}_lo\`, MAX(${MINUTE_STEM[q]}_max) AS \`${q}_hi\``).join(', ');
+    const [rows] = (await this.db.raw(
+      `SELECT TIMESTAMPDIFF(SECOND, ?, bucket) DIV ? AS b, SUM(samples) AS n, ${aggregates}
+       FROM telemetry_1m WHERE unit_id = ? AND bucket >= ? AND bucket < ? GROUP BY b ORDER BY b`,
+      [origin, Math.round(bucketMs / 1000), unitId, from, to],
+    )) as unknown as [BucketRow[]];
+    return rows;
   }
 
   /** Raw rows in time order, `limit` at a time after `after` (exclusive), for streaming exports. */

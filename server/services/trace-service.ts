@@ -1,9 +1,12 @@
 import type { Unit } from '../../shared/contracts/api';
 import { MAX_CSV_DAYS, TRACE_QUANTITIES, TRACE_QUANTITY_INFO, type TraceMark, type TraceQuantity, type TraceSeries, type UnitTraces } from '../../shared/contracts/traces';
-import type { TraceRepository, RawTraceRow } from '../data/trace-repository';
+import type { BucketRow, TraceRepository, RawTraceRow } from '../data/trace-repository';
 import { badRequest } from '../errors/app-error';
 
 const DAY_MS = 86_400_000;
+const MINUTE_MS = 60_000;
+/** Minutes younger than this may not be rolled up yet (a minute closes, then waits a few seconds) [ms]. */
+const ROLLUP_LAG_MS = 3 * MINUTE_MS;
 /** Largest range of one traces request [days]. */
 export const MAX_TRACE_DAYS = 92;
 /** Instants at which the modelled best is evaluated over a range, at most. */
@@ -67,15 +70,33 @@ export class TraceService {
   constructor(
     private readonly repo: TraceRepository,
     private readonly best?: ModelledBest,
+    private readonly now: () => number = Date.now,
   ) {}
 
   /** Min/max per bucket of every quantity over [from, to), with `points` buckets at most, and the overlays. */
-  async traces(unit: Unit, from: Date, to: Date, points: number): Promise<UnitTraces> {
-    const spanMs = to.getTime() - from.getTime();
+  async traces(unit: Unit, requestedFrom: Date, to: Date, points: number): Promise<UnitTraces> {
+    const spanMs = to.getTime() - requestedFrom.getTime();
     // Whole seconds (at least 1 s), so bucket edges are easy to read and the count never exceeds `points`.
-    const bucketMs = Math.max(1000, Math.ceil(spanMs / points / 1000) * 1000);
+    let bucketMs = Math.max(1000, Math.ceil(spanMs / points / 1000) * 1000);
+    let from = requestedFrom;
+    let source: UnitTraces['source'] = 'raw';
+    let buckets: Promise<BucketRow[]>;
+    if (bucketMs >= MINUTE_MS) {
+      // Buckets of whole minutes read the 1-minute rollup (with per-minute extremes), except the latest minutes, which
+      // the rollup has not closed yet and are read raw; both land in the same buckets and are merged.
+      bucketMs = Math.ceil(bucketMs / MINUTE_MS) * MINUTE_MS;
+      from = new Date(Math.floor(requestedFrom.getTime() / MINUTE_MS) * MINUTE_MS);
+      const split = new Date(Math.min(to.getTime(), Math.max(from.getTime(), Math.floor((this.now() - ROLLUP_LAG_MS) / MINUTE_MS) * MINUTE_MS)));
+      source = split < to ? 'rollup+raw' : 'rollup';
+      buckets = Promise.all([
+        this.repo.bucketsFromMinutes(unit.id, from, from, split, bucketMs, TRACE_QUANTITIES),
+        split < to ? this.repo.buckets(unit.id, split, to, bucketMs, TRACE_QUANTITIES, 1, from) : Promise.resolve([]),
+      ]).then(([a, b]) => mergeBuckets(a, b));
+    } else {
+      buckets = this.repo.buckets(unit.id, from, to, bucketMs, TRACE_QUANTITIES, spanMs > 2 * DAY_MS ? 4 : 1);
+    }
     const [rows, events, alarms, modelledBest] = await Promise.all([
-      this.repo.buckets(unit.id, from, to, bucketMs, TRACE_QUANTITIES, spanMs > 2 * DAY_MS ? 4 : 1),
+      buckets,
       this.repo.events(unit.id, from, to),
       this.repo.alarms(unit.id, from, to),
       this.modelledBest(unit.siteId, from, to),
@@ -104,7 +125,7 @@ export class TraceService {
       samples,
       series,
       rows: total,
-      source: 'raw',
+      source,
       events: events.map((e) => ({ at: e.ts.toISOString(), kind: e.kind, text: eventText(e.kind, parseBody(e.body)) })),
       alarms: alarms === null ? null : alarms.map(alarmMark),
       modelledBest,
@@ -170,4 +191,25 @@ function alarmMark(a: Record<string, unknown>): TraceMark {
   const severity = a['severity'] !== undefined ? ` (${String(a['severity'])})` : '';
   const title = typeof a['title'] === 'string' ? a['title'] : typeof a['message'] === 'string' ? a['message'] : kind.replace(/-/g, ' ');
   return { at, kind, text: `${title}${severity}` };
+}
+
+/** Merges bucket rows of the same index from two sources: smallest minimum, largest maximum, samples added. */
+export function mergeBuckets(a: BucketRow[], b: BucketRow[]): BucketRow[] {
+  const byIndex = new Map<number, BucketRow>();
+  for (const r of [...a, ...b]) {
+    const k = Number(r.b);
+    const prev = byIndex.get(k);
+    if (!prev) {
+      byIndex.set(k, { ...r, b: k, n: Number(r.n) });
+      continue;
+    }
+    prev.n = Number(prev.n) + Number(r.n);
+    for (const q of TRACE_QUANTITIES) {
+      const lo = [prev[`${q}_lo`], r[`${q}_lo`]].filter((x): x is number => x !== null && x !== undefined).map(Number);
+      const hi = [prev[`${q}_hi`], r[`${q}_hi`]].filter((x): x is number => x !== null && x !== undefined).map(Number);
+      prev[`${q}_lo`] = lo.length ? Math.min(...lo) : null;
+      prev[`${q}_hi`] = hi.length ? Math.max(...hi) : null;
+    }
+  }
+  return [...byIndex.values()].sort((x, y) => x.b - y.b);
 }

@@ -56,8 +56,9 @@ export interface UnitTraces {
   series: Record<TraceQuantity, TraceSeries>;
   /** Raw rows read. */
   rows: number;
-  /** Where the values came from: raw 5-second reports, or a stored rollup for ranges past raw retention. */
-  source: 'raw';
+  /** Where the values came from: raw reports; the 1-minute rollup with per-minute extremes when buckets are whole minutes;
+   * or both, when the newest minutes are not rolled up yet. */
+  source: 'raw' | 'rollup' | 'rollup+raw';
   events: TraceMark[];
   /** null when alarms cannot be read (the alarm service is not there). */
   alarms: TraceMark[] | null;

@@ -1,4 +1,5 @@
 import type { Knex } from 'knex';
+import { TelemetryRepository } from '../../server/data/telemetry-repository';
 
 /**
  * A day of 5-second reports for one unit, written straight to the database: an irradiance arch over daylight with a
@@ -31,6 +32,8 @@ export async function insertDayOfTelemetry(db: Knex, unitId: number, dayStartUtc
     });
   }
   for (let i = 0; i < rows.length; i += 2000) await db('telemetry').insert(rows.slice(i, i + 2000));
+  // Written past the ingest, so build the 1-minute rollup as the server's rollup worker would.
+  await new TelemetryRepository(db).rollupMinuteRange([unitId], new Date(dayStartUtcMs), new Date(dayStartUtcMs + 86_400_000));
   await db('unit_events').insert([
     { unit_id: unitId, ts: new Date(scanFrom), kind: 'mode-change', body: JSON.stringify({ v: 1, kind: 'mode-change', mode: 'scanning' }) },
     { unit_id: unitId, ts: new Date(scanTo), kind: 'scan-complete', body: JSON.stringify({ v: 1, kind: 'scan-complete', message: 'best 905 W/m² at tilt 31°, azimuth 168°' }) },

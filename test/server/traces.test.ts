@@ -3,6 +3,7 @@ import request from 'supertest';
 import { startTestStack } from '../helpers/test-stack';
 import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import { csvField } from '../../server/services/trace-service';
+import { TelemetryRepository } from '../../server/data/telemetry-repository';
 import type { UnitTraces } from '../../shared/contracts/traces';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
@@ -26,6 +27,8 @@ beforeAll(async () => {
     };
   });
   for (let i = 0; i < rows.length; i += 500) await stack.db('telemetry').insert(rows.slice(i, i + 500));
+  // Rows written directly skip the ingest, so build their 1-minute rollup the way the rollup worker does.
+  await new TelemetryRepository(stack.db).rollupMinuteRange([unitId], new Date(T0), new Date(T0 + ROWS * 5000));
   await stack.db('unit_events').insert([
     { unit_id: unitId, ts: new Date(T0 + 600_000), kind: 'mode-change', body: JSON.stringify({ v: 1, kind: 'mode-change', mode: 'scanning' }) },
     { unit_id: unitId, ts: new Date(T0 + 601_000), kind: 'scan-samples', body: JSON.stringify({ v: 1, samples: [[1, 2, 3]] }) },
@@ -46,6 +49,7 @@ describe('downsampled traces', () => {
     const res = await eng.get(`/api/units/${unitId}/traces?${range(T0, T0 + 7200_000)}&points=12`).expect(200);
     const body = res.body as UnitTraces;
     expect(body.bucketMs).toBe(600_000);
+    expect(body.source).toBe('rollup');
     expect(body.t).toHaveLength(12);
     expect(body.t[0]).toBe(T0);
     expect(body.samples.every((n) => n === 120)).toBe(true);
@@ -81,6 +85,18 @@ describe('downsampled traces', () => {
     expect(tooLong.status).toBe(400);
     const badPoints = await eng.get(`/api/units/${unitId}/traces?${range(T0, T0 + 1000)}&points=1`);
     expect(badPoints.body.error.fields.points).toBeTruthy();
+  });
+
+  it('reads raw reports for sub-minute buckets and agrees with the rollup on the same range', async () => {
+    const eng = await agent('engineer@saltmarsh.example');
+    const fine = (await eng.get(`/api/units/${unitId}/traces?${range(T0 + 3000_000 - 60_000, T0 + 3000_000 + 60_000)}&points=24`).expect(200)).body as UnitTraces;
+    expect(fine.source).toBe('raw');
+    expect(fine.bucketMs).toBe(5000);
+    expect(Math.max(...fine.series.poaWm2.max.map(Number))).toBe(1200);
+    const coarse = (await eng.get(`/api/units/${unitId}/traces?${range(T0, T0 + 7200_000)}&points=10`).expect(200)).body as UnitTraces;
+    expect(coarse.bucketMs).toBe(720_000);
+    expect(coarse.series.poaWm2.max).toEqual([600, 600, 600, 600, 1200, 600, 600, 600, 600, 600]);
+    expect(coarse.samples).toEqual(Array(10).fill(144));
   });
 
   it('is for staff: owners and crews may not read traces, owners see nothing of other owners', async () => {
@@ -130,5 +146,14 @@ describe('CSV export', () => {
     expect(csvField(null)).toBe('');
     expect(csvField(Number.NaN)).toBe('');
     expect(csvField(0)).toBe('0');
+  });
+});
+
+describe('bucket merging', () => {
+  it('merges the rollup part and the raw tail of one bucket', async () => {
+    const { mergeBuckets } = await import('../../server/services/trace-service');
+    const q = (lo: number, hi: number) => Object.fromEntries(['tiltPlusWm2', 'tiltMinusWm2', 'azimuthPlusWm2', 'azimuthMinusWm2', 'tiltDiffWm2', 'azimuthDiffWm2', 'tiltDeg', 'cmdTiltDeg', 'azimuthDeg', 'cmdAzimuthDeg', 'poaWm2', 'dcPowerW'].flatMap((k) => [[`${k}_lo`, lo], [`${k}_hi`, hi]]));
+    const merged = mergeBuckets([{ b: 0, n: 12, ...q(1, 5) }, { b: 1, n: 3, ...q(2, 3) }], [{ b: 1, n: 4, ...q(0, 9) }, { b: 2, n: 1, ...q(7, 7) }]);
+    expect(merged.map((r) => [r.b, r.n, r['poaWm2_lo'], r['poaWm2_hi']])).toEqual([[0, 12, 1, 5], [1, 7, 0, 9], [2, 1, 7, 7]]);
   });
 });
