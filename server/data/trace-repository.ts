@@ -62,8 +62,6 @@ export interface EventMarkRow {
 
 /** Reads traces: min/max per time bucket computed by MariaDB, raw rows in pages for export, events and alarms. */
 export class TraceRepository {
-  private alarmsTable = false;
-
   constructor(private readonly db: Db) {}
 
   /**
@@ -134,25 +132,14 @@ export class TraceRepository {
       .select('ts', 'kind', 'body');
   }
 
-  /**
-   * Alarms of the unit raised in the range, or null when there is no alarm table yet. Reads only columns every alarm
-   * record is expected to have (`unit_id`, `raised_at` or `opened_at`, `kind`/`type`, `severity`, `state`).
-   */
-  async alarms(unitId: number, from: Date, to: Date, limit = 500): Promise<Record<string, unknown>[] | null> {
-    // Remember only a table that exists: the alarm service may add it while the server runs.
-    if (!this.alarmsTable) {
-      const exists = await this.db.schema.hasTable('alarms').catch(() => false);
-      if (!exists) return null;
-      this.alarmsTable = true;
-    }
-    try {
-      const cols = await this.db('alarms').columnInfo();
-      const at = ['raised_at', 'opened_at', 'started_at', 'created_at'].find((c) => c in cols);
-      if (!at || !('unit_id' in cols)) return null;
-      return await this.db('alarms').where('unit_id', unitId).andWhere(at, '>=', from).andWhere(at, '<', to).orderBy(at).limit(limit)
-        .select(this.db.raw(`\`${at}\` AS at_ts`), '*');
-    } catch {
-      return null;
-    }
+  /** Alarms of the unit raised in the range, oldest first. */
+  alarms(unitId: number, from: Date, to: Date, limit = 500): Promise<{ raised_at: Date; kind: string; severity: string; message: string }[]> {
+    return this.db('alarms')
+      .where('unit_id', unitId)
+      .andWhere('raised_at', '>=', from)
+      .andWhere('raised_at', '<', to)
+      .orderBy('raised_at')
+      .limit(limit)
+      .select('raised_at', 'kind', 'severity', 'message');
   }
 }

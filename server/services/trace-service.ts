@@ -127,7 +127,7 @@ export class TraceService {
       rows: total,
       source,
       events: events.map((e) => ({ at: e.ts.toISOString(), kind: e.kind, text: eventText(e.kind, parseBody(e.body)) })),
-      alarms: alarms === null ? null : alarms.map(alarmMark),
+      alarms: alarms.map(alarmMark),
       modelledBest,
     };
   }
@@ -185,12 +185,8 @@ function eventText(kind: string, b: Record<string, unknown>): string {
   return parts.join(' · ');
 }
 
-function alarmMark(a: Record<string, unknown>): TraceMark {
-  const at = a['at_ts'] instanceof Date ? (a['at_ts'] as Date).toISOString() : new Date(String(a['at_ts'])).toISOString();
-  const kind = String(a['kind'] ?? a['type'] ?? a['code'] ?? 'alarm');
-  const severity = a['severity'] !== undefined ? ` (${String(a['severity'])})` : '';
-  const title = typeof a['title'] === 'string' ? a['title'] : typeof a['message'] === 'string' ? a['message'] : kind.replace(/-/g, ' ');
-  return { at, kind, text: `${title}${severity}` };
+function alarmMark(a: { raised_at: Date; kind: string; severity: string; message: string }): TraceMark {
+  return { at: a.raised_at.toISOString(), kind: a.kind, text: `${a.message} (${a.severity})` };
 }
 
 /** Merges bucket rows of the same index from two sources: smallest minimum, largest maximum, samples added. */

@@ -29,6 +29,9 @@ beforeAll(async () => {
   for (let i = 0; i < rows.length; i += 500) await stack.db('telemetry').insert(rows.slice(i, i + 500));
   // Rows written directly skip the ingest, so build their 1-minute rollup the way the rollup worker does.
   await new TelemetryRepository(stack.db).rollupMinuteRange([unitId], new Date(T0), new Date(T0 + ROWS * 5000));
+  const siteId = (await stack.db('units').where({ id: unitId }).first('site_id')).site_id;
+  const at = new Date(T0 + 1_200_000);
+  await stack.db('alarms').insert({ unit_id: unitId, site_id: siteId, kind: 'trap', severity: 'P3', state: 'active', message: 'Settled on a lesser peak', advice: 'Scan and relocate.', evidence: '{}', first_seen_at: at, raised_at: at, last_seen_at: at });
   await stack.db('unit_events').insert([
     { unit_id: unitId, ts: new Date(T0 + 600_000), kind: 'mode-change', body: JSON.stringify({ v: 1, kind: 'mode-change', mode: 'scanning' }) },
     { unit_id: unitId, ts: new Date(T0 + 601_000), kind: 'scan-samples', body: JSON.stringify({ v: 1, samples: [[1, 2, 3]] }) },
@@ -66,6 +69,7 @@ describe('downsampled traces', () => {
     expect(body.series.cmdAzimuthDeg.min[7]).toBe(181);
     expect(body.events.map((e) => e.kind)).toEqual(['mode-change']);
     expect(body.events[0]!.text).toContain('scanning');
+    expect(body.alarms).toEqual([{ at: new Date(T0 + 1_200_000).toISOString(), kind: 'trap', text: 'Settled on a lesser peak (P3)' }]);
     expect(body.modelledBest.t.length).toBeGreaterThan(0);
     expect(body.modelledBest.wm2.every((w) => w > 100)).toBe(true);
   });
