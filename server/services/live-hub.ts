@@ -1,3 +1,4 @@
+import type { AlarmLiveItem } from '../../shared/contracts/alarms';
 import type { CommandView, LiveClientMessage, LiveServerMessage, UnitLiveState } from '../../shared/contracts/live';
 import type { Telemetry, UnitStatus } from '../../shared/contracts/wire';
 import type { Caller } from './caller';
@@ -81,7 +82,7 @@ export class LiveHub {
     for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'command', command });
   }
 
-  publishAlarm(unitId: number, alarm: unknown): void {
+  publishAlarm(unitId: number, alarm: AlarmLiveItem): void {
     const unit = this.units.byUnitId(unitId);
     if (!unit) return;
     for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'alarm', alarm });

@@ -1,3 +1,4 @@
+import type { AlarmLiveItem } from './alarms';
 import type { CommandKind, UnitConfig, UnitMode } from './wire';
 
 /** The latest known state of a unit, as pushed to dashboards (at most once a second per unit). */
@@ -60,5 +61,6 @@ export type LiveServerMessage =
   /** Changed units since the last message, each at most once a second. */
   | { type: 'units'; units: UnitLiveState[] }
   | { type: 'command'; command: CommandView }
-  | { type: 'alarm'; alarm: unknown }
+  /** An alarm raised, updated, cleared or acknowledged, or a wind-stow event. */
+  | { type: 'alarm'; alarm: AlarmLiveItem }
   | { type: 'error'; code: string; message: string };
