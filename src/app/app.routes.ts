@@ -37,6 +37,13 @@ export const routes: Routes = [
         loadComponent: () => import('./fleet/fleet-board').then((m) => m.FleetBoard),
       },
       {
+        path: 'alarms',
+        title: 'Alarms · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/alarms') },
+        loadComponent: () => import('./alarms/alarm-board').then((m) => m.AlarmBoard),
+      },
+      {
         path: 'units/:id',
         title: 'Unit · Brightward',
         canActivate: [roleGuard],

@@ -19,7 +19,8 @@ import type { UnitLiveState } from '../../../shared/contracts/live';
 import { SiteApi } from '../sites/site-api';
 import { UnitApi } from '../sites/unit-api';
 import { toApiProblem } from '../ui/api-error';
-import { AlarmApi, alarmKindLabel, toAlarmView, type AlarmView } from '../live/alarm-api';
+import { AlarmApi, toAlarmView, type AlarmView } from '../live/alarm-api';
+import { alarmKindLabel, severityLook, upsertAlarm } from '../live/alarm-look';
 import { FleetApi } from '../live/fleet-api';
 import { LinkBadge } from '../live/link-badge';
 import { LiveConnection } from '../live/live-connection';
@@ -83,7 +84,7 @@ export class FleetBoard {
 
   protected readonly toneChips: { tone: Tone | 'alarm'; label: string; icon: string }[] = [
     { tone: 'problem', label: 'Needs attention', icon: 'error' },
-    { tone: 'alarm', label: 'With alarms', icon: 'notifications_active' },
+    { tone: 'alarm', label: 'With open alarms', icon: 'notifications_active' },
     { tone: 'caution', label: 'Held or stowed', icon: 'front_hand' },
     { tone: 'busy', label: 'Moving', icon: 'trending_up' },
     { tone: 'good', label: 'Settled', icon: 'check_circle' },
@@ -95,6 +96,7 @@ export class FleetBoard {
   protected readonly ago = ago;
   protected readonly withUnit = withUnit;
   protected readonly alarmKindLabel = alarmKindLabel;
+  protected readonly severityLook = severityLook;
 
   constructor() {
     const destroyRef = inject(DestroyRef);
@@ -105,7 +107,7 @@ export class FleetBoard {
       else if (msg.type === 'units') this.states.set(mergeStates(this.states(), msg.units));
       else if (msg.type === 'alarm') {
         const a = toAlarmView(msg.alarm);
-        if (a) this.alarms.set([...this.alarms().filter((x) => x.id !== a.id), a]);
+        if (a) this.alarms.set(upsertAlarm(this.alarms(), a));
       }
     });
     // Ages ("12 s ago") tick; modelled bests refresh every 5 minutes.
@@ -169,7 +171,7 @@ export class FleetBoard {
   }
 
   protected alarmTitle(r: FleetRow): string {
-    return r.alarms.map((a) => `${a.severity} ${alarmKindLabel(a.kind)}: ${a.message}`).join('\n');
+    return r.alarms.map((a) => `${a.severity} ${severityLook(a.severity).label} · ${alarmKindLabel(a.kind)}${a.acknowledgedAt ? ' (acknowledged)' : ''}: ${a.message}`).join('\n');
   }
 
   protected trackRow = (_: number, r: FleetRow) => r.unit.id;

@@ -12,7 +12,9 @@ const live = (unitId: number, over: Partial<UnitLiveState> = {}): UnitLiveState 
   tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 30, cmdAzimuthDeg: 180, tiltDiffWm2: 0, azimuthDiffWm2: 0, moduleTempC: 30, onHold: false, ...over,
 });
 const alarm = (unitId: number, severity: string, state = 'active'): AlarmView =>
-  ({ id: `${unitId}-${severity}`, unitId, siteId: 1, serial: null, kind: 'trap', severity, state, acknowledged: false, message: 'm', raisedAt: null });
+  ({ id: unitId * 10 + Number(severity.slice(1)), unitId, siteId: 1, serial: null, kind: 'trap', severity, state, message: 'm', advice: '', evidence: {},
+     firstSeenAt: '2026-06-21T09:00:00Z', raisedAt: '2026-06-21T09:10:00Z', lastSeenAt: '2026-06-21T10:00:00Z', clearedAt: null, clearReason: null,
+     acknowledgedAt: null, acknowledgedBy: null });
 
 const sites = new Map([[1, site(1, 'Harbour Roof')], [2, site(2, 'Depot Yard')]]);
 const units = [unit(1, 'A-1', 1), unit(2, 'A-2', 1), unit(3, 'B-1', 2), unit(4, 'B-2', 2)];
@@ -56,6 +58,12 @@ describe('fleet board rows', () => {
     expect(sortRows(rows, 'power', 'desc').map((r) => r.unit.serial)).toEqual(['B-1', 'A-2', 'A-1', 'B-2']);
     expect(sortRows(rows, 'power', 'asc').map((r) => r.unit.serial)).toEqual(['A-1', 'A-2', 'B-1', 'B-2']);
     expect(sortRows(rows, 'alarms', 'desc')[0]!.unit.serial).toBe('A-1');
+  });
+
+  it('sorts by most urgent open alarm, P1 first, units without alarms last in both directions', () => {
+    const r = fleetRows(units, sites, states, bests, [alarm(1, 'P3'), alarm(2, 'P1'), alarm(4, 'P4'), alarm(3, 'P1', 'cleared')]);
+    expect(sortRows(r, 'alarms', 'asc').map((x) => `${x.unit.serial}:${x.worstSeverity}`)).toEqual(['A-2:P1', 'A-1:P3', 'B-2:P4', 'B-1:null']);
+    expect(sortRows(r, 'alarms', 'desc').map((x) => x.unit.serial)).toEqual(['B-2', 'A-1', 'A-2', 'B-1']);
   });
 
   it('counts units per state for the summary and applies live updates without losing others', () => {

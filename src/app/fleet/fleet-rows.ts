@@ -1,6 +1,7 @@
 import type { Site, Unit } from '../../../shared/contracts/api';
 import type { UnitLiveState } from '../../../shared/contracts/live';
 import type { AlarmView } from '../live/alarm-api';
+import { severityLook, sortAlarms } from '../live/alarm-look';
 import { shortfallPercent, statusLook, statusRank, type StatusLook, type Tone } from '../live/unit-status';
 
 /** One line of the fleet board. */
@@ -40,7 +41,7 @@ export function fleetRows(
   }
   return units.map((unit) => {
     const state = live.get(unit.id);
-    const unitAlarms = (byUnit.get(unit.id) ?? []).sort((a, b) => a.severity.localeCompare(b.severity));
+    const unitAlarms = sortAlarms(byUnit.get(unit.id) ?? []);
     return {
       unit,
       site: sites.get(unit.siteId),
@@ -88,8 +89,9 @@ export function sortRows(rows: readonly FleetRow[], key: FleetSortKey, direction
       case 'shortfall':
         return missingLast(a.shortfall, b.shortfall, dir);
       case 'alarms': {
-        const sev = (r: FleetRow) => (r.worstSeverity ? 10 - Number(r.worstSeverity.slice(1)) : 0);
-        return (sev(a) - sev(b)) * dir || (a.alarms.length - b.alarms.length) * dir;
+        // Ascending = most urgent first (P1 before P4); units without alarms always last.
+        const rank = (r: FleetRow) => (r.worstSeverity ? severityLook(r.worstSeverity).rank : null);
+        return missingLast(rank(a), rank(b), dir) || (b.alarms.length - a.alarms.length) * dir;
       }
       case 'lastReport':
         return missingLast(a.live?.lastReportAt ? Date.parse(a.live.lastReportAt) : null, b.live?.lastReportAt ? Date.parse(b.live.lastReportAt) : null, dir);

@@ -2,11 +2,11 @@ import { ROLES, type Role } from '../../../shared/contracts/api';
 import { NAV_ITEMS, navItemsFor, rolesFor } from './nav-items';
 
 const EXPECTED: Record<Role, string[]> = {
-  admin: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
-  engineer: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape'],
-  technician: ['Fleet board', 'Sites', 'Trace explorer'],
-  crew: ['Fleet board', 'Sites'],
-  owner: ['Sites'],
+  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
+  engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
+  technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
+  crew: ['Fleet board', 'Alarms', 'Sites'],
+  owner: ['Alarms', 'Sites'],
 };
 
 describe('navigation per role', () => {

@@ -14,6 +14,7 @@ export interface NavItem {
 /** The one table of pages in the navigation and who may use each. */
 export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/fleet', label: 'Fleet board', icon: 'dashboard', group: 'Fleet', roles: ['admin', 'engineer', 'technician', 'crew'] },
+  { path: '/alarms', label: 'Alarms', icon: 'notifications_active', group: 'Fleet', roles: ROLES },
   { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: ROLES },
   { path: '/traces', label: 'Trace explorer', icon: 'query_stats', group: 'Fleet', roles: ['admin', 'engineer', 'technician'] },
   { path: '/landscape', label: 'Landscape', icon: 'landscape', group: 'Fleet', roles: ['admin', 'engineer'] },

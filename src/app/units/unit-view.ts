@@ -1,4 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, DestroyRef, effect, inject, input, signal, untracked } from '@angular/core';
+import { DecimalPipe, LowerCasePipe } from '@angular/common';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -19,7 +20,11 @@ import { SiteApi } from '../sites/site-api';
 import { UnitApi } from '../sites/unit-api';
 import { toApiProblem } from '../ui/api-error';
 import { Notify } from '../ui/notify';
-import { AlarmApi, alarmKindLabel, toAlarmView, type AlarmView } from '../live/alarm-api';
+import type { ScanResult } from '../../../shared/contracts/alarms';
+import { AlarmCard } from '../alarms/alarm-card';
+import { ACK_ROLES } from '../alarms/alarm-board';
+import { AlarmApi, toAlarmView, type AlarmView } from '../live/alarm-api';
+import { alarmKindLabel, severityLook, sortAlarms, trapFinding, upsertAlarm } from '../live/alarm-look';
 import { FleetApi } from '../live/fleet-api';
 import { LinkBadge } from '../live/link-badge';
 import { LiveConnection } from '../live/live-connection';
@@ -29,6 +34,7 @@ import { ColourScheme } from '../shell/colour-scheme';
 import { CommandConfirm, type CommandConfirmData } from './command-confirm';
 import { commandChoices, commandParams, describeCommand, HOLD_CAUTION, MOTION_CAUTION, STATUS_LOOK, upsertCommand, type CommandChoice } from './commands';
 import { appendLive, lastHourOptions, pointFromRow, type HourPoint } from './last-hour';
+import { scanFindings, scanHeatmapOptions } from './scan-chart';
 import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
 
 /** One unit, live: values, last hour, where it points against the modelled sky, commands, alarms and history. */
@@ -36,7 +42,7 @@ import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
   selector: 'bw-unit-view',
   imports: [
     FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatTooltipModule,
-    RouterLink, NgxEchartsDirective, LinkBadge,
+    RouterLink, NgxEchartsDirective, LinkBadge, AlarmCard, DecimalPipe, LowerCasePipe,
   ],
   templateUrl: './unit-view.html',
   styleUrl: './unit-view.scss',
@@ -75,6 +81,33 @@ export class UnitView {
   protected readonly now = signal(Date.now());
   protected readonly gotoTilt = signal<number | null>(null);
   protected readonly gotoAzimuth = signal<number | null>(null);
+  protected readonly acking = signal<number | null>(null);
+  /** Scan and relocate: the scan command sent from here, and the latest scan result. */
+  protected readonly scanCommand = signal<CommandView | null>(null);
+  protected readonly scan = signal<ScanResult | null>(null);
+  protected readonly scanLoading = signal(false);
+  protected readonly scanProblem = signal<string | null>(null);
+
+  protected readonly sortedAlarms = computed(() => sortAlarms(this.alarms()).slice(0, 20));
+  protected readonly openAlarmCount = computed(() => this.alarms().filter((a) => a.state !== 'cleared').length);
+  protected readonly canAcknowledge = computed(() => ACK_ROLES.includes(this.session.role() ?? ''));
+  /** The most urgent open trap alarm's finding: where the modelled best is and what is lost. */
+  protected readonly trap = computed(() => {
+    const a = sortAlarms(this.alarms().filter((x) => x.kind === 'trap' && x.state !== 'cleared'))[0];
+    const f = a ? trapFinding(a) : null;
+    return a && f ? { alarm: a, finding: f, look: severityLook(a.severity) } : null;
+  });
+  protected readonly scanChoice = computed(() => this.choices().find((c) => c.kind === 'scan')!);
+  protected readonly gotoChoice = computed(() => this.choices().find((c) => c.kind === 'goto')!);
+  protected readonly scanFacts = computed(() => {
+    const s = this.scan();
+    return s ? scanFindings(s) : null;
+  });
+  protected readonly scanOptions = computed(() => {
+    void this.scheme.current();
+    const s = this.scan();
+    return s ? scanHeatmapOptions(s, readPalette()) : null;
+  });
 
   protected readonly look = computed(() => statusLook(this.state()));
   protected readonly onHold = computed(() => Boolean(this.state()?.onHold || this.state()?.mode === 'held'));
@@ -113,6 +146,7 @@ export class UnitView {
   protected readonly statusLabel = STATUS_LOOK;
   protected readonly commandParams = commandParams;
   protected readonly alarmKindLabel = alarmKindLabel;
+  protected readonly canSendCommands = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
 
   constructor() {
     effect(() => {
@@ -130,9 +164,13 @@ export class UnitView {
         }
       } else if (msg.type === 'command' && msg.command.unitId === u.id) {
         this.commands.set(upsertCommand(this.commands(), msg.command));
+        if (msg.command.id === this.scanCommand()?.id) {
+          this.scanCommand.set(msg.command);
+          if (msg.command.status === 'completed') this.loadScan(msg.command.id);
+        }
       } else if (msg.type === 'alarm') {
         const a = toAlarmView(msg.alarm);
-        if (a && a.unitId === u.id) this.alarms.set([...this.alarms().filter((x) => x.id !== a.id), a]);
+        if (a && a.unitId === u.id) this.alarms.set(upsertAlarm(this.alarms(), a));
       }
     });
     interval(5000).pipe(takeUntilDestroyed()).subscribe(() => this.now.set(Date.now()));
@@ -162,6 +200,7 @@ export class UnitView {
           if (r.available) this.alarms.set(r.alarms);
           else this.alarmsUnavailable.set(r.reason);
         });
+        this.loadScan();
       },
       error: (e: unknown) => {
         const p = toApiProblem(e);
@@ -216,22 +255,70 @@ export class UnitView {
     return t !== null && a !== null && t >= 0 && t <= 90 && a >= 0 && a <= 360;
   }
 
-  protected send(choice: CommandChoice): void {
+  /** Loads the unit's latest scan (or one command's); 404 means there is none yet. */
+  protected loadScan(commandId?: string): void {
+    const u = this.unit();
+    if (!u) return;
+    this.scanLoading.set(true);
+    this.scanProblem.set(null);
+    this.alarmApi.latestScan(u.id, commandId).subscribe({
+      next: (s) => {
+        this.scan.set(s);
+        this.scanLoading.set(false);
+      },
+      error: (e: unknown) => {
+        const p = toApiProblem(e);
+        this.scanLoading.set(false);
+        this.scanProblem.set(p.status === 404 ? (commandId ? 'The unit has not reported samples for this scan yet.' : 'This unit has no scan yet. Send one first.') : `The scan could not be loaded. ${p.message}`);
+      },
+    });
+  }
+
+  protected acknowledge(a: AlarmView): void {
+    this.acking.set(a.id);
+    this.alarmApi.acknowledge(a.id).subscribe({
+      next: (v) => {
+        this.acking.set(null);
+        this.alarms.set(upsertAlarm(this.alarms(), v));
+        this.notify.done(`Acknowledged: ${alarmKindLabel(v.kind)}.`);
+      },
+      error: (e: unknown) => {
+        this.acking.set(null);
+        this.notify.problem(`The alarm was not acknowledged. ${toApiProblem(e).message}`);
+      },
+    });
+  }
+
+  /** Puts the trap alarm's modelled best into the go-to fields. */
+  protected useAsTarget(tiltDeg: number, azimuthDeg: number): void {
+    this.gotoTilt.set(Math.round(tiltDeg * 10) / 10);
+    this.gotoAzimuth.set(Math.round(azimuthDeg * 10) / 10);
+    this.notify.done(`Go-to target set to tilt ${this.gotoTilt()}°, azimuth ${this.gotoAzimuth()}°. Nothing is sent until you confirm.`);
+  }
+
+  /** Sends the scan's ready go-to through the confirmation. */
+  protected gotoBrightest(): void {
+    const s = this.scan();
+    if (!s) return;
+    this.send(this.gotoChoice(), { tiltDeg: s.goto.tiltDeg, azimuthDeg: s.goto.azimuthDeg }, 'Go to the brightest orientation');
+  }
+
+  protected send(choice: CommandChoice, explicitTarget?: { tiltDeg: number; azimuthDeg: number }, label = choice.label): void {
     const u = this.unit();
     if (!u || choice.disabledReason) return;
-    if (choice.kind === 'goto' && !this.gotoValid()) {
+    if (choice.kind === 'goto' && !explicitTarget && !this.gotoValid()) {
       this.notify.problem('Enter a tilt between 0 and 90° and an azimuth between 0 and 360°.');
       return;
     }
-    const target = choice.kind === 'goto' ? { tiltDeg: this.gotoTilt()!, azimuthDeg: this.gotoAzimuth()! } : undefined;
+    const target = choice.kind === 'goto' ? (explicitTarget ?? { tiltDeg: this.gotoTilt()!, azimuthDeg: this.gotoAzimuth()! }) : undefined;
     const data: CommandConfirmData = {
       serial: u.serial,
       siteName: this.site()?.name ?? u.siteName,
-      title: `${choice.label} — ${u.serial}?`,
+      title: `${label} — ${u.serial}?`,
       description: describeCommand(u.serial, choice.kind, target),
       caution: choice.motion ? MOTION_CAUTION : HOLD_CAUTION,
       motion: choice.motion,
-      confirmLabel: choice.label,
+      confirmLabel: label,
       confirmIcon: choice.icon,
     };
     this.dialog
@@ -244,11 +331,16 @@ export class UnitView {
           next: (c) => {
             this.sending.set(null);
             this.commands.set(upsertCommand(this.commands(), c));
-            this.notify.done(`${choice.label}: sent to ${u.serial}.`);
+            if (c.kind === 'scan') {
+              this.scanCommand.set(c);
+              this.scanProblem.set(null);
+            }
+            this.notify.done(`${label}: sent to ${u.serial}.`);
           },
           error: (e: unknown) => {
             this.sending.set(null);
-            this.notify.problem(`${choice.label} was not sent. ${toApiProblem(e).message}`);
+            const p = toApiProblem(e);
+            this.notify.problem(`${label} was not sent. ${p.status === 409 ? 'The unit is on maintenance hold: motion is refused until the hold is released.' : p.message}`);
           },
         });
       });
