@@ -24,7 +24,7 @@ describe('Shell', () => {
   it('lists only the pages a technician may use, with the name and role', async () => {
     const { element } = await renderAs('technician');
     const labels = [...element.querySelectorAll('[data-testid="main-nav"] a [matListItemTitle]')].map((s) => s.textContent!.trim());
-    expect(labels).toEqual(['Fleet board', 'Sites', 'Trace explorer']);
+    expect(labels).toEqual(['Fleet board', 'Alarms', 'Sites', 'Trace explorer']);
     expect(element.querySelector('[data-testid="role-chip"]')!.textContent).toContain('O&M technician');
     expect(element.querySelector('[data-testid="user-menu"]')!.textContent).toContain('Mara Okonjo');
     expect(element.textContent).not.toContain('Administration');
@@ -35,7 +35,7 @@ describe('Shell', () => {
     const headings = [...element.querySelectorAll('.nav-heading')].map((h) => h.textContent!.trim());
     expect(headings).toEqual(['Fleet', 'Administration']);
     const hrefs = [...element.querySelectorAll('[data-testid="main-nav"] a')].map((a) => a.getAttribute('href'));
-    expect(hrefs).toEqual(['/fleet', '/sites', '/traces', '/landscape', '/admin/people', '/admin/owners', '/admin/sites', '/admin/units']);
+    expect(hrefs).toEqual(['/fleet', '/alarms', '/sites', '/traces', '/landscape', '/admin/people', '/admin/owners', '/admin/sites', '/admin/units']);
   });
 
   it('signs out through the server and goes to sign-in', async () => {

@@ -95,9 +95,11 @@ describe('unit view values', () => {
     expect(h.find(([az]) => az === 226)![1]).toBeCloseTo(20, 0);
   });
 
-  it('reads alarm records tolerantly and ignores what is not an alarm', () => {
-    expect(toAlarmView({ id: 5, kind: 'trap', severity: 'P2', unitId: 3, raisedMs: 0, message: 'x' })).toMatchObject({ id: '5', kind: 'trap', severity: 'P2', raisedAt: '1970-01-01T00:00:00.000Z' });
-    expect(toAlarmView({ hello: 1 })).toBeNull();
+  it('takes alarms from live messages and leaves wind-stow events out', () => {
+    const alarm = { id: 5, kind: 'trap', severity: 'P2', state: 'active', unitId: 3, serial: 'S', siteId: 1, message: 'x', advice: '', evidence: {},
+      firstSeenAt: '2026-01-01T00:00:00Z', raisedAt: '2026-01-01T00:10:00Z', lastSeenAt: '2026-01-01T00:20:00Z', clearedAt: null, clearReason: null, acknowledgedAt: null, acknowledgedBy: null };
+    expect(toAlarmView(alarm)).toBe(alarm);
+    expect(toAlarmView({ kind: 'wind-stow', severity: 'P4', state: 'event', serial: 'S', siteId: 1, at: '2026-01-01T00:00:00Z', event: 'stowed', message: 'm' })).toBeNull();
     expect(toAlarmView(null)).toBeNull();
   });
 });
