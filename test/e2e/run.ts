@@ -54,11 +54,11 @@ const DEMO_USERS: DemoUser[] = [
 ];
 
 const NAV: Record<RoleName, string[]> = {
-  admin: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
-  engineer: ['Fleet board', 'Sites', 'Trace explorer', 'Landscape'],
-  technician: ['Fleet board', 'Sites', 'Trace explorer'],
-  crew: ['Fleet board', 'Sites'],
-  owner: ['Sites'],
+  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
+  engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
+  technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
+  crew: ['Fleet board', 'Alarms', 'Sites'],
+  owner: ['Alarms', 'Sites'],
 };
 
 class CheckFailed extends Error {}
@@ -389,8 +389,92 @@ async function main(): Promise<number> {
       await signOut(page, base);
     });
 
+    // ---- Alarms: a trap alarm stored as the health service would, and a finished scan of the same unit ----
+    const alarmUnit = await unitIdBySerial(stack, 'QHL-2401');
+    const alarmSite = await siteIdByName(stack, 'Harbourside Library Roof');
+    const knex = stack.db as unknown as (table: string) => { insert(row: object): Promise<number[]>; where(c: object): { first(...cols: string[]): Promise<Record<string, unknown> | undefined> } };
+    const seen = Date.now() - 40 * 60_000;
+    const [alarmId] = await knex('alarms').insert({
+      unit_id: alarmUnit, site_id: alarmSite, kind: 'trap', severity: 'P2', state: 'active',
+      message: 'Settled at tilt 52°, azimuth 250° on 410 W/m² while the brightest orientation (tilt 30°, azimuth 178°) gets 860 W/m²: losing 450 W/m² (52.3 %).',
+      advice: 'Send a scan, then go to the brightest orientation it finds; raise the detector tilt from 6° to at least 14°.',
+      evidence: JSON.stringify({ readings: { poaWm2: 410, tiltDeg: 52, azimuthDeg: 250 }, model: { globalMax: { tiltDeg: 30, azimuthDeg: 178, wm2: 860 }, modelledHereWm2: 415, localMaxima: [{}, {}], minSinglePeakDetectorTiltDeg: 14 }, lossWm2: 450, lossPct: 52.3, detectorTiltDeg: 6 }),
+      first_seen_at: new Date(seen), raised_at: new Date(seen + 10 * 60_000), last_seen_at: new Date(Date.now() - 60_000),
+    });
+    const scanAt = Date.now() - 20 * 60_000;
+    const samples: [number, number, number][] = [];
+    for (let t = 0; t <= 80; t += 10) for (let a = 90; a <= 300; a += 15) {
+      const d1 = ((t - 30) / 25) ** 2 + ((a - 180) / 40) ** 2;
+      const d2 = ((t - 50) / 15) ** 2 + ((a - 255) / 25) ** 2;
+      samples.push([t, a, Math.round(120 + 740 * Math.exp(-d1) + 300 * Math.exp(-d2))]);
+    }
+    await knex('unit_events').insert({ unit_id: alarmUnit, ts: new Date(scanAt), kind: 'scan-samples', body: JSON.stringify({ v: 1, ts: new Date(scanAt).toISOString(), kind: 'scan-samples', commandId: 'e2e-scan-1', samples }) });
+    await knex('unit_events').insert({ unit_id: alarmUnit, ts: new Date(scanAt + 120_000), kind: 'scan-complete', body: JSON.stringify({ v: 1, ts: new Date(scanAt + 120_000).toISOString(), kind: 'scan-complete', commandId: 'e2e-scan-1' }) });
+
+    await check('a technician sees the alarm on the fleet board and the alarms screen, and acknowledges it', async () => {
+      await signIn(page, base, 'tech1@saltmarsh.example');
+      await page.waitForURL(`${base}/fleet`);
+      const badge = page.getByTestId('alarm-badge-QHL-2401');
+      await badge.waitFor();
+      expectTrue(((await badge.textContent()) ?? '').includes('P2 Stuck on a lesser peak'), 'fleet badge names severity and kind in words');
+      await page.getByRole('button', { name: /With open alarms/ }).click();
+      await page.locator('tr[data-unit]').nth(1).waitFor({ state: 'detached', timeout: 3000 }).catch(() => undefined);
+      expectEqual(await page.locator('tr[data-unit]').count(), 1, 'the open-alarms filter leaves the one unit');
+      await page.getByRole('link', { name: 'Alarms' }).first().click();
+      await page.waitForURL(`${base}/alarms`);
+      const card = page.getByTestId(`alarm-${alarmId}`);
+      await card.waitFor();
+      expectTrue(((await page.getByTestId(`alarm-sev-${alarmId}`).textContent()) ?? '').includes('P2 High'), 'severity shown by code and word');
+      await card.getByText('Modelled brightest').waitFor();
+      await card.getByText('450 W/m² (52.3 %)').waitFor();
+      expectTrue(((await page.getByTestId(`alarm-traces-${alarmId}`).getAttribute('href')) ?? '').includes(`/traces?units=${alarmUnit}`), 'links to the trace explorer at the alarm time');
+      await page.screenshot({ path: join(OUTPUT, 'alarms.png'), fullPage: true, animations: 'disabled' });
+      await page.getByTestId(`ack-${alarmId}`).click();
+      await page.getByTestId(`alarm-status-${alarmId}`).filter({ hasText: 'Acknowledged by Mara Okonjo' }).waitFor({ timeout: 3000 });
+      const row = await knex('alarms').where({ id: alarmId }).first('acknowledged_at', 'acknowledged_by');
+      expectTrue(row?.['acknowledged_at'] != null && row?.['acknowledged_by'] != null, 'acknowledgement stored with who and when');
+      await page.screenshot({ path: join(OUTPUT, 'alarms-acknowledged.png'), animations: 'disabled' });
+    });
+
+    await check('the unit view shows the trap finding and the scan result, and going to the brightest orientation asks for confirmation', async () => {
+      await page.goto(`${base}/units/${alarmUnit}`);
+      await page.getByTestId('trap-finding').filter({ hasText: 'tilt 30°, azimuth 178°' }).waitFor();
+      const facts = page.getByTestId('scan-facts');
+      await facts.waitFor();
+      expectTrue(((await facts.textContent()) ?? '').includes('Brightest measured'), 'scan result states the measured best');
+      await page.getByTestId('goto-brightest').click();
+      const dialog = page.getByRole('dialog');
+      await dialog.getByText('will turn its panel to tilt').waitFor();
+      expectTrue(((await dialog.getByTestId('command-caution').textContent()) ?? '').includes('not a lockout'), 'goto shows the caution');
+      expectTrue(await dialog.getByTestId('confirm').isDisabled(), 'goto needs the people-clear check');
+      await dialog.getByRole('button', { name: 'Cancel' }).click();
+      await dialog.waitFor({ state: 'detached' });
+      await page.getByTestId('scan-panel').scrollIntoViewIfNeeded();
+      await page.waitForTimeout(600);
+      await page.screenshot({ path: join(OUTPUT, 'unit-alarm.png'), fullPage: true, animations: 'disabled' });
+      await signOut(page, base);
+    });
+
+    await check('owners see their own sites’ alarms read-only, and not other owners’', async () => {
+      await signIn(page, base, 'owner@quillmoor.example');
+      await page.goto(`${base}/alarms`);
+      await page.getByTestId(`alarm-${alarmId}`).waitFor();
+      expectEqual(await page.getByTestId(`ack-${alarmId}`).count(), 0, 'no acknowledge button for owners');
+      await signOut(page, base);
+      await signIn(page, base, 'owner@fenwicklane.example');
+      await page.goto(`${base}/alarms`);
+      await page.getByTestId('alarms-empty').waitFor();
+      expectEqual(await page.getByTestId(`alarm-${alarmId}`).count(), 0, 'another owner does not see it');
+      await page.setViewportSize({ width: 360, height: 740 });
+      await page.emulateMedia({ colorScheme: 'dark' });
+      await page.screenshot({ path: join(OUTPUT, 'alarms-empty-phone-dark.png'), animations: 'disabled' });
+      await page.setViewportSize({ width: 1280, height: 800 });
+      await page.emulateMedia({ colorScheme: 'light' });
+      await signOut(page, base);
+    });
+
     const dayStart = Date.UTC(2026, 5, 20);
-    const roofUnit = await unitIdBySerial(stack, 'QHL-2401');
+    const roofUnit = alarmUnit;
     await insertDayOfTelemetry(stack.db, roofUnit, dayStart);
     await check('an engineer opens a day in the trace explorer and zooms in, and finer data loads', async () => {
       await signIn(page, base, 'engineer@saltmarsh.example');
