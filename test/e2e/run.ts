@@ -425,8 +425,8 @@ async function main(): Promise<number> {
       const card = page.getByTestId(`alarm-${alarmId}`);
       await card.waitFor();
       expectTrue(((await page.getByTestId(`alarm-sev-${alarmId}`).textContent()) ?? '').includes('P2 High'), 'severity shown by code and word');
-      await card.getByText('Modelled brightest').waitFor();
-      await card.getByText('450 W/m² (52.3 %)').waitFor();
+      await card.locator('dt', { hasText: 'Modelled brightest' }).waitFor();
+      await card.locator('dd', { hasText: '450 W/m² (52.3 %)' }).waitFor();
       expectTrue(((await page.getByTestId(`alarm-traces-${alarmId}`).getAttribute('href')) ?? '').includes(`/traces?units=${alarmUnit}`), 'links to the trace explorer at the alarm time');
       await page.screenshot({ path: join(OUTPUT, 'alarms.png'), fullPage: true, animations: 'disabled' });
       await page.getByTestId(`ack-${alarmId}`).click();
