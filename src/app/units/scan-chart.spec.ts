@@ -39,6 +39,9 @@ describe('scan result', () => {
     expect(scanFindings(scan({ expectedGainWm2: -5, expectedGainPct: -1 }))).toMatchObject({ gain: 'No gain expected: it already had 512 W/m² before the scan.', worthMoving: false });
     expect(scanFindings(scan({ beforeWm2: null, expectedGainWm2: null, expectedGainPct: null })).gain).toMatch(/unknown/);
     expect(scanFindings(scan({ model: null })).comparison).toBeNull();
+    const night = scan({ model: { globalMax: { tiltDeg: 0, azimuthDeg: 0, wm2: 0 }, angleApartDeg: 30, measuredVsModelPct: 0 } });
+    expect(scanFindings(night).comparison).toMatch(/almost no light/);
+    expect((scanHeatmapOptions(night, palette) as { series: { name: string }[] }).series.map((x) => x.name)).not.toContain('Modelled best');
   });
 
   it('marks the measured best, the lesser peak and the modelled best by different shapes', () => {

@@ -11,6 +11,13 @@ function nearest(values: readonly number[], v: number): number {
   return best;
 }
 
+/** Below this the model's best is too dim to compare with (night) [W/m²]. */
+const MODEL_MIN_WM2 = 50;
+
+function usableModel(scan: ScanResult): ScanResult['model'] {
+  return scan.model && scan.model.globalMax.wm2 >= MODEL_MIN_WM2 ? scan.model : null;
+}
+
 /** The heat map cells of a scan: [azimuth index, tilt index, W/m²], cells without a sample left out. */
 export function scanCells(scan: ScanResult): [number, number, number][] {
   const cells: [number, number, number][] = [];
@@ -23,8 +30,10 @@ export function scanFindings(scan: ScanResult): { measuredBest: string; comparis
   const g = scan.landscape.globalMax;
   const peaks = scan.landscape.localMaxima.length;
   const measuredBest = `Brightest measured: ${Math.round(g.wm2)} W/m² at tilt ${r1(g.tiltDeg)}°, azimuth ${r1(g.azimuthDeg)}° (${scan.landscape.samples} samples, ${peaks} ${peaks === 1 ? 'peak' : 'peaks'}).`;
-  const m = scan.model;
-  const comparison = m
+  const m = usableModel(scan);
+  const comparison = scan.model && !m
+    ? 'The model expects almost no light at this time (night, or lamps off), so there is nothing to compare with.'
+    : m
     ? `The model's brightest orientation (${Math.round(m.globalMax.wm2)} W/m² at tilt ${r1(m.globalMax.tiltDeg)}°, azimuth ${r1(m.globalMax.azimuthDeg)}°) is ${r1(m.angleApartDeg)}° from the measured one; measured is ${r1(m.measuredVsModelPct)} % of modelled.`
     : null;
   const gainWm2 = scan.expectedGainWm2;
@@ -52,7 +61,8 @@ export function scanHeatmapOptions(scan: ScanResult, palette: TonePalette): ECha
   series.push(mark('Brightest measured', 'pin', 26, palette.good, [{ ...l.globalMax, label: `best ${Math.round(l.globalMax.wm2)} W/m²` }]));
   const lesser = l.localMaxima.filter((m) => nearest(l.tiltsDeg, m.tiltDeg) !== nearest(l.tiltsDeg, l.globalMax.tiltDeg) || nearest(l.azimuthsDeg, m.azimuthDeg) !== nearest(l.azimuthsDeg, l.globalMax.azimuthDeg));
   if (lesser.length) series.push(mark('Lesser peak', 'diamond', 16, palette.caution, lesser.map((m) => ({ ...m, label: `${Math.round(m.wm2)} W/m²` }))));
-  if (scan.model) series.push(mark('Modelled best', 'circle', 14, palette.accent, [{ ...scan.model.globalMax, label: 'model' }]));
+  const model = usableModel(scan);
+  if (model) series.push(mark('Modelled best', 'circle', 14, palette.accent, [{ ...model.globalMax, label: 'model' }]));
   return {
     animation: false,
     legend: { top: 0, data: series.slice(1).map((s) => (s as { name: string }).name), textStyle: { color: palette.text } },
