@@ -233,7 +233,7 @@ async function main(): Promise<number> {
       await page.goto(`${base}/admin/sites`);
       await page.getByRole('table', { name: 'Sites' }).getByText('Harbourside Library Roof').waitFor();
       await page.getByTestId('add-site').click();
-      const dialog = page.getByRole('dialog');
+      const dialog = await openedDialog(page);
       await dialog.getByRole('heading', { name: 'Add a site' }).waitFor();
       // Out-of-range value first: the form must refuse it with the range in words.
       await dialog.getByTestId('latitudeDeg').fill('95');
@@ -259,7 +259,7 @@ async function main(): Promise<number> {
     await check('admin adding a person with a taken email sees the server’s message under that field', async () => {
       await page.goto(`${base}/admin/people`);
       await page.getByRole('button', { name: 'Add a person' }).click();
-      const dialog = page.getByRole('dialog');
+      const dialog = await openedDialog(page);
       await dialog.getByLabel('Email address').fill('crew1@saltmarsh.example');
       await dialog.getByLabel('Full name').fill('Second Ines');
       await dialog.getByLabel('First password').fill('long-enough-password');
@@ -276,7 +276,7 @@ async function main(): Promise<number> {
     await check('admin adds a unit and is shown its device secret once', async () => {
       await page.goto(`${base}/admin/units`);
       await page.getByRole('button', { name: 'Add a unit' }).click();
-      const dialog = page.getByRole('dialog');
+      const dialog = await openedDialog(page);
       const serial = `E2E-${Date.now() % 1000000}`;
       await dialog.getByLabel('Serial number').fill(serial);
       await dialog.getByRole('combobox', { name: 'Site' }).click();
@@ -363,7 +363,7 @@ async function main(): Promise<number> {
       await report({ dcPowerW: 287, mode: 'settled' });
       await page.getByTestId('live-power').filter({ hasText: '287 W' }).waitFor({ timeout: 3000 });
       await page.getByTestId('cmd-stow').click();
-      const dialog = page.getByRole('dialog');
+      const dialog = await openedDialog(page);
       await dialog.getByText(`${unitSerial} will drive to its stow position`).waitFor();
       const caution = (await dialog.getByTestId('command-caution').textContent()) ?? '';
       for (const words of ['pinch', 'stored mechanical energy', 'DC voltage', 'wind', 'not a lockout', 'Local codes and licensed practice']) {
@@ -443,7 +443,7 @@ async function main(): Promise<number> {
       await facts.waitFor();
       expectTrue(((await facts.textContent()) ?? '').includes('Brightest measured'), 'scan result states the measured best');
       await page.getByTestId('goto-brightest').click();
-      const dialog = page.getByRole('dialog');
+      const dialog = await openedDialog(page);
       await dialog.getByText('will turn its panel to tilt').waitFor();
       expectTrue(((await dialog.getByTestId('command-caution').textContent()) ?? '').includes('not a lockout'), 'goto shows the caution');
       expectTrue(await dialog.getByTestId('confirm').isDisabled(), 'goto needs the people-clear check');
@@ -560,6 +560,17 @@ async function main(): Promise<number> {
 
   console.log(`${passed} passed, ${failed} failed`);
   return failed === 0 ? 0 : 1;
+}
+
+/**
+ * The open dialog once its opening animation is over and it has moved focus inside: typing before that can land in
+ * whichever field the dialog focuses a moment later.
+ */
+async function openedDialog(page: Page) {
+  const dialog = page.getByRole('dialog');
+  await dialog.waitFor();
+  await page.waitForFunction(() => !!document.activeElement?.closest('mat-dialog-container') && !document.querySelector('.mdc-dialog--opening'));
+  return dialog;
 }
 
 async function signIn(page: Page, base: string, email: string): Promise<void> {
