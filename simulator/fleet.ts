@@ -69,6 +69,25 @@ export interface Fleet {
 
 /** A settled unit below this fraction of the best reachable irradiance, with nothing else wrong, counts as trapped. */
 export const TRAP_RATIO = 0.85;
+/** …while the best reachable orientation gets at least this [W/m²]: below it (dusk, dim lamps) a trap is not counted. */
+export const TRAP_MIN_BEST_WM2 = 150;
+
+/**
+ * Faults that change where a unit balances or whether it can move at all (a drive or sensor fault); a unit with one of
+ * these is not counted as trapped. Comms loss, soiling and hunting (a gain fault: once the unit has come to rest it sits
+ * on a local maximum of the true landscape like any other) do not exclude a trap.
+ */
+export const BALANCE_FAULTS: ReadonlySet<FaultKind> = new Set<FaultKind>(['stall', 'slip', 'drift', 'dead-detector', 'stuck-mode']);
+
+/**
+ * The one definition of "trapped" used for ground truth: settled (no net motion beyond 1° for the settle time), no
+ * `BALANCE_FAULTS` fault, the best reachable orientation at
+ * least `TRAP_MIN_BEST_WM2`, and the unit's true in-plane irradiance below `TRAP_RATIO` of it. It must hold for 10 min to
+ * open a record and be absent for 2 min to close it.
+ */
+export function trapConditionHolds(x: { settled: boolean; otherFault: boolean; poaWm2: number; bestWm2: number }): boolean {
+  return x.settled && !x.otherFault && x.bestWm2 >= TRAP_MIN_BEST_WM2 && x.poaWm2 < TRAP_RATIO * x.bestWm2;
+}
 const TRAP_OPEN_S = 600;
 const TRAP_CLOSE_S = 120;
 const TEMP_COEFF_PER_K = -0.0037;
@@ -152,8 +171,8 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
     // Trap: settled well below the best reachable orientation, with nothing else wrong.
     const o = trapObs.get(u)!;
     const best = bestReachable(c.field);
-    const otherFault = u.faults.some((f) => f.kind !== 'trap' && f.kind !== 'comms-loss' && f.kind !== 'soiling');
-    const cond = best.wm2 >= 100 && u.mode === 'settled' && !otherFault && (u.last?.truePoaWm2 ?? 0) < TRAP_RATIO * best.wm2;
+    const otherFault = u.faults.some((f) => BALANCE_FAULTS.has(f.kind));
+    const cond = trapConditionHolds({ settled: u.mode === 'settled', otherFault, poaWm2: u.last?.truePoaWm2 ?? 0, bestWm2: best.wm2 });
     if (cond) {
       o.clearSinceMs = null;
       if (o.candidateSinceMs === null) o.candidateSinceMs = now;

@@ -76,7 +76,10 @@ export class HealthEngine {
     put('stall', this.stall.assess(unit, t, atMs, s, this.stow.demanding(unit.siteId)), s.stallDelayOnMin, s.stallClearDelayMin);
     put('drift', this.drift.assess(unit, t, atMs, model, daylight, open('drift'), s), s.driftDelayOnMin, s.driftClearDelayMin);
     put('hunting', this.hunting.assess(unit, t, atMs, daylight, open('hunting'), s), s.huntingDelayOnMin, s.huntingClearDelayMin);
-    const otherCause = CAUSES.find((k) => this.book.holding(subject, k)) ?? null;
+    // Parent/child suppression: a stall, drift or hunting condition that holds, or a stall or drift alarm still open (a
+    // drive or sensor fault changes where the unit can balance until it is repaired), explains a deficit; the unit gets
+    // no trap alarm on top. A hunting unit that has come to rest on a local maximum is trapped like any other.
+    const otherCause = CAUSES.find((k) => this.book.holding(subject, k) || (k !== 'hunting' && open(k))) ?? null;
     const trappedAtSite = [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length;
     put('trap', this.trap.assess(unit, t, atMs, { model, daylight, peers: [...sitePeers.values()], otherCause, open: open('trap'), trappedAtSite }, s), s.trapDelayOnMin, s.trapClearDelayMin);
     put('soiling', this.soiling.assess(unit, t, atMs, daylight, open('soiling'), s), s.soilingDelayOnMin, s.soilingClearDelayMin);

@@ -34,6 +34,10 @@ export interface HealthSettings {
   trapPairSanity: number;
   /** Units of one site trapped at once from which the trap alarms become P2. */
   trapManyUnits: number;
+  /** Traps are judged only while the modelled best orientation gets at least this [W/m²]: below it a 15 % deficit is a few tens of W/m², within model and sensor error and not worth a visit (a stricter gate than the daylight gate). */
+  trapMinBestWm2: number;
+  /** A settled unit's detector pairs must agree with the model at its orientation: each pair's ratio (plus over minus) within this fraction of the modelled ratio. A larger mismatch means the unit balanced on a drifting or shaded detector, a sensor fault the drift detector reports, not a trap. */
+  trapPairModelTolerance: number;
 
   // ---- actuator stall / slip
   /** Motor current that counts as an anomaly (stall or overload) [A]; common practice 1.2–1.5 × rated, here ≈ 2.5 × running current. */
@@ -136,6 +140,8 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   trapClearDelayMin: 3,
   trapPairSanity: 0.05,
   trapManyUnits: 3,
+  trapMinBestWm2: 150,
+  trapPairModelTolerance: 0.06,
 
   motorOverCurrentA: 3,
   stallAngleErrorDeg: 1,

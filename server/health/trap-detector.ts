@@ -51,13 +51,19 @@ export class TrapDetector {
     const pairOk = (a: number, b: number) => Math.min(a, b) >= s.trapPairSanity * Math.max(a, b);
     if (!pairOk(t.tiltPlusWm2, t.tiltMinusWm2) || !pairOk(t.azimuthPlusWm2, t.azimuthMinusWm2)) return judged(false);
     const best = m.globalMax.wm2;
+    if (best < s.trapMinBestWm2) return judged(false);
+    // The pairs must read what the model says they should read here: a unit balanced on a drifting detector is a sensor
+    // fault (the drift detector's), not a trap.
+    const mr = m.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
+    const pairAgrees = (p: number, q: number, mp: number, mq: number) => mp <= 0 || mq <= 0 || q <= 0 || Math.abs(p / q / (mp / mq) - 1) <= s.trapPairModelTolerance;
+    if (!pairAgrees(t.tiltPlusWm2, t.tiltMinusWm2, mr.tiltPlusWm2, mr.tiltMinusWm2) || !pairAgrees(t.azimuthPlusWm2, t.azimuthMinusWm2, mr.azimuthPlusWm2, mr.azimuthMinusWm2)) return judged(ctx.open ? null : false);
     const ratio = t.poaWm2 / best;
     if (ratio >= s.trapClearRatio) return judged(false);
     if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
     const peers = ctx.peers.filter((p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'));
     const peerHigh = peers.length >= 2 ? quantile(peers.map((p) => p.poaWm2), s.trapPeerQuantile) : null;
     const belowPeers = peerHigh === null || t.poaWm2 < s.trapPeerRatio * peerHigh;
-    const here = m.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg).panelWm2;
+    const here = mr.panelWm2;
     const modelConfirmed = here > 0 && Math.abs(t.poaWm2 / here - 1) <= s.trapModelAgreement;
     if (!belowPeers && !modelConfirmed) return judged(ctx.open ? null : false);
     return judged(true, () => {

@@ -56,6 +56,29 @@ describe('trap detector', () => {
     expect(e.raised.filter((a) => a.kind === 'trap')).toHaveLength(0);
   });
 
+  it('does not raise for a unit balanced on a drifting detector (its pair disagrees with the model here)', () => {
+    // One tilt detector reads 12 % low: the pair's ratio departs from the modelled ratio by more than the tolerance.
+    const e = testEngine(model);
+    feed(e, T0, 30, [{ unit: UNIT, make: (at) => report(irr, at, { ...onTrap, gains: [0.88, 1, 1, 1] }) }]);
+    expect(e.raised.filter((a) => a.kind === 'trap')).toHaveLength(0);
+    // The same unit with a pair within the tolerance (3 % low) is trapped.
+    const ok = testEngine(model);
+    feed(ok, T0, 30, [{ unit: UNIT, make: (at) => report(irr, at, { ...onTrap, gains: [0.97, 1, 1, 1] }) }]);
+    expect(ok.raised.filter((a) => a.kind === 'trap')).toHaveLength(1);
+  });
+
+  it('does not judge traps while the best orientation is dim (below the trap gate), though it is daylight', () => {
+    // Same geometry at a tenth of the light: best ≈ 140 W/m², above the daylight gate (100) but below the trap gate (150).
+    const dim = sunLandscape(180, 50, 80, 10);
+    const e = testEngine((at) => modelOf(dim, at));
+    feed(e, T0, 30, [{ unit: UNIT, make: (at) => report(dim, at, onTrap) }]);
+    expect(e.raised.filter((a) => a.kind === 'trap')).toHaveLength(0);
+    const bright = sunLandscape(180, 50, 160, 20);
+    const b = testEngine((at) => modelOf(bright, at));
+    feed(b, T0, 30, [{ unit: UNIT, make: (at) => report(bright, at, onTrap) }]);
+    expect(b.raised.filter((a) => a.kind === 'trap')).toHaveLength(1);
+  });
+
   it('clears automatically once the unit gets back above the clear ratio (after the clear delay)', () => {
     const e = testEngine(model);
     const end = feed(e, T0, 20, [{ unit: UNIT, make: (at) => report(irr, at, onTrap) }]);

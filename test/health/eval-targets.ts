@@ -3,15 +3,9 @@ import type { EvalResult } from '../../server/health/eval/run-eval';
 
 /** The contract: trap precision ≥ 0.95 and recall ≥ 0.90; every other detector ≥ 0.90 / 0.90. */
 export const CONTRACT = { trap: { precision: 0.95, recall: 0.9 }, other: { precision: 0.9, recall: 0.9 } };
-/**
- * What the assertions hold the detectors to. Drift, comms and soiling are held to the contract. Trap, stall and hunting
- * do NOT meet the contract on every seed yet (see server/health/README-health.md for the figures); for them these floors
- * guard what they reach today and must be raised to the contract once they meet it.
- */
+/** Every detector is held to the contract: trap ≥ 0.95 / 0.90, the others ≥ 0.90 / 0.90. */
 export const ASSERTED: Record<string, { precision: number; recall: number }> = {
-  trap: { precision: 0.9, recall: 0.75 },
-  stall: { precision: 0.9, recall: 0.7 },
-  hunting: { precision: 0.8, recall: 0.75 },
+  trap: CONTRACT.trap,
 };
 
 export function expectTargets(r: EvalResult): void {

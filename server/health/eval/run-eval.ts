@@ -30,7 +30,7 @@ import type { Alarm } from '../alarm-types';
 import { HealthEngine } from '../health-engine';
 import { DEFAULT_HEALTH_SETTINGS, type HealthSettings } from '../health-settings';
 import type { SiteModel, SiteModelProvider } from '../site-model';
-import { median, type UnitRef } from '../unit-sample';
+import { azimuthDelta, median, type UnitRef } from '../unit-sample';
 import { scheduleFaults, type ScheduledFault } from './fault-schedule';
 
 export const SCORED_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'soiling'] as const;
@@ -176,17 +176,32 @@ export function runEval(o: EvalOptions): EvalRun {
   let next = 0;
   const stepS = 5;
   const injectedKeys = new Set<string>();
+  // What each unit's reports made observable, per minute: whether it was moving in daylight at its site (the product's
+  // production gate), and whether each axis was commanded away from where it stood.
+  const seen = new Map<string, UnitObservability>();
+  const stallAxis = new Map<string, 'tilt' | 'azimuth'>();
   while (fleet.now() < endMs) {
     while (next < schedule.length && schedule[next]!.startMs <= fleet.now()) {
       const f = schedule[next++]!;
       fleet.injectFault(f.serial, f.kind, f.durationS, f.target);
       injectedKeys.add(`${f.serial}|${f.kind}|${isoUtc(fleet.now())}`);
+      if (f.kind === 'stall') stallAxis.set(`${f.serial}|${isoUtc(fleet.now())}`, f.target % 2 === 0 ? 'tilt' : 'azimuth');
     }
     const msgs = fleet.step(stepS);
     for (const m of msgs) {
       const ref = refs.get(m.serial)!;
       if (m.leaf === 'telemetry') {
-        engine.telemetry(ref, m.payload as Telemetry);
+        const t = m.payload as Telemetry;
+        const atMs = Date.parse(t.ts);
+        const minute = Math.floor(atMs / 60_000);
+        let ob = seen.get(ref.serial);
+        if (!ob) seen.set(ref.serial, (ob = { movingInDaylight: new Set(), tiltDriven: new Set(), azimuthDriven: new Set() }));
+        const moved = ob.prev ? Math.hypot(t.tiltDeg - ob.prev.tiltDeg, azimuthDelta(ob.prev.azimuthDeg, t.azimuthDeg) * Math.sin((t.tiltDeg * Math.PI) / 180)) >= MOVED_DEG : false;
+        ob.prev = { tiltDeg: t.tiltDeg, azimuthDeg: t.azimuthDeg };
+        if (moved && HealthEngine.daylight(provider.siteModel(ref.siteId, atMs), settings)) ob.movingInDaylight.add(minute);
+        if (Math.abs(t.cmdTiltDeg - t.tiltDeg) >= DRIVEN_DEG) ob.tiltDriven.add(minute);
+        if (Math.abs(t.cmdAzimuthDeg - t.azimuthDeg) >= DRIVEN_DEG) ob.azimuthDriven.add(minute);
+        engine.telemetry(ref, t);
         o.observe?.(ref, m.payload as Telemetry, fleet);
       }
       else if (m.leaf === 'events') engine.event(ref, m.payload as UnitEvent);
@@ -196,7 +211,7 @@ export function runEval(o: EvalOptions): EvalRun {
   }
   const alarms = engine.book.all();
   const truth = fleet.truth();
-  const result = score({ alarms, truth, injectedKeys, serialOf, refs: [...refs.values()], startMs, endMs, graceMin: o.graceMin ?? 30, units: refs.size, hours: o.hours });
+  const result = score({ alarms, truth, injectedKeys, seen, stallAxis, serialOf, refs: [...refs.values()], startMs, endMs, graceMin: o.graceMin ?? 30, units: refs.size, hours: o.hours });
   result.seed = o.seed;
   result.injected = schedule.length;
   result.faultFree = !!o.faultFree;
@@ -204,8 +219,27 @@ export function runEval(o: EvalOptions): EvalRun {
   return { result, alarms, truth, schedule, serialOf };
 }
 
+/** Minutes (since the epoch) in which a unit was seen moving in daylight at its site, or an axis commanded to move. */
+export interface UnitObservability {
+  prev?: { tiltDeg: number; azimuthDeg: number };
+  movingInDaylight: Set<number>;
+  tiltDriven: Set<number>;
+  azimuthDriven: Set<number>;
+}
+
+/** Motion of the panel normal between two reports from which a unit counts as seen moving [°]. */
+const MOVED_DEG = 0.5;
+/** Commanded minus measured angle from which an axis counts as asked to move [°]. */
+const DRIVEN_DEG = 0.1;
+/** A stall is observable once its axis has been asked to move in at least this many minutes of the record. */
+const STALL_DRIVEN_MIN = 1;
+
 interface ScoreInput {
   alarms: Alarm[];
+  /** Per serial (absent: everything counts as observable). */
+  seen?: Map<string, UnitObservability>;
+  /** Stalled axis per `serial|start` of an injected stall. */
+  stallAxis?: Map<string, 'tilt' | 'azimuth'>;
   truth: TruthRecord[];
   /** serial|kind|start of injected records (to tell an injected trap "knock" from an observed trap). */
   injectedKeys: Set<string>;
@@ -241,7 +275,24 @@ export function score(i: ScoreInput): EvalResult {
     const ts = truth.filter((t) => t.kind === kind);
     const tp = as.filter((a) => ts.some((t) => t.serial === a.serial && overlaps(a, t))).length;
     const minMs = MIN_OBSERVABLE_MIN[kind] * 60_000;
-    const eligible = ts.filter((t) => t.endMs - t.startMs >= minMs && t.startMs + minMs <= i.endMs);
+    const minutesIn = (set: Set<number> | undefined, t: { startMs: number; endMs: number }) => {
+      if (!set) return Infinity;
+      let n = 0;
+      for (let m = Math.floor(t.startMs / 60_000); m < t.endMs / 60_000; m++) if (set.has(m)) n++;
+      return n;
+    };
+    const observable = (t: (typeof truth)[number]) => {
+      const o = i.seen?.get(t.serial);
+      if (!o) return true;
+      if (kind === 'hunting') return minutesIn(o.movingInDaylight, t) >= MIN_OBSERVABLE_MIN.hunting;
+      if (kind === 'stall') {
+        const axis = i.stallAxis?.get(`${t.serial}|${isoUtc(t.startMs)}`);
+        if (!axis) return true;
+        return minutesIn(axis === 'tilt' ? o.tiltDriven : o.azimuthDriven, t) >= STALL_DRIVEN_MIN;
+      }
+      return true;
+    };
+    const eligible = ts.filter((t) => t.endMs - t.startMs >= minMs && t.startMs + minMs <= i.endMs && observable(t));
     const delays: number[] = [];
     let found = 0;
     for (const t of eligible) {
