@@ -12,9 +12,11 @@
  *    the run before that time;
  *  - false alarms = alarms of any kind that overlap no truth record of any kind on their unit (site alarms: on any unit
  *    of the site), per 100 unit-days.
- * Truth kinds: `trap` is the simulator's observed trap (settled below 85 % of the best reachable irradiance for 10 min,
- * nothing else wrong), not the injected "knock" that may or may not trap the unit; `drift` includes dead detectors;
- * `comms` is the injected comms loss.
+ *  - a hunting record counts for recall only when the unit was seen moving in daylight for the kind's minimum time, and
+ *    a stall record only when its axis was commanded to move in at least a minute of it (see README-health);
+ * Truth kinds: `trap` is the simulator's observed trap (`trapConditionHolds` in simulator/fleet.ts: settled below 85 % of
+ * a best reachable irradiance of at least 150 W/m², no drive or sensor fault, for 10 min), not the injected "knock" that
+ * may or may not trap the unit; `drift` includes dead detectors; `comms` is the injected comms loss.
  */
 import { detectorNormals } from '../../../simulator/detectors';
 import { DETECTOR_TILTS_DEG } from '../../../seeds/demo-world';
