@@ -75,7 +75,12 @@ export class HealthEngine {
 
     put('stall', this.stall.assess(unit, t, atMs, s, this.stow.demanding(unit.siteId)), s.stallDelayOnMin, s.stallClearDelayMin);
     put('drift', this.drift.assess(unit, t, atMs, model, daylight, open('drift'), s), s.driftDelayOnMin, s.driftClearDelayMin);
-    put('hunting', this.hunting.assess(unit, t, atMs, daylight, open('hunting'), s), s.huntingDelayOnMin, s.huntingClearDelayMin);
+    // A drifting or dead detector makes the controller chase a false differential: that shows as back-and-forth motion,
+    // but the cause is the sensor, so hunting is not raised on top while a drift condition holds or its alarm is open
+    // (consequential alarms are suppressed under their cause: common practice).
+    const sensorFault = this.book.holding(subject, 'drift') || open('drift');
+    const huntingNow = this.hunting.assess(unit, t, atMs, daylight, open('hunting'), s);
+    this.book.assess(subject, 'hunting', huntingNow.condition, atMs, timing(s.huntingDelayOnMin, s.huntingClearDelayMin), huntingNow.detail, suppressed || sensorFault);
     // Parent/child suppression: a stall, drift or hunting condition that holds, or a stall or drift alarm still open (a
     // drive or sensor fault changes where the unit can balance until it is repaired), explains a deficit; the unit gets
     // no trap alarm on top. A hunting unit that has come to rest on a local maximum is trapped like any other.

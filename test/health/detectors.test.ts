@@ -138,6 +138,16 @@ describe('hunting detector', () => {
     expect(h[0]!.message).toMatch(/reversals per hour/);
   });
 
+  it('is not raised on top of a drifting detector, which explains the back-and-forth', () => {
+    const e = testEngine(model);
+    // First the pair goes wrong (tilt − detector reads 20 % low) while the unit sits still: a drift alarm opens.
+    const end = feed(e, T0, 40, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 35, azimuthDeg: 170, gains: [1, 0.8, 1, 1] }) }]);
+    expect(e.raised.map((a) => a.kind)).toContain('drift');
+    // Then it swings back and forth chasing the false differential: no hunting alarm while the drift alarm is open.
+    feed(e, end, 20, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 40 + (i % 2 ? 4 : -4), azimuthDeg: 180, mode: 'seeking', gains: [1, 0.8, 1, 1] }) }]);
+    expect(e.raised.filter((a) => a.kind === 'hunting')).toHaveLength(0);
+  });
+
   it('stays quiet for a unit following the sun slowly, and for a scan sweeping back and forth', () => {
     const e = testEngine(model);
     feed(e, T0, 30, [

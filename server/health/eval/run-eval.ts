@@ -13,7 +13,7 @@
  *  - false alarms = alarms of any kind that overlap no truth record of any kind on their unit (site alarms: on any unit
  *    of the site), per 100 unit-days.
  *  - a hunting record counts for recall only when the unit was seen moving in daylight for the kind's minimum time, and
- *    a stall record only when its axis was commanded to move in at least a minute of it (see README-health);
+ *    a stall record only when its axis was commanded to move in at least a minute of it (see server/health/README.md);
  * Truth kinds: `trap` is the simulator's observed trap (`trapConditionHolds` in simulator/fleet.ts: settled below 85 % of
  * a best reachable irradiance of at least 150 W/m², no drive or sensor fault, for 10 min), not the injected "knock" that
  * may or may not trap the unit; `drift` includes dead detectors; `comms` is the injected comms loss.
@@ -126,7 +126,7 @@ export function runEval(o: EvalOptions): EvalRun {
   const serialOf = new Map([...refs.values()].map((r) => [r.unitId, r.serial]));
 
   // Model provider: the simulator's own sky at the latest step (in this benchmark the model is the world; the server
-  // models the sky from the site survey and weather instead — see README-health). Reports within 10 s of it may use it.
+  // models the sky from the site survey and weather instead — see server/health/README.md). Reports within 10 s of it may use it.
   const current = new Map<number, { field: SkyField; model: SiteModel }>();
   const analyses = new Map<string, ReturnType<NonNullable<SiteModel['analyse']>>>();
   const provider: SiteModelProvider = {
