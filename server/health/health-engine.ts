@@ -31,6 +31,8 @@ export interface HealthEngineOptions {
 }
 
 const CAUSES: AlarmKind[] = ['stall', 'drift', 'hunting'];
+/** How long a site's peer snapshot serves the reports that follow it [ms]. */
+const SITE_SNAPSHOT_MS = 2000;
 
 export class HealthEngine {
   readonly book: AlarmBook;
@@ -43,6 +45,7 @@ export class HealthEngine {
   private readonly stow = new StowWatch();
   private readonly units = new Map<number, UnitRef>();
   private readonly peers = new Map<number, Map<number, PeerReading>>();
+  private readonly siteSnapshots = new Map<number, { atMs: number; peers?: PeerReading[]; trapped?: number }>();
   private readonly darkSites = new Set<number>();
   private readonly settingsFor: (siteId: number) => HealthSettings;
 
@@ -52,6 +55,17 @@ export class HealthEngine {
   }
 
   /** Whether production checks run at a site now (modelled best orientation bright enough; sun up outdoors). */
+  /** Lazily computed, briefly cached peer readings and trapped-unit count of a site. */
+  private siteSnapshot(siteId: number, atMs: number, sitePeers: Map<number, PeerReading>) {
+    let snap = this.siteSnapshots.get(siteId);
+    if (!snap || Math.abs(atMs - snap.atMs) > SITE_SNAPSHOT_MS) this.siteSnapshots.set(siteId, (snap = { atMs }));
+    const current = snap;
+    return {
+      peers: () => (current.peers ??= [...sitePeers.values()]),
+      trapped: () => (current.trapped ??= [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length),
+    };
+  }
+
   static daylight(m: SiteModel | undefined, s: HealthSettings): boolean {
     if (!m) return false;
     return m.globalMax.wm2 >= s.daylightMinWm2 && (m.indoor || m.sunElevationDeg >= s.daylightMinSunElevationDeg);
@@ -85,8 +99,10 @@ export class HealthEngine {
     // drive or sensor fault changes where the unit can balance until it is repaired), explains a deficit; the unit gets
     // no trap alarm on top. A hunting unit that has come to rest on a local maximum is trapped like any other.
     const otherCause = CAUSES.find((k) => this.book.holding(subject, k) || (k !== 'hunting' && open(k))) ?? null;
-    const trappedAtSite = [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length;
-    put('trap', this.trap.assess(unit, t, atMs, { model, daylight, peers: [...sitePeers.values()], otherCause, open: open('trap'), trappedAtSite }, s), s.trapDelayOnMin, s.trapClearDelayMin);
+    // Site-wide figures cost one pass over the site's units: computed only when the trap detector asks, and shared by the
+    // reports of the site within the same couple of seconds (a large site would otherwise make each report O(units)).
+    const site = this.siteSnapshot(unit.siteId, atMs, sitePeers);
+    put('trap', this.trap.assess(unit, t, atMs, { model, daylight, get peers() { return site.peers(); }, otherCause, open: open('trap'), get trappedAtSite() { return site.trapped(); } }, s), s.trapDelayOnMin, s.trapClearDelayMin);
     put('soiling', this.soiling.assess(unit, t, atMs, daylight, open('soiling'), s), s.soilingDelayOnMin, s.soilingClearDelayMin);
     put('not-stowed', this.stow.assess(unit, t, atMs, s), s.stowArrivalMin, 0);
   }
