@@ -30,7 +30,7 @@ export class LiveHub {
 
   constructor(
     private readonly units: UnitDirectory,
-    /** Minimum time between two pushes of the same unit [ms]. */
+    /** Each unit is pushed at most once per slot of this length [ms]. */
     private readonly coalesceMs = 1000,
     /** How often changed units are looked at [ms]; bounds the added latency. */
     private readonly tickMs = 100,
@@ -131,18 +131,21 @@ export class LiveHub {
     return sub.fleet || sub.sites.has(unit.siteId) || sub.units.has(unit.id);
   }
 
-  /** Sends each changed unit that has not been sent within `coalesceMs`, batched per subscriber. */
+  /**
+   * Sends each changed unit at most once per `coalesceMs` slot of the clock, batched per subscriber. Slots rather than
+   * "1 s since the last push": a unit reporting exactly once a second would otherwise wait a little longer each time.
+   */
   flush(): void {
     if (!this.dirty.size || !this.subscribers.size) return;
-    const now = this.now();
+    const slot = Math.floor(this.now() / this.coalesceMs);
     const due: { unit: UnitInfo; state: UnitLiveState }[] = [];
     for (const id of this.dirty) {
-      if ((this.lastSent.get(id) ?? -Infinity) + this.coalesceMs > now) continue;
+      if (this.lastSent.get(id) === slot) continue;
       this.dirty.delete(id);
       const unit = this.units.byUnitId(id);
       const state = this.state.get(id);
       if (!unit || !state) continue;
-      this.lastSent.set(id, now);
+      this.lastSent.set(id, slot);
       due.push({ unit, state });
     }
     if (!due.length) return;
