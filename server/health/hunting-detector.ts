@@ -76,10 +76,9 @@ export class HuntingDetector {
     const st = motionStats(u.samples, s.huntingStepDeg);
     if (st.spanMin < 0.8 * s.huntingWindowMin) return judged(open ? null : false);
     u.moving = st.reversalsPerHour >= s.huntingReversalsPerHour && st.netDeg < s.huntingNetFraction * st.pathDeg;
-    // The same restlessness on most of the site at once is the sky changing (passing clouds), not this unit.
-    const site = [...this.units.entries()].filter(([id, x]) => id !== unit.unitId && x.siteId === unit.siteId && atMs - x.atMs <= SITE_RECENT_MS);
-    const siteMoving = site.length >= 2 && site.filter(([, x]) => x.moving).length >= s.huntingSiteShare * site.length;
-    if (u.moving && siteMoving) return judged(open ? null : false);
+    // The same restlessness on most of the site at once is the sky changing (passing clouds), not this unit. Looked at
+    // only when this unit moves that way: a pass over the fleet on every report would make each report O(units).
+    if (u.moving && this.siteMoving(unit, atMs, s)) return judged(open ? null : false);
     if (u.moving) {
       return judged(true, () => ({
         severity: 'P3',
@@ -94,5 +93,16 @@ export class HuntingDetector {
 
   forget(unitId: number): void {
     this.units.delete(unitId);
+  }
+
+  private siteMoving(unit: UnitRef, atMs: number, s: HealthSettings): boolean {
+    let peers = 0;
+    let moving = 0;
+    for (const [id, x] of this.units) {
+      if (id === unit.unitId || x.siteId !== unit.siteId || atMs - x.atMs > SITE_RECENT_MS) continue;
+      peers++;
+      if (x.moving) moving++;
+    }
+    return peers >= 2 && moving >= s.huntingSiteShare * peers;
   }
 }
