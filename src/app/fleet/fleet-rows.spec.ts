@@ -45,6 +45,13 @@ describe('fleet board rows', () => {
     expect(rows.find((r) => r.unit.serial === 'B-2')!.look.label).toBe('No reports yet');
   });
 
+  it('claims no shortfall indoors, where the building switches the lamps', () => {
+    const indoor = new Map([[1, { ...site(1, 'Atrium'), indoor: true }], [2, site(2, 'Depot Yard')]]);
+    const r = fleetRows(units, indoor, states, bests, []);
+    expect(r.find((x) => x.unit.serial === 'A-1')!.shortfall).toBeNull();
+    expect(fleetRows(units, sites, states, bests, []).find((x) => x.unit.serial === 'A-1')!.shortfall).toBe(50);
+  });
+
   it('filters by text (serial or site), site and state or alarms', () => {
     expect(filterRows(rows, { text: 'depot', siteId: null, tone: null }).map((r) => r.unit.serial)).toEqual(['B-1', 'B-2']);
     expect(filterRows(rows, { text: 'a-', siteId: null, tone: null }).map((r) => r.unit.serial)).toEqual(['A-1', 'A-2']);

@@ -42,12 +42,14 @@ export function fleetRows(
   return units.map((unit) => {
     const state = live.get(unit.id);
     const unitAlarms = sortAlarms(byUnit.get(unit.id) ?? []);
+    const site = sites.get(unit.siteId);
     return {
       unit,
-      site: sites.get(unit.siteId),
+      site,
       live: state,
       look: statusLook(state),
-      shortfall: state?.online ? shortfallPercent(state.poaWm2, bestBySite.get(unit.siteId)) : null,
+      // Indoors the building switches the lamps, and the model cannot know which are on: no shortfall is claimed there.
+      shortfall: state?.online && !site?.indoor ? shortfallPercent(state.poaWm2, bestBySite.get(unit.siteId)) : null,
       alarms: unitAlarms,
       worstSeverity: unitAlarms[0]?.severity ?? null,
     };
