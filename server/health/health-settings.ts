@@ -81,6 +81,9 @@ export interface HealthSettings {
   huntingWindowMin: number;
   /** When at least this share of a site's reporting units move like that at once, it is the sky (passing clouds), not one unit. */
   huntingSiteShare: number;
+  /** Largest variation of the unit's in-plane irradiance over the window (standard deviation / mean) for its motion to
+   * count as hunting: back-and-forth under changing light (passing clouds) is the unit following the light. */
+  huntingMaxLightVariation: number;
   huntingDelayOnMin: number;
   huntingClearDelayMin: number;
 
@@ -166,6 +169,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   huntingNetFraction: 0.3,
   huntingWindowMin: 10,
   huntingSiteShare: 0.5,
+  huntingMaxLightVariation: 0.3,
   huntingDelayOnMin: 5,
   huntingClearDelayMin: 10,
 

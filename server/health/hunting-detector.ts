@@ -10,7 +10,7 @@ import { azimuthDelta, judged, MOTION_FREE_MODES, readingsSnapshot, round1, type
 
 interface UnitState {
   siteId: number;
-  samples: { atMs: number; tiltDeg: number; azimuthDeg: number }[];
+  samples: { atMs: number; tiltDeg: number; azimuthDeg: number; poaWm2: number }[];
   /** Whether the unit's latest window looked like hunting, and when. */
   moving: boolean;
   atMs: number;
@@ -58,6 +58,15 @@ export function motionStats(samples: readonly { atMs: number; tiltDeg: number; a
   return { reversalsPerHour: spanMin > 0 ? (reversals * 60) / spanMin : 0, pathDeg: path, netDeg: net, spanMin };
 }
 
+/** Standard deviation over mean of the in-plane irradiance of the samples. */
+export function lightVariation(samples: readonly { poaWm2: number }[]): number {
+  if (samples.length < 2) return 0;
+  const mean = samples.reduce((a, x) => a + x.poaWm2, 0) / samples.length;
+  if (mean <= 0) return 0;
+  const variance = samples.reduce((a, x) => a + (x.poaWm2 - mean) ** 2, 0) / samples.length;
+  return Math.sqrt(variance) / mean;
+}
+
 export class HuntingDetector {
   private readonly units = new Map<number, UnitState>();
 
@@ -70,12 +79,14 @@ export class HuntingDetector {
       u.samples = [];
       return judged(false);
     }
-    u.samples.push({ atMs, tiltDeg: t.tiltDeg, azimuthDeg: t.azimuthDeg });
+    u.samples.push({ atMs, tiltDeg: t.tiltDeg, azimuthDeg: t.azimuthDeg, poaWm2: t.poaWm2 });
     const windowMs = s.huntingWindowMin * 60_000;
     while (u.samples.length && atMs - u.samples[0]!.atMs > windowMs) u.samples.shift();
     const st = motionStats(u.samples, s.huntingStepDeg);
     if (st.spanMin < 0.8 * s.huntingWindowMin) return judged(open ? null : false);
     u.moving = st.reversalsPerHour >= s.huntingReversalsPerHour && st.netDeg < s.huntingNetFraction * st.pathDeg;
+    // Hunting is oscillation under steady light; under changing light the motion may be the unit following it.
+    if (u.moving && lightVariation(u.samples) > s.huntingMaxLightVariation) return judged(open ? null : false);
     // The same restlessness on most of the site at once is the sky changing (passing clouds), not this unit. Looked at
     // only when this unit moves that way: a pass over the fleet on every report would make each report O(units).
     if (u.moving && this.siteMoving(unit, atMs, s)) return judged(open ? null : false);

@@ -202,3 +202,11 @@ describe('comms detector and stow watch', () => {
 });
 
 void normalFromTiltAzimuth;
+
+describe('hunting under changing light', () => {
+  it('measures light variation as standard deviation over mean', async () => {
+    const { lightVariation } = await import('../../server/health/hunting-detector');
+    expect(lightVariation([{ poaWm2: 500 }, { poaWm2: 500 }])).toBe(0);
+    expect(lightVariation([{ poaWm2: 300 }, { poaWm2: 700 }])).toBeCloseTo(0.4, 10);
+  });
+});
