@@ -1,4 +1,5 @@
 import type { Db } from './db';
+import type { TelemetryRow } from './telemetry-repository';
 import type { TraceQuantity } from '../../shared/contracts/traces';
 
 /** SQL expression of each trace quantity over a `telemetry` row. */
@@ -36,23 +37,8 @@ const MINUTE_STEM: Record<TraceQuantity, string> = {
 /** One bucket as the database returns it: `b` index, `n` samples, then `<q>_lo` / `<q>_hi` per quantity. */
 export type BucketRow = { b: number; n: number } & Record<string, number | null>;
 
-export interface RawTraceRow {
-  ts: Date;
-  mode: string;
-  tilt_plus_wm2: number;
-  tilt_minus_wm2: number;
-  azimuth_plus_wm2: number;
-  azimuth_minus_wm2: number;
-  poa_wm2: number;
-  tilt_deg: number;
-  azimuth_deg: number;
-  cmd_tilt_deg: number;
-  cmd_azimuth_deg: number;
-  tilt_motor_a: number;
-  azimuth_motor_a: number;
-  dc_power_w: number;
-  module_temp_c: number;
-}
+/** A raw report as exported: the stored row without its keys and bookkeeping. */
+export type RawTraceRow = Omit<TelemetryRow, 'unit_id' | 'seq' | 'received_at'>;
 
 export interface EventMarkRow {
   ts: Date;

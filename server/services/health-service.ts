@@ -25,26 +25,8 @@ import type { LiveHub } from './live-hub';
 import type { SiteModelService } from './site-model-service';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
-export interface AlarmView {
-  id: number;
-  kind: string;
-  severity: string;
-  state: string;
-  unitId: number | null;
-  serial: string | null;
-  siteId: number;
-  siteName?: string;
-  message: string;
-  advice: string;
-  evidence: Record<string, unknown>;
-  firstSeenAt: string;
-  raisedAt: string;
-  lastSeenAt: string;
-  clearedAt: string | null;
-  clearReason: string | null;
-  acknowledgedAt: string | null;
-  acknowledgedBy: string | null;
-}
+export type { AlarmView } from '../../shared/contracts/alarms';
+import type { AlarmView } from '../../shared/contracts/alarms';
 
 export interface HealthServiceOptions {
   now: () => number;
