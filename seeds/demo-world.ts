@@ -1,7 +1,6 @@
 import bcrypt from 'bcryptjs';
-import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
-import { hashDeviceSecret } from '../server/services/device-secret';
+import { hashDeviceSecret, newDeviceSecret } from '../server/services/device-secret';
 import type { SiteSurvey } from '../shared/contracts/api';
 import { CITY_HORIZON, FACADES } from '../simulator/scenarios/glass-facade';
 import { COURTYARD_HORIZON } from '../simulator/scenarios/urban-canyon';
@@ -51,14 +50,31 @@ export const DETECTOR_TILTS_DEG = [20, 20, 15, 20, 8, 20];
 
 export const demoSerial = (siteCode: string, i: number) => `${siteCode}-${String(2401 + i)}`;
 
-/** Demo-only device secret, derived from the serial so the built-in simulator can connect without a secrets file. */
-export const demoDeviceSecret = (serial: string) => createHash('sha256').update(`brightward-demo-device:${serial}`).digest('base64url').slice(0, 32);
+/** Every serial of the demo world, site by site. */
+export const demoSerials = (): string[] => DEMO_SITES.flatMap((s) => Array.from({ length: UNITS_PER_SITE }, (_, i) => demoSerial(s.code, i)));
 
-/** Fills an empty database with the demo world. Refuses to touch a database that already has owners. */
-export async function seedDemoWorld(db: Knex, bcryptCost = 10): Promise<{ seeded: boolean }> {
+export interface DemoSeedOptions {
+  bcryptCost?: number;
+  /** Device secret of each demo unit; by default a fresh random one (tests pass their own). */
+  deviceSecretOf?: (serial: string) => string;
+}
+
+export interface DemoSeedResult {
+  seeded: boolean;
+  /** serial → device secret of the units just created (empty when nothing was seeded); the simulator needs them. */
+  deviceSecrets: Record<string, string>;
+}
+
+/**
+ * Fills an empty database with the demo world. Refuses to touch a database that already has owners. Device secrets are
+ * random unless the caller chooses them: a serial must never be enough to connect as a unit.
+ */
+export async function seedDemoWorld(db: Knex, opts: DemoSeedOptions = {}): Promise<DemoSeedResult> {
   const [{ n }] = (await db('owners').count({ n: '*' })) as [{ n: number | string }];
-  if (Number(n) > 0) return { seeded: false };
-  const passwordHash = await bcrypt.hash(DEMO_PASSWORD, bcryptCost);
+  if (Number(n) > 0) return { seeded: false, deviceSecrets: {} };
+  const secretOf = opts.deviceSecretOf ?? (() => newDeviceSecret());
+  const deviceSecrets: Record<string, string> = {};
+  const passwordHash = await bcrypt.hash(DEMO_PASSWORD, opts.bcryptCost ?? 10);
   await db.transaction(async (trx) => {
     const ownerIds = new Map<string, number>();
     for (const o of DEMO_OWNERS) ownerIds.set(o.name, (await trx('owners').insert(o))[0] as number);
@@ -67,11 +83,12 @@ export async function seedDemoWorld(db: Knex, bcryptCost = 10): Promise<{ seeded
       const [siteId] = await trx('sites').insert({ ...site, owner_id: ownerIds.get(owner), survey: JSON.stringify(DEMO_SURVEYS[code]) });
       const rows = Array.from({ length: UNITS_PER_SITE }, (_, i) => {
         const serial = demoSerial(code, i);
+        deviceSecrets[serial] = secretOf(serial);
         return {
           serial, site_id: siteId, rated_power_wp: 420, detector_tilt_deg: DETECTOR_TILTS_DEG[i],
           tilt_min_deg: 0, tilt_max_deg: 85, azimuth_min_deg: 0, azimuth_max_deg: 360,
           plan_x_m: (i % 3) * 6, plan_y_m: Math.floor(i / 3) * 5, firmware: '2.4.1',
-          device_secret_hash: hashDeviceSecret(demoDeviceSecret(serial)),
+          device_secret_hash: hashDeviceSecret(deviceSecrets[serial]!),
         };
       });
       await trx('units').insert(rows);
@@ -80,5 +97,21 @@ export async function seedDemoWorld(db: Knex, bcryptCost = 10): Promise<{ seeded
       DEMO_USERS.map((u) => ({ email: u.email, name: u.name, role: u.role, owner_id: u.owner ? ownerIds.get(u.owner) : null, password_hash: passwordHash })),
     );
   });
-  return { seeded: true };
+  return { seeded: true, deviceSecrets };
+}
+
+/**
+ * Gives the demo units new random secrets (the simulator's secrets file was lost, or the database predates random demo
+ * secrets). Only units with demo serials are touched; returns serial → new secret.
+ */
+export async function rekeyDemoUnits(db: Knex): Promise<Record<string, string>> {
+  const serials: string[] = await db('units').whereIn('serial', demoSerials()).pluck('serial');
+  const secrets: Record<string, string> = {};
+  await db.transaction(async (trx) => {
+    for (const serial of serials) {
+      secrets[serial] = newDeviceSecret();
+      await trx('units').where({ serial }).update({ device_secret_hash: hashDeviceSecret(secrets[serial]) });
+    }
+  });
+  return secrets;
 }

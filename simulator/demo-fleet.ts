@@ -2,7 +2,7 @@
  * The demo fleet: the 24 units of the invented demo world, each site under a fitting scenario. Unit index 4 of each site
  * has the narrow detector tilt (8°) and is the one prone to traps.
  */
-import { DEMO_SITES, DETECTOR_TILTS_DEG, UNITS_PER_SITE, demoDeviceSecret, demoSerial } from '../seeds/demo-world';
+import { DEMO_SITES, DETECTOR_TILTS_DEG, UNITS_PER_SITE, demoSerial } from '../seeds/demo-world';
 import type { FleetSiteSpec } from './fleet';
 import type { SiteInfo } from './scenarios';
 
@@ -36,4 +36,3 @@ export function demoFleetSites(reportIntervalS = 5): FleetSiteSpec[] {
   }));
 }
 
-export { demoDeviceSecret };

@@ -8,7 +8,7 @@ import { createWriteStream, readFileSync, type WriteStream } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { parseInstant } from '../shared/solar-position';
 import { acceleratedClock, isoUtc, wallClock } from './clock';
-import { DEMO_SCENARIO_BY_SITE, demoDeviceSecret, demoFleetSites, demoSiteInfo } from './demo-fleet';
+import { DEMO_SCENARIO_BY_SITE, demoFleetSites, demoSiteInfo } from './demo-fleet';
 import { FAULT_KINDS, parseFaultPlan, type FaultPlan } from './faults';
 import { createFleet, type Fleet, type FleetSiteSpec } from './fleet';
 import { createPublisher } from './publisher';
@@ -26,7 +26,8 @@ const HELP = `Brightward fleet simulator
   --units <n>             units in the custom fleet (default 6)
   --prefix <text>         serial prefix of the custom fleet (default SIM): SIM-0001, SIM-0002, …
   --detector-tilt <deg>   detector tilt of the custom fleet's units (default 20)
-  --secrets <file>        JSON object { serial: deviceSecret } (default: the demo derivation from the serial)
+  --secrets <file>        JSON object { serial: deviceSecret } (with --demo default: $BW_DEMO_SECRETS_FILE or
+                          .data/demo/device-secrets.json, written when the demo is seeded)
   --seed <n>              random seed (default 1); the same seed gives the same run
   --speed <x>             simulated seconds per real second (default 1; 60 = one simulated minute per second)
   --start <ISO instant>   simulated start, with offset (default: now)
@@ -165,9 +166,9 @@ async function run(o: Options): Promise<void> {
     await Promise.all([truthOut, baselineOut].map((s) => s && new Promise<void>((res) => s.end(() => res()))));
     return;
   }
-  const secrets: Record<string, string> = o.secrets ? JSON.parse(readFileSync(o.secrets, 'utf8')) : {};
+  const secrets = readSecrets(o.secrets ?? (o.demo ? (process.env['BW_DEMO_SECRETS_FILE'] ?? '.data/demo/device-secrets.json') : undefined));
   const clock = acceleratedClock(real, startMs, o.speed);
-  const publisher = createPublisher(fleet, { url: o.broker, secretOf: (s) => secrets[s] ?? demoDeviceSecret(s), now: () => fleet.now(), log });
+  const publisher = createPublisher(fleet, { url: o.broker, secretOf: (s) => secrets[s] ?? '', now: () => fleet.now(), log });
   log(`${units} units → ${o.broker}, speed ${o.speed}, start ${isoUtc(startMs)}, seed ${o.seed}${o.demo ? ' (demo)' : ''}`);
   await publisher.start(30_000).catch((e: Error) => log(`${e.message}; continuing, units keep buffering until they connect`));
   log(`${publisher.connected()}/${units} connected`);
@@ -201,6 +202,16 @@ async function run(o: Options): Promise<void> {
   };
   process.on('SIGINT', () => void shutdown('SIGINT'));
   process.on('SIGTERM', () => void shutdown('SIGTERM'));
+}
+
+/** Device secrets by serial; a unit without one cannot connect (the broker refuses it and says so in its log). */
+function readSecrets(file: string | undefined): Record<string, string> {
+  if (!file) return {};
+  try {
+    return JSON.parse(readFileSync(file, 'utf8')) as Record<string, string>;
+  } catch (e) {
+    throw new Error(`cannot read device secrets from ${file}: ${(e as Error).message}. Seed the demo first (npm start or npm run db:seed).`);
+  }
 }
 
 function printSummary(fleet: Fleet): void {

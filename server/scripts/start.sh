@@ -23,7 +23,8 @@ trap stop_all INT TERM
 trap 'bash server/scripts/db.sh stop' EXIT
 
 bash server/scripts/db.sh start || exit 1
-node --import tsx server/scripts/migrate.ts latest --seed || exit 1
+echo "[start] demo mode: the invented demo world with its well-known demo passwords (for trying the product, never for real units)"
+node --import tsx server/scripts/migrate.ts latest --demo || exit 1
 
 # Rebuild the dashboard when it is missing or any source is newer than the last build.
 index=dist/web/browser/index.html

@@ -1,10 +1,10 @@
 import mqtt, { type MqttClient } from 'mqtt';
 import { unitTopic } from '../../shared/contracts/topics';
 import type { Telemetry } from '../../shared/contracts/wire';
-import { demoDeviceSecret } from '../../seeds/demo-world';
+import { testDeviceSecret } from './device-secrets';
 
 /** A hand-driven unit for tests: connects with its serial and secret, publishes what the test says. */
-export async function connectUnit(port: number, serial: string, password = demoDeviceSecret(serial), extra: mqtt.IClientOptions = {}): Promise<MqttClient> {
+export async function connectUnit(port: number, serial: string, password = testDeviceSecret(serial), extra: mqtt.IClientOptions = {}): Promise<MqttClient> {
   return mqtt.connectAsync(`mqtt://127.0.0.1:${port}`, {
     username: serial, password, clientId: `test-${serial}-${Math.random().toString(36).slice(2, 8)}`, reconnectPeriod: 0,
     will: { topic: unitTopic(serial, 'status'), payload: Buffer.from(JSON.stringify({ v: 1, online: false })), qos: 1, retain: true },

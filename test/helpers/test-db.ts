@@ -3,6 +3,7 @@ import knexFactory from 'knex';
 import { loadConfig, type Config } from '../../server/config';
 import { createDb, migrateLatest, type Db } from '../../server/data/db';
 import { seedDemoWorld } from '../../seeds/demo-world';
+import { testDeviceSecret } from './device-secrets';
 
 export interface TestDatabase {
   config: Config;
@@ -26,7 +27,7 @@ export async function createTestDatabase(opts: { seed?: boolean; env?: Record<st
   const config: Config = { ...base, db: { ...base.db, database: name } };
   const db = createDb(config.db);
   await migrateLatest(db);
-  if (opts.seed) await seedDemoWorld(db, 4);
+  if (opts.seed) await seedDemoWorld(db, { bcryptCost: 4, deviceSecretOf: testDeviceSecret });
   return {
     config,
     db,
