@@ -16,7 +16,7 @@ import { SignInLimiter } from './services/sign-in-limiter';
 import { deviceSecretMatches } from './services/device-secret';
 import { TelemetryRepository } from './data/telemetry-repository';
 import { CommandRepository } from './data/command-repository';
-import { UnitDirectory } from './services/unit-directory';
+import { UnitDirectory, type UnitInfo } from './services/unit-directory';
 import { IngestService, type IngestListeners, type IngestOptions } from './services/ingest-service';
 import { RollupWorker } from './services/rollup-worker';
 import { RetentionJob } from './services/retention-job';
@@ -143,6 +143,15 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     opts.commands,
   );
   const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
+  // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
+  const restored: [UnitInfo, number, number][] = [];
+  for (const row of await telemetry.latestPerUnit()) {
+    const unit = directory.byUnitId(row.unit_id);
+    if (!unit) continue;
+    live.restore(unit, row);
+    restored.push([unit, row.received_at.getTime(), row.ts.getTime()]);
+  }
+  health.restore(restored);
   live.start();
   rollups.start();
   retention.start();

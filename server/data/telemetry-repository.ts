@@ -71,6 +71,16 @@ export class TelemetryRepository {
     return res.affectedRows;
   }
 
+  /**
+   * The newest stored report of every unit that has one (a restart rebuilds the live picture and the comms watch from
+   * it). One loose index scan over the (unit_id, ts) key for the maxima, then one point read per unit.
+   */
+  async latestPerUnit(): Promise<TelemetryRow[]> {
+    return this.db('telemetry as t')
+      .join(this.db('telemetry').select('unit_id').max({ ts: 'ts' }).groupBy('unit_id').as('m'), (j) => j.on('m.unit_id', 't.unit_id').andOn('m.ts', 't.ts'))
+      .select('t.*');
+  }
+
   /** Recomputes the 1-minute rollup of one minute bucket (epoch ms of the minute start) for the given units. */
   async rollupMinutes(minuteStartMs: number, unitIds: number[]): Promise<void> {
     if (!unitIds.length) return;

@@ -44,6 +44,11 @@ export class CommsDetector {
     u.offlineSinceMs = null;
   }
 
+  /** What the store last heard of a unit before a restart (arrival and unit timestamp) — only if nothing newer is known. */
+  restore(unitId: number, lastArrivalMs: number, lastTsMs: number): void {
+    if (!this.units.has(unitId)) this.units.set(unitId, { lastArrivalMs, lastTsMs, intervalMs: null, offlineSinceMs: null });
+  }
+
   /** The unit's last will (or a clean offline status) arrived. */
   offline(unitId: number, nowMs: number): void {
     const u = this.units.get(unitId);

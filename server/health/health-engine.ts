@@ -47,6 +47,8 @@ export class HealthEngine {
   private readonly peers = new Map<number, Map<number, PeerReading>>();
   private readonly siteSnapshots = new Map<number, { atMs: number; peers?: PeerReading[]; trapped?: number }>();
   private readonly darkSites = new Set<number>();
+  /** Units restored from the store at start-up, not judged before this time unless heard first [ms]. */
+  private readonly restoredGraceUntil = new Map<number, number>();
   private readonly settingsFor: (siteId: number) => HealthSettings;
 
   constructor(private readonly opts: HealthEngineOptions) {
@@ -135,6 +137,18 @@ export class HealthEngine {
     this.stow.weather(siteId, w, atMs, s);
   }
 
+  /**
+   * A unit last heard before a restart: the comms watch covers it from the start, so a site that went dark while the
+   * server was down still raises its alarm. Units get until `graceUntilMs` to reconnect before they are judged; one
+   * still silent then is judged from its stored last message.
+   */
+  restore(unit: UnitRef, lastArrivalMs: number, lastTsMs: number, graceUntilMs: number): void {
+    if (this.units.has(unit.unitId)) return;
+    this.units.set(unit.unitId, unit);
+    this.comms.restore(unit.unitId, lastArrivalMs, lastTsMs);
+    this.restoredGraceUntil.set(unit.unitId, graceUntilMs);
+  }
+
   /** Periodic check on the clock (every few seconds): comms loss per unit, dark sites. */
   tick(): void {
     const now = this.opts.now();
@@ -142,6 +156,11 @@ export class HealthEngine {
     for (const id of this.comms.known()) {
       const unit = this.units.get(id);
       if (!unit) continue;
+      const grace = this.restoredGraceUntil.get(id);
+      if (grace !== undefined) {
+        if (now < grace) continue;
+        this.restoredGraceUntil.delete(id);
+      }
       const v = this.comms.view(id, now, this.settingsFor(unit.siteId))!;
       let list = bySite.get(unit.siteId);
       if (!list) bySite.set(unit.siteId, (list = []));
@@ -154,6 +173,13 @@ export class HealthEngine {
       const dark = list.length >= 2 && silent.length >= 2 && silent.length >= s.siteDarkFraction * list.length;
       const site: AlarmSubject = { unitId: null, serial: null, siteId };
       const commsTiming = timing(day ? s.commsDelayOnMin : s.commsNightDelayOnMin, s.commsClearDelayMin);
+      // The site went dark when enough of its units had fallen silent (it may have been before this tick, even before a
+      // restart): let the delay-on run from then, as for a single unit.
+      if (dark && !this.book.holding(site, 'site-comms')) {
+        const since = silent.map((x) => x.silentSinceMs).sort((a, b) => a - b);
+        const darkSinceMs = since[Math.max(1, Math.ceil(s.siteDarkFraction * list.length) - 1)] ?? now;
+        this.book.assess(site, 'site-comms', true, Math.min(now, darkSinceMs), commsTiming, () => ({ severity: 'P4', message: '', advice: '', evidence: {} }), true);
+      }
       const siteAlarm = this.book.assess(site, 'site-comms', dark, now, commsTiming, () => ({
         severity: day ? 'P2' : 'P3',
         message: `${silent.length} of ${list.length} units silent${day ? '' : ' (night)'}: the site's gateway, backhaul or power is down.`,
@@ -194,6 +220,7 @@ export class HealthEngine {
 
   private heard(unit: UnitRef, tsMs: number, isTelemetry: boolean, s: HealthSettings): void {
     const now = this.opts.now();
+    this.restoredGraceUntil.delete(unit.unitId);
     this.comms.heard(unit.unitId, now, tsMs, isTelemetry);
     // A message clears the unit's comms alarm at once (its clear delay applies).
     this.book.assess(this.subjectOf(unit), 'comms', false, now, timing(s.commsDelayOnMin, s.commsClearDelayMin), () => ({ severity: 'P4', message: '', advice: '', evidence: {} }));

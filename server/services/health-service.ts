@@ -38,9 +38,11 @@ export interface HealthServiceOptions {
   modelMaxAgeMs: number;
   /** Highest tilt units can reach [°] (the modelled global maximum is searched below it). */
   maxTiltDeg: number;
+  /** After a restart, how long units last heard before it get to reconnect before the comms watch judges them [ms]. */
+  restoreGraceMs: number;
 }
 
-export const DEFAULT_HEALTH_SERVICE_OPTIONS: HealthServiceOptions = { now: Date.now, tickMs: 5000, modelRefreshMs: 5 * 60_000, modelMaxAgeMs: 15 * 60_000, maxTiltDeg: 85 };
+export const DEFAULT_HEALTH_SERVICE_OPTIONS: HealthServiceOptions = { now: Date.now, tickMs: 5000, modelRefreshMs: 5 * 60_000, modelMaxAgeMs: 15 * 60_000, maxTiltDeg: 85, restoreGraceMs: 60_000 };
 
 /** Longest on-demand run [h] and most reports it reads. */
 const RUN_MAX_HOURS = 48;
@@ -88,6 +90,12 @@ export class HealthService {
     for (const [siteId, o] of await this.repo.allSettings()) this.settings.set(siteId, resolveHealthSettings(o));
     this.timer = setInterval(() => this.tick(), this.opts.tickMs);
     this.timer.unref();
+  }
+
+  /** Units' last stored messages at start-up ([unit, arrival ms, unit timestamp ms]): the comms watch covers them at once. */
+  restore(last: [UnitInfo, number, number][]): void {
+    const graceUntil = this.opts.now() + this.opts.restoreGraceMs;
+    for (const [unit, arrivalMs, tsMs] of last) this.engine.restore(refOf(unit), arrivalMs, tsMs, graceUntil);
   }
 
   async stop(): Promise<void> {

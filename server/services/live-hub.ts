@@ -1,7 +1,24 @@
 import type { AlarmLiveItem } from '../../shared/contracts/alarms';
 import type { CommandView, LiveClientMessage, LiveServerMessage, UnitLiveState } from '../../shared/contracts/live';
-import type { Telemetry, UnitStatus } from '../../shared/contracts/wire';
+import type { Telemetry, UnitMode, UnitStatus } from '../../shared/contracts/wire';
 import type { Caller } from './caller';
+
+/** The fields of a stored telemetry row the live picture is rebuilt from. */
+export interface StoredReport {
+  ts: Date;
+  mode: string;
+  poa_wm2: number;
+  dc_power_w: number;
+  tilt_deg: number;
+  azimuth_deg: number;
+  cmd_tilt_deg: number;
+  cmd_azimuth_deg: number;
+  tilt_plus_wm2: number;
+  tilt_minus_wm2: number;
+  azimuth_plus_wm2: number;
+  azimuth_minus_wm2: number;
+  module_temp_c: number;
+}
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 export interface LiveSession {
@@ -60,6 +77,20 @@ export class LiveHub {
       azimuthDiffWm2: t.azimuthPlusWm2 - t.azimuthMinusWm2, moduleTempC: t.moduleTempC, onHold: unit.onHold,
     });
     this.dirty.add(unit.id);
+  }
+
+  /**
+   * The last stored report of a unit, at start-up: the board shows what was last known and when, offline until the unit
+   * speaks again, instead of "No reports yet" for a unit that has reported before.
+   */
+  restore(unit: UnitInfo, r: StoredReport): void {
+    const s = this.ensure(unit);
+    if (s.lastReportAt && s.lastReportAt >= r.ts.toISOString()) return;
+    Object.assign(s, {
+      online: false, lastReportAt: r.ts.toISOString(), mode: r.mode as UnitMode, poaWm2: r.poa_wm2, dcPowerW: r.dc_power_w, tiltDeg: r.tilt_deg,
+      azimuthDeg: r.azimuth_deg, cmdTiltDeg: r.cmd_tilt_deg, cmdAzimuthDeg: r.cmd_azimuth_deg, tiltDiffWm2: r.tilt_plus_wm2 - r.tilt_minus_wm2,
+      azimuthDiffWm2: r.azimuth_plus_wm2 - r.azimuth_minus_wm2, moduleTempC: r.module_temp_c, onHold: unit.onHold,
+    });
   }
 
   onStatus(unit: UnitInfo, st: UnitStatus): void {
