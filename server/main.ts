@@ -38,6 +38,16 @@ async function main(): Promise<void> {
   };
   process.once('SIGINT', shutdown);
   process.once('SIGTERM', shutdown);
+  // Every entry point catches its own errors; these are the last line. A stray rejection is logged and the fleet keeps
+  // running. An uncaught exception leaves the process in an unknown state: log it, stop as cleanly as possible and exit;
+  // `npm start` starts the server again (server/scripts/supervise.sh).
+  process.on('unhandledRejection', (err) => log.error({ err }, 'unhandled promise rejection'));
+  process.once('uncaughtException', (err) => {
+    log.fatal({ err }, 'uncaught exception; stopping');
+    const force = setTimeout(() => process.exit(1), 10_000);
+    force.unref();
+    stack.stop().finally(() => process.exit(1));
+  });
 }
 
 void main();

@@ -33,8 +33,9 @@ if [ ! -f "$index" ] || [ -n "$(find src shared angular.json -newer "$index" -ty
   npx ng build >/tmp/brightward-build.log 2>&1 || { tail -40 /tmp/brightward-build.log; exit 1; }
 fi
 
-# Own sessions: Ctrl-C reaches this script only, which then stops the children in order.
-setsid node --import tsx server/main.ts &
+# Own sessions: Ctrl-C reaches this script only, which then stops the children in order. The server runs under a
+# supervisor that starts it again if it ever dies (units store and forward meanwhile, and unacknowledged readings are resent).
+setsid bash server/scripts/supervise.sh server node --import tsx server/main.ts &
 children+=($!)
 for _ in $(seq 1 100); do curl -sf "http://$HOST:$PORT/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
 if ! kill -0 "${children[0]}" 2>/dev/null; then echo "[start] the server did not start (see above)"; exit 1; fi
