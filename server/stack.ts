@@ -165,7 +165,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at))), landscapeRoutes(admin, landscapes), alarmRoutes(health)],
   });
   const http = createServer(app);
-  attachLiveSocket(http, auth, live, log);
+  const wss = attachLiveSocket(http, auth, live, log);
   await new Promise<void>((res, rej) => {
     http.once('error', (err) => rej(new StartupError(`Cannot listen on ${config.host}:${config.port}: ${err.message}. Set BW_PORT to a free port.`)));
     http.listen(config.port, config.host, () => res());
@@ -176,6 +176,10 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   let stopping: Promise<void> | undefined;
   const stop = () =>
     (stopping ??= (async () => {
+      // Upgraded sockets are no longer the HTTP server's to close, and an open dashboard would hold the stop forever:
+      // say "going away" (clients reconnect to the next server) and drop them.
+      for (const ws of wss.clients) ws.close(1001, 'server stopping');
+      setTimeout(() => { for (const ws of wss.clients) ws.terminate(); }, 500).unref();
       http.closeAllConnections();
       await new Promise<void>((res) => http.close(() => res()));
       commands!.stop();

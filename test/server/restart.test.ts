@@ -1,5 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { pino } from 'pino';
+import request from 'supertest';
+import WebSocket from 'ws';
+import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 import { waitFor } from '../helpers/fake-unit';
 import { startStack, type Stack } from '../../server/stack';
@@ -47,5 +50,15 @@ describe('a restart keeps the fleet', () => {
     expect((typeof alarm.evidence === 'string' ? JSON.parse(alarm.evidence) : alarm.evidence).silentUnits).toHaveLength(dark.length);
     // Units that never reported are not part of any comms alarm.
     expect(await t.db('alarms').where({ site_id: other.site_id }).first()).toBeUndefined();
+  });
+
+  it('a graceful stop ends open dashboard sockets with "going away" instead of waiting for them', async () => {
+    const res = await request(stack!.http).post('/api/auth/sign-in').send({ email: 'tech1@saltmarsh.example', password: DEMO_PASSWORD }).expect(200);
+    const ws = new WebSocket(`${stack!.url.replace('http', 'ws')}/ws`, { headers: { Cookie: String(res.headers['set-cookie']).split(';')[0]! } });
+    await new Promise((r) => ws.once('open', r));
+    const closed = new Promise<number>((r) => ws.once('close', (code) => r(code)));
+    await stack!.stop();
+    stack = undefined;
+    expect(await closed).toBe(1001);
   });
 });
