@@ -237,6 +237,9 @@ async function main(): Promise<number> {
         await page.getByRole('button', { name: 'Change password' }).click();
         await page.getByTestId('password-changed').waitFor();
         await page.screenshot({ path: join(OUTPUT, 'change-password-phone.png'), animations: 'disabled' });
+        await page.emulateMedia({ colorScheme: 'dark' });
+        await page.screenshot({ path: join(OUTPUT, 'change-password-phone-dark.png'), animations: 'disabled' });
+        await page.emulateMedia({ colorScheme: 'light' });
         await signOut(page, base);
         await signIn(page, base, 'crew2@saltmarsh.example');
         await page.getByTestId('sign-in-problem').waitFor();

@@ -79,6 +79,7 @@ describe('ChangePassword', () => {
     await fixture.whenStable();
     expect(page.querySelector('[data-testid="password-changed"]')!.textContent).toContain('Other devices signed in as you have been signed out');
     expect(input('newPassword').value).toBe('');
+    expect(errors()).toEqual([]);
     expect(button().disabled).toBe(false);
   });
 

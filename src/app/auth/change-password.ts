@@ -1,5 +1,5 @@
-import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
-import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
+import { ChangeDetectionStrategy, Component, inject, signal, viewChild } from '@angular/core';
+import { FormControl, FormGroup, FormGroupDirective, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
@@ -39,6 +39,7 @@ export class ChangePassword {
   protected readonly problem = signal<string | null>(null);
   protected readonly done = signal(false);
   protected readonly show = signal(false);
+  private readonly formDirective = viewChild.required(FormGroupDirective);
 
   constructor() {
     // Typing a new password again re-checks the repeat field.
@@ -59,7 +60,8 @@ export class ChangePassword {
       next: () => {
         this.saving.set(false);
         this.done.set(true);
-        this.form.reset();
+        // Also forgets that the form was submitted, so the emptied fields show no "required" messages.
+        this.formDirective().resetForm();
       },
       error: (error: unknown) => {
         this.saving.set(false);
