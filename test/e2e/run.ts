@@ -492,11 +492,15 @@ async function main(): Promise<number> {
 
     await check('owners see their own sites’ alarms read-only, and not other owners’', async () => {
       await signIn(page, base, 'owner@quillmoor.example');
+      // Wait for the sign-in to land: navigating away at once can cancel it before the cookie is set.
+      await page.waitForURL(`${base}/sites`);
       await page.goto(`${base}/alarms`);
       await page.getByTestId(`alarm-${alarmId}`).waitFor();
       expectEqual(await page.getByTestId(`ack-${alarmId}`).count(), 0, 'no acknowledge button for owners');
       await signOut(page, base);
       await signIn(page, base, 'owner@fenwicklane.example');
+      // Wait for the sign-in to land: navigating away at once can cancel it before the cookie is set.
+      await page.waitForURL(`${base}/sites`);
       await page.goto(`${base}/alarms`);
       await page.getByTestId('alarms-empty').waitFor();
       expectEqual(await page.getByTestId(`alarm-${alarmId}`).count(), 0, 'another owner does not see it');
