@@ -1,4 +1,52 @@
+import { isIP } from 'node:net';
 import { z } from 'zod';
+
+/** Proxies whose X-Forwarded-For/-Proto Express believes: none (`false`), a hop count, or named addresses/ranges. */
+export type TrustProxy = false | number | string[];
+
+const PROXY_NAMES = new Set(['loopback', 'linklocal', 'uniquelocal']);
+const isAddressOrRange = (s: string) => {
+  const [ip, bits, ...rest] = s.split('/');
+  if (rest.length || !ip || !isIP(ip)) return false;
+  return bits === undefined || (/^\d{1,3}$/.test(bits) && Number(bits) <= (isIP(ip) === 4 ? 32 : 128));
+};
+
+const trustProxy = z
+  .string()
+  .trim()
+  .default('off')
+  .transform((v, ctx): TrustProxy => {
+    if (v === '' || v === 'off' || v === 'false') return false;
+    if (/^\d{1,2}$/.test(v)) return Number(v) || false;
+    const parts = v.split(',').map((p) => p.trim()).filter(Boolean);
+    const bad = parts.filter((p) => !PROXY_NAMES.has(p) && !isAddressOrRange(p));
+    if (bad.length || !parts.length) {
+      ctx.addIssue({ code: 'custom', message: `off, a hop count, or a comma list of loopback, linklocal, uniquelocal, IP addresses or CIDR ranges (not ${bad.join(', ') || 'empty'})` });
+      return z.NEVER;
+    }
+    return parts;
+  });
+
+const allowedOrigins = z
+  .string()
+  .default('')
+  .transform((v, ctx): string[] => {
+    const out: string[] = [];
+    for (const raw of v.split(',').map((p) => p.trim()).filter(Boolean)) {
+      let url: URL | undefined;
+      try {
+        url = new URL(raw);
+      } catch {
+        url = undefined;
+      }
+      if (!url || (url.protocol !== 'http:' && url.protocol !== 'https:') || url.origin !== raw.toLowerCase().replace(/\/$/, '')) {
+        ctx.addIssue({ code: 'custom', message: `origins like https://ops.example.org, comma-separated, without path (not ${raw})` });
+        return z.NEVER;
+      }
+      out.push(url.origin);
+    }
+    return out;
+  });
 
 /** Runtime settings, read once from the environment and validated at start-up. Defaults are documented in README. */
 const envSchema = z.object({
@@ -23,6 +71,8 @@ const envSchema = z.object({
   BW_INGEST_MAX_BUFFER_ROWS: z.coerce.number().int().min(1000).default(200000),
   BW_INGEST_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(2),
   BW_BCRYPT_COST: z.coerce.number().int().min(4).max(15).default(10),
+  BW_TRUST_PROXY: trustProxy,
+  BW_ALLOWED_ORIGINS: allowedOrigins,
 });
 
 export interface Config {
@@ -37,6 +87,10 @@ export interface Config {
   logLevel: z.infer<typeof envSchema>['BW_LOG_LEVEL'];
   signInLimitPerMinute: number;
   bcryptCost: number;
+  /** Proxies in front of the server whose forwarded client address and scheme are believed; none by default. */
+  trustProxy: TrustProxy;
+  /** Origins besides the server's own that may send state-changing requests and open the live socket. */
+  allowedOrigins: string[];
   ingest: { retentionDays: number; batchRows: number; flushMs: number; maxBufferRows: number; flushConcurrency: number };
 }
 
@@ -60,6 +114,8 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     logLevel: e.BW_LOG_LEVEL,
     signInLimitPerMinute: e.BW_SIGNIN_LIMIT_PER_MIN,
     bcryptCost: e.BW_BCRYPT_COST,
+    trustProxy: e.BW_TRUST_PROXY,
+    allowedOrigins: e.BW_ALLOWED_ORIGINS,
     ingest: { retentionDays: e.BW_RAW_RETENTION_DAYS, batchRows: e.BW_INGEST_BATCH_ROWS, flushMs: e.BW_INGEST_FLUSH_MS, maxBufferRows: e.BW_INGEST_MAX_BUFFER_ROWS, flushConcurrency: e.BW_INGEST_CONCURRENCY },
   };
 }

@@ -1,6 +1,6 @@
 import { pino } from 'pino';
 import { ConfigError, loadConfig } from './config';
-import { StartupError, startStack } from './stack';
+import { StartupError, VERSION, startStack } from './stack';
 
 /** Entry point: validate config, start the stack, stop cleanly on SIGINT/SIGTERM. */
 async function main(): Promise<void> {
@@ -25,7 +25,7 @@ async function main(): Promise<void> {
     }
     throw err;
   }
-  log.info({ url: stack.url, brokerPort: stack.broker.port }, 'Brightward server ready');
+  log.info({ url: stack.url, brokerPort: stack.broker.port, version: VERSION }, 'Brightward server ready');
   const shutdown = (signal: string) => {
     log.info({ signal }, 'stopping');
     stack.stop().then(

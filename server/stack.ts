@@ -4,15 +4,18 @@ import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { pino, type Logger } from 'pino';
 import type { Config } from './config';
-import { createDb, describeDbError, type Db } from './data/db';
+import { createDb, describeDbError, pingDatabase, type Db } from './data/db';
 import { UserRepository } from './data/user-repository';
 import { OwnerRepository } from './data/owner-repository';
 import { SiteRepository } from './data/site-repository';
 import { UnitRepository } from './data/unit-repository';
 import { AuditRepository } from './data/audit-repository';
+import { SessionRepository } from './data/session-repository';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
+import { Passwords } from './services/passwords';
+import { SessionEvents } from './services/session-events';
 import { deviceSecretMatches } from './services/device-secret';
 import { TelemetryRepository } from './data/telemetry-repository';
 import { CommandRepository } from './data/command-repository';
@@ -69,6 +72,8 @@ export interface StackOptions {
   listeners?: IngestListeners;
   rollupIntervalMs?: number;
   health?: Partial<HealthServiceOptions>;
+  /** How often open live sockets have their session checked again [ms]; default 30 s. */
+  sessionRecheckMs?: number;
 }
 
 export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel }), opts: StackOptions = {}): Promise<Stack> {
@@ -82,11 +87,13 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const users = new UserRepository(db);
   const units = new UnitRepository(db);
   const audit = new AuditRepository(db);
-  const auth = new AuthService(users, audit, new SignInLimiter(config.signInLimitPerMinute, Date.now), {
+  const passwords = new Passwords(config.bcryptCost);
+  const sessionEvents = new SessionEvents();
+  const auth = new AuthService({ users, sessions: new SessionRepository(db), audit }, new SignInLimiter(config.signInLimitPerMinute), passwords, sessionEvents, {
     secret: config.sessionSecret ?? randomBytes(32).toString('hex'),
     sessionHours: config.sessionHours,
   });
-  const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, config.bcryptCost);
+  const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, passwords, auth);
 
   const siteModel = new SiteModelService(db);
   const landscapes = new LandscapeService(siteModel);
@@ -158,14 +165,15 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   commands.start();
   await health.start();
 
+  const allowedOrigins = new Set(config.allowedOrigins);
   const app = createApp({
-    db, log, auth, admin, version: VERSION, webDir: config.webDir,
+    log, auth, admin, webDir: config.webDir, trustProxy: config.trustProxy, allowedOrigins, pingDatabase: () => pingDatabase(db),
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
     routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit),
       traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at))), landscapeRoutes(admin, landscapes), alarmRoutes(health)],
   });
   const http = createServer(app);
-  const wss = attachLiveSocket(http, auth, live, log);
+  const liveSocket = attachLiveSocket(http, auth, live, sessionEvents, log, { allowedOrigins, sessionRecheckMs: opts.sessionRecheckMs ?? 30_000 });
   await new Promise<void>((res, rej) => {
     http.once('error', (err) => rej(new StartupError(`Cannot listen on ${config.host}:${config.port}: ${err.message}. Set BW_PORT to a free port.`)));
     http.listen(config.port, config.host, () => res());
@@ -176,10 +184,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   let stopping: Promise<void> | undefined;
   const stop = () =>
     (stopping ??= (async () => {
-      // Upgraded sockets are no longer the HTTP server's to close, and an open dashboard would hold the stop forever:
-      // say "going away" (clients reconnect to the next server) and drop them.
-      for (const ws of wss.clients) ws.close(1001, 'server stopping');
-      setTimeout(() => { for (const ws of wss.clients) ws.terminate(); }, 500).unref();
+      liveSocket.close();
       http.closeAllConnections();
       await new Promise<void>((res) => http.close(() => res()));
       commands!.stop();

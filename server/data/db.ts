@@ -25,6 +25,11 @@ export function createDb(db: Config['db']): Db {
   });
 }
 
+/** Resolves when the database answers a trivial query. */
+export async function pingDatabase(db: Db): Promise<void> {
+  await db.raw('SELECT 1');
+}
+
 export async function migrateLatest(db: Db): Promise<string[]> {
   const [, applied] = (await db.migrate.latest()) as [number, string[]];
   return applied;

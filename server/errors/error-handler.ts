@@ -10,6 +10,12 @@ export const apiNotFound: RequestHandler = (req, _res, next) => {
 /** The one error handler, registered last. Operational errors keep their status; anything else is a 500 that is logged. */
 export function errorHandler(log: Logger): ErrorRequestHandler {
   return (err, req, res, _next) => {
+    if (res.headersSent) {
+      // Too late for an error answer: log it and end the response so the client is not left waiting.
+      log.error({ err, method: req.method, url: req.originalUrl }, 'error after the answer had started');
+      res.destroy();
+      return;
+    }
     if (err instanceof AppError) {
       res.status(err.status).json({ error: { code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) } });
       return;

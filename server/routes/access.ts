@@ -1,23 +1,28 @@
 import type { NextFunction, Request, RequestHandler, Response } from 'express';
 import type { Role } from '../../shared/contracts/api';
 import { forbidden } from '../errors/app-error';
-import type { AuthService } from '../services/auth-service';
-import type { Caller } from '../services/caller';
+import type { AuthService, SessionCaller } from '../services/auth-service';
 
 export const SESSION_COOKIE = 'bw_session';
 
 declare module 'express-serve-static-core' {
   interface Request {
-    caller?: Caller & { name: string; email: string };
+    caller?: SessionCaller;
   }
 }
 
-/** Resolves the session cookie (or an `Authorization: Bearer` token, for scripts) to `req.caller`; 401 otherwise. */
+/** The session token of a request: the session cookie, or an `Authorization: Bearer` token (scripts). */
+export function tokenOf(req: Request): string | undefined {
+  const cookie: unknown = req.cookies?.[SESSION_COOKIE];
+  if (typeof cookie === 'string' && cookie) return cookie;
+  const header = req.headers.authorization;
+  return header?.startsWith('Bearer ') ? header.slice(7).trim() || undefined : undefined;
+}
+
+/** Resolves the session token to `req.caller` (an open session of an enabled user); 401 otherwise. */
 export function requireSession(auth: AuthService): RequestHandler {
   return async (req: Request, _res: Response, next: NextFunction) => {
-    const header = req.headers.authorization;
-    const bearer = header?.startsWith('Bearer ') ? header.slice(7) : undefined;
-    req.caller = await auth.verify(req.cookies?.[SESSION_COOKIE] ?? bearer);
+    req.caller = await auth.verify(tokenOf(req));
     next();
   };
 }

@@ -1,6 +1,6 @@
 import { Router } from 'express';
+import type { Logger } from 'pino';
 import type { Health } from '../../shared/contracts/api';
-import type { Db } from '../data/db';
 
 export interface BrokerStatus {
   ok: boolean;
@@ -8,20 +8,28 @@ export interface BrokerStatus {
   clients: number;
 }
 
-/** `GET /api/health`: answers without a session so supervisors can poll it; 503 when the database is down. */
-export function healthRoutes(db: Db, broker: () => BrokerStatus, version: string): Router {
+/**
+ * `GET /api/health`: answers without a session so supervisors can poll it; 503 when the database is down. Anyone may
+ * ask, so it says only ok or not: the reason goes to the server log, once per change of state.
+ */
+export function healthRoutes(pingDatabase: () => Promise<void>, broker: () => BrokerStatus, log: Logger): Router {
   const r = Router();
+  let lastProblem: string | null = null;
   r.get('/health', async (_req, res) => {
-    let database: Health['database'];
+    let problem: string | null = null;
     try {
-      await db.raw('SELECT 1');
-      database = { ok: true };
+      await pingDatabase();
     } catch (err) {
-      database = { ok: false, error: (err as Error).message };
+      problem = (err as Error)?.message ?? String(err);
+    }
+    if (problem !== lastProblem) {
+      if (problem) log.warn({ problem }, 'health: database unavailable');
+      else log.info('health: database available again');
+      lastProblem = problem;
     }
     const b = broker();
-    const body: Health = { status: database.ok && b.ok ? 'ok' : 'degraded', version, database, broker: b };
-    res.status(database.ok ? 200 : 503).json(body);
+    const body: Health = { status: !problem && b.ok ? 'ok' : 'degraded', database: { ok: !problem }, broker: { ok: b.ok } };
+    res.status(problem ? 503 : 200).json(body);
   });
   return r;
 }

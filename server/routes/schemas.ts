@@ -1,10 +1,15 @@
 import { z } from 'zod';
 import { ROLES } from '../../shared/contracts/api';
+import { MAX_PASSWORD_BYTES, utf8Bytes } from '../services/passwords';
 import { num, timeZone } from './validation';
 
 const email = z.email('Must be an e-mail address.').max(254);
 const name = z.string().trim().min(1, 'Required.').max(120, 'At most 120 characters.');
-const password = z.string().min(10, 'At least 10 characters.').max(200, 'At most 200 characters.');
+// bcrypt ignores every byte past the 72nd, so a longer password would only seem to count in full.
+const password = z
+  .string({ error: 'Required.' })
+  .min(10, 'At least 10 characters.')
+  .refine((s) => utf8Bytes(s) <= MAX_PASSWORD_BYTES, `At most ${MAX_PASSWORD_BYTES} bytes (UTF-8): fewer characters when they are accented or not Latin.`);
 const role = z.enum(ROLES, `Must be one of ${ROLES.join(', ')}.`);
 const id = z.number().int().positive();
 
@@ -13,6 +18,7 @@ export const signInBody = z.strictObject({ email: z.string().min(1, 'Required.')
 export const createUserBody = z.strictObject({ email, name, role, ownerId: id.nullable().optional(), password });
 export const updateUserBody = z.strictObject({ name: name.optional(), role: role.optional(), ownerId: id.nullable().optional(), disabled: z.boolean().optional() });
 export const passwordBody = z.strictObject({ password });
+export const changePasswordBody = z.strictObject({ currentPassword: z.string({ error: 'Required.' }).min(1, 'Required.').max(200), newPassword: password });
 
 export const ownerBody = z.strictObject({ name, contactEmail: email.nullable().optional() });
 

@@ -1,4 +1,3 @@
-import bcrypt from 'bcryptjs';
 import type {
   CreateUserRequest, Owner, OwnerInput, Site, SiteInput, Unit, UnitInput, UpdateUserRequest, User,
 } from '../../shared/contracts/api';
@@ -10,6 +9,8 @@ import type { UnitRepository, UnitRow } from '../data/unit-repository';
 import { toUser, type UserRepository } from '../data/user-repository';
 import { scopeOf, type Caller } from './caller';
 import { hashDeviceSecret, newDeviceSecret } from './device-secret';
+import type { Passwords } from './passwords';
+import type { SessionRevoker } from './auth-service';
 
 export interface AdminRepositories {
   users: UserRepository;
@@ -23,7 +24,9 @@ export interface AdminRepositories {
 export class AdminService {
   constructor(
     private readonly repo: AdminRepositories,
-    private readonly bcryptCost: number,
+    private readonly passwords: Passwords,
+    /** Ends a user's sessions when their access changes (disabled, role, owner, password). */
+    private readonly sessions: SessionRevoker,
   ) {}
 
   // ---- people
@@ -37,7 +40,7 @@ export class AdminService {
     const ownerId = await this.checkOwnerLink(input.role, input.ownerId ?? null);
     const id = await this.repo.users.insert({
       email, name: input.name, role: input.role, owner_id: ownerId,
-      password_hash: await bcrypt.hash(input.password, this.bcryptCost),
+      password_hash: await this.passwords.hash(input.password),
     });
     await this.repo.audit.append({ userId: by.id, action: 'user-create', target: `user:${id}`, detail: { email, role: input.role } });
     return this.getUser(id);
@@ -57,12 +60,16 @@ export class AdminService {
       ...(patch.disabled !== undefined ? { disabled: patch.disabled } : {}),
     });
     await this.repo.audit.append({ userId: by.id, action: 'user-update', target: `user:${id}`, detail: patch });
+    // Whoever holds a session of this user was let in as the old role/owner: they sign in again.
+    const disabled = patch.disabled === true && !current.disabled;
+    if (disabled || role !== current.role || ownerId !== current.owner_id) await this.sessions.endSessionsOf(id);
     return this.getUser(id);
   }
 
   async resetPassword(by: Caller, id: number, password: string): Promise<void> {
     if (!(await this.repo.users.findById(id))) throw notFound('User');
-    await this.repo.users.update(id, { password_hash: await bcrypt.hash(password, this.bcryptCost) });
+    await this.repo.users.update(id, { password_hash: await this.passwords.hash(password) });
+    await this.sessions.endSessionsOf(id);
     await this.repo.audit.append({ userId: by.id, action: 'user-password-reset', target: `user:${id}` });
   }
 

@@ -1,29 +1,33 @@
+import { RateLimiterMemory, RateLimiterRes } from 'rate-limiter-flexible';
+
 /**
- * Counts failed sign-ins per key (account e-mail, client address) over a sliding minute.
+ * Attempts per key (an account, a client address) over a fixed minute. An attempt is taken *before* the password is
+ * checked, so a parallel burst cannot slip past the count; a successful attempt is given back, so only failures add up.
  * In memory: one server process serves the API, and a restart forgetting counts is acceptable.
  */
 export class SignInLimiter {
-  private readonly failures = new Map<string, number[]>();
+  private readonly limiter: RateLimiterMemory;
 
-  constructor(
-    private readonly limitPerMinute: number,
-    private readonly now: () => number,
-  ) {}
-
-  /** Whether any of the keys has used up its failures for the current minute. */
-  isBlocked(keys: string[]): boolean {
-    return keys.some((k) => this.recent(k).length >= this.limitPerMinute);
+  constructor(limitPerMinute: number) {
+    this.limiter = new RateLimiterMemory({ points: limitPerMinute, duration: 60 });
   }
 
-  recordFailure(keys: string[]): void {
-    for (const k of keys) this.failures.set(k, [...this.recent(k), this.now()]);
+  /** Takes one attempt from each key; false when any key had none left. */
+  async take(keys: readonly string[]): Promise<boolean> {
+    let ok = true;
+    for (const key of keys) {
+      try {
+        await this.limiter.consume(key);
+      } catch (err) {
+        if (!(err instanceof RateLimiterRes)) throw err;
+        ok = false;
+      }
+    }
+    return ok;
   }
 
-  private recent(key: string): number[] {
-    const since = this.now() - 60_000;
-    const list = (this.failures.get(key) ?? []).filter((t) => t > since);
-    if (list.length) this.failures.set(key, list);
-    else this.failures.delete(key);
-    return list;
+  /** Gives back the attempt taken from each key (the password was right). */
+  async giveBack(keys: readonly string[]): Promise<void> {
+    for (const key of keys) await this.limiter.reward(key, 1);
   }
 }

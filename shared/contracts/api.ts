@@ -40,7 +40,7 @@ export interface CreateUserRequest {
   name: string;
   role: Role;
   ownerId?: number | null;
-  /** At least 10 characters. */
+  /** At least 10 characters and at most 72 bytes in UTF-8. */
   password: string;
 }
 
@@ -128,11 +128,17 @@ export interface UnitInput {
   disabled?: boolean;
 }
 
+/** `GET /api/health`, public: whether each part works, nothing more (the reasons are in the server log). */
 export interface Health {
   status: 'ok' | 'degraded';
-  version: string;
-  database: { ok: boolean; error?: string };
-  broker: { ok: boolean; port: number | null; clients: number };
+  database: { ok: boolean };
+  broker: { ok: boolean };
+}
+
+export interface ChangePasswordRequest {
+  currentPassword: string;
+  /** At least 10 characters and at most 72 bytes in UTF-8. */
+  newPassword: string;
 }
 
 /** A facade that mirrors sun and sky, as surveyed from the site (angles in degrees, azimuth clockwise from north). */

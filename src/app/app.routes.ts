@@ -77,6 +77,12 @@ export const routes: Routes = [
         loadChildren: () => import('./admin/admin.routes').then((m) => m.adminRoutes),
       },
       {
+        // Every role: reached from the account menu.
+        path: 'account/password',
+        title: 'Change password · Brightward',
+        loadComponent: () => import('./auth/change-password').then((m) => m.ChangePassword),
+      },
+      {
         path: 'no-access',
         title: 'No access · Brightward',
         loadComponent: () => import('./auth/no-access').then((m) => m.NoAccess),

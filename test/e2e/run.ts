@@ -115,6 +115,11 @@ async function main(): Promise<number> {
       const url = request.url();
       if (!url.startsWith(origin) && !url.startsWith('data:') && !url.startsWith('blob:')) offMachine.push(url);
     });
+    // The built dashboard must run under the server's content security policy: any refusal shows as a console message.
+    const cspViolations: string[] = [];
+    context.on('console', (message) => {
+      if (/Content Security Policy/i.test(message.text())) cspViolations.push(message.text());
+    });
     const page = context.pages()[0] ?? (await context.newPage());
 
     async function check(name: string, body: () => Promise<void>): Promise<void> {
@@ -216,6 +221,36 @@ async function main(): Promise<number> {
         await page.waitForURL(/\/sign-in\?returnUrl=%2Fsites$/);
       });
     }
+
+    await check('a field crew member changes their own password from the account menu on a phone, and only the new one signs in', async () => {
+      const newPassword = 'kwame-has-a-new-password';
+      await page.setViewportSize({ width: 360, height: 740 });
+      try {
+        await signIn(page, base, 'crew2@saltmarsh.example');
+        await page.waitForURL(`${base}/fleet`);
+        await page.getByTestId('user-menu').click();
+        await page.getByTestId('change-password').click();
+        await page.waitForURL(`${base}/account/password`);
+        await page.getByLabel('Current password').fill(PASSWORD);
+        await page.getByLabel('New password', { exact: true }).fill(newPassword);
+        await page.getByLabel('New password again').fill(newPassword);
+        await page.getByRole('button', { name: 'Change password' }).click();
+        await page.getByTestId('password-changed').waitFor();
+        await page.screenshot({ path: join(OUTPUT, 'change-password-phone.png'), animations: 'disabled' });
+        await page.emulateMedia({ colorScheme: 'dark' });
+        await page.screenshot({ path: join(OUTPUT, 'change-password-phone-dark.png'), animations: 'disabled' });
+        await page.emulateMedia({ colorScheme: 'light' });
+        await signOut(page, base);
+        await signIn(page, base, 'crew2@saltmarsh.example');
+        await page.getByTestId('sign-in-problem').waitFor();
+        await page.getByLabel('Password', { exact: true }).fill(newPassword);
+        await page.getByRole('button', { name: 'Sign in' }).click();
+        await page.waitForURL(`${base}/fleet`);
+        await signOut(page, base);
+      } finally {
+        await page.setViewportSize({ width: 1280, height: 800 });
+      }
+    });
 
     await check('an owner opening another owner’s site sees "not found"', async () => {
       await signIn(page, base, 'owner@quillmoor.example');
@@ -457,11 +492,15 @@ async function main(): Promise<number> {
 
     await check('owners see their own sites’ alarms read-only, and not other owners’', async () => {
       await signIn(page, base, 'owner@quillmoor.example');
+      // Wait for the sign-in to land: navigating away at once can cancel it before the cookie is set.
+      await page.waitForURL(`${base}/sites`);
       await page.goto(`${base}/alarms`);
       await page.getByTestId(`alarm-${alarmId}`).waitFor();
       expectEqual(await page.getByTestId(`ack-${alarmId}`).count(), 0, 'no acknowledge button for owners');
       await signOut(page, base);
       await signIn(page, base, 'owner@fenwicklane.example');
+      // Wait for the sign-in to land: navigating away at once can cancel it before the cookie is set.
+      await page.waitForURL(`${base}/sites`);
       await page.goto(`${base}/alarms`);
       await page.getByTestId('alarms-empty').waitFor();
       expectEqual(await page.getByTestId(`alarm-${alarmId}`).count(), 0, 'another owner does not see it');
@@ -551,6 +590,16 @@ async function main(): Promise<number> {
 
     await check('no request left the machine', async () => {
       expectEqual(offMachine, [], 'requests to other hosts');
+    });
+
+    await check('the dashboard ran under a content security policy that allows only its own scripts, with nothing refused', async () => {
+      const response = await page.goto(`${base}/sign-in`);
+      const csp = (await response?.headerValue('content-security-policy')) ?? '';
+      expectTrue(/script-src 'self'(;|$)/.test(csp), `script-src 'self' only (got "${csp}")`);
+      await page.getByRole('heading', { name: 'Sign in to Brightward' }).waitFor();
+      const font = await page.evaluate(() => getComputedStyle(document.body).fontFamily);
+      expectTrue(font.includes('Inter'), `the stylesheet applied (body font ${font})`);
+      expectEqual(cspViolations, [], 'content security policy refusals');
     });
   } finally {
     await context?.close().catch(() => undefined);

@@ -19,7 +19,8 @@ export const authInterceptor: HttpInterceptorFn = (request, next) => {
   return next(request).pipe(
     catchError((error: unknown) => {
       if (error instanceof HttpErrorResponse && !handledByCaller(request.url)) {
-        if (error.status === 401) {
+        // A 401 racing a sign-out, or after the session was already dropped here, needs no second trip to sign-in.
+        if (error.status === 401 && !session.signingOut && session.me()) {
           session.forget();
           const here = router.url;
           const returnUrl = here.startsWith('/sign-in') ? undefined : here;

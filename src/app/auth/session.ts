@@ -1,7 +1,7 @@
 import { HttpClient } from '@angular/common/http';
 import { computed, inject, Injectable, signal } from '@angular/core';
 import { firstValueFrom, Observable, tap } from 'rxjs';
-import type { Me, Role, SignInRequest } from '../../../shared/contracts/api';
+import type { ChangePasswordRequest, Me, Role, SignInRequest } from '../../../shared/contracts/api';
 
 /**
  * Who is signed in. The session itself lives in an httpOnly cookie the dashboard cannot read,
@@ -12,6 +12,7 @@ export class Session {
   private readonly http = inject(HttpClient);
   private readonly current = signal<Me | null>(null);
   private restoring: Promise<Me | null> | null = null;
+  private leaving = false;
 
   /** The signed-in user, or null. */
   readonly me = this.current.asReadonly();
@@ -42,8 +43,26 @@ export class Session {
     );
   }
 
+  /** True from the moment the user asks to sign out until the server has answered. */
+  get signingOut(): boolean {
+    return this.leaving;
+  }
+
   signOut(): Observable<void> {
-    return this.http.post<void>('/api/auth/sign-out', null).pipe(tap({ finalize: () => this.forget() }));
+    this.leaving = true;
+    return this.http.post<void>('/api/auth/sign-out', null).pipe(
+      tap({
+        finalize: () => {
+          this.leaving = false;
+          this.forget();
+        },
+      }),
+    );
+  }
+
+  /** Changes the signed-in user's own password; the server ends their other sessions, this one stays. */
+  changePassword(request: ChangePasswordRequest): Observable<void> {
+    return this.http.post<void>('/api/me/password', request);
   }
 
   /** Drops the local knowledge of the user (after sign-out, or when the server says 401). */

@@ -1,6 +1,10 @@
 import { DestroyRef } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { provideRouter, Router } from '@angular/router';
 import type { LiveServerMessage } from '../../../shared/contracts/live';
+import { Session } from '../auth/session';
 import { LIVE_SOCKET_FACTORY, LiveConnection, reconnectDelayMs } from './live-connection';
 
 /** A socket the test drives by hand. */
@@ -10,7 +14,7 @@ class FakeSocket {
   sent: unknown[] = [];
   onopen: (() => void) | null = null;
   onmessage: ((e: { data: string }) => void) | null = null;
-  onclose: (() => void) | null = null;
+  onclose: ((e?: { code: number }) => void) | null = null;
   constructor(readonly url: string) {
     FakeSocket.all.push(this);
   }
@@ -25,9 +29,9 @@ class FakeSocket {
     this.readyState = 1;
     this.onopen?.();
   }
-  drop() {
+  drop(code = 1006) {
     this.readyState = 3;
-    this.onclose?.();
+    this.onclose?.({ code });
   }
 }
 
@@ -47,7 +51,14 @@ describe('live connection', () => {
   beforeEach(() => {
     FakeSocket.all = [];
     vi.useFakeTimers();
-    TestBed.configureTestingModule({ providers: [{ provide: LIVE_SOCKET_FACTORY, useValue: (url: string) => new FakeSocket(url) as unknown as WebSocket }] });
+    TestBed.configureTestingModule({
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        provideRouter([]),
+        { provide: LIVE_SOCKET_FACTORY, useValue: (url: string) => new FakeSocket(url) as unknown as WebSocket },
+      ],
+    });
   });
   afterEach(() => vi.useRealTimers());
 
@@ -105,5 +116,34 @@ describe('live connection', () => {
     expect(live.state()).toBe('offline');
     vi.advanceTimersByTime(60_000);
     expect(FakeSocket.all).toHaveLength(1);
+  });
+
+  it('stops reconnecting and goes to sign-in when the server ends the session (close code 4401)', () => {
+    const live = TestBed.inject(LiveConnection);
+    const session = TestBed.inject(Session);
+    session.signIn({ email: 'tech1@saltmarsh.example', password: 'x' }).subscribe();
+    TestBed.inject(HttpTestingController).expectOne('/api/auth/sign-in').flush({ id: 3, email: 'tech1@saltmarsh.example', name: 'Mara Okonjo', role: 'technician', ownerId: null });
+    const forget = vi.spyOn(session, 'forget');
+    const navigate = vi.spyOn(TestBed.inject(Router), 'navigate').mockResolvedValue(true);
+    live.watch({ fleet: true }, new Lifetime());
+    const s = FakeSocket.all[0]!;
+    s.open();
+    s.drop(4401);
+    expect(live.state()).toBe('offline');
+    expect(forget).toHaveBeenCalled();
+    expect(navigate).toHaveBeenCalledWith(['/sign-in'], { queryParams: { returnUrl: '/' } });
+    vi.advanceTimersByTime(60_000);
+    expect(FakeSocket.all).toHaveLength(1);
+  });
+
+  it('leaves the navigation to a sign-out started here when that sign-out ends the socket', () => {
+    const live = TestBed.inject(LiveConnection);
+    const navigate = vi.spyOn(TestBed.inject(Router), 'navigate').mockResolvedValue(true);
+    live.watch({ fleet: true }, new Lifetime());
+    FakeSocket.all[0]!.open();
+    TestBed.inject(Session).signOut().subscribe();
+    FakeSocket.all[0]!.drop(4401);
+    expect(live.state()).toBe('offline');
+    expect(navigate).not.toHaveBeenCalled();
   });
 });

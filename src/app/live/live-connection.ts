@@ -1,6 +1,11 @@
-import { DestroyRef, inject, Injectable, InjectionToken, signal } from '@angular/core';
+import { DestroyRef, inject, Injectable, InjectionToken, Injector, signal } from '@angular/core';
+import { Router } from '@angular/router';
 import { Observable, Subject } from 'rxjs';
 import type { LiveClientMessage, LiveServerMessage } from '../../../shared/contracts/live';
+import { Session } from '../auth/session';
+
+/** Close code the server sends when the session behind the socket has ended (signed out, disabled, role changed). */
+export const SESSION_ENDED_CLOSE = 4401;
 
 /** What the dashboard shows about its live link. */
 export type LinkState = 'connecting' | 'live' | 'reconnecting' | 'offline';
@@ -26,6 +31,7 @@ const topicKey = (t: Topic) => (t.fleet ? 'fleet' : t.siteId !== undefined ? `si
 @Injectable({ providedIn: 'root' })
 export class LiveConnection {
   private readonly create = inject(LIVE_SOCKET_FACTORY);
+  private readonly injector = inject(Injector);
   private socket: WebSocket | null = null;
   private attempt = 0;
   private timer: ReturnType<typeof setTimeout> | null = null;
@@ -100,12 +106,28 @@ export class LiveConnection {
         // A malformed frame is ignored; the next snapshot repairs the state.
       }
     };
-    socket.onclose = () => {
+    socket.onclose = (event?: CloseEvent) => {
       if (this.socket !== socket) return;
       this.socket = null;
-      if (this.topics.size) this.scheduleReconnect();
+      if (event?.code === SESSION_ENDED_CLOSE) this.sessionEnded();
+      else if (this.topics.size) this.scheduleReconnect();
       else this.stateSignal.set('offline');
     };
+  }
+
+  /** Reconnecting would only be refused: go to sign-in, coming back here afterwards. */
+  private sessionEnded(): void {
+    this.clearTimer();
+    this.attempt = 0;
+    this.nextRetry.set(null);
+    this.stateSignal.set('offline');
+    const session = this.injector.get(Session);
+    // A sign-out from this dashboard ends the session too; the sign-out (or whoever dropped the session) goes to sign-in.
+    if (session.signingOut || !session.me()) return;
+    session.forget();
+    const router = this.injector.get(Router);
+    const here = router.url;
+    void router.navigate(['/sign-in'], { queryParams: { returnUrl: here.startsWith('/sign-in') ? undefined : here } });
   }
 
   private scheduleReconnect(): void {

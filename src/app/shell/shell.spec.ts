@@ -69,4 +69,18 @@ describe('Shell', () => {
     await fixture.whenStable();
     expect(document.documentElement.dataset['scheme']).toBeUndefined();
   });
+
+  it('offers every role a way to change their own password from the account menu', async () => {
+    for (const role of ['owner', 'crew'] as const) {
+      TestBed.resetTestingModule();
+      const { fixture, element } = await renderAs(role);
+      (element.querySelector('[data-testid="user-menu"]') as HTMLButtonElement).click();
+      await fixture.whenStable();
+      const link = document.querySelector<HTMLAnchorElement>('[data-testid="change-password"]')!;
+      expect(link.textContent).toContain('Change password');
+      expect(link.getAttribute('href')).toBe('/account/password');
+      document.body.dispatchEvent(new KeyboardEvent('keydown', { key: 'Escape' }));
+      fixture.destroy();
+    }
+  });
 });

@@ -1,5 +1,5 @@
 import { FormControl, FormGroup } from '@angular/forms';
-import { above, errorText, inRange, oneOf, serial } from './validation';
+import { above, errorText, inRange, maxUtf8Bytes, oneOf, serial } from './validation';
 
 describe('form validation', () => {
   it('checks ranges inclusively and leaves empty values to required', () => {
@@ -47,5 +47,16 @@ describe('form validation', () => {
 
   it('prefers the server’s message', () => {
     expect(errorText({ required: true, server: 'Taken.' }, 'Name')).toBe('Taken.');
+  });
+
+  it('counts a password in UTF-8 bytes, as the server does: 72 fit, 73 do not', () => {
+    const password = new FormControl('', maxUtf8Bytes(72));
+    password.setValue('a'.repeat(72));
+    expect(password.errors).toBeNull();
+    password.setValue('é'.repeat(36));
+    expect(password.errors).toBeNull();
+    password.setValue(`${'é'.repeat(36)}a`);
+    expect(password.errors).toEqual({ maxBytes: { max: 72, actual: 73 } });
+    expect(errorText(password.errors, 'Password')).toBe('Password may have at most 72 bytes: fewer characters when they are accented or not Latin.');
   });
 });

@@ -3,6 +3,19 @@ import { AbstractControl, ValidationErrors, ValidatorFn } from '@angular/forms';
 /** Serial numbers: capital letters, digits and dashes, 3–32 characters, not starting with a dash. */
 export const SERIAL_PATTERN = /^[A-Z0-9][A-Z0-9-]{2,31}$/;
 export const MIN_PASSWORD_LENGTH = 10;
+/** bcrypt on the server reads at most this many bytes of a password (UTF-8); longer ones are refused. */
+export const MAX_PASSWORD_BYTES = 72;
+
+/** At most `max` bytes once encoded as UTF-8 (accented letters take 2 bytes, most other scripts 3, emoji 4). */
+export function maxUtf8Bytes(max: number): ValidatorFn {
+  const encoder = new TextEncoder();
+  return (control: AbstractControl): ValidationErrors | null => {
+    const value = control.value;
+    if (typeof value !== 'string' || !value) return null;
+    const bytes = encoder.encode(value).length;
+    return bytes <= max ? null : { maxBytes: { max, actual: bytes } };
+  };
+}
 
 /** A number from `min` to `max` inclusive; the unit is only used in the message. */
 export function inRange(min: number, max: number, unit = ''): ValidatorFn {
@@ -21,6 +34,14 @@ export function above(minName: string, minLabel: string): ValidatorFn {
     const value = control.value;
     if (low === null || low === undefined || value === null || value === undefined || value === '') return null;
     return Number(value) > Number(low) ? null : { above: { minLabel } };
+  };
+}
+
+/** The value must equal the sibling control `otherName` (a repeated password). */
+export function matches(otherName: string): ValidatorFn {
+  return (control: AbstractControl): ValidationErrors | null => {
+    const other = control.parent?.get(otherName)?.value;
+    return !control.value || control.value === other ? null : { mismatch: true };
   };
 }
 
@@ -60,6 +81,11 @@ export function errorText(errors: ValidationErrors | null | undefined, label: st
   if (errors['maxlength']) {
     return `${label} may have at most ${(errors['maxlength'] as { requiredLength: number }).requiredLength} characters.`;
   }
+  if (errors['maxBytes']) {
+    const { max } = errors['maxBytes'] as { max: number };
+    return `${label} may have at most ${max} bytes: fewer characters when they are accented or not Latin.`;
+  }
+  if (errors['mismatch']) return `${label} does not match.`;
   if (errors['serial']) return 'Use 3–32 capital letters, digits or dashes, starting with a letter or digit.';
   if (errors['oneOf']) return `Choose a ${label.toLowerCase()} from the list.`;
   return `${label} is not valid.`;

@@ -8,7 +8,7 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { User } from '../../../../shared/contracts/api';
 import { applyServerErrors } from '../../ui/api-error';
-import { errorText, MIN_PASSWORD_LENGTH } from '../../ui/validation';
+import { errorText, MAX_PASSWORD_BYTES, maxUtf8Bytes, MIN_PASSWORD_LENGTH } from '../../ui/validation';
 import { UserApi } from '../user-api';
 
 /** Sets a new password for someone; closes with `true` once the server has taken it. */
@@ -65,7 +65,7 @@ export class PasswordForm {
   protected readonly form = new FormGroup({
     password: new FormControl('', {
       nonNullable: true,
-      validators: [Validators.required, Validators.minLength(MIN_PASSWORD_LENGTH)],
+      validators: [Validators.required, Validators.minLength(MIN_PASSWORD_LENGTH), maxUtf8Bytes(MAX_PASSWORD_BYTES)],
     }),
   });
   protected readonly saving = signal(false);

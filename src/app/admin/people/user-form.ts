@@ -11,7 +11,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { ROLES, type Owner, type Role, type User } from '../../../../shared/contracts/api';
 import { ROLE_LABELS } from '../../auth/roles';
 import { applyServerErrors } from '../../ui/api-error';
-import { errorText, MIN_PASSWORD_LENGTH } from '../../ui/validation';
+import { errorText, MAX_PASSWORD_BYTES, maxUtf8Bytes, MIN_PASSWORD_LENGTH } from '../../ui/validation';
 import { UserApi } from '../user-api';
 
 export interface UserFormData {
@@ -57,7 +57,7 @@ export class UserForm {
     ownerId: new FormControl<number | null>(this.data.user?.ownerId ?? null),
     password: new FormControl('', {
       nonNullable: true,
-      validators: this.data.user ? [] : [Validators.required, Validators.minLength(MIN_PASSWORD_LENGTH)],
+      validators: this.data.user ? [] : [Validators.required, Validators.minLength(MIN_PASSWORD_LENGTH), maxUtf8Bytes(MAX_PASSWORD_BYTES)],
     }),
   });
   protected readonly role = toSignal(this.form.controls.role.valueChanges, { initialValue: this.form.controls.role.value });
