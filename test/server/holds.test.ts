@@ -151,6 +151,32 @@ describe('queued commands', () => {
   });
 });
 
+describe('a hold that did not get through', () => {
+  it('is sent again when the unit comes back online', async () => {
+    const serial = 'QED-2406';
+    const id = unitId(serial);
+    const silent = await connectUnit(stack.broker.port, serial);
+    await publish(silent, serial, 'status', { v: 1, online: true }, true);
+    await waitFor(() => stack.live.get(id)?.online, 3000, `${serial} online`);
+    const crew = await signIn('crew2@saltmarsh.example');
+    const hold = await crew.agent.post(`/api/units/${id}/commands`).send({ kind: 'hold' }).expect(201);
+    expect(hold.body.status).toBe('sent');
+    await silent.endAsync(true); // gone without answering; its will marks it offline
+    await waitFor(() => stack.live.get(id)?.online === false, 3000, `${serial} offline`);
+    clockOffsetMs = 60_000;
+    await stack.commands.sweep();
+    expect((await commandsOf(crew.agent, id)).find((c) => c.id === hold.body.id)!.status).toBe('timed-out');
+    clockOffsetMs = 0;
+
+    const unit = await recordingUnit(serial);
+    await waitFor(() => unit.received.length === 1, 3000, 'hold sent again');
+    expect(unit.received[0]!.kind).toBe('hold');
+    const again = (await commandsOf(crew.agent, id)).find((c) => c.id === unit.received[0]!.commandId)!;
+    expect(again.issuedBy.name).toBe('Kwame Ruiz');
+    await unit.client.endAsync();
+  });
+});
+
 describe('several holders', () => {
   it('keeps the unit held until the last hold is released; only the first hold and the last release reach the unit', async () => {
     const serial = 'QED-2404';
