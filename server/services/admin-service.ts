@@ -156,8 +156,9 @@ export class AdminService {
     await this.checkSite(patch, id);
     await this.repo.sites.update(id, siteRow(patch));
     await this.repo.audit.append({ userId: by.id, action: 'site-update', target: `site:${id}`, detail: patch });
-    // Owner and time zone of the site's units follow it.
-    for (const u of await this.repo.units.list({ ownerId: null }, id)) await this.unitChanged(u.id, { credentialsChanged: false, disabled: u.disabled, serial: u.serial });
+    // Owner and time zone of the site's units follow it. All at once: listeners that reload can then share one reload.
+    const units = await this.repo.units.list({ ownerId: null }, id);
+    await Promise.all(units.map((u) => this.unitChanged(u.id, { credentialsChanged: false, disabled: u.disabled, serial: u.serial })));
     return this.getSite(by, id);
   }
 
