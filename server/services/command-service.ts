@@ -73,9 +73,10 @@ export class CommandService {
     try {
       const unit = this.visibleUnit(by, unitId);
       this.checkRequest(by, unit, req);
-      return await this.inOrder(unit.id, () =>
-        req.kind === 'hold' ? this.placeHold(by, unit, req.note) : req.kind === 'release-hold' ? this.releaseHold(by, unit, req.holdId, req.reason) : this.issueCommand(by, unit, req),
-      );
+      return await this.inOrder(unit.id, () => {
+        const u = this.units.byUnitId(unit.id) ?? unit; // current serial after waiting for earlier requests
+        return req.kind === 'hold' ? this.placeHold(by, u, req.note) : req.kind === 'release-hold' ? this.releaseHold(by, u, req.holdId, req.reason) : this.issueCommand(by, u, req);
+      });
     } catch (err) {
       if (err instanceof AppError) await this.recordRefusal(by, unitId, req.kind, err);
       throw err;
@@ -121,8 +122,9 @@ export class CommandService {
   }
 
   /** A unit came online: make sure it holds (or not) as its holds say, then send what was queued, in the order issued. */
-  onOnline(unit: UnitInfo): Promise<void> {
-    return this.inOrder(unit.id, async () => {
+  onOnline(reported: UnitInfo): Promise<void> {
+    return this.inOrder(reported.id, async () => {
+      const unit = this.units.byUnitId(reported.id) ?? reported; // the directory's current entry: holds as of now
       await this.resyncHold(unit);
       for (const cmd of await this.store.commands.queuedForUnit(unit.id)) {
         if (MOTION_COMMANDS.includes(cmd.kind) && this.isHeld(unit)) {
@@ -271,12 +273,12 @@ export class CommandService {
    * `release-hold` again, attributed to the person whose hold or release it carries out.
    */
   private async resyncHold(unit: UnitInfo): Promise<void> {
-    const last = await this.store.commands.lastHoldDelivery(unit.id);
+    const [last, holds] = await Promise.all([this.store.commands.lastHoldDelivery(unit.id), this.store.holds.active(unit.id)]);
     // 'sent' and unanswered: it went to the connection that has just been replaced and may never have arrived.
     const lost = last && (last.status === 'timed-out' || last.status === 'rejected' || last.status === 'sent');
-    const held = unit.holds.length > 0;
+    const held = holds.length > 0;
     if (held && (!last || last.kind === 'release-hold' || lost)) {
-      const by = unit.holds[0]!.placedBy.id;
+      const by = holds[0]!.placedBy.id;
       await this.resend(unit, 'hold', by, last);
     } else if (!held && last?.kind === 'release-hold' && last.status === 'timed-out') {
       await this.resend(unit, 'release-hold', last.issued_by, last);
