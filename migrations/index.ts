@@ -16,6 +16,11 @@ import * as m20261202110000 from './20261202110000_add_sites_survey';
 import * as m20261202120000 from './20261202120000_create_alarms';
 import * as m20261202120100 from './20261202120100_create_site_health_settings';
 import * as m20261202130000 from './20261202130000_add_telemetry_1m_extremes';
+import * as m20261203100000 from './20261203100000_create_unit_holds';
+import * as m20261203100100 from './20261203100100_carry_over_units_hold';
+import * as m20261203100200 from './20261203100200_drop_units_on_hold';
+import * as m20261203100300 from './20261203100300_add_commands_seq';
+import * as m20261203100400 from './20261203100400_add_commands_status_index';
 import * as m20261203110000 from './20261203110000_create_sessions';
 
 /**
@@ -40,6 +45,11 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202120000_create_alarms': m20261202120000,
   '20261202120100_create_site_health_settings': m20261202120100,
   '20261202130000_add_telemetry_1m_extremes': m20261202130000,
+  '20261203100000_create_unit_holds': m20261203100000,
+  '20261203100100_carry_over_units_hold': m20261203100100,
+  '20261203100200_drop_units_on_hold': m20261203100200,
+  '20261203100300_add_commands_seq': m20261203100300,
+  '20261203100400_add_commands_status_index': m20261203100400,
   '20261203110000_create_sessions': m20261203110000,
 };
 

@@ -18,7 +18,7 @@ import { Passwords } from './services/passwords';
 import { SessionEvents } from './services/session-events';
 import { deviceSecretMatches } from './services/device-secret';
 import { TelemetryRepository } from './data/telemetry-repository';
-import { CommandRepository } from './data/command-repository';
+import { CommandStore } from './data/command-repository';
 import { UnitDirectory, type UnitInfo } from './services/unit-directory';
 import { IngestService, type IngestListeners, type IngestOptions } from './services/ingest-service';
 import { RollupWorker } from './services/rollup-worker';
@@ -93,14 +93,20 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     secret: config.sessionSecret ?? randomBytes(32).toString('hex'),
     sessionHours: config.sessionHours,
   });
-  const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, passwords, auth);
+  const directory = new UnitDirectory(db);
+  await directory.load();
+  const live = new LiveHub(directory);
+  const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, passwords, auth, {
+    // Who may see and command a unit follows admin changes at once.
+    onUnitChanged: async () => {
+      await directory.load().catch((err) => log.error({ err }, 'unit directory reload failed'));
+      live.onDirectoryChanged();
+    },
+  });
 
   const siteModel = new SiteModelService(db);
   const landscapes = new LandscapeService(siteModel);
-  const directory = new UnitDirectory(db);
-  await directory.load();
   const telemetry = new TelemetryRepository(db);
-  const live = new LiveHub(directory);
   const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
   const health = new HealthService(new AlarmRepository(db), new HealthReadRepository(db), directory, siteModel, admin, live, log, opts.health);
   let commands: CommandService | undefined;
@@ -138,7 +144,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
 
   const unsubscribe = await subscribeUnits(broker.aedes, ingest, log);
   commands = new CommandService(
-    new CommandRepository(db), audit, units, directory, live,
+    new CommandStore(db), directory, live,
     (serial, command) =>
       new Promise<void>((res, rej) =>
         broker.aedes.publish(

@@ -1,6 +1,8 @@
 import type { Db } from './db';
 import type { CommandStatus, CommandView } from '../../shared/contracts/live';
 import type { CommandKind } from '../../shared/contracts/wire';
+import { AuditRepository } from './audit-repository';
+import { HoldRepository } from './hold-repository';
 
 export interface CommandRow {
   id: string;
@@ -15,17 +17,24 @@ export interface CommandRow {
   sent_at: Date | null;
   acked_at: Date | null;
   finished_at: Date | null;
+  /** Issue order (auto-increment): breaks ties between commands issued within the same millisecond. */
+  seq?: number;
 }
+
+/** The statuses of a command still waiting for the unit. */
+const OPEN: CommandStatus[] = ['queued', 'sent', 'acknowledged'];
+/** Longest stored reason (the column's width). */
+const REASON_MAX = 200;
 
 export class CommandRepository {
   constructor(private readonly db: Db) {}
 
   async insert(row: CommandRow): Promise<void> {
-    await this.db('commands').insert(row);
+    await this.db('commands').insert({ ...row, reason: clip(row.reason) });
   }
 
   async update(id: string, patch: Partial<CommandRow>): Promise<void> {
-    await this.db('commands').where({ id }).update(patch);
+    await this.db('commands').where({ id }).update(patch.reason !== undefined ? { ...patch, reason: clip(patch.reason) } : patch);
   }
 
   async get(id: string): Promise<CommandView | undefined> {
@@ -33,13 +42,40 @@ export class CommandRepository {
     return r ? toView(r) : undefined;
   }
 
-  async listForUnit(unitId: number, limit = 100): Promise<CommandView[]> {
-    return (await this.base().where('c.unit_id', unitId).orderBy('c.issued_at', 'desc').limit(limit)).map(toView);
+  /** The stored row of one command, as the unit's answers need it. */
+  row(id: string): Promise<CommandRow | undefined> {
+    return this.db<CommandRow>('commands').where({ id }).first();
   }
 
-  /** Commands still waiting for the unit: queued, or sent and not yet answered. */
+  async listForUnit(unitId: number, limit = 100): Promise<CommandView[]> {
+    return (await this.base().where('c.unit_id', unitId).orderBy([{ column: 'c.issued_at', order: 'desc' }, { column: 'c.seq', order: 'desc' }]).limit(limit)).map(toView);
+  }
+
+  /** Commands still waiting for the unit (queued, or sent and not yet answered), in the order issued. */
   async open(): Promise<CommandRow[]> {
-    return this.db<CommandRow>('commands').whereIn('status', ['queued', 'sent', 'acknowledged']);
+    return this.db<CommandRow>('commands').whereIn('status', OPEN).orderBy([{ column: 'issued_at' }, { column: 'seq' }]);
+  }
+
+  /** A unit's queued commands in the order issued: the order they go out in. */
+  queuedForUnit(unitId: number): Promise<CommandRow[]> {
+    return this.db<CommandRow>('commands').where({ unit_id: unitId, status: 'queued' }).orderBy([{ column: 'issued_at' }, { column: 'seq' }]);
+  }
+
+  /** Ends the unit's queued commands of these kinds as cancelled, with the reason; returns their ids. */
+  async cancelQueued(unitId: number, kinds: readonly CommandKind[], reason: string, at: Date): Promise<string[]> {
+    const rows: { id: string }[] = await this.db('commands').where({ unit_id: unitId, status: 'queued' }).whereIn('kind', kinds).select('id');
+    if (rows.length) await this.db('commands').whereIn('id', rows.map((r) => r.id)).update({ status: 'cancelled', reason: clip(reason), finished_at: at });
+    return rows.map((r) => r.id);
+  }
+
+  /**
+   * The latest hold or release-hold meant for the unit itself (queued, or sent at some point), newest first by issue
+   * order. Requests that changed nothing on the unit (a second hold, a release with other holds left) are not among them.
+   */
+  lastHoldDelivery(unitId: number): Promise<CommandRow | undefined> {
+    return this.db<CommandRow>('commands').where({ unit_id: unitId }).whereIn('kind', ['hold', 'release-hold'])
+      .andWhere((q) => q.where('status', 'queued').orWhereNotNull('sent_at'))
+      .orderBy([{ column: 'issued_at', order: 'desc' }, { column: 'seq', order: 'desc' }]).first();
   }
 
   private base() {
@@ -47,6 +83,38 @@ export class CommandRepository {
   }
 }
 
+/** Commands, holds and the audit trail of one unit, changed together in one transaction. */
+export interface CommandTx {
+  commands: CommandRepository;
+  holds: HoldRepository;
+  audit: AuditRepository;
+}
+
+/** The stores the command service writes, and the transaction that keeps their changes for one unit together. */
+export class CommandStore {
+  readonly commands: CommandRepository;
+  readonly holds: HoldRepository;
+  readonly audit: AuditRepository;
+
+  constructor(private readonly db: Db) {
+    this.commands = new CommandRepository(db);
+    this.holds = new HoldRepository(db);
+    this.audit = new AuditRepository(db);
+  }
+
+  /**
+   * Runs `fn` in one transaction that first locks the unit's row, so holds and commands of one unit change one request
+   * at a time: a go-to checked against the holds cannot slip in beside a hold being placed. All or nothing is written.
+   */
+  locked<T>(unitId: number, fn: (tx: CommandTx) => Promise<T>): Promise<T> {
+    return this.db.transaction(async (trx) => {
+      await trx('units').where({ id: unitId }).forUpdate().first('id');
+      return fn({ commands: new CommandRepository(trx), holds: new HoldRepository(trx), audit: new AuditRepository(trx) });
+    });
+  }
+}
+
+const clip = (s: string | null | undefined) => (s && s.length > REASON_MAX ? `${s.slice(0, REASON_MAX - 1)}…` : (s ?? null));
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 function toView(r: CommandRow & { issued_by_name: string }): CommandView {
@@ -55,5 +123,6 @@ function toView(r: CommandRow & { issued_by_name: string }): CommandView {
     params: r.params ? (typeof r.params === 'string' ? JSON.parse(r.params) : r.params) : null,
     status: r.status, reason: r.reason, issuedBy: { id: r.issued_by, name: r.issued_by_name },
     issuedAt: r.issued_at.toISOString(), sentAt: iso(r.sent_at), ackedAt: iso(r.acked_at), finishedAt: iso(r.finished_at),
+    expiresAt: null,
   };
 }

@@ -1,13 +1,14 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { COMMAND_KINDS, unitConfigSchema } from '../../shared/contracts/wire';
+import { HOLD_TEXT_MAX } from '../../shared/contracts/holds';
 import type { AdminService } from '../services/admin-service';
-import type { CommandService } from '../services/command-service';
+import { COMMANDING_ROLES, type CommandService } from '../services/command-service';
 import type { IngestService } from '../services/ingest-service';
 import type { LiveHub } from '../services/live-hub';
 import type { TelemetryRepository } from '../data/telemetry-repository';
 import type { RollupWorker } from '../services/rollup-worker';
-import { badRequest } from '../errors/app-error';
+import { AppError, badRequest, forbidden } from '../errors/app-error';
 import { callerOf, requireRole } from './access';
 import { idParam, parse } from './validation';
 
@@ -17,6 +18,9 @@ const commandBody = z.strictObject({
   azimuthDeg: z.number().min(0, 'Must be between 0 and 360 °.').max(360, 'Must be between 0 and 360 °.').optional(),
   config: unitConfigSchema.optional(),
   confirm: z.boolean().optional(),
+  note: z.string().max(HOLD_TEXT_MAX, `At most ${HOLD_TEXT_MAX} characters.`).optional(),
+  holdId: z.number().int().positive('Must be a positive whole number.').optional(),
+  reason: z.string().max(HOLD_TEXT_MAX, `At most ${HOLD_TEXT_MAX} characters.`).optional(),
 });
 
 const rangeQuery = z.strictObject({
@@ -56,8 +60,27 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
     res.json(await d.commands.list(callerOf(req), id(req.params)));
   });
 
-  r.post('/units/:id/commands', requireRole('admin', 'engineer', 'technician', 'crew'), async (req, res) => {
-    res.status(201).json(await d.commands.issue(callerOf(req), id(req.params), parse(commandBody, req.body)));
+  // Every refusal is audited: those of this layer (role, malformed request) here, the rest by the command service.
+  r.post('/units/:id/commands', async (req, res) => {
+    const caller = callerOf(req);
+    let unitId: number;
+    let body: z.infer<typeof commandBody>;
+    try {
+      if (!COMMANDING_ROLES.includes(caller.role)) throw forbidden();
+      unitId = id(req.params);
+      body = parse(commandBody, req.body);
+    } catch (err) {
+      if (err instanceof AppError) {
+        const raw = Number((req.params as { id?: string }).id);
+        await d.commands.recordRefusal(caller, Number.isInteger(raw) && raw > 0 ? raw : null, (req.body as { kind?: unknown } | undefined)?.kind, err);
+      }
+      throw err;
+    }
+    res.status(201).json(await d.commands.issue(caller, unitId, body));
+  });
+
+  r.get('/units/:id/holds', async (req, res) => {
+    res.json(await d.commands.holds(callerOf(req), id(req.params)));
   });
 
   r.get('/metrics', requireRole('admin', 'engineer', 'technician'), (_req, res) => {

@@ -20,6 +20,27 @@ export interface AdminRepositories {
   audit: AuditRepository;
 }
 
+/** What an admin change did to a unit, for whoever keeps copies of unit facts (the unit directory, broker sessions). */
+export interface UnitChange {
+  /** The unit's MQTT credentials changed: a new device secret, or a new serial (its user name). */
+  credentialsChanged: boolean;
+  /** Whether the unit is disabled now. */
+  disabled: boolean;
+  /** The unit's serial now. */
+  serial: string;
+  /** The serial before this change, when the change renamed the unit. */
+  previousSerial?: string;
+}
+
+export interface AdminListeners {
+  /**
+   * Called after every committed change of a unit (create, update including a move to another site, disable, secret
+   * rotation) and for every unit of a site whose details or owner changed. The request waits for it, so the change is in
+   * force everywhere when the answer goes out.
+   */
+  onUnitChanged?: (unitId: number, change: UnitChange) => void | Promise<void>;
+}
+
 /** People, owners, sites and units: reads scoped to the caller, writes (admin only, checked by routes) audited. */
 export class AdminService {
   constructor(
@@ -27,7 +48,12 @@ export class AdminService {
     private readonly passwords: Passwords,
     /** Ends a user's sessions when their access changes (disabled, role, owner, password). */
     private readonly sessions: SessionRevoker,
+    private readonly listeners: AdminListeners = {},
   ) {}
+
+  private async unitChanged(unitId: number, change: UnitChange): Promise<void> {
+    await this.listeners.onUnitChanged?.(unitId, change);
+  }
 
   // ---- people
   async listUsers(): Promise<User[]> {
@@ -137,6 +163,9 @@ export class AdminService {
     await this.checkSite(patch, id);
     await this.repo.sites.update(id, siteRow(patch));
     await this.repo.audit.append({ userId: by.id, action: 'site-update', target: `site:${id}`, detail: patch });
+    // Owner and time zone of the site's units follow it. All at once: listeners that reload can then share one reload.
+    const units = await this.repo.units.list({ ownerId: null }, id);
+    await Promise.all(units.map((u) => this.unitChanged(u.id, { credentialsChanged: false, disabled: u.disabled, serial: u.serial })));
     return this.getSite(by, id);
   }
 
@@ -164,6 +193,7 @@ export class AdminService {
     const deviceSecret = newDeviceSecret();
     const id = await this.repo.units.insert({ ...(unitRow(input) as Omit<UnitRow, 'id' | 'device_secret_hash'>), device_secret_hash: hashDeviceSecret(deviceSecret) });
     await this.repo.audit.append({ userId: by.id, action: 'unit-create', target: `unit:${id}`, detail: input });
+    await this.unitChanged(id, { credentialsChanged: false, disabled: input.disabled ?? false, serial: input.serial });
     return { unit: await this.getUnit(by, id), deviceSecret };
   }
 
@@ -172,14 +202,20 @@ export class AdminService {
     await this.checkUnit({ ...current, ...patch }, id);
     await this.repo.units.update(id, unitRow(patch));
     await this.repo.audit.append({ userId: by.id, action: 'unit-update', target: `unit:${id}`, detail: patch });
+    const renamed = patch.serial !== undefined && patch.serial !== current.serial;
+    await this.unitChanged(id, {
+      credentialsChanged: renamed, disabled: patch.disabled ?? current.disabled, serial: patch.serial ?? current.serial,
+      ...(renamed ? { previousSerial: current.serial } : {}),
+    });
     return this.getUnit(by, id);
   }
 
   async rotateDeviceSecret(by: Caller, id: number): Promise<{ deviceSecret: string }> {
-    await this.getUnit(by, id);
+    const unit = await this.getUnit(by, id);
     const deviceSecret = newDeviceSecret();
     await this.repo.units.update(id, { device_secret_hash: hashDeviceSecret(deviceSecret) });
     await this.repo.audit.append({ userId: by.id, action: 'unit-secret-rotate', target: `unit:${id}` });
+    await this.unitChanged(id, { credentialsChanged: true, disabled: unit.disabled, serial: unit.serial });
     return { deviceSecret };
   }
 

@@ -1,11 +1,10 @@
 import { randomUUID } from 'node:crypto';
 import type { Logger } from 'pino';
 import type { CommandView, IssueCommandRequest } from '../../shared/contracts/live';
-import { MOTION_COMMANDS, type Command, type CommandAck } from '../../shared/contracts/wire';
+import type { HoldView, UnitHolds } from '../../shared/contracts/holds';
+import { MOTION_COMMANDS, type Command, type CommandAck, type CommandKind } from '../../shared/contracts/wire';
 import { AppError, badRequest, forbidden, notFound } from '../errors/app-error';
-import type { CommandRepository, CommandRow } from '../data/command-repository';
-import type { AuditRepository } from '../data/audit-repository';
-import type { UnitRepository } from '../data/unit-repository';
+import type { CommandRow, CommandStore, CommandTx } from '../data/command-repository';
 import type { Caller } from './caller';
 import type { LiveHub } from './live-hub';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
@@ -13,7 +12,7 @@ import type { UnitDirectory, UnitInfo } from './unit-directory';
 export interface CommandOptions {
   /** A sent command with no answer after this long is timed out [ms]. */
   ackTimeoutMs: number;
-  /** A command queued for an offline unit expires after this long [ms]. */
+  /** A command queued for an offline unit expires after this long [ms] (holds and releases do not expire). */
   queueTimeoutMs: number;
   now: () => number;
 }
@@ -23,18 +22,34 @@ export const DEFAULT_COMMAND_OPTIONS: CommandOptions = { ackTimeoutMs: 30_000, q
 /** Publishes a command to a unit's `commands` topic (QoS 1). */
 export type CommandPublisher = (serial: string, command: Command) => Promise<void>;
 
+/** Roles that may send commands at all; crews only hold and release. */
+export const COMMANDING_ROLES: readonly Caller['role'][] = ['admin', 'engineer', 'technician', 'crew'];
+
 /**
- * Commands to units: checks who may send what, refuses motion to a unit on maintenance hold, tracks each command
- * queued → sent → acknowledged → completed (or rejected / timed-out), and writes every step to the audit trail.
+ * Hold and release-hold carry the state the unit must end up in: they wait in the queue for as long as the unit is
+ * offline instead of expiring (the hold is in force on the server meanwhile).
+ */
+const HOLD_KINDS: readonly CommandKind[] = ['hold', 'release-hold'];
+const expires = (kind: CommandKind) => !HOLD_KINDS.includes(kind);
+
+/**
+ * Commands to units: checks who may send what, keeps the unit's maintenance holds, refuses motion while any hold is in
+ * force, tracks each command queued → sent → acknowledged → completed (or rejected / timed-out / cancelled), sends queued
+ * commands in the order issued, and writes every step, refusals included, to the audit trail.
+ *
+ * Holds: a hold is in force the moment it is stored, whether or not the unit has heard of it. Placing it cancels motion
+ * still queued for the unit. The first hold sends `hold` to the unit; further holders add to it; only releasing the last
+ * hold sends `release-hold`. A person's hold is released by that person, anyone's by an admin giving a reason.
  */
 export class CommandService {
   private timer: NodeJS.Timeout | undefined;
   private readonly opts: CommandOptions;
+  /** Per unit, the request in progress: one change at a time, and queued commands published in issue order. */
+  private readonly unitChains = new Map<number, Promise<unknown>>();
+  private readonly ackChains = new Map<string, Promise<void>>();
 
   constructor(
-    private readonly repo: CommandRepository,
-    private readonly audit: AuditRepository,
-    private readonly unitRepo: UnitRepository,
+    private readonly store: CommandStore,
     private readonly units: UnitDirectory,
     private readonly live: LiveHub,
     private readonly publish: CommandPublisher,
@@ -53,39 +68,47 @@ export class CommandService {
     clearInterval(this.timer);
   }
 
+  /** Sends (or queues) a command; a refusal is written to the audit trail before it is thrown. */
   async issue(by: Caller, unitId: number, req: IssueCommandRequest): Promise<CommandView> {
-    const unit = this.units.byUnitId(unitId);
-    if (!unit || (by.role === 'owner' && unit.ownerId !== by.ownerId)) throw notFound('Unit');
-    const motion = MOTION_COMMANDS.includes(req.kind);
-    if (by.role === 'owner') throw forbidden('Owners cannot command units.');
-    if (by.role === 'crew' && req.kind !== 'hold' && req.kind !== 'release-hold') throw forbidden('Field crews may only put a unit on maintenance hold or release it.');
-    if (req.kind === 'goto' && (req.tiltDeg === undefined || req.azimuthDeg === undefined)) {
-      throw badRequest('Go to needs a tilt and an azimuth.', { ...(req.tiltDeg === undefined ? { tiltDeg: 'Required for go to.' } : {}), ...(req.azimuthDeg === undefined ? { azimuthDeg: 'Required for go to.' } : {}) });
+    try {
+      const unit = this.visibleUnit(by, unitId);
+      this.checkRequest(by, unit, req);
+      return await this.inOrder(unit.id, () => {
+        const u = this.units.byUnitId(unit.id) ?? unit; // current serial after waiting for earlier requests
+        return req.kind === 'hold' ? this.placeHold(by, u, req.note) : req.kind === 'release-hold' ? this.releaseHold(by, u, req.holdId, req.reason) : this.issueCommand(by, u, req);
+      });
+    } catch (err) {
+      if (err instanceof AppError) await this.recordRefusal(by, unitId, req.kind, err);
+      throw err;
     }
-    if (req.kind === 'configure' && (!req.config || !Object.keys(req.config).length)) throw badRequest('Configure needs at least one setting.', { config: 'Required for configure.' });
-    if (motion && req.confirm !== true) throw badRequest('Motion commands must be confirmed: make sure nobody is within reach of the unit.', { confirm: 'Must be true for a command that moves the unit.' });
-    if (motion && this.isHeld(unit)) {
-      throw new AppError(409, 'unit_on_hold', `${unit.serial} is on maintenance hold: motion commands are refused until the crew releases the hold.`);
-    }
-    const now = new Date(this.opts.now());
-    const params = req.kind === 'goto' ? { tiltDeg: req.tiltDeg, azimuthDeg: req.azimuthDeg } : req.kind === 'configure' ? { config: req.config } : null;
-    const row: CommandRow = {
-      id: randomUUID(), unit_id: unit.id, kind: req.kind, params: params ? JSON.stringify(params) : null, status: 'queued',
-      reason: null, issued_by: by.id, issued_at: now, sent_at: null, acked_at: null, finished_at: null,
-    };
-    await this.repo.insert(row);
-    await this.audit.append({ userId: by.id, action: 'command', target: `unit:${unit.id}`, detail: { commandId: row.id, kind: req.kind, ...params } });
-    if (this.live.get(unit.id)?.online) await this.send(unit, row);
-    return this.emit(row.id);
   }
 
-  list(by: Caller, unitId: number): Promise<CommandView[]> {
-    const unit = this.units.byUnitId(unitId);
-    if (!unit || (by.role === 'owner' && unit.ownerId !== by.ownerId)) throw notFound('Unit');
-    return this.repo.listForUnit(unitId);
+  /**
+   * Writes a refused command to the audit trail: who, which unit, the kind asked for, and the answer given. Also used by
+   * the HTTP layer for requests refused before they reach `issue` (role, malformed body). Never throws.
+   */
+  async recordRefusal(by: Caller, unitId: number | null, kind: unknown, err: AppError): Promise<void> {
+    try {
+      await this.store.audit.append({
+        userId: by.id, action: 'command-refused', ...(unitId !== null ? { target: `unit:${unitId}` } : {}),
+        detail: { kind: typeof kind === 'string' ? kind.slice(0, 32) : null, status: err.status, code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) },
+      });
+    } catch (auditErr) {
+      this.log.error({ err: auditErr, unitId, code: err.code }, 'refused command not audited');
+    }
   }
 
-  private readonly ackChains = new Map<string, Promise<void>>();
+  async list(by: Caller, unitId: number): Promise<CommandView[]> {
+    const unit = this.visibleUnit(by, unitId);
+    return (await this.store.commands.listForUnit(unit.id)).map((v) => this.withExpiry(v));
+  }
+
+  /** The unit's holds in force and the latest released ones; 404 for a unit the caller may not see. */
+  async holds(by: Caller, unitId: number): Promise<UnitHolds> {
+    const unit = this.visibleUnit(by, unitId);
+    const [active, released] = await Promise.all([this.store.holds.active(unit.id), this.store.holds.released(unit.id)]);
+    return { unitId: unit.id, held: active.length > 0, active, released };
+  }
 
   /** The unit answered a command. Answers to one command are applied in arrival order. */
   onAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
@@ -98,79 +121,260 @@ export class CommandService {
     return next;
   }
 
-  private async applyAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
-    const cmd = (await this.repo.open()).find((c) => c.id === ack.commandId && c.unit_id === unit.id);
-    if (!cmd) return; // late answer to a finished command, or not ours
-    if (ack.result === 'accepted' && cmd.status === 'acknowledged') return;
-    const at = new Date(this.opts.now());
-    if (ack.result === 'rejected') {
-      await this.repo.update(cmd.id, { status: 'rejected', reason: ack.reason ?? 'rejected by the unit', acked_at: cmd.acked_at ?? at, finished_at: at });
-    } else if (ack.result === 'accepted') {
-      await this.repo.update(cmd.id, { status: 'acknowledged', acked_at: at });
-      await this.applyHold(unit, cmd);
-    } else {
-      await this.repo.update(cmd.id, { status: 'completed', acked_at: cmd.acked_at ?? at, finished_at: at });
-      await this.applyHold(unit, cmd);
-    }
-    await this.emit(cmd.id);
-  }
-
-  /** A unit came online: send what was queued for it. */
-  async onOnline(unit: UnitInfo): Promise<void> {
-    for (const cmd of (await this.repo.open()).filter((c) => c.unit_id === unit.id && c.status === 'queued')) {
-      if (MOTION_COMMANDS.includes(cmd.kind) && this.isHeld(unit)) {
-        await this.finish(cmd, 'rejected', 'unit is on maintenance hold');
-        continue;
+  /** A unit came online: make sure it holds (or not) as its holds say, then send what was queued, in the order issued. */
+  onOnline(reported: UnitInfo): Promise<void> {
+    return this.inOrder(reported.id, async () => {
+      const unit = this.units.byUnitId(reported.id) ?? reported; // the directory's current entry: holds as of now
+      await this.resyncHold(unit);
+      for (const cmd of await this.store.commands.queuedForUnit(unit.id)) {
+        if (MOTION_COMMANDS.includes(cmd.kind) && this.isHeld(unit)) {
+          await this.finish(cmd, 'cancelled', 'unit is on maintenance hold');
+          continue;
+        }
+        // A failed publish leaves this one queued and stops here, so later commands never overtake it.
+        await this.send(unit, cmd);
+        await this.emit(cmd.id);
       }
-      await this.send(unit, cmd);
-      await this.emit(cmd.id);
-    }
+    });
   }
 
-  /** Times out what waited too long. */
+  /** Times out what waited too long: queued motion and settings after `queueTimeoutMs`, sent commands after `ackTimeoutMs`. */
   async sweep(): Promise<void> {
     const now = this.opts.now();
-    for (const cmd of await this.repo.open()) {
-      if (cmd.status === 'queued' && now - cmd.issued_at.getTime() > this.opts.queueTimeoutMs) await this.finish(cmd, 'timed-out', 'unit stayed offline');
+    for (const cmd of await this.store.commands.open()) {
+      if (cmd.status === 'queued' && expires(cmd.kind) && now - cmd.issued_at.getTime() > this.opts.queueTimeoutMs) await this.finish(cmd, 'timed-out', 'unit stayed offline');
       else if (cmd.status === 'sent' && cmd.sent_at && now - cmd.sent_at.getTime() > this.opts.ackTimeoutMs) await this.finish(cmd, 'timed-out', 'no answer from the unit');
     }
   }
 
+  // ---- checks
+
+  private visibleUnit(by: Caller, unitId: number): UnitInfo {
+    const unit = this.units.byUnitId(unitId);
+    if (!unit || (by.role === 'owner' && unit.ownerId !== by.ownerId)) throw notFound('Unit');
+    return unit;
+  }
+
+  private checkRequest(by: Caller, unit: UnitInfo, req: IssueCommandRequest): void {
+    if (!COMMANDING_ROLES.includes(by.role)) throw forbidden('Owners cannot command units.');
+    if (by.role === 'crew' && !HOLD_KINDS.includes(req.kind)) throw forbidden('Field crews may only put a unit on maintenance hold or release it.');
+    const misplaced: Record<string, string> = {};
+    if (req.note !== undefined && req.kind !== 'hold') misplaced['note'] = 'Only for hold.';
+    if (req.holdId !== undefined && req.kind !== 'release-hold') misplaced['holdId'] = 'Only for release-hold.';
+    if (req.reason !== undefined && req.kind !== 'release-hold') misplaced['reason'] = 'Only for release-hold.';
+    if (Object.keys(misplaced).length) throw badRequest(`Field(s) ${Object.keys(misplaced).join(', ')} do not belong to ${req.kind}.`, misplaced);
+    if (req.kind === 'goto' && (req.tiltDeg === undefined || req.azimuthDeg === undefined)) {
+      throw badRequest('Go to needs a tilt and an azimuth.', { ...(req.tiltDeg === undefined ? { tiltDeg: 'Required for go to.' } : {}), ...(req.azimuthDeg === undefined ? { azimuthDeg: 'Required for go to.' } : {}) });
+    }
+    if (req.kind === 'configure' && (!req.config || !Object.keys(req.config).length)) throw badRequest('Configure needs at least one setting.', { config: 'Required for configure.' });
+    if (req.confirm !== true) {
+      if (MOTION_COMMANDS.includes(req.kind)) throw badRequest('Motion commands must be confirmed: make sure nobody is within reach of the unit.', { confirm: 'Must be true for a command that moves the unit.' });
+      if (req.kind === 'release-hold') throw badRequest(`Releasing a hold on ${unit.serial} must be confirmed: the unit may move at once.`, { confirm: 'Must be true to release a hold: the unit may move at once.' });
+      if (req.kind === 'configure') throw badRequest(`New settings for ${unit.serial} must be confirmed: they change how the unit moves.`, { confirm: 'Must be true for configure: new settings change how the unit moves.' });
+    }
+  }
+
+  /** Held: a hold is in force, or the unit itself reports it is held (a hold set on the unit, or a release not yet carried out). */
   private isHeld(unit: UnitInfo): boolean {
-    return unit.onHold || this.live.get(unit.id)?.mode === 'held';
+    return unit.holds.length > 0 || this.live.get(unit.id)?.mode === 'held';
+  }
+
+  private onHoldError(unit: UnitInfo, holds: HoldView[]): AppError {
+    const who = holds.length
+      ? `on maintenance hold by ${holds.map((h) => h.holder.name).join(', ')}: motion commands are refused until every hold is released.`
+      : 'reporting that it is held on the unit itself: motion commands are refused until it reports otherwise.';
+    return new AppError(409, 'unit_on_hold', `${unit.serial} is ${who}`);
+  }
+
+  // ---- requests
+
+  private async issueCommand(by: Caller, unit: UnitInfo, req: IssueCommandRequest): Promise<CommandView> {
+    const motion = MOTION_COMMANDS.includes(req.kind);
+    const now = new Date(this.opts.now());
+    const params = req.kind === 'goto' ? { tiltDeg: req.tiltDeg, azimuthDeg: req.azimuthDeg } : req.kind === 'configure' ? { config: req.config } : null;
+    const row = this.newRow(by.id, unit, req.kind, now, params);
+    await this.store.locked(unit.id, async (tx) => {
+      if (motion) {
+        const holds = await tx.holds.active(unit.id);
+        if (holds.length || this.live.get(unit.id)?.mode === 'held') throw this.onHoldError(unit, holds);
+      }
+      await tx.commands.insert(row);
+      await this.auditCommand(tx, by, unit, row, params ?? {});
+    });
+    return this.dispatch(unit, row);
+  }
+
+  private async placeHold(by: Caller, unit: UnitInfo, note: string | undefined): Promise<CommandView> {
+    const now = new Date(this.opts.now());
+    const { row, holds, cancelled } = await this.store.locked(unit.id, async (tx) => {
+      const before = await tx.holds.active(unit.id);
+      if (before.some((h) => h.holder.kind === 'person' && h.holder.id === by.id)) {
+        throw new AppError(409, 'already_holding', `You already hold ${unit.serial}: your hold stays in force until you release it.`);
+      }
+      const first = before.length === 0;
+      const row = this.newRow(by.id, unit, 'hold', now, null, first ? null : { status: 'completed', reason: 'Added to the hold already in force: nothing more to send to the unit.' });
+      await tx.commands.insert(row);
+      const holdId = await tx.holds.insert({ unit_id: unit.id, holder_kind: 'person', holder_id: by.id, note: note?.trim() || null, placed_at: now, placed_by: by.id, command_id: row.id });
+      const holds = await tx.holds.active(unit.id);
+      const name = holds.find((h) => h.id === holdId)!.holder.name;
+      const cancelled = await tx.commands.cancelQueued(unit.id, MOTION_COMMANDS, `Cancelled before it reached the unit: maintenance hold placed by ${name}.`, now);
+      await this.auditCommand(tx, by, unit, row, { holdId });
+      await tx.audit.append({ userId: by.id, action: 'hold-place', target: `unit:${unit.id}`, detail: { holdId, commandId: row.id, note: note?.trim() || null, firstHold: first, cancelledCommands: cancelled } });
+      return { row, holds, cancelled };
+    });
+    this.holdsChanged(unit, holds);
+    for (const id of cancelled) await this.emit(id);
+    return this.dispatch(unit, row);
+  }
+
+  private async releaseHold(by: Caller, unit: UnitInfo, holdId: number | undefined, reason: string | undefined): Promise<CommandView> {
+    const now = new Date(this.opts.now());
+    const why = reason?.trim() || null;
+    const { row, holds } = await this.store.locked(unit.id, async (tx) => {
+      const active = await tx.holds.active(unit.id);
+      const hold = holdId === undefined ? active.find((h) => h.holder.kind === 'person' && h.holder.id === by.id) : active.find((h) => h.id === holdId);
+      if (!hold && holdId === undefined) {
+        if (!active.length) throw new AppError(409, 'not_held', `${unit.serial} is not on hold.`);
+        throw new AppError(409, 'no_own_hold', `You have no hold on ${unit.serial} to release. ` +
+          (by.role === 'admin' ? 'To release someone else\'s, name the hold (holdId) and give a reason.' : `It is held by ${active.map((h) => h.holder.name).join(', ')}; a hold is released by its holder, or by an admin giving a reason.`));
+      }
+      if (!hold) {
+        const old = await tx.holds.get(holdId!);
+        if (old && old.unitId === unit.id) throw new AppError(409, 'hold_released', `That hold was already released (${old.releasedAt}).`);
+        throw notFound('Hold');
+      }
+      const own = hold.holder.kind === 'person' && hold.holder.id === by.id;
+      if (!own && by.role !== 'admin') {
+        throw forbidden(hold.holder.kind === 'ticket'
+          ? 'A ticket\'s hold is released by the ticket\'s check-out, cancel or close, or by an admin giving a reason.'
+          : `Only ${hold.holder.name}, who placed this hold, or an admin giving a reason may release it.`);
+      }
+      if (!own && !why) throw badRequest('Say why you release a hold that is not yours.', { reason: 'Required when releasing someone else\'s hold.' });
+      if (!(await tx.holds.release(hold.id, { released_at: now, released_by: by.id, release_reason: why }))) throw new AppError(409, 'hold_released', 'That hold was already released.');
+      const holds = active.filter((h) => h.id !== hold.id);
+      const row = this.newRow(by.id, unit, 'release-hold', now, null, holds.length
+        ? { status: 'completed', reason: `Hold released; ${holds.length === 1 ? 'another hold keeps' : `${holds.length} other holds keep`} the unit held, so nothing was sent.` }
+        : null);
+      await tx.commands.insert(row);
+      await this.auditCommand(tx, by, unit, row, { holdId: hold.id });
+      await tx.audit.append({
+        userId: by.id, action: 'hold-release', target: `unit:${unit.id}`,
+        detail: { holdId: hold.id, holder: hold.holder, ownHold: own, reason: why, commandId: row.id, holdsLeft: holds.length },
+      });
+      return { row, holds };
+    });
+    this.holdsChanged(unit, holds);
+    return this.dispatch(unit, row);
+  }
+
+  /**
+   * On reconnect: a unit with holds in force whose latest hold did not get through (timed out, refused, or sent to the
+   * connection just replaced and unanswered), or whose last delivery was a release, is sent `hold` again, and a unit with none whose last release timed out is sent
+   * `release-hold` again, attributed to the person whose hold or release it carries out.
+   */
+  private async resyncHold(unit: UnitInfo): Promise<void> {
+    const [last, holds] = await Promise.all([this.store.commands.lastHoldDelivery(unit.id), this.store.holds.active(unit.id)]);
+    // 'sent' and unanswered: it went to the connection that has just been replaced and may never have arrived.
+    const lost = last && (last.status === 'timed-out' || last.status === 'rejected' || last.status === 'sent');
+    const held = holds.length > 0;
+    if (held && (!last || last.kind === 'release-hold' || lost)) {
+      const by = holds[0]!.placedBy.id;
+      await this.resend(unit, 'hold', by, last);
+    } else if (!held && last?.kind === 'release-hold' && last.status === 'timed-out') {
+      await this.resend(unit, 'release-hold', last.issued_by, last);
+    }
+  }
+
+  private async resend(unit: UnitInfo, kind: 'hold' | 'release-hold', by: number, after: CommandRow | undefined): Promise<void> {
+    const row = this.newRow(by, unit, kind, new Date(this.opts.now()), null);
+    await this.store.locked(unit.id, async (tx) => {
+      await tx.commands.insert(row);
+      await tx.audit.append({ userId: by, action: 'command', target: `unit:${unit.id}`, detail: { commandId: row.id, kind, resentAfter: after?.id ?? null, why: 'unit came online without the hold state of its holds' } });
+    });
+    await this.emit(row.id);
+  }
+
+  // ---- unit answers and delivery
+
+  private async applyAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
+    const cmd = await this.store.commands.row(ack.commandId);
+    if (!cmd || cmd.unit_id !== unit.id || !['queued', 'sent', 'acknowledged'].includes(cmd.status)) return; // late answer to a finished command, or not ours
+    if (ack.result === 'accepted' && cmd.status === 'acknowledged') return;
+    const at = new Date(this.opts.now());
+    if (ack.result === 'rejected') {
+      await this.store.commands.update(cmd.id, { status: 'rejected', reason: ack.reason ?? 'rejected by the unit', acked_at: cmd.acked_at ?? at, finished_at: at });
+    } else if (ack.result === 'accepted') {
+      await this.store.commands.update(cmd.id, { status: 'acknowledged', acked_at: at });
+    } else {
+      await this.store.commands.update(cmd.id, { status: 'completed', acked_at: cmd.acked_at ?? at, finished_at: at });
+    }
+    await this.emit(cmd.id);
+  }
+
+  private newRow(byUserId: number, unit: UnitInfo, kind: CommandKind, at: Date, params: object | null, done?: { status: 'completed'; reason: string } | null): CommandRow {
+    return {
+      id: randomUUID(), unit_id: unit.id, kind, params: params ? JSON.stringify(params) : null, status: done?.status ?? 'queued',
+      reason: done?.reason ?? null, issued_by: byUserId, issued_at: at, sent_at: null, acked_at: null, finished_at: done ? at : null,
+    };
+  }
+
+  private auditCommand(tx: CommandTx, by: Caller, unit: UnitInfo, row: CommandRow, detail: object): Promise<void> {
+    return tx.audit.append({ userId: by.id, action: 'command', target: `unit:${unit.id}`, detail: { commandId: row.id, kind: row.kind, ...detail } });
+  }
+
+  /** After a stored request: send it now if it is queued and the unit is online, and tell the dashboards. */
+  private async dispatch(unit: UnitInfo, row: CommandRow): Promise<CommandView> {
+    if (row.status === 'queued' && this.live.get(unit.id)?.online) {
+      // Stored and in force already: a failed publish leaves it queued for the unit's next connection.
+      await this.send(unit, row).catch((err) => this.log.warn({ err, commandId: row.id }, 'command publish failed; left queued'));
+    }
+    return this.emit(row.id);
+  }
+
+  private holdsChanged(unit: UnitInfo, holds: HoldView[]): void {
+    this.units.setHolds(unit.id, holds);
+    this.live.onHoldChanged(this.units.byUnitId(unit.id) ?? { ...unit, holds, onHold: holds.length > 0 });
   }
 
   private async send(unit: UnitInfo, cmd: CommandRow): Promise<void> {
     const params = cmd.params ? (typeof cmd.params === 'string' ? JSON.parse(cmd.params) : cmd.params) : {};
     const at = new Date(this.opts.now());
     // Mark it sent first: the unit's answer can arrive before the publish call returns.
-    await this.repo.update(cmd.id, { status: 'sent', sent_at: at });
+    await this.store.commands.update(cmd.id, { status: 'sent', sent_at: at });
     cmd.status = 'sent';
     cmd.sent_at = at;
     try {
       await this.publish(unit.serial, { v: 1, commandId: cmd.id, ts: at.toISOString(), kind: cmd.kind, ...params });
     } catch (err) {
-      await this.repo.update(cmd.id, { status: 'queued', sent_at: null });
+      await this.store.commands.update(cmd.id, { status: 'queued', sent_at: null });
+      cmd.status = 'queued';
+      cmd.sent_at = null;
       throw err;
     }
   }
 
-  private async finish(cmd: CommandRow, status: 'rejected' | 'timed-out', reason: string): Promise<void> {
-    await this.repo.update(cmd.id, { status, reason, finished_at: new Date(this.opts.now()) });
+  private async finish(cmd: CommandRow, status: 'rejected' | 'timed-out' | 'cancelled', reason: string): Promise<void> {
+    await this.store.commands.update(cmd.id, { status, reason, finished_at: new Date(this.opts.now()) });
     await this.emit(cmd.id);
   }
 
-  private async applyHold(unit: UnitInfo, cmd: CommandRow): Promise<void> {
-    if (cmd.kind !== 'hold' && cmd.kind !== 'release-hold') return;
-    const onHold = cmd.kind === 'hold';
-    await this.unitRepo.update(unit.id, { on_hold: onHold });
-    this.units.setHold(unit.id, onHold);
-    this.live.onHoldChanged(unit);
+  private withExpiry(v: CommandView): CommandView {
+    return { ...v, expiresAt: v.status === 'queued' && expires(v.kind) ? new Date(Date.parse(v.issuedAt) + this.opts.queueTimeoutMs).toISOString() : null };
   }
 
   private async emit(id: string): Promise<CommandView> {
-    const view = (await this.repo.get(id))!;
+    const view = this.withExpiry((await this.store.commands.get(id))!);
     this.live.publishCommand(view);
     return view;
+  }
+
+  /** Runs `fn` after every earlier request for the same unit has finished. */
+  private inOrder<T>(unitId: number, fn: () => Promise<T>): Promise<T> {
+    const next = (this.unitChains.get(unitId) ?? Promise.resolve()).catch(() => undefined).then(fn);
+    this.unitChains.set(unitId, next);
+    void next.catch(() => undefined).finally(() => {
+      if (this.unitChains.get(unitId) === next) this.unitChains.delete(unitId);
+    });
+    return next;
   }
 }

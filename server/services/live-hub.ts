@@ -1,4 +1,5 @@
 import type { AlarmLiveItem } from '../../shared/contracts/alarms';
+import type { HoldView } from '../../shared/contracts/holds';
 import type { CommandView, LiveClientMessage, LiveServerMessage, UnitLiveState } from '../../shared/contracts/live';
 import type { Telemetry, UnitMode, UnitStatus } from '../../shared/contracts/wire';
 import type { Caller } from './caller';
@@ -74,7 +75,7 @@ export class LiveHub {
     Object.assign(s, {
       online: true, lastReportAt: t.ts, mode: t.mode, poaWm2: t.poaWm2, dcPowerW: t.dcPowerW, tiltDeg: t.tiltDeg,
       azimuthDeg: t.azimuthDeg, cmdTiltDeg: t.cmdTiltDeg, cmdAzimuthDeg: t.cmdAzimuthDeg, tiltDiffWm2: t.tiltPlusWm2 - t.tiltMinusWm2,
-      azimuthDiffWm2: t.azimuthPlusWm2 - t.azimuthMinusWm2, moduleTempC: t.moduleTempC, onHold: unit.onHold,
+      azimuthDiffWm2: t.azimuthPlusWm2 - t.azimuthMinusWm2, moduleTempC: t.moduleTempC, onHold: unit.onHold, holds: unit.holds,
     });
     this.dirty.add(unit.id);
   }
@@ -101,9 +102,24 @@ export class LiveHub {
     }
   }
 
+  /** The unit's holds changed: its state shows the holders at once (pushed with the next slot). */
   onHoldChanged(unit: UnitInfo): void {
-    this.ensure(unit).onHold = unit.onHold;
+    Object.assign(this.ensure(unit), { onHold: unit.onHold, holds: unit.holds });
     this.dirty.add(unit.id);
+  }
+
+  /**
+   * The unit directory was reloaded (an admin changed units or sites): states take the current serial, site and holds,
+   * and changed units are pushed. Who receives a unit always follows the directory, so a moved unit's updates go to its
+   * new owner from now on.
+   */
+  onDirectoryChanged(): void {
+    for (const [id, s] of this.state) {
+      const u = this.units.byUnitId(id);
+      if (!u || (s.serial === u.serial && s.siteId === u.siteId && sameHolds(s.holds, u.holds))) continue;
+      Object.assign(s, { serial: u.serial, siteId: u.siteId, onHold: u.onHold, holds: u.holds });
+      this.dirty.add(id);
+    }
   }
 
   /** Command changes reach everyone watching that unit (or its site, or the fleet) at once. */
@@ -192,10 +208,12 @@ export class LiveHub {
       s = {
         unitId: unit.id, serial: unit.serial, siteId: unit.siteId, online: false, lastReportAt: null, mode: null, poaWm2: null,
         dcPowerW: null, tiltDeg: null, azimuthDeg: null, cmdTiltDeg: null, cmdAzimuthDeg: null, tiltDiffWm2: null,
-        azimuthDiffWm2: null, moduleTempC: null, onHold: unit.onHold,
+        azimuthDiffWm2: null, moduleTempC: null, onHold: unit.onHold, holds: unit.holds,
       };
       this.state.set(unit.id, s);
     }
     return s;
   }
 }
+
+const sameHolds = (a: readonly HoldView[], b: readonly HoldView[]) => a.length === b.length && a.every((h, i) => h.id === b[i]!.id);

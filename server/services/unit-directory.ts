@@ -1,4 +1,6 @@
 import type { Db } from '../data/db';
+import { HoldRepository } from '../data/hold-repository';
+import type { HoldView } from '../../shared/contracts/holds';
 
 export interface UnitInfo {
   id: number;
@@ -7,46 +9,73 @@ export interface UnitInfo {
   ownerId: number;
   timeZone: string;
   disabled: boolean;
+  /** Whether any maintenance hold is in force (`holds` is not empty). */
   onHold: boolean;
+  /** The holds in force, oldest first. */
+  holds: HoldView[];
   detectorTiltDeg: number;
 }
 
-/** In-memory map serial → unit, for the hot ingest path. Reloaded periodically and on a miss (at most once a second). */
+/**
+ * In-memory map serial → unit, for the hot ingest path and for who may see which unit. Loaded at start, reloaded at once
+ * when an admin changes a unit or a site (`load()` after the change), and on an unknown serial (at most once a second).
+ */
 export class UnitDirectory {
   private bySerial = new Map<string, UnitInfo>();
   private byId = new Map<number, UnitInfo>();
   private lastLoad = 0;
-  private loading: Promise<void> | undefined;
+  private running: Promise<void> | undefined;
+  private again: Promise<void> | undefined;
+  /** Counts hold changes; a load that started before a unit's latest change keeps that unit's newer holds. */
+  private holdChanges = 0;
+  private readonly holdChangedAt = new Map<number, number>();
+  private readonly holdRepo: HoldRepository;
 
   constructor(
     private readonly db: Db,
     private readonly now: () => number = Date.now,
-  ) {}
+  ) {
+    this.holdRepo = new HoldRepository(db);
+  }
 
-  async load(): Promise<void> {
-    this.loading ??= (async () => {
-      try {
-        const rows = await this.db('units as u')
-          .join('sites as s', 's.id', 'u.site_id')
-          .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.on_hold', 'u.detector_tilt_deg');
-        const bySerial = new Map<string, UnitInfo>();
-        const byId = new Map<number, UnitInfo>();
-        for (const r of rows) {
-          const u: UnitInfo = {
-            id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
-            disabled: Boolean(r.disabled), onHold: Boolean(r.on_hold), detectorTiltDeg: r.detector_tilt_deg,
-          };
-          bySerial.set(u.serial, u);
-          byId.set(u.id, u);
-        }
-        this.bySerial = bySerial;
-        this.byId = byId;
-        this.lastLoad = this.now();
-      } finally {
-        this.loading = undefined;
-      }
-    })();
-    return this.loading;
+  /**
+   * Reloads every unit. Resolves once a load that started after this call has finished, so a caller that has just
+   * changed a unit sees the change (a load already running may have read the rows before it).
+   */
+  load(): Promise<void> {
+    if (!this.running) {
+      this.running = this.read().finally(() => { this.running = undefined; });
+      return this.running;
+    }
+    this.again ??= this.running.catch(() => undefined).then(() => {
+      this.again = undefined;
+      return this.load();
+    });
+    return this.again;
+  }
+
+  private async read(): Promise<void> {
+    const changesAtStart = this.holdChanges;
+    const rows = await this.db('units as u')
+      .join('sites as s', 's.id', 'u.site_id')
+      .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.detector_tilt_deg');
+    const holds = new Map<number, HoldView[]>();
+    for (const h of await this.holdRepo.allActive()) holds.set(h.unitId, [...(holds.get(h.unitId) ?? []), h]);
+    const bySerial = new Map<string, UnitInfo>();
+    const byId = new Map<number, UnitInfo>();
+    for (const r of rows) {
+      const current = this.byId.get(r.id);
+      const unitHolds = current && (this.holdChangedAt.get(r.id) ?? 0) > changesAtStart ? current.holds : (holds.get(r.id) ?? []);
+      const u: UnitInfo = {
+        id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
+        disabled: Boolean(r.disabled), onHold: unitHolds.length > 0, holds: unitHolds, detectorTiltDeg: r.detector_tilt_deg,
+      };
+      bySerial.set(u.serial, u);
+      byId.set(u.id, u);
+    }
+    this.bySerial = bySerial;
+    this.byId = byId;
+    this.lastLoad = this.now();
   }
 
   /** Known unit by serial; a miss triggers a background reload so a just-registered unit is found moments later. */
@@ -64,8 +93,13 @@ export class UnitDirectory {
     return [...this.byId.values()];
   }
 
-  setHold(unitId: number, onHold: boolean): void {
+  /** The unit's holds in force changed (as just committed). */
+  setHolds(unitId: number, holds: HoldView[]): void {
+    this.holdChangedAt.set(unitId, ++this.holdChanges);
     const u = this.byId.get(unitId);
-    if (u) u.onHold = onHold;
+    if (u) {
+      u.holds = holds;
+      u.onHold = holds.length > 0;
+    }
   }
 }

@@ -1,4 +1,5 @@
 import type { AlarmLiveItem } from './alarms';
+import type { HoldView } from './holds';
 import type { CommandKind, UnitConfig, UnitMode } from './wire';
 
 /** The latest known state of a unit, as pushed to dashboards (at most once a second per unit). */
@@ -20,10 +21,14 @@ export interface UnitLiveState {
   tiltDiffWm2: number | null;
   azimuthDiffWm2: number | null;
   moduleTempC: number | null;
+  /** Whether any maintenance hold is in force (see `holds`). */
   onHold: boolean;
+  /** The holds in force, oldest first: who holds the unit and since when. */
+  holds: HoldView[];
 }
 
-export const COMMAND_STATUSES = ['queued', 'sent', 'acknowledged', 'completed', 'rejected', 'timed-out'] as const;
+/** `cancelled`: a queued motion command dropped because a maintenance hold was placed before the unit got it. */
+export const COMMAND_STATUSES = ['queued', 'sent', 'acknowledged', 'completed', 'rejected', 'timed-out', 'cancelled'] as const;
 export type CommandStatus = (typeof COMMAND_STATUSES)[number];
 
 export interface CommandView {
@@ -38,6 +43,8 @@ export interface CommandView {
   sentAt: string | null;
   ackedAt: string | null;
   finishedAt: string | null;
+  /** For a queued command that expires: when it times out if the unit has not come online by then. Null otherwise. */
+  expiresAt: string | null;
 }
 
 export interface IssueCommandRequest {
@@ -45,8 +52,17 @@ export interface IssueCommandRequest {
   tiltDeg?: number;
   azimuthDeg?: number;
   config?: UnitConfig;
-  /** Required `true` for commands that move the structure: the caller confirms nobody is within reach. */
+  /**
+   * Required `true` for commands that move the structure, for `release-hold` (the unit may move at once) and for
+   * `configure`: the caller confirms nobody is within reach.
+   */
   confirm?: boolean;
+  /** `hold` only: what the work is (shown to everyone who sees the unit). */
+  note?: string;
+  /** `release-hold` only: the hold to release. Without it the caller's own hold is released; another's needs an admin. */
+  holdId?: number;
+  /** `release-hold` only: why; required when an admin releases a hold that is not their own. */
+  reason?: string;
 }
 
 /** Browser → server over `/ws`. */

@@ -131,7 +131,7 @@ describe('commands', () => {
     const a = await agent.post(`/api/units/${id}/commands`).send({ kind: 'scan', confirm: true }).expect(201);
     await waitFor(async () => (await agent.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string; reason: string }) => c.id === a.body.id && c.status === 'rejected' && c.reason === 'limit switch active'), 3000, 'rejected');
     mode = 'silent';
-    const b = await agent.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { gain: 0.5 } }).expect(201);
+    const b = await agent.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { gain: 0.5 }, confirm: true }).expect(201);
     await waitFor(async () => (await agent.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string }) => c.id === b.body.id && c.status === 'timed-out'), 4000, 'timed out');
     await u.endAsync();
   });
@@ -143,15 +143,16 @@ describe('commands', () => {
     const crew = (await signIn('crew2@saltmarsh.example')).agent;
     const tech = (await signIn('tech1@saltmarsh.example')).agent;
     expect((await crew.post(`/api/units/${id}/commands`).send({ kind: 'stow', confirm: true })).status).toBe(403);
+    // In force as soon as it is stored, before the unit has answered.
     await crew.post(`/api/units/${id}/commands`).send({ kind: 'hold' }).expect(201);
-    await waitFor(async () => (await stack.db('units').where({ id }).first()).on_hold, 3000, 'hold confirmed');
     const refused = await tech.post(`/api/units/${id}/commands`).send({ kind: 'goto', tiltDeg: 10, azimuthDeg: 180, confirm: true });
     expect(refused.status).toBe(409);
     expect(refused.body.error.code).toBe('unit_on_hold');
     const sentBefore = (await tech.get(`/api/units/${id}/commands`)).body.length;
     expect(sentBefore).toBe(1); // the refused command was never stored or sent
-    await crew.post(`/api/units/${id}/commands`).send({ kind: 'release-hold' }).expect(201);
-    await waitFor(async () => !(await stack.db('units').where({ id }).first()).on_hold, 3000, 'hold released');
+    await crew.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', confirm: true }).expect(201);
+    await waitFor(async () => (await tech.get(`/api/units/${id}/commands`)).body.find((c: { kind: string; status: string }) => c.kind === 'release-hold' && c.status === 'completed'), 3000, 'release carried out');
+    expect((await tech.get(`/api/units/${id}/holds`)).body.held).toBe(false);
     await tech.post(`/api/units/${id}/commands`).send({ kind: 'goto', tiltDeg: 10, azimuthDeg: 180, confirm: true }).expect(201);
     await u.endAsync();
   });
@@ -176,7 +177,7 @@ describe('commands', () => {
     const serial = 'FSC-2403';
     const id = stack.units.get(serial)!.id;
     const tech = (await signIn('tech1@saltmarsh.example')).agent;
-    const res = await tech.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { deadbandWm2: 4 } }).expect(201);
+    const res = await tech.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { deadbandWm2: 4 }, confirm: true }).expect(201);
     expect(res.body.status).toBe('queued');
     const u = await obedientUnit(serial);
     await waitFor(async () => (await tech.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string }) => c.id === res.body.id && c.status === 'completed'), 3000, 'completed after coming online').catch(async (e) => {

@@ -4,6 +4,7 @@ import { Observable } from 'rxjs';
 import type { SiteSurvey } from '../../../shared/contracts/api';
 import type { LandscapeDay, SiteLandscape } from '../../../shared/contracts/landscape';
 import type { CommandView, IssueCommandRequest, UnitLiveState } from '../../../shared/contracts/live';
+import type { UnitHolds } from '../../../shared/contracts/holds';
 import type { UnitTraces } from '../../../shared/contracts/traces';
 
 /** One raw telemetry row as `/api/units/:id/telemetry` returns it (database column names). */
@@ -38,6 +39,11 @@ export class FleetApi {
 
   commands(unitId: number): Observable<CommandView[]> {
     return this.http.get<CommandView[]>(`/api/units/${unitId}/commands`);
+  }
+
+  /** The unit's holds in force and the latest released ones. */
+  holds(unitId: number): Observable<UnitHolds> {
+    return this.http.get<UnitHolds>(`/api/units/${unitId}/holds`);
   }
 
   issue(unitId: number, request: IssueCommandRequest): Observable<CommandView> {

@@ -14,7 +14,9 @@ import { NgxEchartsDirective } from 'ngx-echarts';
 import { interval } from 'rxjs';
 import type { Site, Unit } from '../../../shared/contracts/api';
 import type { SiteLandscape } from '../../../shared/contracts/landscape';
-import type { CommandView, UnitLiveState } from '../../../shared/contracts/live';
+import type { CommandView, IssueCommandRequest, UnitLiveState } from '../../../shared/contracts/live';
+import { HOLD_TEXT_MAX, type HoldView } from '../../../shared/contracts/holds';
+import type { UnitConfig } from '../../../shared/contracts/wire';
 import { Session } from '../auth/session';
 import { SiteApi } from '../sites/site-api';
 import { UnitApi } from '../sites/unit-api';
@@ -31,8 +33,12 @@ import { LiveConnection } from '../live/live-connection';
 import { readPalette, TONE_SYMBOL } from '../live/tone-palette';
 import { ago, siteTime, statusLook, utcTime, withUnit } from '../live/unit-status';
 import { ColourScheme } from '../shell/colour-scheme';
-import { CommandConfirm, type CommandConfirmData } from './command-confirm';
-import { commandChoices, commandParams, describeCommand, HOLD_CAUTION, MOTION_CAUTION, STATUS_LOOK, upsertCommand, type CommandChoice } from './commands';
+import { CommandConfirm, type CommandConfirmData, type CommandConfirmResult } from './command-confirm';
+import {
+  COMMAND_ROLES, CONFIGURE_CAUTION, commandChoices, commandParams, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
+  MOTION_CAUTION, ownHold, queuedNote, RELEASE_CAUTION, STATUS_LOOK, upsertCommand, type CommandChoice,
+} from './commands';
+import { HoldPanel } from './hold-panel';
 import { appendLive, lastHourOptions, pointFromRow, type HourPoint } from './last-hour';
 import { scanFindings, scanHeatmapOptions } from './scan-chart';
 import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
@@ -42,7 +48,7 @@ import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
   selector: 'bw-unit-view',
   imports: [
     FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatTooltipModule,
-    RouterLink, NgxEchartsDirective, LinkBadge, AlarmCard, DecimalPipe, LowerCasePipe,
+    RouterLink, NgxEchartsDirective, LinkBadge, AlarmCard, DecimalPipe, LowerCasePipe, HoldPanel,
   ],
   templateUrl: './unit-view.html',
   styleUrl: './unit-view.scss',
@@ -53,7 +59,7 @@ export class UnitView {
   private readonly siteApi = inject(SiteApi);
   private readonly api = inject(FleetApi);
   private readonly alarmApi = inject(AlarmApi);
-  private readonly session = inject(Session);
+  protected readonly session = inject(Session);
   private readonly dialog = inject(MatDialog);
   private readonly notify = inject(Notify);
   private readonly scheme = inject(ColourScheme);
@@ -87,6 +93,14 @@ export class UnitView {
   protected readonly scan = signal<ScanResult | null>(null);
   protected readonly scanLoading = signal(false);
   protected readonly scanProblem = signal<string | null>(null);
+  /** The holds in force (from `GET …/holds`, then from the live state); null while loading. */
+  protected readonly holds = signal<HoldView[] | null>(null);
+  protected readonly holdsProblem = signal<string | null>(null);
+  /** New settings for `configure`; empty fields are left as they are on the unit. */
+  protected readonly cfgDetectorTilt = signal<number | null>(null);
+  protected readonly cfgGain = signal<number | null>(null);
+  protected readonly cfgDeadband = signal<number | null>(null);
+  protected readonly cfgReportInterval = signal<number | null>(null);
 
   protected readonly sortedAlarms = computed(() => sortAlarms(this.alarms()).slice(0, 20));
   protected readonly openAlarmCount = computed(() => this.alarms().filter((a) => a.state !== 'cleared').length);
@@ -110,8 +124,27 @@ export class UnitView {
   });
 
   protected readonly look = computed(() => statusLook(this.state()));
-  protected readonly onHold = computed(() => Boolean(this.state()?.onHold || this.state()?.mode === 'held'));
-  protected readonly choices = computed(() => commandChoices(this.session.role(), this.state()));
+  protected readonly meId = computed(() => this.session.me()?.id ?? null);
+  protected readonly onHold = computed(() => isHeld(this.state()) || (this.holds()?.length ?? 0) > 0);
+  /** The unit reports that it is held while no hold is in force here (a hold set on the unit itself). */
+  protected readonly reportedHeld = computed(() => this.state()?.mode === 'held' && !(this.holds()?.length ?? 0));
+  protected readonly choices = computed(() => {
+    const s = this.state();
+    const holds = this.holds() ?? s?.holds ?? [];
+    return commandChoices(this.session.role(), s ? { ...s, holds, onHold: s.onHold || holds.length > 0 } : null, this.meId(), holds);
+  });
+  protected readonly settings = computed<UnitConfig | null>(() => {
+    const c: UnitConfig = {};
+    const put = (k: keyof UnitConfig, v: number | null, min: number, max: number): boolean => {
+      if (v === null || v === undefined || (v as unknown) === '') return true;
+      if (!Number.isFinite(v) || v < min || v > max) return false;
+      c[k] = v;
+      return true;
+    };
+    const ok = put('detectorTiltDeg', this.cfgDetectorTilt(), 0.5, 45) && put('gain', this.cfgGain(), 0.001, 100)
+      && put('deadbandWm2', this.cfgDeadband(), 0, 500) && put('reportIntervalS', this.cfgReportInterval(), 1, 3600);
+    return ok && Object.keys(c).length ? c : null;
+  });
   protected readonly canSeeTraces = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
   protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
   protected readonly hourOptions = computed(() => {
@@ -146,7 +179,9 @@ export class UnitView {
   protected readonly statusLabel = STATUS_LOOK;
   protected readonly commandParams = commandParams;
   protected readonly alarmKindLabel = alarmKindLabel;
-  protected readonly canSendCommands = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
+  protected readonly canSendCommands = computed(() => COMMAND_ROLES.includes(this.session.role() ?? 'owner'));
+  protected readonly queuedNote = queuedNote;
+  protected readonly holderNames = holderNames;
 
   constructor() {
     effect(() => {
@@ -160,6 +195,10 @@ export class UnitView {
         const s = msg.units.find((x) => x.unitId === u.id);
         if (s) {
           this.state.set(s);
+          if (s.holds) {
+            this.holds.set(s.holds);
+            this.holdsProblem.set(null);
+          }
           this.hour.set(appendLive(this.hour(), s));
         }
       } else if (msg.type === 'command' && msg.command.unitId === u.id) {
@@ -196,6 +235,7 @@ export class UnitView {
         this.loadHour(unit.id);
         this.loadLandscape();
         this.loadCommands();
+        this.loadHolds();
         this.alarmApi.list({ unitId: unit.id }).subscribe((r) => {
           if (r.available) this.alarms.set(r.alarms);
           else this.alarmsUnavailable.set(r.reason);
@@ -246,6 +286,16 @@ export class UnitView {
     this.api.commands(u.id).subscribe({
       next: (list) => this.commands.set(list.reduce((acc, c) => upsertCommand(acc, c), [] as CommandView[])),
       error: (e: unknown) => this.commandsProblem.set(toApiProblem(e).message),
+    });
+  }
+
+  protected loadHolds(): void {
+    const u = this.unit();
+    if (!u) return;
+    this.holdsProblem.set(null);
+    this.api.holds(u.id).subscribe({
+      next: (h) => this.holds.set(h.active),
+      error: (e: unknown) => this.holdsProblem.set(toApiProblem(e).message),
     });
   }
 
@@ -311,23 +361,81 @@ export class UnitView {
       return;
     }
     const target = choice.kind === 'goto' ? (explicitTarget ?? { tiltDeg: this.gotoTilt()!, azimuthDeg: this.gotoAzimuth()! }) : undefined;
-    const data: CommandConfirmData = {
-      serial: u.serial,
-      siteName: this.site()?.name ?? u.siteName,
-      title: `${label} — ${u.serial}?`,
-      description: describeCommand(u.serial, choice.kind, target),
-      caution: choice.motion ? MOTION_CAUTION : HOLD_CAUTION,
-      motion: choice.motion,
-      confirmLabel: label,
-      confirmIcon: choice.icon,
-    };
+    const holds = this.holds() ?? [];
+    const mine = ownHold(holds, this.meId());
+    if (choice.kind === 'release-hold') {
+      if (mine) this.releaseHold(mine);
+      return;
+    }
+    this.confirmThen(
+      {
+        title: `${label} — ${u.serial}?`,
+        description: describeCommand(u.serial, choice.kind, target),
+        caution: choice.motion ? MOTION_CAUTION : HOLD_CAUTION,
+        askClear: choice.motion,
+        confirmLabel: label,
+        confirmIcon: choice.icon,
+        ...(choice.kind === 'hold'
+          ? { text: { label: 'Note (optional)', hint: 'What the work is. Everyone who sees the unit reads it.', required: false, maxLength: HOLD_TEXT_MAX } }
+          : {}),
+      },
+      (r) => ({ kind: choice.kind, ...target, ...(choice.motion ? { confirm: true } : {}), ...(choice.kind === 'hold' && r.text ? { note: r.text } : {}) }),
+      label,
+    );
+  }
+
+  /** Releases a hold: one's own, or (admins) someone else's with a reason. Releasing the last hold lets the unit move. */
+  protected releaseHold(hold: HoldView): void {
+    const u = this.unit();
+    if (!u) return;
+    const own = hold.holder.kind === 'person' && hold.holder.id === this.meId();
+    const label = own ? 'Release my hold' : `Release the hold of ${hold.holder.name}`;
+    this.confirmThen(
+      {
+        title: `${label} — ${u.serial}?`,
+        description: describeRelease(u.serial, hold, this.holds() ?? [hold], this.meId()),
+        caution: RELEASE_CAUTION,
+        askClear: true,
+        confirmLabel: own ? 'Release my hold' : 'Release this hold',
+        confirmIcon: 'play_circle',
+        ...(own ? {} : { text: { label: 'Reason (required)', hint: `Why you release a hold that is not yours. ${hold.holder.name} and the audit log see it.`, required: true, maxLength: HOLD_TEXT_MAX } }),
+      },
+      (r) => ({ kind: 'release-hold', confirm: true, ...(own ? {} : { holdId: hold.id, reason: r.text }) }),
+      label,
+    );
+  }
+
+  /** Sends the settings in the form through the confirmation. */
+  protected sendSettings(): void {
+    const u = this.unit();
+    const config = this.settings();
+    if (!u || !config) return;
+    this.confirmThen(
+      {
+        title: `Send new settings — ${u.serial}?`,
+        description: describeConfigure(u.serial, config),
+        caution: CONFIGURE_CAUTION,
+        askClear: true,
+        confirmLabel: 'Send settings',
+        confirmIcon: 'tune',
+      },
+      () => ({ kind: 'configure', config, confirm: true }),
+      'New settings',
+    );
+  }
+
+  private confirmThen(d: Omit<CommandConfirmData, 'serial' | 'siteName'>, request: (r: CommandConfirmResult) => IssueCommandRequest, label: string): void {
+    const u = this.unit();
+    if (!u) return;
+    const data: CommandConfirmData = { serial: u.serial, siteName: this.site()?.name ?? u.siteName, ...d };
     this.dialog
-      .open(CommandConfirm, { data, width: '560px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
+      .open<CommandConfirm, CommandConfirmData, CommandConfirmResult>(CommandConfirm, { data, width: '560px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
       .afterClosed()
-      .subscribe((ok) => {
-        if (ok !== true) return;
-        this.sending.set(choice.kind);
-        this.api.issue(u.id, { kind: choice.kind, ...target, ...(choice.motion ? { confirm: true } : {}) }).subscribe({
+      .subscribe((r) => {
+        if (!r) return;
+        const req = request(r);
+        this.sending.set(req.kind);
+        this.api.issue(u.id, req).subscribe({
           next: (c) => {
             this.sending.set(null);
             this.commands.set(upsertCommand(this.commands(), c));
@@ -335,12 +443,14 @@ export class UnitView {
               this.scanCommand.set(c);
               this.scanProblem.set(null);
             }
-            this.notify.done(`${label}: sent to ${u.serial}.`);
+            if (c.kind === 'hold' || c.kind === 'release-hold') this.loadHolds();
+            const waiting = queuedNote(c, this.zone());
+            this.notify.done(waiting ? `${label} for ${u.serial}. ${waiting}` : c.status === 'completed' && !c.sentAt ? `${label}: done. ${c.reason ?? ''}` : `${label}: sent to ${u.serial}.`);
           },
           error: (e: unknown) => {
             this.sending.set(null);
-            const p = toApiProblem(e);
-            this.notify.problem(`${label} was not sent. ${p.status === 409 ? 'The unit is on maintenance hold: motion is refused until the hold is released.' : p.message}`);
+            this.notify.problem(`${label} was not sent. ${toApiProblem(e).message}`);
+            if (req.kind === 'hold' || req.kind === 'release-hold') this.loadHolds();
           },
         });
       });
