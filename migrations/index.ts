@@ -16,6 +16,9 @@ import * as m20261202110000 from './20261202110000_add_sites_survey';
 import * as m20261202120000 from './20261202120000_create_alarms';
 import * as m20261202120100 from './20261202120100_create_site_health_settings';
 import * as m20261202130000 from './20261202130000_add_telemetry_1m_extremes';
+import * as m20261203120000 from './20261203120000_add_audit_log_action_index';
+import * as m20261203120100 from './20261203120100_add_audit_log_user_index';
+import * as m20261203120200 from './20261203120200_add_audit_log_target_index';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -39,6 +42,9 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202120000_create_alarms': m20261202120000,
   '20261202120100_create_site_health_settings': m20261202120100,
   '20261202130000_add_telemetry_1m_extremes': m20261202130000,
+  '20261203120000_add_audit_log_action_index': m20261203120000,
+  '20261203120100_add_audit_log_user_index': m20261203120100,
+  '20261203120200_add_audit_log_target_index': m20261203120200,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

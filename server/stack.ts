@@ -10,6 +10,8 @@ import { OwnerRepository } from './data/owner-repository';
 import { SiteRepository } from './data/site-repository';
 import { UnitRepository } from './data/unit-repository';
 import { AuditRepository } from './data/audit-repository';
+import { AuditService } from './services/audit-service';
+import { auditRoutes } from './routes/audit-routes';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -82,6 +84,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const users = new UserRepository(db);
   const units = new UnitRepository(db);
   const audit = new AuditRepository(db);
+  const auditLog = new AuditService(audit);
   const auth = new AuthService(users, audit, new SignInLimiter(config.signInLimitPerMinute, Date.now), {
     secret: config.sessionSecret ?? randomBytes(32).toString('hex'),
     sessionHours: config.sessionHours,
@@ -153,7 +156,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     db, log, auth, admin, version: VERSION, webDir: config.webDir,
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
     routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit),
-      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at))), landscapeRoutes(admin, landscapes), alarmRoutes(health)],
+      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at)), auditLog), landscapeRoutes(admin, landscapes), alarmRoutes(health),
+      auditRoutes(auditLog)],
   });
   const http = createServer(app);
   attachLiveSocket(http, auth, live, log);
