@@ -14,7 +14,7 @@ import type { AlarmRepository, AlarmListRow, HealthReadRepository } from '../dat
 import { badRequest, notFound } from '../errors/app-error';
 import type { Alarm } from '../health/alarm-types';
 import { HealthEngine } from '../health/health-engine';
-import { healthSettingsOverrideSchema, resolveHealthSettings, sanitizeStoredOverrides, DEFAULT_HEALTH_SETTINGS, type HealthSettings, type HealthSettingsOverride } from '../health/health-settings';
+import { healthSettingsOverrideSchema, resolveHealthSettings, sanitizeStoredOverrides, DEFAULT_HEALTH_SETTINGS, HEALTH_SETTING_RANGES, type HealthSettings, type HealthSettingsOverride } from '../health/health-settings';
 import { compareScan, type ScanComparison, type ScanSample } from '../health/scan-rebuild';
 import type { SiteModel, SiteModelProvider } from '../health/site-model';
 import type { UnitRef } from '../health/unit-sample';
@@ -144,10 +144,10 @@ export class HealthService {
     return v;
   }
 
-  async siteSettings(c: Caller, siteId: number): Promise<{ defaults: HealthSettings; overrides: Partial<HealthSettings>; effective: HealthSettings }> {
+  async siteSettings(c: Caller, siteId: number): Promise<{ defaults: HealthSettings; overrides: Partial<HealthSettings>; effective: HealthSettings; ranges: typeof HEALTH_SETTING_RANGES }> {
     await this.admin.getSite(c, siteId);
     const overrides = this.stored(siteId, await this.repo.settings(siteId));
-    return { defaults: { ...DEFAULT_HEALTH_SETTINGS }, overrides, effective: resolveHealthSettings(overrides) };
+    return { defaults: { ...DEFAULT_HEALTH_SETTINGS }, overrides, effective: resolveHealthSettings(overrides), ranges: HEALTH_SETTING_RANGES };
   }
 
   async saveSiteSettings(c: Caller, siteId: number, body: unknown) {

@@ -76,6 +76,7 @@ describe('alarms over HTTP', () => {
     const eng = await as('engineer@saltmarsh.example');
     const before = (await eng.get(`/api/sites/${siteId}/health-settings`).expect(200)).body;
     expect(before.effective.trapRatio).toBe(before.defaults.trapRatio);
+    expect(before.ranges.stowGustMs).toEqual({ min: 5, max: 35, unit: 'm/s' });
     const saved = (await eng.put(`/api/sites/${siteId}/health-settings`).send({ trapRatio: 0.8, stowGustMs: 16 }).expect(200)).body;
     expect(saved.effective).toMatchObject({ trapRatio: 0.8, stowGustMs: 16 });
     expect(saved.overrides).toEqual({ trapRatio: 0.8, stowGustMs: 16 });
