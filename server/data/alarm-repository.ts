@@ -85,14 +85,19 @@ export class AlarmRepository {
     return new Map(rows.map((r) => [r.site_id as number, typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings]));
   }
 
-  /** Replaces a site's overrides and writes the audit entry in the same transaction. */
-  async saveSettings(siteId: number, settings: Record<string, number>, userId: number, at: Date, audit: Omit<AuditEntry, 'userId'>): Promise<void> {
+  /**
+   * Replaces a site's overrides and writes the audit entry in the same transaction; `audit` is given the overrides
+   * being replaced (read under a row lock, so two saves at once each see what they replace).
+   */
+  async saveSettings(siteId: number, settings: Record<string, number>, userId: number, at: Date, audit: (before: Record<string, number> | null) => Omit<AuditEntry, 'userId'>): Promise<void> {
     await this.db.transaction(async (trx) => {
+      const r = await trx('site_health_settings').where({ site_id: siteId }).forUpdate().first('settings');
+      const before = r ? (typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings) : null;
       await trx('site_health_settings')
         .insert({ site_id: siteId, settings: JSON.stringify(settings), updated_by: userId, updated_at: at })
         .onConflict('site_id')
         .merge();
-      await appendAudit(trx, { ...audit, userId });
+      await appendAudit(trx, { ...audit(before), userId });
     });
   }
 

@@ -155,8 +155,9 @@ export class HealthService {
     const r = healthSettingsOverrideSchema.safeParse(body ?? {});
     if (!r.success) throw validationError(r.error, 'The health settings');
     const overrides = Object.fromEntries(Object.entries(r.data).filter(([, v]) => v !== undefined)) as Record<string, number>;
-    const before = this.stored(siteId, await this.repo.settings(siteId));
-    await this.repo.saveSettings(siteId, overrides, c.id, new Date(this.opts.now()), { action: 'health-settings-update', target: `site:${siteId}`, detail: { before, after: overrides } });
+    await this.repo.saveSettings(siteId, overrides, c.id, new Date(this.opts.now()), (before) => ({
+      action: 'health-settings-update', target: `site:${siteId}`, detail: { before: before ?? {}, after: overrides },
+    }));
     this.settings.set(siteId, resolveHealthSettings(overrides));
     return this.siteSettings(c, siteId);
   }
