@@ -22,6 +22,9 @@ import * as m20261203100200 from './20261203100200_drop_units_on_hold';
 import * as m20261203100300 from './20261203100300_add_commands_seq';
 import * as m20261203100400 from './20261203100400_add_commands_status_index';
 import * as m20261203110000 from './20261203110000_create_sessions';
+import * as m20261203120000 from './20261203120000_add_audit_log_action_index';
+import * as m20261203120100 from './20261203120100_add_audit_log_user_index';
+import * as m20261203120200 from './20261203120200_add_audit_log_target_index';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -51,6 +54,9 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203100300_add_commands_seq': m20261203100300,
   '20261203100400_add_commands_status_index': m20261203100400,
   '20261203110000_create_sessions': m20261203110000,
+  '20261203120000_add_audit_log_action_index': m20261203120000,
+  '20261203120100_add_audit_log_user_index': m20261203120100,
+  '20261203120200_add_audit_log_target_index': m20261203120200,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

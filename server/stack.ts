@@ -11,6 +11,8 @@ import { SiteRepository } from './data/site-repository';
 import { UnitRepository } from './data/unit-repository';
 import { AuditRepository } from './data/audit-repository';
 import { SessionRepository } from './data/session-repository';
+import { AuditService } from './services/audit-service';
+import { auditRoutes } from './routes/audit-routes';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -87,6 +89,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const users = new UserRepository(db);
   const units = new UnitRepository(db);
   const audit = new AuditRepository(db);
+  const auditLog = new AuditService(audit);
   const passwords = new Passwords(config.bcryptCost);
   const sessionEvents = new SessionEvents();
   const auth = new AuthService({ users, sessions: new SessionRepository(db), audit }, new SignInLimiter(config.signInLimitPerMinute), passwords, sessionEvents, {
@@ -176,7 +179,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     log, auth, admin, webDir: config.webDir, trustProxy: config.trustProxy, allowedOrigins, pingDatabase: () => pingDatabase(db),
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
     routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit),
-      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at))), landscapeRoutes(admin, landscapes), alarmRoutes(health)],
+      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at)), auditLog), landscapeRoutes(admin, landscapes), alarmRoutes(health),
+      auditRoutes(auditLog)],
   });
   const http = createServer(app);
   const liveSocket = attachLiveSocket(http, auth, live, sessionEvents, log, { allowedOrigins, sessionRecheckMs: opts.sessionRecheckMs ?? 30_000 });

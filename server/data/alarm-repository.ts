@@ -1,5 +1,6 @@
 import type { Db } from './db';
 import type { SiteScope } from './site-repository';
+import { appendAudit, type AuditEntry } from './audit-repository';
 
 export interface AlarmRow {
   id: number;
@@ -61,8 +62,16 @@ export class AlarmRepository {
     return this.base(scope).where('a.id', id).first();
   }
 
-  async acknowledge(id: number, userId: number, at: Date): Promise<void> {
-    await this.db('alarms').where({ id }).whereNull('acknowledged_at').update({ acknowledged_at: at, acknowledged_by: userId });
+  /**
+   * Acknowledges an alarm not acknowledged yet, and writes the audit entry in the same transaction. Returns whether it
+   * took effect (acknowledging twice changes nothing and records nothing).
+   */
+  async acknowledge(id: number, userId: number, at: Date, audit: Omit<AuditEntry, 'userId'>): Promise<boolean> {
+    return this.db.transaction(async (trx) => {
+      const n = await trx('alarms').where({ id }).whereNull('acknowledged_at').update({ acknowledged_at: at, acknowledged_by: userId });
+      if (n > 0) await appendAudit(trx, { ...audit, userId });
+      return n > 0;
+    });
   }
 
   async settings(siteId: number): Promise<Record<string, number> | null> {
@@ -76,11 +85,20 @@ export class AlarmRepository {
     return new Map(rows.map((r) => [r.site_id as number, typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings]));
   }
 
-  async saveSettings(siteId: number, settings: Record<string, number>, userId: number, at: Date): Promise<void> {
-    await this.db('site_health_settings')
-      .insert({ site_id: siteId, settings: JSON.stringify(settings), updated_by: userId, updated_at: at })
-      .onConflict('site_id')
-      .merge();
+  /**
+   * Replaces a site's overrides and writes the audit entry in the same transaction; `audit` is given the overrides
+   * being replaced (read under a row lock, so two saves at once each see what they replace).
+   */
+  async saveSettings(siteId: number, settings: Record<string, number>, userId: number, at: Date, audit: (before: Record<string, number> | null) => Omit<AuditEntry, 'userId'>): Promise<void> {
+    await this.db.transaction(async (trx) => {
+      const r = await trx('site_health_settings').where({ site_id: siteId }).forUpdate().first('settings');
+      const before = r ? (typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings) : null;
+      await trx('site_health_settings')
+        .insert({ site_id: siteId, settings: JSON.stringify(settings), updated_by: userId, updated_at: at })
+        .onConflict('site_id')
+        .merge();
+      await appendAudit(trx, { ...audit(before), userId });
+    });
   }
 
   /** Events of a scan: the `scan-samples` chunks and the `scan-complete` of the unit's latest (or a given) scan. */

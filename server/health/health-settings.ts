@@ -196,11 +196,137 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   stowReleaseMin: 10,
 });
 
-const positive = z.number().finite().nonnegative();
-/** Per-site overrides: any subset of the settings, each a finite number ≥ 0 (the temperature coefficient may be negative). */
+/** The range a setting may take [min, max] in its unit; `integer` for counts. */
+export interface HealthSettingRange {
+  min: number;
+  max: number;
+  unit: string;
+  integer?: boolean;
+}
+
+const fraction = (min: number, max: number): HealthSettingRange => ({ min, max, unit: '(fraction)' });
+const minutes = (max: number): HealthSettingRange => ({ min: 0, max, unit: 'min' });
+
+/**
+ * Every setting's allowed range. A range keeps a value physically meaningful and keeps a detector able to fire: a limit
+ * no reading can reach (a gust limit of 1e300 m/s, a stow tilt of 90°, a delay of a year) would switch an alarm off
+ * without saying so, so the upper ends stop well before that. Delays are bounded per detector by how long the fault
+ * may go unreported (a stall within the hour, soiling within two days); fractions lie within 0…1.
+ */
+export const HEALTH_SETTING_RANGES: Readonly<Record<keyof HealthSettings, HealthSettingRange>> = Object.freeze({
+  daylightMinWm2: { min: 10, max: 500, unit: 'W/m²' },
+  daylightMinSunElevationDeg: { min: 0, max: 30, unit: '°' },
+
+  trapRatio: fraction(0.5, 0.99),
+  trapPeerRatio: fraction(0.5, 0.99),
+  trapPeerQuantile: fraction(0.5, 1),
+  trapModelAgreement: fraction(0.01, 0.5),
+  trapClearRatio: fraction(0.5, 1),
+  trapSeekGraceMin: minutes(60),
+  trapDelayOnMin: minutes(240),
+  trapClearDelayMin: minutes(240),
+  trapPairSanity: fraction(0, 0.9),
+  trapManyUnits: { min: 1, max: 500, unit: 'units', integer: true },
+  trapMinBestWm2: { min: 0, max: 800, unit: 'W/m²' },
+  trapPairModelTolerance: fraction(0.01, 0.5),
+
+  motorOverCurrentA: { min: 0.1, max: 50, unit: 'A' },
+  stallAngleErrorDeg: { min: 0.1, max: 45, unit: '°' },
+  stallNoProgressDeg: { min: 0.01, max: 5, unit: '°' },
+  stallDelayOnMin: minutes(60),
+  stallClearDelayMin: minutes(240),
+
+  driftTolerance: fraction(0.01, 0.5),
+  driftClearTolerance: fraction(0.005, 0.5),
+  deadFraction: fraction(0, 0.9),
+  // Sunlight with reflections stays below about 1,500 W/m²; a lower limit would call ordinary readings saturated.
+  saturationWm2: { min: 1500, max: 10000, unit: 'W/m²' },
+  driftModelAgreement: fraction(0.01, 0.5),
+  driftMinWm2: { min: 0, max: 1000, unit: 'W/m²' },
+  driftPointingToleranceDeg: { min: 0, max: 10, unit: '°' },
+  driftMaxModelChange: fraction(0.001, 0.5),
+  driftWindowMin: { min: 1, max: 240, unit: 'min' },
+  driftDelayOnMin: minutes(720),
+  driftClearDelayMin: minutes(720),
+
+  huntingStepDeg: { min: 0.1, max: 30, unit: '°' },
+  // At one report a second a unit can reverse at most 3,600 times an hour.
+  huntingReversalsPerHour: { min: 1, max: 3600, unit: 'reversals/h' },
+  huntingNetFraction: fraction(0.01, 1),
+  huntingWindowMin: { min: 1, max: 240, unit: 'min' },
+  huntingSiteShare: fraction(0.1, 1),
+  huntingMaxLightVariation: fraction(0.01, 1),
+  huntingDelayOnMin: minutes(240),
+  huntingClearDelayMin: minutes(240),
+
+  commsIntervals: { min: 1, max: 100, unit: 'report intervals' },
+  reportIntervalS: { min: 1, max: 3600, unit: 's' },
+  commsDelayOnMin: minutes(60),
+  commsNightDelayOnMin: minutes(720),
+  commsClearDelayMin: minutes(60),
+  siteDarkFraction: fraction(0.1, 1),
+
+  // Crystalline silicon −0.3…−0.45 %/K, thin film about −0.2 %/K; module power never rises with temperature.
+  powerTempCoeffPerK: { min: -0.01, max: 0, unit: '1/K' },
+  soilingMinPoaWm2: { min: 50, max: 1000, unit: 'W/m²' },
+  soilingHistoryDays: { min: 1, max: 365, unit: 'days' },
+  soilingReferenceQuantile: fraction(0.5, 1),
+  soilingLossThreshold: fraction(0.005, 0.5),
+  soilingClearLoss: fraction(0, 0.5),
+  soilingMinHours: { min: 1, max: 1000, unit: 'hours', integer: true },
+  soilingDelayOnMin: minutes(2880),
+  soilingClearDelayMin: minutes(2880),
+
+  // Trackers are built to stow well below storm force (about 25 m/s); 35 m/s is past anything a unit survives unstowed.
+  stowGustMs: { min: 5, max: 35, unit: 'm/s' },
+  stowArrivalMin: { min: 0.5, max: 30, unit: 'min' },
+  // Stow is flat for these units; a larger "stowed" tilt would count units still facing the wind as stowed.
+  stowTiltDeg: { min: 0, max: 15, unit: '°' },
+  stowReleaseMin: { min: 1, max: 240, unit: 'min' },
+});
+
+function rangeSchema(r: HealthSettingRange) {
+  const message = `Must be between ${r.min} and ${r.max} ${r.unit}.`;
+  const n = z.number({ error: `Must be a number (${r.unit}).` }).min(r.min, message).max(r.max, message);
+  return r.integer ? n.int('Must be a whole number.') : n;
+}
+
+/** Pairs whose order makes the hysteresis: the clear threshold must lie on the far side of the raise threshold. */
+const HYSTERESIS: { clear: keyof HealthSettings; raise: keyof HealthSettings; clearIs: 'at least' | 'at most' }[] = [
+  { clear: 'trapClearRatio', raise: 'trapRatio', clearIs: 'at least' },
+  { clear: 'driftClearTolerance', raise: 'driftTolerance', clearIs: 'at most' },
+  { clear: 'soilingClearLoss', raise: 'soilingLossThreshold', clearIs: 'at most' },
+];
+
+/**
+ * Per-site overrides: any subset of the settings, each within its range (HEALTH_SETTING_RANGES); hysteresis pairs are
+ * checked on the effective values (the overrides over the defaults), so an override may not cross a default either.
+ */
 export const healthSettingsOverrideSchema = z
-  .strictObject(Object.fromEntries(Object.keys(DEFAULT_HEALTH_SETTINGS).map((k) => [k, (k === 'powerTempCoeffPerK' ? z.number().finite() : positive).optional()])) as Record<keyof HealthSettings, z.ZodOptional<z.ZodNumber>>)
-  .refine((s) => s.trapRatio === undefined || s.trapRatio < 1, { message: 'trapRatio must be below 1', path: ['trapRatio'] });
+  .strictObject(Object.fromEntries(Object.entries(HEALTH_SETTING_RANGES).map(([k, r]) => [k, rangeSchema(r).optional()])) as Record<keyof HealthSettings, z.ZodOptional<z.ZodNumber>>)
+  .superRefine((o, ctx) => {
+    const eff = resolveHealthSettings(Object.fromEntries(Object.entries(o).filter(([, v]) => v !== undefined)));
+    const inRange = (k: keyof HealthSettings) => rangeSchema(HEALTH_SETTING_RANGES[k]).safeParse(eff[k]).success;
+    for (const h of HYSTERESIS) {
+      if (!inRange(h.clear) || !inRange(h.raise)) continue; // the range message says enough
+      const ok = h.clearIs === 'at least' ? eff[h.clear] >= eff[h.raise] : eff[h.clear] <= eff[h.raise];
+      if (!ok) ctx.addIssue({ code: 'custom', path: [h.clear], message: `Must be ${h.clearIs} ${h.raise} (${eff[h.raise]}).` });
+    }
+  });
+
+/**
+ * Overrides read back from the database, keeping only known settings within their ranges (rows written before the
+ * ranges existed may hold anything); each dropped one is reported so it can be logged, and its default applies.
+ */
+export function sanitizeStoredOverrides(stored: Record<string, unknown> | null | undefined, dropped: (key: string, value: unknown) => void = () => undefined): HealthSettingsOverride {
+  const out: Record<string, number> = {};
+  for (const [k, v] of Object.entries(stored ?? {})) {
+    const range = HEALTH_SETTING_RANGES[k as keyof HealthSettings];
+    if (range && rangeSchema(range).safeParse(v).success) out[k] = v as number;
+    else dropped(k, v);
+  }
+  return out;
+}
 export type HealthSettingsOverride = Partial<HealthSettings>;
 
 /** Defaults with a site's overrides on top. */

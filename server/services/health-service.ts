@@ -14,7 +14,7 @@ import type { AlarmRepository, AlarmListRow, HealthReadRepository } from '../dat
 import { badRequest, notFound } from '../errors/app-error';
 import type { Alarm } from '../health/alarm-types';
 import { HealthEngine } from '../health/health-engine';
-import { healthSettingsOverrideSchema, resolveHealthSettings, DEFAULT_HEALTH_SETTINGS, type HealthSettings } from '../health/health-settings';
+import { healthSettingsOverrideSchema, resolveHealthSettings, sanitizeStoredOverrides, DEFAULT_HEALTH_SETTINGS, HEALTH_SETTING_RANGES, type HealthSettings, type HealthSettingsOverride } from '../health/health-settings';
 import { compareScan, type ScanComparison, type ScanSample } from '../health/scan-rebuild';
 import type { SiteModel, SiteModelProvider } from '../health/site-model';
 import type { UnitRef } from '../health/unit-sample';
@@ -87,7 +87,7 @@ export class HealthService {
   }
 
   async start(): Promise<void> {
-    for (const [siteId, o] of await this.repo.allSettings()) this.settings.set(siteId, resolveHealthSettings(o));
+    for (const [siteId, o] of await this.repo.allSettings()) this.settings.set(siteId, resolveHealthSettings(this.stored(siteId, o)));
     this.timer = setInterval(() => this.tick(), this.opts.tickMs);
     this.timer.unref();
   }
@@ -143,17 +143,19 @@ export class HealthService {
   }
 
   async acknowledge(c: Caller, id: number): Promise<AlarmView> {
-    await this.get(c, id);
-    await this.repo.acknowledge(id, c.id, new Date(this.opts.now()));
+    const a = await this.get(c, id);
+    await this.repo.acknowledge(id, c.id, new Date(this.opts.now()), {
+      action: 'alarm-acknowledge', target: `alarm:${id}`, detail: { unitId: a.unitId, serial: a.serial, siteId: a.siteId, kind: a.kind, severity: a.severity },
+    });
     const v = await this.get(c, id);
     if (v.unitId !== null) this.live.publishAlarm(v.unitId, v);
     return v;
   }
 
-  async siteSettings(c: Caller, siteId: number): Promise<{ defaults: HealthSettings; overrides: Partial<HealthSettings>; effective: HealthSettings }> {
+  async siteSettings(c: Caller, siteId: number): Promise<{ defaults: HealthSettings; overrides: Partial<HealthSettings>; effective: HealthSettings; ranges: typeof HEALTH_SETTING_RANGES }> {
     await this.admin.getSite(c, siteId);
-    const overrides = (await this.repo.settings(siteId)) ?? {};
-    return { defaults: { ...DEFAULT_HEALTH_SETTINGS }, overrides, effective: resolveHealthSettings(overrides) };
+    const overrides = this.stored(siteId, await this.repo.settings(siteId));
+    return { defaults: { ...DEFAULT_HEALTH_SETTINGS }, overrides, effective: resolveHealthSettings(overrides), ranges: HEALTH_SETTING_RANGES };
   }
 
   async saveSiteSettings(c: Caller, siteId: number, body: unknown) {
@@ -161,9 +163,16 @@ export class HealthService {
     const r = healthSettingsOverrideSchema.safeParse(body ?? {});
     if (!r.success) throw validationError(r.error, 'The health settings');
     const overrides = Object.fromEntries(Object.entries(r.data).filter(([, v]) => v !== undefined)) as Record<string, number>;
-    await this.repo.saveSettings(siteId, overrides, c.id, new Date(this.opts.now()));
+    await this.repo.saveSettings(siteId, overrides, c.id, new Date(this.opts.now()), (before) => ({
+      action: 'health-settings-update', target: `site:${siteId}`, detail: { before: before ?? {}, after: overrides },
+    }));
     this.settings.set(siteId, resolveHealthSettings(overrides));
     return this.siteSettings(c, siteId);
+  }
+
+  /** Stored overrides within their ranges; anything else (written before the ranges existed) falls back to its default. */
+  private stored(siteId: number, overrides: Record<string, unknown> | null): HealthSettingsOverride {
+    return sanitizeStoredOverrides(overrides, (key, value) => this.log.warn({ siteId, key, value }, 'stored health setting out of range: its default applies'));
   }
 
   /** The unit's latest (or a given) scan rebuilt and compared with the model. */

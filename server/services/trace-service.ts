@@ -2,6 +2,7 @@ import type { Unit } from '../../shared/contracts/api';
 import { MAX_CSV_DAYS, TRACE_QUANTITIES, TRACE_QUANTITY_INFO, type TraceMark, type TraceQuantity, type TraceSeries, type UnitTraces } from '../../shared/contracts/traces';
 import type { BucketRow, TraceRepository, RawTraceRow } from '../data/trace-repository';
 import { badRequest } from '../errors/app-error';
+import { csvLine } from '../../shared/csv/csv-field';
 
 const DAY_MS = 86_400_000;
 const MINUTE_MS = 60_000;
@@ -41,19 +42,12 @@ function round(x: number): number {
   return Math.round(x * 1000) / 1000;
 }
 
-/** One CSV field per RFC 4180: quoted when it holds a comma, quote or line break; empty for missing. */
-export function csvField(v: string | number | null | undefined): string {
-  if (v === null || v === undefined || (typeof v === 'number' && !Number.isFinite(v))) return '';
-  const s = String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
 export function csvHeader(): string {
-  return ['timestamp_utc', ...CSV_COLUMNS.map((c) => c.name)].join(',') + '\r\n';
+  return csvLine(['timestamp_utc', ...CSV_COLUMNS.map((c) => c.name)]);
 }
 
 export function csvRow(r: RawTraceRow): string {
-  return [r.ts.toISOString(), ...CSV_COLUMNS.map((c) => csvField(c.value(r)))].map(String).join(',') + '\r\n';
+  return csvLine([r.ts.toISOString(), ...CSV_COLUMNS.map((c) => c.value(r))]);
 }
 
 /** Validates a trace range; returns it as dates. */

@@ -99,4 +99,6 @@ export interface SiteHealthSettings {
   defaults: Record<string, number>;
   overrides: Record<string, number>;
   effective: Record<string, number>;
+  /** The range each setting may take, in its unit; `integer` for counts. A PUT outside it is refused. */
+  ranges: Record<string, { min: number; max: number; unit: string; integer?: boolean }>;
 }

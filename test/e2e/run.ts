@@ -54,7 +54,7 @@ const DEMO_USERS: DemoUser[] = [
 ];
 
 const NAV: Record<RoleName, string[]> = {
-  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
+  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials', 'Audit log'],
   engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
   technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
   crew: ['Fleet board', 'Alarms', 'Sites'],
@@ -329,6 +329,20 @@ async function main(): Promise<number> {
       await done.click();
       await secretDialog.waitFor({ state: 'detached' });
       await page.getByRole('table', { name: 'Tracker units' }).getByText(serial).waitFor();
+    });
+
+    await check('admin finds the site they added in the audit log, filtered by action', async () => {
+      await page.goto(`${base}/admin/audit`);
+      const table = page.getByRole('table', { name: 'Audit log entries, newest first' });
+      await table.locator('tr.mat-mdc-row').first().waitFor();
+      await page.getByTestId('filter-action').click();
+      await page.getByRole('option', { name: 'Added a site' }).click();
+      const row = table.locator('tr.mat-mdc-row', { hasText: `Site ${newSite}` });
+      await row.waitFor();
+      expectTrue(((await row.textContent()) ?? '').includes('Ada Kestrel'), 'the row names who added it');
+      expectTrue((await table.locator('tr.mat-mdc-row').count()) >= 1, 'only "Added a site" rows are listed');
+      for (const text of await table.locator('tr.mat-mdc-row').allTextContents()) expectTrue(text.includes('Added a site'), `row is an "Added a site" entry: ${text}`);
+      await page.screenshot({ path: join(OUTPUT, 'admin-audit-log.png'), animations: 'disabled' });
     });
 
     await check('the shell works on a 360 px wide phone screen', async () => {

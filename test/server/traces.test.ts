@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { startTestStack } from '../helpers/test-stack';
 import { DEMO_PASSWORD } from '../../seeds/demo-world';
-import { csvField } from '../../server/services/trace-service';
+import { csvField } from '../../shared/csv/csv-field';
 import { TelemetryRepository } from '../../server/data/telemetry-repository';
 import type { UnitTraces } from '../../shared/contracts/traces';
 
@@ -137,6 +137,8 @@ describe('CSV export', () => {
     expect(first[0]).toBe('2026-06-10T08:00:00.000Z');
     expect(first[header.indexOf('poa_irradiance_W_m2')]).toBe('600');
     expect(first[header.indexOf('tilt_differential_W_m2')]).toBe('10');
+    // A negative value is a number, not a formula: written as it is.
+    expect(first[header.indexOf('azimuth_differential_W_m2')]).toBe('-5');
     expect(lines[720]!.startsWith('2026-06-10T08:59:55.000Z')).toBe(true);
   });
 

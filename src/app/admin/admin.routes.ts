@@ -32,4 +32,11 @@ export const adminRoutes: Routes = [
     data: { roles: rolesFor('/admin/units') },
     loadComponent: () => import('./units/units-page').then((m) => m.UnitsPage),
   },
+  {
+    path: 'audit',
+    title: 'Audit log · Brightward',
+    canActivate: [roleGuard],
+    data: { roles: rolesFor('/admin/audit') },
+    loadComponent: () => import('./audit/audit-page').then((m) => m.AuditPage),
+  },
 ];

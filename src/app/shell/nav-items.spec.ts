@@ -2,7 +2,7 @@ import { ROLES, type Role } from '../../../shared/contracts/api';
 import { NAV_ITEMS, navItemsFor, rolesFor } from './nav-items';
 
 const EXPECTED: Record<Role, string[]> = {
-  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials'],
+  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials', 'Audit log'],
   engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
   technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
   crew: ['Fleet board', 'Alarms', 'Sites'],
@@ -28,6 +28,7 @@ describe('navigation per role', () => {
 
   it('gives routes the same roles as the navigation', () => {
     expect(rolesFor('/admin/units')).toEqual(['admin']);
+    expect(rolesFor('/admin/audit')).toEqual(['admin']);
     expect([...rolesFor('/sites')].sort()).toEqual([...ROLES].sort());
     expect(() => rolesFor('/nowhere')).toThrow(/No navigation entry/);
   });

@@ -22,6 +22,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/admin/owners', label: 'Owners', icon: 'handshake', group: 'Administration', roles: ['admin'] },
   { path: '/admin/sites', label: 'Site setup', icon: 'edit_location_alt', group: 'Administration', roles: ['admin'] },
   { path: '/admin/units', label: 'Units and credentials', icon: 'solar_power', group: 'Administration', roles: ['admin'] },
+  { path: '/admin/audit', label: 'Audit log', icon: 'history', group: 'Administration', roles: ['admin'] },
 ];
 
 /** The navigation entries a role may see, in table order. */
