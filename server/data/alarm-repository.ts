@@ -91,7 +91,10 @@ export class AlarmRepository {
    */
   async saveSettings(siteId: number, settings: Record<string, number>, userId: number, at: Date, audit: (before: Record<string, number> | null) => Omit<AuditEntry, 'userId'>): Promise<void> {
     await this.db.transaction(async (trx) => {
-      const r = await trx('site_health_settings').where({ site_id: siteId }).forUpdate().first('settings');
+      // Lock the site's row (it always exists): locking a settings row that is not there yet takes a gap lock, and two
+      // first saves of one site at once would then deadlock on their inserts.
+      await trx('sites').where({ id: siteId }).forUpdate().first('id');
+      const r = await trx('site_health_settings').where({ site_id: siteId }).first('settings');
       const before = r ? (typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings) : null;
       await trx('site_health_settings')
         .insert({ site_id: siteId, settings: JSON.stringify(settings), updated_by: userId, updated_at: at })

@@ -79,6 +79,8 @@ const ROUTES: Row[] = [
                                                                                                                                           200, 200, 200, 200, 200, 200),
   row('POST /api/auth/sign-out',                   () => ({ path: '/api/auth/sign-out', body: {} }),                                      204, 204, 204, 204, 204, 204, { fresh: true }),
   row('GET /api/me',                               () => '/api/me',                                                                       401, 200, 200, 200, 200, 200),
+  // A wrong current password: every signed-in role may ask (400 on currentPassword), and nobody's password changes.
+  row('POST /api/me/password',                     () => ({ path: '/api/me/password', body: { currentPassword: 'not-the-password', newPassword: 'a-new-long-password' } }), 401, 400, 400, 400, 400, 400, { fresh: true }),
 
   // People and owners: admins only.
   row('GET /api/users',                            () => '/api/users',                                                                    401, 200, 403, 403, 403, 403),
@@ -108,6 +110,7 @@ const ROUTES: Row[] = [
   // Live state, telemetry, commands.
   row('GET /api/units/:id/state',                  (w, s) => `/api/units/${unit(w, s)}/state`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/telemetry',              (w, s) => `/api/units/${unit(w, s)}/telemetry?${range}`,                               401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/units/:id/holds',                  (w, s) => `/api/units/${unit(w, s)}/holds`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/commands',               (w, s) => `/api/units/${unit(w, s)}/commands`,                                         401, 200, 200, 200, 200, mine(200)),
   row('POST /api/units/:id/commands',              (w, s) => ({ path: `/api/units/${unit(w, s, 1)}/commands`, body: { kind: 'configure', config: { reportIntervalS: 5 }, confirm: true } }),
                                                                                                                                           401, 201, 201, 201, 403, 403, { label: 'configure' }),
