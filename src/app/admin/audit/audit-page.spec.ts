@@ -123,7 +123,8 @@ describe('audit words', () => {
   it('names known actions in plain words and shows new ones by name', () => {
     expect(actionLook('trace-export').label).toBe('Exported traces as CSV');
     expect(actionLook('health-settings-update').label).toBe('Changed health settings');
-    expect(actionLook('hold-release')).toEqual({ label: 'Hold release', icon: 'history' });
+    expect(actionLook('hold-release').label).toBe('Released a maintenance hold');
+    expect(actionLook('ticket-reopen')).toEqual({ label: 'Ticket reopen', icon: 'history' });
   });
 
   it('shows a settings change as before → after, an export as its range, a command by kind and parameters', () => {

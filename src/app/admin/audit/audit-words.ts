@@ -33,7 +33,7 @@ export const ACTION_LOOKS: Readonly<Record<string, ActionLook>> = {
   'trace-export': { label: 'Exported traces as CSV', icon: 'download' },
 };
 
-/** `hold-release` → "Hold release". */
+/** `ticket-reopen` → "Ticket reopen". */
 export function actionLook(action: string): ActionLook {
   const known = ACTION_LOOKS[action];
   if (known) return known;
