@@ -16,6 +16,7 @@ import * as m20261202110000 from './20261202110000_add_sites_survey';
 import * as m20261202120000 from './20261202120000_create_alarms';
 import * as m20261202120100 from './20261202120100_create_site_health_settings';
 import * as m20261202130000 from './20261202130000_add_telemetry_1m_extremes';
+import * as m20261203140000 from './20261203140000_add_units_weather_station';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -39,6 +40,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261202120000_create_alarms': m20261202120000,
   '20261202120100_create_site_health_settings': m20261202120100,
   '20261202130000_add_telemetry_1m_extremes': m20261202130000,
+  '20261203140000_add_units_weather_station': m20261203140000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -31,7 +31,7 @@ async function open(serial: string): Promise<Conn> {
     });
     socket.on('data', (d) => parser.parse(d));
     socket.once('error', rej);
-    socket.write(mqttPacket.generate({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: `load-${serial}`, keepalive: 120, username: serial, password: Buffer.from(password!) }));
+    socket.write(mqttPacket.generate({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: serial, keepalive: 120, username: serial, password: Buffer.from(password!) }));
   });
   return c;
 }

@@ -42,33 +42,52 @@ const EXTREMES: [string, string][] = [
 ];
 const QUARTER_MS = 15 * MINUTE_MS;
 
+/** Identity of a telemetry row (its primary key), as the ingest compares rows. */
+export const telemetryKey = (unitId: number, ts: Date) => `${unitId}|${ts.getTime()}`;
+/** Identity of a unit event row (its primary key). */
+export const eventKey = (unitId: number, ts: Date, kind: string) => `${unitId}|${ts.getTime()}|${kind}`;
+
 /** Raw telemetry and its rollups. Inserts are `INSERT IGNORE` on the (unit, ts) key: a resend never duplicates. */
 export class TelemetryRepository {
   constructor(private readonly db: Db) {}
 
-  /** Multi-row insert; returns how many rows were new (the rest were duplicates). */
-  async insertTelemetry(rows: TelemetryRow[]): Promise<number> {
-    if (!rows.length) return 0;
-    return this.insertIgnore('telemetry', TELEMETRY_COLUMNS as string[], rows as unknown as Record<string, unknown>[]);
+  /**
+   * Stores one ingest batch in a single transaction (one group commit for every message in it): either all of it or
+   * none. Inserts are `INSERT IGNORE` on the primary key; returns the keys of the telemetry and event rows that were
+   * new (`INSERT IGNORE … RETURNING` names only the rows actually inserted), so a resend is never announced twice.
+   */
+  async insertBatch(batch: { telemetry: TelemetryRow[]; events: EventRow[]; weather: WeatherRow[] }): Promise<{ telemetry: string[]; events: string[]; weather: number }> {
+    return this.db.transaction(async (trx) => {
+      const telemetry = batch.telemetry.length
+        ? (await this.insertIgnoreReturning(trx, 'telemetry', TELEMETRY_COLUMNS as string[], batch.telemetry as unknown as Record<string, unknown>[], ['unit_id', 'ts'])).map((r) => telemetryKey(Number(r['unit_id']), r['ts'] as Date))
+        : [];
+      const events = batch.events.length
+        ? (await this.insertIgnoreReturning(trx, 'unit_events', ['unit_id', 'ts', 'kind', 'body'], batch.events as unknown as Record<string, unknown>[], ['unit_id', 'ts', 'kind'])).map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])))
+        : [];
+      const weather = batch.weather.length
+        ? await this.insertIgnore(trx, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], batch.weather as unknown as Record<string, unknown>[])
+        : 0;
+      return { telemetry, events, weather };
+    });
   }
 
-  async insertEvents(rows: EventRow[]): Promise<number> {
-    return rows.length ? this.insertIgnore('unit_events', ['unit_id', 'ts', 'kind', 'body'], rows as unknown as Record<string, unknown>[]) : 0;
-  }
-
-  async insertWeather(rows: WeatherRow[]): Promise<number> {
-    return rows.length
-      ? this.insertIgnore('weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[])
-      : 0;
-  }
-
-  private async insertIgnore(table: string, cols: string[], rows: Record<string, unknown>[]): Promise<number> {
+  private statement(table: string, cols: string[], rows: Record<string, unknown>[]): { sql: string; values: Knex.RawBinding[] } {
     const tuple = `(${cols.map(() => '?').join(',')})`;
     const values: Knex.RawBinding[] = [];
     for (const r of rows) for (const c of cols) values.push(r[c] as Knex.RawBinding);
-    const sql = `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`;
-    const [res] = (await this.db.raw(sql, values)) as unknown as [{ affectedRows: number }];
+    return { sql: `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`, values };
+  }
+
+  private async insertIgnore(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[]): Promise<number> {
+    const { sql, values } = this.statement(table, cols, rows);
+    const [res] = (await db.raw(sql, values)) as unknown as [{ affectedRows: number }];
     return res.affectedRows;
+  }
+
+  private async insertIgnoreReturning(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[], key: string[]): Promise<Record<string, unknown>[]> {
+    const { sql, values } = this.statement(table, cols, rows);
+    const [res] = (await db.raw(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values)) as unknown as [Record<string, unknown>[]];
+    return res;
   }
 
   /** Recomputes the 1-minute rollup of one minute bucket (epoch ms of the minute start) for the given units. */

@@ -18,6 +18,7 @@ export interface UnitRow {
   disabled: number | boolean;
   device_secret_hash: string;
   on_hold?: number | boolean;
+  weather_station?: number | boolean;
 }
 
 export class UnitRepository {
@@ -41,8 +42,8 @@ export class UnitRepository {
   }
 
   /** Credentials lookup for the broker: serial → secret hash and whether the unit may connect. */
-  findCredentials(serial: string): Promise<Pick<UnitRow, 'id' | 'serial' | 'site_id' | 'device_secret_hash' | 'disabled'> | undefined> {
-    return this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled');
+  findCredentials(serial: string): Promise<Pick<UnitRow, 'id' | 'serial' | 'site_id' | 'device_secret_hash' | 'disabled' | 'weather_station'> | undefined> {
+    return this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled', 'weather_station');
   }
 
   async findBySerial(serial: string): Promise<{ id: number } | undefined> {
@@ -75,5 +76,6 @@ function toUnit(r: UnitRow & { site_name: string }): Unit {
     planYM: r.plan_y_m,
     firmware: r.firmware,
     disabled: Boolean(r.disabled),
+    weatherStation: Boolean(r.weather_station),
   };
 }

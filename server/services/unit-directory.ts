@@ -9,6 +9,8 @@ export interface UnitInfo {
   disabled: boolean;
   onHold: boolean;
   detectorTiltDeg: number;
+  /** Carries its site's weather station. */
+  weatherStation: boolean;
 }
 
 /** In-memory map serial → unit, for the hot ingest path. Reloaded periodically and on a miss (at most once a second). */
@@ -28,13 +30,14 @@ export class UnitDirectory {
       try {
         const rows = await this.db('units as u')
           .join('sites as s', 's.id', 'u.site_id')
-          .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.on_hold', 'u.detector_tilt_deg');
+          .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.on_hold', 'u.detector_tilt_deg', 'u.weather_station');
         const bySerial = new Map<string, UnitInfo>();
         const byId = new Map<number, UnitInfo>();
         for (const r of rows) {
           const u: UnitInfo = {
             id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
             disabled: Boolean(r.disabled), onHold: Boolean(r.on_hold), detectorTiltDeg: r.detector_tilt_deg,
+            weatherStation: Boolean(r.weather_station),
           };
           bySerial.set(u.serial, u);
           byId.set(u.id, u);

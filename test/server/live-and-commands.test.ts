@@ -67,7 +67,8 @@ describe('live WebSocket', () => {
 
     const u = await connectUnit(stack.broker.port, 'QHL-2401');
     const t0 = Date.now() - 5000;
-    for (let i = 0; i < 5; i++) await publish(u, 'QHL-2401', 'telemetry', sample(i, t0 + i * 1000, { poaWm2: 700 + i }));
+    // Sent back to back (PUBACKs come after each batch commits), so all five fall inside one coalescing window.
+    await Promise.all(Array.from({ length: 5 }, (_, i) => publish(u, 'QHL-2401', 'telemetry', sample(i, t0 + i * 1000, { poaWm2: 700 + i }))));
     const updatesOf = (serial: string) => messages.flatMap((m) => (m.type === 'units' ? m.units.filter((u) => u.serial === serial) : []));
     const first = await waitFor(() => updatesOf('QHL-2401')[0], 3000, 'unit update');
     expect(first.online).toBe(true);
