@@ -117,10 +117,13 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const bySerial = new Map<string, Set<Client>>();
   /** Bumped by disconnectUnit: a credential check that started before it is refused. */
   const revocations = new Map<string, number>();
+  /** Connections already counted: a connection closed for a fault counts once, by its first one. */
+  const counted = new WeakSet<Client>();
   const ackQueues = new WeakMap<Client, { done: (err: Error | null) => void; ready: boolean; err: Error | null }[]>();
 
-  const refuse = (done: (e: AuthenticateError, ok: false) => void, code: 2 | 3 | 4 | 5, reason: Refusal, message: string) => {
+  const refuse = (client: Client, done: (e: AuthenticateError, ok: false) => void, code: 2 | 3 | 4 | 5, reason: Refusal, message: string) => {
     counters.refused[reason]++;
+    counted.add(client);
     const err = new BrokerRefusal(message) as unknown as AuthenticateError;
     err.returnCode = code as AuthenticateError['returnCode']; // aedes AuthErrorCode is a const enum: 2 identifier rejected, 3 server unavailable, 4 bad credentials, 5 not authorized
     done(err, false);
@@ -170,20 +173,20 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       opts
         .authenticate(username ?? '', password?.toString('utf8') ?? '')
         .then((p) => {
-          if (!p) return refuse(done, 4, 'bad_credentials', 'Bad username or password');
+          if (!p) return refuse(client, done, 4, 'bad_credentials', 'Bad username or password');
           if (p.kind === 'unit') {
             // A unit's client id is its serial: otherwise one unit could take over another's session (and fire its will).
-            if (client.id !== p.serial) return refuse(done, 2, 'identifier_rejected', `client id must be the unit serial ${p.serial}`);
+            if (client.id !== p.serial) return refuse(client, done, 2, 'identifier_rejected', `client id must be the unit serial ${p.serial}`);
             const will = wills.get(client);
             if (will && (will.topic !== `${opts.unitPrefix(p.serial)}status` || (will.qos ?? 0) > 1 || will.payload.length > MAX_PAYLOAD_BYTES)) {
-              return refuse(done, 5, 'will_denied', `a unit's will must be its own status topic (got ${will.topic})`);
+              return refuse(client, done, 5, 'will_denied', `a unit's will must be its own status topic (got ${will.topic})`);
             }
-            if ((revocations.get(p.serial) ?? 0) !== generation) return refuse(done, 3, 'server_unavailable', 'the unit was disconnected while signing in');
+            if ((revocations.get(p.serial) ?? 0) !== generation) return refuse(client, done, 3, 'server_unavailable', 'the unit was disconnected while signing in');
           }
           principals.set(client, p);
           done(null, true);
         })
-        .catch((e: Error) => refuse(done, 3, 'server_unavailable', `the credential store could not be read: ${e.message}`));
+        .catch((e: Error) => refuse(client, done, 3, 'server_unavailable', `the credential store could not be read: ${e.message}`));
     },
     authorizePublish: (client, packet, done) => {
       if (!client) return done(null); // broker-internal publish (in-process services)
@@ -195,6 +198,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
         leaf === null || packet.qos > 1 ? 'acl' : packet.retain && leaf !== 'status' ? 'retain' : leaf === 'weather' && !p.weatherStation ? 'weather' : null;
       if (reason || leaf === null) {
         counters.publishesDenied++;
+        counted.add(client);
         opts.onDenied?.(p, packet.topic, reason ?? 'acl');
         return done(new BrokerRefusal(`publish refused (${reason}): ${packet.topic}`));
       }
@@ -244,11 +248,12 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     }
     opts.onClientGone?.(p, client.id);
   });
-  const countError = (_client: Client, err: Error & { code?: unknown; errorCode?: unknown }) => {
-    if (err instanceof BrokerRefusal) return; // counted where it was raised
+  const countError = (client: Client, err: Error & { code?: unknown; errorCode?: unknown }) => {
+    if (err instanceof BrokerRefusal || counted.has(client)) return; // counted where it was raised, or already
+    if (err.message === 'connection closed') return; // a PUBACK for a connection that is already gone
+    counted.add(client);
     if (err.message === 'connect did not arrive in time') counters.connectTimeouts++;
     else if (err.message === 'keep alive timeout') counters.keepaliveTimeouts++;
-    else if (err.message === 'connection closed') return; // a PUBACK for a connection that is already gone
     else if (err.errorCode === 1) counters.refused.protocol_version++;
     else if (typeof err.code === 'string' && err.code.startsWith('E')) counters.socketErrors++;
     else counters.protocolErrors++;
@@ -267,6 +272,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       const cap = authenticated.has(client) ? limits.maxPacketBytes : limits.maxConnectBytes;
       if (this.packet.length <= cap) return true;
       counters.tooLarge++;
+      counted.add(client);
       const p = principals.get(client);
       if (p) opts.onDenied?.(p, '', 'too_large');
       this._emitError(new BrokerRefusal(`packet of ${this.packet.length} bytes is over the ${cap}-byte limit`));

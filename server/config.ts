@@ -14,6 +14,7 @@ const envSchema = z.object({
   BW_BROKER_PORT: z.coerce.number().int().min(0).max(65535).default(1884),
   // MQTT over TLS is off unless a port is given ('' or 'off' also mean off).
   BW_BROKER_TLS_PORT: z.preprocess((v) => (v === '' || v === 'off' ? undefined : v), z.coerce.number().int().min(0).max(65535).optional()),
+  BW_BROKER_CONNECT_TIMEOUT_MS: z.coerce.number().int().min(100).max(600_000).default(10_000),
   BW_BROKER_TLS_CERT: z.string().min(1).optional(),
   BW_BROKER_TLS_KEY: z.string().min(1).optional(),
   BW_SESSION_SECRET: z.string().min(32, 'at least 32 characters').optional(),
@@ -35,7 +36,7 @@ export interface Config {
   port: number;
   db: { host: string; port: number; database: string; user: string; password: string; poolMax: number };
   /** `tls` when MQTT over TLS is offered; without cert/key paths a development certificate is made in `.data/tls/`. */
-  broker: { host: string; port: number; tls?: { port: number; certPath?: string; keyPath?: string } };
+  broker: { host: string; port: number; connectTimeoutMs?: number; tls?: { port: number; certPath?: string; keyPath?: string } };
   /** HMAC secret of session tokens; when unset a random one is made per process (sessions end on restart). */
   sessionSecret: string | undefined;
   sessionHours: number;
@@ -65,7 +66,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     port: e.BW_PORT,
     db: { host: e.BW_DB_HOST, port: e.BW_DB_PORT, database: e.BW_DB_NAME, user: e.BW_DB_USER, password: e.BW_DB_PASSWORD, poolMax: e.BW_DB_POOL_MAX },
     broker: {
-      host: e.BW_BROKER_HOST, port: e.BW_BROKER_PORT,
+      host: e.BW_BROKER_HOST, port: e.BW_BROKER_PORT, connectTimeoutMs: e.BW_BROKER_CONNECT_TIMEOUT_MS,
       ...(e.BW_BROKER_TLS_PORT === undefined ? {} : { tls: { port: e.BW_BROKER_TLS_PORT, certPath: e.BW_BROKER_TLS_CERT, keyPath: e.BW_BROKER_TLS_KEY } }),
     },
     sessionSecret: e.BW_SESSION_SECRET,

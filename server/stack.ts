@@ -38,7 +38,7 @@ import { LandscapeService } from './services/landscape-service';
 import { TraceRepository } from './data/trace-repository';
 import { unitTopic } from '../shared/contracts/topics';
 import { createApp } from './app';
-import { startBroker, type Principal, type RunningBroker } from '../broker/broker';
+import { startBroker, type BrokerLimits, type Principal, type RunningBroker } from '../broker/broker';
 import { ensureDevCertificate } from '../broker/dev-certificate';
 import { unitPrefix } from '../shared/contracts/topics';
 
@@ -71,6 +71,8 @@ export interface StackOptions {
   listeners?: IngestListeners;
   rollupIntervalMs?: number;
   health?: Partial<HealthServiceOptions>;
+  /** Broker limits other than the defaults (tests). */
+  brokerLimits?: Partial<BrokerLimits>;
 }
 
 export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel }), opts: StackOptions = {}): Promise<Stack> {
@@ -140,6 +142,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     port: config.broker.port,
     tls,
     unitPrefix,
+    limits: { ...(config.broker.connectTimeoutMs ? { connectTimeoutMs: config.broker.connectTimeoutMs } : {}), ...opts.brokerLimits },
     onMessage: unitMessageHandler(ingest, log),
     onDenied: countDenied(ingest),
     authenticate: async (username, password): Promise<Principal | null> => {

@@ -8,8 +8,12 @@ import mqttPacket, { type IConnackPacket, type IConnectPacket, type IPublishPack
  */
 export interface RawClient {
   socket: Socket;
-  /** Every packet received so far, in order. */
+  /** Every packet received so far, in order (PUBACKs only while `keepPubacks`). */
   received: Packet[];
+  /** PUBACKs received so far. */
+  pubacks(): number;
+  /** Set false to count PUBACKs without keeping them (long runs). */
+  keepPubacks: boolean;
   send(p: Packet | Buffer): void;
   /** Resolves with the next received packet of this kind (one not handed out before), or rejects when the socket closes first. */
   next<C extends Packet['cmd']>(cmd: C, what?: string): Promise<Extract<Packet, { cmd: C }>>;
@@ -23,11 +27,13 @@ export async function rawSocket(port: number, tls?: ConnectionOptions): Promise<
   const socket: Socket = tls ? tlsConnect({ host: '127.0.0.1', port, ...tls }) : connect(port, '127.0.0.1');
   const received: Packet[] = [];
   const taken = new Set<Packet>();
+  let pubacks = 0;
   let isClosed = false;
   const waiters = new Set<() => void>();
   const parser = mqttPacket.parser({ protocolVersion: 4 });
   parser.on('packet', (p: Packet) => {
-    received.push(p);
+    if (p.cmd === 'puback') pubacks++;
+    if (p.cmd !== 'puback' || client.keepPubacks) received.push(p);
     for (const w of [...waiters]) w();
   });
   parser.on('error', () => socket.destroy());
@@ -42,9 +48,11 @@ export async function rawSocket(port: number, tls?: ConnectionOptions): Promise<
     socket.once(tls ? 'secureConnect' : 'connect', () => res());
     socket.once('error', rej);
   });
-  return {
+  const client: RawClient = {
     socket,
     received,
+    pubacks: () => pubacks,
+    keepPubacks: true,
     send: (p) => socket.write(Buffer.isBuffer(p) ? p : mqttPacket.generate(p)),
     next: <C extends Packet['cmd']>(cmd: C, what: string = cmd) =>
       new Promise<Extract<Packet, { cmd: C }>>((res, rej) => {
@@ -67,6 +75,7 @@ export async function rawSocket(port: number, tls?: ConnectionOptions): Promise<
     isClosed: () => isClosed,
     destroy: () => socket.destroy(),
   };
+  return client;
 }
 
 export type ConnectFields = Partial<Omit<IConnectPacket, 'cmd'>>;
@@ -75,7 +84,7 @@ export type ConnectFields = Partial<Omit<IConnectPacket, 'cmd'>>;
 export async function rawConnect(port: number, serial: string, password: string, fields: ConnectFields = {}, tls?: ConnectionOptions): Promise<{ c: RawClient; connack: IConnackPacket }> {
   const c = await rawSocket(port, tls);
   c.send({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: serial, keepalive: 60, username: serial, password: Buffer.from(password), ...fields });
-  const connack = await c.next('connack');
+  const connack = await c.next('connack', `the CONNACK for ${serial}`);
   return { c, connack };
 }
 
