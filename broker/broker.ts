@@ -5,13 +5,13 @@ import type { AddressInfo } from 'node:net';
 import { MAX_PAYLOAD_BYTES } from '../shared/contracts/wire';
 import { UNIT_PUBLISH_LEAVES, type UnitPublishLeaf } from '../shared/contracts/topics';
 
-/** A field unit, confined to its own topic prefix; `weatherStation` when it carries its site's weather station. */
-export interface UnitPrincipal { kind: 'unit'; serial: string; weatherStation?: boolean }
+/** A field unit, confined to its own topic prefix. */
+export interface UnitPrincipal { kind: 'unit'; serial: string }
 /** Who a connected client is: a field unit or a server-side service. */
 export type Principal = UnitPrincipal | { kind: 'service'; name: string };
 
 /** Why a publish was refused (the connection is then closed: MQTT 3.1.1 has no per-message refusal). */
-export type DenyReason = 'acl' | 'retain' | 'weather' | 'too_large';
+export type DenyReason = 'acl' | 'retain' | 'too_large';
 /** Why a CONNECT was refused. */
 export const REFUSALS = ['bad_credentials', 'identifier_rejected', 'will_denied', 'server_unavailable', 'protocol_version'] as const;
 export type Refusal = (typeof REFUSALS)[number];
@@ -194,8 +194,9 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       if (p?.kind === 'service') return done(null);
       if (!p) return done(new BrokerRefusal('publish before authentication'));
       const leaf = ownLeaf(p.serial, packet.topic);
-      const reason: DenyReason | null =
-        leaf === null || packet.qos > 1 ? 'acl' : packet.retain && leaf !== 'status' ? 'retain' : leaf === 'weather' && !p.weatherStation ? 'weather' : null;
+      // Own publish topics only, at QoS 0 or 1, retained only on status. (Whether a unit may report its site's weather
+      // is the ingest's call: it depends on the unit's current settings, and a mismatch must not cut the unit off.)
+      const reason: DenyReason | null = leaf === null || packet.qos > 1 ? 'acl' : packet.retain && leaf !== 'status' ? 'retain' : null;
       if (reason || leaf === null) {
         counters.publishesDenied++;
         counted.add(client);

@@ -148,7 +148,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     authenticate: async (username, password): Promise<Principal | null> => {
       const u = await units.findCredentials(username);
       if (!u || u.disabled || !deviceSecretMatches(password, u.device_secret_hash)) return null;
-      return { kind: 'unit', serial: u.serial, weatherStation: Boolean(u.weather_station) };
+      return { kind: 'unit', serial: u.serial };
     },
   }).catch(async (err) => {
     await db.destroy();

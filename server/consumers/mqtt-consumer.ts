@@ -21,7 +21,7 @@ export function unitMessageHandler(ingest: IngestService, log: Logger): NonNulla
   };
 }
 
-const DENIED = { acl: 'acl_denied', retain: 'retain_denied', weather: 'weather_denied', too_large: 'packet_too_large' } as const satisfies Record<DenyReason, string>;
+const DENIED = { acl: 'acl_denied', retain: 'retain_denied', too_large: 'packet_too_large' } as const satisfies Record<DenyReason, string>;
 
 /** Counts what the broker refused with the ingest's reject reasons, so `GET /api/metrics` shows every bad message in one place. */
 export function countDenied(ingest: IngestService): NonNullable<BrokerOptions['onDenied']> {

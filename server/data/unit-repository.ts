@@ -42,8 +42,8 @@ export class UnitRepository {
   }
 
   /** Credentials lookup for the broker: serial → secret hash and whether the unit may connect. */
-  findCredentials(serial: string): Promise<Pick<UnitRow, 'id' | 'serial' | 'site_id' | 'device_secret_hash' | 'disabled' | 'weather_station'> | undefined> {
-    return this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled', 'weather_station');
+  findCredentials(serial: string): Promise<Pick<UnitRow, 'id' | 'serial' | 'site_id' | 'device_secret_hash' | 'disabled'> | undefined> {
+    return this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled');
   }
 
   async findBySerial(serial: string): Promise<{ id: number } | undefined> {

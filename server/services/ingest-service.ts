@@ -8,9 +8,10 @@ import { eventKey, telemetryKey, type EventRow, type TelemetryRepository, type T
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 /**
- * Why a unit message was not taken. The first group is decided here; the last four by the broker, which closes the
- * connection (MQTT 3.1.1 has no per-message refusal): a publish outside the unit's own publish topics, a retained
- * message other than status, weather from a unit that is not its site's station, a packet over the broker's size cap.
+ * Why a unit message was not taken. Up to `weather_denied` (weather from a unit that is not its site's station) they
+ * are decided here: the message is acknowledged and dropped, the connection stays. The last three are the broker's,
+ * which closes the connection (MQTT 3.1.1 has no per-message refusal): a publish outside the unit's own publish
+ * topics, a retained message other than status, a packet over the broker's size cap.
  */
 export const REJECT_REASONS = [
   'oversized', 'malformed_json', 'invalid_payload', 'unknown_unit', 'disabled_unit', 'future_timestamp', 'too_old', 'unknown_topic',
@@ -176,7 +177,7 @@ export class IngestService {
         break;
       }
       case 'weather': {
-        // The broker lets only the station's unit publish weather; this also holds when the flag changed since it connected.
+        // Only the unit that carries its site's station may report the site's weather (fake gusts would raise stow alarms).
         if (!unit.weatherStation) return refuse(this.reject(serial, 'weather_denied', 'this unit does not carry its site\'s weather station'));
         const w = this.validate(serial, weatherSchema, json);
         if (!w) return refuse('invalid_payload');
@@ -208,7 +209,7 @@ export class IngestService {
   }
 
   /** Counts a message the broker refused (the reasons it decides: see REJECT_REASONS). */
-  countDenied(serial: string, reason: Extract<RejectReason, 'acl_denied' | 'retain_denied' | 'weather_denied' | 'packet_too_large'>, topic: string): void {
+  countDenied(serial: string, reason: Extract<RejectReason, 'acl_denied' | 'retain_denied' | 'packet_too_large'>, topic: string): void {
     this.counters.received++;
     this.reject(serial, reason, topic ? `publish to ${topic}` : 'packet over the size limit');
   }

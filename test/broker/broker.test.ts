@@ -17,7 +17,7 @@ async function broker(extra: Partial<BrokerOptions> = {}): Promise<{ b: RunningB
   const got: string[] = [];
   const b = await startBroker({
     host: '127.0.0.1', port: 0, unitPrefix,
-    authenticate: async (u, p) => (p === secret(u) ? { kind: 'unit', serial: u, weatherStation: false } : null),
+    authenticate: async (u, p) => (p === secret(u) ? { kind: 'unit', serial: u } : null),
     ...extra,
   });
   brokers.push(b);
@@ -91,7 +91,7 @@ describe('disconnectUnit', () => {
     const { b } = await broker({
       authenticate: async (u, p) => {
         if (u === 'U-0012') await gate;
-        return p === secret(u) ? { kind: 'unit', serial: u, weatherStation: false } : null;
+        return p === secret(u) ? { kind: 'unit', serial: u } : null;
       },
     });
     const pending = rawConnect(b.port, 'U-0012', secret('U-0012'));

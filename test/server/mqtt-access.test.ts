@@ -22,7 +22,8 @@ const reading = () => JSON.stringify(sample(1, Date.now() - 60_000));
 const weather = () => JSON.stringify({ v: 1, ts: new Date(Date.now() - 60_000).toISOString(), ghiWm2: 400, airTempC: 11, windMs: 3, gustMs: 30 });
 const status = JSON.stringify({ v: 1, online: true, firmware: '2.4.1' });
 
-type Outcome = 'acknowledged' | 'refused';
+/** acknowledged: PUBACK and taken; dropped: PUBACK, not taken, counted, the link stays; refused: the broker hangs up, counted. */
+type Outcome = 'acknowledged' | 'dropped' | 'refused';
 const publishes: { rule: string; as: string; topic: string; payload: () => string; retain?: boolean; qos?: 0 | 1 | 2; expect: Outcome; reason?: string }[] = [
   { rule: 'own telemetry', as: A, topic: unitTopic(A, 'telemetry'), payload: reading, expect: 'acknowledged' },
   { rule: 'own events', as: A, topic: unitTopic(A, 'events'), payload: () => JSON.stringify({ v: 1, ts: new Date().toISOString(), kind: 'boot' }), expect: 'acknowledged' },
@@ -31,7 +32,7 @@ const publishes: { rule: string; as: string; topic: string; payload: () => strin
   { rule: 'own status, retained', as: A, topic: unitTopic(A, 'status'), payload: () => status, retain: true, expect: 'acknowledged' },
   { rule: 'own telemetry, retained', as: A, topic: unitTopic(A, 'telemetry'), payload: reading, retain: true, expect: 'refused', reason: 'retain_denied' },
   { rule: 'own events, retained', as: A, topic: unitTopic(A, 'events'), payload: () => '{}', retain: true, expect: 'refused', reason: 'retain_denied' },
-  { rule: 'own weather from a unit that is not the station', as: A, topic: unitTopic(A, 'weather'), payload: weather, expect: 'refused', reason: 'weather_denied' },
+  { rule: 'own weather from a unit that is not the station', as: A, topic: unitTopic(A, 'weather'), payload: weather, expect: 'dropped', reason: 'weather_denied' },
   { rule: 'own weather from the site\'s station', as: STATION, topic: unitTopic(STATION, 'weather'), payload: weather, expect: 'acknowledged' },
   { rule: 'own commands (server → unit only)', as: A, topic: unitTopic(A, 'commands'), payload: () => '{}', expect: 'refused', reason: 'acl_denied' },
   { rule: 'own prefix, unknown leaf', as: A, topic: `bw/v1/units/${A}/firmware`, payload: () => '{}', expect: 'refused', reason: 'acl_denied' },
@@ -53,10 +54,11 @@ describe('publish rules', () => {
     const before = { ...stack.ingest.counters.rejected };
     const qos = row.qos ?? 1;
     c.send({ cmd: 'publish', topic: row.topic, payload: row.payload(), qos, messageId: 9, retain: row.retain ?? false, dup: false });
-    if (row.expect === 'acknowledged') {
+    if (row.expect === 'acknowledged' || row.expect === 'dropped') {
       expect((await c.next('puback')).messageId).toBe(9);
       expect(c.isClosed()).toBe(false);
       c.destroy();
+      if (row.reason) expect((stack.ingest.counters.rejected as Record<string, number>)[row.reason]! - (before as Record<string, number>)[row.reason]!).toBe(1);
     } else {
       await c.closed; // MQTT 3.1.1 has no per-message refusal: the broker hangs up
       expect(c.received.filter((p) => p.cmd === 'puback' || p.cmd === 'pubrec')).toEqual([]);

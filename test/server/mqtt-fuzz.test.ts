@@ -98,7 +98,7 @@ async function hitAndWait(bytes: Buffer | null): Promise<void> {
 }
 
 /** A unit's bad payloads on one connection: each is answered with a PUBACK (dropped and counted), the link stays up. */
-function badPayloads(serial: string, count: number, seed: number): { payloads: Buffer[]; reasons: Record<string, number> } {
+function badPayloads(count: number, seed: number): { payloads: Buffer[]; leaves: ('telemetry' | 'weather')[]; reasons: Record<string, number> } {
   const r = rng(seed);
   const now = Date.now();
   const reasons: Record<string, number> = {};
@@ -115,18 +115,22 @@ function badPayloads(serial: string, count: number, seed: number): { payloads: B
     ['future_timestamp', (i) => JSON.stringify(sample(i, now + 3600_000))],
     ['too_old', (i) => JSON.stringify(sample(i, now - 500 * 86_400_000))],
   ];
+  const weather = (i: number) => JSON.stringify({ v: 1, ts: new Date(now - 60_000 - i).toISOString(), ghiWm2: 300, airTempC: 9, windMs: 30, gustMs: 45 });
+  const leaves: ('telemetry' | 'weather')[] = [];
   for (let i = 0; i < count; i++) {
-    const [reason, make] = kinds[Math.floor(r() * kinds.length)]!;
+    // One in eleven is a fake gale from a unit that does not carry its site's weather station.
+    const [reason, make, leaf] = r() < 1 / 11 ? ['weather_denied', weather, 'weather' as const] : [...kinds[Math.floor(r() * kinds.length)]!, 'telemetry' as const];
     reasons[reason] = (reasons[reason] ?? 0) + 1;
     payloads.push(Buffer.from(make(i)));
+    leaves.push(leaf);
   }
-  return { payloads, reasons };
+  return { payloads, leaves, reasons };
 }
 
 /** Publishes that break a topic rule: the broker hangs up and counts the reason. Sequential per serial (one connection at a time). */
 const ACL_CASES: { reason: string; serial: string; packet: (serial: string, id: number) => mqttPacket.Packet }[] = [
   { reason: 'retain_denied', serial: 'QHL-2402', packet: (s, id) => qos1(unitTopic(s, 'telemetry'), JSON.stringify(sample(id, Date.now() - 1000)), id, true) },
-  { reason: 'weather_denied', serial: 'QHL-2403', packet: (s, id) => qos1(unitTopic(s, 'weather'), '{"v":1}', id) },
+  { reason: 'retain_denied', serial: 'QHL-2403', packet: (s, id) => qos1(unitTopic(s, 'events'), '{"v":1}', id, true) },
   { reason: 'acl_denied', serial: 'QHL-2404', packet: (_s, id) => qos1(unitTopic('FSC-2401', 'telemetry'), '{}', id) },
   { reason: 'acl_denied', serial: 'QHL-2405', packet: (s, id) => qos1(unitTopic(s, 'commands'), '{}', id) },
   { reason: 'acl_denied', serial: 'QHL-2406', packet: (_s, id) => qos1(`$SYS/${id}/new/clients`, 'x', id) },
@@ -190,16 +194,16 @@ describe('MQTT fuzz', () => {
       }),
     ]);
 
-    // 2. Authenticated units publishing bad payloads (wrong schema, not JSON, oversized, bad timestamps).
-    const payloadUnits = ['QED-2401', 'QED-2402', 'QED-2403', 'QED-2404', 'QED-2405'];
+    // 2. Authenticated units publishing bad payloads (wrong schema, not JSON, oversized, bad timestamps, weather they may not report).
+    const payloadUnits = ['QED-2402', 'QED-2403', 'QED-2404', 'QED-2405', 'FGA-2406']; // none carries a weather station
     const perUnit = n(1700);
     await Promise.all(payloadUnits.map(async (serial, u) => {
-      const { payloads, reasons } = badPayloads(serial, perUnit, 1000 + u);
+      const { payloads, leaves, reasons } = badPayloads(perUnit, 1000 + u);
       for (const [k, v] of Object.entries(reasons)) add(expectIngest, k, v);
       const { c } = await rawConnect(port(), serial, demoDeviceSecret(serial));
       c.keepPubacks = false;
       for (let i = 0; i < payloads.length; i++) {
-        c.send(qos1(unitTopic(serial, 'telemetry'), payloads[i]!, (i % 65535) + 1));
+        c.send(qos1(unitTopic(serial, leaves[i]!), payloads[i]!, (i % 65535) + 1));
         if (i % 200 === 199) await waitFor(() => c.pubacks() >= i + 1 - 100, 10_000, 'PUBACKs to catch up');
       }
       await waitFor(() => c.pubacks() === payloads.length, 30_000, `PUBACKs for ${serial}'s bad payloads`);
@@ -223,7 +227,7 @@ describe('MQTT fuzz', () => {
     }));
 
     // 4. A storm of connects and disconnects: clean DISCONNECT, dropped links, and sessions taken over by a reconnect.
-    const storm = ['QHL-2401', 'FGA-2402', 'FGA-2403', 'FGA-2404', 'FGA-2405', 'FGA-2406'];
+    const storm = ['QED-2401', 'FSC-2401', 'FGA-2402', 'FGA-2403', 'FGA-2404', 'FGA-2405'];
     const cycles = n(30);
     await Promise.all(storm.map(async (serial) => {
       for (let i = 0; i < cycles; i++) {
