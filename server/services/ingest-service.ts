@@ -89,6 +89,10 @@ export class IngestService {
   private inFlight = 0;
   /** Rows of the batches being written: still in memory, so they count against `maxBufferRows`. */
   private inFlightRows = 0;
+  /** Listeners hear batches in the order they were taken from the buffer, whatever order concurrent commits finish in. */
+  private nextBatch = 0;
+  private nextAnnounced = 0;
+  private readonly finished = new Map<number, (() => void) | null>();
   private timer: NodeJS.Timeout | undefined;
   private retryAt = 0;
   private backoffMs = 500;
@@ -262,7 +266,7 @@ export class IngestService {
       this.inFlight++;
       const rows = t.length + e.length + w.length;
       this.inFlightRows += rows;
-      void this.write(t, e, w).finally(() => {
+      void this.write(this.nextBatch++, t, e, w).finally(() => {
         this.inFlight--;
         this.inFlightRows -= rows;
         this.releaseHeld();
@@ -279,11 +283,12 @@ export class IngestService {
     }
   }
 
-  private async write(t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
+  private async write(batch: number, t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
     let inserted: { telemetry: string[]; events: string[] };
     try {
       inserted = await this.repo.insertBatch({ telemetry: t.map((x) => x.row), events: e.map((x) => x.row), weather: w.map((x) => x.row) });
     } catch (err) {
+      this.inOrder(batch, null); // its rows go back and come again in a later batch
       this.failed(t, e, w, err);
       return;
     }
@@ -301,11 +306,22 @@ export class IngestService {
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
     const newTelemetry = new Set(inserted.telemetry);
     const newEvents = new Set(inserted.events);
-    for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
-    for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+    this.inOrder(batch, () => {
+      for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
+      for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+    });
     for (const x of t) x.ack?.();
     for (const x of e) x.ack?.();
     for (const x of w) x.ack?.();
+  }
+
+  private inOrder(batch: number, announce: (() => void) | null): void {
+    this.finished.set(batch, announce);
+    while (this.finished.has(this.nextAnnounced)) {
+      const next = this.finished.get(this.nextAnnounced);
+      this.finished.delete(this.nextAnnounced++);
+      next?.();
+    }
   }
 
   /** A listener's failure is logged and never undoes a commit or withholds an acknowledgement. */
