@@ -197,7 +197,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       // Own publish topics only, at QoS 0 or 1, retained only on status. (Whether a unit may report its site's weather
       // is the ingest's call: it depends on the unit's current settings, and a mismatch must not cut the unit off.)
       const reason: DenyReason | null = leaf === null || packet.qos > 1 ? 'acl' : packet.retain && leaf !== 'status' ? 'retain' : null;
-      if (reason || leaf === null) {
+      if (reason !== null || leaf === null) {
         counters.publishesDenied++;
         counted.add(client);
         opts.onDenied?.(p, packet.topic, reason ?? 'acl');
@@ -210,10 +210,10 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       if (client.closed) {
         try {
           handler(p, leaf, payload, () => undefined);
-        } finally {
-          done(null);
+        } catch {
+          // the handler reports its own failures; the will is published all the same
         }
-        return;
+        return done(null);
       }
       inOrder(client, (release) => handler(p, leaf, payload, release), done);
     },

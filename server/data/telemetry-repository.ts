@@ -52,23 +52,25 @@ export class TelemetryRepository {
   constructor(private readonly db: Db) {}
 
   /**
-   * Stores one ingest batch in a single transaction (one group commit for every message in it): either all of it or
-   * none. Inserts are `INSERT IGNORE` on the primary key; returns the keys of the telemetry and event rows that were
-   * new (`INSERT IGNORE … RETURNING` names only the rows actually inserted), so a resend is never announced twice.
+   * Multi-row `INSERT IGNORE` on the primary key, one statement (one commit) per call; returns the keys of the rows that
+   * were new (`INSERT IGNORE … RETURNING` names only the rows actually inserted), so a resend is never announced twice.
    */
-  async insertBatch(batch: { telemetry: TelemetryRow[]; events: EventRow[]; weather: WeatherRow[] }): Promise<{ telemetry: string[]; events: string[]; weather: number }> {
-    return this.db.transaction(async (trx) => {
-      const telemetry = batch.telemetry.length
-        ? (await this.insertIgnoreReturning(trx, 'telemetry', TELEMETRY_COLUMNS as string[], batch.telemetry as unknown as Record<string, unknown>[], ['unit_id', 'ts'])).map((r) => telemetryKey(Number(r['unit_id']), r['ts'] as Date))
-        : [];
-      const events = batch.events.length
-        ? (await this.insertIgnoreReturning(trx, 'unit_events', ['unit_id', 'ts', 'kind', 'body'], batch.events as unknown as Record<string, unknown>[], ['unit_id', 'ts', 'kind'])).map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])))
-        : [];
-      const weather = batch.weather.length
-        ? await this.insertIgnore(trx, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], batch.weather as unknown as Record<string, unknown>[])
-        : 0;
-      return { telemetry, events, weather };
-    });
+  async insertTelemetry(rows: TelemetryRow[]): Promise<string[]> {
+    if (!rows.length) return [];
+    const out = await this.insertIgnoreReturning(this.db, 'telemetry', TELEMETRY_COLUMNS as string[], rows as unknown as Record<string, unknown>[], ['unit_id', 'ts']);
+    return out.map((r) => telemetryKey(Number(r['unit_id']), r['ts'] as Date));
+  }
+
+  /** Like insertTelemetry, for unit events (key: unit, ts, kind). */
+  async insertEvents(rows: EventRow[]): Promise<string[]> {
+    if (!rows.length) return [];
+    const out = await this.insertIgnoreReturning(this.db, 'unit_events', ['unit_id', 'ts', 'kind', 'body'], rows as unknown as Record<string, unknown>[], ['unit_id', 'ts', 'kind']);
+    return out.map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])));
+  }
+
+  /** Site weather readings; returns how many were new. */
+  async insertWeather(rows: WeatherRow[]): Promise<number> {
+    return rows.length ? this.insertIgnore(this.db, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[]) : 0;
   }
 
   private statement(table: string, cols: string[], rows: Record<string, unknown>[]): { sql: string; values: Knex.RawBinding[] } {

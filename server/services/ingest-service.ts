@@ -76,7 +76,7 @@ interface HeldEvent { row: EventRow; unit: UnitInfo; e: UnitEvent; ack: Acknowle
 interface HeldWeather { row: WeatherRow; ack: Acknowledge | undefined }
 
 /**
- * Validates unit messages and writes them to MariaDB in batched multi-row inserts, one transaction per batch (a group
+ * Validates unit messages and writes them to MariaDB in batched multi-row inserts, one commit per statement (a group
  * commit). A stored message is acknowledged only after its batch committed, so a reading the unit got a PUBACK for is
  * in the database even if this process dies. Nothing is dropped once accepted: a failed flush puts its rows back and
  * retries with backoff, and past `maxBufferRows` new messages wait (so aedes stops reading from their sockets) until
@@ -283,36 +283,50 @@ export class IngestService {
     }
   }
 
+  /**
+   * Writes one batch: each table in one multi-row statement, each statement its own commit (a group commit for every
+   * message in it). What committed is acknowledged and announced; what failed goes back, in order, to be retried.
+   */
   private async write(batch: number, t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
-    let inserted: { telemetry: string[]; events: string[] };
+    let newTelemetry: Set<string> | undefined;
+    let newEvents: Set<string> | undefined;
+    let failure: unknown;
     try {
-      inserted = await this.repo.insertBatch({ telemetry: t.map((x) => x.row), events: e.map((x) => x.row), weather: w.map((x) => x.row) });
+      newTelemetry = new Set(await this.repo.insertTelemetry(t.map((x) => x.row)));
+      newEvents = new Set(await this.repo.insertEvents(e.map((x) => x.row)));
+      await this.repo.insertWeather(w.map((x) => x.row));
     } catch (err) {
-      this.inOrder(batch, null); // its rows go back and come again in a later batch
-      this.failed(t, e, w, err);
-      return;
+      failure = err;
     }
-    this.counters.stored += inserted.telemetry.length;
-    this.counters.duplicates += t.length - inserted.telemetry.length;
-    this.counters.flushes++;
-    if (!this.counters.databaseUp) this.log.info({ buffered: this.bufferedRows }, 'database is back; draining the ingest buffer');
-    this.counters.databaseUp = true;
-    this.backoffMs = 500;
-    const rows = t.map((x) => x.row);
-    if (t.length) {
-      this.onStored(rows);
-      this.listeners.committed?.(rows, this.opts.now());
-    }
+    const tDone = newTelemetry !== undefined;
+    const storedCount = newTelemetry?.size ?? 0;
+    const eDone = newEvents !== undefined;
+    const wDone = failure === undefined;
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
-    const newTelemetry = new Set(inserted.telemetry);
-    const newEvents = new Set(inserted.events);
     this.inOrder(batch, () => {
-      for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
-      for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+      if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
+      if (newEvents) for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
     });
-    for (const x of t) x.ack?.();
-    for (const x of e) x.ack?.();
-    for (const x of w) x.ack?.();
+    if (tDone) {
+      this.counters.stored += storedCount;
+      this.counters.duplicates += t.length - storedCount;
+      const rows = t.map((x) => x.row);
+      if (t.length) {
+        this.onStored(rows);
+        this.listeners.committed?.(rows, this.opts.now());
+      }
+      for (const x of t) x.ack?.();
+    }
+    if (eDone) for (const x of e) x.ack?.();
+    if (wDone) for (const x of w) x.ack?.();
+    if (failure === undefined) {
+      this.counters.flushes++;
+      if (!this.counters.databaseUp) this.log.info({ buffered: this.bufferedRows }, 'database is back; draining the ingest buffer');
+      this.counters.databaseUp = true;
+      this.backoffMs = 500;
+    } else {
+      this.failed(tDone ? [] : t, eDone ? [] : e, wDone ? [] : w, failure);
+    }
   }
 
   private inOrder(batch: number, announce: (() => void) | null): void {
@@ -334,7 +348,7 @@ export class IngestService {
   }
 
   private failed(t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[], err: unknown): void {
-    // Keep every row, in order, and try again; the batch was one transaction, so none of it is stored yet.
+    // Keep every row not stored yet, in order, and try again.
     this.telemetry.unshift(...t);
     this.events.unshift(...e);
     this.weather.unshift(...w);

@@ -13,17 +13,16 @@ function heldRepository() {
   const stored = new Set<string>();
   const pending: { rows: TelemetryRow[]; commit: () => void; fail: (err: Error) => void }[] = [];
   const repo = {
-    insertBatch: (b: { telemetry: TelemetryRow[] }) =>
-      new Promise<{ telemetry: string[]; events: string[]; weather: number }>((res, rej) => {
+    insertTelemetry: (rows: TelemetryRow[]) =>
+      new Promise<string[]>((res, rej) => {
         pending.push({
-          rows: b.telemetry,
-          commit: () => {
-            const fresh = b.telemetry.map((r) => telemetryKey(r.unit_id, r.ts)).filter((k) => !stored.has(k) && (stored.add(k), true));
-            res({ telemetry: fresh, events: [], weather: 0 });
-          },
+          rows,
+          commit: () => res(rows.map((r) => telemetryKey(r.unit_id, r.ts)).filter((k) => !stored.has(k) && (stored.add(k), true))),
           fail: rej,
         });
       }),
+    insertEvents: async () => [],
+    insertWeather: async () => 0,
   } as unknown as TelemetryRepository;
   return { repo, pending };
 }
@@ -95,6 +94,31 @@ describe('ingest acknowledgement and announcements', () => {
     await waitFor(() => pending.length === 2, 5000, 'the retry');
     pending[1]!.commit();
     await waitFor(() => acked === 1, 1000, 'the acknowledgement');
+    ingest.stop();
+  });
+
+  it('acknowledges the telemetry of a batch whose event insert failed, and retries only the event', async () => {
+    const telemetryCalls: number[] = [];
+    let eventCalls = 0;
+    const repo = {
+      insertTelemetry: async (rows: TelemetryRow[]) => {
+        telemetryCalls.push(rows.length);
+        return rows.map((r) => telemetryKey(r.unit_id, r.ts));
+      },
+      insertEvents: async (rows: unknown[]) => {
+        if (rows.length && eventCalls++ === 0) throw Object.assign(new Error('gone'), { code: 'ECONNRESET' });
+        return [];
+      },
+      insertWeather: async () => 0,
+    } as unknown as TelemetryRepository;
+    const ingest = new IngestService(repo, directory, pino({ level: 'silent' }), {}, { batchRows: 10, flushMs: 5, flushConcurrency: 1 });
+    const acked: string[] = [];
+    ingest.receive(unit.serial, 'telemetry', body(1), () => acked.push('telemetry'));
+    ingest.receive(unit.serial, 'events', Buffer.from(JSON.stringify({ v: 1, ts: new Date(T0).toISOString(), kind: 'boot' })), () => acked.push('event'));
+    await waitFor(() => acked.length === 1, 1000, 'the telemetry acknowledgement');
+    expect(acked).toEqual(['telemetry']);
+    await waitFor(() => acked.length === 2, 5000, 'the event acknowledgement after the retry');
+    expect(telemetryCalls.filter((n) => n > 0)).toEqual([1]);
     ingest.stop();
   });
 });
