@@ -25,6 +25,7 @@ import * as m20261203110000 from './20261203110000_create_sessions';
 import * as m20261203120000 from './20261203120000_add_audit_log_action_index';
 import * as m20261203120100 from './20261203120100_add_audit_log_user_index';
 import * as m20261203120200 from './20261203120200_add_audit_log_target_index';
+import * as m20261203140000 from './20261203140000_add_units_weather_station';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -57,6 +58,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203120000_add_audit_log_action_index': m20261203120000,
   '20261203120100_add_audit_log_user_index': m20261203120100,
   '20261203120200_add_audit_log_target_index': m20261203120200,
+  '20261203140000_add_units_weather_station': m20261203140000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -89,6 +89,7 @@ export async function seedDemoWorld(db: Knex, opts: DemoSeedOptions = {}): Promi
           tilt_min_deg: 0, tilt_max_deg: 85, azimuth_min_deg: 0, azimuth_max_deg: 360,
           plan_x_m: (i % 3) * 6, plan_y_m: Math.floor(i / 3) * 5, firmware: '2.4.1',
           device_secret_hash: hashDeviceSecret(deviceSecrets[serial]!),
+          weather_station: i === 0 && !s.indoor,
         };
       });
       await trx('units').insert(rows);

@@ -60,6 +60,11 @@ const envSchema = z.object({
   BW_DB_POOL_MAX: z.coerce.number().int().min(1).max(64).default(6),
   BW_BROKER_HOST: z.string().default('127.0.0.1'),
   BW_BROKER_PORT: z.coerce.number().int().min(0).max(65535).default(1884),
+  // MQTT over TLS is off unless a port is given ('' or 'off' also mean off).
+  BW_BROKER_TLS_PORT: z.preprocess((v) => (v === '' || v === 'off' ? undefined : v), z.coerce.number().int().min(0).max(65535).optional()),
+  BW_BROKER_CONNECT_TIMEOUT_MS: z.coerce.number().int().min(100).max(600_000).default(10_000),
+  BW_BROKER_TLS_CERT: z.string().min(1).optional(),
+  BW_BROKER_TLS_KEY: z.string().min(1).optional(),
   BW_SESSION_SECRET: z.string().min(32, 'at least 32 characters').optional(),
   BW_SESSION_HOURS: z.coerce.number().min(0.1).max(24 * 30).default(12),
   BW_WEB_DIR: z.string().default('dist/web/browser'),
@@ -67,7 +72,8 @@ const envSchema = z.object({
   BW_SIGNIN_LIMIT_PER_MIN: z.coerce.number().int().min(1).default(10),
   BW_RAW_RETENTION_DAYS: z.coerce.number().int().min(1).max(36500).default(400),
   BW_INGEST_BATCH_ROWS: z.coerce.number().int().min(1).max(20000).default(1000),
-  BW_INGEST_FLUSH_MS: z.coerce.number().int().min(1).max(60000).default(250),
+  // A unit's PUBACK waits for its batch to commit, so this bounds the added acknowledgement latency at low rates.
+  BW_INGEST_FLUSH_MS: z.coerce.number().int().min(1).max(60000).default(50),
   BW_INGEST_MAX_BUFFER_ROWS: z.coerce.number().int().min(1000).default(200000),
   BW_INGEST_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(2),
   BW_BCRYPT_COST: z.coerce.number().int().min(4).max(15).default(10),
@@ -79,7 +85,8 @@ export interface Config {
   host: string;
   port: number;
   db: { host: string; port: number; database: string; user: string; password: string; poolMax: number };
-  broker: { host: string; port: number };
+  /** `tls` when MQTT over TLS is offered; without cert/key paths a development certificate is made in `.data/tls/`. */
+  broker: { host: string; port: number; connectTimeoutMs?: number; tls?: { port: number; certPath?: string; keyPath?: string } };
   /** HMAC secret of session tokens; when unset a random one is made per process (sessions end on restart). */
   sessionSecret: string | undefined;
   sessionHours: number;
@@ -103,11 +110,19 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     throw new ConfigError(`Invalid configuration:\n  ${lines.join('\n  ')}`);
   }
   const e = parsed.data;
+  const tlsProblem =
+    (e.BW_BROKER_TLS_CERT === undefined) !== (e.BW_BROKER_TLS_KEY === undefined) ? 'BW_BROKER_TLS_CERT and BW_BROKER_TLS_KEY: give both or neither'
+    : e.BW_BROKER_TLS_CERT !== undefined && e.BW_BROKER_TLS_PORT === undefined ? 'BW_BROKER_TLS_PORT: required when BW_BROKER_TLS_CERT/BW_BROKER_TLS_KEY are set'
+    : null;
+  if (tlsProblem) throw new ConfigError(`Invalid configuration:\n  ${tlsProblem}`);
   return {
     host: e.BW_HOST,
     port: e.BW_PORT,
     db: { host: e.BW_DB_HOST, port: e.BW_DB_PORT, database: e.BW_DB_NAME, user: e.BW_DB_USER, password: e.BW_DB_PASSWORD, poolMax: e.BW_DB_POOL_MAX },
-    broker: { host: e.BW_BROKER_HOST, port: e.BW_BROKER_PORT },
+    broker: {
+      host: e.BW_BROKER_HOST, port: e.BW_BROKER_PORT, connectTimeoutMs: e.BW_BROKER_CONNECT_TIMEOUT_MS,
+      ...(e.BW_BROKER_TLS_PORT === undefined ? {} : { tls: { port: e.BW_BROKER_TLS_PORT, certPath: e.BW_BROKER_TLS_CERT, keyPath: e.BW_BROKER_TLS_KEY } }),
+    },
     sessionSecret: e.BW_SESSION_SECRET,
     sessionHours: e.BW_SESSION_HOURS,
     webDir: e.BW_WEB_DIR,

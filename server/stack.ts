@@ -2,6 +2,7 @@ import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { pino, type Logger } from 'pino';
 import type { Config } from './config';
 import { createDb, describeDbError, pingDatabase, type Db } from './data/db';
@@ -27,7 +28,7 @@ import { RollupWorker } from './services/rollup-worker';
 import { RetentionJob } from './services/retention-job';
 import { LiveHub } from './services/live-hub';
 import { CommandService, type CommandOptions } from './services/command-service';
-import { subscribeUnits } from './consumers/mqtt-consumer';
+import { countDenied, unitMessageHandler } from './consumers/mqtt-consumer';
 import { telemetryRoutes } from './routes/telemetry-routes';
 import { attachLiveSocket } from './routes/live-socket';
 import { siteModelRoutes } from './routes/site-model-routes';
@@ -42,7 +43,8 @@ import { LandscapeService } from './services/landscape-service';
 import { TraceRepository } from './data/trace-repository';
 import { unitTopic } from '../shared/contracts/topics';
 import { createApp } from './app';
-import { startBroker, type Principal, type RunningBroker } from '../broker/broker';
+import { startBroker, type BrokerLimits, type Principal, type RunningBroker } from '../broker/broker';
+import { ensureDevCertificate } from '../broker/dev-certificate';
 import { unitPrefix } from '../shared/contracts/topics';
 
 export const VERSION: string = JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')).version;
@@ -76,6 +78,8 @@ export interface StackOptions {
   health?: Partial<HealthServiceOptions>;
   /** How often open live sockets have their session checked again [ms]; default 30 s. */
   sessionRecheckMs?: number;
+  /** Broker limits other than the defaults (tests). */
+  brokerLimits?: Partial<BrokerLimits>;
 }
 
 export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel }), opts: StackOptions = {}): Promise<Stack> {
@@ -116,9 +120,15 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const ingest = new IngestService(
     telemetry, directory, log,
     {
-      telemetry: (u, t) => { live.onTelemetry(u, t); health.telemetry(u, t); opts.listeners?.telemetry?.(u, t); },
+      // Live state as reports arrive (it ignores resends); health detectors once per stored reading, after its commit.
+      telemetry: (u, t) => { live.onTelemetry(u, t); opts.listeners?.telemetry?.(u, t); },
+      stored: (u, t) => { health.telemetry(u, t); opts.listeners?.stored?.(u, t); },
       event: (u, e) => { health.event(u, e); opts.listeners?.event?.(u, e); },
-      ack: (u, a) => void commands?.onAck(u, a).catch((err) => log.error({ err }, 'command ack failed')),
+      // The unit's PUBACK for an ack waits for the command to be updated; a failure closes its connection (it resends).
+      ack: (u, a) => commands?.onAck(u, a).catch((err: unknown) => {
+        log.error({ err }, 'command ack failed');
+        throw err;
+      }),
       status: (u, st) => {
         live.onStatus(u, st);
         health.status(u, st);
@@ -130,11 +140,27 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     (rows) => rollups.markStored(rows),
   );
 
+  let tls: { port: number; cert: Buffer; key: Buffer } | undefined;
+  if (config.broker.tls) {
+    try {
+      const files = config.broker.tls.certPath && config.broker.tls.keyPath
+        ? { certPath: config.broker.tls.certPath, keyPath: config.broker.tls.keyPath }
+        : ensureDevCertificate(join(process.cwd(), '.data', 'tls'));
+      tls = { port: config.broker.tls.port, cert: readFileSync(files.certPath), key: readFileSync(files.keyPath) };
+      if (!config.broker.tls.certPath) log.warn({ cert: files.certPath }, 'MQTT over TLS uses the self-signed development certificate; set BW_BROKER_TLS_CERT and BW_BROKER_TLS_KEY in production');
+    } catch (err) {
+      await db.destroy();
+      throw new StartupError(`Cannot offer MQTT over TLS: ${(err as Error).message}`);
+    }
+  }
   const broker = await startBroker({
     host: config.broker.host,
     port: config.broker.port,
+    tls,
     unitPrefix,
-    onDenied: (p, topic) => ingest.countDenied(p?.kind === 'unit' ? p.serial : '?', topic),
+    limits: { ...(config.broker.connectTimeoutMs ? { connectTimeoutMs: config.broker.connectTimeoutMs } : {}), ...opts.brokerLimits },
+    onMessage: unitMessageHandler(ingest, log),
+    onDenied: countDenied(ingest),
     authenticate: async (username, password): Promise<Principal | null> => {
       const u = await units.findCredentials(username);
       if (!u || u.disabled || !deviceSecretMatches(password, u.device_secret_hash)) return null;
@@ -142,10 +168,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     },
   }).catch(async (err) => {
     await db.destroy();
-    throw new StartupError(`Cannot start the MQTT broker on ${config.broker.host}:${config.broker.port}: ${(err as Error).message}. Set BW_BROKER_PORT to a free port.`);
+    throw new StartupError(`Cannot start the MQTT broker on ${config.broker.host}:${config.broker.port}${tls ? ` (TLS ${tls.port})` : ''}: ${(err as Error).message}. Set BW_BROKER_PORT${tls ? ' / BW_BROKER_TLS_PORT' : ''} to a free port.`);
   });
-
-  const unsubscribe = await subscribeUnits(broker.aedes, ingest, log);
   commands = new CommandService(
     new CommandStore(db), directory, live,
     (serial, command) =>
@@ -178,7 +202,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const app = createApp({
     log, auth, admin, webDir: config.webDir, trustProxy: config.trustProxy, allowedOrigins, pingDatabase: () => pingDatabase(db),
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
-    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups }), siteModelRoutes(admin, siteModel, audit),
+    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups, brokerCounters: () => broker.counters }), siteModelRoutes(admin, siteModel, audit),
       traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at)), auditLog), landscapeRoutes(admin, landscapes), alarmRoutes(health),
       auditRoutes(auditLog)],
   });
@@ -200,7 +224,6 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       commands!.stop();
       live.stop();
       await broker.close();
-      await unsubscribe().catch(() => undefined);
       await ingest.drain(5000);
       ingest.stop();
       await health.stop();

@@ -5,6 +5,8 @@
  * in-process ingest writes to MariaDB. For each step we measure committed rows/s, publish → commit lag and
  * publish → browser-socket lag (a WebSocket client subscribed to the whole fleet). A step is sustained when the
  * committed rate keeps up with the offered rate and the backlog (published − committed) does not grow over the window.
+ * Publish → commit is the commit time of a reading's batch minus its publish time (as before the broker acknowledged
+ * after commit); publish → PUBACK, measured by the load processes, is what a unit waits for its acknowledgement.
  */
 import { fork, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
@@ -90,19 +92,20 @@ async function main() {
   ws.send(JSON.stringify({ type: 'subscribe', fleet: true }));
 
   // Load processes, each with its share of the units.
-  const children: { proc: ChildProcess; published: number; acked: number }[] = [];
+  const children: { proc: ChildProcess; published: number; acked: number; ackLags?: (lags: number[]) => void }[] = [];
   const script = fileURLToPath(new URL('./unit-load.ts', import.meta.url));
   say(`connecting ${UNITS} units from ${PROCS} processes…`);
   await Promise.all(
     Array.from({ length: PROCS }, (_, p) => {
       const share = serials.filter((_, i) => i % PROCS === p);
       const proc = fork(script, [String(stack.broker.port), SECRET, ...share], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
-      const c = { proc, published: 0, acked: 0 };
+      const c: (typeof children)[number] = { proc, published: 0, acked: 0 };
       children.push(c);
       return new Promise<void>((res, rej) => {
-        proc.on('message', (m: { type: string; published?: number; acked?: number }) => {
+        proc.on('message', (m: { type: string; published?: number; acked?: number; lags?: number[] }) => {
           if (m.type === 'ready') res();
           if (m.type === 'counts') { c.published = m.published!; c.acked = m.acked!; }
+          if (m.type === 'ackLags') c.ackLags?.(m.lags!);
         });
         proc.once('exit', (code) => rej(new Error(`load process exited with ${code}`)));
       });
@@ -124,8 +127,10 @@ async function main() {
     const backlog0 = published() - committed;
     const cpu0 = cpuOf();
     measuring = true;
+    for (const c of children) c.proc.send({ type: 'measure', on: true });
     await sleep(WINDOW_S);
     measuring = false;
+    const ackLags = (await Promise.all(children.map((c) => new Promise<number[]>((res) => { c.ackLags = res; c.proc.send({ type: 'measure', on: false }); })))).flat();
     const cpu = cpuOf();
     const committedRate = (committed - c0) / WINDOW_S;
     const backlog1 = published() - committed;
@@ -133,6 +138,7 @@ async function main() {
     const step = {
       offeredMsgsPerSec: rate, committedMsgsPerSec: Math.round(committedRate), backlogStart: backlog0, backlogEnd: backlog1,
       p50PublishToCommitMs: pct(commitLags, 50), p99PublishToCommitMs: pct(commitLags, 99), p99PublishToSocketMs: pct(socketLags, 99),
+      p50PublishToAckMs: pct(ackLags, 50), p99PublishToAckMs: pct(ackLags, 99),
       serverCpuPct: Math.round(((cpu.user - cpu0.user + cpu.system - cpu0.system) / 1e6 / WINDOW_S) * 100), sustained,
     };
     steps.push(step);
@@ -158,6 +164,7 @@ async function main() {
     p50PublishToCommitMs: best?.['p50PublishToCommitMs'] ?? null,
     p99PublishToCommitMs: best?.['p99PublishToCommitMs'] ?? null,
     p99PublishToSocketMs: best?.['p99PublishToSocketMs'] ?? null,
+    p99PublishToAckMs: best?.['p99PublishToAckMs'] ?? null,
     lost: Math.max(0, acked - Number(rows)),
     // Every publish carries a unique (unit, ts); more rows than publishes would mean something was stored twice.
     duplicated: Math.max(0, Number(rows) - total),

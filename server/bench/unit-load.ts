@@ -7,7 +7,7 @@ import { connect, type Socket } from 'node:net';
 import mqttPacket from 'mqtt-packet';
 import { unitTopic } from '../../shared/contracts/topics';
 
-interface Conn { serial: string; topic: string; socket: Socket; nextId: number; lastTs: number; seq: number; ready: boolean }
+interface Conn { serial: string; topic: string; socket: Socket; nextId: number; lastTs: number; seq: number; ready: boolean; sentAt: Map<number, number> }
 
 const [port, password, ...serials] = process.argv.slice(2);
 const conns: Conn[] = [];
@@ -15,11 +15,14 @@ let rate = 0;
 let published = 0;
 let acked = 0;
 let cursor = 0;
+/** Publish → PUBACK lags [ms] while the parent measures (the broker acknowledges after the commit). */
+let measuring = false;
+let ackLags: number[] = [];
 
 async function open(serial: string): Promise<Conn> {
   const socket = connect(Number(port), '127.0.0.1');
   socket.setNoDelay(true);
-  const c: Conn = { serial, topic: unitTopic(serial, 'telemetry'), socket, nextId: 1, lastTs: 0, seq: 0, ready: false };
+  const c: Conn = { serial, topic: unitTopic(serial, 'telemetry'), socket, nextId: 1, lastTs: 0, seq: 0, ready: false, sentAt: new Map() };
   const parser = mqttPacket.parser({ protocolVersion: 4 });
   await new Promise<void>((res, rej) => {
     parser.on('packet', (p) => {
@@ -27,11 +30,16 @@ async function open(serial: string): Promise<Conn> {
         if (p.returnCode !== 0) return rej(new Error(`${serial}: CONNACK ${p.returnCode}`));
         c.ready = true;
         res();
-      } else if (p.cmd === 'puback') acked++;
+      } else if (p.cmd === 'puback') {
+        acked++;
+        const at = c.sentAt.get(p.messageId!);
+        c.sentAt.delete(p.messageId!);
+        if (measuring && at !== undefined) ackLags.push(Date.now() - at);
+      }
     });
     socket.on('data', (d) => parser.parse(d));
     socket.once('error', rej);
-    socket.write(mqttPacket.generate({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: `load-${serial}`, keepalive: 120, username: serial, password: Buffer.from(password!) }));
+    socket.write(mqttPacket.generate({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: serial, keepalive: 120, username: serial, password: Buffer.from(password!) }));
   });
   return c;
 }
@@ -42,6 +50,7 @@ function publishOne(c: Conn): void {
   const payload = `{"v":1,"seq":${c.seq++},"ts":"${new Date(c.lastTs).toISOString()}","tiltPlusWm2":612,"tiltMinusWm2":600,"azimuthPlusWm2":605,"azimuthMinusWm2":603,"poaWm2":644,"tiltDeg":35.2,"azimuthDeg":171,"cmdTiltDeg":35,"cmdAzimuthDeg":171,"tiltMotorA":0.1,"azimuthMotorA":0.05,"dcPowerW":252,"moduleTempC":31,"mode":"settled","firmware":"2.4.1"}`;
   const messageId = c.nextId;
   c.nextId = c.nextId >= 65535 ? 1 : c.nextId + 1;
+  c.sentAt.set(messageId, now);
   c.socket.write(mqttPacket.generate({ cmd: 'publish', topic: c.topic, payload, qos: 1, messageId, retain: false, dup: false }));
   published++;
 }
@@ -62,7 +71,12 @@ setInterval(() => {
 
 setInterval(() => process.send?.({ type: 'counts', published, acked }), 200);
 
-process.on('message', (m: { type: string; rate?: number }) => {
+process.on('message', (m: { type: string; rate?: number; on?: boolean }) => {
+  if (m.type === 'measure') {
+    measuring = m.on ?? false;
+    if (measuring) ackLags = [];
+    else process.send?.({ type: 'ackLags', lags: ackLags });
+  }
   if (m.type === 'rate') {
     rate = m.rate ?? 0;
     owed = 0;

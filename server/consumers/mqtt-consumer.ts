@@ -1,31 +1,29 @@
-import type { Aedes, PublishPacket } from 'aedes';
 import type { Logger } from 'pino';
-import { parseUnitTopic } from '../../shared/contracts/topics';
+import type { BrokerOptions, DenyReason, Principal } from '../../broker/broker';
 import type { IngestService } from '../services/ingest-service';
 
-const LEAVES = ['telemetry', 'events', 'acks', 'status', 'weather'];
-
 /**
- * Subscribes inside the broker's process (aedes's own subscribe: a network subscriber cannot keep up, see README
- * "Where the ceiling is") and hands each unit message to the ingest. While the ingest buffer is over its high-water
- * mark the delivery callback is held, which pauses aedes reading from publishers' sockets.
+ * The MQTT entry point of the ingest. It runs inside the broker's publish authorisation, before aedes writes a QoS 1
+ * PUBACK (a network subscriber could not keep up either, see README "Where the ceiling is"): the broker sends the
+ * PUBACK only when the ingest acknowledges the message, i.e. once the batch holding it has committed. Until then aedes
+ * reads nothing more from that unit's connection, and while the ingest buffer is over its high-water mark new
+ * messages wait as well (back-pressure).
  */
-export async function subscribeUnits(aedes: Aedes, ingest: IngestService, log: Logger): Promise<() => Promise<void>> {
-  const deliver = (packet: PublishPacket, cb: () => void) => {
-    const t = parseUnitTopic(packet.topic);
+export function unitMessageHandler(ingest: IngestService, log: Logger): NonNullable<BrokerOptions['onMessage']> {
+  return (unit, leaf, payload, done) => {
     try {
-      if (!t) ingest.countDenied('?', packet.topic);
-      else ingest.accept(t.serial, t.leaf, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload));
+      ingest.receive(unit.serial, leaf, payload, done);
     } catch (err) {
-      // A handler bug must never stop the broker: count it and go on.
-      log.error({ err, topic: packet.topic }, 'unit message handler failed');
+      // A handler bug must never stop the broker: log it and refuse the message (no PUBACK: the unit resends it).
+      log.error({ err, serial: unit.serial, leaf }, 'unit message handler failed');
+      done(err as Error);
     }
-    if (ingest.saturated) ingest.whenDrained(cb);
-    else cb();
   };
-  const topics = LEAVES.map((leaf) => `bw/v1/units/+/${leaf}`);
-  for (const topic of topics) await new Promise<void>((res) => aedes.subscribe(topic, deliver, () => res()));
-  return async () => {
-    for (const topic of topics) await new Promise<void>((res) => aedes.unsubscribe(topic, deliver, () => res()));
-  };
+}
+
+const DENIED = { acl: 'acl_denied', retain: 'retain_denied', too_large: 'packet_too_large' } as const satisfies Record<DenyReason, string>;
+
+/** Counts what the broker refused with the ingest's reject reasons, so `GET /api/metrics` shows every bad message in one place. */
+export function countDenied(ingest: IngestService): NonNullable<BrokerOptions['onDenied']> {
+  return (p: Principal | undefined, topic: string, reason: DenyReason) => ingest.countDenied(p?.kind === 'unit' ? p.serial : '?', DENIED[reason], topic);
 }

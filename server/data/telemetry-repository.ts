@@ -42,32 +42,47 @@ const EXTREMES: [string, string][] = [
 ];
 const QUARTER_MS = 15 * MINUTE_MS;
 
+/** Identity of a telemetry row (its primary key), as the ingest compares rows. */
+export const telemetryKey = (unitId: number, ts: Date) => `${unitId}|${ts.getTime()}`;
+/** Identity of a unit event row (its primary key). */
+export const eventKey = (unitId: number, ts: Date, kind: string) => `${unitId}|${ts.getTime()}|${kind}`;
+
 /** Raw telemetry and its rollups. Inserts are `INSERT IGNORE` on the (unit, ts) key: a resend never duplicates. */
 export class TelemetryRepository {
   constructor(private readonly db: Db) {}
 
-  /** Multi-row insert; returns how many rows were new (the rest were duplicates). */
-  async insertTelemetry(rows: TelemetryRow[]): Promise<number> {
-    if (!rows.length) return 0;
-    return this.insertIgnore('telemetry', TELEMETRY_COLUMNS as string[], rows as unknown as Record<string, unknown>[]);
+  /**
+   * Multi-row `INSERT IGNORE` on the primary key, one statement (one commit) per call; returns the keys of the rows that
+   * were new (`INSERT IGNORE … RETURNING` names only the rows actually inserted), so a resend is never announced twice.
+   */
+  async insertTelemetry(rows: TelemetryRow[]): Promise<string[]> {
+    if (!rows.length) return [];
+    const out = await this.insertIgnoreReturning(this.db, 'telemetry', TELEMETRY_COLUMNS as string[], rows as unknown as Record<string, unknown>[], ['unit_id', 'ts']);
+    return out.map((r) => telemetryKey(Number(r['unit_id']), r['ts'] as Date));
   }
 
-  async insertEvents(rows: EventRow[]): Promise<number> {
-    return rows.length ? this.insertIgnore('unit_events', ['unit_id', 'ts', 'kind', 'body'], rows as unknown as Record<string, unknown>[]) : 0;
+  /** Like insertTelemetry, for unit events (key: unit, ts, kind). */
+  async insertEvents(rows: EventRow[]): Promise<string[]> {
+    if (!rows.length) return [];
+    const out = await this.insertIgnoreReturning(this.db, 'unit_events', ['unit_id', 'ts', 'kind', 'body'], rows as unknown as Record<string, unknown>[], ['unit_id', 'ts', 'kind']);
+    return out.map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])));
   }
 
+  /** Site weather readings; returns how many were new. */
   async insertWeather(rows: WeatherRow[]): Promise<number> {
-    return rows.length
-      ? this.insertIgnore('weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[])
-      : 0;
+    return rows.length ? this.insertIgnore(this.db, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[]) : 0;
   }
 
-  private async insertIgnore(table: string, cols: string[], rows: Record<string, unknown>[]): Promise<number> {
+  private statement(table: string, cols: string[], rows: Record<string, unknown>[]): { sql: string; values: Knex.RawBinding[] } {
     const tuple = `(${cols.map(() => '?').join(',')})`;
     const values: Knex.RawBinding[] = [];
     for (const r of rows) for (const c of cols) values.push(r[c] as Knex.RawBinding);
-    const sql = `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`;
-    const [res] = (await this.db.raw(sql, values)) as unknown as [{ affectedRows: number }];
+    return { sql: `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`, values };
+  }
+
+  private async insertIgnore(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[]): Promise<number> {
+    const { sql, values } = this.statement(table, cols, rows);
+    const [res] = (await db.raw(sql, values)) as unknown as [{ affectedRows: number }];
     return res.affectedRows;
   }
 
@@ -79,6 +94,12 @@ export class TelemetryRepository {
     return this.db('telemetry as t')
       .join(this.db('telemetry').select('unit_id').max({ ts: 'ts' }).groupBy('unit_id').as('m'), (j) => j.on('m.unit_id', 't.unit_id').andOn('m.ts', 't.ts'))
       .select('t.*');
+  }
+
+  private async insertIgnoreReturning(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[], key: string[]): Promise<Record<string, unknown>[]> {
+    const { sql, values } = this.statement(table, cols, rows);
+    const [res] = (await db.raw(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values)) as unknown as [Record<string, unknown>[]];
+    return res;
   }
 
   /** Recomputes the 1-minute rollup of one minute bucket (epoch ms of the minute start) for the given units. */

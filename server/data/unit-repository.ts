@@ -18,6 +18,7 @@ export interface UnitRow {
   disabled: number | boolean;
   device_secret_hash: string;
   on_hold?: number | boolean;
+  weather_station?: number | boolean;
 }
 
 export class UnitRepository {
@@ -75,5 +76,6 @@ function toUnit(r: UnitRow & { site_name: string }): Unit {
     planYM: r.plan_y_m,
     firmware: r.firmware,
     disabled: Boolean(r.disabled),
+    weatherStation: Boolean(r.weather_station),
   };
 }

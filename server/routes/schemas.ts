@@ -46,6 +46,7 @@ export const unitBody = z.strictObject({
   planYM: num(-10_000, 10_000, 'm'),
   firmware: z.string().trim().min(1, 'Required.').max(32),
   disabled: z.boolean().optional(),
+  weatherStation: z.boolean().optional(),
 });
 
 export const unitListQuery = z.strictObject({ siteId: z.coerce.number().int().positive().optional() });

@@ -8,6 +8,7 @@ import type { IngestService } from '../services/ingest-service';
 import type { LiveHub } from '../services/live-hub';
 import type { TelemetryRepository } from '../data/telemetry-repository';
 import type { RollupWorker } from '../services/rollup-worker';
+import type { BrokerCounters } from '../../broker/broker';
 import { AppError, badRequest, forbidden } from '../errors/app-error';
 import { callerOf, requireRole } from './access';
 import { idParam, parse } from './validation';
@@ -35,6 +36,8 @@ export interface TelemetryRouteDeps {
   live: LiveHub;
   telemetry: TelemetryRepository;
   rollups: RollupWorker;
+  /** What the broker turned away (bad packets, refused CONNECTs, ACL refusals). */
+  brokerCounters?: () => BrokerCounters;
 }
 
 /** Live state, raw telemetry, commands and ingest metrics. Mounted behind requireSession. */
@@ -84,7 +87,7 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
   });
 
   r.get('/metrics', requireRole('admin', 'engineer', 'technician'), (_req, res) => {
-    res.json({ ingest: { ...d.ingest.counters, buffered: d.ingest.bufferedRows }, rollups: { passes: d.rollups.passes } });
+    res.json({ ingest: { ...d.ingest.counters, buffered: d.ingest.bufferedRows }, broker: d.brokerCounters?.() ?? null, rollups: { passes: d.rollups.passes } });
   });
   return r;
 }

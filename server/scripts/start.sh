@@ -4,6 +4,8 @@
 set -uo pipefail
 cd "$(dirname "$0")/../.."
 export NG_CLI_ANALYTICS=false
+# The demo also offers MQTT over TLS (development certificate in .data/tls/ unless BW_BROKER_TLS_CERT/KEY are set).
+export BW_BROKER_TLS_PORT=${BW_BROKER_TLS_PORT-8883}
 PORT=${BW_PORT:-4300}
 HOST=${BW_HOST:-127.0.0.1}
 children=()
@@ -53,7 +55,8 @@ cat <<MSG
     tech1@saltmarsh.example      technician       crew1@saltmarsh.example      field crew
     owner@quillmoor.example      owner (Quillmoor Energy Cooperative)
     owner@fenwicklane.example    owner (Fenwick Lane Schools Trust)
-  MQTT broker on ${BW_BROKER_HOST:-127.0.0.1}:${BW_BROKER_PORT:-1884}. Press Ctrl-C to stop everything.
+  MQTT broker on ${BW_BROKER_HOST:-127.0.0.1}:${BW_BROKER_PORT:-1884}${BW_BROKER_TLS_PORT:+, MQTT over TLS on port $BW_BROKER_TLS_PORT (${BW_BROKER_TLS_CERT:-development certificate .data/tls/broker-cert.pem})}.
+  Press Ctrl-C to stop everything.
 
 MSG
 wait -n "${children[@]}"

@@ -248,6 +248,7 @@ function unitRow(i: Partial<UnitInput>): Partial<Omit<UnitRow, 'id'>> {
     serial: 'serial', siteId: 'site_id', ratedPowerWp: 'rated_power_wp', detectorTiltDeg: 'detector_tilt_deg',
     tiltMinDeg: 'tilt_min_deg', tiltMaxDeg: 'tilt_max_deg', azimuthMinDeg: 'azimuth_min_deg', azimuthMaxDeg: 'azimuth_max_deg',
     planXM: 'plan_x_m', planYM: 'plan_y_m', firmware: 'firmware', disabled: 'disabled',
+    weatherStation: 'weather_station',
   };
   const r: Record<string, unknown> = {};
   for (const [k, col] of Object.entries(map)) if (i[k as keyof UnitInput] !== undefined) r[col] = i[k as keyof UnitInput];

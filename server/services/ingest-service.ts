@@ -4,11 +4,18 @@ import {
   MAX_PAYLOAD_BYTES, ackSchema, eventSchema, statusSchema, telemetrySchema, weatherSchema,
   type CommandAck, type Telemetry, type UnitEvent, type UnitStatus,
 } from '../../shared/contracts/wire';
-import type { EventRow, TelemetryRepository, TelemetryRow, WeatherRow } from '../data/telemetry-repository';
+import { eventKey, telemetryKey, type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow } from '../data/telemetry-repository';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
+/**
+ * Why a unit message was not taken. Up to `weather_denied` (weather from a unit that is not its site's station) they
+ * are decided here: the message is acknowledged and dropped, the connection stays. The last three are the broker's,
+ * which closes the connection (MQTT 3.1.1 has no per-message refusal): a publish outside the unit's own publish
+ * topics, a retained message other than status, a packet over the broker's size cap.
+ */
 export const REJECT_REASONS = [
-  'oversized', 'malformed_json', 'invalid_payload', 'unknown_unit', 'disabled_unit', 'future_timestamp', 'too_old', 'unknown_topic', 'acl_denied',
+  'oversized', 'malformed_json', 'invalid_payload', 'unknown_unit', 'disabled_unit', 'future_timestamp', 'too_old', 'unknown_topic',
+  'weather_denied', 'acl_denied', 'retain_denied', 'packet_too_large',
 ] as const;
 export type RejectReason = (typeof REJECT_REASONS)[number];
 
@@ -29,14 +36,21 @@ export interface IngestOptions {
 }
 
 export const DEFAULT_INGEST_OPTIONS: IngestOptions = {
-  batchRows: 1000, flushMs: 250, maxBufferRows: 200_000, flushConcurrency: 2, retentionDays: 400, futureToleranceMs: 5 * 60_000, now: Date.now,
+  batchRows: 1000, flushMs: 50, maxBufferRows: 200_000, flushConcurrency: 2, retentionDays: 400, futureToleranceMs: 5 * 60_000, now: Date.now,
 };
 
-/** What the rest of the server hears from the ingest (live state, commands, health detectors). */
+/**
+ * What the rest of the server hears from the ingest. `stored` and `event` hear each reading exactly once, after the
+ * batch holding it committed and only if its row was new (a resend never counts twice, across restarts too);
+ * `telemetry` hears every valid report as it arrives, before it is stored, resends included (the live picture, which
+ * ignores reports not newer than the last).
+ */
 export interface IngestListeners {
   telemetry?: (unit: UnitInfo, t: Telemetry) => void;
+  stored?: (unit: UnitInfo, t: Telemetry) => void;
   event?: (unit: UnitInfo, e: UnitEvent) => void;
-  ack?: (unit: UnitInfo, a: CommandAck) => void;
+  /** A command answer; when it returns a promise, the unit's PUBACK waits for it (a rejection closes the connection, so the unit resends). */
+  ack?: (unit: UnitInfo, a: CommandAck) => void | Promise<void>;
   status?: (unit: UnitInfo, s: UnitStatus) => void;
   /** Rows durably stored, with the commit time (benchmarks measure publish → commit from it). */
   committed?: (rows: TelemetryRow[], committedAtMs: number) => void;
@@ -54,16 +68,31 @@ export interface IngestCounters {
   held: number;
 }
 
+/** Called once a message may be acknowledged to the unit (its row committed); with an error, it must not be. */
+export type Acknowledge = (err?: Error) => void;
+
+interface HeldTelemetry { row: TelemetryRow; unit: UnitInfo; t: Telemetry; ack: Acknowledge | undefined }
+interface HeldEvent { row: EventRow; unit: UnitInfo; e: UnitEvent; ack: Acknowledge | undefined }
+interface HeldWeather { row: WeatherRow; ack: Acknowledge | undefined }
+
 /**
- * Validates unit messages and writes them to MariaDB in batched multi-row inserts. Nothing is dropped once accepted:
- * a failed flush puts its rows back and retries with backoff, and past `maxBufferRows` the MQTT deliveries are held,
- * which stops aedes reading from the publishers' sockets until the buffer drains.
+ * Validates unit messages and writes them to MariaDB in batched multi-row inserts, one commit per statement (a group
+ * commit). A stored message is acknowledged only after its batch committed, so a reading the unit got a PUBACK for is
+ * in the database even if this process dies. Nothing is dropped once accepted: a failed flush puts its rows back and
+ * retries with backoff, and past `maxBufferRows` new messages wait (so aedes stops reading from their sockets) until
+ * the buffer drains.
  */
 export class IngestService {
-  private telemetry: TelemetryRow[] = [];
-  private events: EventRow[] = [];
-  private weather: WeatherRow[] = [];
+  private telemetry: HeldTelemetry[] = [];
+  private events: HeldEvent[] = [];
+  private weather: HeldWeather[] = [];
   private inFlight = 0;
+  /** Rows of the batches being written: still in memory, so they count against `maxBufferRows`. */
+  private inFlightRows = 0;
+  /** Listeners hear batches in the order they were taken from the buffer, whatever order concurrent commits finish in. */
+  private nextBatch = 0;
+  private nextAnnounced = 0;
+  private readonly finished = new Map<number, (() => void) | null>();
   private timer: NodeJS.Timeout | undefined;
   private retryAt = 0;
   private backoffMs = 500;
@@ -92,9 +121,9 @@ export class IngestService {
     return this.telemetry.length + this.events.length + this.weather.length;
   }
 
-  /** Whether new deliveries should wait (the buffer is over its high-water mark). */
+  /** Whether new deliveries should wait (rows waiting or being written are over the high-water mark). */
   get saturated(): boolean {
-    return this.bufferedRows >= this.opts.maxBufferRows;
+    return this.bufferedRows + this.inFlightRows >= this.opts.maxBufferRows;
   }
 
   /** Calls `resume` once the buffer is below half its high-water mark. */
@@ -103,72 +132,90 @@ export class IngestService {
     this.held.push(resume);
   }
 
-  /** Handles one MQTT message from a unit's prefix. Returns the reject reason, or null when accepted. */
-  accept(serial: string, leaf: string, payload: Buffer): RejectReason | null {
+  /**
+   * Takes one MQTT message from a unit's prefix, waiting first while the buffer is over its high-water mark (the
+   * broker reads nothing more from that connection meanwhile: back-pressure). `ack` is called when the message may be
+   * acknowledged: at once when it is refused (it is dropped and counted, so the unit does not resend it), when
+   * handled (status) or answered (acks), and for telemetry, events and weather once the batch holding it committed.
+   */
+  receive(serial: string, leaf: string, payload: Buffer, ack?: Acknowledge): void {
+    if (this.saturated && !this.stopped) this.whenDrained(() => this.receive(serial, leaf, payload, ack));
+    else this.accept(serial, leaf, payload, ack);
+  }
+
+  /** Validates one message and buffers it (see `receive`). Returns the reject reason, or null when accepted. */
+  accept(serial: string, leaf: string, payload: Buffer, ack?: Acknowledge): RejectReason | null {
     this.counters.received++;
-    if (payload.length > MAX_PAYLOAD_BYTES) return this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`);
+    const refuse = (reason: RejectReason | null): RejectReason | null => {
+      ack?.();
+      return reason;
+    };
+    if (payload.length > MAX_PAYLOAD_BYTES) return refuse(this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`));
     const unit = this.units.get(serial);
-    if (!unit) return this.reject(serial, 'unknown_unit', 'no unit has this serial');
-    if (unit.disabled) return this.reject(serial, 'disabled_unit', 'unit is disabled');
+    if (!unit) return refuse(this.reject(serial, 'unknown_unit', 'no unit has this serial'));
+    if (unit.disabled) return refuse(this.reject(serial, 'disabled_unit', 'unit is disabled'));
     let json: unknown;
     try {
       json = JSON.parse(payload.toString('utf8'));
     } catch {
-      return this.reject(serial, 'malformed_json', 'payload is not JSON');
+      return refuse(this.reject(serial, 'malformed_json', 'payload is not JSON'));
     }
     switch (leaf) {
       case 'telemetry': {
         const t = this.validate(serial, telemetrySchema, json);
-        if (!t) return 'invalid_payload';
+        if (!t) return refuse('invalid_payload');
         const ts = Date.parse(t.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return bad;
-        this.telemetry.push(toRow(unit.id, t, ts, this.opts.now()));
+        if (bad) return refuse(bad);
+        this.telemetry.push({ row: toRow(unit.id, t, ts, this.opts.now()), unit, t, ack });
         this.listeners.telemetry?.(unit, t);
         break;
       }
       case 'events': {
         const e = this.validate(serial, eventSchema, json);
-        if (!e) return 'invalid_payload';
+        if (!e) return refuse('invalid_payload');
         const ts = Date.parse(e.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return bad;
-        this.events.push({ unit_id: unit.id, ts: new Date(ts), kind: e.kind, body: JSON.stringify(e) });
-        this.listeners.event?.(unit, e);
+        if (bad) return refuse(bad);
+        this.events.push({ row: { unit_id: unit.id, ts: new Date(ts), kind: e.kind, body: JSON.stringify(e) }, unit, e, ack });
         break;
       }
       case 'weather': {
+        // Only the unit that carries its site's station may report the site's weather (fake gusts would raise stow alarms).
+        if (!unit.weatherStation) return refuse(this.reject(serial, 'weather_denied', 'this unit does not carry its site\'s weather station'));
         const w = this.validate(serial, weatherSchema, json);
-        if (!w) return 'invalid_payload';
+        if (!w) return refuse('invalid_payload');
         const ts = Date.parse(w.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return bad;
-        this.weather.push({ site_id: unit.siteId, ts: new Date(ts), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs });
+        if (bad) return refuse(bad);
+        this.weather.push({ row: { site_id: unit.siteId, ts: new Date(ts), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs }, ack });
         break;
       }
       case 'acks': {
         const a = this.validate(serial, ackSchema, json);
-        if (!a) return 'invalid_payload';
-        this.listeners.ack?.(unit, a);
+        if (!a) return refuse('invalid_payload');
+        const answered = this.listeners.ack?.(unit, a);
+        if (answered) answered.then(() => ack?.(), (err: Error) => ack?.(err));
+        else ack?.();
         return null;
       }
       case 'status': {
         const s = this.validate(serial, statusSchema, json);
-        if (!s) return 'invalid_payload';
+        if (!s) return refuse('invalid_payload');
         this.listeners.status?.(unit, s);
-        return null;
+        return refuse(null);
       }
       default:
-        return this.reject(serial, 'unknown_topic', `no such leaf "${leaf}"`);
+        return refuse(this.reject(serial, 'unknown_topic', `no such leaf "${leaf}"`));
     }
     this.schedule();
     return null;
   }
 
-  /** Counts a publish the broker refused (outside the unit's prefix). */
-  countDenied(serial: string, topic: string): void {
+  /** Counts a message the broker refused (the reasons it decides: see REJECT_REASONS). */
+  countDenied(serial: string, reason: Extract<RejectReason, 'acl_denied' | 'retain_denied' | 'packet_too_large'>, topic: string): void {
     this.counters.received++;
-    this.reject(serial, 'acl_denied', `publish to ${topic}`);
+    this.reject(serial, reason, topic ? `publish to ${topic}` : 'packet over the size limit');
   }
 
   private validate<T extends z.ZodType>(serial: string, schema: T, json: unknown): z.infer<T> | null {
@@ -213,12 +260,15 @@ export class IngestService {
   private pump(): void {
     while (this.inFlight < this.opts.flushConcurrency && this.bufferedRows > 0 && this.opts.now() >= this.retryAt) {
       // Key order inside a batch keeps concurrent flushes taking InnoDB locks in the same order (fewer deadlocks).
-      const t = this.telemetry.splice(0, this.opts.batchRows).sort((a, b) => a.unit_id - b.unit_id || a.ts.getTime() - b.ts.getTime());
+      const t = this.telemetry.splice(0, this.opts.batchRows).sort((a, b) => a.row.unit_id - b.row.unit_id || a.row.ts.getTime() - b.row.ts.getTime());
       const e = t.length < this.opts.batchRows ? this.events.splice(0, this.opts.batchRows) : [];
       const w = t.length + e.length < this.opts.batchRows ? this.weather.splice(0, this.opts.batchRows) : [];
       this.inFlight++;
-      void this.write(t, e, w).finally(() => {
+      const rows = t.length + e.length + w.length;
+      this.inFlightRows += rows;
+      void this.write(this.nextBatch++, t, e, w).finally(() => {
         this.inFlight--;
+        this.inFlightRows -= rows;
         this.releaseHeld();
         if (this.bufferedRows > 0) this.schedule();
       });
@@ -233,38 +283,86 @@ export class IngestService {
     }
   }
 
-  private async write(t: TelemetryRow[], e: EventRow[], w: WeatherRow[]): Promise<void> {
+  /**
+   * Writes one batch: each table in one multi-row statement, each statement its own commit (a group commit for every
+   * message in it). What committed is acknowledged and announced; what failed goes back, in order, to be retried.
+   */
+  private async write(batch: number, t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
+    let newTelemetry: Set<string> | undefined;
+    let newEvents: Set<string> | undefined;
+    let failure: unknown;
     try {
-      const stored = await this.repo.insertTelemetry(t);
-      await this.repo.insertEvents(e);
-      await this.repo.insertWeather(w);
-      this.counters.stored += stored;
-      this.counters.duplicates += t.length - stored;
+      newTelemetry = new Set(await this.repo.insertTelemetry(t.map((x) => x.row)));
+      newEvents = new Set(await this.repo.insertEvents(e.map((x) => x.row)));
+      await this.repo.insertWeather(w.map((x) => x.row));
+    } catch (err) {
+      failure = err;
+    }
+    const tDone = newTelemetry !== undefined;
+    const storedCount = newTelemetry?.size ?? 0;
+    const eDone = newEvents !== undefined;
+    const wDone = failure === undefined;
+    // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
+    this.inOrder(batch, () => {
+      if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
+      if (newEvents) for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+    });
+    if (tDone) {
+      this.counters.stored += storedCount;
+      this.counters.duplicates += t.length - storedCount;
+      const rows = t.map((x) => x.row);
+      if (t.length) {
+        this.onStored(rows);
+        this.listeners.committed?.(rows, this.opts.now());
+      }
+      for (const x of t) x.ack?.();
+    }
+    if (eDone) for (const x of e) x.ack?.();
+    if (wDone) for (const x of w) x.ack?.();
+    if (failure === undefined) {
       this.counters.flushes++;
       if (!this.counters.databaseUp) this.log.info({ buffered: this.bufferedRows }, 'database is back; draining the ingest buffer');
       this.counters.databaseUp = true;
       this.backoffMs = 500;
-      if (t.length) {
-        this.onStored(t);
-        this.listeners.committed?.(t, this.opts.now());
-      }
-    } catch (err) {
-      // Keep every row, in order, and try again. INSERT IGNORE makes a partial earlier success harmless.
-      this.telemetry.unshift(...t);
-      this.events.unshift(...e);
-      this.weather.unshift(...w);
-      this.counters.flushFailures++;
-      const code = (err as { code?: string }).code;
-      if (code === 'ER_LOCK_DEADLOCK' || code === 'ER_LOCK_WAIT_TIMEOUT') return; // a lost race between flushes: retry at once
-      if (this.counters.databaseUp) this.log.error({ code, error: (err as { sqlMessage?: string }).sqlMessage ?? (err as Error).message.slice(0, 200), buffered: this.bufferedRows }, 'ingest flush failed; buffering and retrying');
-      this.counters.databaseUp = false;
-      this.retryAt = this.opts.now() + this.backoffMs;
-      this.backoffMs = Math.min(this.backoffMs * 2, 5000);
+    } else {
+      this.failed(tDone ? [] : t, eDone ? [] : e, wDone ? [] : w, failure);
     }
   }
 
+  private inOrder(batch: number, announce: (() => void) | null): void {
+    this.finished.set(batch, announce);
+    while (this.finished.has(this.nextAnnounced)) {
+      const next = this.finished.get(this.nextAnnounced);
+      this.finished.delete(this.nextAnnounced++);
+      next?.();
+    }
+  }
+
+  /** A listener's failure is logged and never undoes a commit or withholds an acknowledgement. */
+  private announce(call: () => void): void {
+    try {
+      call();
+    } catch (err) {
+      this.log.error({ err }, 'ingest listener failed');
+    }
+  }
+
+  private failed(t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[], err: unknown): void {
+    // Keep every row not stored yet, in order, and try again.
+    this.telemetry.unshift(...t);
+    this.events.unshift(...e);
+    this.weather.unshift(...w);
+    this.counters.flushFailures++;
+    const code = (err as { code?: string }).code;
+    if (code === 'ER_LOCK_DEADLOCK' || code === 'ER_LOCK_WAIT_TIMEOUT') return; // a lost race between flushes: retry at once
+    if (this.counters.databaseUp) this.log.error({ code, error: (err as { sqlMessage?: string }).sqlMessage ?? (err as Error).message.slice(0, 200), buffered: this.bufferedRows }, 'ingest flush failed; buffering and retrying');
+    this.counters.databaseUp = false;
+    this.retryAt = this.opts.now() + this.backoffMs;
+    this.backoffMs = Math.min(this.backoffMs * 2, 5000);
+  }
+
   private releaseHeld(): void {
-    if (this.bufferedRows > this.opts.maxBufferRows / 2) return;
+    if (this.bufferedRows + this.inFlightRows > this.opts.maxBufferRows / 2) return;
     const held = this.held;
     this.held = [];
     for (const resume of held) resume();

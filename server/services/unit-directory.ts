@@ -14,6 +14,8 @@ export interface UnitInfo {
   /** The holds in force, oldest first. */
   holds: HoldView[];
   detectorTiltDeg: number;
+  /** Carries its site's weather station. */
+  weatherStation: boolean;
 }
 
 /**
@@ -58,7 +60,7 @@ export class UnitDirectory {
     const changesAtStart = this.holdChanges;
     const rows = await this.db('units as u')
       .join('sites as s', 's.id', 'u.site_id')
-      .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.detector_tilt_deg');
+      .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.detector_tilt_deg', 'u.weather_station');
     const holds = new Map<number, HoldView[]>();
     for (const h of await this.holdRepo.allActive()) holds.set(h.unitId, [...(holds.get(h.unitId) ?? []), h]);
     const bySerial = new Map<string, UnitInfo>();
@@ -69,6 +71,7 @@ export class UnitDirectory {
       const u: UnitInfo = {
         id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
         disabled: Boolean(r.disabled), onHold: unitHolds.length > 0, holds: unitHolds, detectorTiltDeg: r.detector_tilt_deg,
+        weatherStation: Boolean(r.weather_station),
       };
       bySerial.set(u.serial, u);
       byId.set(u.id, u);

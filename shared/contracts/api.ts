@@ -111,6 +111,8 @@ export interface Unit {
   planYM: number;
   firmware: string;
   disabled: boolean;
+  /** Whether the unit carries its site's weather station (the only unit allowed to publish the site's weather). */
+  weatherStation: boolean;
 }
 
 export interface UnitInput {
@@ -126,6 +128,7 @@ export interface UnitInput {
   planYM: number;
   firmware: string;
   disabled?: boolean;
+  weatherStation?: boolean;
 }
 
 /** `GET /api/health`, public: whether each part works, nothing more (the reasons are in the server log). */

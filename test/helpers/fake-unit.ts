@@ -6,7 +6,7 @@ import { testDeviceSecret } from './device-secrets';
 /** A hand-driven unit for tests: connects with its serial and secret, publishes what the test says. */
 export async function connectUnit(port: number, serial: string, password = testDeviceSecret(serial), extra: mqtt.IClientOptions = {}): Promise<MqttClient> {
   return mqtt.connectAsync(`mqtt://127.0.0.1:${port}`, {
-    username: serial, password, clientId: `test-${serial}-${Math.random().toString(36).slice(2, 8)}`, reconnectPeriod: 0,
+    username: serial, password, clientId: serial, reconnectPeriod: 0, // the broker requires client id = serial
     will: { topic: unitTopic(serial, 'status'), payload: Buffer.from(JSON.stringify({ v: 1, online: false })), qos: 1, retain: true },
     ...extra,
   });

@@ -8,6 +8,8 @@ export interface TestStackOptions {
   stack?: StackOptions;
   /** Reach the database through this port instead (e.g. a proxy the test can cut). */
   dbPort?: number;
+  /** Offer MQTT over TLS too (port 0 picks a free one). */
+  brokerTls?: { port: number; certPath: string; keyPath: string };
 }
 
 /** The whole server (HTTP, broker, database) on free ports against a fresh test database, serving the built dashboard. */
@@ -16,7 +18,7 @@ export async function startTestStack(opts: TestStackOptions = {}): Promise<Stack
   const config = {
     ...testDb.config,
     port: 0,
-    broker: { ...testDb.config.broker, port: 0 },
+    broker: { host: testDb.config.broker.host, port: 0, ...(opts.brokerTls ? { tls: opts.brokerTls } : {}) },
     db: { ...testDb.config.db, port: opts.dbPort ?? testDb.config.db.port },
     sessionSecret: 'test-secret-test-secret-test-secret-0',
   };

@@ -156,7 +156,7 @@ describe('storage', () => {
   });
 
   it('stores weather against the site of the unit that carries the station, and unit events once', async () => {
-    const serial = 'FSC-2404';
+    const serial = 'FSC-2401'; // the station of Fenwick Lane School Courtyard
     const u = await connectUnit(stack.broker.port, serial);
     const ts = new Date(Date.now() - 60_000).toISOString();
     const siteId = stack.units.get(serial)!.siteId;

@@ -6,7 +6,7 @@ import { filterRows, fleetRows, mergeStates, sortRows, toneCounts } from './flee
 const site = (id: number, name: string): Site =>
   ({ id, name, ownerId: 1, ownerName: 'O', latitudeDeg: 0, longitudeDeg: 0, elevationM: 0, timeZone: 'Europe/Berlin', albedo: 0.2, indoor: false, unitCount: 0 });
 const unit = (id: number, serial: string, siteId: number): Unit =>
-  ({ id, serial, siteId, siteName: '', ratedPowerWp: 420, detectorTiltDeg: 20, tiltMinDeg: 0, tiltMaxDeg: 85, azimuthMinDeg: 0, azimuthMaxDeg: 360, planXM: 0, planYM: 0, firmware: '1', disabled: false });
+  ({ id, serial, siteId, siteName: '', ratedPowerWp: 420, detectorTiltDeg: 20, tiltMinDeg: 0, tiltMaxDeg: 85, azimuthMinDeg: 0, azimuthMaxDeg: 360, planXM: 0, planYM: 0, firmware: '1', disabled: false, weatherStation: false });
 const live = (unitId: number, over: Partial<UnitLiveState> = {}): UnitLiveState => ({
   unitId, serial: '', siteId: 1, online: true, lastReportAt: '2026-06-21T10:00:00Z', mode: 'settled', poaWm2: 800, dcPowerW: 300,
   tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 30, cmdAzimuthDeg: 180, tiltDiffWm2: 0, azimuthDiffWm2: 0, moduleTempC: 30, onHold: false, holds: [], ...over,

@@ -62,6 +62,7 @@ export class UnitForm {
     planYM: new FormControl<number | null>(0, [Validators.required, inRange(-10000, 10000, ' m')]),
     firmware: new FormControl('', { nonNullable: true, validators: [Validators.required, Validators.maxLength(40)] }),
     disabled: new FormControl(false, { nonNullable: true }),
+    weatherStation: new FormControl(false, { nonNullable: true }),
   });
   protected readonly saving = signal(false);
   protected readonly problem = signal<string | null>(null);
@@ -82,6 +83,7 @@ export class UnitForm {
         planYM: unit.planYM,
         firmware: unit.firmware,
         disabled: unit.disabled,
+        weatherStation: unit.weatherStation,
       });
     }
     // A changed lower bound can make the upper bound valid or invalid.
@@ -112,6 +114,7 @@ export class UnitForm {
       planYM: Number(value.planYM),
       firmware: value.firmware.trim(),
       disabled: value.disabled,
+      weatherStation: value.weatherStation,
     };
     this.saving.set(true);
     const fail = (error: unknown): void => {

@@ -1,0 +1,50 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import { readFileSync } from 'node:fs';
+import { createInterface } from 'node:readline';
+import { fileURLToPath } from 'node:url';
+
+const main = fileURLToPath(new URL('../../server/main.ts', import.meta.url));
+
+export interface ServerProcess {
+  proc: ChildProcess;
+  url: string;
+  brokerPort: number;
+  /** Resident memory of the server process [MiB] (Linux /proc). */
+  rssMb(): number;
+  /** Whether it is still running. */
+  alive(): boolean;
+  kill(signal: NodeJS.Signals): Promise<number | null>;
+}
+
+/** The real server (server/main.ts) as its own process on free ports, against the given database; resolves once it says it is ready. */
+export async function startServerProcess(database: string, env: Record<string, string> = {}): Promise<ServerProcess> {
+  const proc = spawn(process.execPath, ['--import', 'tsx', main], {
+    env: { ...process.env, BW_DB_NAME: database, BW_PORT: '0', BW_BROKER_PORT: '0', BW_LOG_LEVEL: 'info', ...env },
+    stdio: ['ignore', 'pipe', 'inherit'],
+  });
+  let exited = false;
+  const exit = new Promise<number | null>((res) => proc.once('exit', (code) => { exited = true; res(code); }));
+  const ready = await new Promise<{ url: string; brokerPort: number }>((res, rej) => {
+    void exit.then((code) => rej(new Error(`server exited with ${code} before it was ready`)));
+    createInterface({ input: proc.stdout! }).on('line', (line) => {
+      try {
+        const m = JSON.parse(line) as { msg?: string; url?: string; brokerPort?: number };
+        if (m.msg === 'Brightward server ready' && m.url && m.brokerPort) res({ url: m.url, brokerPort: m.brokerPort });
+      } catch {
+        /* not a log line */
+      }
+    });
+  });
+  return {
+    proc, ...ready,
+    rssMb: () => {
+      const kb = /VmRSS:\s+(\d+) kB/.exec(readFileSync(`/proc/${proc.pid}/status`, 'utf8'));
+      return kb ? Number(kb[1]) / 1024 : Number.NaN;
+    },
+    alive: () => !exited,
+    kill: async (signal) => {
+      if (!exited) proc.kill(signal);
+      return exit;
+    },
+  };
+}
