@@ -100,14 +100,19 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     secret: config.sessionSecret ?? randomBytes(32).toString('hex'),
     sessionHours: config.sessionHours,
   });
+  let brokerRef: RunningBroker | undefined;
   const directory = new UnitDirectory(db);
   await directory.load();
   const live = new LiveHub(directory);
   const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, passwords, auth, {
     // Who may see and command a unit follows admin changes at once.
-    onUnitChanged: async () => {
+    onUnitChanged: async (_unitId, change) => {
       await directory.load().catch((err) => log.error({ err }, 'unit directory reload failed'));
       live.onDirectoryChanged();
+      // A disabled unit, a new secret or a new serial ends the unit's MQTT session at once (it must authenticate again).
+      if (change.credentialsChanged || change.disabled) {
+        for (const serial of new Set([change.serial, change.previousSerial ?? change.serial])) brokerRef?.disconnectUnit(serial);
+      }
     },
   });
 
@@ -197,6 +202,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   retention.start();
   commands.start();
   await health.start();
+  brokerRef = broker;
 
   const allowedOrigins = new Set(config.allowedOrigins);
   const app = createApp({
