@@ -7,5 +7,5 @@ describe('offline evaluation, seed 4', () => {
   it('meets the detection targets against the simulator\'s ground truth', () => {
     const { result } = runEval({ seed: 4, units: 8, hours: 36 });
     expectTargets(result);
-  }, 120_000);
+  }, 300_000);
 });
