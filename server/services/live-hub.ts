@@ -3,23 +3,11 @@ import type { HoldView } from '../../shared/contracts/holds';
 import type { CommandView, LiveClientMessage, LiveServerMessage, UnitLiveState } from '../../shared/contracts/live';
 import type { Telemetry, UnitMode, UnitStatus } from '../../shared/contracts/wire';
 import type { Caller } from './caller';
+import type { TelemetryRow } from '../data/telemetry-repository';
 
 /** The fields of a stored telemetry row the live picture is rebuilt from. */
-export interface StoredReport {
-  ts: Date;
-  mode: string;
-  poa_wm2: number;
-  dc_power_w: number;
-  tilt_deg: number;
-  azimuth_deg: number;
-  cmd_tilt_deg: number;
-  cmd_azimuth_deg: number;
-  tilt_plus_wm2: number;
-  tilt_minus_wm2: number;
-  azimuth_plus_wm2: number;
-  azimuth_minus_wm2: number;
-  module_temp_c: number;
-}
+export type StoredReport = Pick<TelemetryRow, 'ts' | 'mode' | 'poa_wm2' | 'dc_power_w' | 'tilt_deg' | 'azimuth_deg' | 'cmd_tilt_deg' |
+  'cmd_azimuth_deg' | 'tilt_plus_wm2' | 'tilt_minus_wm2' | 'azimuth_plus_wm2' | 'azimuth_minus_wm2' | 'module_temp_c'>;
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 export interface LiveSession {

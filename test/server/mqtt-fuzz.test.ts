@@ -15,6 +15,7 @@ import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 import { startServerProcess, type ServerProcess } from '../helpers/server-process';
 import { rawConnect, rawSocket, qos1, type RawClient } from '../helpers/raw-mqtt';
 import { sample, waitFor } from '../helpers/fake-unit';
+import { seededRandom } from '../shared/seeded-random';
 
 const SCALE = Math.max(1, Number(process.env['BW_FUZZ_SCALE'] ?? 1));
 const n = (count: number) => Math.round(count * SCALE);
@@ -44,17 +45,8 @@ const port = () => server.brokerPort;
 const unitId = async (serial: string) => Number((await testDb.db('units').where({ serial }).first('id')).id);
 const rowsOf = async (serial: string) => Number(((await testDb.db('telemetry').where({ unit_id: await unitId(serial) }).count({ n: '*' })) as [{ n: number }])[0].n);
 
-/** Seeded pseudo-random numbers (mulberry32), so a failing run can be repeated. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** Seeded pseudo-random numbers, so a failing run can be repeated. */
+const rng = seededRandom;
 
 /** Runs `task(i)` for i in [0, count) with at most `width` at once. */
 async function pool(count: number, width: number, task: (i: number) => Promise<void>): Promise<void> {
