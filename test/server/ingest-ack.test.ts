@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Telemetry } from '../../shared/contracts/wire';
 import type { UnitInfo } from '../../server/services/unit-directory';
 import { unitTopic } from '../../shared/contracts/topics';
-import { testDeviceSecret as demoDeviceSecret } from '../helpers/device-secrets';
+import { testDeviceSecret } from '../helpers/device-secrets';
 import { startTestStack } from '../helpers/test-stack';
 import { startTcpProxy } from '../helpers/tcp-proxy';
 import { connectUnit, sample, waitFor } from '../helpers/fake-unit';
@@ -61,7 +61,7 @@ describe('QoS 1 acknowledgement after commit', () => {
     const serial = 'QHL-2406';
     const ts = Date.now() - 200_000;
     const body = JSON.stringify(sample(1, ts));
-    const first = await rawConnect(stack.broker.port, serial, demoDeviceSecret(serial));
+    const first = await rawConnect(stack.broker.port, serial, testDeviceSecret(serial));
     await proxy.cut();
     first.c.send(qos1(unitTopic(serial, 'telemetry'), body, 1));
     await waitFor(() => !stack.ingest.counters.databaseUp, 10_000, 'the ingest to notice the outage');
@@ -71,7 +71,7 @@ describe('QoS 1 acknowledgement after commit', () => {
     await first.c.closed;
     expect(first.c.received.filter((p) => p.cmd === 'puback')).toEqual([]);
     await proxy.restore();
-    const second = await rawConnect(stack.broker.port, serial, demoDeviceSecret(serial));
+    const second = await rawConnect(stack.broker.port, serial, testDeviceSecret(serial));
     expect(second.connack.returnCode).toBe(0);
     second.c.send(qos1(unitTopic(serial, 'telemetry'), body, 1, false, true));
     expect((await second.c.next('puback')).messageId).toBe(1);
@@ -84,7 +84,7 @@ describe('QoS 1 acknowledgement after commit', () => {
   it('keeps back-pressure during an outage: the buffer never passes its limit, and every reading is stored once it is back', async () => {
     const serial = 'QHL-2404';
     const t0 = Date.now() - 100_000;
-    const { c } = await rawConnect(stack.broker.port, serial, demoDeviceSecret(serial));
+    const { c } = await rawConnect(stack.broker.port, serial, testDeviceSecret(serial));
     await proxy.cut();
     let maxBuffered = 0;
     const watch = setInterval(() => { maxBuffered = Math.max(maxBuffered, stack.ingest.bufferedRows); }, 2);

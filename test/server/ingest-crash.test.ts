@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { unitTopic } from '../../shared/contracts/topics';
-import { testDeviceSecret as demoDeviceSecret } from '../helpers/device-secrets';
+import { testDeviceSecret } from '../helpers/device-secrets';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 import { startServerProcess, type ServerProcess } from '../helpers/server-process';
 import { rawConnect, qos1, type RawClient } from '../helpers/raw-mqtt';
@@ -29,7 +29,7 @@ describe('server process killed with SIGKILL', () => {
 
     const first = await startServer();
     children.add(first);
-    const { c, connack } = await rawConnect(first.brokerPort, serial, demoDeviceSecret(serial));
+    const { c, connack } = await rawConnect(first.brokerPort, serial, testDeviceSecret(serial));
     expect(connack.returnCode).toBe(0);
     let sent = 0;
     const pace = setInterval(() => {
@@ -48,7 +48,7 @@ describe('server process killed with SIGKILL', () => {
     // The unit resends what it has no PUBACK for, on its next connection to the restarted server.
     const second = await startServer();
     children.add(second);
-    const again = await rawConnect(second.brokerPort, serial, demoDeviceSecret(serial));
+    const again = await rawConnect(second.brokerPort, serial, testDeviceSecret(serial));
     const ackedSet = new Set(acked);
     const resend = Array.from({ length: N }, (_, i) => i).filter((i) => !ackedSet.has(i));
     for (const i of resend) again.c.send(qos1(unitTopic(serial, 'telemetry'), body(i), i + 1, false, i < sent));

@@ -5,7 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { unitTopic } from '../../shared/contracts/topics';
-import { testDeviceSecret as demoDeviceSecret } from '../helpers/device-secrets';
+import { testDeviceSecret } from '../helpers/device-secrets';
 import { startTestStack } from '../helpers/test-stack';
 import { rawConnect, qos1 } from '../helpers/raw-mqtt';
 import { sample, waitFor } from '../helpers/fake-unit';
@@ -49,7 +49,7 @@ const publishes: { rule: string; as: string; topic: string; payload: () => strin
 
 describe('publish rules', () => {
   it.each(publishes)('$as publishing $rule: $expect', async (row) => {
-    const { c, connack } = await rawConnect(stack.broker.port, row.as, demoDeviceSecret(row.as));
+    const { c, connack } = await rawConnect(stack.broker.port, row.as, testDeviceSecret(row.as));
     expect(connack.returnCode).toBe(0);
     const before = { ...stack.ingest.counters.rejected };
     const qos = row.qos ?? 1;
@@ -92,7 +92,7 @@ const subscribes: { rule: string; topic: string; granted: boolean }[] = [
 
 describe('subscribe rules', () => {
   it.each(subscribes)('a unit subscribing to $rule: granted $granted', async ({ topic, granted }) => {
-    const { c } = await rawConnect(stack.broker.port, A, demoDeviceSecret(A));
+    const { c } = await rawConnect(stack.broker.port, A, testDeviceSecret(A));
     c.send({ cmd: 'subscribe', messageId: 3, subscriptions: [{ topic, qos: 1 }] });
     const suback = await c.next('suback');
     expect(suback.granted).toEqual([granted ? 1 : 128]);
@@ -101,7 +101,7 @@ describe('subscribe rules', () => {
   });
 
   it('delivers a unit its own commands only', async () => {
-    const a = await rawConnect(stack.broker.port, A, demoDeviceSecret(A));
+    const a = await rawConnect(stack.broker.port, A, testDeviceSecret(A));
     a.c.send({ cmd: 'subscribe', messageId: 1, subscriptions: [{ topic: unitTopic(A, 'commands'), qos: 1 }] });
     await a.c.next('suback');
     const publish = (serial: string, id: string) =>
@@ -125,13 +125,13 @@ const wills: { rule: string; topic: string; retain: boolean; accepted: boolean }
 
 describe('will rules', () => {
   it.each(wills)('a CONNECT with a will on $rule: accepted $accepted', async ({ topic, retain, accepted }) => {
-    const { c, connack } = await rawConnect(stack.broker.port, A, demoDeviceSecret(A), { will: { topic, payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain } });
+    const { c, connack } = await rawConnect(stack.broker.port, A, testDeviceSecret(A), { will: { topic, payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain } });
     expect(connack.returnCode).toBe(accepted ? 0 : 5); // 5: not authorized
     c.destroy();
   });
 
   it('publishes the own-status will when the link drops, and the unit shows offline', async () => {
-    const { c } = await rawConnect(stack.broker.port, A, demoDeviceSecret(A), { will: { topic: unitTopic(A, 'status'), payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain: true } });
+    const { c } = await rawConnect(stack.broker.port, A, testDeviceSecret(A), { will: { topic: unitTopic(A, 'status'), payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain: true } });
     c.send(qos1(unitTopic(A, 'status'), status, 2));
     await c.next('puback');
     await waitFor(() => stack.live.get(stack.units.get(A)!.id)?.online === true, 3000, 'online');

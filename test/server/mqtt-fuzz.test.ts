@@ -9,7 +9,7 @@
 import { afterAll, beforeAll, describe, expect, it, onTestFinished } from 'vitest';
 import mqttPacket from 'mqtt-packet';
 import { unitTopic } from '../../shared/contracts/topics';
-import { testDeviceSecret as demoDeviceSecret } from '../helpers/device-secrets';
+import { testDeviceSecret } from '../helpers/device-secrets';
 import type { BrokerCounters } from '../../broker/broker';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 import { startServerProcess, type ServerProcess } from '../helpers/server-process';
@@ -74,8 +74,8 @@ const RAW_CLASSES: { name: string; counter: 'protocolErrors' | 'tooLarge' | 'con
   { name: 'MQTT 5 CONNECT', counter: 'refused.protocol_version', bytes: () => connectBytes({ protocolVersion: 5, properties: {} }) },
   { name: 'wrong secret', counter: 'refused.bad_credentials', bytes: () => connectBytes({ clientId: 'QHL-2402', username: 'QHL-2402', password: Buffer.from('not-the-secret') }) },
   { name: 'unknown serial', counter: 'refused.bad_credentials', bytes: () => connectBytes({ clientId: 'ZZZ-0001', username: 'ZZZ-0001', password: Buffer.from('x') }) },
-  { name: 'own credentials, another unit\'s client id', counter: 'refused.identifier_rejected', bytes: () => connectBytes({ clientId: 'FSC-2401', username: 'QHL-2402', password: Buffer.from(demoDeviceSecret('QHL-2402')) }) },
-  { name: 'own credentials, will on another unit\'s status', counter: 'refused.will_denied', bytes: () => connectBytes({ clientId: 'QHL-2402', username: 'QHL-2402', password: Buffer.from(demoDeviceSecret('QHL-2402')), will: { topic: unitTopic('FSC-2401', 'status'), payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain: true } }) },
+  { name: 'own credentials, another unit\'s client id', counter: 'refused.identifier_rejected', bytes: () => connectBytes({ clientId: 'FSC-2401', username: 'QHL-2402', password: Buffer.from(testDeviceSecret('QHL-2402')) }) },
+  { name: 'own credentials, will on another unit\'s status', counter: 'refused.will_denied', bytes: () => connectBytes({ clientId: 'QHL-2402', username: 'QHL-2402', password: Buffer.from(testDeviceSecret('QHL-2402')), will: { topic: unitTopic('FSC-2401', 'status'), payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain: true } }) },
   { name: 'nothing at all', counter: 'connectTimeouts', bytes: () => null },
 ];
 
@@ -150,7 +150,7 @@ describe('MQTT fuzz', () => {
     onTestFinished(() => { stopGood = true; });
     const goodSent = new Map<string, number>();
     const good = Promise.all(goodUnits.map(async (serial, u) => {
-      const { c, connack } = await rawConnect(port(), serial, demoDeviceSecret(serial));
+      const { c, connack } = await rawConnect(port(), serial, testDeviceSecret(serial));
       expect(connack.returnCode).toBe(0);
       c.keepPubacks = false;
       const t0 = Date.now() - 600_000 + u; // 100 readings a second, 10 ms apart: never ahead of the server clock
@@ -192,7 +192,7 @@ describe('MQTT fuzz', () => {
     await Promise.all(payloadUnits.map(async (serial, u) => {
       const { payloads, leaves, reasons } = badPayloads(perUnit, 1000 + u);
       for (const [k, v] of Object.entries(reasons)) add(expectIngest, k, v);
-      const { c } = await rawConnect(port(), serial, demoDeviceSecret(serial));
+      const { c } = await rawConnect(port(), serial, testDeviceSecret(serial));
       c.keepPubacks = false;
       for (let i = 0; i < payloads.length; i++) {
         c.send(qos1(unitTopic(serial, leaves[i]!), payloads[i]!, (i % 65535) + 1));
@@ -208,7 +208,7 @@ describe('MQTT fuzz', () => {
     const aclPer = n(50);
     await Promise.all(ACL_CASES.map(async (k) => {
       for (let i = 1; i <= aclPer; i++) {
-        const { c, connack } = await rawConnect(port(), k.serial, demoDeviceSecret(k.serial));
+        const { c, connack } = await rawConnect(port(), k.serial, testDeviceSecret(k.serial));
         expect(connack.returnCode).toBe(0);
         c.send(k.packet(k.serial, i));
         await c.closed;
@@ -223,12 +223,12 @@ describe('MQTT fuzz', () => {
     const cycles = n(30);
     await Promise.all(storm.map(async (serial) => {
       for (let i = 0; i < cycles; i++) {
-        const a = await rawConnect(port(), serial, demoDeviceSecret(serial), { will: { topic: unitTopic(serial, 'status'), payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain: true } });
+        const a = await rawConnect(port(), serial, testDeviceSecret(serial), { will: { topic: unitTopic(serial, 'status'), payload: Buffer.from('{"v":1,"online":false}'), qos: 1, retain: true } });
         expect(a.connack.returnCode).toBe(0);
         if (i % 3 === 0) a.c.send({ cmd: 'disconnect' });
         else if (i % 3 === 1) a.c.destroy();
         else {
-          const b: RawClient = (await rawConnect(port(), serial, demoDeviceSecret(serial))).c;
+          const b: RawClient = (await rawConnect(port(), serial, testDeviceSecret(serial))).c;
           await a.c.closed; // taken over
           b.destroy();
           await b.closed;

@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import mqtt from 'mqtt';
 import { unitTopic } from '../../shared/contracts/topics';
-import { testDeviceSecret as demoDeviceSecret } from '../helpers/device-secrets';
+import { testDeviceSecret } from '../helpers/device-secrets';
 import { ensureDevCertificate } from '../../broker/dev-certificate';
 import { startTestStack } from '../helpers/test-stack';
 import { rawSocket } from '../helpers/raw-mqtt';
@@ -30,7 +30,7 @@ describe('MQTT over TLS', () => {
   it('stores a reading from a unit that verified the broker against the development certificate', async () => {
     const serial = 'FSC-2402';
     const u = await mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, {
-      username: serial, password: demoDeviceSecret(serial), clientId: serial, reconnectPeriod: 0,
+      username: serial, password: testDeviceSecret(serial), clientId: serial, reconnectPeriod: 0,
       ca: readFileSync(cert.certPath), rejectUnauthorized: true,
     });
     const ts = Date.now() - 30_000;
@@ -43,7 +43,7 @@ describe('MQTT over TLS', () => {
   it('applies the same credentials and client-id rule as plain MQTT', async () => {
     const opts = { reconnectPeriod: 0, ca: readFileSync(cert.certPath), rejectUnauthorized: true };
     await expect(mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, { ...opts, username: 'FSC-2403', password: 'wrong', clientId: 'FSC-2403' })).rejects.toMatchObject({ code: 4 });
-    await expect(mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, { ...opts, username: 'FSC-2403', password: demoDeviceSecret('FSC-2403'), clientId: 'FSC-2404' })).rejects.toMatchObject({ code: 2 });
+    await expect(mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, { ...opts, username: 'FSC-2403', password: testDeviceSecret('FSC-2403'), clientId: 'FSC-2404' })).rejects.toMatchObject({ code: 2 });
   });
 
   it('does not complete a handshake for a client that does not trust the certificate, and keeps serving', async () => {
