@@ -61,6 +61,8 @@ export interface Stack {
   siteModel: SiteModelService;
   retention: RetentionJob;
   health: HealthService;
+  /** Resolves when the modelled best of every site's last day is cached (the first day of traces opens without waiting). */
+  landscapesWarm: Promise<void>;
   http: Server;
   log: Logger;
   stop(): Promise<void>;
@@ -118,6 +120,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
 
   const siteModel = new SiteModelService(db);
   const landscapes = new LandscapeService(siteModel);
+  const landscapesWarm = landscapes.startWarming(() => [...new Set(directory.all().map((u) => u.siteId))], log);
   const telemetry = new TelemetryRepository(db);
   const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
   const health = new HealthService(new AlarmRepository(db), new HealthReadRepository(db), directory, siteModel, admin, live, log, opts.health);
@@ -229,6 +232,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await new Promise<void>((res) => http.close(() => res()));
       commands!.stop();
       live.stop();
+      landscapes.stopWarming();
       await broker.close();
       await ingest.drain(5000);
       ingest.stop();
@@ -238,5 +242,5 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await rollups.runOnce({ includeOpenMinutes: true }).catch(() => undefined);
       await db.destroy();
     })());
-  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel, retention, health };
+  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel, retention, health, landscapesWarm };
 }

@@ -11,6 +11,7 @@ import { fork } from 'node:child_process';
 import { writeFileSync, mkdirSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
+import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { pino } from 'pino';
 import bcrypt from 'bcryptjs';
 import { loadConfig } from '../config';
@@ -67,12 +68,15 @@ async function main() {
   for (const id of new Set(users.map((u) => u.unitId))) await insertDayOfTelemetry(db, id, dayStart - 60_000);
 
   const base = loadConfig({ ...process.env, BW_LOG_LEVEL: 'silent' });
-  const stack = await startStack({ ...testDb.config, port: 0, broker: { ...base.broker, port: 0 }, db: { ...testDb.config.db, poolMax: 8 } }, pino({ level: 'warn' }));
+  const stack = await startStack({ ...testDb.config, port: 0, signInLimitPerMinute: USERS * 2, broker: { ...base.broker, port: 0 }, db: { ...testDb.config.db, poolMax: 8 } }, pino({ level: 'warn' }));
 
   mkdirSync('.data/bench', { recursive: true });
   const usersFile = '.data/bench/api-users.json';
   writeFileSync(usersFile, JSON.stringify(users.map((u) => ({ email: u.email, password: PASSWORD, unitId: u.unitId, siteId: u.site.id }))));
 
+  const warm0 = Date.now();
+  await stack.landscapesWarm;
+  say(`modelled best of the last day cached for ${SITES} sites in ${((Date.now() - warm0) / 1000).toFixed(1)} s`);
   say(`connecting ${UNITS} units…`);
   const load = fork(fileURLToPath(new URL('./unit-load.ts', import.meta.url)), [String(stack.broker.port), SECRET, ...serials], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
   await new Promise<void>((res, rej) => {
@@ -85,6 +89,9 @@ async function main() {
   const durationS = Number(args.duration);
   say(`${USERS} users for ${durationS} s after ${warmupS} s warm-up, ${UNITS} units reporting once a second…`);
   const cpu0 = process.cpuUsage();
+  // The server's event-loop delay: a stall shows in every route's tail at once.
+  const loopDelay = monitorEventLoopDelay({ resolution: 10 });
+  setTimeout(() => loopDelay.enable(), warmupS * 1000);
   const usersProc = fork(fileURLToPath(new URL('./api-users.ts', import.meta.url)), [stack.url, args.period!, String(warmupS + durationS), usersFile], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
   setTimeout(() => usersProc.send({ type: 'measure' }), warmupS * 1000);
   const result = await new Promise<{ latencies: number[]; socketLags: number[]; errors: string[]; byRoute: Record<string, number[]> }>((res, rej) => {
@@ -92,6 +99,7 @@ async function main() {
     usersProc.once('exit', (code) => code !== 0 && rej(new Error(`users exited with ${code}`)));
   });
   const cpu = process.cpuUsage(cpu0);
+  loopDelay.disable();
   load.send({ type: 'stop' });
   await new Promise((r) => load.once('exit', r));
   await stack.stop();
@@ -101,7 +109,7 @@ async function main() {
     users: USERS, requests: result.latencies.length, p95Ms: pct(result.latencies, 95), p99Ms: pct(result.latencies, 99),
     socketLagP99Ms: pct(result.socketLags, 99), errors: result.errors.length,
   };
-  say({ ...out, p50Ms: pct(result.latencies, 50), socketLagP50Ms: pct(result.socketLags, 50), serverCpuPct: Math.round(((cpu.user + cpu.system) / 1e6 / (warmupS + durationS)) * 100), firstErrors: result.errors.slice(0, 5) });
+  say({ ...out, p50Ms: pct(result.latencies, 50), socketLagP50Ms: pct(result.socketLags, 50), loopDelayP99Ms: Math.round(loopDelay.percentile(99) / 1e6), loopDelayMaxMs: Math.round(loopDelay.max / 1e6), serverCpuPct: Math.round(((cpu.user + cpu.system) / 1e6 / (warmupS + durationS)) * 100), firstErrors: result.errors.slice(0, 5) });
   if (!args.json) console.table(Object.fromEntries(Object.entries(result.byRoute).map(([r, xs]) => [r, { n: xs.length, p50Ms: pct(xs, 50), p95Ms: pct(xs, 95), maxMs: pct(xs, 100) }])));
   if (args.json) console.log(JSON.stringify(out));
 }

@@ -69,7 +69,8 @@ setInterval(() => {
   }
 }, 10);
 
-setInterval(() => process.send?.({ type: 'counts', published, acked }), 200);
+// The parent may be gone (it failed); then this process ends instead of throwing on the closed channel.
+setInterval(() => (process.connected ? process.send?.({ type: 'counts', published, acked }) : process.exit(0)), 200);
 
 process.on('message', (m: { type: string; rate?: number; on?: boolean }) => {
   if (m.type === 'measure') {

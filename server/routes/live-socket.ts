@@ -43,6 +43,20 @@ interface Connection {
   ended: boolean;
 }
 
+/**
+ * The hub hands one message object to every socket that gets it within one synchronous pass (a flush reaches each
+ * fleet dashboard with the same object), so its JSON is made once and reused; entries go with the message.
+ */
+const texts = new WeakMap<LiveServerMessage, string>();
+function serialized(msg: LiveServerMessage): string {
+  let text = texts.get(msg);
+  if (text === undefined) {
+    text = JSON.stringify(msg);
+    texts.set(msg, text);
+  }
+  return text;
+}
+
 const STATUS_TEXT: Record<number, string> = { 400: 'Bad Request', 401: 'Unauthorized', 403: 'Forbidden', 404: 'Not Found', 503: 'Service Unavailable' };
 
 /** Answers an upgrade request with a plain HTTP error in the one error shape, then closes the connection. */
@@ -103,7 +117,7 @@ export function attachLiveSocket(http: Server, auth: AuthService, hub: LiveHub, 
       try {
         // A client that cannot keep up is dropped rather than buffered without bound; it reconnects and gets a snapshot.
         if (ws.bufferedAmount > 4 * 1024 * 1024) return ws.terminate();
-        if (ws.readyState === ws.OPEN) ws.send(JSON.stringify(msg));
+        if (ws.readyState === ws.OPEN) ws.send(serialized(msg));
       } catch (err) {
         if (!sendFailed) log.warn({ err, userId: caller.id }, 'live socket: send failed; dropping the socket');
         sendFailed = true;

@@ -1,4 +1,4 @@
-import { randomBytes } from 'node:crypto';
+import { createSecretKey, randomBytes, type KeyObject } from 'node:crypto';
 import jwt from 'jsonwebtoken';
 import type { Me } from '../../shared/contracts/api';
 import { AppError, badRequest, unauthorized } from '../errors/app-error';
@@ -43,6 +43,8 @@ export const foldEmail = (email: string): string => email.normalize('NFKD').repl
 
 export class AuthService implements SessionRevoker {
   private readonly now: () => number;
+  /** The signing key as a key object: given a string, jsonwebtoken first tries (and fails) to read it as a public key on every call. */
+  private readonly key: KeyObject;
 
   constructor(
     private readonly repo: AuthRepositories,
@@ -52,6 +54,7 @@ export class AuthService implements SessionRevoker {
     private readonly opts: AuthServiceOptions,
   ) {
     this.now = opts.now ?? Date.now;
+    this.key = createSecretKey(Buffer.from(opts.secret, 'utf8'));
   }
 
   /**
@@ -77,7 +80,7 @@ export class AuthService implements SessionRevoker {
     const sessionId = randomBytes(16).toString('hex');
     await this.repo.sessions.insert({ id: sessionId, user_id: row.id, expires_at: new Date(now.getTime() + this.sessionSeconds * 1000) });
     await this.repo.audit.append({ userId: row.id, action: 'sign-in', detail: { address } });
-    const token = jwt.sign({ sub: String(row.id), sid: sessionId }, this.opts.secret, { expiresIn: this.sessionSeconds, algorithm: 'HS256' });
+    const token = jwt.sign({ sub: String(row.id), sid: sessionId }, this.key, { expiresIn: this.sessionSeconds, algorithm: 'HS256' });
     return { me: toMe(row), token };
   }
 
@@ -139,7 +142,7 @@ export class AuthService implements SessionRevoker {
   private claims(token: string | undefined): { sub: number; sid: string } | null {
     if (!token) return null;
     try {
-      const p = jwt.verify(token, this.opts.secret, { algorithms: ['HS256'] });
+      const p = jwt.verify(token, this.key, { algorithms: ['HS256'] });
       if (typeof p !== 'object' || typeof p.sid !== 'string' || !/^[0-9a-f]{32}$/.test(p.sid) || !/^[1-9]\d{0,9}$/.test(String(p.sub))) return null;
       return { sub: Number(p.sub), sid: p.sid };
     } catch {

@@ -5,8 +5,12 @@ import { solarPosition } from '../../shared/solar-position';
 import type { SiteModelService } from './site-model-service';
 import { localDate, utcWindowOfLocalDate } from './local-time';
 import { badRequest } from '../errors/app-error';
+import type { Logger } from 'pino';
 
 const HOUR_MS = 3_600_000;
+const DAY_MS = 24 * HOUR_MS;
+/** The traces' modelled-best overlay is sampled every 15 minutes (trace-service); the warmer fills those slots. */
+const WARM_SLOT_MS = 15 * 60_000;
 const round1 = (x: number) => Math.round(x * 10) / 10;
 
 export interface LandscapeOptions {
@@ -47,9 +51,53 @@ class Lru<V> {
  */
 export class LandscapeService {
   private readonly days = new Lru<Promise<LandscapeDay>>(64);
-  private readonly bests = new Lru<Promise<number>>(2048);
+  /** Room for a warm day (97 slots) of ~200 sites and the odd older request. */
+  private readonly bests = new Lru<Promise<number>>(20_000);
 
-  constructor(private readonly model: SiteModelService) {}
+  private warmTimer: NodeJS.Timeout | undefined;
+  private warming = false;
+  private stopped = false;
+
+  constructor(
+    private readonly model: SiteModelService,
+    private readonly now: () => number = Date.now,
+  ) {}
+
+  /**
+   * Keeps the modelled best of each site warm for the last day in 15-minute slots — the slots a day of traces overlays —
+   * one slot at a time in the background, then each new slot as it comes. Without it the first day of traces opened for
+   * a site computes ~100 landscapes while the user waits. Failures (a site removed meanwhile) are logged and skipped.
+   * Resolves when the first pass (the last day of every site) is done.
+   */
+  startWarming(siteIds: () => readonly number[], log: Logger): Promise<void> {
+    const run = async () => {
+      if (this.warming || this.stopped) return;
+      this.warming = true;
+      try {
+        const now = this.now();
+        for (const siteId of siteIds()) {
+          for (let t = Math.ceil((now - DAY_MS) / WARM_SLOT_MS) * WARM_SLOT_MS; t <= now && !this.stopped; t += WARM_SLOT_MS) {
+            try {
+              await this.bestWm2(siteId, t);
+            } catch (err) {
+              log.warn({ err, siteId }, 'modelled best of a site could not be computed; skipped');
+              break;
+            }
+          }
+        }
+      } finally {
+        this.warming = false;
+      }
+    };
+    this.warmTimer = setInterval(() => void run(), WARM_SLOT_MS);
+    this.warmTimer.unref();
+    return run();
+  }
+
+  stopWarming(): void {
+    this.stopped = true;
+    clearInterval(this.warmTimer);
+  }
 
   async landscape(site: Site, atMs: number, o: LandscapeOptions): Promise<SiteLandscape> {
     const resolved = await this.model.skyAt(site.id, atMs);
@@ -92,7 +140,10 @@ export class LandscapeService {
     const key = `${siteId}|${slot}`;
     let p = this.bests.get(key);
     if (!p) {
-      p = this.model.skyAt(siteId, slot).then(({ sky }) => {
+      // A turn for other requests first: callers ask for many slots in a row (a day of traces), each tens of ms of CPU.
+      p = new Promise<void>((r) => setImmediate(r)).then(() => this.model.skyAt(siteId, slot)).then(({ sky }) => {
+        // A dark sky (night, no lamps) lights no orientation: skip the grid.
+        if (!sky.ghiWm2 && !sky.dhiWm2 && !sky.dniWm2 && !sky.pointSources.length) return 0;
         const l = computeLandscape(sky, { stepDeg: 3 });
         let best = 0;
         for (const v of l.values) if (v > best) best = v;

@@ -114,13 +114,15 @@ export class LiveHub {
   publishCommand(command: CommandView): void {
     const unit = this.units.byUnitId(command.unitId);
     if (!unit) return;
-    for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'command', command });
+    const msg: LiveServerMessage = { type: 'command', command };
+    for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send(msg);
   }
 
   publishAlarm(unitId: number, alarm: AlarmLiveItem): void {
     const unit = this.units.byUnitId(unitId);
     if (!unit) return;
-    for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send({ type: 'alarm', alarm });
+    const msg: LiveServerMessage = { type: 'alarm', alarm };
+    for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send(msg);
   }
 
   connect(caller: Caller, send: (msg: LiveServerMessage) => void): LiveSession {
@@ -184,9 +186,18 @@ export class LiveHub {
       due.push({ unit, state });
     }
     if (!due.length) return;
+    // Fleet subscribers of one scope (every unit, or one owner's) get the same message object, so it is built, and
+    // serialized by the socket layer, once per flush rather than once per dashboard.
+    const byScope = new Map<string, LiveServerMessage | null>();
     for (const sub of this.subscribers) {
-      const units = due.filter((d) => this.watches(sub, d.unit)).map((d) => d.state);
-      if (units.length) sub.send({ type: 'units', units });
+      const scope = sub.fleet ? (sub.caller.role === 'owner' ? `owner:${sub.caller.ownerId}` : 'all') : undefined;
+      let msg = scope === undefined ? undefined : byScope.get(scope);
+      if (msg === undefined) {
+        const units = due.filter((d) => this.watches(sub, d.unit)).map((d) => d.state);
+        msg = units.length ? { type: 'units', units } : null;
+        if (scope !== undefined) byScope.set(scope, msg);
+      }
+      if (msg) sub.send(msg);
     }
   }
 

@@ -152,7 +152,10 @@ export class TraceService {
     const t: number[] = [];
     for (let x = first; x < to.getTime(); x += step) t.push(x);
     try {
-      const wm2 = await Promise.all(t.map((x) => this.best!(siteId, x)));
+      // One slot after another: a cold day is ~100 landscapes, and asking for all at once would queue every other
+      // request behind them for the event loop and the connection pool.
+      const wm2: number[] = [];
+      for (const x of t) wm2.push(await this.best(siteId, x));
       return { t, wm2 };
     } catch {
       return { t: [], wm2: [] };
