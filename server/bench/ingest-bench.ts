@@ -12,14 +12,12 @@ import { fork, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
 import { pino } from 'pino';
-import WebSocket from 'ws';
 import request from 'supertest';
 import bcrypt from 'bcryptjs';
 import { loadConfig } from '../config';
 import { startStack } from '../stack';
 import { createTestDatabase } from '../../test/helpers/test-db';
 import { hashDeviceSecret } from '../services/device-secret';
-import type { LiveServerMessage } from '../../shared/contracts/live';
 
 const { values: args } = parseArgs({
   options: {
@@ -77,19 +75,17 @@ async function main() {
     },
   );
 
-  // A browser-like socket watching the whole fleet.
+  // A browser-like socket watching the whole fleet, in its own process (socket-watcher.ts).
   const signIn = await request(stack.http).post('/api/auth/sign-in').send({ email: 'bench@bench.example', password: 'bench-password' });
   const cookie = String(signIn.headers['set-cookie']).split(';')[0]!;
-  const socketLags: number[] = [];
-  const ws = new WebSocket(`${stack.url.replace('http', 'ws')}/ws`, { headers: { Cookie: cookie } });
-  await new Promise((r) => ws.once('open', r));
-  ws.on('message', (d) => {
-    if (!measuring) return;
-    const now = Date.now();
-    const m = JSON.parse(String(d)) as LiveServerMessage;
-    if (m.type === 'units') for (const u of m.units) if (u.lastReportAt) socketLags.push(now - Date.parse(u.lastReportAt));
+  const watcher = fork(fileURLToPath(new URL('./socket-watcher.ts', import.meta.url)), [`${stack.url.replace('http', 'ws')}/ws`, cookie], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
+  let socketLags: number[] = [];
+  let socketLagsReady: ((lags: number[]) => void) | undefined;
+  watcher.on('message', (m: { type: string; lags?: number[] }) => m.type === 'socketLags' && socketLagsReady?.(m.lags!));
+  await new Promise<void>((res, rej) => {
+    watcher.on('message', (m: { type: string }) => m.type === 'ready' && res());
+    watcher.once('exit', (code) => rej(new Error(`socket watcher exited with ${code}`)));
   });
-  ws.send(JSON.stringify({ type: 'subscribe', fleet: true }));
 
   // Load processes, each with its share of the units.
   const children: { proc: ChildProcess; published: number; acked: number; ackLags?: (lags: number[]) => void }[] = [];
@@ -122,14 +118,15 @@ async function main() {
     for (const c of children) c.proc.send({ type: 'rate', rate: rate / PROCS });
     await sleep(WARMUP_S);
     commitLags.length = 0;
-    socketLags.length = 0;
     const c0 = committed;
     const backlog0 = published() - committed;
     const cpu0 = cpuOf();
     measuring = true;
     for (const c of children) c.proc.send({ type: 'measure', on: true });
+    watcher.send({ type: 'measure', on: true });
     await sleep(WINDOW_S);
     measuring = false;
+    socketLags = await new Promise<number[]>((res) => { socketLagsReady = res; watcher.send({ type: 'measure', on: false }); });
     const ackLags = (await Promise.all(children.map((c) => new Promise<number[]>((res) => { c.ackLags = res; c.proc.send({ type: 'measure', on: false }); })))).flat();
     const cpu = cpuOf();
     const committedRate = (committed - c0) / WINDOW_S;
@@ -153,7 +150,7 @@ async function main() {
   const acked = children.reduce((s, c) => s + c.acked, 0);
   const total = published();
   const [{ rows }] = (await db('telemetry').count({ rows: '*' })) as [{ rows: number }];
-  ws.close();
+  watcher.kill();
   await stack.stop();
   await testDb.drop();
 
