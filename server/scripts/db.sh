@@ -53,7 +53,7 @@ start() {
     fi
     "$(bin mariadbd)" --no-defaults --datadir="$DATA" --user=root --bind-address=127.0.0.1 --port="$PORT" \
       --socket="$SOCK" --pid-file="$PIDF" --log-error="$LOG" --skip-name-resolve \
-      --innodb-buffer-pool-size=256M \
+      --innodb-buffer-pool-size=1G --innodb-log-file-size=512M \
       --character-set-server=utf8mb4 --collation-server=utf8mb4_unicode_ci >/dev/null 2>&1 &
     for _ in $(seq 1 300); do
       "$(bin mariadb-admin)" --no-defaults --protocol=socket --socket="$SOCK" -uroot ping >/dev/null 2>&1 && break
