@@ -171,7 +171,10 @@ async function main() {
     steps,
   };
   if (args.json) console.log(JSON.stringify(result));
-  else console.table(steps), console.log(result);
+  else {
+    console.table(steps);
+    console.log(result);
+  }
 }
 
 main().catch((err) => {

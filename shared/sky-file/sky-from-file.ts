@@ -33,7 +33,7 @@ export function resolveSkyFile(file: SkyFile): ResolvedSky {
   let sunAz: number | null = null;
   let sunEl = 0;
   let sunSource: ResolvedSky['sunSource'] = 'none';
-  let unixMs: number | null = file.time ? parseInstant(file.time).unixMs : null;
+  const unixMs: number | null = file.time ? parseInstant(file.time).unixMs : null;
   if (file.sun) {
     sunAz = file.sun.azimuthDeg;
     sunEl = file.sun.elevationDeg;
