@@ -1,6 +1,6 @@
 import type { Db } from './db';
 import type { CommandStatus, CommandView } from '../../shared/contracts/live';
-import type { CommandKind } from '../../shared/contracts/wire';
+import type { CommandKind } from '../../shared/contracts/wire-format';
 import { AuditRepository } from './audit-repository';
 import { HoldRepository } from './hold-repository';
 
