@@ -5,9 +5,6 @@
  */
 import { z } from 'zod';
 
-export const SEVERITIES = ['P1', 'P2', 'P3', 'P4'] as const;
-export type Severity = (typeof SEVERITIES)[number];
-
 export interface HealthSettings {
   // ---- daylight gating
   /** Production checks run only while the modelled best orientation of the site gets at least this [W/m²] (common practice: 50–100). */
