@@ -3,6 +3,7 @@
  * it reads the site's conditions, moves, and queues the messages a field unit would send (telemetry, events, acks,
  * weather). It never touches the network; whoever carries its messages reports whether its link is up.
  */
+import { MODULE_POWER_TEMP_COEFF_PER_K as TEMP_COEFF_PER_K } from '../shared/contracts/pv-module';
 import type { Command, CommandAck, Telemetry, UnitConfig, UnitEvent, Weather } from '../shared/contracts/wire';
 import { MOTION_COMMANDS, WIRE_RANGES as R, WIRE_VERSION, type UnitMode } from '../shared/contracts/wire-format';
 import { atTarget, clamp, createAxis, setTarget, stepAxis, type AxisSpec, type AxisState } from './actuator';
@@ -53,7 +54,6 @@ export const DEFAULT_TILT_AXIS: AxisSpec = { minDeg: 0, maxDeg: 85, speedDegS: 4
 export const DEFAULT_AZIMUTH_AXIS: AxisSpec = { minDeg: 0, maxDeg: 360, speedDegS: 4, backlashDeg: 0.4 };
 const SETTLE_AFTER_S = 30;
 const STALL_AFTER_S = 20;
-const TEMP_COEFF_PER_K = -0.0037; // crystalline silicon, common practice
 const NOCT_RISE_K_PER_WM2 = (45 - 20) / 800; // NOCT 45 °C model, common practice
 const STOW_TILT_DEG = 0;
 
