@@ -3,7 +3,7 @@ import type { Logger } from 'pino';
 import type { CommandView, IssueCommandRequest } from '../../shared/contracts/live';
 import type { HoldView, UnitHolds } from '../../shared/contracts/holds';
 import type { Command, CommandAck } from '../../shared/contracts/wire';
-import { MOTION_COMMANDS, WIRE_VERSION, type CommandKind } from '../../shared/contracts/wire-format';
+import { HOLD_COMMANDS as HOLD_KINDS, MOTION_COMMANDS, WIRE_VERSION, type CommandKind } from '../../shared/contracts/wire-format';
 import { AppError, badRequest, forbidden, notFound } from '../errors/app-error';
 import type { CommandRow, CommandStore, CommandTx } from '../data/command-repository';
 import type { Caller } from './caller';
@@ -30,7 +30,6 @@ export const COMMANDING_ROLES: readonly Caller['role'][] = ['admin', 'engineer',
  * Hold and release-hold carry the state the unit must end up in: they wait in the queue for as long as the unit is
  * offline instead of expiring (the hold is in force on the server meanwhile).
  */
-const HOLD_KINDS: readonly CommandKind[] = ['hold', 'release-hold'];
 const expires = (kind: CommandKind) => !HOLD_KINDS.includes(kind);
 
 /**

@@ -23,6 +23,8 @@ export const COMMAND_KINDS = ['scan', 'goto', 'stow', 'release-stow', 'hold', 'r
 export type CommandKind = (typeof COMMAND_KINDS)[number];
 /** Commands that move the structure: refused while a unit is on maintenance hold. */
 export const MOTION_COMMANDS: readonly CommandKind[] = ['scan', 'goto', 'stow', 'release-stow'];
+/** Commands that place or release a maintenance hold. */
+export const HOLD_COMMANDS: readonly CommandKind[] = ['hold', 'release-hold'];
 
 /**
  * The inclusive [min, max] each payload field may take; the schemas refuse anything outside, and a unit clamps its
