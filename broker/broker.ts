@@ -2,7 +2,7 @@ import { Aedes, type AuthenticateError, type Client, type ConnectPacket, type Pu
 import { createServer, type Server, type Socket } from 'node:net';
 import { createServer as createTlsServer, type Server as TlsServer } from 'node:tls';
 import type { AddressInfo } from 'node:net';
-import { MAX_PAYLOAD_BYTES } from '../shared/contracts/wire';
+import { MAX_PAYLOAD_BYTES } from '../shared/contracts/wire-format';
 import { UNIT_PUBLISH_LEAVES, type UnitPublishLeaf } from '../shared/contracts/topics';
 
 /** A field unit, confined to its own topic prefix. */

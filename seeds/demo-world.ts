@@ -1,7 +1,7 @@
 import bcrypt from 'bcryptjs';
 import type { Knex } from 'knex';
 import { hashDeviceSecret, newDeviceSecret } from '../server/services/device-secret';
-import type { SiteSurvey } from '../shared/contracts/api';
+import type { SiteSurvey } from '../shared/contracts/survey';
 import { CITY_HORIZON, FACADES } from '../simulator/scenarios/glass-facade';
 import { COURTYARD_HORIZON } from '../simulator/scenarios/urban-canyon';
 import { ATRIUM_LAMPS, ATRIUM_WALL_DEG } from '../simulator/scenarios/atrium-lamps';

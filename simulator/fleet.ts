@@ -4,6 +4,7 @@
  * `command()`, the transport state with `setTransport()`. Ground truth (injected faults and observed traps and wind stows)
  * and baseline energies are available in memory; the CLI writes them to files.
  */
+import { MODULE_POWER_TEMP_COEFF_PER_K as TEMP_COEFF_PER_K } from '../shared/contracts/pv-module';
 import type { Command } from '../shared/contracts/wire';
 import { isoUtc } from './clock';
 import { FAULT_KINDS, FAULT_MEAN_HOURS, type ActiveFault, type FaultKind, type FaultPlan, type TruthKind, type TruthRecord } from './faults';
@@ -90,7 +91,6 @@ export function trapConditionHolds(x: { settled: boolean; otherFault: boolean; p
 }
 const TRAP_OPEN_S = 600;
 const TRAP_CLOSE_S = 120;
-const TEMP_COEFF_PER_K = -0.0037;
 const NOCT_RISE_K_PER_WM2 = 25 / 800;
 
 interface SiteRun {

@@ -6,6 +6,7 @@
  */
 import { createWriteStream, readFileSync, type WriteStream } from 'node:fs';
 import { parseArgs } from 'node:util';
+import { WIRE_RANGES } from '../shared/contracts/wire-format';
 import { parseInstant } from '../shared/solar-position';
 import { acceleratedClock, isoUtc, wallClock } from './clock';
 import { DEMO_SCENARIO_BY_SITE, demoFleetSites, demoSiteInfo } from './demo-fleet';
@@ -94,13 +95,13 @@ export function parseOptions(argv: string[], env: NodeJS.ProcessEnv = process.en
     site,
     units: num('units', values.units, 6, 1, 100_000),
     prefix: values.prefix ?? 'SIM',
-    detectorTilt: num('detector-tilt', values['detector-tilt'], 20, 0.5, 45),
+    detectorTilt: num('detector-tilt', values['detector-tilt'], 20, ...WIRE_RANGES.detectorTiltDeg),
     secrets: values.secrets,
     seed: values.seed ?? '1',
     speed: num('speed', values.speed, 1, 0.01, 100_000),
     start: values.start,
     duration: values.duration === undefined ? undefined : num('duration', values.duration, 0, 1, 1e9),
-    reportInterval: num('report-interval', values['report-interval'], 5, 1, 3600),
+    reportInterval: num('report-interval', values['report-interval'], 5, ...WIRE_RANGES.reportIntervalS),
     faults: values.faults ? parseFaultPlan(values.faults) : {},
     truth: values.truth,
     baseline: values.baseline,

@@ -5,7 +5,8 @@
  * otherwise they stay in (or go back to) the unit's store-and-forward outbox, so nothing is queued inside mqtt.js.
  */
 import mqtt, { type MqttClient } from 'mqtt';
-import { commandSchema, MAX_PAYLOAD_BYTES } from '../shared/contracts/wire';
+import { commandSchema } from '../shared/contracts/wire';
+import { MAX_PAYLOAD_BYTES, WIRE_VERSION } from '../shared/contracts/wire-format';
 import { unitTopic } from '../shared/contracts/topics';
 import { isoUtc } from './clock';
 import type { Fleet } from './fleet';
@@ -54,11 +55,11 @@ export function createPublisher(fleet: Fleet, opts: PublisherOptions): Publisher
       reconnectPeriod: opts.reconnectPeriodMs ?? 2000,
       connectTimeout: 10_000,
       queueQoSZero: false,
-      will: { topic: statusTopic, payload: Buffer.from(JSON.stringify({ v: 1, online: false })), qos: 1, retain: true },
+      will: { topic: statusTopic, payload: Buffer.from(JSON.stringify({ v: WIRE_VERSION, online: false })), qos: 1, retain: true },
     });
     c.on('connect', () => {
       fleet.setTransport(serial, true);
-      c.publish(statusTopic, JSON.stringify({ v: 1, online: true, ts: isoUtc(opts.now()), firmware: unit.firmware }), { qos: 1, retain: true });
+      c.publish(statusTopic, JSON.stringify({ v: WIRE_VERSION, online: true, ts: isoUtc(opts.now()), firmware: unit.firmware }), { qos: 1, retain: true });
       c.subscribe(unitTopic(serial, 'commands'), { qos: 1 });
     });
     c.on('close', () => fleet.setTransport(serial, false));
@@ -142,7 +143,7 @@ export function createPublisher(fleet: Fleet, opts: PublisherOptions): Publisher
       await Promise.all(
         [...clients.entries()].map(async ([serial, c]) => {
           if (c.connected) {
-            await within(c.publishAsync(unitTopic(serial, 'status'), JSON.stringify({ v: 1, online: false, ts: isoUtc(opts.now()) }), { qos: 1, retain: true }).catch(() => {}), 2000);
+            await within(c.publishAsync(unitTopic(serial, 'status'), JSON.stringify({ v: WIRE_VERSION, online: false, ts: isoUtc(opts.now()) }), { qos: 1, retain: true }).catch(() => {}), 2000);
             await within(c.endAsync().catch(() => {}), 2000);
           }
           c.end(true); // no-op when already ended; stops reconnect attempts otherwise

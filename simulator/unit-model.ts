@@ -3,7 +3,9 @@
  * it reads the site's conditions, moves, and queues the messages a field unit would send (telemetry, events, acks,
  * weather). It never touches the network; whoever carries its messages reports whether its link is up.
  */
-import type { Command, CommandAck, Telemetry, UnitConfig, UnitEvent, UnitMode, Weather } from '../shared/contracts/wire';
+import { MODULE_POWER_TEMP_COEFF_PER_K as TEMP_COEFF_PER_K } from '../shared/contracts/pv-module';
+import type { Command, CommandAck, Telemetry, UnitConfig, UnitEvent, Weather } from '../shared/contracts/wire';
+import { MOTION_COMMANDS, WIRE_RANGES as R, WIRE_VERSION, type UnitMode } from '../shared/contracts/wire-format';
 import { atTarget, clamp, createAxis, setTarget, stepAxis, type AxisSpec, type AxisState } from './actuator';
 import { isoUtc } from './clock';
 import { controlStep, DEFAULT_CONTROLLER, type ControllerConfig } from './controller';
@@ -52,7 +54,6 @@ export const DEFAULT_TILT_AXIS: AxisSpec = { minDeg: 0, maxDeg: 85, speedDegS: 4
 export const DEFAULT_AZIMUTH_AXIS: AxisSpec = { minDeg: 0, maxDeg: 360, speedDegS: 4, backlashDeg: 0.4 };
 const SETTLE_AFTER_S = 30;
 const STALL_AFTER_S = 20;
-const TEMP_COEFF_PER_K = -0.0037; // crystalline silicon, common practice
 const NOCT_RISE_K_PER_WM2 = (45 - 20) / 800; // NOCT 45 °C model, common practice
 const STOW_TILT_DEG = 0;
 
@@ -216,7 +217,7 @@ export class VirtualUnit {
       this.outbox.push({
         serial: this.serial,
         leaf: 'weather',
-        payload: { v: 1, ts: isoUtc(now), ghiWm2: r1(clamp(w.ghiWm2, 0, 1600)), dhiWm2: r1(clamp(w.dhiWm2, 0, 1000)), airTempC: r1(w.airTempC), windMs: r1(w.windMs), gustMs: r1(w.gustMs) },
+        payload: { v: WIRE_VERSION, ts: isoUtc(now), ghiWm2: r1(clamp(w.ghiWm2, ...R.ghiWm2)), dhiWm2: r1(clamp(w.dhiWm2, ...R.dhiWm2)), airTempC: r1(w.airTempC), windMs: r1(w.windMs), gustMs: r1(w.gustMs) },
       });
     }
   }
@@ -224,7 +225,7 @@ export class VirtualUnit {
   /** Takes a command from the server; answers with acks in the outbox. */
   handleCommand(cmd: Command, nowMs: number): void {
     const id = cmd.commandId;
-    const motion = cmd.kind === 'scan' || cmd.kind === 'goto' || cmd.kind === 'stow' || cmd.kind === 'release-stow';
+    const motion = MOTION_COMMANDS.includes(cmd.kind);
     if (motion && this.held) return this.ack(nowMs, id, 'rejected', 'unit is on maintenance hold');
     if (motion && this.faultCode !== null) return this.ack(nowMs, id, 'rejected', `unit is in fault: ${this.faultCode}`);
     switch (cmd.kind) {
@@ -527,22 +528,22 @@ export class VirtualUnit {
 
   private report(now: number, r: Readings): void {
     const payload: Telemetry = {
-      v: 1,
+      v: WIRE_VERSION,
       seq: this.seq++,
       ts: isoUtc(now),
-      tiltPlusWm2: r1(clamp(r.tiltPlusWm2, -50, 5000)),
-      tiltMinusWm2: r1(clamp(r.tiltMinusWm2, -50, 5000)),
-      azimuthPlusWm2: r1(clamp(r.azimuthPlusWm2, -50, 5000)),
-      azimuthMinusWm2: r1(clamp(r.azimuthMinusWm2, -50, 5000)),
-      poaWm2: r1(clamp(r.poaWm2, -50, 5000)),
-      tiltDeg: r2(clamp(this.tilt.encoderDeg, -5, 95)),
-      azimuthDeg: r2(clamp(this.azimuth.encoderDeg, -360, 720)),
-      cmdTiltDeg: r2(clamp(this.tilt.targetDeg, -5, 95)),
-      cmdAzimuthDeg: r2(clamp(this.azimuth.targetDeg, -360, 720)),
+      tiltPlusWm2: r1(clamp(r.tiltPlusWm2, ...R.irradianceWm2)),
+      tiltMinusWm2: r1(clamp(r.tiltMinusWm2, ...R.irradianceWm2)),
+      azimuthPlusWm2: r1(clamp(r.azimuthPlusWm2, ...R.irradianceWm2)),
+      azimuthMinusWm2: r1(clamp(r.azimuthMinusWm2, ...R.irradianceWm2)),
+      poaWm2: r1(clamp(r.poaWm2, ...R.irradianceWm2)),
+      tiltDeg: r2(clamp(this.tilt.encoderDeg, ...R.tiltDeg)),
+      azimuthDeg: r2(clamp(this.azimuth.encoderDeg, ...R.azimuthDeg)),
+      cmdTiltDeg: r2(clamp(this.tilt.targetDeg, ...R.tiltDeg)),
+      cmdAzimuthDeg: r2(clamp(this.azimuth.targetDeg, ...R.azimuthDeg)),
       tiltMotorA: r2(this.tilt.currentA),
       azimuthMotorA: r2(this.azimuth.currentA),
       dcPowerW: r1(this.lastDcW),
-      moduleTempC: r1(clamp(this.lastModuleTempC, -60, 120)),
+      moduleTempC: r1(clamp(this.lastModuleTempC, ...R.moduleTempC)),
       mode: this.mode,
       firmware: this.firmware,
     };
@@ -550,11 +551,11 @@ export class VirtualUnit {
   }
 
   private event(now: number, e: Omit<UnitEvent, 'v' | 'ts'>): void {
-    this.outbox.push({ serial: this.serial, leaf: 'events', payload: { v: 1, ts: isoUtc(now), ...e } });
+    this.outbox.push({ serial: this.serial, leaf: 'events', payload: { v: WIRE_VERSION, ts: isoUtc(now), ...e } });
   }
 
   private ack(now: number, commandId: string, result: CommandAck['result'], reason?: string): void {
-    this.outbox.push({ serial: this.serial, leaf: 'acks', payload: { v: 1, commandId, ts: isoUtc(now), result, ...(reason ? { reason } : {}) } });
+    this.outbox.push({ serial: this.serial, leaf: 'acks', payload: { v: WIRE_VERSION, commandId, ts: isoUtc(now), result, ...(reason ? { reason } : {}) } });
   }
 }
 

@@ -1,6 +1,6 @@
 import type { Db } from './db';
 import type { CommandStatus, CommandView } from '../../shared/contracts/live';
-import type { CommandKind } from '../../shared/contracts/wire';
+import { HOLD_COMMANDS, type CommandKind } from '../../shared/contracts/wire-format';
 import { AuditRepository } from './audit-repository';
 import { HoldRepository } from './hold-repository';
 
@@ -73,7 +73,7 @@ export class CommandRepository {
    * order. Requests that changed nothing on the unit (a second hold, a release with other holds left) are not among them.
    */
   lastHoldDelivery(unitId: number): Promise<CommandRow | undefined> {
-    return this.db<CommandRow>('commands').where({ unit_id: unitId }).whereIn('kind', ['hold', 'release-hold'])
+    return this.db<CommandRow>('commands').where({ unit_id: unitId }).whereIn('kind', HOLD_COMMANDS)
       .andWhere((q) => q.where('status', 'queued').orWhereNotNull('sent_at'))
       .orderBy([{ column: 'issued_at', order: 'desc' }, { column: 'seq', order: 'desc' }]).first();
   }

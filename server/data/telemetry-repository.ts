@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import type { Db } from './db';
+import { TRACE_EXTREMES } from './trace-columns';
 
 /** A validated telemetry row as stored (UTC `Date`s). */
 export interface TelemetryRow {
@@ -33,13 +34,6 @@ export interface WeatherRow { site_id: number; ts: Date; ghi_wm2: number; dhi_wm
 
 const MINUTE_MS = 60_000;
 
-/** Column stem in `telemetry_1m` and the expression over a raw row, for each quantity whose per-minute extremes are kept. */
-const EXTREMES: [string, string][] = [
-  ['tilt_plus_wm2', 'tilt_plus_wm2'], ['tilt_minus_wm2', 'tilt_minus_wm2'], ['azimuth_plus_wm2', 'azimuth_plus_wm2'],
-  ['azimuth_minus_wm2', 'azimuth_minus_wm2'], ['tilt_diff_wm2', 'tilt_plus_wm2 - tilt_minus_wm2'],
-  ['azimuth_diff_wm2', 'azimuth_plus_wm2 - azimuth_minus_wm2'], ['tilt_deg', 'tilt_deg'], ['cmd_tilt_deg', 'cmd_tilt_deg'],
-  ['azimuth_deg', 'azimuth_deg'], ['cmd_azimuth_deg', 'cmd_azimuth_deg'], ['poa_wm2', 'poa_wm2'], ['dc_power_w', 'dc_power_w'],
-];
 const QUARTER_MS = 15 * MINUTE_MS;
 
 /** Identity of a telemetry row (its primary key), as the ingest compares rows. */
@@ -111,12 +105,12 @@ export class TelemetryRepository {
   /** Recomputes the 1-minute rollup of every minute in [from, to) for the given units (also used to rebuild rollups). */
   async rollupMinuteRange(unitIds: number[], from: Date, to: Date): Promise<void> {
     if (!unitIds.length) return;
-    const sets = ['samples', 'poa_avg_wm2', 'poa_max_wm2', 'dc_power_avg_w', 'energy_wh', 'tilt_avg_deg', 'azimuth_avg_deg', 'module_temp_avg_c', ...EXTREMES.flatMap(([c]) => [`${c}_min`, `${c}_max`])];
+    const sets = ['samples', 'poa_avg_wm2', 'poa_max_wm2', 'dc_power_avg_w', 'energy_wh', 'tilt_avg_deg', 'azimuth_avg_deg', 'module_temp_avg_c', ...TRACE_EXTREMES.flatMap(([c]) => [`${c}_min`, `${c}_max`])];
     await this.db.raw(
       `INSERT INTO telemetry_1m (unit_id, bucket, ${sets.join(', ')})
        SELECT unit_id, FROM_UNIXTIME(FLOOR(UNIX_TIMESTAMP(ts) / 60) * 60) AS minute, COUNT(*), AVG(poa_wm2), MAX(poa_wm2), AVG(dc_power_w), AVG(dc_power_w) / 60,
               AVG(tilt_deg), MOD(DEGREES(ATAN2(AVG(SIN(RADIANS(azimuth_deg))), AVG(COS(RADIANS(azimuth_deg))))) + 360, 360), AVG(module_temp_c),
-              ${EXTREMES.map(([, expr]) => `MIN(${expr}), MAX(${expr})`).join(', ')}
+              ${TRACE_EXTREMES.map(([, expr]) => `MIN(${expr}), MAX(${expr})`).join(', ')}
        FROM telemetry WHERE unit_id IN (${unitIds.map(() => '?').join(',')}) AND ts >= ? AND ts < ? GROUP BY unit_id, minute
        ON DUPLICATE KEY UPDATE ${sets.map((c) => `${c} = VALUES(${c})`).join(', ')}`,
       [...unitIds, from, to],

@@ -1,38 +1,7 @@
 import type { Db } from './db';
 import type { TelemetryRow } from './telemetry-repository';
 import type { TraceQuantity } from '../../shared/contracts/traces';
-
-/** SQL expression of each trace quantity over a `telemetry` row. */
-const QUANTITY_SQL: Record<TraceQuantity, string> = {
-  tiltPlusWm2: 'tilt_plus_wm2',
-  tiltMinusWm2: 'tilt_minus_wm2',
-  azimuthPlusWm2: 'azimuth_plus_wm2',
-  azimuthMinusWm2: 'azimuth_minus_wm2',
-  tiltDiffWm2: 'tilt_plus_wm2 - tilt_minus_wm2',
-  azimuthDiffWm2: 'azimuth_plus_wm2 - azimuth_minus_wm2',
-  tiltDeg: 'tilt_deg',
-  cmdTiltDeg: 'cmd_tilt_deg',
-  azimuthDeg: 'azimuth_deg',
-  cmdAzimuthDeg: 'cmd_azimuth_deg',
-  poaWm2: 'poa_wm2',
-  dcPowerW: 'dc_power_w',
-};
-
-/** Column stem of each quantity's per-minute extremes in `telemetry_1m` (`<stem>_min`, `<stem>_max`). */
-const MINUTE_STEM: Record<TraceQuantity, string> = {
-  tiltPlusWm2: 'tilt_plus_wm2',
-  tiltMinusWm2: 'tilt_minus_wm2',
-  azimuthPlusWm2: 'azimuth_plus_wm2',
-  azimuthMinusWm2: 'azimuth_minus_wm2',
-  tiltDiffWm2: 'tilt_diff_wm2',
-  azimuthDiffWm2: 'azimuth_diff_wm2',
-  tiltDeg: 'tilt_deg',
-  cmdTiltDeg: 'cmd_tilt_deg',
-  azimuthDeg: 'azimuth_deg',
-  cmdAzimuthDeg: 'cmd_azimuth_deg',
-  poaWm2: 'poa_wm2',
-  dcPowerW: 'dc_power_w',
-};
+import { traceColumn, traceSql } from './trace-columns';
 
 /** One bucket as the database returns it: `b` index, `n` samples, then `<q>_lo` / `<q>_hi` per quantity. */
 export type BucketRow = { b: number; n: number } & Record<string, number | null>;
@@ -56,7 +25,7 @@ export class TraceRepository {
    * `parts` bucket-aligned slices queried at once, so the database can use more than one core.
    */
   async buckets(unitId: number, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[], parts = 1, origin: Date = from): Promise<BucketRow[]> {
-    const aggregates = quantities.map((q) => `MIN(${QUANTITY_SQL[q]}) AS \`${q}_lo\`, MAX(${QUANTITY_SQL[q]}) AS \`${q}_hi\``).join(', ');
+    const aggregates = quantities.map((q) => `MIN(${traceSql(q)}) AS \`${q}_lo\`, MAX(${traceSql(q)}) AS \`${q}_hi\``).join(', ');
     const sql = `SELECT TIMESTAMPDIFF(SECOND, ?, ts) DIV ? AS b, COUNT(*) AS n, ${aggregates}
        FROM telemetry WHERE unit_id = ? AND ts >= ? AND ts < ?
        GROUP BY b ORDER BY b`;
@@ -83,7 +52,7 @@ export class TraceRepository {
    * a month is 43,200 rows instead of half a million.
    */
   async bucketsFromMinutes(unitId: number, origin: Date, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[]): Promise<BucketRow[]> {
-    const aggregates = quantities.map((q) => `MIN(${MINUTE_STEM[q]}_min) AS \`${q}_lo\`, MAX(${MINUTE_STEM[q]}_max) AS \`${q}_hi\``).join(', ');
+    const aggregates = quantities.map((q) => `MIN(${traceColumn(q)}_min) AS \`${q}_lo\`, MAX(${traceColumn(q)}_max) AS \`${q}_hi\``).join(', ');
     const [rows] = (await this.db.raw(
       `SELECT TIMESTAMPDIFF(SECOND, ?, bucket) DIV ? AS b, SUM(samples) AS n, ${aggregates}
        FROM telemetry_1m WHERE unit_id = ? AND bucket >= ? AND bucket < ? GROUP BY b ORDER BY b`,

@@ -11,7 +11,8 @@
  *  - suppression: a suppressed subject (its site is dark) raises nothing; its pending delays are kept.
  * Times come from the caller (telemetry timestamps or the engine clock), never from the wall clock.
  */
-import type { Alarm, AlarmDetail, AlarmKind, AlarmSubject } from './alarm-types';
+import type { AlarmKind } from '../../shared/contracts/alarms';
+import type { Alarm, AlarmDetail, AlarmSubject } from './alarm-types';
 
 export interface AlarmTiming {
   delayOnMs: number;

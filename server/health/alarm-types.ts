@@ -1,8 +1,5 @@
 /** What the health engine raises: alarm kinds, their subjects and the alarm record itself. */
-import type { Severity } from './health-settings';
-
-export const ALARM_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'soiling', 'not-stowed', 'site-comms'] as const;
-export type AlarmKind = (typeof ALARM_KINDS)[number];
+import type { AlarmKind, AlarmSeverity, AlarmState } from '../../shared/contracts/alarms';
 
 /** The unit (or, for site alarms, the site) an alarm is about. */
 export interface AlarmSubject {
@@ -12,10 +9,8 @@ export interface AlarmSubject {
   siteId: number;
 }
 
-export type AlarmState = 'active' | 'cleared';
-
 export interface AlarmDetail {
-  severity: Severity;
+  severity: AlarmSeverity;
   /** One sentence: what is wrong, with the numbers. */
   message: string;
   /** What to do about it. */

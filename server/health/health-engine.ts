@@ -9,7 +9,8 @@
  */
 import type { Telemetry, UnitEvent, UnitStatus, Weather } from '../../shared/contracts/wire';
 import { AlarmBook, type AlarmBookListeners, type AlarmTiming } from './alarm-book';
-import type { Alarm, AlarmKind, AlarmSubject, StowEvent } from './alarm-types';
+import type { AlarmKind } from '../../shared/contracts/alarms';
+import type { Alarm, AlarmSubject, StowEvent } from './alarm-types';
 import { CommsDetector, type CommsView } from './comms-detector';
 import { DriftDetector } from './drift-detector';
 import { DEFAULT_HEALTH_SETTINGS, MIN_MS, type HealthSettings } from './health-settings';

@@ -4,9 +4,7 @@
  * one source). Times in minutes, irradiance in W/m², angles in degrees, currents in A.
  */
 import { z } from 'zod';
-
-export const SEVERITIES = ['P1', 'P2', 'P3', 'P4'] as const;
-export type Severity = (typeof SEVERITIES)[number];
+import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module';
 
 export interface HealthSettings {
   // ---- daylight gating
@@ -180,7 +178,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   commsClearDelayMin: 0,
   siteDarkFraction: 0.6,
 
-  powerTempCoeffPerK: -0.0037,
+  powerTempCoeffPerK: MODULE_POWER_TEMP_COEFF_PER_K,
   soilingMinPoaWm2: 300,
   soilingHistoryDays: 14,
   soilingReferenceQuantile: 0.9,

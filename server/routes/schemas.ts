@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { ROLES } from '../../shared/contracts/api';
+import { SERIAL_PATTERN, WIRE_RANGES } from '../../shared/contracts/wire-format';
 import { MAX_PASSWORD_BYTES, utf8Bytes } from '../services/passwords';
 import { num, timeZone } from './validation';
 
@@ -34,10 +35,10 @@ export const siteBody = z.strictObject({
 });
 
 export const unitBody = z.strictObject({
-  serial: z.string().regex(/^[A-Z0-9][A-Z0-9-]{2,31}$/, '3–32 capital letters, digits or dashes.'),
+  serial: z.string().regex(SERIAL_PATTERN, '3–32 capital letters, digits or dashes.'),
   siteId: id,
   ratedPowerWp: num(1, 100_000, 'Wp'),
-  detectorTiltDeg: num(0.5, 45, '°'),
+  detectorTiltDeg: num(...WIRE_RANGES.detectorTiltDeg, '°'),
   tiltMinDeg: num(0, 90, '°'),
   tiltMaxDeg: num(0, 90, '°'),
   azimuthMinDeg: num(0, 360, '°'),

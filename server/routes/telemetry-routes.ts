@@ -1,6 +1,7 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { COMMAND_KINDS, unitConfigSchema } from '../../shared/contracts/wire';
+import { unitConfigSchema } from '../../shared/contracts/wire';
+import { COMMAND_KINDS } from '../../shared/contracts/wire-format';
 import { HOLD_TEXT_MAX } from '../../shared/contracts/holds';
 import type { AdminService } from '../services/admin-service';
 import { COMMANDING_ROLES, type CommandService } from '../services/command-service';

@@ -2,7 +2,8 @@ import { randomUUID } from 'node:crypto';
 import type { Logger } from 'pino';
 import type { CommandView, IssueCommandRequest } from '../../shared/contracts/live';
 import type { HoldView, UnitHolds } from '../../shared/contracts/holds';
-import { MOTION_COMMANDS, type Command, type CommandAck, type CommandKind } from '../../shared/contracts/wire';
+import type { Command, CommandAck } from '../../shared/contracts/wire';
+import { HOLD_COMMANDS as HOLD_KINDS, MOTION_COMMANDS, WIRE_VERSION, type CommandKind } from '../../shared/contracts/wire-format';
 import { AppError, badRequest, forbidden, notFound } from '../errors/app-error';
 import type { CommandRow, CommandStore, CommandTx } from '../data/command-repository';
 import type { Caller } from './caller';
@@ -29,7 +30,6 @@ export const COMMANDING_ROLES: readonly Caller['role'][] = ['admin', 'engineer',
  * Hold and release-hold carry the state the unit must end up in: they wait in the queue for as long as the unit is
  * offline instead of expiring (the hold is in force on the server meanwhile).
  */
-const HOLD_KINDS: readonly CommandKind[] = ['hold', 'release-hold'];
 const expires = (kind: CommandKind) => !HOLD_KINDS.includes(kind);
 
 /**
@@ -344,7 +344,7 @@ export class CommandService {
     cmd.status = 'sent';
     cmd.sent_at = at;
     try {
-      await this.publish(unit.serial, { v: 1, commandId: cmd.id, ts: at.toISOString(), kind: cmd.kind, ...params });
+      await this.publish(unit.serial, { v: WIRE_VERSION, commandId: cmd.id, ts: at.toISOString(), kind: cmd.kind, ...params });
     } catch (err) {
       await this.store.commands.update(cmd.id, { status: 'queued', sent_at: null });
       cmd.status = 'queued';

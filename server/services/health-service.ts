@@ -9,6 +9,7 @@
  */
 import type { Logger } from 'pino';
 import type { Telemetry, UnitEvent, UnitStatus, Weather } from '../../shared/contracts/wire';
+import { WIRE_VERSION } from '../../shared/contracts/wire-format';
 import { analyseLandscape, computeLandscape, detectorReadings, findMaxima, type Sky } from '../../shared/landscape';
 import type { AlarmRepository, AlarmListRow, HealthReadRepository } from '../data/alarm-repository';
 import { badRequest, notFound } from '../errors/app-error';
@@ -301,7 +302,7 @@ export class HealthService {
       for (const r of rows) {
         const ts = new Date(r.ts);
         this.weatherAfterMs = Math.max(this.weatherAfterMs, ts.getTime());
-        const w: Weather = { v: 1, ts: ts.toISOString(), ghiWm2: r.ghi_wm2, ...(r.dhi_wm2 !== null ? { dhiWm2: r.dhi_wm2 } : {}), airTempC: r.air_temp_c, windMs: r.wind_ms, gustMs: r.gust_ms };
+        const w: Weather = { v: WIRE_VERSION, ts: ts.toISOString(), ghiWm2: r.ghi_wm2, ...(r.dhi_wm2 !== null ? { dhiWm2: r.dhi_wm2 } : {}), airTempC: r.air_temp_c, windMs: r.wind_ms, gustMs: r.gust_ms };
         this.guard(() => this.engine.weather(r.site_id, w));
       }
     } catch (err) {
@@ -426,7 +427,7 @@ function toView(r: AlarmListRow): AlarmView {
 function telemetryOf(r: Record<string, unknown>): Telemetry {
   const n = (k: string) => Number(r[k]);
   return {
-    v: 1, seq: n('seq'), ts: new Date(r['ts'] as Date).toISOString(),
+    v: WIRE_VERSION, seq: n('seq'), ts: new Date(r['ts'] as Date).toISOString(),
     tiltPlusWm2: n('tilt_plus_wm2'), tiltMinusWm2: n('tilt_minus_wm2'), azimuthPlusWm2: n('azimuth_plus_wm2'), azimuthMinusWm2: n('azimuth_minus_wm2'),
     poaWm2: n('poa_wm2'), tiltDeg: n('tilt_deg'), azimuthDeg: n('azimuth_deg'), cmdTiltDeg: n('cmd_tilt_deg'), cmdAzimuthDeg: n('cmd_azimuth_deg'),
     tiltMotorA: n('tilt_motor_a'), azimuthMotorA: n('azimuth_motor_a'), dcPowerW: n('dc_power_w'), moduleTempC: n('module_temp_c'),

@@ -1,9 +1,10 @@
 import type { Logger } from 'pino';
 import { z } from 'zod';
 import {
-  MAX_PAYLOAD_BYTES, ackSchema, eventSchema, statusSchema, telemetrySchema, weatherSchema,
+  ackSchema, eventSchema, statusSchema, telemetrySchema, weatherSchema,
   type CommandAck, type Telemetry, type UnitEvent, type UnitStatus,
 } from '../../shared/contracts/wire';
+import { MAX_PAYLOAD_BYTES } from '../../shared/contracts/wire-format';
 import { eventKey, telemetryKey, type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow } from '../data/telemetry-repository';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 

@@ -1,7 +1,8 @@
 import type { AlarmLiveItem } from '../../shared/contracts/alarms';
 import type { HoldView } from '../../shared/contracts/holds';
 import type { CommandView, LiveClientMessage, LiveServerMessage, UnitLiveState } from '../../shared/contracts/live';
-import type { Telemetry, UnitMode, UnitStatus } from '../../shared/contracts/wire';
+import type { Telemetry, UnitStatus } from '../../shared/contracts/wire';
+import type { UnitMode } from '../../shared/contracts/wire-format';
 import type { Caller } from './caller';
 import type { TelemetryRow } from '../data/telemetry-repository';
 

@@ -1,21 +1,10 @@
-import { z } from 'zod';
-import type { SiteSurvey } from '../../shared/contracts/api';
-import { lampSchema, reflectorSchema, skyTypeSchema, resolveSkyFile, parseSkyFile, type ResolvedSky } from '../../shared/sky-file';
+import { surveySchema, type SiteSurvey } from '../../shared/contracts/survey';
+import { resolveSkyFile, parseSkyFile, type ResolvedSky } from '../../shared/sky-file';
 import type { Db } from '../data/db';
 import { notFound } from '../errors/app-error';
 import { validationError } from '../errors/validation-error';
 
 export const EMPTY_SURVEY: SiteSurvey = { skyType: 'isotropic', horizon: [], reflectors: [], lamps: [] };
-
-export const surveySchema = z.strictObject({
-  skyType: skyTypeSchema,
-  horizon: z
-    .array(z.tuple([z.number().min(0).max(359.999999), z.number().min(0).max(90)], { error: 'must be a pair [azimuthDeg 0…360, elevationDeg 0…90]' }))
-    .max(720)
-    .refine((h) => h.every((p, i) => i === 0 || p[0] >= h[i - 1]![0]), 'must be sorted by azimuth'),
-  reflectors: z.array(reflectorSchema).max(20),
-  lamps: z.array(lampSchema).max(50),
-});
 
 /** Weather measured at a site near an instant (the latest station reading within 15 minutes). */
 export interface SiteWeather {

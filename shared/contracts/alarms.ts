@@ -4,8 +4,8 @@
  * `server/services/health-service.ts` and `server/health/scan-rebuild.ts`; this file is the copy both sides type against.
  */
 
-/** Alarm kinds the health engine raises; others may appear later and are shown by name. */
-export const ALARM_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'soiling', 'not-stowed', 'site-comms'] as const;
+/** Alarm kinds the health engine raises (in the order the dashboard lists them); others may appear later and are shown by name. */
+export const ALARM_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'site-comms', 'soiling', 'not-stowed'] as const;
 export type AlarmKind = (typeof ALARM_KINDS)[number];
 
 /** P1 most urgent … P4 least. */

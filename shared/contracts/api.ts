@@ -143,28 +143,3 @@ export interface ChangePasswordRequest {
   /** At least 10 characters and at most 72 bytes in UTF-8. */
   newPassword: string;
 }
-
-/** A facade that mirrors sun and sky, as surveyed from the site (angles in degrees, azimuth clockwise from north). */
-export interface SurveyReflector {
-  normalAzimuthDeg: number;
-  normalElevationDeg: number;
-  azimuthFromDeg: number;
-  azimuthToDeg: number;
-  elevationFromDeg: number;
-  elevationToDeg: number;
-  reflectance: number;
-}
-
-export interface SurveyLamp {
-  azimuthDeg: number;
-  elevationDeg: number;
-  irradianceWm2: number;
-}
-
-/** What a site sees: its horizon profile (sorted by azimuth), facades, lamps (indoor) and usual sky type. */
-export interface SiteSurvey {
-  skyType: 'isotropic' | 'moon-spencer' | number;
-  horizon: [number, number][];
-  reflectors: SurveyReflector[];
-  lamps: SurveyLamp[];
-}

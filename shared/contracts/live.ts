@@ -1,6 +1,7 @@
 import type { AlarmLiveItem } from './alarms';
 import type { HoldView } from './holds';
-import type { CommandKind, UnitConfig, UnitMode } from './wire';
+import type { UnitConfig } from './wire';
+import type { CommandKind, UnitMode } from './wire-format';
 
 /** The latest known state of a unit, as pushed to dashboards (at most once a second per unit). */
 export interface UnitLiveState {

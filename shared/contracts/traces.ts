@@ -13,14 +13,23 @@ export const TRACE_QUANTITIES = [
 ] as const;
 export type TraceQuantity = (typeof TRACE_QUANTITIES)[number];
 
-/** Label, unit and CSV column name of each quantity. */
-export const TRACE_QUANTITY_INFO: Record<TraceQuantity, { label: string; unit: string; csv: string }> = {
+export interface TraceQuantityInfo {
+  label: string;
+  unit: string;
+  /** Column name in the CSV export. */
+  csv: string;
+  /** For a photodifferential: the reported quantities it is the difference of (plus − minus); others are reported as they are. */
+  difference?: readonly [TraceQuantity, TraceQuantity];
+}
+
+/** The one table of trace quantities: label, unit, CSV column name and how each is derived from a report. */
+export const TRACE_QUANTITY_INFO: Record<TraceQuantity, TraceQuantityInfo> = {
   tiltPlusWm2: { label: 'Tilt detector +', unit: 'W/m²', csv: 'tilt_plus_detector_W_m2' },
   tiltMinusWm2: { label: 'Tilt detector −', unit: 'W/m²', csv: 'tilt_minus_detector_W_m2' },
   azimuthPlusWm2: { label: 'Azimuth detector +', unit: 'W/m²', csv: 'azimuth_plus_detector_W_m2' },
   azimuthMinusWm2: { label: 'Azimuth detector −', unit: 'W/m²', csv: 'azimuth_minus_detector_W_m2' },
-  tiltDiffWm2: { label: 'Tilt photodifferential', unit: 'W/m²', csv: 'tilt_differential_W_m2' },
-  azimuthDiffWm2: { label: 'Azimuth photodifferential', unit: 'W/m²', csv: 'azimuth_differential_W_m2' },
+  tiltDiffWm2: { label: 'Tilt photodifferential', unit: 'W/m²', csv: 'tilt_differential_W_m2', difference: ['tiltPlusWm2', 'tiltMinusWm2'] },
+  azimuthDiffWm2: { label: 'Azimuth photodifferential', unit: 'W/m²', csv: 'azimuth_differential_W_m2', difference: ['azimuthPlusWm2', 'azimuthMinusWm2'] },
   tiltDeg: { label: 'Measured tilt', unit: '°', csv: 'tracker_tilt_deg' },
   cmdTiltDeg: { label: 'Commanded tilt', unit: '°', csv: 'commanded_tilt_deg' },
   azimuthDeg: { label: 'Measured azimuth', unit: '°', csv: 'tracker_azimuth_deg' },

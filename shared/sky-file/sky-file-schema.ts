@@ -16,14 +16,8 @@
  * }
  */
 import { z } from 'zod';
+import { lampSchema, rangedNumber as num, reflectorSchema, skyTypeSchema } from '../contracts/survey';
 import { parseInstant } from '../solar-position/instant';
-
-const num = (field: string, lo: number, hi: number, unit = '') =>
-  z
-    .number({ error: `must be a finite number in [${lo}, ${hi}]${unit}` })
-    .min(lo, { error: `must be in [${lo}, ${hi}]${unit}` })
-    .max(hi, { error: `must be in [${lo}, ${hi}]${unit}` })
-    .describe(field);
 
 export const siteSchema = z.strictObject({
   latitudeDeg: num('latitudeDeg', -90, 90, '°'),
@@ -37,35 +31,9 @@ export const sunSchema = z.strictObject({
   dniWm2: num('dniWm2', 0, 1500, ' W/m²').optional(),
 });
 
-export const reflectorSchema = z.strictObject({
-  normalAzimuthDeg: num('normalAzimuthDeg', 0, 360, '° clockwise from north'),
-  normalElevationDeg: num('normalElevationDeg', -90, 90, '°').default(0),
-  azimuthFromDeg: num('azimuthFromDeg', 0, 360, '°'),
-  azimuthToDeg: num('azimuthToDeg', 0, 360, '°'),
-  elevationFromDeg: num('elevationFromDeg', -90, 90, '°'),
-  elevationToDeg: num('elevationToDeg', -90, 90, '°'),
-  reflectance: num('reflectance', 0, 1),
-});
-
-export const lampSchema = z.strictObject({
-  azimuthDeg: num('azimuthDeg', 0, 360, '°'),
-  elevationDeg: num('elevationDeg', -90, 90, '°'),
-  irradianceWm2: num('irradianceWm2', 0, 10000, ' W/m²'),
-});
-
 const horizonPoint = z.tuple([num('azimuthDeg', 0, 359.999999, '° (azimuth, [0, 360))'), num('elevationDeg', 0, 90, '° (elevation)')], {
   error: 'must be a pair [azimuthDeg, elevationDeg]',
 });
-
-const SKY_TYPE_MESSAGE = 'must be "isotropic", "moon-spencer" or an integer CIE standard general sky type 1…15';
-export const skyTypeSchema = z.union(
-  [
-    z.literal('isotropic'),
-    z.literal('moon-spencer'),
-    z.number().int({ error: SKY_TYPE_MESSAGE }).min(1, { error: SKY_TYPE_MESSAGE }).max(15, { error: SKY_TYPE_MESSAGE }),
-  ],
-  { error: SKY_TYPE_MESSAGE },
-);
 
 export const skyFileSchema = z
   .strictObject({

@@ -15,13 +15,13 @@ import { demoSiteInfo } from '../demo-fleet';
 
 async function brokerChild(): Promise<void> {
   const { startBroker } = await import('../../broker/broker');
-  const { unitPrefix } = await import('../../shared/contracts/topics');
+  const { unitPrefix, unitTopic } = await import('../../shared/contracts/topics');
   const b = await startBroker({
     host: '127.0.0.1', port: 0, unitPrefix, limits: { maxPendingConnections: 100_000 }, // every unit connects at once here
     authenticate: async (u) => (/^BENCH-\d+$/.test(u) ? { kind: 'unit', serial: u } : null),
   });
   let received = 0;
-  b.aedes.subscribe('bw/v1/units/+/telemetry', (_p, cb) => { received++; cb(); }, () => {});
+  b.aedes.subscribe(unitTopic('+', 'telemetry'), (_p, cb) => { received++; cb(); }, () => {});
   process.send!({ port: b.port });
   process.on('message', (m: { cmd: string }) => {
     if (m.cmd === 'count') process.send!({ received });

@@ -7,10 +7,10 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import type { Site } from '../../../shared/contracts/api';
-import type { AlarmView } from '../../../shared/contracts/alarms';
+import { ALARM_KINDS, ALARM_SEVERITIES, type AlarmView } from '../../../shared/contracts/alarms';
 import { Session } from '../auth/session';
 import { AlarmApi, toAlarmView } from '../live/alarm-api';
-import { alarmKindLabel, filterAlarms, KNOWN_ALARM_KINDS, severityLook, sortAlarms, upsertAlarm, type AlarmListFilter } from '../live/alarm-look';
+import { alarmKindLabel, filterAlarms, severityLook, sortAlarms, upsertAlarm, type AlarmListFilter } from '../live/alarm-look';
 import { LinkBadge } from '../live/link-badge';
 import { LiveConnection } from '../live/live-connection';
 import { SiteApi } from '../sites/site-api';
@@ -53,11 +53,11 @@ export class AlarmBoard {
     sortAlarms(filterAlarms(this.alarms(), { siteId: this.siteFilter(), kind: this.kindFilter(), state: this.stateFilter() })),
   );
   protected readonly counts = computed(() => {
-    const c: Record<string, number> = { P1: 0, P2: 0, P3: 0, P4: 0 };
+    const c: Record<string, number> = {};
     for (const a of filterAlarms(this.alarms(), { siteId: this.siteFilter(), kind: null, state: 'open' })) c[a.severity] = (c[a.severity] ?? 0) + 1;
-    return ['P1', 'P2', 'P3', 'P4'].map((code) => ({ look: severityLook(code), count: c[code] ?? 0 }));
+    return ALARM_SEVERITIES.map((code) => ({ look: severityLook(code), count: c[code] ?? 0 }));
   });
-  protected readonly kinds = computed(() => [...new Set([...KNOWN_ALARM_KINDS, ...this.alarms().map((a) => a.kind)])]);
+  protected readonly kinds = computed(() => [...new Set<string>([...ALARM_KINDS, ...this.alarms().map((a) => a.kind)])]);
   protected readonly stateOptions: { value: AlarmListFilter['state']; label: string }[] = [
     { value: 'open', label: 'Open' },
     { value: 'unacknowledged', label: 'Open, not acknowledged' },

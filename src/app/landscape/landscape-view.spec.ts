@@ -1,4 +1,4 @@
-import type { SiteSurvey } from '../../../shared/contracts/api';
+import type { SiteSurvey } from '../../../shared/contracts/survey';
 import type { SiteLandscape } from '../../../shared/contracts/landscape';
 import { readPalette } from '../live/tone-palette';
 import { parseHorizonCsv } from './horizon-csv';

@@ -1,4 +1,4 @@
-import type { AlarmView, OrientationPeak } from '../../../shared/contracts/alarms';
+import type { AlarmKind, AlarmSeverity, AlarmView, OrientationPeak } from '../../../shared/contracts/alarms';
 
 /** How a severity is shown: always the code, a word and an icon; the colour (class `sev-p1` …) only repeats them. */
 export interface SeverityLook {
@@ -11,7 +11,7 @@ export interface SeverityLook {
   rank: number;
 }
 
-const SEVERITY: Record<string, Omit<SeverityLook, 'code'>> = {
+const SEVERITY: Record<AlarmSeverity, Omit<SeverityLook, 'code'>> = {
   P1: { label: 'Urgent', icon: 'e911_emergency', cssClass: 'sev-p1', rank: 0 },
   P2: { label: 'High', icon: 'warning', cssClass: 'sev-p2', rank: 1 },
   P3: { label: 'Medium', icon: 'report', cssClass: 'sev-p3', rank: 2 },
@@ -19,11 +19,12 @@ const SEVERITY: Record<string, Omit<SeverityLook, 'code'>> = {
 };
 
 export function severityLook(severity: string | null | undefined): SeverityLook {
-  const s = SEVERITY[severity ?? ''];
+  const s = (SEVERITY as Partial<Record<string, Omit<SeverityLook, 'code'>>>)[severity ?? ''];
   return s ? { code: severity!, ...s } : { code: severity ?? '?', label: 'Unknown', icon: 'help', cssClass: 'sev-p4', rank: 4 };
 }
 
-const KIND_LABEL: Record<string, string> = {
+/** Every alarm kind, and the wind-stow event shown beside them. */
+const KIND_LABEL: Record<AlarmKind | 'wind-stow', string> = {
   trap: 'Stuck on a lesser peak',
   stall: 'Actuator stall',
   drift: 'Detector drift',
@@ -37,11 +38,8 @@ const KIND_LABEL: Record<string, string> = {
 
 /** Plain names of alarm kinds; unknown kinds are shown as sent, with dashes as spaces. */
 export function alarmKindLabel(kind: string): string {
-  return KIND_LABEL[kind] ?? kind.replace(/-/g, ' ');
+  return (KIND_LABEL as Partial<Record<string, string>>)[kind] ?? kind.replace(/-/g, ' ');
 }
-
-/** The known kinds, for filters. */
-export const KNOWN_ALARM_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'site-comms', 'soiling', 'not-stowed'];
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 const obj = (v: unknown): Record<string, unknown> | null => (v && typeof v === 'object' && !Array.isArray(v) ? (v as Record<string, unknown>) : null);

@@ -1,7 +1,7 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { inject, Injectable } from '@angular/core';
 import { Observable } from 'rxjs';
-import type { SiteSurvey } from '../../../shared/contracts/api';
+import type { SiteSurvey } from '../../../shared/contracts/survey';
 import type { LandscapeDay, SiteLandscape } from '../../../shared/contracts/landscape';
 import type { CommandView, IssueCommandRequest, UnitLiveState } from '../../../shared/contracts/live';
 import type { UnitHolds } from '../../../shared/contracts/holds';

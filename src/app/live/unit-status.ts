@@ -1,5 +1,5 @@
 import type { UnitLiveState } from '../../../shared/contracts/live';
-import type { UnitMode } from '../../../shared/contracts/wire';
+import type { UnitMode } from '../../../shared/contracts/wire-format';
 
 /** Tone of a state; each tone has a colour, but the word and icon always say the same thing. */
 export type Tone = 'good' | 'busy' | 'caution' | 'problem' | 'stopped';

@@ -1,7 +1,6 @@
 import { AbstractControl, ValidationErrors, ValidatorFn } from '@angular/forms';
+import { SERIAL_PATTERN } from '../../../shared/contracts/wire-format';
 
-/** Serial numbers: capital letters, digits and dashes, 3–32 characters, not starting with a dash. */
-export const SERIAL_PATTERN = /^[A-Z0-9][A-Z0-9-]{2,31}$/;
 export const MIN_PASSWORD_LENGTH = 10;
 /** bcrypt on the server reads at most this many bytes of a password (UTF-8); longer ones are refused. */
 export const MAX_PASSWORD_BYTES = 72;

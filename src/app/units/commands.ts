@@ -1,7 +1,8 @@
 import type { Role } from '../../../shared/contracts/api';
 import type { HoldView } from '../../../shared/contracts/holds';
 import type { CommandStatus, CommandView, UnitLiveState } from '../../../shared/contracts/live';
-import type { CommandKind, UnitConfig } from '../../../shared/contracts/wire';
+import type { UnitConfig } from '../../../shared/contracts/wire';
+import { MOTION_COMMANDS, type CommandKind } from '../../../shared/contracts/wire-format';
 import { siteTime } from '../live/unit-status';
 
 /** What the command panel offers. `goto` carries its target; settings (`configure`) have their own form. */
@@ -15,14 +16,14 @@ export interface CommandChoice {
   disabledReason: string | null;
 }
 
-const CHOICES: Omit<CommandChoice, 'disabledReason'>[] = [
-  { kind: 'scan', label: 'Scan the sky', icon: 'radar', motion: true },
-  { kind: 'goto', label: 'Go to orientation', icon: 'my_location', motion: true },
-  { kind: 'stow', label: 'Stow', icon: 'shield', motion: true },
-  { kind: 'release-stow', label: 'Release stow', icon: 'shield_with_heart', motion: true },
-  { kind: 'hold', label: 'Put on maintenance hold', icon: 'front_hand', motion: false },
-  { kind: 'release-hold', label: 'Release my hold', icon: 'play_circle', motion: false },
-];
+const CHOICES: Omit<CommandChoice, 'disabledReason'>[] = ([
+  { kind: 'scan', label: 'Scan the sky', icon: 'radar' },
+  { kind: 'goto', label: 'Go to orientation', icon: 'my_location' },
+  { kind: 'stow', label: 'Stow', icon: 'shield' },
+  { kind: 'release-stow', label: 'Release stow', icon: 'shield_with_heart' },
+  { kind: 'hold', label: 'Put on maintenance hold', icon: 'front_hand' },
+  { kind: 'release-hold', label: 'Release my hold', icon: 'play_circle' },
+] satisfies Omit<CommandChoice, 'disabledReason' | 'motion'>[]).map((c) => ({ ...c, motion: MOTION_COMMANDS.includes(c.kind) }));
 
 /** Roles that may send motion commands and settings. */
 export const COMMAND_ROLES: readonly Role[] = ['admin', 'engineer', 'technician'];

@@ -10,6 +10,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatSlideToggleModule } from '@angular/material/slide-toggle';
 import type { Site, Unit, UnitInput } from '../../../../shared/contracts/api';
+import { WIRE_RANGES } from '../../../../shared/contracts/wire-format';
 import { UnitApi, UnitWithSecret } from '../../sites/unit-api';
 import { applyServerErrors } from '../../ui/api-error';
 import { above, errorText, inRange, serial } from '../../ui/validation';
@@ -49,7 +50,7 @@ export class UnitForm {
     serial: new FormControl('', { nonNullable: true, validators: [Validators.required, serial] }),
     siteId: new FormControl<number | null>(null, Validators.required),
     ratedPowerWp: new FormControl<number | null>(400, [Validators.required, inRange(1, 100000, ' Wp')]),
-    detectorTiltDeg: new FormControl<number | null>(5, [Validators.required, inRange(0.5, 45, '°')]),
+    detectorTiltDeg: new FormControl<number | null>(5, [Validators.required, inRange(...WIRE_RANGES.detectorTiltDeg, '°')]),
     tiltMinDeg: new FormControl<number | null>(0, [Validators.required, inRange(0, 90, '°')]),
     tiltMaxDeg: new FormControl<number | null>(80, [Validators.required, inRange(0, 90, '°'), above('tiltMinDeg', 'the lowest tilt')]),
     azimuthMinDeg: new FormControl<number | null>(0, [Validators.required, inRange(0, 360, '°')]),
