@@ -8,7 +8,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import type { Site, SiteSurvey, SurveyReflector } from '../../../shared/contracts/api';
-import { FleetApi } from '../live/fleet-api';
+import { LandscapeApi } from '../core/landscape-api';
 import { readPalette } from '../live/tone-palette';
 import { ColourScheme } from '../shell/colour-scheme';
 import { toApiProblem } from '../ui/api-error';
@@ -44,7 +44,7 @@ const NEW_REFLECTOR: SurveyReflector = { normalAzimuthDeg: 90, normalElevationDe
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class SurveyEditor {
-  private readonly api = inject(FleetApi);
+  private readonly api = inject(LandscapeApi);
   private readonly notify = inject(Notify);
   private readonly scheme = inject(ColourScheme);
 

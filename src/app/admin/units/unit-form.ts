@@ -10,7 +10,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatSlideToggleModule } from '@angular/material/slide-toggle';
 import type { Site, Unit, UnitInput } from '../../../../shared/contracts/api';
-import { UnitApi, UnitWithSecret } from '../../sites/unit-api';
+import { UnitApi, UnitWithSecret } from '../../core/unit-api';
 import { applyServerErrors } from '../../ui/api-error';
 import { above, errorText, inRange, serial } from '../../ui/validation';
 
