@@ -3,7 +3,7 @@
  * Run by `npm test` (which starts the test MariaDB and sets BW_DB_*), after `npm run build`. Starts the server (free
  * ports) and the browser once, then runs each user journey in `journeys/`; every journey starts signed out on a
  * 1280 × 800 light page and creates or looks up what it needs, so any one runs alone:
- * `npm run test:e2e -- alarms traces` runs only the journeys named. Screenshots go to test/.output/e2e/.
+ * `npm run test:e2e -- alarms traces` runs only the journeys named, in that order. Screenshots go to test/.output/e2e/.
  * Prints each journey's result, then "N passed, M failed".
  */
 import { existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
@@ -137,10 +137,9 @@ async function main(only: readonly string[]): Promise<number> {
       results.push(`  ${journeyFailed ? 'FAIL' : 'ok  '}  ${name}: ${journeyPassed} passed, ${journeyFailed} failed (${Math.round((Date.now() - started) / 1000)} s)`);
     };
 
-    for (const journey of JOURNEYS) {
-      if (only.length && !only.includes(journey.name)) continue;
-      await runJourney(journey.name, () => journey.run(e2e));
-    }
+    // Journeys named on the command line run in the order given (any order works: none relies on another).
+    const chosen = only.length ? only.map((name) => JOURNEYS.find((j) => j.name === name)!) : JOURNEYS;
+    for (const journey of chosen) await runJourney(journey.name, () => journey.run(e2e));
     await runJourney('page policy', () => pagePolicyChecks(e2e, record));
     console.log(`\njourneys:\n${results.join('\n')}`);
   } finally {
