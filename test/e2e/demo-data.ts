@@ -40,3 +40,33 @@ export async function insertDayOfTelemetry(db: Knex, unitId: number, dayStartUtc
   ]);
   return rows.length;
 }
+
+/**
+ * An open trap alarm on one unit, stored as the health service would store it: settled on a lesser peak (tilt 52°,
+ * azimuth 250°) while the modelled best is tilt 30°, azimuth 178°. Returns the alarm's id.
+ */
+export async function insertTrapAlarm(db: Knex, unitId: number, siteId: number): Promise<number> {
+  const seen = Date.now() - 40 * 60_000;
+  const [alarmId] = await db('alarms').insert({
+    unit_id: unitId, site_id: siteId, kind: 'trap', severity: 'P2', state: 'active',
+    message: 'Settled at tilt 52°, azimuth 250° on 410 W/m² while the brightest orientation (tilt 30°, azimuth 178°) gets 860 W/m²: losing 450 W/m² (52.3 %).',
+    advice: 'Send a scan, then go to the brightest orientation it finds; raise the detector tilt from 6° to at least 14°.',
+    evidence: JSON.stringify({ readings: { poaWm2: 410, tiltDeg: 52, azimuthDeg: 250 }, model: { globalMax: { tiltDeg: 30, azimuthDeg: 178, wm2: 860 }, modelledHereWm2: 415, localMaxima: [{}, {}], minSinglePeakDetectorTiltDeg: 14 }, lossWm2: 450, lossPct: 52.3, detectorTiltDeg: 6 }),
+    first_seen_at: new Date(seen), raised_at: new Date(seen + 10 * 60_000), last_seen_at: new Date(Date.now() - 60_000),
+  });
+  if (alarmId === undefined) throw new Error('the alarm was not stored');
+  return alarmId;
+}
+
+/** A finished scan of one unit 20 minutes ago, as the unit reports it: two peaks, the brighter at tilt 30°, azimuth 180°. */
+export async function insertFinishedScan(db: Knex, unitId: number, commandId: string): Promise<void> {
+  const scanAt = Date.now() - 20 * 60_000;
+  const samples: [number, number, number][] = [];
+  for (let t = 0; t <= 80; t += 10) for (let a = 90; a <= 300; a += 15) {
+    const d1 = ((t - 30) / 25) ** 2 + ((a - 180) / 40) ** 2;
+    const d2 = ((t - 50) / 15) ** 2 + ((a - 255) / 25) ** 2;
+    samples.push([t, a, Math.round(120 + 740 * Math.exp(-d1) + 300 * Math.exp(-d2))]);
+  }
+  await db('unit_events').insert({ unit_id: unitId, ts: new Date(scanAt), kind: 'scan-samples', body: JSON.stringify({ v: 1, ts: new Date(scanAt).toISOString(), kind: 'scan-samples', commandId, samples }) });
+  await db('unit_events').insert({ unit_id: unitId, ts: new Date(scanAt + 120_000), kind: 'scan-complete', body: JSON.stringify({ v: 1, ts: new Date(scanAt + 120_000).toISOString(), kind: 'scan-complete', commandId }) });
+}

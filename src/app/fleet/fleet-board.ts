@@ -16,12 +16,12 @@ import { NgxEchartsDirective } from 'ngx-echarts';
 import { forkJoin, interval, startWith } from 'rxjs';
 import type { Site, Unit } from '../../../shared/contracts/api';
 import type { UnitLiveState } from '../../../shared/contracts/live';
-import { SiteApi } from '../sites/site-api';
-import { UnitApi } from '../sites/unit-api';
+import { SiteApi } from '../core/site-api';
+import { UnitApi } from '../core/unit-api';
 import { toApiProblem } from '../ui/api-error';
-import { AlarmApi, toAlarmView, type AlarmView } from '../live/alarm-api';
+import { AlarmApi, toAlarmView, type AlarmView } from '../core/alarm-api';
 import { alarmKindLabel, severityLook, upsertAlarm } from '../live/alarm-look';
-import { FleetApi } from '../live/fleet-api';
+import { LandscapeApi } from '../core/landscape-api';
 import { LinkBadge } from '../live/link-badge';
 import { LiveConnection } from '../live/live-connection';
 import { readPalette } from '../live/tone-palette';
@@ -44,7 +44,7 @@ import { sitePlanOptions } from './site-plan';
 export class FleetBoard {
   private readonly siteApi = inject(SiteApi);
   private readonly unitApi = inject(UnitApi);
-  private readonly fleetApi = inject(FleetApi);
+  private readonly landscapeApi = inject(LandscapeApi);
   private readonly alarmApi = inject(AlarmApi);
   private readonly router = inject(Router);
   private readonly scheme = inject(ColourScheme);
@@ -145,7 +145,7 @@ export class FleetBoard {
 
   private loadBests(): void {
     for (const s of this.sites()) {
-      this.fleetApi.bestNow(s.id).subscribe({
+      this.landscapeApi.bestNow(s.id).subscribe({
         next: (b) => this.bests.set(new Map(this.bests()).set(s.id, b.wm2)),
         error: () => undefined, // the shortfall column shows a dash
       });

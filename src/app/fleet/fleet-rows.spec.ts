@@ -1,6 +1,6 @@
 import type { Site, Unit } from '../../../shared/contracts/api';
 import type { UnitLiveState } from '../../../shared/contracts/live';
-import type { AlarmView } from '../live/alarm-api';
+import type { AlarmView } from '../core/alarm-api';
 import { filterRows, fleetRows, mergeStates, sortRows, toneCounts } from './fleet-rows';
 
 const site = (id: number, name: string): Site =>

@@ -1,6 +1,6 @@
 import type { Site, Unit } from '../../../shared/contracts/api';
 import type { UnitLiveState } from '../../../shared/contracts/live';
-import type { AlarmView } from '../live/alarm-api';
+import type { AlarmView } from '../core/alarm-api';
 import { severityLook, sortAlarms } from '../live/alarm-look';
 import { shortfallPercent, statusLook, statusRank, type StatusLook, type Tone } from '../live/unit-status';
 

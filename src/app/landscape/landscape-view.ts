@@ -15,11 +15,11 @@ import { Subject, Subscription, debounceTime } from 'rxjs';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import type { Site } from '../../../shared/contracts/api';
 import type { LandscapeDay, SiteLandscape } from '../../../shared/contracts/landscape';
-import { FleetApi } from '../live/fleet-api';
+import { LandscapeApi } from '../core/landscape-api';
 import { readPalette } from '../live/tone-palette';
 import { siteTime, utcTime } from '../live/unit-status';
 import { ColourScheme } from '../shell/colour-scheme';
-import { SiteApi } from '../sites/site-api';
+import { SiteApi } from '../core/site-api';
 import { toApiProblem } from '../ui/api-error';
 import { localDateOf, zonedMidnightUtc } from '../traces/trace-charts';
 import { dayOptions, heatmapOptions, maximaMarks } from './landscape-charts';
@@ -42,7 +42,7 @@ export function minutesLabel(m: number): string {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class LandscapeView {
-  private readonly api = inject(FleetApi);
+  private readonly api = inject(LandscapeApi);
   private readonly siteApi = inject(SiteApi);
   private readonly route = inject(ActivatedRoute);
   private readonly router = inject(Router);

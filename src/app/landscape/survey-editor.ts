@@ -9,7 +9,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import type { Site } from '../../../shared/contracts/api';
 import type { SiteSurvey, SurveyReflector } from '../../../shared/contracts/survey';
-import { FleetApi } from '../live/fleet-api';
+import { LandscapeApi } from '../core/landscape-api';
 import { readPalette } from '../live/tone-palette';
 import { ColourScheme } from '../shell/colour-scheme';
 import { toApiProblem } from '../ui/api-error';
@@ -45,7 +45,7 @@ const NEW_REFLECTOR: SurveyReflector = { normalAzimuthDeg: 90, normalElevationDe
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class SurveyEditor {
-  private readonly api = inject(FleetApi);
+  private readonly api = inject(LandscapeApi);
   private readonly notify = inject(Notify);
   private readonly scheme = inject(ColourScheme);
 

@@ -11,8 +11,8 @@ import { Session } from '../auth/session';
 import { toApiProblem } from '../ui/api-error';
 import { TableData } from '../ui/table-data';
 import { LocationPipe } from './location-pipe';
-import { SiteApi } from './site-api';
-import { UnitApi } from './unit-api';
+import { SiteApi } from '../core/site-api';
+import { UnitApi } from '../core/unit-api';
 
 /** One site: its facts and its tracker units. Read-only; administrators edit under Site setup. */
 @Component({

@@ -9,7 +9,7 @@ import type { Site } from '../../../shared/contracts/api';
 import { Session } from '../auth/session';
 import { toApiProblem } from '../ui/api-error';
 import { LocationPipe } from './location-pipe';
-import { SiteApi } from './site-api';
+import { SiteApi } from '../core/site-api';
 
 /** The sites the user may see, as cards; the start page for every role for now. */
 @Component({

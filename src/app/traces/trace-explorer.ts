@@ -12,12 +12,12 @@ import { NgxEchartsDirective } from 'ngx-echarts';
 import { forkJoin, Subscription } from 'rxjs';
 import type { Site, Unit } from '../../../shared/contracts/api';
 import { MAX_CSV_DAYS, type UnitTraces } from '../../../shared/contracts/traces';
-import { FleetApi } from '../live/fleet-api';
+import { TelemetryApi } from '../core/telemetry-api';
 import { readPalette } from '../live/tone-palette';
 import { siteTime, utcTime } from '../live/unit-status';
 import { ColourScheme } from '../shell/colour-scheme';
-import { SiteApi } from '../sites/site-api';
-import { UnitApi } from '../sites/unit-api';
+import { SiteApi } from '../core/site-api';
+import { UnitApi } from '../core/unit-api';
 import { toApiProblem } from '../ui/api-error';
 import { localDateOf, traceChartOptions, zonedMidnightUtc, type TraceWindow } from './trace-charts';
 
@@ -60,7 +60,7 @@ export function needsDetail(loaded: { bucketMs: number }, window: TraceWindow, p
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class TraceExplorer {
-  private readonly api = inject(FleetApi);
+  private readonly api = inject(TelemetryApi);
   private readonly siteApi = inject(SiteApi);
   private readonly unitApi = inject(UnitApi);
   private readonly route = inject(ActivatedRoute);

@@ -1,6 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { UnitLiveState } from '../../../shared/contracts/live';
-import type { TelemetryRowView } from '../live/fleet-api';
+import type { TelemetryRowView } from '../core/telemetry-api';
 import type { TonePalette } from '../live/tone-palette';
 import { siteTime, utcTime } from '../live/unit-status';
 

@@ -1,54 +1,55 @@
 import { ChangeDetectionStrategy, Component, computed, DestroyRef, effect, inject, input, signal, untracked } from '@angular/core';
-import { DecimalPipe, LowerCasePipe } from '@angular/common';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
-import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
-import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
-import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import { RouterLink } from '@angular/router';
-import { NgxEchartsDirective } from 'ngx-echarts';
 import { interval } from 'rxjs';
 import type { Site, Unit } from '../../../shared/contracts/api';
 import type { SiteLandscape } from '../../../shared/contracts/landscape';
 import type { CommandView, IssueCommandRequest, UnitLiveState } from '../../../shared/contracts/live';
 import { HOLD_TEXT_MAX, type HoldView } from '../../../shared/contracts/holds';
 import type { UnitConfig } from '../../../shared/contracts/wire';
-import { Session } from '../auth/session';
-import { SiteApi } from '../sites/site-api';
-import { UnitApi } from '../sites/unit-api';
-import { toApiProblem } from '../ui/api-error';
-import { Notify } from '../ui/notify';
 import type { ScanResult } from '../../../shared/contracts/alarms';
-import { AlarmCard } from '../alarms/alarm-card';
+import { Session } from '../auth/session';
 import { ACK_ROLES } from '../alarms/alarm-board';
-import { AlarmApi, toAlarmView, type AlarmView } from '../live/alarm-api';
-import { alarmKindLabel, severityLook, sortAlarms, trapFinding, upsertAlarm } from '../live/alarm-look';
-import { FleetApi } from '../live/fleet-api';
+import { AlarmApi } from '../core/alarm-api';
+import { CommandApi } from '../core/command-api';
+import { LandscapeApi } from '../core/landscape-api';
+import { SiteApi } from '../core/site-api';
+import { TelemetryApi } from '../core/telemetry-api';
+import { UnitApi } from '../core/unit-api';
 import { LinkBadge } from '../live/link-badge';
 import { LiveConnection } from '../live/live-connection';
-import { readPalette, TONE_SYMBOL } from '../live/tone-palette';
 import { ago, siteTime, statusLook, utcTime, withUnit } from '../live/unit-status';
-import { ColourScheme } from '../shell/colour-scheme';
+import { toApiProblem } from '../ui/api-error';
+import { Notify } from '../ui/notify';
 import { CommandConfirm, type CommandConfirmData, type CommandConfirmResult } from './command-confirm';
+import { CommandHistory } from './command-history';
+import { CommandPanel } from './command-panel';
 import {
-  COMMAND_ROLES, CONFIGURE_CAUTION, commandChoices, commandParams, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
-  MOTION_CAUTION, ownHold, queuedNote, RELEASE_CAUTION, STATUS_LOOK, upsertCommand, type CommandChoice,
+  COMMAND_ROLES, CONFIGURE_CAUTION, commandChoices, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
+  MOTION_CAUTION, ownHold, queuedNote, RELEASE_CAUTION, upsertCommand, type CommandChoice,
 } from './commands';
 import { HoldPanel } from './hold-panel';
-import { appendLive, lastHourOptions, pointFromRow, type HourPoint } from './last-hour';
-import { scanFindings, scanHeatmapOptions } from './scan-chart';
-import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
+import { appendLive, pointFromRow, type HourPoint } from './last-hour';
+import { LastHourPanel } from './last-hour-panel';
+import { PointingPanel } from './pointing-panel';
+import { ScanPanel } from './scan-panel';
+import { UnitAlarmsPanel } from './unit-alarms-panel';
 
-/** One unit, live: values, last hour, where it points against the modelled sky, commands, alarms and history. */
+/**
+ * One unit, live: values, last hour, where it points against the modelled sky, holds, commands, alarms, scan and
+ * history. The view loads the unit and follows it live; each panel shows its part, and every command goes through the
+ * confirmation here.
+ */
 @Component({
   selector: 'bw-unit-view',
   imports: [
-    FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatTooltipModule,
-    RouterLink, NgxEchartsDirective, LinkBadge, AlarmCard, DecimalPipe, LowerCasePipe, HoldPanel,
+    MatButtonModule, MatIconModule, MatProgressBarModule, MatTooltipModule, RouterLink, LinkBadge,
+    LastHourPanel, PointingPanel, HoldPanel, CommandPanel, UnitAlarmsPanel, ScanPanel, CommandHistory,
   ],
   templateUrl: './unit-view.html',
   styleUrl: './unit-view.scss',
@@ -57,12 +58,13 @@ import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
 export class UnitView {
   private readonly unitApi = inject(UnitApi);
   private readonly siteApi = inject(SiteApi);
-  private readonly api = inject(FleetApi);
+  private readonly telemetryApi = inject(TelemetryApi);
+  private readonly landscapeApi = inject(LandscapeApi);
+  private readonly commandApi = inject(CommandApi);
   private readonly alarmApi = inject(AlarmApi);
   protected readonly session = inject(Session);
   private readonly dialog = inject(MatDialog);
   private readonly notify = inject(Notify);
-  private readonly scheme = inject(ColourScheme);
   private readonly destroyRef = inject(DestroyRef);
   private readonly live = inject(LiveConnection);
 
@@ -81,13 +83,10 @@ export class UnitView {
   protected readonly landscapeProblem = signal<string | null>(null);
   protected readonly commands = signal<CommandView[]>([]);
   protected readonly commandsProblem = signal<string | null>(null);
-  protected readonly alarms = signal<AlarmView[]>([]);
-  protected readonly alarmsUnavailable = signal<string | null>(null);
   protected readonly sending = signal<string | null>(null);
   protected readonly now = signal(Date.now());
   protected readonly gotoTilt = signal<number | null>(null);
   protected readonly gotoAzimuth = signal<number | null>(null);
-  protected readonly acking = signal<number | null>(null);
   /** Scan and relocate: the scan command sent from here, and the latest scan result. */
   protected readonly scanCommand = signal<CommandView | null>(null);
   protected readonly scan = signal<ScanResult | null>(null);
@@ -96,32 +95,10 @@ export class UnitView {
   /** The holds in force (from `GET …/holds`, then from the live state); null while loading. */
   protected readonly holds = signal<HoldView[] | null>(null);
   protected readonly holdsProblem = signal<string | null>(null);
-  /** New settings for `configure`; empty fields are left as they are on the unit. */
-  protected readonly cfgDetectorTilt = signal<number | null>(null);
-  protected readonly cfgGain = signal<number | null>(null);
-  protected readonly cfgDeadband = signal<number | null>(null);
-  protected readonly cfgReportInterval = signal<number | null>(null);
 
-  protected readonly sortedAlarms = computed(() => sortAlarms(this.alarms()).slice(0, 20));
-  protected readonly openAlarmCount = computed(() => this.alarms().filter((a) => a.state !== 'cleared').length);
   protected readonly canAcknowledge = computed(() => ACK_ROLES.includes(this.session.role() ?? ''));
-  /** The most urgent open trap alarm's finding: where the modelled best is and what is lost. */
-  protected readonly trap = computed(() => {
-    const a = sortAlarms(this.alarms().filter((x) => x.kind === 'trap' && x.state !== 'cleared'))[0];
-    const f = a ? trapFinding(a) : null;
-    return a && f ? { alarm: a, finding: f, look: severityLook(a.severity) } : null;
-  });
   protected readonly scanChoice = computed(() => this.choices().find((c) => c.kind === 'scan')!);
   protected readonly gotoChoice = computed(() => this.choices().find((c) => c.kind === 'goto')!);
-  protected readonly scanFacts = computed(() => {
-    const s = this.scan();
-    return s ? scanFindings(s) : null;
-  });
-  protected readonly scanOptions = computed(() => {
-    void this.scheme.current();
-    const s = this.scan();
-    return s ? scanHeatmapOptions(s, readPalette()) : null;
-  });
 
   protected readonly look = computed(() => statusLook(this.state()));
   protected readonly meId = computed(() => this.session.me()?.id ?? null);
@@ -133,55 +110,19 @@ export class UnitView {
     const holds = this.holds() ?? s?.holds ?? [];
     return commandChoices(this.session.role(), s ? { ...s, holds, onHold: s.onHold || holds.length > 0 } : null, this.meId(), holds);
   });
-  protected readonly settings = computed<UnitConfig | null>(() => {
-    const c: UnitConfig = {};
-    const put = (k: keyof UnitConfig, v: number | null, min: number, max: number): boolean => {
-      if (v === null || v === undefined || (v as unknown) === '') return true;
-      if (!Number.isFinite(v) || v < min || v > max) return false;
-      c[k] = v;
-      return true;
-    };
-    const ok = put('detectorTiltDeg', this.cfgDetectorTilt(), 0.5, 45) && put('gain', this.cfgGain(), 0.001, 100)
-      && put('deadbandWm2', this.cfgDeadband(), 0, 500) && put('reportIntervalS', this.cfgReportInterval(), 1, 3600);
-    return ok && Object.keys(c).length ? c : null;
-  });
   protected readonly canSeeTraces = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
   protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
-  protected readonly hourOptions = computed(() => {
-    void this.scheme.current();
-    return lastHourOptions(this.hour(), readPalette(), this.zone(), Math.max(this.now(), this.hour().at(-1)?.t ?? 0));
-  });
-  protected readonly domeOptions = computed(() => {
-    void this.scheme.current();
-    const p = readPalette();
-    const pts: DomePoint[] = [];
-    const l = this.landscape();
-    if (l) {
-      const others = l.localMaxima.filter((m) => m.tiltDeg !== l.globalMax.tiltDeg || m.azimuthDeg !== l.globalMax.azimuthDeg);
-      for (const [i, m] of others.entries()) {
-        pts.push({ name: i === 0 ? 'Lesser peak' : `Lesser peak ${i + 1}`, ...normalToDome(m.tiltDeg, m.azimuthDeg), symbol: 'diamond', size: 14, colour: p.caution, label: `${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %` });
-      }
-      const g = l.localMaxima.find((m) => m.tiltDeg === l.globalMax.tiltDeg && m.azimuthDeg === l.globalMax.azimuthDeg);
-      pts.push({ name: 'Modelled best', ...normalToDome(l.globalMax.tiltDeg, l.globalMax.azimuthDeg), symbol: 'pin', size: 24, colour: p.good, label: `best ${Math.round(l.globalMax.wm2)} W/m²${g ? ` · basin ${Math.round(g.basinShare * 100)} %` : ''}` });
-      if (l.sun) pts.push({ name: 'Sun', azimuthDeg: l.sun.azimuthDeg, elevationDeg: l.sun.elevationDeg, symbol: 'circle', size: 20, colour: p.accent, label: 'sun' });
-    }
-    const s = this.state();
-    if (s?.tiltDeg !== null && s?.tiltDeg !== undefined && s.azimuthDeg !== null) {
-      pts.push({ name: 'Panel points here', ...normalToDome(s.tiltDeg, s.azimuthDeg), symbol: TONE_SYMBOL[this.look().tone] === 'emptyCircle' ? 'emptyCircle' : 'triangle', size: 18, colour: p.primary, label: s.serial });
-    }
-    return skyDomeOptions({ points: pts }, p);
-  });
-
   protected readonly siteTime = siteTime;
   protected readonly utcTime = utcTime;
   protected readonly ago = ago;
   protected readonly withUnit = withUnit;
-  protected readonly statusLabel = STATUS_LOOK;
-  protected readonly commandParams = commandParams;
-  protected readonly alarmKindLabel = alarmKindLabel;
   protected readonly canSendCommands = computed(() => COMMAND_ROLES.includes(this.session.role() ?? 'owner'));
-  protected readonly queuedNote = queuedNote;
   protected readonly holderNames = holderNames;
+  /** The unit has reported and is offline now: commands wait in the queue. */
+  protected readonly offline = computed(() => {
+    const s = this.state();
+    return !!s && !s.online;
+  });
 
   constructor() {
     effect(() => {
@@ -207,9 +148,6 @@ export class UnitView {
           this.scanCommand.set(msg.command);
           if (msg.command.status === 'completed') this.loadScan(msg.command.id);
         }
-      } else if (msg.type === 'alarm') {
-        const a = toAlarmView(msg.alarm);
-        if (a && a.unitId === u.id) this.alarms.set(upsertAlarm(this.alarms(), a));
       }
     });
     interval(5000).pipe(takeUntilDestroyed()).subscribe(() => this.now.set(Date.now()));
@@ -231,15 +169,11 @@ export class UnitView {
         this.loading.set(false);
         this.live.watch({ unitId: unit.id }, this.destroyRef);
         this.siteApi.get(unit.siteId).subscribe({ next: (s) => this.site.set(s), error: () => undefined });
-        this.api.state(unit.id).subscribe({ next: (s) => s && this.state.set(s), error: () => undefined });
+        this.unitApi.state(unit.id).subscribe({ next: (s) => s && this.state.set(s), error: () => undefined });
         this.loadHour(unit.id);
         this.loadLandscape();
         this.loadCommands();
         this.loadHolds();
-        this.alarmApi.list({ unitId: unit.id }).subscribe((r) => {
-          if (r.available) this.alarms.set(r.alarms);
-          else this.alarmsUnavailable.set(r.reason);
-        });
         this.loadScan();
       },
       error: (e: unknown) => {
@@ -254,7 +188,7 @@ export class UnitView {
   private loadHour(unitId: number): void {
     const to = new Date(Date.now() + 60_000);
     this.hourLoading.set(true);
-    this.api.telemetry(unitId, new Date(to.getTime() - 3_660_000), to).subscribe({
+    this.telemetryApi.telemetry(unitId, new Date(to.getTime() - 3_660_000), to).subscribe({
       next: (rows) => {
         const merged = [...rows.map(pointFromRow), ...this.hour()].sort((a, b) => a.t - b.t).filter((p, i, a) => i === 0 || p.t !== a[i - 1]!.t);
         this.hour.set(merged);
@@ -268,7 +202,7 @@ export class UnitView {
     const u = this.unit();
     if (!u) return;
     this.landscapeProblem.set(null);
-    this.api.landscape(u.siteId, new Date(), u.detectorTiltDeg, false, 3).subscribe({
+    this.landscapeApi.landscape(u.siteId, new Date(), u.detectorTiltDeg, false, 3).subscribe({
       next: (l) => {
         this.landscape.set(l);
         if (this.gotoTilt() === null) {
@@ -283,7 +217,7 @@ export class UnitView {
   private loadCommands(): void {
     const u = this.unit();
     if (!u) return;
-    this.api.commands(u.id).subscribe({
+    this.commandApi.commands(u.id).subscribe({
       next: (list) => this.commands.set(list.reduce((acc, c) => upsertCommand(acc, c), [] as CommandView[])),
       error: (e: unknown) => this.commandsProblem.set(toApiProblem(e).message),
     });
@@ -293,7 +227,7 @@ export class UnitView {
     const u = this.unit();
     if (!u) return;
     this.holdsProblem.set(null);
-    this.api.holds(u.id).subscribe({
+    this.commandApi.holds(u.id).subscribe({
       next: (h) => this.holds.set(h.active),
       error: (e: unknown) => this.holdsProblem.set(toApiProblem(e).message),
     });
@@ -320,21 +254,6 @@ export class UnitView {
         const p = toApiProblem(e);
         this.scanLoading.set(false);
         this.scanProblem.set(p.status === 404 ? (commandId ? 'The unit has not reported samples for this scan yet.' : 'This unit has no scan yet. Send one first.') : `The scan could not be loaded. ${p.message}`);
-      },
-    });
-  }
-
-  protected acknowledge(a: AlarmView): void {
-    this.acking.set(a.id);
-    this.alarmApi.acknowledge(a.id).subscribe({
-      next: (v) => {
-        this.acking.set(null);
-        this.alarms.set(upsertAlarm(this.alarms(), v));
-        this.notify.done(`Acknowledged: ${alarmKindLabel(v.kind)}.`);
-      },
-      error: (e: unknown) => {
-        this.acking.set(null);
-        this.notify.problem(`The alarm was not acknowledged. ${toApiProblem(e).message}`);
       },
     });
   }
@@ -405,11 +324,10 @@ export class UnitView {
     );
   }
 
-  /** Sends the settings in the form through the confirmation. */
-  protected sendSettings(): void {
+  /** Sends the settings from the form through the confirmation. */
+  protected sendSettings(config: UnitConfig): void {
     const u = this.unit();
-    const config = this.settings();
-    if (!u || !config) return;
+    if (!u) return;
     this.confirmThen(
       {
         title: `Send new settings — ${u.serial}?`,
@@ -435,7 +353,7 @@ export class UnitView {
         if (!r) return;
         const req = request(r);
         this.sending.set(req.kind);
-        this.api.issue(u.id, req).subscribe({
+        this.commandApi.issue(u.id, req).subscribe({
           next: (c) => {
             this.sending.set(null);
             this.commands.set(upsertCommand(this.commands(), c));

@@ -14,8 +14,8 @@ import type { AuditLogEntry, AuditQuery } from '../../../../shared/contracts/aud
 import { siteTime, utcTime } from '../../live/unit-status';
 import { toApiProblem } from '../../ui/api-error';
 import { Notify } from '../../ui/notify';
-import { UserApi } from '../user-api';
-import { AuditApi } from './audit-api';
+import { UserApi } from '../../core/user-api';
+import { AuditApi } from '../../core/audit-api';
 import { ACTION_LOOKS, actionLook, detailText } from './audit-words';
 
 /** The filters as the form holds them (`from`/`to` are `datetime-local` values in the reader's zone). */

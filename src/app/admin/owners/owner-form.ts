@@ -9,7 +9,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { Owner, OwnerInput } from '../../../../shared/contracts/api';
 import { applyServerErrors } from '../../ui/api-error';
 import { errorText } from '../../ui/validation';
-import { OwnerApi } from '../owner-api';
+import { OwnerApi } from '../../core/owner-api';
 
 /** Add or edit an owner; closes with the saved owner. */
 @Component({

@@ -11,7 +11,7 @@ import { MatTableModule } from '@angular/material/table';
 import type { Owner } from '../../../../shared/contracts/api';
 import { Notify } from '../../ui/notify';
 import { TableData } from '../../ui/table-data';
-import { OwnerApi } from '../owner-api';
+import { OwnerApi } from '../../core/owner-api';
 import { OwnerForm } from './owner-form';
 
 @Component({

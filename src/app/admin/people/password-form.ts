@@ -9,7 +9,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { User } from '../../../../shared/contracts/api';
 import { applyServerErrors } from '../../ui/api-error';
 import { errorText, MAX_PASSWORD_BYTES, maxUtf8Bytes, MIN_PASSWORD_LENGTH } from '../../ui/validation';
-import { UserApi } from '../user-api';
+import { UserApi } from '../../core/user-api';
 
 /** Sets a new password for someone; closes with `true` once the server has taken it. */
 @Component({

@@ -16,8 +16,8 @@ import { ConfirmDialog, ConfirmDialogData } from '../../ui/confirm-dialog';
 import { toApiProblem } from '../../ui/api-error';
 import { Notify } from '../../ui/notify';
 import { TableData } from '../../ui/table-data';
-import { OwnerApi } from '../owner-api';
-import { UserApi } from '../user-api';
+import { OwnerApi } from '../../core/owner-api';
+import { UserApi } from '../../core/user-api';
 import { PasswordForm } from './password-form';
 import { UserForm, UserFormData } from './user-form';
 

@@ -12,7 +12,7 @@ import { ROLES, type Owner, type Role, type User } from '../../../../shared/cont
 import { ROLE_LABELS } from '../../auth/roles';
 import { applyServerErrors } from '../../ui/api-error';
 import { errorText, MAX_PASSWORD_BYTES, maxUtf8Bytes, MIN_PASSWORD_LENGTH } from '../../ui/validation';
-import { UserApi } from '../user-api';
+import { UserApi } from '../../core/user-api';
 
 export interface UserFormData {
   /** The person to edit, or null to add one. */

@@ -11,7 +11,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { MatSlideToggleModule } from '@angular/material/slide-toggle';
 import type { Owner, Site, SiteInput } from '../../../../shared/contracts/api';
-import { SiteApi } from '../../sites/site-api';
+import { SiteApi } from '../../core/site-api';
 import { applyServerErrors } from '../../ui/api-error';
 import { errorText, inRange, oneOf, timeZones } from '../../ui/validation';
 

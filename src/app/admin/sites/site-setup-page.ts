@@ -13,11 +13,11 @@ import { MatTooltipModule } from '@angular/material/tooltip';
 import { RouterLink } from '@angular/router';
 import type { Owner, Site } from '../../../../shared/contracts/api';
 import { LocationPipe } from '../../sites/location-pipe';
-import { SiteApi } from '../../sites/site-api';
+import { SiteApi } from '../../core/site-api';
 import { toApiProblem } from '../../ui/api-error';
 import { Notify } from '../../ui/notify';
 import { TableData } from '../../ui/table-data';
-import { OwnerApi } from '../owner-api';
+import { OwnerApi } from '../../core/owner-api';
 import { SiteForm, SiteFormData } from './site-form';
 
 @Component({

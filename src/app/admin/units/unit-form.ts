@@ -11,7 +11,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatSlideToggleModule } from '@angular/material/slide-toggle';
 import type { Site, Unit, UnitInput } from '../../../../shared/contracts/api';
 import { WIRE_RANGES } from '../../../../shared/contracts/wire-format';
-import { UnitApi, UnitWithSecret } from '../../sites/unit-api';
+import { UnitApi, UnitWithSecret } from '../../core/unit-api';
 import { applyServerErrors } from '../../ui/api-error';
 import { above, errorText, inRange, serial } from '../../ui/validation';
 

@@ -1,7 +1,7 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { inject, Injectable } from '@angular/core';
 import { Observable } from 'rxjs';
-import type { AuditPage, AuditQuery } from '../../../../shared/contracts/audit';
+import type { AuditPage, AuditQuery } from '../../../shared/contracts/audit';
 
 /** `GET /api/audit` (admins only). */
 @Injectable({ providedIn: 'root' })

@@ -2,6 +2,7 @@ import { HttpClient, HttpParams } from '@angular/common/http';
 import { inject, Injectable } from '@angular/core';
 import { Observable } from 'rxjs';
 import type { Unit, UnitInput } from '../../../shared/contracts/api';
+import type { UnitLiveState } from '../../../shared/contracts/live';
 
 /** A new unit with its MQTT device secret, which the server shows only this once. */
 export interface UnitWithSecret {
@@ -9,6 +10,7 @@ export interface UnitWithSecret {
   deviceSecret: string;
 }
 
+/** Units: the list, one unit, its latest live state, and the admin's changes. */
 @Injectable({ providedIn: 'root' })
 export class UnitApi {
   private readonly http = inject(HttpClient);
@@ -21,6 +23,11 @@ export class UnitApi {
 
   get(id: number): Observable<Unit> {
     return this.http.get<Unit>(`/api/units/${id}`);
+  }
+
+  /** The unit's latest live state; null before its first report. */
+  state(id: number): Observable<UnitLiveState | null> {
+    return this.http.get<UnitLiveState | null>(`/api/units/${id}/state`);
   }
 
   create(input: UnitInput): Observable<UnitWithSecret> {
