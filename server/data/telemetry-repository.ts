@@ -44,6 +44,8 @@ const QUARTER_MS = 15 * MINUTE_MS;
 
 /** Identity of a telemetry row (its primary key), as the ingest compares rows. */
 export const telemetryKey = (unitId: number, ts: Date) => `${unitId}|${ts.getTime()}`;
+/** Identity of a weather row (its primary key). */
+export const weatherKey = (siteId: number, ts: Date) => `${siteId}|${ts.getTime()}`;
 /** Identity of a unit event row (its primary key). */
 export const eventKey = (unitId: number, ts: Date, kind: string) => `${unitId}|${ts.getTime()}|${kind}`;
 
@@ -68,9 +70,11 @@ export class TelemetryRepository {
     return out.map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])));
   }
 
-  /** Site weather readings; returns how many were new. */
-  async insertWeather(rows: WeatherRow[]): Promise<number> {
-    return rows.length ? this.insertIgnore(this.db, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[]) : 0;
+  /** Like insertTelemetry, for site weather readings (key: site, ts). */
+  async insertWeather(rows: WeatherRow[]): Promise<string[]> {
+    if (!rows.length) return [];
+    const out = await this.insertIgnoreReturning(this.db, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[], ['site_id', 'ts']);
+    return out.map((r) => weatherKey(Number(r['site_id']), r['ts'] as Date));
   }
 
   private statement(table: string, cols: string[], rows: Record<string, unknown>[]): { sql: string; values: Knex.RawBinding[] } {
@@ -78,12 +82,6 @@ export class TelemetryRepository {
     const values: Knex.RawBinding[] = [];
     for (const r of rows) for (const c of cols) values.push(r[c] as Knex.RawBinding);
     return { sql: `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`, values };
-  }
-
-  private async insertIgnore(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[]): Promise<number> {
-    const { sql, values } = this.statement(table, cols, rows);
-    const [res] = (await db.raw(sql, values)) as unknown as [{ affectedRows: number }];
-    return res.affectedRows;
   }
 
   /**

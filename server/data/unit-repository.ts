@@ -21,6 +21,18 @@ export interface UnitRow {
   weather_station?: number | boolean;
 }
 
+/** What the in-memory unit directory keeps of each unit (with its site's owner and time zone). */
+export interface UnitDirectoryEntry {
+  id: number;
+  serial: string;
+  siteId: number;
+  ownerId: number;
+  timeZone: string;
+  disabled: boolean;
+  detectorTiltDeg: number;
+  weatherStation: boolean;
+}
+
 export class UnitRepository {
   constructor(private readonly db: Db) {}
 
@@ -44,6 +56,17 @@ export class UnitRepository {
   /** Credentials lookup for the broker: serial → secret hash and whether the unit may connect. */
   findCredentials(serial: string): Promise<Pick<UnitRow, 'id' | 'serial' | 'site_id' | 'device_secret_hash' | 'disabled'> | undefined> {
     return this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled');
+  }
+
+  /** Every unit with its site's owner and time zone (the unit directory's load). */
+  async directory(): Promise<UnitDirectoryEntry[]> {
+    const rows = await this.db('units as u')
+      .join('sites as s', 's.id', 'u.site_id')
+      .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.detector_tilt_deg', 'u.weather_station');
+    return rows.map((r) => ({
+      id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
+      disabled: Boolean(r.disabled), detectorTiltDeg: r.detector_tilt_deg, weatherStation: Boolean(r.weather_station),
+    }));
   }
 
   async findBySerial(serial: string): Promise<{ id: number } | undefined> {

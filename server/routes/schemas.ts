@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { ROLES } from '../../shared/contracts/api';
+import { lampSchema, reflectorSchema, skyTypeSchema } from '../../shared/sky-file';
 import { MAX_PASSWORD_BYTES, utf8Bytes } from '../services/passwords';
 import { num, timeZone } from './validation';
 
@@ -50,3 +51,14 @@ export const unitBody = z.strictObject({
 });
 
 export const unitListQuery = z.strictObject({ siteId: z.coerce.number().int().positive().optional() });
+
+/** A site survey: what the site sees (horizon profile, reflecting facades, lamps). */
+export const surveySchema = z.strictObject({
+  skyType: skyTypeSchema,
+  horizon: z
+    .array(z.tuple([z.number().min(0).max(359.999999), z.number().min(0).max(90)], { error: 'must be a pair [azimuthDeg 0…360, elevationDeg 0…90]' }))
+    .max(720)
+    .refine((h) => h.every((p, i) => i === 0 || p[0] >= h[i - 1]![0]), 'must be sorted by azimuth'),
+  reflectors: z.array(reflectorSchema).max(20),
+  lamps: z.array(lampSchema).max(50),
+});

@@ -6,7 +6,7 @@ import type { AdminService } from '../services/admin-service';
 import { COMMANDING_ROLES, type CommandService } from '../services/command-service';
 import type { IngestService } from '../services/ingest-service';
 import type { LiveHub } from '../services/live-hub';
-import type { TelemetryRepository } from '../data/telemetry-repository';
+import type { TelemetryHistory } from '../services/telemetry-history';
 import type { RollupWorker } from '../services/rollup-worker';
 import type { BrokerCounters } from '../../broker/broker';
 import { AppError, badRequest, forbidden } from '../errors/app-error';
@@ -34,7 +34,7 @@ export interface TelemetryRouteDeps {
   commands: CommandService;
   ingest: IngestService;
   live: LiveHub;
-  telemetry: TelemetryRepository;
+  telemetry: TelemetryHistory;
   rollups: RollupWorker;
   /** What the broker turned away (bad packets, refused CONNECTs, ACL refusals). */
   brokerCounters?: () => BrokerCounters;

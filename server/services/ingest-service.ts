@@ -1,10 +1,9 @@
 import type { Logger } from 'pino';
-import { z } from 'zod';
 import {
   MAX_PAYLOAD_BYTES, ackSchema, eventSchema, statusSchema, telemetrySchema, weatherSchema,
-  type CommandAck, type Telemetry, type UnitEvent, type UnitStatus,
+  type CommandAck, type Telemetry, type UnitEvent, type UnitStatus, type Weather,
 } from '../../shared/contracts/wire';
-import { eventKey, telemetryKey, type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow } from '../data/telemetry-repository';
+import { eventKey, telemetryKey, weatherKey, type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow } from '../data/telemetry-repository';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 /**
@@ -49,6 +48,8 @@ export interface IngestListeners {
   telemetry?: (unit: UnitInfo, t: Telemetry) => void;
   stored?: (unit: UnitInfo, t: Telemetry) => void;
   event?: (unit: UnitInfo, e: UnitEvent) => void;
+  /** A site weather reading, from the unit that carries the site's station (heard like `event`: once, after its commit). */
+  weather?: (unit: UnitInfo, w: Weather) => void;
   /** A command answer; when it returns a promise, the unit's PUBACK waits for it (a rejection closes the connection, so the unit resends). */
   ack?: (unit: UnitInfo, a: CommandAck) => void | Promise<void>;
   status?: (unit: UnitInfo, s: UnitStatus) => void;
@@ -73,7 +74,12 @@ export type Acknowledge = (err?: Error) => void;
 
 interface HeldTelemetry { row: TelemetryRow; unit: UnitInfo; t: Telemetry; ack: Acknowledge | undefined }
 interface HeldEvent { row: EventRow; unit: UnitInfo; e: UnitEvent; ack: Acknowledge | undefined }
-interface HeldWeather { row: WeatherRow; ack: Acknowledge | undefined }
+interface HeldWeather { row: WeatherRow; unit: UnitInfo; w: Weather; ack: Acknowledge | undefined }
+
+/** A wire schema as the ingest uses it (the zod schemas of shared/contracts/wire have this shape). */
+interface PayloadSchema<T> {
+  safeParse(value: unknown): { success: true; data: T } | { success: false; error: { issues: readonly { path: readonly PropertyKey[]; message: string }[] } };
+}
 
 /**
  * Validates unit messages and writes them to MariaDB in batched multi-row inserts, one commit per statement (a group
@@ -188,7 +194,7 @@ export class IngestService {
         const ts = Date.parse(w.ts);
         const bad = this.checkTime(serial, ts);
         if (bad) return refuse(bad);
-        this.weather.push({ row: { site_id: unit.siteId, ts: new Date(ts), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs }, ack });
+        this.weather.push({ row: { site_id: unit.siteId, ts: new Date(ts), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs }, unit, w, ack });
         break;
       }
       case 'acks': {
@@ -218,7 +224,7 @@ export class IngestService {
     this.reject(serial, reason, topic ? `publish to ${topic}` : 'packet over the size limit');
   }
 
-  private validate<T extends z.ZodType>(serial: string, schema: T, json: unknown): z.infer<T> | null {
+  private validate<T>(serial: string, schema: PayloadSchema<T>, json: unknown): T | null {
     const r = schema.safeParse(json);
     if (r.success) return r.data;
     const first = r.error.issues[0]!;
@@ -290,11 +296,12 @@ export class IngestService {
   private async write(batch: number, t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
     let newTelemetry: Set<string> | undefined;
     let newEvents: Set<string> | undefined;
+    let newWeather: Set<string> | undefined;
     let failure: unknown;
     try {
       newTelemetry = new Set(await this.repo.insertTelemetry(t.map((x) => x.row)));
       newEvents = new Set(await this.repo.insertEvents(e.map((x) => x.row)));
-      await this.repo.insertWeather(w.map((x) => x.row));
+      newWeather = new Set(await this.repo.insertWeather(w.map((x) => x.row)));
     } catch (err) {
       failure = err;
     }
@@ -304,6 +311,8 @@ export class IngestService {
     const wDone = failure === undefined;
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
     this.inOrder(batch, () => {
+      // Weather first: a gust demands a stow of the units whose reports of the same batch are judged next.
+      if (newWeather) for (const x of w) if (newWeather.delete(weatherKey(x.row.site_id, x.row.ts))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
       if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
       if (newEvents) for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
     });
