@@ -55,7 +55,7 @@ export function alarmRoutes(d: AlarmRouteDeps): Router {
     res.json(await d.alarms.get(callerOf(req), id(req.params)));
   });
 
-  r.post('/alarms/:id/acknowledge', requireRole('technician', 'engineer', 'admin'), async (req, res) => {
+  r.post('/alarms/:id/acknowledge', requireRole('acknowledgeAlarms'), async (req, res) => {
     res.json(await d.alarms.acknowledge(callerOf(req), id(req.params)));
   });
 
@@ -67,13 +67,13 @@ export function alarmRoutes(d: AlarmRouteDeps): Router {
     res.json(await d.settings.siteSettings(callerOf(req), id(req.params)));
   });
 
-  r.put('/sites/:id/health-settings', requireRole('engineer', 'admin'), async (req, res) => {
+  r.put('/sites/:id/health-settings', requireRole('editHealthSettings'), async (req, res) => {
     const siteId = id(req.params);
     await d.admin.getSite(callerOf(req), siteId); // an unknown site is a 404 before its body is judged
     res.json(await d.settings.saveSiteSettings(callerOf(req), siteId, parse(healthSettingsOverrideSchema, req.body, 'The health settings')));
   });
 
-  r.post('/health/run', requireRole('engineer', 'technician', 'admin'), async (req, res) => {
+  r.post('/health/run', requireRole('runHealth'), async (req, res) => {
     res.json(await d.replay.runRange(callerOf(req), parse(runBody, req.body)));
   });
   return r;

@@ -15,7 +15,7 @@ export function siteModelRoutes(admin: AdminService, model: SiteModelService): R
     const site = await admin.getSite(callerOf(req), id(req.params));
     res.json(await model.survey(site.id));
   });
-  r.put('/sites/:id/survey', requireRole('admin', 'engineer'), async (req, res) => {
+  r.put('/sites/:id/survey', requireRole('editSurvey'), async (req, res) => {
     const site = await admin.getSite(callerOf(req), id(req.params));
     // The body as sent (no empty-object default): a missing survey is named as such.
     const body = surveySchema.safeParse(req.body);

@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { COMMAND_KINDS, unitConfigSchema } from '../../shared/contracts/wire';
 import { HOLD_TEXT_MAX } from '../../shared/contracts/holds';
 import type { AdminService } from '../services/admin-service';
-import { COMMANDING_ROLES, type CommandService } from '../services/command-service';
+import type { CommandService } from '../services/command-service';
+import { may } from '../../shared/contracts/permissions';
 import type { IngestService } from '../services/ingest-service';
 import type { LiveHub } from '../services/live-hub';
 import type { TelemetryHistory } from '../services/telemetry-history';
@@ -69,7 +70,7 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
     let unitId: number;
     let body: z.infer<typeof commandBody>;
     try {
-      if (!COMMANDING_ROLES.includes(caller.role)) throw forbidden();
+      if (!may(caller.role, 'command')) throw forbidden();
       unitId = id(req.params);
       body = parse(commandBody, req.body);
     } catch (err) {
@@ -86,7 +87,7 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
     res.json(await d.commands.holds(callerOf(req), id(req.params)));
   });
 
-  r.get('/metrics', requireRole('admin', 'engineer', 'technician'), (_req, res) => {
+  r.get('/metrics', requireRole('readMetrics'), (_req, res) => {
     res.json({ ingest: { ...d.ingest.counters, buffered: d.ingest.bufferedRows }, broker: d.brokerCounters?.() ?? null, rollups: { passes: d.rollups.passes } });
   });
   return r;

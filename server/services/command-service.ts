@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import type { Logger } from 'pino';
 import type { CommandView, IssueCommandRequest } from '../../shared/contracts/live';
 import type { HoldView, UnitHolds } from '../../shared/contracts/holds';
+import { may } from '../../shared/contracts/permissions';
 import { MOTION_COMMANDS, type Command, type CommandAck, type CommandKind } from '../../shared/contracts/wire';
 import { AppError, badRequest, forbidden, notFound } from '../errors/app-error';
 import type { CommandRow, CommandStore, CommandTx } from '../data/command-repository';
@@ -21,9 +22,6 @@ export const DEFAULT_COMMAND_OPTIONS: CommandOptions = { ackTimeoutMs: 30_000, q
 
 /** Publishes a command to a unit's `commands` topic (QoS 1). */
 export type CommandPublisher = (serial: string, command: Command) => Promise<void>;
-
-/** Roles that may send commands at all; crews only hold and release. */
-export const COMMANDING_ROLES: readonly Caller['role'][] = ['admin', 'engineer', 'technician', 'crew'];
 
 /**
  * Hold and release-hold carry the state the unit must end up in: they wait in the queue for as long as the unit is
@@ -156,7 +154,7 @@ export class CommandService {
   }
 
   private checkRequest(by: Caller, unit: UnitInfo, req: IssueCommandRequest): void {
-    if (!COMMANDING_ROLES.includes(by.role)) throw forbidden('Owners cannot command units.');
+    if (!may(by.role, 'command')) throw forbidden('Owners cannot command units.');
     if (by.role === 'crew' && !HOLD_KINDS.includes(req.kind)) throw forbidden('Field crews may only put a unit on maintenance hold or release it.');
     const misplaced: Record<string, string> = {};
     if (req.note !== undefined && req.kind !== 'hold') misplaced['note'] = 'Only for hold.';

@@ -23,8 +23,8 @@ import { UnitApi } from '../sites/unit-api';
 import { toApiProblem } from '../ui/api-error';
 import { Notify } from '../ui/notify';
 import type { ScanResult } from '../../../shared/contracts/alarms';
+import { may } from '../../../shared/contracts/permissions';
 import { AlarmCard } from '../alarms/alarm-card';
-import { ACK_ROLES } from '../alarms/alarm-board';
 import { AlarmApi, toAlarmView, type AlarmView } from '../live/alarm-api';
 import { alarmKindLabel, severityLook, sortAlarms, trapFinding, upsertAlarm } from '../live/alarm-look';
 import { FleetApi } from '../live/fleet-api';
@@ -35,7 +35,7 @@ import { ago, siteTime, statusLook, utcTime, withUnit } from '../live/unit-statu
 import { ColourScheme } from '../shell/colour-scheme';
 import { CommandConfirm, type CommandConfirmData, type CommandConfirmResult } from './command-confirm';
 import {
-  COMMAND_ROLES, CONFIGURE_CAUTION, commandChoices, commandParams, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
+  CONFIGURE_CAUTION, commandChoices, commandParams, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
   MOTION_CAUTION, ownHold, queuedNote, RELEASE_CAUTION, STATUS_LOOK, upsertCommand, type CommandChoice,
 } from './commands';
 import { HoldPanel } from './hold-panel';
@@ -104,7 +104,7 @@ export class UnitView {
 
   protected readonly sortedAlarms = computed(() => sortAlarms(this.alarms()).slice(0, 20));
   protected readonly openAlarmCount = computed(() => this.alarms().filter((a) => a.state !== 'cleared').length);
-  protected readonly canAcknowledge = computed(() => ACK_ROLES.includes(this.session.role() ?? ''));
+  protected readonly canAcknowledge = computed(() => may(this.session.role(), 'acknowledgeAlarms'));
   /** The most urgent open trap alarm's finding: where the modelled best is and what is lost. */
   protected readonly trap = computed(() => {
     const a = sortAlarms(this.alarms().filter((x) => x.kind === 'trap' && x.state !== 'cleared'))[0];
@@ -145,7 +145,7 @@ export class UnitView {
       && put('deadbandWm2', this.cfgDeadband(), 0, 500) && put('reportIntervalS', this.cfgReportInterval(), 1, 3600);
     return ok && Object.keys(c).length ? c : null;
   });
-  protected readonly canSeeTraces = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
+  protected readonly canSeeTraces = computed(() => may(this.session.role(), 'readTraces'));
   protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
   protected readonly hourOptions = computed(() => {
     void this.scheme.current();
@@ -179,7 +179,7 @@ export class UnitView {
   protected readonly statusLabel = STATUS_LOOK;
   protected readonly commandParams = commandParams;
   protected readonly alarmKindLabel = alarmKindLabel;
-  protected readonly canSendCommands = computed(() => COMMAND_ROLES.includes(this.session.role() ?? 'owner'));
+  protected readonly canSendCommands = computed(() => may(this.session.role(), 'commandMotion'));
   protected readonly queuedNote = queuedNote;
   protected readonly holderNames = holderNames;
 
