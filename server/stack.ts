@@ -188,7 +188,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     onDenied: countDenied(ingest),
     authenticate: async (username, password): Promise<Principal | null> => {
       const u = await units.findCredentials(username);
-      if (!u || u.disabled || !deviceSecretMatches(password, u.device_secret_hash)) return null;
+      if (!u || u.disabled || !deviceSecretMatches(password, u.deviceSecretHash)) return null;
       return { kind: 'unit', serial: u.serial };
     },
   }).catch(async (err) => {

@@ -1,4 +1,5 @@
 import type { Knex } from 'knex';
+import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
 import type { Db } from './db';
 
 /** A validated telemetry row as stored (UTC `Date`s). */
@@ -31,6 +32,24 @@ export const TELEMETRY_COLUMNS: (keyof TelemetryRow)[] = [
 export interface EventRow { unit_id: number; ts: Date; kind: string; body: string }
 export interface WeatherRow { site_id: number; ts: Date; ghi_wm2: number; dhi_wm2: number | null; air_temp_c: number; wind_ms: number; gust_ms: number }
 
+/** The stored row of a validated report (`tsMs` its parsed timestamp, `receivedMs` when it arrived). */
+export function telemetryRowOf(unitId: number, t: Telemetry, tsMs: number, receivedMs: number): TelemetryRow {
+  return {
+    unit_id: unitId, ts: new Date(tsMs), seq: t.seq, tilt_plus_wm2: t.tiltPlusWm2, tilt_minus_wm2: t.tiltMinusWm2,
+    azimuth_plus_wm2: t.azimuthPlusWm2, azimuth_minus_wm2: t.azimuthMinusWm2, poa_wm2: t.poaWm2, tilt_deg: t.tiltDeg,
+    azimuth_deg: t.azimuthDeg, cmd_tilt_deg: t.cmdTiltDeg, cmd_azimuth_deg: t.cmdAzimuthDeg, tilt_motor_a: t.tiltMotorA,
+    azimuth_motor_a: t.azimuthMotorA, dc_power_w: t.dcPowerW, module_temp_c: t.moduleTempC, mode: t.mode, received_at: new Date(receivedMs),
+  };
+}
+
+/** The stored row of a validated unit event. */
+export const eventRowOf = (unitId: number, e: UnitEvent, tsMs: number): EventRow => ({ unit_id: unitId, ts: new Date(tsMs), kind: e.kind, body: JSON.stringify(e) });
+
+/** The stored row of a validated weather reading of a site. */
+export const weatherRowOf = (siteId: number, w: Weather, tsMs: number): WeatherRow => ({
+  site_id: siteId, ts: new Date(tsMs), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs,
+});
+
 const MINUTE_MS = 60_000;
 
 /** Column stem in `telemetry_1m` and the expression over a raw row, for each quantity whose per-minute extremes are kept. */
@@ -44,6 +63,10 @@ const QUARTER_MS = 15 * MINUTE_MS;
 
 /** Identity of a telemetry row (its primary key), as the ingest compares rows. */
 export const telemetryKey = (unitId: number, ts: Date) => `${unitId}|${ts.getTime()}`;
+/** Identities of stored rows, as the insert methods return them for the rows that were new. */
+export const telemetryRowKey = (r: TelemetryRow) => telemetryKey(r.unit_id, r.ts);
+export const eventRowKey = (r: EventRow) => eventKey(r.unit_id, r.ts, r.kind);
+export const weatherRowKey = (r: WeatherRow) => weatherKey(r.site_id, r.ts);
 /** Identity of a weather row (its primary key). */
 export const weatherKey = (siteId: number, ts: Date) => `${siteId}|${ts.getTime()}`;
 /** Identity of a unit event row (its primary key). */

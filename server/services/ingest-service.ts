@@ -3,7 +3,10 @@ import {
   MAX_PAYLOAD_BYTES, ackSchema, eventSchema, statusSchema, telemetrySchema, weatherSchema,
   type CommandAck, type Telemetry, type UnitEvent, type UnitStatus, type Weather,
 } from '../../shared/contracts/wire';
-import { eventKey, telemetryKey, weatherKey, type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow } from '../data/telemetry-repository';
+import {
+  eventRowKey, eventRowOf, telemetryRowKey, telemetryRowOf, weatherRowKey, weatherRowOf,
+  type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow,
+} from '../data/telemetry-repository';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 /**
@@ -72,7 +75,7 @@ export interface IngestCounters {
 /** Called once a message may be acknowledged to the unit (its row committed); with an error, it must not be. */
 export type Acknowledge = (err?: Error) => void;
 
-interface HeldTelemetry { row: TelemetryRow; unit: UnitInfo; t: Telemetry; ack: Acknowledge | undefined }
+interface HeldTelemetry { row: TelemetryRow; unit: UnitInfo; t: Telemetry; tsMs: number; ack: Acknowledge | undefined }
 interface HeldEvent { row: EventRow; unit: UnitInfo; e: UnitEvent; ack: Acknowledge | undefined }
 interface HeldWeather { row: WeatherRow; unit: UnitInfo; w: Weather; ack: Acknowledge | undefined }
 
@@ -173,7 +176,7 @@ export class IngestService {
         const ts = Date.parse(t.ts);
         const bad = this.checkTime(serial, ts);
         if (bad) return refuse(bad);
-        this.telemetry.push({ row: toRow(unit.id, t, ts, this.opts.now()), unit, t, ack });
+        this.telemetry.push({ row: telemetryRowOf(unit.id, t, ts, this.opts.now()), unit, t, tsMs: ts, ack });
         this.listeners.telemetry?.(unit, t);
         break;
       }
@@ -183,7 +186,7 @@ export class IngestService {
         const ts = Date.parse(e.ts);
         const bad = this.checkTime(serial, ts);
         if (bad) return refuse(bad);
-        this.events.push({ row: { unit_id: unit.id, ts: new Date(ts), kind: e.kind, body: JSON.stringify(e) }, unit, e, ack });
+        this.events.push({ row: eventRowOf(unit.id, e, ts), unit, e, ack });
         break;
       }
       case 'weather': {
@@ -194,7 +197,7 @@ export class IngestService {
         const ts = Date.parse(w.ts);
         const bad = this.checkTime(serial, ts);
         if (bad) return refuse(bad);
-        this.weather.push({ row: { site_id: unit.siteId, ts: new Date(ts), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs }, unit, w, ack });
+        this.weather.push({ row: weatherRowOf(unit.siteId, w, ts), unit, w, ack });
         break;
       }
       case 'acks': {
@@ -266,7 +269,7 @@ export class IngestService {
   private pump(): void {
     while (this.inFlight < this.opts.flushConcurrency && this.bufferedRows > 0 && this.opts.now() >= this.retryAt) {
       // Key order inside a batch keeps concurrent flushes taking InnoDB locks in the same order (fewer deadlocks).
-      const t = this.telemetry.splice(0, this.opts.batchRows).sort((a, b) => a.row.unit_id - b.row.unit_id || a.row.ts.getTime() - b.row.ts.getTime());
+      const t = this.telemetry.splice(0, this.opts.batchRows).sort((a, b) => a.unit.id - b.unit.id || a.tsMs - b.tsMs);
       const e = t.length < this.opts.batchRows ? this.events.splice(0, this.opts.batchRows) : [];
       const w = t.length + e.length < this.opts.batchRows ? this.weather.splice(0, this.opts.batchRows) : [];
       this.inFlight++;
@@ -312,9 +315,9 @@ export class IngestService {
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
     this.inOrder(batch, () => {
       // Weather first: a gust demands a stow of the units whose reports of the same batch are judged next.
-      if (newWeather) for (const x of w) if (newWeather.delete(weatherKey(x.row.site_id, x.row.ts))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
-      if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
-      if (newEvents) for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+      if (newWeather) for (const x of w) if (newWeather.delete(weatherRowKey(x.row))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
+      if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryRowKey(x.row))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
+      if (newEvents) for (const x of e) if (newEvents.delete(eventRowKey(x.row))) this.announce(() => this.listeners.event?.(x.unit, x.e));
     });
     if (tDone) {
       this.counters.stored += storedCount;
@@ -393,13 +396,4 @@ export class IngestService {
     clearTimeout(this.timer);
     this.releaseHeld();
   }
-}
-
-function toRow(unitId: number, t: Telemetry, ts: number, now: number): TelemetryRow {
-  return {
-    unit_id: unitId, ts: new Date(ts), seq: t.seq, tilt_plus_wm2: t.tiltPlusWm2, tilt_minus_wm2: t.tiltMinusWm2,
-    azimuth_plus_wm2: t.azimuthPlusWm2, azimuth_minus_wm2: t.azimuthMinusWm2, poa_wm2: t.poaWm2, tilt_deg: t.tiltDeg,
-    azimuth_deg: t.azimuthDeg, cmd_tilt_deg: t.cmdTiltDeg, cmd_azimuth_deg: t.cmdAzimuthDeg, tilt_motor_a: t.tiltMotorA,
-    azimuth_motor_a: t.azimuthMotorA, dc_power_w: t.dcPowerW, module_temp_c: t.moduleTempC, mode: t.mode, received_at: new Date(now),
-  };
 }
