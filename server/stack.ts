@@ -211,10 +211,10 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];
   for (const row of await telemetry.latestPerUnit()) {
-    const unit = directory.byUnitId(row.unit_id);
+    const unit = directory.byUnitId(row.unitId);
     if (!unit) continue;
     live.restore(unit, row);
-    restored.push([unit, row.received_at.getTime(), row.ts.getTime()]);
+    restored.push([unit, row.receivedAt.getTime(), row.ts.getTime()]);
   }
   health.restore(restored);
   live.start();

@@ -29,6 +29,25 @@ export const TELEMETRY_COLUMNS: (keyof TelemetryRow)[] = [
   'azimuth_deg', 'cmd_tilt_deg', 'cmd_azimuth_deg', 'tilt_motor_a', 'azimuth_motor_a', 'dc_power_w', 'module_temp_c', 'mode', 'received_at',
 ];
 
+/** A unit's newest stored report (what a restart rebuilds the live picture and the comms watch from). */
+export interface LatestReport {
+  unitId: number;
+  ts: Date;
+  receivedAt: Date;
+  mode: string;
+  poaWm2: number;
+  dcPowerW: number;
+  tiltDeg: number;
+  azimuthDeg: number;
+  cmdTiltDeg: number;
+  cmdAzimuthDeg: number;
+  tiltPlusWm2: number;
+  tiltMinusWm2: number;
+  azimuthPlusWm2: number;
+  azimuthMinusWm2: number;
+  moduleTempC: number;
+}
+
 export interface EventRow { unit_id: number; ts: Date; kind: string; body: string }
 export interface WeatherRow { site_id: number; ts: Date; ghi_wm2: number; dhi_wm2: number | null; air_temp_c: number; wind_ms: number; gust_ms: number }
 
@@ -111,10 +130,15 @@ export class TelemetryRepository {
    * The newest stored report of every unit that has one (a restart rebuilds the live picture and the comms watch from
    * it). One loose index scan over the (unit_id, ts) key for the maxima, then one point read per unit.
    */
-  async latestPerUnit(): Promise<TelemetryRow[]> {
-    return this.db('telemetry as t')
+  async latestPerUnit(): Promise<LatestReport[]> {
+    const rows: TelemetryRow[] = await this.db('telemetry as t')
       .join(this.db('telemetry').select('unit_id').max({ ts: 'ts' }).groupBy('unit_id').as('m'), (j) => j.on('m.unit_id', 't.unit_id').andOn('m.ts', 't.ts'))
       .select('t.*');
+    return rows.map((r) => ({
+      unitId: r.unit_id, ts: r.ts, receivedAt: r.received_at, mode: r.mode, poaWm2: r.poa_wm2, dcPowerW: r.dc_power_w, tiltDeg: r.tilt_deg,
+      azimuthDeg: r.azimuth_deg, cmdTiltDeg: r.cmd_tilt_deg, cmdAzimuthDeg: r.cmd_azimuth_deg, tiltPlusWm2: r.tilt_plus_wm2,
+      tiltMinusWm2: r.tilt_minus_wm2, azimuthPlusWm2: r.azimuth_plus_wm2, azimuthMinusWm2: r.azimuth_minus_wm2, moduleTempC: r.module_temp_c,
+    }));
   }
 
   private async insertIgnoreReturning(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[], key: string[]): Promise<Record<string, unknown>[]> {
@@ -160,12 +184,16 @@ export class TelemetryRepository {
   }
 
   /** Quarter-hour rows of some units in a UTC window (used to sum local days). */
-  quartersBetween(unitIds: number[], from: Date, to: Date): Promise<{ unit_id: number; bucket: Date; energy_wh: number; minutes: number }[]> {
-    return this.db('telemetry_15m').whereIn('unit_id', unitIds).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('unit_id', 'bucket', 'energy_wh', 'minutes');
+  async quartersBetween(unitIds: number[], from: Date, to: Date): Promise<{ unitId: number; bucket: Date; energyWh: number; minutes: number }[]> {
+    const rows: { unit_id: number; bucket: Date; energy_wh: number; minutes: number }[] = await this.db('telemetry_15m')
+      .whereIn('unit_id', unitIds).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('unit_id', 'bucket', 'energy_wh', 'minutes');
+    return rows.map((r) => ({ unitId: r.unit_id, bucket: r.bucket, energyWh: r.energy_wh, minutes: r.minutes }));
   }
 
-  async upsertDaily(rows: { unit_id: number; local_date: string; energy_wh: number; minutes: number }[]): Promise<void> {
-    if (!rows.length) return;
+  /** Energy of units' local days [Wh] and the minutes it was summed over. */
+  async upsertDaily(days: { unitId: number; localDate: string; energyWh: number; minutes: number }[]): Promise<void> {
+    if (!days.length) return;
+    const rows = days.map((d) => ({ unit_id: d.unitId, local_date: d.localDate, energy_wh: d.energyWh, minutes: d.minutes }));
     await this.db('energy_daily').insert(rows).onConflict(['unit_id', 'local_date']).merge(['energy_wh', 'minutes']);
   }
 

@@ -120,8 +120,8 @@ export class IngestService {
     private readonly log: Logger,
     private readonly listeners: IngestListeners = {},
     opts: Partial<IngestOptions> = {},
-    /** Called with the (unit, minute) pairs of newly stored rows, for the rollups. */
-    private readonly onStored: (rows: TelemetryRow[]) => void = () => undefined,
+    /** Called with the unit and timestamp of the readings of each committed batch, for the rollups. */
+    private readonly onStored: (readings: { unitId: number; tsMs: number }[]) => void = () => undefined,
   ) {
     this.opts = { ...DEFAULT_INGEST_OPTIONS, ...opts };
   }
@@ -322,10 +322,9 @@ export class IngestService {
     if (tDone) {
       this.counters.stored += storedCount;
       this.counters.duplicates += t.length - storedCount;
-      const rows = t.map((x) => x.row);
       if (t.length) {
-        this.onStored(rows);
-        this.listeners.committed?.(rows, this.opts.now());
+        this.onStored(t.map((x) => ({ unitId: x.unit.id, tsMs: x.tsMs })));
+        if (this.listeners.committed) this.listeners.committed(t.map((x) => x.row), this.opts.now());
       }
       for (const x of t) x.ack?.();
     }
