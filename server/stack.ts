@@ -33,8 +33,19 @@ import { telemetryRoutes } from './routes/telemetry-routes';
 import { attachLiveSocket } from './routes/live-socket';
 import { siteModelRoutes } from './routes/site-model-routes';
 import { SiteModelService } from './services/site-model-service';
-import { HealthService, type HealthServiceOptions } from './services/health-service';
-import { AlarmRepository, HealthReadRepository } from './data/alarm-repository';
+import { HealthService, DEFAULT_HEALTH_SERVICE_OPTIONS, type HealthServiceOptions } from './services/health-service';
+import { AlarmRepository } from './data/alarm-repository';
+import { HealthReadRepository } from './data/health-read-repository';
+import { HealthSettingsRepository } from './data/health-settings-repository';
+import { SiteModelRepository } from './data/site-model-repository';
+import { HoldRepository } from './data/hold-repository';
+import { AlarmStore } from './services/alarm-store';
+import { AlarmService } from './services/alarm-service';
+import { HealthSettingsService } from './services/health-settings-service';
+import { HealthReplay } from './services/health-replay';
+import { ScanService } from './services/scan-service';
+import { SiteModelCache } from './services/site-model-cache';
+import { TelemetryHistory } from './services/telemetry-history';
 import { alarmRoutes } from './routes/alarm-routes';
 import { traceRoutes } from './routes/trace-routes';
 import { landscapeRoutes } from './routes/landscape-routes';
@@ -103,7 +114,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     sessionHours: config.sessionHours,
   });
   let brokerRef: RunningBroker | undefined;
-  const directory = new UnitDirectory(db);
+  const directory = new UnitDirectory(units, new HoldRepository(db));
   await directory.load();
   const live = new LiveHub(directory);
   const admin = new AdminService({ users, owners: new OwnerRepository(db), sites: new SiteRepository(db), units, audit }, passwords, auth, {
@@ -118,12 +129,17 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     },
   });
 
-  const siteModel = new SiteModelService(db);
+  const siteModel = new SiteModelService(new SiteModelRepository(db), auditLog);
   const landscapes = new LandscapeService(siteModel);
   const landscapesWarm = landscapes.startWarming(() => [...new Set(directory.all().map((u) => u.siteId))], log);
   const telemetry = new TelemetryRepository(db);
   const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
-  const health = new HealthService(new AlarmRepository(db), new HealthReadRepository(db), directory, siteModel, admin, live, log, opts.health);
+  const healthOpts: HealthServiceOptions = { ...DEFAULT_HEALTH_SERVICE_OPTIONS, ...opts.health };
+  const alarmRepo = new AlarmRepository(db);
+  const healthReads = new HealthReadRepository(db);
+  const healthSettings = new HealthSettingsService(new HealthSettingsRepository(db), admin, log, healthOpts.now);
+  const siteModels = new SiteModelCache(siteModel, log, healthOpts);
+  const health = new HealthService(new AlarmStore(alarmRepo, directory, live, log), siteModels, healthSettings, live, log, healthOpts);
   let commands: CommandService | undefined;
   const ingest = new IngestService(
     telemetry, directory, log,
@@ -132,6 +148,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       telemetry: (u, t) => { live.onTelemetry(u, t); opts.listeners?.telemetry?.(u, t); },
       stored: (u, t) => { health.telemetry(u, t); opts.listeners?.stored?.(u, t); },
       event: (u, e) => { health.event(u, e); opts.listeners?.event?.(u, e); },
+      weather: (u, w) => { health.weather(u, w); opts.listeners?.weather?.(u, w); },
       // The unit's PUBACK for an ack waits for the command to be updated; a failure closes its connection (it resends).
       ack: (u, a) => commands?.onAck(u, a).catch((err: unknown) => {
         log.error({ err }, 'command ack failed');
@@ -171,7 +188,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     onDenied: countDenied(ingest),
     authenticate: async (username, password): Promise<Principal | null> => {
       const u = await units.findCredentials(username);
-      if (!u || u.disabled || !deviceSecretMatches(password, u.device_secret_hash)) return null;
+      if (!u || u.disabled || !deviceSecretMatches(password, u.deviceSecretHash)) return null;
       return { kind: 'unit', serial: u.serial };
     },
   }).catch(async (err) => {
@@ -194,10 +211,10 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];
   for (const row of await telemetry.latestPerUnit()) {
-    const unit = directory.byUnitId(row.unit_id);
+    const unit = directory.byUnitId(row.unitId);
     if (!unit) continue;
     live.restore(unit, row);
-    restored.push([unit, row.received_at.getTime(), row.ts.getTime()]);
+    restored.push([unit, row.receivedAt.getTime(), row.ts.getTime()]);
   }
   health.restore(restored);
   live.start();
@@ -211,8 +228,14 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const app = createApp({
     log, auth, admin, webDir: config.webDir, trustProxy: config.trustProxy, allowedOrigins, pingDatabase: () => pingDatabase(db),
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
-    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry, rollups, brokerCounters: () => broker.counters }), siteModelRoutes(admin, siteModel, audit),
-      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at)), auditLog), landscapeRoutes(admin, landscapes), alarmRoutes(health),
+    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry: new TelemetryHistory(telemetry), rollups, brokerCounters: () => broker.counters }), siteModelRoutes(admin, siteModel),
+      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at)), auditLog), landscapeRoutes(admin, landscapes),
+      alarmRoutes({
+        admin, settings: healthSettings,
+        alarms: new AlarmService(alarmRepo, admin, live, healthOpts.now),
+        scans: new ScanService(healthReads, admin, directory, siteModels),
+        replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings),
+      }),
       auditRoutes(auditLog)],
   });
   const http = createServer(app);

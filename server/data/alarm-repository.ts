@@ -1,8 +1,10 @@
+import type { AlarmView } from '../../shared/contracts/alarms';
+import type { Alarm } from '../health/alarm-types';
 import type { Db } from './db';
 import type { SiteScope } from './site-repository';
 import { appendAudit, type AuditEntry } from './audit-repository';
 
-export interface AlarmRow {
+interface AlarmRow {
   id: number;
   unit_id: number | null;
   site_id: number;
@@ -22,6 +24,8 @@ export interface AlarmRow {
   acknowledged_by: number | null;
 }
 
+type AlarmListRow = AlarmRow & { serial: string | null; site_name: string; acknowledged_by_name: string | null };
+
 export interface AlarmFilter {
   siteId?: number;
   unitId?: number;
@@ -29,37 +33,52 @@ export interface AlarmFilter {
   limit?: number;
 }
 
-export type AlarmListRow = AlarmRow & { serial: string | null; site_name: string; acknowledged_by_name: string | null };
+/** What changes while an alarm stays open. */
+export type AlarmSeen = Pick<Alarm, 'severity' | 'message' | 'advice' | 'evidence' | 'lastSeenMs'>;
+/** What changes when an alarm clears. */
+export type AlarmClear = Pick<Alarm, 'clearedMs' | 'clearReason' | 'lastSeenMs'>;
 
-/** Alarms and per-site health settings. Owner scoping joins through the site. */
+/** Stored alarms. Owner scoping joins through the site. */
 export class AlarmRepository {
   constructor(private readonly db: Db) {}
 
-  async insert(row: Omit<AlarmRow, 'id'>): Promise<number> {
-    const [id] = await this.db('alarms').insert(row);
+  async insert(a: Alarm): Promise<number> {
+    const [id] = await this.db('alarms').insert(rowOf(a));
     return id!;
   }
 
-  async update(id: number, patch: Partial<Omit<AlarmRow, 'id'>>): Promise<void> {
-    await this.db('alarms').where({ id }).update(patch);
+  /** Rewrites an open alarm from the engine's record, keeping when it was first seen and raised. */
+  async restate(id: number, a: Alarm): Promise<void> {
+    const { first_seen_at: _first, raised_at: _raised, ...row } = rowOf(a);
+    await this.db('alarms').where({ id }).update(row);
   }
 
-  /** The active alarm of a unit (or a site, unitId null) and kind, if any (dedupe across restarts). */
-  async findActive(siteId: number, unitId: number | null, kind: string): Promise<AlarmRow | undefined> {
+  async markSeen(id: number, s: AlarmSeen): Promise<void> {
+    await this.db('alarms').where({ id }).update({ severity: s.severity, message: s.message.slice(0, 600), advice: s.advice.slice(0, 600), evidence: JSON.stringify(s.evidence), last_seen_at: new Date(s.lastSeenMs) });
+  }
+
+  async markCleared(id: number, c: AlarmClear): Promise<void> {
+    await this.db('alarms').where({ id }).update({ state: 'cleared', cleared_at: c.clearedMs === null ? null : new Date(c.clearedMs), clear_reason: c.clearReason, last_seen_at: new Date(c.lastSeenMs) });
+  }
+
+  /** The id of the active alarm of a unit (or a site, unitId null) and kind, if any (dedupe across restarts). */
+  async findActive(siteId: number, unitId: number | null, kind: string): Promise<number | undefined> {
     const q = this.db('alarms').where({ site_id: siteId, kind, state: 'active' });
-    return (unitId === null ? q.whereNull('unit_id') : q.where('unit_id', unitId)).orderBy('id', 'desc').first();
+    const row = await (unitId === null ? q.whereNull('unit_id') : q.where('unit_id', unitId)).orderBy('id', 'desc').first('id');
+    return row?.id;
   }
 
-  async list(scope: SiteScope, f: AlarmFilter): Promise<AlarmListRow[]> {
+  async list(scope: SiteScope, f: AlarmFilter): Promise<AlarmView[]> {
     const q = this.base(scope).orderBy('a.raised_at', 'desc').limit(f.limit ?? 500);
     if (f.siteId !== undefined) q.where('a.site_id', f.siteId);
     if (f.unitId !== undefined) q.where('a.unit_id', f.unitId);
     if (f.state) q.where('a.state', f.state);
-    return q;
+    return ((await q) as AlarmListRow[]).map(toView);
   }
 
-  async get(id: number, scope: SiteScope): Promise<AlarmListRow | undefined> {
-    return this.base(scope).where('a.id', id).first();
+  async get(id: number, scope: SiteScope): Promise<AlarmView | undefined> {
+    const row = (await this.base(scope).where('a.id', id).first()) as AlarmListRow | undefined;
+    return row ? toView(row) : undefined;
   }
 
   /**
@@ -74,54 +93,6 @@ export class AlarmRepository {
     });
   }
 
-  async settings(siteId: number): Promise<Record<string, number> | null> {
-    const r = await this.db('site_health_settings').where({ site_id: siteId }).first('settings');
-    if (!r) return null;
-    return typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings;
-  }
-
-  async allSettings(): Promise<Map<number, Record<string, number>>> {
-    const rows = await this.db('site_health_settings').select('site_id', 'settings');
-    return new Map(rows.map((r) => [r.site_id as number, typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings]));
-  }
-
-  /**
-   * Replaces a site's overrides and writes the audit entry in the same transaction; `audit` is given the overrides
-   * being replaced (read under a row lock, so two saves at once each see what they replace).
-   */
-  async saveSettings(siteId: number, settings: Record<string, number>, userId: number, at: Date, audit: (before: Record<string, number> | null) => Omit<AuditEntry, 'userId'>): Promise<void> {
-    await this.db.transaction(async (trx) => {
-      // Lock the site's row (it always exists): locking a settings row that is not there yet takes a gap lock, and two
-      // first saves of one site at once would then deadlock on their inserts.
-      await trx('sites').where({ id: siteId }).forUpdate().first('id');
-      const r = await trx('site_health_settings').where({ site_id: siteId }).first('settings');
-      const before = r ? (typeof r.settings === 'string' ? JSON.parse(r.settings) : r.settings) : null;
-      await trx('site_health_settings')
-        .insert({ site_id: siteId, settings: JSON.stringify(settings), updated_by: userId, updated_at: at })
-        .onConflict('site_id')
-        .merge();
-      await appendAudit(trx, { ...audit(before), userId });
-    });
-  }
-
-  /** Events of a scan: the `scan-samples` chunks and the `scan-complete` of the unit's latest (or a given) scan. */
-  async scanEvents(unitId: number, commandId?: string): Promise<{ ts: Date; kind: string; body: string | Record<string, unknown> }[]> {
-    let id = commandId;
-    if (!id) {
-      const last = await this.db('unit_events').where({ unit_id: unitId, kind: 'scan-complete' }).orderBy('ts', 'desc').first('body');
-      if (!last) return [];
-      const body = typeof last.body === 'string' ? JSON.parse(last.body) : last.body;
-      id = body.commandId;
-      if (!id) return [];
-    }
-    return this.db('unit_events')
-      .where({ unit_id: unitId })
-      .whereIn('kind', ['scan-samples', 'scan-complete'])
-      .whereRaw("JSON_UNQUOTE(JSON_EXTRACT(body, '$.commandId')) = ?", [id])
-      .orderBy('ts')
-      .select('ts', 'kind', 'body');
-  }
-
   private base(scope: SiteScope) {
     const q = this.db('alarms as a')
       .join('sites as s', 's.id', 'a.site_id')
@@ -133,28 +104,22 @@ export class AlarmRepository {
   }
 }
 
-/** Readings the health service needs from tables other services own (read-only). */
-export class HealthReadRepository {
-  constructor(private readonly db: Db) {}
+function rowOf(a: Alarm): Omit<AlarmRow, 'id'> {
+  return {
+    unit_id: a.unitId, site_id: a.siteId, kind: a.kind, severity: a.severity, state: a.state,
+    message: a.message.slice(0, 600), advice: a.advice.slice(0, 600), evidence: JSON.stringify(a.evidence),
+    first_seen_at: new Date(a.firstSeenMs), raised_at: new Date(a.raisedMs), last_seen_at: new Date(a.lastSeenMs),
+    cleared_at: a.clearedMs === null ? null : new Date(a.clearedMs), clear_reason: a.clearReason,
+    acknowledged_at: null, acknowledged_by: null,
+  };
+}
 
-  /** Weather readings stored after `afterMs`, oldest first. */
-  async weatherSince(afterMs: number, limit = 5000): Promise<{ site_id: number; ts: Date; ghi_wm2: number; dhi_wm2: number | null; air_temp_c: number; wind_ms: number; gust_ms: number }[]> {
-    return this.db('weather').where('ts', '>', new Date(afterMs)).orderBy('ts').limit(limit);
-  }
-
-  async siteIndoor(siteId: number): Promise<boolean> {
-    const r = await this.db('sites').where({ id: siteId }).first('indoor');
-    return Boolean(r?.indoor);
-  }
-
-  /** In-plane irradiance of the unit's last report before an instant that was not part of a scan. */
-  async poaBefore(unitId: number, before: Date): Promise<number | null> {
-    const r = await this.db('telemetry').where('unit_id', unitId).andWhere('ts', '<', before).whereNot('mode', 'scanning').orderBy('ts', 'desc').first('poa_wm2');
-    return r ? Number(r.poa_wm2) : null;
-  }
-
-  /** Raw telemetry of some units over a range, in time order (on-demand runs). */
-  async telemetryRange(unitIds: number[], from: Date, to: Date, limit: number): Promise<Record<string, unknown>[]> {
-    return this.db('telemetry').whereIn('unit_id', unitIds).andWhere('ts', '>=', from).andWhere('ts', '<', to).orderBy('ts').limit(limit);
-  }
+function toView(r: AlarmListRow): AlarmView {
+  const d = (x: Date | null) => (x === null ? null : new Date(x).toISOString());
+  return {
+    id: r.id, kind: r.kind, severity: r.severity, state: r.state, unitId: r.unit_id, serial: r.serial, siteId: r.site_id, siteName: r.site_name,
+    message: r.message, advice: r.advice, evidence: typeof r.evidence === 'string' ? JSON.parse(r.evidence) : r.evidence,
+    firstSeenAt: d(r.first_seen_at)!, raisedAt: d(r.raised_at)!, lastSeenAt: d(r.last_seen_at)!, clearedAt: d(r.cleared_at), clearReason: r.clear_reason,
+    acknowledgedAt: d(r.acknowledged_at), acknowledgedBy: r.acknowledged_by_name,
+  };
 }

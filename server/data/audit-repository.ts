@@ -16,8 +16,20 @@ export interface AuditFilter {
   to?: Date;
 }
 
-export interface AuditListRow {
+/** A stored entry with the name and e-mail of whoever took the action (null when that person no longer exists). */
+export interface StoredAuditEntry {
   id: number;
+  at: Date;
+  userId: number | null;
+  action: string;
+  target: string | null;
+  detail: unknown;
+  userName: string | null;
+  userEmail: string | null;
+}
+
+interface AuditListRow {
+  id: number | string;
   at: Date;
   user_id: number | null;
   action: string;
@@ -57,7 +69,7 @@ export class AuditRepository {
   }
 
   /** Entries matching the filter, newest first, and how many match in all. `to` is exclusive. */
-  async list(f: AuditFilter, limit: number, offset: number): Promise<{ total: number; rows: AuditListRow[] }> {
+  async list(f: AuditFilter, limit: number, offset: number): Promise<{ total: number; rows: StoredAuditEntry[] }> {
     const filtered = () => {
       const q = this.db('audit_log as a');
       if (f.action !== undefined) q.where('a.action', f.action);
@@ -76,7 +88,13 @@ export class AuditRepository {
         .limit(limit)
         .offset(offset),
     ]);
-    return { total: Number((count as { n: number | string } | undefined)?.n ?? 0), rows: rows as AuditListRow[] };
+    return {
+      total: Number((count as { n: number | string } | undefined)?.n ?? 0),
+      rows: (rows as AuditListRow[]).map((r) => ({
+        id: Number(r.id), at: new Date(r.at), userId: r.user_id, action: r.action, target: r.target,
+        detail: typeof r.detail === 'string' ? JSON.parse(r.detail) : r.detail, userName: r.user_name, userEmail: r.user_email,
+      })),
+    };
   }
 
   /** The names behind the given target ids (ids that no longer exist are simply absent). */

@@ -4,7 +4,22 @@ import { HOLD_COMMANDS, type CommandKind } from '../../shared/contracts/wire-for
 import { AuditRepository } from './audit-repository';
 import { HoldRepository } from './hold-repository';
 
-export interface CommandRow {
+/** A command as stored. */
+export interface StoredCommand {
+  id: string;
+  unitId: number;
+  kind: CommandKind;
+  params: Record<string, unknown> | null;
+  status: CommandStatus;
+  reason: string | null;
+  issuedBy: number;
+  issuedAt: Date;
+  sentAt: Date | null;
+  ackedAt: Date | null;
+  finishedAt: Date | null;
+}
+
+interface CommandRow {
   id: string;
   unit_id: number;
   kind: CommandKind;
@@ -29,12 +44,23 @@ const REASON_MAX = 200;
 export class CommandRepository {
   constructor(private readonly db: Db) {}
 
-  async insert(row: CommandRow): Promise<void> {
-    await this.db('commands').insert({ ...row, reason: clip(row.reason) });
+  async insert(c: StoredCommand): Promise<void> {
+    const row: CommandRow = {
+      id: c.id, unit_id: c.unitId, kind: c.kind, params: c.params ? JSON.stringify(c.params) : null, status: c.status, reason: clip(c.reason),
+      issued_by: c.issuedBy, issued_at: c.issuedAt, sent_at: c.sentAt, acked_at: c.ackedAt, finished_at: c.finishedAt,
+    };
+    await this.db('commands').insert(row);
   }
 
-  async update(id: string, patch: Partial<CommandRow>): Promise<void> {
-    await this.db('commands').where({ id }).update(patch.reason !== undefined ? { ...patch, reason: clip(patch.reason) } : patch);
+  async update(id: string, p: Partial<Pick<StoredCommand, 'status' | 'reason' | 'sentAt' | 'ackedAt' | 'finishedAt'>>): Promise<void> {
+    const patch: Partial<CommandRow> = {
+      ...(p.status !== undefined ? { status: p.status } : {}),
+      ...(p.reason !== undefined ? { reason: clip(p.reason) } : {}),
+      ...(p.sentAt !== undefined ? { sent_at: p.sentAt } : {}),
+      ...(p.ackedAt !== undefined ? { acked_at: p.ackedAt } : {}),
+      ...(p.finishedAt !== undefined ? { finished_at: p.finishedAt } : {}),
+    };
+    await this.db('commands').where({ id }).update(patch);
   }
 
   async get(id: string): Promise<CommandView | undefined> {
@@ -43,8 +69,9 @@ export class CommandRepository {
   }
 
   /** The stored row of one command, as the unit's answers need it. */
-  row(id: string): Promise<CommandRow | undefined> {
-    return this.db<CommandRow>('commands').where({ id }).first();
+  async row(id: string): Promise<StoredCommand | undefined> {
+    const r = await this.db<CommandRow>('commands').where({ id }).first();
+    return r ? stored(r) : undefined;
   }
 
   async listForUnit(unitId: number, limit = 100): Promise<CommandView[]> {
@@ -52,13 +79,13 @@ export class CommandRepository {
   }
 
   /** Commands still waiting for the unit (queued, or sent and not yet answered), in the order issued. */
-  async open(): Promise<CommandRow[]> {
-    return this.db<CommandRow>('commands').whereIn('status', OPEN).orderBy([{ column: 'issued_at' }, { column: 'seq' }]);
+  async open(): Promise<StoredCommand[]> {
+    return (await this.db<CommandRow>('commands').whereIn('status', OPEN).orderBy([{ column: 'issued_at' }, { column: 'seq' }])).map(stored);
   }
 
   /** A unit's queued commands in the order issued: the order they go out in. */
-  queuedForUnit(unitId: number): Promise<CommandRow[]> {
-    return this.db<CommandRow>('commands').where({ unit_id: unitId, status: 'queued' }).orderBy([{ column: 'issued_at' }, { column: 'seq' }]);
+  async queuedForUnit(unitId: number): Promise<StoredCommand[]> {
+    return (await this.db<CommandRow>('commands').where({ unit_id: unitId, status: 'queued' }).orderBy([{ column: 'issued_at' }, { column: 'seq' }])).map(stored);
   }
 
   /** Ends the unit's queued commands of these kinds as cancelled, with the reason; returns their ids. */
@@ -72,10 +99,11 @@ export class CommandRepository {
    * The latest hold or release-hold meant for the unit itself (queued, or sent at some point), newest first by issue
    * order. Requests that changed nothing on the unit (a second hold, a release with other holds left) are not among them.
    */
-  lastHoldDelivery(unitId: number): Promise<CommandRow | undefined> {
-    return this.db<CommandRow>('commands').where({ unit_id: unitId }).whereIn('kind', HOLD_COMMANDS)
+  async lastHoldDelivery(unitId: number): Promise<StoredCommand | undefined> {
+    const r = await this.db<CommandRow>('commands').where({ unit_id: unitId }).whereIn('kind', HOLD_COMMANDS)
       .andWhere((q) => q.where('status', 'queued').orWhereNotNull('sent_at'))
       .orderBy([{ column: 'issued_at', order: 'desc' }, { column: 'seq', order: 'desc' }]).first();
+    return r ? stored(r) : undefined;
   }
 
   private base() {
@@ -116,11 +144,19 @@ export class CommandStore {
 
 const clip = (s: string | null | undefined) => (s && s.length > REASON_MAX ? `${s.slice(0, REASON_MAX - 1)}…` : (s ?? null));
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
+const paramsOf = (p: CommandRow['params']) => (p ? (typeof p === 'string' ? JSON.parse(p) : p) : null) as Record<string, unknown> | null;
+
+function stored(r: CommandRow): StoredCommand {
+  return {
+    id: r.id, unitId: r.unit_id, kind: r.kind, params: paramsOf(r.params), status: r.status, reason: r.reason, issuedBy: r.issued_by,
+    issuedAt: r.issued_at, sentAt: r.sent_at, ackedAt: r.acked_at, finishedAt: r.finished_at,
+  };
+}
 
 function toView(r: CommandRow & { issued_by_name: string }): CommandView {
   return {
     id: r.id, unitId: r.unit_id, kind: r.kind,
-    params: r.params ? (typeof r.params === 'string' ? JSON.parse(r.params) : r.params) : null,
+    params: paramsOf(r.params),
     status: r.status, reason: r.reason, issuedBy: { id: r.issued_by, name: r.issued_by_name },
     issuedAt: r.issued_at.toISOString(), sentAt: iso(r.sent_at), ackedAt: iso(r.acked_at), finishedAt: iso(r.finished_at),
     expiresAt: null,

@@ -41,14 +41,17 @@ export class HoldRepository {
     return r ? toView(r) : undefined;
   }
 
-  async insert(row: Omit<HoldRow, 'id' | 'released_at' | 'released_by' | 'release_reason'>): Promise<number> {
+  async insert(h: { unitId: number; holderKind: HolderKind; holderId: number; note: string | null; placedAt: Date; placedBy: number; commandId: string | null }): Promise<number> {
+    const row: Omit<HoldRow, 'id' | 'released_at' | 'released_by' | 'release_reason'> = {
+      unit_id: h.unitId, holder_kind: h.holderKind, holder_id: h.holderId, note: h.note, placed_at: h.placedAt, placed_by: h.placedBy, command_id: h.commandId,
+    };
     const [id] = await this.db('unit_holds').insert(row);
     return id as number;
   }
 
   /** Releases a hold still in force; false when it was not (already released, or no such hold). */
-  async release(id: number, patch: { released_at: Date; released_by: number; release_reason: string | null }): Promise<boolean> {
-    return (await this.db('unit_holds').where({ id }).whereNull('released_at').update(patch)) === 1;
+  async release(id: number, r: { releasedAt: Date; releasedBy: number; releaseReason: string | null }): Promise<boolean> {
+    return (await this.db('unit_holds').where({ id }).whereNull('released_at').update({ released_at: r.releasedAt, released_by: r.releasedBy, release_reason: r.releaseReason })) === 1;
   }
 
   private base() {

@@ -21,12 +21,13 @@ export class OwnerRepository {
     return this.db('owners').where({ name }).first('id');
   }
 
-  async insert(row: { name: string; contact_email: string | null }): Promise<number> {
-    const [id] = await this.db('owners').insert(row);
+  async insert(o: { name: string; contactEmail: string | null }): Promise<number> {
+    const [id] = await this.db('owners').insert({ name: o.name, contact_email: o.contactEmail });
     return id as number;
   }
 
-  async update(id: number, patch: { name?: string; contact_email?: string | null }): Promise<void> {
+  async update(id: number, p: { name?: string; contactEmail?: string | null }): Promise<void> {
+    const patch = { ...(p.name !== undefined ? { name: p.name } : {}), ...(p.contactEmail !== undefined ? { contact_email: p.contactEmail } : {}) };
     if (Object.keys(patch).length) await this.db('owners').where({ id }).update(patch);
   }
 }

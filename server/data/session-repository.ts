@@ -1,5 +1,5 @@
 import type { Db } from './db';
-import type { UserRow } from './user-repository';
+import type { StoredUser } from './user-repository';
 
 export interface SessionRow {
   id: string;
@@ -10,26 +10,26 @@ export interface SessionRow {
 }
 
 /** A session that has not ended, with the user it belongs to. */
-export type LiveSessionRow = Omit<UserRow, 'password_hash' | 'created_at'> & { session_id: string };
+export type LiveSession = Pick<StoredUser, 'id' | 'email' | 'name' | 'role' | 'ownerId' | 'disabled'> & { sessionId: string };
 
 export class SessionRepository {
   constructor(private readonly db: Db) {}
 
-  async insert(row: Pick<SessionRow, 'id' | 'user_id' | 'expires_at'>): Promise<void> {
-    await this.db('sessions').insert(row);
+  async insert(s: { id: string; userId: number; expiresAt: Date }): Promise<void> {
+    await this.db('sessions').insert({ id: s.id, user_id: s.userId, expires_at: s.expiresAt } satisfies Pick<SessionRow, 'id' | 'user_id' | 'expires_at'>);
   }
 
   /** The sessions among `ids` that are neither revoked nor past their end, each with its user (disabled users included). */
-  async findLive(ids: readonly string[], now: Date): Promise<LiveSessionRow[]> {
-    const out: LiveSessionRow[] = [];
+  async findLive(ids: readonly string[], now: Date): Promise<LiveSession[]> {
+    const out: LiveSession[] = [];
     for (let i = 0; i < ids.length; i += 500) {
       const rows = await this.db('sessions as s')
         .join('users as u', 'u.id', 's.user_id')
         .whereIn('s.id', ids.slice(i, i + 500))
         .whereNull('s.revoked_at')
         .where('s.expires_at', '>', now)
-        .select<LiveSessionRow[]>('s.id as session_id', 'u.id', 'u.email', 'u.name', 'u.role', 'u.owner_id', 'u.disabled');
-      out.push(...rows);
+        .select('s.id as session_id', 'u.id', 'u.email', 'u.name', 'u.role', 'u.owner_id', 'u.disabled');
+      for (const r of rows) out.push({ sessionId: r.session_id, id: r.id, email: r.email, name: r.name, role: r.role, ownerId: r.owner_id, disabled: Boolean(r.disabled) });
     }
     return out;
   }

@@ -1,7 +1,7 @@
 import type { Db } from './db';
-import type { Site } from '../../shared/contracts/api';
+import type { Site, SiteInput } from '../../shared/contracts/api';
 
-export interface SiteRow {
+interface SiteRow {
   id: number;
   owner_id: number;
   name: string;
@@ -43,14 +43,29 @@ export class SiteRepository {
     return this.db('sites').where({ name }).first('id');
   }
 
-  async insert(row: Omit<SiteRow, 'id'>): Promise<number> {
-    const [id] = await this.db('sites').insert(row);
+  async insert(site: SiteInput): Promise<number> {
+    const [id] = await this.db('sites').insert(siteRow(site));
     return id as number;
   }
 
-  async update(id: number, patch: Partial<Omit<SiteRow, 'id'>>): Promise<void> {
-    if (Object.keys(patch).length) await this.db('sites').where({ id }).update(patch);
+  async update(id: number, patch: Partial<SiteInput>): Promise<void> {
+    const row = siteRow(patch);
+    if (Object.keys(row).length) await this.db('sites').where({ id }).update(row);
   }
+}
+
+/** The columns of the fields given. */
+function siteRow(i: Partial<SiteInput>): Partial<Omit<SiteRow, 'id'>> {
+  const r: Record<string, unknown> = {};
+  if (i.ownerId !== undefined) r['owner_id'] = i.ownerId;
+  if (i.name !== undefined) r['name'] = i.name;
+  if (i.latitudeDeg !== undefined) r['latitude_deg'] = i.latitudeDeg;
+  if (i.longitudeDeg !== undefined) r['longitude_deg'] = i.longitudeDeg;
+  if (i.elevationM !== undefined) r['elevation_m'] = i.elevationM;
+  if (i.timeZone !== undefined) r['time_zone'] = i.timeZone;
+  if (i.albedo !== undefined) r['albedo'] = i.albedo;
+  if (i.indoor !== undefined) r['indoor'] = i.indoor;
+  return r;
 }
 
 function toSite(r: SiteRow & { owner_name: string; unit_count: number | string }): Site {

@@ -1,4 +1,5 @@
 import type { Knex } from 'knex';
+import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
 import type { Db } from './db';
 import { TRACE_EXTREMES } from './trace-columns';
 
@@ -29,8 +30,45 @@ export const TELEMETRY_COLUMNS: (keyof TelemetryRow)[] = [
   'azimuth_deg', 'cmd_tilt_deg', 'cmd_azimuth_deg', 'tilt_motor_a', 'azimuth_motor_a', 'dc_power_w', 'module_temp_c', 'mode', 'received_at',
 ];
 
+/** A unit's newest stored report (what a restart rebuilds the live picture and the comms watch from). */
+export interface LatestReport {
+  unitId: number;
+  ts: Date;
+  receivedAt: Date;
+  mode: string;
+  poaWm2: number;
+  dcPowerW: number;
+  tiltDeg: number;
+  azimuthDeg: number;
+  cmdTiltDeg: number;
+  cmdAzimuthDeg: number;
+  tiltPlusWm2: number;
+  tiltMinusWm2: number;
+  azimuthPlusWm2: number;
+  azimuthMinusWm2: number;
+  moduleTempC: number;
+}
+
 export interface EventRow { unit_id: number; ts: Date; kind: string; body: string }
 export interface WeatherRow { site_id: number; ts: Date; ghi_wm2: number; dhi_wm2: number | null; air_temp_c: number; wind_ms: number; gust_ms: number }
+
+/** The stored row of a validated report (`tsMs` its parsed timestamp, `receivedMs` when it arrived). */
+export function telemetryRowOf(unitId: number, t: Telemetry, tsMs: number, receivedMs: number): TelemetryRow {
+  return {
+    unit_id: unitId, ts: new Date(tsMs), seq: t.seq, tilt_plus_wm2: t.tiltPlusWm2, tilt_minus_wm2: t.tiltMinusWm2,
+    azimuth_plus_wm2: t.azimuthPlusWm2, azimuth_minus_wm2: t.azimuthMinusWm2, poa_wm2: t.poaWm2, tilt_deg: t.tiltDeg,
+    azimuth_deg: t.azimuthDeg, cmd_tilt_deg: t.cmdTiltDeg, cmd_azimuth_deg: t.cmdAzimuthDeg, tilt_motor_a: t.tiltMotorA,
+    azimuth_motor_a: t.azimuthMotorA, dc_power_w: t.dcPowerW, module_temp_c: t.moduleTempC, mode: t.mode, received_at: new Date(receivedMs),
+  };
+}
+
+/** The stored row of a validated unit event. */
+export const eventRowOf = (unitId: number, e: UnitEvent, tsMs: number): EventRow => ({ unit_id: unitId, ts: new Date(tsMs), kind: e.kind, body: JSON.stringify(e) });
+
+/** The stored row of a validated weather reading of a site. */
+export const weatherRowOf = (siteId: number, w: Weather, tsMs: number): WeatherRow => ({
+  site_id: siteId, ts: new Date(tsMs), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs,
+});
 
 const MINUTE_MS = 60_000;
 
@@ -38,6 +76,12 @@ const QUARTER_MS = 15 * MINUTE_MS;
 
 /** Identity of a telemetry row (its primary key), as the ingest compares rows. */
 export const telemetryKey = (unitId: number, ts: Date) => `${unitId}|${ts.getTime()}`;
+/** Identities of stored rows, as the insert methods return them for the rows that were new. */
+export const telemetryRowKey = (r: TelemetryRow) => telemetryKey(r.unit_id, r.ts);
+export const eventRowKey = (r: EventRow) => eventKey(r.unit_id, r.ts, r.kind);
+export const weatherRowKey = (r: WeatherRow) => weatherKey(r.site_id, r.ts);
+/** Identity of a weather row (its primary key). */
+export const weatherKey = (siteId: number, ts: Date) => `${siteId}|${ts.getTime()}`;
 /** Identity of a unit event row (its primary key). */
 export const eventKey = (unitId: number, ts: Date, kind: string) => `${unitId}|${ts.getTime()}|${kind}`;
 
@@ -62,9 +106,11 @@ export class TelemetryRepository {
     return out.map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])));
   }
 
-  /** Site weather readings; returns how many were new. */
-  async insertWeather(rows: WeatherRow[]): Promise<number> {
-    return rows.length ? this.insertIgnore(this.db, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[]) : 0;
+  /** Like insertTelemetry, for site weather readings (key: site, ts). */
+  async insertWeather(rows: WeatherRow[]): Promise<string[]> {
+    if (!rows.length) return [];
+    const out = await this.insertIgnoreReturning(this.db, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[], ['site_id', 'ts']);
+    return out.map((r) => weatherKey(Number(r['site_id']), r['ts'] as Date));
   }
 
   private statement(table: string, cols: string[], rows: Record<string, unknown>[]): { sql: string; values: Knex.RawBinding[] } {
@@ -74,20 +120,19 @@ export class TelemetryRepository {
     return { sql: `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`, values };
   }
 
-  private async insertIgnore(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[]): Promise<number> {
-    const { sql, values } = this.statement(table, cols, rows);
-    const [res] = (await db.raw(sql, values)) as unknown as [{ affectedRows: number }];
-    return res.affectedRows;
-  }
-
   /**
    * The newest stored report of every unit that has one (a restart rebuilds the live picture and the comms watch from
    * it). One loose index scan over the (unit_id, ts) key for the maxima, then one point read per unit.
    */
-  async latestPerUnit(): Promise<TelemetryRow[]> {
-    return this.db('telemetry as t')
+  async latestPerUnit(): Promise<LatestReport[]> {
+    const rows: TelemetryRow[] = await this.db('telemetry as t')
       .join(this.db('telemetry').select('unit_id').max({ ts: 'ts' }).groupBy('unit_id').as('m'), (j) => j.on('m.unit_id', 't.unit_id').andOn('m.ts', 't.ts'))
       .select('t.*');
+    return rows.map((r) => ({
+      unitId: r.unit_id, ts: r.ts, receivedAt: r.received_at, mode: r.mode, poaWm2: r.poa_wm2, dcPowerW: r.dc_power_w, tiltDeg: r.tilt_deg,
+      azimuthDeg: r.azimuth_deg, cmdTiltDeg: r.cmd_tilt_deg, cmdAzimuthDeg: r.cmd_azimuth_deg, tiltPlusWm2: r.tilt_plus_wm2,
+      tiltMinusWm2: r.tilt_minus_wm2, azimuthPlusWm2: r.azimuth_plus_wm2, azimuthMinusWm2: r.azimuth_minus_wm2, moduleTempC: r.module_temp_c,
+    }));
   }
 
   private async insertIgnoreReturning(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[], key: string[]): Promise<Record<string, unknown>[]> {
@@ -133,12 +178,16 @@ export class TelemetryRepository {
   }
 
   /** Quarter-hour rows of some units in a UTC window (used to sum local days). */
-  quartersBetween(unitIds: number[], from: Date, to: Date): Promise<{ unit_id: number; bucket: Date; energy_wh: number; minutes: number }[]> {
-    return this.db('telemetry_15m').whereIn('unit_id', unitIds).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('unit_id', 'bucket', 'energy_wh', 'minutes');
+  async quartersBetween(unitIds: number[], from: Date, to: Date): Promise<{ unitId: number; bucket: Date; energyWh: number; minutes: number }[]> {
+    const rows: { unit_id: number; bucket: Date; energy_wh: number; minutes: number }[] = await this.db('telemetry_15m')
+      .whereIn('unit_id', unitIds).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('unit_id', 'bucket', 'energy_wh', 'minutes');
+    return rows.map((r) => ({ unitId: r.unit_id, bucket: r.bucket, energyWh: r.energy_wh, minutes: r.minutes }));
   }
 
-  async upsertDaily(rows: { unit_id: number; local_date: string; energy_wh: number; minutes: number }[]): Promise<void> {
-    if (!rows.length) return;
+  /** Energy of units' local days [Wh] and the minutes it was summed over. */
+  async upsertDaily(days: { unitId: number; localDate: string; energyWh: number; minutes: number }[]): Promise<void> {
+    if (!days.length) return;
+    const rows = days.map((d) => ({ unit_id: d.unitId, local_date: d.localDate, energy_wh: d.energyWh, minutes: d.minutes }));
     await this.db('energy_daily').insert(rows).onConflict(['unit_id', 'local_date']).merge(['energy_wh', 'minutes']);
   }
 

@@ -1,8 +1,8 @@
 import type { Db } from './db';
-import type { Unit } from '../../shared/contracts/api';
+import type { Unit, UnitInput } from '../../shared/contracts/api';
 import type { SiteScope } from './site-repository';
 
-export interface UnitRow {
+interface UnitRow {
   id: number;
   serial: string;
   site_id: number;
@@ -19,6 +19,18 @@ export interface UnitRow {
   device_secret_hash: string;
   on_hold?: number | boolean;
   weather_station?: number | boolean;
+}
+
+/** What the in-memory unit directory keeps of each unit (with its site's owner and time zone). */
+export interface UnitDirectoryEntry {
+  id: number;
+  serial: string;
+  siteId: number;
+  ownerId: number;
+  timeZone: string;
+  disabled: boolean;
+  detectorTiltDeg: number;
+  weatherStation: boolean;
 }
 
 export class UnitRepository {
@@ -42,22 +54,48 @@ export class UnitRepository {
   }
 
   /** Credentials lookup for the broker: serial → secret hash and whether the unit may connect. */
-  findCredentials(serial: string): Promise<Pick<UnitRow, 'id' | 'serial' | 'site_id' | 'device_secret_hash' | 'disabled'> | undefined> {
-    return this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled');
+  async findCredentials(serial: string): Promise<{ id: number; serial: string; siteId: number; deviceSecretHash: string; disabled: boolean } | undefined> {
+    const r = await this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled');
+    return r ? { id: r.id, serial: r.serial, siteId: r.site_id, deviceSecretHash: r.device_secret_hash, disabled: Boolean(r.disabled) } : undefined;
+  }
+
+  /** Every unit with its site's owner and time zone (the unit directory's load). */
+  async directory(): Promise<UnitDirectoryEntry[]> {
+    const rows = await this.db('units as u')
+      .join('sites as s', 's.id', 'u.site_id')
+      .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.detector_tilt_deg', 'u.weather_station');
+    return rows.map((r) => ({
+      id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
+      disabled: Boolean(r.disabled), detectorTiltDeg: r.detector_tilt_deg, weatherStation: Boolean(r.weather_station),
+    }));
   }
 
   async findBySerial(serial: string): Promise<{ id: number } | undefined> {
     return this.db('units').where({ serial }).first('id');
   }
 
-  async insert(row: Omit<UnitRow, 'id'>): Promise<number> {
-    const [id] = await this.db('units').insert(row);
+  async insert(unit: UnitInput & { deviceSecretHash: string }): Promise<number> {
+    const [id] = await this.db('units').insert(unitRow(unit));
     return id as number;
   }
 
-  async update(id: number, patch: Partial<Omit<UnitRow, 'id'>>): Promise<void> {
-    if (Object.keys(patch).length) await this.db('units').where({ id }).update(patch);
+  async update(id: number, patch: Partial<UnitInput> & { deviceSecretHash?: string }): Promise<void> {
+    const row = unitRow(patch);
+    if (Object.keys(row).length) await this.db('units').where({ id }).update(row);
   }
+}
+
+/** The columns of the fields given. */
+function unitRow(i: Partial<UnitInput> & { deviceSecretHash?: string }): Partial<Omit<UnitRow, 'id'>> {
+  const map: Record<keyof UnitInput | 'deviceSecretHash', string> = {
+    serial: 'serial', siteId: 'site_id', ratedPowerWp: 'rated_power_wp', detectorTiltDeg: 'detector_tilt_deg',
+    tiltMinDeg: 'tilt_min_deg', tiltMaxDeg: 'tilt_max_deg', azimuthMinDeg: 'azimuth_min_deg', azimuthMaxDeg: 'azimuth_max_deg',
+    planXM: 'plan_x_m', planYM: 'plan_y_m', firmware: 'firmware', disabled: 'disabled',
+    weatherStation: 'weather_station', deviceSecretHash: 'device_secret_hash',
+  };
+  const r: Record<string, unknown> = {};
+  for (const [k, col] of Object.entries(map)) if (i[k as keyof typeof map] !== undefined) r[col] = i[k as keyof typeof map];
+  return r;
 }
 
 function toUnit(r: UnitRow & { site_name: string }): Unit {

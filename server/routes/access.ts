@@ -1,5 +1,5 @@
 import type { NextFunction, Request, RequestHandler, Response } from 'express';
-import type { Role } from '../../shared/contracts/api';
+import { PERMISSIONS, type Permission } from '../../shared/contracts/permissions';
 import { forbidden } from '../errors/app-error';
 import type { AuthService, SessionCaller } from '../services/auth-service';
 
@@ -27,7 +27,9 @@ export function requireSession(auth: AuthService): RequestHandler {
   };
 }
 
-export function requireRole(...roles: Role[]): RequestHandler {
+/** Lets through callers whose role holds the permission (the table in shared/contracts/permissions.ts); 403 otherwise. */
+export function requireRole(permission: Permission): RequestHandler {
+  const roles: readonly string[] = PERMISSIONS[permission];
   return (req, _res, next) => {
     if (!req.caller || !roles.includes(req.caller.role)) throw forbidden();
     next();

@@ -7,7 +7,7 @@ import { idParam, parse } from './validation';
 /** People and owners (admin only); sites and units (read: every role, scoped; write: admin). Mounted behind requireSession. */
 export function adminRoutes(svc: AdminService): Router {
   const r = Router();
-  const admin = requireRole('admin');
+  const admin = requireRole('administer');
   const id = (params: unknown) => parse(idParam, params).id;
 
   r.get('/users', admin, async (_req, res) => { res.json(await svc.listUsers()); });

@@ -1,6 +1,11 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import type { HealthService } from '../services/health-service';
+import { healthSettingsOverrideSchema } from '../health/health-settings';
+import type { AdminService } from '../services/admin-service';
+import type { AlarmService } from '../services/alarm-service';
+import type { HealthReplay } from '../services/health-replay';
+import type { HealthSettingsService } from '../services/health-settings-service';
+import type { ScanService } from '../services/scan-service';
 import { callerOf, requireRole } from './access';
 import { idParam, parse } from './validation';
 
@@ -19,6 +24,14 @@ const runBody = z.strictObject({
   unitIds: z.array(z.number().int().positive()).min(1).max(500).optional(),
 });
 
+export interface AlarmRouteDeps {
+  admin: AdminService;
+  alarms: AlarmService;
+  settings: HealthSettingsService;
+  scans: ScanService;
+  replay: HealthReplay;
+}
+
 /**
  * Health alarms, scan results, per-site health settings and on-demand runs. Mounted behind requireSession; owners see only
  * their own sites' alarms (404 otherwise, as for units and sites).
@@ -30,36 +43,38 @@ const runBody = z.strictObject({
  *   PUT  /sites/:id/health-settings            engineer, admin: replaces the site's overrides
  *   POST /health/run { from, to, unitIds? }    engineer, technician, admin: the alarms the detectors raise over stored data
  */
-export function alarmRoutes(health: HealthService): Router {
+export function alarmRoutes(d: AlarmRouteDeps): Router {
   const r = Router();
   const id = (params: unknown) => parse(idParam, params).id;
 
   r.get('/alarms', async (req, res) => {
-    res.json(await health.list(callerOf(req), parse(listQuery, req.query)));
+    res.json(await d.alarms.list(callerOf(req), parse(listQuery, req.query)));
   });
 
   r.get('/alarms/:id', async (req, res) => {
-    res.json(await health.get(callerOf(req), id(req.params)));
+    res.json(await d.alarms.get(callerOf(req), id(req.params)));
   });
 
-  r.post('/alarms/:id/acknowledge', requireRole('technician', 'engineer', 'admin'), async (req, res) => {
-    res.json(await health.acknowledge(callerOf(req), id(req.params)));
+  r.post('/alarms/:id/acknowledge', requireRole('acknowledgeAlarms'), async (req, res) => {
+    res.json(await d.alarms.acknowledge(callerOf(req), id(req.params)));
   });
 
   r.get('/units/:id/scans/latest', async (req, res) => {
-    res.json(await health.scanResult(callerOf(req), id(req.params), parse(scanQuery, req.query).commandId));
+    res.json(await d.scans.scanResult(callerOf(req), id(req.params), parse(scanQuery, req.query).commandId));
   });
 
   r.get('/sites/:id/health-settings', async (req, res) => {
-    res.json(await health.siteSettings(callerOf(req), id(req.params)));
+    res.json(await d.settings.siteSettings(callerOf(req), id(req.params)));
   });
 
-  r.put('/sites/:id/health-settings', requireRole('engineer', 'admin'), async (req, res) => {
-    res.json(await health.saveSiteSettings(callerOf(req), id(req.params), req.body));
+  r.put('/sites/:id/health-settings', requireRole('editHealthSettings'), async (req, res) => {
+    const siteId = id(req.params);
+    await d.admin.getSite(callerOf(req), siteId); // an unknown site is a 404 before its body is judged
+    res.json(await d.settings.saveSiteSettings(callerOf(req), siteId, parse(healthSettingsOverrideSchema, req.body, 'The health settings')));
   });
 
-  r.post('/health/run', requireRole('engineer', 'technician', 'admin'), async (req, res) => {
-    res.json(await health.runRange(callerOf(req), parse(runBody, req.body)));
+  r.post('/health/run', requireRole('runHealth'), async (req, res) => {
+    res.json(await d.replay.runRange(callerOf(req), parse(runBody, req.body)));
   });
   return r;
 }

@@ -22,7 +22,7 @@ const auditQuery = z.strictObject({
  */
 export function auditRoutes(audit: AuditService): Router {
   const r = Router();
-  r.get('/audit', requireRole('admin'), async (req, res) => {
+  r.get('/audit', requireRole('administer'), async (req, res) => {
     res.json(await audit.list(parse(auditQuery, req.query)));
   });
   return r;

@@ -17,7 +17,7 @@ const dayQuery = z.strictObject({ date: z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 
 export function landscapeRoutes(admin: AdminService, landscapes: LandscapeService): Router {
   const r = Router();
   const id = (params: unknown) => parse(idParam, params).id;
-  const staff = requireRole('admin', 'engineer', 'technician', 'crew');
+  const staff = requireRole('readLandscape');
 
   r.get('/sites/:id/landscape', staff, async (req, res) => {
     const site = await admin.getSite(callerOf(req), id(req.params));

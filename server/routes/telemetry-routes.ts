@@ -4,10 +4,11 @@ import { unitConfigSchema } from '../../shared/contracts/wire';
 import { COMMAND_KINDS } from '../../shared/contracts/wire-format';
 import { HOLD_TEXT_MAX } from '../../shared/contracts/holds';
 import type { AdminService } from '../services/admin-service';
-import { COMMANDING_ROLES, type CommandService } from '../services/command-service';
+import type { CommandService } from '../services/command-service';
+import { may } from '../../shared/contracts/permissions';
 import type { IngestService } from '../services/ingest-service';
 import type { LiveHub } from '../services/live-hub';
-import type { TelemetryRepository } from '../data/telemetry-repository';
+import type { TelemetryHistory } from '../services/telemetry-history';
 import type { RollupWorker } from '../services/rollup-worker';
 import type { BrokerCounters } from '../../broker/broker';
 import { AppError, badRequest, forbidden } from '../errors/app-error';
@@ -35,7 +36,7 @@ export interface TelemetryRouteDeps {
   commands: CommandService;
   ingest: IngestService;
   live: LiveHub;
-  telemetry: TelemetryRepository;
+  telemetry: TelemetryHistory;
   rollups: RollupWorker;
   /** What the broker turned away (bad packets, refused CONNECTs, ACL refusals). */
   brokerCounters?: () => BrokerCounters;
@@ -70,7 +71,7 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
     let unitId: number;
     let body: z.infer<typeof commandBody>;
     try {
-      if (!COMMANDING_ROLES.includes(caller.role)) throw forbidden();
+      if (!may(caller.role, 'command')) throw forbidden();
       unitId = id(req.params);
       body = parse(commandBody, req.body);
     } catch (err) {
@@ -87,7 +88,7 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
     res.json(await d.commands.holds(callerOf(req), id(req.params)));
   });
 
-  r.get('/metrics', requireRole('admin', 'engineer', 'technician'), (_req, res) => {
+  r.get('/metrics', requireRole('readMetrics'), (_req, res) => {
     res.json({ ingest: { ...d.ingest.counters, buffered: d.ingest.bufferedRows }, broker: d.brokerCounters?.() ?? null, rollups: { passes: d.rollups.passes } });
   });
   return r;

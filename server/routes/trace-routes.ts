@@ -19,7 +19,7 @@ const csvQuery = z.strictObject({ from: iso, to: iso });
 export function traceRoutes(admin: AdminService, traces: TraceService, audit: AuditService): Router {
   const r = Router();
   const id = (params: unknown) => parse(idParam, params).id;
-  const readers = requireRole('admin', 'engineer', 'technician');
+  const readers = requireRole('readTraces');
 
   r.get('/units/:id/traces', readers, async (req, res) => {
     const unit = await admin.getUnit(callerOf(req), id(req.params));

@@ -1,11 +1,11 @@
 import { z } from 'zod';
 import { validationError } from '../errors/validation-error';
 
-/** Parses a body or query with a zod schema; a failure becomes a 400 that names every bad field. */
-export function parse<T extends z.ZodType>(schema: T, value: unknown): z.infer<T> {
+/** Parses a body or query with a zod schema; a failure becomes a 400 that names every bad field (`what` names the whole). */
+export function parse<T extends z.ZodType>(schema: T, value: unknown, what?: string): z.infer<T> {
   const r = schema.safeParse(value ?? {});
   if (r.success) return r.data;
-  throw validationError(r.error);
+  throw validationError(r.error, what);
 }
 
 export const idParam = z.strictObject({ id: z.coerce.number().int().positive('Must be a positive whole number.') });

@@ -4,8 +4,8 @@ import type {
 import { badRequest, conflict, notFound } from '../errors/app-error';
 import type { AuditRepository } from '../data/audit-repository';
 import type { OwnerRepository } from '../data/owner-repository';
-import type { SiteRepository, SiteRow } from '../data/site-repository';
-import type { UnitRepository, UnitRow } from '../data/unit-repository';
+import type { SiteRepository } from '../data/site-repository';
+import type { UnitRepository } from '../data/unit-repository';
 import { toUser, type UserRepository } from '../data/user-repository';
 import { scopeOf, type Caller } from './caller';
 import { hashDeviceSecret, newDeviceSecret } from './device-secret';
@@ -65,8 +65,8 @@ export class AdminService {
     if (await this.repo.users.findByEmail(email)) throw conflict('That e-mail is already in use.', { email: 'Already in use.' });
     const ownerId = await this.checkOwnerLink(input.role, input.ownerId ?? null);
     const id = await this.repo.users.insert({
-      email, name: input.name, role: input.role, owner_id: ownerId,
-      password_hash: await this.passwords.hash(input.password),
+      email, name: input.name, role: input.role, ownerId,
+      passwordHash: await this.passwords.hash(input.password),
     });
     await this.repo.audit.append({ userId: by.id, action: 'user-create', target: `user:${id}`, detail: { email, role: input.role } });
     return this.getUser(id);
@@ -76,25 +76,25 @@ export class AdminService {
     const current = await this.repo.users.findById(id);
     if (!current) throw notFound('User');
     const role = patch.role ?? current.role;
-    const ownerId = await this.checkOwnerLink(role, patch.ownerId !== undefined ? patch.ownerId : role === 'owner' ? current.owner_id : null);
+    const ownerId = await this.checkOwnerLink(role, patch.ownerId !== undefined ? patch.ownerId : role === 'owner' ? current.ownerId : null);
     if (id === by.id && (patch.disabled || (patch.role && patch.role !== 'admin'))) {
       throw badRequest('You cannot disable yourself or remove your own admin role.', patch.disabled ? { disabled: 'Not for your own account.' } : { role: 'Not for your own account.' });
     }
     await this.repo.users.update(id, {
       ...(patch.name !== undefined ? { name: patch.name } : {}),
-      role, owner_id: ownerId,
+      role, ownerId,
       ...(patch.disabled !== undefined ? { disabled: patch.disabled } : {}),
     });
     await this.repo.audit.append({ userId: by.id, action: 'user-update', target: `user:${id}`, detail: patch });
     // Whoever holds a session of this user was let in as the old role/owner: they sign in again.
     const disabled = patch.disabled === true && !current.disabled;
-    if (disabled || role !== current.role || ownerId !== current.owner_id) await this.sessions.endSessionsOf(id);
+    if (disabled || role !== current.role || ownerId !== current.ownerId) await this.sessions.endSessionsOf(id);
     return this.getUser(id);
   }
 
   async resetPassword(by: Caller, id: number, password: string): Promise<void> {
     if (!(await this.repo.users.findById(id))) throw notFound('User');
-    await this.repo.users.update(id, { password_hash: await this.passwords.hash(password) });
+    await this.repo.users.update(id, { passwordHash: await this.passwords.hash(password) });
     await this.sessions.endSessionsOf(id);
     await this.repo.audit.append({ userId: by.id, action: 'user-password-reset', target: `user:${id}` });
   }
@@ -121,7 +121,7 @@ export class AdminService {
 
   async createOwner(by: Caller, input: OwnerInput): Promise<Owner> {
     if (await this.repo.owners.findByName(input.name)) throw conflict('An owner with that name exists.', { name: 'Already in use.' });
-    const id = await this.repo.owners.insert({ name: input.name, contact_email: input.contactEmail ?? null });
+    const id = await this.repo.owners.insert({ name: input.name, contactEmail: input.contactEmail ?? null });
     await this.repo.audit.append({ userId: by.id, action: 'owner-create', target: `owner:${id}`, detail: input });
     return (await this.repo.owners.findById(id))!;
   }
@@ -134,7 +134,7 @@ export class AdminService {
     }
     await this.repo.owners.update(id, {
       ...(patch.name !== undefined ? { name: patch.name } : {}),
-      ...(patch.contactEmail !== undefined ? { contact_email: patch.contactEmail } : {}),
+      ...(patch.contactEmail !== undefined ? { contactEmail: patch.contactEmail } : {}),
     });
     await this.repo.audit.append({ userId: by.id, action: 'owner-update', target: `owner:${id}`, detail: patch });
     return (await this.repo.owners.findById(id))!;
@@ -153,7 +153,7 @@ export class AdminService {
 
   async createSite(by: Caller, input: SiteInput): Promise<Site> {
     await this.checkSite(input);
-    const id = await this.repo.sites.insert(siteRow(input) as Omit<SiteRow, 'id'>);
+    const id = await this.repo.sites.insert(input);
     await this.repo.audit.append({ userId: by.id, action: 'site-create', target: `site:${id}`, detail: input });
     return this.getSite(by, id);
   }
@@ -161,7 +161,7 @@ export class AdminService {
   async updateSite(by: Caller, id: number, patch: Partial<SiteInput>): Promise<Site> {
     await this.getSite(by, id);
     await this.checkSite(patch, id);
-    await this.repo.sites.update(id, siteRow(patch));
+    await this.repo.sites.update(id, patch);
     await this.repo.audit.append({ userId: by.id, action: 'site-update', target: `site:${id}`, detail: patch });
     // Owner and time zone of the site's units follow it. All at once: listeners that reload can then share one reload.
     const units = await this.repo.units.list({ ownerId: null }, id);
@@ -191,7 +191,7 @@ export class AdminService {
   async createUnit(by: Caller, input: UnitInput): Promise<{ unit: Unit; deviceSecret: string }> {
     await this.checkUnit(input);
     const deviceSecret = newDeviceSecret();
-    const id = await this.repo.units.insert({ ...(unitRow(input) as Omit<UnitRow, 'id' | 'device_secret_hash'>), device_secret_hash: hashDeviceSecret(deviceSecret) });
+    const id = await this.repo.units.insert({ ...input, deviceSecretHash: hashDeviceSecret(deviceSecret) });
     await this.repo.audit.append({ userId: by.id, action: 'unit-create', target: `unit:${id}`, detail: input });
     await this.unitChanged(id, { credentialsChanged: false, disabled: input.disabled ?? false, serial: input.serial });
     return { unit: await this.getUnit(by, id), deviceSecret };
@@ -200,7 +200,7 @@ export class AdminService {
   async updateUnit(by: Caller, id: number, patch: Partial<UnitInput>): Promise<Unit> {
     const current = await this.getUnit(by, id);
     await this.checkUnit({ ...current, ...patch }, id);
-    await this.repo.units.update(id, unitRow(patch));
+    await this.repo.units.update(id, patch);
     await this.repo.audit.append({ userId: by.id, action: 'unit-update', target: `unit:${id}`, detail: patch });
     const renamed = patch.serial !== undefined && patch.serial !== current.serial;
     await this.unitChanged(id, {
@@ -213,7 +213,7 @@ export class AdminService {
   async rotateDeviceSecret(by: Caller, id: number): Promise<{ deviceSecret: string }> {
     const unit = await this.getUnit(by, id);
     const deviceSecret = newDeviceSecret();
-    await this.repo.units.update(id, { device_secret_hash: hashDeviceSecret(deviceSecret) });
+    await this.repo.units.update(id, { deviceSecretHash: hashDeviceSecret(deviceSecret) });
     await this.repo.audit.append({ userId: by.id, action: 'unit-secret-rotate', target: `unit:${id}` });
     await this.unitChanged(id, { credentialsChanged: true, disabled: unit.disabled, serial: unit.serial });
     return { deviceSecret };
@@ -228,29 +228,4 @@ export class AdminService {
     const other = await this.repo.units.findBySerial(u.serial);
     if (other && other.id !== id) throw conflict('A unit with that serial exists.', { serial: 'Already in use.' });
   }
-}
-
-function siteRow(i: Partial<SiteInput>): Partial<Omit<SiteRow, 'id'>> {
-  const r: Record<string, unknown> = {};
-  if (i.ownerId !== undefined) r['owner_id'] = i.ownerId;
-  if (i.name !== undefined) r['name'] = i.name;
-  if (i.latitudeDeg !== undefined) r['latitude_deg'] = i.latitudeDeg;
-  if (i.longitudeDeg !== undefined) r['longitude_deg'] = i.longitudeDeg;
-  if (i.elevationM !== undefined) r['elevation_m'] = i.elevationM;
-  if (i.timeZone !== undefined) r['time_zone'] = i.timeZone;
-  if (i.albedo !== undefined) r['albedo'] = i.albedo;
-  if (i.indoor !== undefined) r['indoor'] = i.indoor;
-  return r;
-}
-
-function unitRow(i: Partial<UnitInput>): Partial<Omit<UnitRow, 'id'>> {
-  const map: Record<keyof UnitInput, string> = {
-    serial: 'serial', siteId: 'site_id', ratedPowerWp: 'rated_power_wp', detectorTiltDeg: 'detector_tilt_deg',
-    tiltMinDeg: 'tilt_min_deg', tiltMaxDeg: 'tilt_max_deg', azimuthMinDeg: 'azimuth_min_deg', azimuthMaxDeg: 'azimuth_max_deg',
-    planXM: 'plan_x_m', planYM: 'plan_y_m', firmware: 'firmware', disabled: 'disabled',
-    weatherStation: 'weather_station',
-  };
-  const r: Record<string, unknown> = {};
-  for (const [k, col] of Object.entries(map)) if (i[k as keyof UnitInput] !== undefined) r[col] = i[k as keyof UnitInput];
-  return r;
 }

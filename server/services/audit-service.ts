@@ -1,5 +1,5 @@
 import type { AuditLogEntry, AuditPage } from '../../shared/contracts/audit';
-import type { AuditListRow, AuditRepository, TargetNames } from '../data/audit-repository';
+import type { AuditRepository, StoredAuditEntry, TargetNames } from '../data/audit-repository';
 import { badRequest } from '../errors/app-error';
 import type { Caller } from './caller';
 
@@ -65,14 +65,14 @@ export class AuditService {
   }
 }
 
-function toEntry(r: AuditListRow, names: TargetNames): AuditLogEntry {
+function toEntry(r: StoredAuditEntry, names: TargetNames): AuditLogEntry {
   return {
-    id: Number(r.id),
-    at: new Date(r.at).toISOString(),
-    user: r.user_id === null ? null : { id: r.user_id, name: r.user_name ?? `Person ${r.user_id} (no longer exists)`, email: r.user_email ?? '' },
+    id: r.id,
+    at: r.at.toISOString(),
+    user: r.userId === null ? null : { id: r.userId, name: r.userName ?? `Person ${r.userId} (no longer exists)`, email: r.userEmail ?? '' },
     action: r.action,
     target: r.target,
     targetLabel: labelOf(r.target, names),
-    detail: typeof r.detail === 'string' ? JSON.parse(r.detail) : r.detail,
+    detail: r.detail,
   };
 }

@@ -4,7 +4,7 @@ import type { Me } from '../../shared/contracts/api';
 import { AppError, badRequest, unauthorized } from '../errors/app-error';
 import type { UserRepository } from '../data/user-repository';
 import type { AuditRepository } from '../data/audit-repository';
-import type { LiveSessionRow, SessionRepository } from '../data/session-repository';
+import type { LiveSession, SessionRepository } from '../data/session-repository';
 import type { SignInLimiter } from './sign-in-limiter';
 import type { Passwords } from './passwords';
 import type { SessionEvents } from './session-events';
@@ -69,7 +69,7 @@ export class AuthService implements SessionRevoker {
     const row = await this.repo.users.findByEmail(email);
     const accountKey = row ? `account:${row.id}` : `email:${foldEmail(email)}`;
     if (!(await this.limiter.take([accountKey]))) throw tooMany();
-    const ok = await this.passwords.verify(password, row?.password_hash);
+    const ok = await this.passwords.verify(password, row?.passwordHash);
     if (!row || row.disabled || !ok) {
       await this.repo.audit.append({ userId: row?.id ?? null, action: 'sign-in-failed', target: email.toLowerCase().slice(0, 128), detail: { address } });
       throw new AppError(401, 'invalid_credentials', GENERIC);
@@ -78,7 +78,7 @@ export class AuthService implements SessionRevoker {
     const now = new Date(this.now());
     await this.repo.sessions.deleteEnded(row.id, now);
     const sessionId = randomBytes(16).toString('hex');
-    await this.repo.sessions.insert({ id: sessionId, user_id: row.id, expires_at: new Date(now.getTime() + this.sessionSeconds * 1000) });
+    await this.repo.sessions.insert({ id: sessionId, userId: row.id, expiresAt: new Date(now.getTime() + this.sessionSeconds * 1000) });
     await this.repo.audit.append({ userId: row.id, action: 'sign-in', detail: { address } });
     const token = jwt.sign({ sub: String(row.id), sid: sessionId }, this.key, { expiresIn: this.sessionSeconds, algorithm: 'HS256' });
     return { me: toMe(row), token };
@@ -96,7 +96,7 @@ export class AuthService implements SessionRevoker {
   /** The callers of those sessions that are still open, by session id (for connections that outlive a request). */
   async liveSessions(sessionIds: readonly string[]): Promise<Map<string, SessionCaller>> {
     const rows = sessionIds.length ? await this.repo.sessions.findLive(sessionIds, new Date(this.now())) : [];
-    return new Map(rows.filter((r) => !r.disabled).map((r) => [r.session_id, toSessionCaller(r)]));
+    return new Map(rows.filter((r) => !r.disabled).map((r) => [r.sessionId, toSessionCaller(r)]));
   }
 
   /** Ends the session a token names, if it is a token of ours; anything else is already signed out. */
@@ -118,13 +118,13 @@ export class AuthService implements SessionRevoker {
     if (!(await this.limiter.take([accountKey]))) throw tooMany();
     const row = await this.repo.users.findById(caller.id);
     if (!row || row.disabled) throw unauthorized(ENDED);
-    if (!(await this.passwords.verify(currentPassword, row.password_hash))) {
+    if (!(await this.passwords.verify(currentPassword, row.passwordHash))) {
       await this.repo.audit.append({ userId: caller.id, action: 'password-change-failed', target: `user:${caller.id}`, detail: { address } });
       throw badRequest('The current password is not right.', { currentPassword: 'That is not your current password.' });
     }
     await this.limiter.giveBack([accountKey]);
     if (newPassword === currentPassword) throw badRequest('The new password is the current one.', { newPassword: 'Choose a password different from the current one.' });
-    await this.repo.users.update(caller.id, { password_hash: await this.passwords.hash(newPassword) });
+    await this.repo.users.update(caller.id, { passwordHash: await this.passwords.hash(newPassword) });
     await this.endSessionsOf(caller.id, caller.sessionId);
     await this.repo.audit.append({ userId: caller.id, action: 'password-change', target: `user:${caller.id}`, detail: { address } });
   }
@@ -151,12 +151,12 @@ export class AuthService implements SessionRevoker {
   }
 }
 
-const toMe = (r: { id: number; email: string; name: string; role: Me['role']; owner_id: number | null }): Me => ({
+const toMe = (r: Pick<Me, 'id' | 'email' | 'name' | 'role' | 'ownerId'>): Me => ({
   id: r.id,
   email: r.email,
   name: r.name,
   role: r.role,
-  ownerId: r.owner_id,
+  ownerId: r.ownerId,
 });
 
-const toSessionCaller = (r: LiveSessionRow): SessionCaller => ({ ...toMe(r), sessionId: r.session_id });
+const toSessionCaller = (r: LiveSession): SessionCaller => ({ ...toMe(r), sessionId: r.sessionId });

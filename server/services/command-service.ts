@@ -4,8 +4,9 @@ import type { CommandView, IssueCommandRequest } from '../../shared/contracts/li
 import type { HoldView, UnitHolds } from '../../shared/contracts/holds';
 import type { Command, CommandAck } from '../../shared/contracts/wire';
 import { HOLD_COMMANDS as HOLD_KINDS, MOTION_COMMANDS, WIRE_VERSION, type CommandKind } from '../../shared/contracts/wire-format';
+import { may } from '../../shared/contracts/permissions';
 import { AppError, badRequest, forbidden, notFound } from '../errors/app-error';
-import type { CommandRow, CommandStore, CommandTx } from '../data/command-repository';
+import type { CommandStore, CommandTx, StoredCommand } from '../data/command-repository';
 import type { Caller } from './caller';
 import type { LiveHub } from './live-hub';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
@@ -22,9 +23,6 @@ export const DEFAULT_COMMAND_OPTIONS: CommandOptions = { ackTimeoutMs: 30_000, q
 
 /** Publishes a command to a unit's `commands` topic (QoS 1). */
 export type CommandPublisher = (serial: string, command: Command) => Promise<void>;
-
-/** Roles that may send commands at all; crews only hold and release. */
-export const COMMANDING_ROLES: readonly Caller['role'][] = ['admin', 'engineer', 'technician', 'crew'];
 
 /**
  * Hold and release-hold carry the state the unit must end up in: they wait in the queue for as long as the unit is
@@ -142,8 +140,8 @@ export class CommandService {
   async sweep(): Promise<void> {
     const now = this.opts.now();
     for (const cmd of await this.store.commands.open()) {
-      if (cmd.status === 'queued' && expires(cmd.kind) && now - cmd.issued_at.getTime() > this.opts.queueTimeoutMs) await this.finish(cmd, 'timed-out', 'unit stayed offline');
-      else if (cmd.status === 'sent' && cmd.sent_at && now - cmd.sent_at.getTime() > this.opts.ackTimeoutMs) await this.finish(cmd, 'timed-out', 'no answer from the unit');
+      if (cmd.status === 'queued' && expires(cmd.kind) && now - cmd.issuedAt.getTime() > this.opts.queueTimeoutMs) await this.finish(cmd, 'timed-out', 'unit stayed offline');
+      else if (cmd.status === 'sent' && cmd.sentAt && now - cmd.sentAt.getTime() > this.opts.ackTimeoutMs) await this.finish(cmd, 'timed-out', 'no answer from the unit');
     }
   }
 
@@ -156,7 +154,7 @@ export class CommandService {
   }
 
   private checkRequest(by: Caller, unit: UnitInfo, req: IssueCommandRequest): void {
-    if (!COMMANDING_ROLES.includes(by.role)) throw forbidden('Owners cannot command units.');
+    if (!may(by.role, 'command')) throw forbidden('Owners cannot command units.');
     if (by.role === 'crew' && !HOLD_KINDS.includes(req.kind)) throw forbidden('Field crews may only put a unit on maintenance hold or release it.');
     const misplaced: Record<string, string> = {};
     if (req.note !== undefined && req.kind !== 'hold') misplaced['note'] = 'Only for hold.';
@@ -214,7 +212,7 @@ export class CommandService {
       const first = before.length === 0;
       const row = this.newRow(by.id, unit, 'hold', now, null, first ? null : { status: 'completed', reason: 'Added to the hold already in force: nothing more to send to the unit.' });
       await tx.commands.insert(row);
-      const holdId = await tx.holds.insert({ unit_id: unit.id, holder_kind: 'person', holder_id: by.id, note: note?.trim() || null, placed_at: now, placed_by: by.id, command_id: row.id });
+      const holdId = await tx.holds.insert({ unitId: unit.id, holderKind: 'person', holderId: by.id, note: note?.trim() || null, placedAt: now, placedBy: by.id, commandId: row.id });
       const holds = await tx.holds.active(unit.id);
       const name = holds.find((h) => h.id === holdId)!.holder.name;
       const cancelled = await tx.commands.cancelQueued(unit.id, MOTION_COMMANDS, `Cancelled before it reached the unit: maintenance hold placed by ${name}.`, now);
@@ -250,7 +248,7 @@ export class CommandService {
           : `Only ${hold.holder.name}, who placed this hold, or an admin giving a reason may release it.`);
       }
       if (!own && !why) throw badRequest('Say why you release a hold that is not yours.', { reason: 'Required when releasing someone else\'s hold.' });
-      if (!(await tx.holds.release(hold.id, { released_at: now, released_by: by.id, release_reason: why }))) throw new AppError(409, 'hold_released', 'That hold was already released.');
+      if (!(await tx.holds.release(hold.id, { releasedAt: now, releasedBy: by.id, releaseReason: why }))) throw new AppError(409, 'hold_released', 'That hold was already released.');
       const holds = active.filter((h) => h.id !== hold.id);
       const row = this.newRow(by.id, unit, 'release-hold', now, null, holds.length
         ? { status: 'completed', reason: `Hold released; ${holds.length === 1 ? 'another hold keeps' : `${holds.length} other holds keep`} the unit held, so nothing was sent.` }
@@ -281,11 +279,11 @@ export class CommandService {
       const by = holds[0]!.placedBy.id;
       await this.resend(unit, 'hold', by, last);
     } else if (!held && last?.kind === 'release-hold' && last.status === 'timed-out') {
-      await this.resend(unit, 'release-hold', last.issued_by, last);
+      await this.resend(unit, 'release-hold', last.issuedBy, last);
     }
   }
 
-  private async resend(unit: UnitInfo, kind: 'hold' | 'release-hold', by: number, after: CommandRow | undefined): Promise<void> {
+  private async resend(unit: UnitInfo, kind: 'hold' | 'release-hold', by: number, after: StoredCommand | undefined): Promise<void> {
     const row = this.newRow(by, unit, kind, new Date(this.opts.now()), null);
     await this.store.locked(unit.id, async (tx) => {
       await tx.commands.insert(row);
@@ -298,32 +296,32 @@ export class CommandService {
 
   private async applyAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
     const cmd = await this.store.commands.row(ack.commandId);
-    if (!cmd || cmd.unit_id !== unit.id || !['queued', 'sent', 'acknowledged'].includes(cmd.status)) return; // late answer to a finished command, or not ours
+    if (!cmd || cmd.unitId !== unit.id || !['queued', 'sent', 'acknowledged'].includes(cmd.status)) return; // late answer to a finished command, or not ours
     if (ack.result === 'accepted' && cmd.status === 'acknowledged') return;
     const at = new Date(this.opts.now());
     if (ack.result === 'rejected') {
-      await this.store.commands.update(cmd.id, { status: 'rejected', reason: ack.reason ?? 'rejected by the unit', acked_at: cmd.acked_at ?? at, finished_at: at });
+      await this.store.commands.update(cmd.id, { status: 'rejected', reason: ack.reason ?? 'rejected by the unit', ackedAt: cmd.ackedAt ?? at, finishedAt: at });
     } else if (ack.result === 'accepted') {
-      await this.store.commands.update(cmd.id, { status: 'acknowledged', acked_at: at });
+      await this.store.commands.update(cmd.id, { status: 'acknowledged', ackedAt: at });
     } else {
-      await this.store.commands.update(cmd.id, { status: 'completed', acked_at: cmd.acked_at ?? at, finished_at: at });
+      await this.store.commands.update(cmd.id, { status: 'completed', ackedAt: cmd.ackedAt ?? at, finishedAt: at });
     }
     await this.emit(cmd.id);
   }
 
-  private newRow(byUserId: number, unit: UnitInfo, kind: CommandKind, at: Date, params: object | null, done?: { status: 'completed'; reason: string } | null): CommandRow {
+  private newRow(byUserId: number, unit: UnitInfo, kind: CommandKind, at: Date, params: object | null, done?: { status: 'completed'; reason: string } | null): StoredCommand {
     return {
-      id: randomUUID(), unit_id: unit.id, kind, params: params ? JSON.stringify(params) : null, status: done?.status ?? 'queued',
-      reason: done?.reason ?? null, issued_by: byUserId, issued_at: at, sent_at: null, acked_at: null, finished_at: done ? at : null,
+      id: randomUUID(), unitId: unit.id, kind, params: params ? { ...params } : null, status: done?.status ?? 'queued',
+      reason: done?.reason ?? null, issuedBy: byUserId, issuedAt: at, sentAt: null, ackedAt: null, finishedAt: done ? at : null,
     };
   }
 
-  private auditCommand(tx: CommandTx, by: Caller, unit: UnitInfo, row: CommandRow, detail: object): Promise<void> {
+  private auditCommand(tx: CommandTx, by: Caller, unit: UnitInfo, row: StoredCommand, detail: object): Promise<void> {
     return tx.audit.append({ userId: by.id, action: 'command', target: `unit:${unit.id}`, detail: { commandId: row.id, kind: row.kind, ...detail } });
   }
 
   /** After a stored request: send it now if it is queued and the unit is online, and tell the dashboards. */
-  private async dispatch(unit: UnitInfo, row: CommandRow): Promise<CommandView> {
+  private async dispatch(unit: UnitInfo, row: StoredCommand): Promise<CommandView> {
     if (row.status === 'queued' && this.live.get(unit.id)?.online) {
       // Stored and in force already: a failed publish leaves it queued for the unit's next connection.
       await this.send(unit, row).catch((err) => this.log.warn({ err, commandId: row.id }, 'command publish failed; left queued'));
@@ -336,25 +334,25 @@ export class CommandService {
     this.live.onHoldChanged(this.units.byUnitId(unit.id) ?? { ...unit, holds, onHold: holds.length > 0 });
   }
 
-  private async send(unit: UnitInfo, cmd: CommandRow): Promise<void> {
-    const params = cmd.params ? (typeof cmd.params === 'string' ? JSON.parse(cmd.params) : cmd.params) : {};
+  private async send(unit: UnitInfo, cmd: StoredCommand): Promise<void> {
+    const params = cmd.params ?? {};
     const at = new Date(this.opts.now());
     // Mark it sent first: the unit's answer can arrive before the publish call returns.
-    await this.store.commands.update(cmd.id, { status: 'sent', sent_at: at });
+    await this.store.commands.update(cmd.id, { status: 'sent', sentAt: at });
     cmd.status = 'sent';
-    cmd.sent_at = at;
+    cmd.sentAt = at;
     try {
       await this.publish(unit.serial, { v: WIRE_VERSION, commandId: cmd.id, ts: at.toISOString(), kind: cmd.kind, ...params });
     } catch (err) {
-      await this.store.commands.update(cmd.id, { status: 'queued', sent_at: null });
+      await this.store.commands.update(cmd.id, { status: 'queued', sentAt: null });
       cmd.status = 'queued';
-      cmd.sent_at = null;
+      cmd.sentAt = null;
       throw err;
     }
   }
 
-  private async finish(cmd: CommandRow, status: 'rejected' | 'timed-out' | 'cancelled', reason: string): Promise<void> {
-    await this.store.commands.update(cmd.id, { status, reason, finished_at: new Date(this.opts.now()) });
+  private async finish(cmd: StoredCommand, status: 'rejected' | 'timed-out' | 'cancelled', reason: string): Promise<void> {
+    await this.store.commands.update(cmd.id, { status, reason, finishedAt: new Date(this.opts.now()) });
     await this.emit(cmd.id);
   }
 

@@ -1,11 +1,13 @@
 import type { Logger } from 'pino';
-import { z } from 'zod';
 import {
   ackSchema, eventSchema, statusSchema, telemetrySchema, weatherSchema,
-  type CommandAck, type Telemetry, type UnitEvent, type UnitStatus,
+  type CommandAck, type Telemetry, type UnitEvent, type UnitStatus, type Weather,
 } from '../../shared/contracts/wire';
 import { MAX_PAYLOAD_BYTES } from '../../shared/contracts/wire-format';
-import { eventKey, telemetryKey, type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow } from '../data/telemetry-repository';
+import {
+  eventRowKey, eventRowOf, telemetryRowKey, telemetryRowOf, weatherRowKey, weatherRowOf,
+  type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow,
+} from '../data/telemetry-repository';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 /**
@@ -50,6 +52,8 @@ export interface IngestListeners {
   telemetry?: (unit: UnitInfo, t: Telemetry) => void;
   stored?: (unit: UnitInfo, t: Telemetry) => void;
   event?: (unit: UnitInfo, e: UnitEvent) => void;
+  /** A site weather reading, from the unit that carries the site's station (heard like `event`: once, after its commit). */
+  weather?: (unit: UnitInfo, w: Weather) => void;
   /** A command answer; when it returns a promise, the unit's PUBACK waits for it (a rejection closes the connection, so the unit resends). */
   ack?: (unit: UnitInfo, a: CommandAck) => void | Promise<void>;
   status?: (unit: UnitInfo, s: UnitStatus) => void;
@@ -72,9 +76,14 @@ export interface IngestCounters {
 /** Called once a message may be acknowledged to the unit (its row committed); with an error, it must not be. */
 export type Acknowledge = (err?: Error) => void;
 
-interface HeldTelemetry { row: TelemetryRow; unit: UnitInfo; t: Telemetry; ack: Acknowledge | undefined }
+interface HeldTelemetry { row: TelemetryRow; unit: UnitInfo; t: Telemetry; tsMs: number; ack: Acknowledge | undefined }
 interface HeldEvent { row: EventRow; unit: UnitInfo; e: UnitEvent; ack: Acknowledge | undefined }
-interface HeldWeather { row: WeatherRow; ack: Acknowledge | undefined }
+interface HeldWeather { row: WeatherRow; unit: UnitInfo; w: Weather; ack: Acknowledge | undefined }
+
+/** A wire schema as the ingest uses it (the zod schemas of shared/contracts/wire have this shape). */
+interface PayloadSchema<T> {
+  safeParse(value: unknown): { success: true; data: T } | { success: false; error: { issues: readonly { path: readonly PropertyKey[]; message: string }[] } };
+}
 
 /**
  * Validates unit messages and writes them to MariaDB in batched multi-row inserts, one commit per statement (a group
@@ -112,8 +121,8 @@ export class IngestService {
     private readonly log: Logger,
     private readonly listeners: IngestListeners = {},
     opts: Partial<IngestOptions> = {},
-    /** Called with the (unit, minute) pairs of newly stored rows, for the rollups. */
-    private readonly onStored: (rows: TelemetryRow[]) => void = () => undefined,
+    /** Called with the unit and timestamp of the readings of each committed batch, for the rollups. */
+    private readonly onStored: (readings: { unitId: number; tsMs: number }[]) => void = () => undefined,
   ) {
     this.opts = { ...DEFAULT_INGEST_OPTIONS, ...opts };
   }
@@ -168,7 +177,7 @@ export class IngestService {
         const ts = Date.parse(t.ts);
         const bad = this.checkTime(serial, ts);
         if (bad) return refuse(bad);
-        this.telemetry.push({ row: toRow(unit.id, t, ts, this.opts.now()), unit, t, ack });
+        this.telemetry.push({ row: telemetryRowOf(unit.id, t, ts, this.opts.now()), unit, t, tsMs: ts, ack });
         this.listeners.telemetry?.(unit, t);
         break;
       }
@@ -178,7 +187,7 @@ export class IngestService {
         const ts = Date.parse(e.ts);
         const bad = this.checkTime(serial, ts);
         if (bad) return refuse(bad);
-        this.events.push({ row: { unit_id: unit.id, ts: new Date(ts), kind: e.kind, body: JSON.stringify(e) }, unit, e, ack });
+        this.events.push({ row: eventRowOf(unit.id, e, ts), unit, e, ack });
         break;
       }
       case 'weather': {
@@ -189,7 +198,7 @@ export class IngestService {
         const ts = Date.parse(w.ts);
         const bad = this.checkTime(serial, ts);
         if (bad) return refuse(bad);
-        this.weather.push({ row: { site_id: unit.siteId, ts: new Date(ts), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs }, ack });
+        this.weather.push({ row: weatherRowOf(unit.siteId, w, ts), unit, w, ack });
         break;
       }
       case 'acks': {
@@ -219,7 +228,7 @@ export class IngestService {
     this.reject(serial, reason, topic ? `publish to ${topic}` : 'packet over the size limit');
   }
 
-  private validate<T extends z.ZodType>(serial: string, schema: T, json: unknown): z.infer<T> | null {
+  private validate<T>(serial: string, schema: PayloadSchema<T>, json: unknown): T | null {
     const r = schema.safeParse(json);
     if (r.success) return r.data;
     const first = r.error.issues[0]!;
@@ -261,7 +270,7 @@ export class IngestService {
   private pump(): void {
     while (this.inFlight < this.opts.flushConcurrency && this.bufferedRows > 0 && this.opts.now() >= this.retryAt) {
       // Key order inside a batch keeps concurrent flushes taking InnoDB locks in the same order (fewer deadlocks).
-      const t = this.telemetry.splice(0, this.opts.batchRows).sort((a, b) => a.row.unit_id - b.row.unit_id || a.row.ts.getTime() - b.row.ts.getTime());
+      const t = this.telemetry.splice(0, this.opts.batchRows).sort((a, b) => a.unit.id - b.unit.id || a.tsMs - b.tsMs);
       const e = t.length < this.opts.batchRows ? this.events.splice(0, this.opts.batchRows) : [];
       const w = t.length + e.length < this.opts.batchRows ? this.weather.splice(0, this.opts.batchRows) : [];
       this.inFlight++;
@@ -291,11 +300,12 @@ export class IngestService {
   private async write(batch: number, t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
     let newTelemetry: Set<string> | undefined;
     let newEvents: Set<string> | undefined;
+    let newWeather: Set<string> | undefined;
     let failure: unknown;
     try {
       newTelemetry = new Set(await this.repo.insertTelemetry(t.map((x) => x.row)));
       newEvents = new Set(await this.repo.insertEvents(e.map((x) => x.row)));
-      await this.repo.insertWeather(w.map((x) => x.row));
+      newWeather = new Set(await this.repo.insertWeather(w.map((x) => x.row)));
     } catch (err) {
       failure = err;
     }
@@ -305,16 +315,17 @@ export class IngestService {
     const wDone = failure === undefined;
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
     this.inOrder(batch, () => {
-      if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryKey(x.row.unit_id, x.row.ts))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
-      if (newEvents) for (const x of e) if (newEvents.delete(eventKey(x.row.unit_id, x.row.ts, x.row.kind))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+      // Weather first: a gust demands a stow of the units whose reports of the same batch are judged next.
+      if (newWeather) for (const x of w) if (newWeather.delete(weatherRowKey(x.row))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
+      if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryRowKey(x.row))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
+      if (newEvents) for (const x of e) if (newEvents.delete(eventRowKey(x.row))) this.announce(() => this.listeners.event?.(x.unit, x.e));
     });
     if (tDone) {
       this.counters.stored += storedCount;
       this.counters.duplicates += t.length - storedCount;
-      const rows = t.map((x) => x.row);
       if (t.length) {
-        this.onStored(rows);
-        this.listeners.committed?.(rows, this.opts.now());
+        this.onStored(t.map((x) => ({ unitId: x.unit.id, tsMs: x.tsMs })));
+        if (this.listeners.committed) this.listeners.committed(t.map((x) => x.row), this.opts.now());
       }
       for (const x of t) x.ack?.();
     }
@@ -385,13 +396,4 @@ export class IngestService {
     clearTimeout(this.timer);
     this.releaseHeld();
   }
-}
-
-function toRow(unitId: number, t: Telemetry, ts: number, now: number): TelemetryRow {
-  return {
-    unit_id: unitId, ts: new Date(ts), seq: t.seq, tilt_plus_wm2: t.tiltPlusWm2, tilt_minus_wm2: t.tiltMinusWm2,
-    azimuth_plus_wm2: t.azimuthPlusWm2, azimuth_minus_wm2: t.azimuthMinusWm2, poa_wm2: t.poaWm2, tilt_deg: t.tiltDeg,
-    azimuth_deg: t.azimuthDeg, cmd_tilt_deg: t.cmdTiltDeg, cmd_azimuth_deg: t.cmdAzimuthDeg, tilt_motor_a: t.tiltMotorA,
-    azimuth_motor_a: t.azimuthMotorA, dc_power_w: t.dcPowerW, module_temp_c: t.moduleTempC, mode: t.mode, received_at: new Date(now),
-  };
 }

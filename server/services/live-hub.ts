@@ -4,11 +4,10 @@ import type { CommandView, LiveClientMessage, LiveServerMessage, UnitLiveState }
 import type { Telemetry, UnitStatus } from '../../shared/contracts/wire';
 import type { UnitMode } from '../../shared/contracts/wire-format';
 import type { Caller } from './caller';
-import type { TelemetryRow } from '../data/telemetry-repository';
+import type { LatestReport } from '../data/telemetry-repository';
 
-/** The fields of a stored telemetry row the live picture is rebuilt from. */
-export type StoredReport = Pick<TelemetryRow, 'ts' | 'mode' | 'poa_wm2' | 'dc_power_w' | 'tilt_deg' | 'azimuth_deg' | 'cmd_tilt_deg' |
-  'cmd_azimuth_deg' | 'tilt_plus_wm2' | 'tilt_minus_wm2' | 'azimuth_plus_wm2' | 'azimuth_minus_wm2' | 'module_temp_c'>;
+/** The fields of a stored report the live picture is rebuilt from. */
+export type StoredReport = Omit<LatestReport, 'unitId' | 'receivedAt'>;
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 export interface LiveSession {
@@ -77,9 +76,9 @@ export class LiveHub {
     const s = this.ensure(unit);
     if (s.lastReportAt && s.lastReportAt >= r.ts.toISOString()) return;
     Object.assign(s, {
-      online: false, lastReportAt: r.ts.toISOString(), mode: r.mode as UnitMode, poaWm2: r.poa_wm2, dcPowerW: r.dc_power_w, tiltDeg: r.tilt_deg,
-      azimuthDeg: r.azimuth_deg, cmdTiltDeg: r.cmd_tilt_deg, cmdAzimuthDeg: r.cmd_azimuth_deg, tiltDiffWm2: r.tilt_plus_wm2 - r.tilt_minus_wm2,
-      azimuthDiffWm2: r.azimuth_plus_wm2 - r.azimuth_minus_wm2, moduleTempC: r.module_temp_c, onHold: unit.onHold,
+      online: false, lastReportAt: r.ts.toISOString(), mode: r.mode as UnitMode, poaWm2: r.poaWm2, dcPowerW: r.dcPowerW, tiltDeg: r.tiltDeg,
+      azimuthDeg: r.azimuthDeg, cmdTiltDeg: r.cmdTiltDeg, cmdAzimuthDeg: r.cmdAzimuthDeg, tiltDiffWm2: r.tiltPlusWm2 - r.tiltMinusWm2,
+      azimuthDiffWm2: r.azimuthPlusWm2 - r.azimuthMinusWm2, moduleTempC: r.moduleTempC, onHold: unit.onHold,
     });
   }
 

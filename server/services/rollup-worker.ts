@@ -1,5 +1,5 @@
 import type { Logger } from 'pino';
-import type { TelemetryRepository, TelemetryRow } from '../data/telemetry-repository';
+import type { TelemetryRepository } from '../data/telemetry-repository';
 import type { UnitDirectory } from './unit-directory';
 import { localDate, utcWindowOfLocalDate } from './local-time';
 
@@ -26,12 +26,13 @@ export class RollupWorker {
     private readonly now: () => number = Date.now,
   ) {}
 
-  markStored(rows: TelemetryRow[]): void {
-    for (const r of rows) {
-      const m = Math.floor(r.ts.getTime() / MINUTE) * MINUTE;
+  /** Readings just stored (unit, timestamp [ms]): their minutes are rolled up again. */
+  markStored(readings: readonly { unitId: number; tsMs: number }[]): void {
+    for (const r of readings) {
+      const m = Math.floor(r.tsMs / MINUTE) * MINUTE;
       let set = this.dirtyMinutes.get(m);
       if (!set) this.dirtyMinutes.set(m, (set = new Set()));
-      set.add(r.unit_id);
+      set.add(r.unitId);
     }
   }
 
@@ -82,18 +83,18 @@ export class RollupWorker {
           set.add(id);
         }
       }
-      const daily: { unit_id: number; local_date: string; energy_wh: number; minutes: number }[] = [];
+      const daily: { unitId: number; localDate: string; energyWh: number; minutes: number }[] = [];
       for (const [d, ids] of days) {
         // One query per local date for all its units; each unit's quarters are then cut to its own zone's day.
         const { from, to } = utcWindowOfLocalDate(d);
-        const sums = new Map<number, { energy_wh: number; minutes: number }>([...ids].map((id) => [id, { energy_wh: 0, minutes: 0 }]));
+        const sums = new Map<number, { energyWh: number; minutes: number }>([...ids].map((id) => [id, { energyWh: 0, minutes: 0 }]));
         for (const r of await this.repo.quartersBetween([...ids], from, to)) {
-          if (localDate(r.bucket.getTime(), this.units.byUnitId(r.unit_id)?.timeZone ?? 'UTC') !== d) continue;
-          const sum = sums.get(r.unit_id)!;
-          sum.energy_wh += r.energy_wh;
+          if (localDate(r.bucket.getTime(), this.units.byUnitId(r.unitId)?.timeZone ?? 'UTC') !== d) continue;
+          const sum = sums.get(r.unitId)!;
+          sum.energyWh += r.energyWh;
           sum.minutes += r.minutes;
         }
-        for (const [id, sum] of sums) daily.push({ unit_id: id, local_date: d, ...sum });
+        for (const [id, sum] of sums) daily.push({ unitId: id, localDate: d, ...sum });
       }
       await this.repo.upsertDaily(daily);
       this.passes++;

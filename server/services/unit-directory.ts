@@ -1,6 +1,7 @@
-import type { Db } from '../data/db';
-import { HoldRepository } from '../data/hold-repository';
+import type { HoldRepository } from '../data/hold-repository';
+import type { UnitRepository } from '../data/unit-repository';
 import type { HoldView } from '../../shared/contracts/holds';
+import type { UnitRef } from '../health/unit-sample';
 
 export interface UnitInfo {
   id: number;
@@ -31,14 +32,12 @@ export class UnitDirectory {
   /** Counts hold changes; a load that started before a unit's latest change keeps that unit's newer holds. */
   private holdChanges = 0;
   private readonly holdChangedAt = new Map<number, number>();
-  private readonly holdRepo: HoldRepository;
 
   constructor(
-    private readonly db: Db,
+    private readonly unitRepo: Pick<UnitRepository, 'directory'>,
+    private readonly holdRepo: Pick<HoldRepository, 'allActive'>,
     private readonly now: () => number = Date.now,
-  ) {
-    this.holdRepo = new HoldRepository(db);
-  }
+  ) {}
 
   /**
    * Reloads every unit. Resolves once a load that started after this call has finished, so a caller that has just
@@ -58,9 +57,7 @@ export class UnitDirectory {
 
   private async read(): Promise<void> {
     const changesAtStart = this.holdChanges;
-    const rows = await this.db('units as u')
-      .join('sites as s', 's.id', 'u.site_id')
-      .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.detector_tilt_deg', 'u.weather_station');
+    const rows = await this.unitRepo.directory();
     const holds = new Map<number, HoldView[]>();
     for (const h of await this.holdRepo.allActive()) holds.set(h.unitId, [...(holds.get(h.unitId) ?? []), h]);
     const bySerial = new Map<string, UnitInfo>();
@@ -68,11 +65,7 @@ export class UnitDirectory {
     for (const r of rows) {
       const current = this.byId.get(r.id);
       const unitHolds = current && (this.holdChangedAt.get(r.id) ?? 0) > changesAtStart ? current.holds : (holds.get(r.id) ?? []);
-      const u: UnitInfo = {
-        id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
-        disabled: Boolean(r.disabled), onHold: unitHolds.length > 0, holds: unitHolds, detectorTiltDeg: r.detector_tilt_deg,
-        weatherStation: Boolean(r.weather_station),
-      };
+      const u: UnitInfo = { ...r, onHold: unitHolds.length > 0, holds: unitHolds };
       bySerial.set(u.serial, u);
       byId.set(u.id, u);
     }
@@ -106,3 +99,6 @@ export class UnitDirectory {
     }
   }
 }
+
+/** What the health detectors know of a unit. */
+export const unitRefOf = (u: UnitInfo): UnitRef => ({ unitId: u.id, serial: u.serial, siteId: u.siteId, detectorTiltDeg: u.detectorTiltDeg, onHold: u.onHold });

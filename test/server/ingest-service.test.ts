@@ -22,7 +22,7 @@ function heldRepository() {
         });
       }),
     insertEvents: async () => [],
-    insertWeather: async () => 0,
+    insertWeather: async () => [],
   } as unknown as TelemetryRepository;
   return { repo, pending };
 }
@@ -109,7 +109,7 @@ describe('ingest acknowledgement and announcements', () => {
         if (rows.length && eventCalls++ === 0) throw Object.assign(new Error('gone'), { code: 'ECONNRESET' });
         return [];
       },
-      insertWeather: async () => 0,
+      insertWeather: async () => [],
     } as unknown as TelemetryRepository;
     const ingest = new IngestService(repo, directory, pino({ level: 'silent' }), {}, { batchRows: 10, flushMs: 5, flushConcurrency: 1 });
     const acked: string[] = [];

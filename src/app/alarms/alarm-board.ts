@@ -8,6 +8,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import type { Site } from '../../../shared/contracts/api';
 import { ALARM_KINDS, ALARM_SEVERITIES, type AlarmView } from '../../../shared/contracts/alarms';
+import { may } from '../../../shared/contracts/permissions';
 import { Session } from '../auth/session';
 import { AlarmApi, toAlarmView } from '../core/alarm-api';
 import { alarmKindLabel, filterAlarms, severityLook, sortAlarms, upsertAlarm, type AlarmListFilter } from '../live/alarm-look';
@@ -17,9 +18,6 @@ import { SiteApi } from '../core/site-api';
 import { toApiProblem } from '../ui/api-error';
 import { Notify } from '../ui/notify';
 import { AlarmCard } from './alarm-card';
-
-/** Roles that may acknowledge (as the API). */
-export const ACK_ROLES: readonly string[] = ['technician', 'engineer', 'admin'];
 
 /** Alarms of every site the user may see, most urgent first, live; technicians acknowledge here. */
 @Component({
@@ -46,8 +44,8 @@ export class AlarmBoard {
   protected readonly kindFilter = signal<string | null>(null);
   protected readonly stateFilter = signal<AlarmListFilter['state']>('open');
 
-  protected readonly canAcknowledge = computed(() => ACK_ROLES.includes(this.session.role() ?? ''));
-  protected readonly traceLinks = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
+  protected readonly canAcknowledge = computed(() => may(this.session.role(), 'acknowledgeAlarms'));
+  protected readonly traceLinks = computed(() => may(this.session.role(), 'readTraces'));
   protected readonly siteMap = computed(() => new Map(this.sites().map((s) => [s.id, s])));
   protected readonly shown = computed(() =>
     sortAlarms(filterAlarms(this.alarms(), { siteId: this.siteFilter(), kind: this.kindFilter(), state: this.stateFilter() })),

@@ -1,4 +1,5 @@
-import { ROLES, type Role } from '../../../shared/contracts/api';
+import type { Role } from '../../../shared/contracts/api';
+import { rolesWith } from '../../../shared/contracts/permissions';
 
 export interface NavItem {
   /** Absolute router path. */
@@ -7,22 +8,22 @@ export interface NavItem {
   /** Material Symbols ligature. */
   icon: string;
   group: 'Fleet' | 'Administration';
-  /** Roles that may open the page; the route's role guard uses the same list. */
+  /** Roles that may open the page (from the permissions table); the route's role guard uses the same list. */
   roles: readonly Role[];
 }
 
 /** The one table of pages in the navigation and who may use each. */
 export const NAV_ITEMS: readonly NavItem[] = [
-  { path: '/fleet', label: 'Fleet board', icon: 'dashboard', group: 'Fleet', roles: ['admin', 'engineer', 'technician', 'crew'] },
-  { path: '/alarms', label: 'Alarms', icon: 'notifications_active', group: 'Fleet', roles: ROLES },
-  { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: ROLES },
-  { path: '/traces', label: 'Trace explorer', icon: 'query_stats', group: 'Fleet', roles: ['admin', 'engineer', 'technician'] },
-  { path: '/landscape', label: 'Landscape', icon: 'landscape', group: 'Fleet', roles: ['admin', 'engineer'] },
-  { path: '/admin/people', label: 'People', icon: 'group', group: 'Administration', roles: ['admin'] },
-  { path: '/admin/owners', label: 'Owners', icon: 'handshake', group: 'Administration', roles: ['admin'] },
-  { path: '/admin/sites', label: 'Site setup', icon: 'edit_location_alt', group: 'Administration', roles: ['admin'] },
-  { path: '/admin/units', label: 'Units and credentials', icon: 'solar_power', group: 'Administration', roles: ['admin'] },
-  { path: '/admin/audit', label: 'Audit log', icon: 'history', group: 'Administration', roles: ['admin'] },
+  { path: '/fleet', label: 'Fleet board', icon: 'dashboard', group: 'Fleet', roles: rolesWith('openFleetBoard') },
+  { path: '/alarms', label: 'Alarms', icon: 'notifications_active', group: 'Fleet', roles: rolesWith('readAlarms') },
+  { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: rolesWith('readSites') },
+  { path: '/traces', label: 'Trace explorer', icon: 'query_stats', group: 'Fleet', roles: rolesWith('readTraces') },
+  { path: '/landscape', label: 'Landscape', icon: 'landscape', group: 'Fleet', roles: rolesWith('openLandscape') },
+  { path: '/admin/people', label: 'People', icon: 'group', group: 'Administration', roles: rolesWith('administer') },
+  { path: '/admin/owners', label: 'Owners', icon: 'handshake', group: 'Administration', roles: rolesWith('administer') },
+  { path: '/admin/sites', label: 'Site setup', icon: 'edit_location_alt', group: 'Administration', roles: rolesWith('administer') },
+  { path: '/admin/units', label: 'Units and credentials', icon: 'solar_power', group: 'Administration', roles: rolesWith('administer') },
+  { path: '/admin/audit', label: 'Audit log', icon: 'history', group: 'Administration', roles: rolesWith('administer') },
 ];
 
 /** The navigation entries a role may see, in table order. */

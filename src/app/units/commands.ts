@@ -25,9 +25,6 @@ const CHOICES: Omit<CommandChoice, 'disabledReason'>[] = ([
   { kind: 'release-hold', label: 'Release my hold', icon: 'play_circle' },
 ] satisfies Omit<CommandChoice, 'disabledReason' | 'motion'>[]).map((c) => ({ ...c, motion: MOTION_COMMANDS.includes(c.kind) }));
 
-/** Roles that may send motion commands and settings. */
-export const COMMAND_ROLES: readonly Role[] = ['admin', 'engineer', 'technician'];
-
 /** The caller's own hold in force on the unit, if any. */
 export function ownHold(holds: readonly HoldView[] | null | undefined, meId: number | null | undefined): HoldView | undefined {
   return meId === null || meId === undefined ? undefined : holds?.find((h) => h.holder.kind === 'person' && h.holder.id === meId);

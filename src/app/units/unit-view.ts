@@ -13,8 +13,8 @@ import type { CommandView, IssueCommandRequest, UnitLiveState } from '../../../s
 import { HOLD_TEXT_MAX, type HoldView } from '../../../shared/contracts/holds';
 import type { UnitConfig } from '../../../shared/contracts/wire';
 import type { ScanResult } from '../../../shared/contracts/alarms';
+import { may } from '../../../shared/contracts/permissions';
 import { Session } from '../auth/session';
-import { ACK_ROLES } from '../alarms/alarm-board';
 import { AlarmApi } from '../core/alarm-api';
 import { CommandApi } from '../core/command-api';
 import { LandscapeApi } from '../core/landscape-api';
@@ -30,7 +30,7 @@ import { CommandConfirm, type CommandConfirmData, type CommandConfirmResult } fr
 import { CommandHistory } from './command-history';
 import { CommandPanel } from './command-panel';
 import {
-  COMMAND_ROLES, CONFIGURE_CAUTION, commandChoices, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
+  CONFIGURE_CAUTION, commandChoices, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
   MOTION_CAUTION, ownHold, queuedNote, RELEASE_CAUTION, upsertCommand, type CommandChoice,
 } from './commands';
 import { HoldPanel } from './hold-panel';
@@ -96,7 +96,7 @@ export class UnitView {
   protected readonly holds = signal<HoldView[] | null>(null);
   protected readonly holdsProblem = signal<string | null>(null);
 
-  protected readonly canAcknowledge = computed(() => ACK_ROLES.includes(this.session.role() ?? ''));
+  protected readonly canAcknowledge = computed(() => may(this.session.role(), 'acknowledgeAlarms'));
   protected readonly scanChoice = computed(() => this.choices().find((c) => c.kind === 'scan')!);
   protected readonly gotoChoice = computed(() => this.choices().find((c) => c.kind === 'goto')!);
 
@@ -110,13 +110,13 @@ export class UnitView {
     const holds = this.holds() ?? s?.holds ?? [];
     return commandChoices(this.session.role(), s ? { ...s, holds, onHold: s.onHold || holds.length > 0 } : null, this.meId(), holds);
   });
-  protected readonly canSeeTraces = computed(() => ['admin', 'engineer', 'technician'].includes(this.session.role() ?? ''));
+  protected readonly canSeeTraces = computed(() => may(this.session.role(), 'readTraces'));
   protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
   protected readonly siteTime = siteTime;
   protected readonly utcTime = utcTime;
   protected readonly ago = ago;
   protected readonly withUnit = withUnit;
-  protected readonly canSendCommands = computed(() => COMMAND_ROLES.includes(this.session.role() ?? 'owner'));
+  protected readonly canSendCommands = computed(() => may(this.session.role(), 'commandMotion'));
   protected readonly holderNames = holderNames;
   /** The unit has reported and is offline now: commands wait in the queue. */
   protected readonly offline = computed(() => {

@@ -1,0 +1,42 @@
+import { ROLES, type Role } from './api';
+
+/**
+ * Who may do what: the one table both the server's `requireRole` checks and the dashboard's navigation and buttons
+ * read. Reads of sites, units and alarms are open to every role within its scope (owners see only their own sites);
+ * the table names what needs more than that.
+ */
+export const PERMISSIONS = {
+  /** People, owners, site and unit setup, device secrets, the audit log. */
+  administer: ['admin'],
+  /** Send commands at all (field crews only hold and release: the command service checks the kind). */
+  command: ['admin', 'engineer', 'technician', 'crew'],
+  /** Send motion commands and settings (what the dashboard offers beyond hold and release). */
+  commandMotion: ['admin', 'engineer', 'technician'],
+  acknowledgeAlarms: ['technician', 'engineer', 'admin'],
+  editHealthSettings: ['engineer', 'admin'],
+  /** Run the detectors on demand over stored data. */
+  runHealth: ['engineer', 'technician', 'admin'],
+  editSurvey: ['admin', 'engineer'],
+  /** Ingest, broker and rollup counters. */
+  readMetrics: ['admin', 'engineer', 'technician'],
+  /** Traces and their raw CSV export. */
+  readTraces: ['admin', 'engineer', 'technician'],
+  /** A site's modelled landscape and its day of hours (the API). */
+  readLandscape: ['admin', 'engineer', 'technician', 'crew'],
+  /** The landscape screen. */
+  openLandscape: ['admin', 'engineer'],
+  /** The fleet board (live units). */
+  openFleetBoard: ['admin', 'engineer', 'technician', 'crew'],
+  readAlarms: ROLES,
+  readSites: ROLES,
+} as const satisfies Record<string, readonly Role[]>;
+
+export type Permission = keyof typeof PERMISSIONS;
+
+/** The roles that hold a permission. */
+export const rolesWith = (p: Permission): readonly Role[] => PERMISSIONS[p];
+
+/** Whether a role (none when signed out) holds a permission. */
+export function may(role: Role | null | undefined, p: Permission): boolean {
+  return role !== null && role !== undefined && (PERMISSIONS[p] as readonly Role[]).includes(role);
+}
