@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # `npm test`: every suite against a private test MariaDB (own port and data dir; never the demo data).
-#   1. Node suites (shared, server, broker, simulator) with vitest   2. Angular unit tests (ng test)
+#   0. lint   1. Node suites (shared, server, broker, simulator) with vitest   2. Angular unit tests (ng test)
 #   3. build the dashboard, then end-to-end tests in headless Chromium
 # Exits non-zero when any step fails; always stops the database it started.
 set -uo pipefail
@@ -25,6 +25,7 @@ step() { # name command...
   local t0=$SECONDS
   if "$@"; then echo "=== $name: ok ($((SECONDS - t0)) s)"; else echo "=== $name: FAILED ($((SECONDS - t0)) s)"; failed+=("$name"); fi
 }
+step "lint (layering, TypeScript, Angular)" npx eslint --config .config/eslint.config.mjs .
 step "typecheck (server, broker, shared, simulator, tests)" npx tsc -p test/tsconfig.json
 step "node suites (vitest)" npx vitest run --config test/vitest.config.ts
 step "angular unit tests" npx ng test --watch=false
