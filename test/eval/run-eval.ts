@@ -18,7 +18,7 @@
  * a best reachable irradiance of at least 150 W/m², no drive or sensor fault, for 10 min), not the injected "knock" that
  * may or may not trap the unit; `drift` includes dead detectors; `comms` is the injected comms loss.
  */
-import { detectorNormals } from '../../simulator/detectors';
+import { detectorNormals } from '../../shared/landscape/detector-pairs';
 import { DETECTOR_TILTS_DEG } from '../../shared/demo-world';
 import { DEMO_SCENARIO_BY_SITE, demoSiteInfo } from '../../simulator/demo-fleet';
 import { createFleet, type FleetSiteSpec } from '../../simulator/fleet';
