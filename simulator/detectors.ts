@@ -5,6 +5,7 @@
  * shared detector model (`detectorNormals` in shared/landscape/detector-pairs.ts); only the sensor errors live here.
  */
 import { detectorNormals } from '../shared/landscape/detector-pairs';
+import { FAULT_EFFECTS } from './fault-effects';
 import type { Rng } from './rng';
 import type { SkyField } from './sky-field';
 
@@ -40,11 +41,13 @@ export interface Readings {
 }
 
 /** Reads all five sensors; `soiling` (0…1 transmittance) dims detectors and reference cell alike. */
+const DEAD = FAULT_EFFECTS.deadDetector;
+
 export function readDetectors(sky: SkyField, set: DetectorSet, tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number, rng: Rng): Readings {
   const n = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
   const read = (i: number, e: number) => {
     const noise = rng.normal() * (set.noiseAbsWm2 + set.noiseRel * e);
-    if (i < 4 && set.dead[i]) return Math.max(0, 0.3 + noise * 0.5);
+    if (i < 4 && set.dead[i]) return Math.max(0, DEAD.floorWm2 + noise * DEAD.noiseShare);
     const g = set.gain[i]! * (i < 4 ? set.drift[i]! : 1);
     return Math.max(0, g * e + noise);
   };
