@@ -111,32 +111,12 @@ interface Observer {
   open: TruthRecord | null;
 }
 
-export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
-  const rng = deps.rng;
-  let now = spec.startUnixMs;
-  const maxStep = spec.maxStepS ?? 1;
-  const sites: SiteRun[] = spec.sites.map((s) => ({
-    spec: s,
-    world: s.world ?? createScenarioWorld(s.scenario, s.site, rng, { skyRefreshS: spec.skyRefreshS }),
-    units: s.units.map((u) => new VirtualUnit(u, rng.fork(`unit:${u.serial}`), now)),
-    fixedPoaWhm2: 0,
-    sunPoaWhm2: 0,
-    fixedDcPerWp: 0,
-    sunDcPerWp: 0,
-  }));
-  const units = sites.flatMap((s) => s.units);
-  const bySerial = new Map(units.map((u) => [u.serial, u]));
-  const siteOf = new Map<VirtualUnit, SiteRun>();
-  for (const s of sites) for (const u of s.units) siteOf.set(u, s);
-  const faultRng = rng.fork('faults');
-  const plan = Object.entries(spec.faults ?? {}).filter(([, r]) => (r ?? 0) > 0) as [FaultKind, number][];
-  const closed: TruthRecord[] = [];
-  const openFaults = new Map<ActiveFault, { unit: VirtualUnit; record: TruthRecord }>();
-  const trapObs = new Map<VirtualUnit, Observer>(units.map((u) => [u, { candidateSinceMs: null, clearSinceMs: null, open: null }]));
-  const windOpen = new Map<VirtualUnit, TruthRecord>();
-  const bestCache = new WeakMap<SkyField, { tiltDeg: number; azimuthDeg: number; wm2: number }>();
+type Best = { tiltDeg: number; azimuthDeg: number; wm2: number };
 
-  function bestReachable(field: SkyField) {
+/** Best irradiance over the orientations the units reach (tilt 0…85°, any azimuth), cached per sky field. */
+function bestReachableSearch(): (field: SkyField) => Best {
+  const bestCache = new WeakMap<SkyField, Best>();
+  return (field) => {
     const hit = bestCache.get(field);
     if (hit) return hit;
     let best = { tiltDeg: 0, azimuthDeg: 0, wm2: -1 };
@@ -151,7 +131,85 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
     }
     bestCache.set(field, best);
     return best;
+  };
+}
+
+/** The sites with their worlds and units, random streams forked in site order. */
+function createSiteRuns(spec: FleetSpec, rng: Rng): SiteRun[] {
+  return spec.sites.map((s) => ({
+    spec: s,
+    world: s.world ?? createScenarioWorld(s.scenario, s.site, rng, { skyRefreshS: spec.skyRefreshS }),
+    units: s.units.map((u) => new VirtualUnit(u, rng.fork(`unit:${u.serial}`), spec.startUnixMs)),
+    fixedPoaWhm2: 0,
+    sunPoaWhm2: 0,
+    fixedDcPerWp: 0,
+    sunDcPerWp: 0,
+  }));
+}
+
+/**
+ * Advances one unit's trap observer: a record opens once the trap condition has held for `TRAP_OPEN_S` (starting when it
+ * began) and closes once it has been absent for `TRAP_CLOSE_S` (ending when it went away). Returns a closed record.
+ */
+function observeTrap(o: Observer, holds: boolean, serial: string, nowMs: number): TruthRecord | null {
+  if (holds) {
+    o.clearSinceMs = null;
+    if (o.candidateSinceMs === null) o.candidateSinceMs = nowMs;
+    if (!o.open && nowMs - o.candidateSinceMs >= TRAP_OPEN_S * 1000) o.open = { serial, fault: 'trap', start: isoUtc(o.candidateSinceMs), end: null };
+    return null;
   }
+  o.candidateSinceMs = null;
+  if (!o.open) return null;
+  if (o.clearSinceMs === null) o.clearSinceMs = nowMs;
+  if (nowMs - o.clearSinceMs < TRAP_CLOSE_S * 1000) return null;
+  const done = o.open;
+  done.end = isoUtc(o.clearSinceMs);
+  o.open = null;
+  o.clearSinceMs = null;
+  return done;
+}
+
+/** Adds dt seconds of the site's two twins (fixed tilt facing the equator, sun-following within 85°) to its baselines. */
+function accumulateTwins(s: SiteRun, c: SiteConditions, dtS: number): void {
+  const lat = s.spec.site.latitudeDeg;
+  const fixed = irradianceTiltAz(c.field, Math.abs(lat), lat >= 0 ? 180 : 0);
+  const sun = c.sunDir ? c.field.irradiance(c.sunDir[2] >= Math.cos((85 * Math.PI) / 180) ? c.sunDir : normalFromTiltAzimuth(85, c.sunAzimuthDeg)) : irradianceTiltAz(c.field, 0, 0);
+  const dc = (e: number) => (e / 1000) * (1 + TEMP_COEFF_PER_K * (c.weather.airTempC + e * NOCT_RISE_K_PER_WM2 - 25));
+  s.fixedPoaWhm2 += (fixed * dtS) / 3600;
+  s.sunPoaWhm2 += (sun * dtS) / 3600;
+  s.fixedDcPerWp += (Math.max(0, dc(fixed)) * dtS) / 3600;
+  s.sunDcPerWp += (Math.max(0, dc(sun)) * dtS) / 3600;
+}
+
+function baselinesOf(sites: readonly SiteRun[]): BaselineEnergy[] {
+  return sites.flatMap((s) =>
+    s.units.map((u) => ({
+      serial: u.serial,
+      siteCode: s.spec.site.code,
+      unitPoaWhm2: u.energy.poaWhm2,
+      fixedTiltPoaWhm2: s.fixedPoaWhm2,
+      sunFollowingPoaWhm2: s.sunPoaWhm2,
+      unitDcWh: u.energy.dcWh,
+      fixedTiltDcWh: s.fixedDcPerWp * u.ratedPowerWp,
+      sunFollowingDcWh: s.sunDcPerWp * u.ratedPowerWp,
+    })),
+  );
+}
+
+export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
+  const rng = deps.rng;
+  let now = spec.startUnixMs;
+  const maxStep = spec.maxStepS ?? 1;
+  const sites = createSiteRuns(spec, rng);
+  const units = sites.flatMap((s) => s.units);
+  const bySerial = new Map(units.map((u) => [u.serial, u]));
+  const faultRng = rng.fork('faults');
+  const plan = Object.entries(spec.faults ?? {}).filter(([, r]) => (r ?? 0) > 0) as [FaultKind, number][];
+  const closed: TruthRecord[] = [];
+  const openFaults = new Map<ActiveFault, { unit: VirtualUnit; record: TruthRecord }>();
+  const trapObs = new Map<VirtualUnit, Observer>(units.map((u) => [u, { candidateSinceMs: null, clearSinceMs: null, open: null }]));
+  const windOpen = new Map<VirtualUnit, TruthRecord>();
+  const bestReachable = bestReachableSearch();
 
   function startFault(u: VirtualUnit, kind: FaultKind, durationS: number, target: number) {
     const f: ActiveFault = { kind, startMs: now, endMs: now + durationS * 1000, target };
@@ -159,8 +217,28 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
     openFaults.set(f, { unit: u, record: { serial: u.serial, fault: kind, start: isoUtc(now), end: null } });
   }
 
+  function endDueFaults() {
+    for (const [f, { unit, record }] of openFaults) {
+      if (f.endMs <= now) {
+        unit.endFault(f, now);
+        record.end = isoUtc(now);
+        closed.push(record);
+        openFaults.delete(f);
+      }
+    }
+  }
+
+  function startPlannedFaults(dtS: number) {
+    for (const u of units) for (const [kind, rate] of plan) {
+      if (!u.hasFault(kind) && faultRng.chance((rate * dtS) / 86_400)) {
+        const dur = Math.max(300, faultRng.exponential(FAULT_MEAN_HOURS[kind] * 3600));
+        startFault(u, kind, dur, Math.floor(faultRng.next() * 4));
+      }
+    }
+  }
+
+  /** Observed truth: wind stows, and traps (settled well below the best reachable orientation, nothing else wrong). */
   function observe(u: VirtualUnit, c: SiteConditions) {
-    // Wind stow as observed truth.
     const w = windOpen.get(u);
     if (u.windStow && !w) windOpen.set(u, { serial: u.serial, fault: 'wind-stow', start: isoUtc(now), end: null });
     if (!u.windStow && w) {
@@ -168,38 +246,11 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
       closed.push(w);
       windOpen.delete(u);
     }
-    // Trap: settled well below the best reachable orientation, with nothing else wrong.
-    const o = trapObs.get(u)!;
     const best = bestReachable(c.field);
     const otherFault = u.faults.some((f) => BALANCE_FAULTS.has(f.kind));
-    const cond = trapConditionHolds({ settled: u.mode === 'settled', otherFault, poaWm2: u.last?.truePoaWm2 ?? 0, bestWm2: best.wm2 });
-    if (cond) {
-      o.clearSinceMs = null;
-      if (o.candidateSinceMs === null) o.candidateSinceMs = now;
-      if (!o.open && now - o.candidateSinceMs >= TRAP_OPEN_S * 1000) o.open = { serial: u.serial, fault: 'trap', start: isoUtc(o.candidateSinceMs), end: null };
-    } else {
-      o.candidateSinceMs = null;
-      if (o.open) {
-        if (o.clearSinceMs === null) o.clearSinceMs = now;
-        if (now - o.clearSinceMs >= TRAP_CLOSE_S * 1000) {
-          o.open.end = isoUtc(o.clearSinceMs);
-          closed.push(o.open);
-          o.open = null;
-          o.clearSinceMs = null;
-        }
-      }
-    }
-  }
-
-  function twins(s: SiteRun, c: SiteConditions, dtS: number) {
-    const lat = s.spec.site.latitudeDeg;
-    const fixed = irradianceTiltAz(c.field, Math.abs(lat), lat >= 0 ? 180 : 0);
-    const sun = c.sunDir ? c.field.irradiance(c.sunDir[2] >= Math.cos((85 * Math.PI) / 180) ? c.sunDir : normalFromTiltAzimuth(85, c.sunAzimuthDeg)) : irradianceTiltAz(c.field, 0, 0);
-    const dc = (e: number) => (e / 1000) * (1 + TEMP_COEFF_PER_K * (c.weather.airTempC + e * NOCT_RISE_K_PER_WM2 - 25));
-    s.fixedPoaWhm2 += (fixed * dtS) / 3600;
-    s.sunPoaWhm2 += (sun * dtS) / 3600;
-    s.fixedDcPerWp += (Math.max(0, dc(fixed)) * dtS) / 3600;
-    s.sunDcPerWp += (Math.max(0, dc(sun)) * dtS) / 3600;
+    const holds = trapConditionHolds({ settled: u.mode === 'settled', otherFault, poaWm2: u.last?.truePoaWm2 ?? 0, bestWm2: best.wm2 });
+    const done = observeTrap(trapObs.get(u)!, holds, u.serial, now);
+    if (done) closed.push(done);
   }
 
   function drain(): OutboundMessage[] {
@@ -211,26 +262,12 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
   function substep(dtS: number) {
     now += dtS * 1000;
     // Faults end, then new ones may start.
-    for (const [f, { unit, record }] of openFaults) {
-      if (f.endMs <= now) {
-        unit.endFault(f, now);
-        record.end = isoUtc(now);
-        closed.push(record);
-        openFaults.delete(f);
-      }
-    }
-    if (plan.length) {
-      for (const u of units) for (const [kind, rate] of plan) {
-        if (!u.hasFault(kind) && faultRng.chance((rate * dtS) / 86_400)) {
-          const dur = Math.max(300, faultRng.exponential(FAULT_MEAN_HOURS[kind] * 3600));
-          startFault(u, kind, dur, Math.floor(faultRng.next() * 4));
-        }
-      }
-    }
+    endDueFaults();
+    if (plan.length) startPlannedFaults(dtS);
     for (const s of sites) {
       const c = s.world.at(now, dtS);
       s.last = c;
-      twins(s, c, dtS);
+      accumulateTwins(s, c, dtS);
       for (const u of s.units) {
         u.step(c, dtS);
         observe(u, c);
@@ -267,20 +304,7 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
       const open: TruthRecord[] = [...[...openFaults.values()].map((x) => x.record), ...[...trapObs.values()].flatMap((o) => (o.open ? [o.open] : [])), ...windOpen.values()];
       return [...closed, ...open.map((r) => ({ ...r }))];
     },
-    baselines() {
-      return sites.flatMap((s) =>
-        s.units.map((u) => ({
-          serial: u.serial,
-          siteCode: s.spec.site.code,
-          unitPoaWhm2: u.energy.poaWhm2,
-          fixedTiltPoaWhm2: s.fixedPoaWhm2,
-          sunFollowingPoaWhm2: s.sunPoaWhm2,
-          unitDcWh: u.energy.dcWh,
-          fixedTiltDcWh: s.fixedDcPerWp * u.ratedPowerWp,
-          sunFollowingDcWh: s.sunDcPerWp * u.ratedPowerWp,
-        })),
-      );
-    },
+    baselines: () => baselinesOf(sites),
     conditions: (code) => sites.find((s) => s.spec.site.code === code)?.last,
     bestReachable,
     injectFault(serial, kind, durationS, target = 0) {
