@@ -5,6 +5,7 @@
  * and baseline energies are available in memory; the CLI writes them to files.
  */
 import type { Command } from '../shared/contracts/wire';
+import { bestReachableOrientationWith, STANDARD_UNIT_LIMITS, TRAP_RATIO, type BestOrientation, type UnitLimits } from '../shared/landscape';
 import { isoUtc } from './clock';
 import { FAULT_KINDS, FAULT_MEAN_HOURS, type ActiveFault, type FaultKind, type FaultPlan, type TruthKind, type TruthRecord } from './faults';
 import type { Rng } from './rng';
@@ -61,14 +62,14 @@ export interface Fleet {
   baselines(): BaselineEnergy[];
   /** Latest conditions at a site. */
   conditions(siteCode: string): SiteConditions | undefined;
-  /** Best irradiance over every orientation the units can reach, for a sky field [W/m²]. */
-  bestReachable(field: SkyField): { tiltDeg: number; azimuthDeg: number; wm2: number };
+  /** Best orientation a unit with these limits (default: a standard unit's) can reach under a sky field (shared/landscape). */
+  bestReachable(field: SkyField, limits?: UnitLimits): BestOrientation;
   /** Starts an injected fault now (tests, scripted runs). */
   injectFault(serial: string, kind: FaultKind, durationS: number, target?: number): void;
 }
 
-/** A settled unit below this fraction of the best reachable irradiance, with nothing else wrong, counts as trapped. */
-export const TRAP_RATIO = 0.85;
+/** A settled unit below `TRAP_RATIO` (shared/landscape) of its best reachable irradiance, with nothing else wrong, counts as trapped. */
+export { TRAP_RATIO };
 /** …while the best reachable orientation gets at least this [W/m²]: below it (dusk, dim lamps) a trap is not counted. */
 export const TRAP_MIN_BEST_WM2 = 150;
 
@@ -111,27 +112,27 @@ interface Observer {
   open: TruthRecord | null;
 }
 
-type Best = { tiltDeg: number; azimuthDeg: number; wm2: number };
-
-/** Best irradiance over the orientations the units reach (tilt 0…85°, any azimuth), cached per sky field. */
-function bestReachableSearch(): (field: SkyField) => Best {
-  const bestCache = new WeakMap<SkyField, Best>();
-  return (field) => {
-    const hit = bestCache.get(field);
-    if (hit) return hit;
-    let best = { tiltDeg: 0, azimuthDeg: 0, wm2: -1 };
-    for (let t = 0; t <= 85; t += 5) for (let a = 0; a < 360; a += 10) {
-      const e = irradianceTiltAz(field, t, a);
-      if (e > best.wm2) best = { tiltDeg: t, azimuthDeg: a, wm2: e };
+/** Best reachable orientation per sky field and unit limits (shared/landscape's one definition), cached per field. */
+function bestReachableSearch(): (field: SkyField, limits?: UnitLimits) => BestOrientation {
+  const bestCache = new WeakMap<SkyField, Map<string, BestOrientation>>();
+  const keys = new WeakMap<UnitLimits, string>();
+  return (field, limits = STANDARD_UNIT_LIMITS) => {
+    let key = keys.get(limits);
+    if (key === undefined) keys.set(limits, (key = `${limits.tiltRangeDeg.join(',')}|${limits.azimuthRangeDeg.join(',')}`));
+    let perField = bestCache.get(field);
+    if (!perField) bestCache.set(field, (perField = new Map()));
+    let best = perField.get(key);
+    if (!best) {
+      best = bestReachableOrientationWith((n) => field.irradiance(n), limits);
+      perField.set(key, best);
     }
-    const c = best;
-    for (let t = Math.max(0, c.tiltDeg - 5); t <= Math.min(85, c.tiltDeg + 5); t += 1) for (let a = c.azimuthDeg - 10; a <= c.azimuthDeg + 10; a += 1) {
-      const e = irradianceTiltAz(field, t, a);
-      if (e > best.wm2) best = { tiltDeg: t, azimuthDeg: ((a % 360) + 360) % 360, wm2: e };
-    }
-    bestCache.set(field, best);
     return best;
   };
+}
+
+/** A unit's travel as unit limits. */
+function limitsOf(u: VirtualUnit): UnitLimits {
+  return { tiltRangeDeg: [u.tiltSpec.minDeg, u.tiltSpec.maxDeg], azimuthRangeDeg: [u.azimuthSpec.minDeg, u.azimuthSpec.maxDeg] };
 }
 
 /** The sites with their worlds and units, random streams forked in site order. */
@@ -210,6 +211,7 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
   const trapObs = new Map<VirtualUnit, Observer>(units.map((u) => [u, { candidateSinceMs: null, clearSinceMs: null, open: null }]));
   const windOpen = new Map<VirtualUnit, TruthRecord>();
   const bestReachable = bestReachableSearch();
+  const limits = new Map(units.map((u) => [u, limitsOf(u)]));
 
   function startFault(u: VirtualUnit, kind: FaultKind, durationS: number, target: number) {
     const f: ActiveFault = { kind, startMs: now, endMs: now + durationS * 1000, target };
@@ -246,7 +248,7 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
       closed.push(w);
       windOpen.delete(u);
     }
-    const best = bestReachable(c.field);
+    const best = bestReachable(c.field, limits.get(u));
     const otherFault = u.faults.some((f) => BALANCE_FAULTS.has(f.kind));
     const holds = trapConditionHolds({ settled: u.mode === 'settled', otherFault, poaWm2: u.last?.truePoaWm2 ?? 0, bestWm2: best.wm2 });
     const done = observeTrap(trapObs.get(u)!, holds, u.serial, now);

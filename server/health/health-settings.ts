@@ -4,6 +4,7 @@
  * one source). Times in minutes, irradiance in W/m², angles in degrees, currents in A.
  */
 import { z } from 'zod';
+import { TRAP_RATIO } from '../../shared/landscape/best-orientation';
 
 export const SEVERITIES = ['P1', 'P2', 'P3', 'P4'] as const;
 export type Severity = (typeof SEVERITIES)[number];
@@ -133,7 +134,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   daylightMinWm2: 100,
   daylightMinSunElevationDeg: 5,
 
-  trapRatio: 0.84,
+  trapRatio: TRAP_RATIO,
   trapPeerRatio: 0.9,
   trapPeerQuantile: 0.75,
   trapModelAgreement: 0.1,

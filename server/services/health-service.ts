@@ -9,7 +9,7 @@
  */
 import type { Logger } from 'pino';
 import type { Telemetry, UnitEvent, UnitStatus, Weather } from '../../shared/contracts/wire';
-import { analyseLandscape, computeLandscape, detectorReadings, findMaxima, type Sky } from '../../shared/landscape';
+import { analyseLandscape, bestReachableOrientation, detectorReadings, type Sky } from '../../shared/landscape';
 import type { AlarmRepository, AlarmListRow, HealthReadRepository } from '../data/alarm-repository';
 import { badRequest, notFound } from '../errors/app-error';
 import type { Alarm } from '../health/alarm-types';
@@ -288,8 +288,7 @@ export class HealthService {
   }
 
   private globalMaxOf(sky: Sky) {
-    const g = findMaxima(computeLandscape(sky, { stepDeg: 2, tiltRangeDeg: [0, this.opts.maxTiltDeg] })).globalMax;
-    return { tiltDeg: g.tiltDeg, azimuthDeg: g.azimuthDeg, wm2: g.wm2 };
+    return bestReachableOrientation(sky, { tiltRangeDeg: [0, this.opts.maxTiltDeg], azimuthRangeDeg: [0, 360] });
   }
 
   // ---- weather
