@@ -28,6 +28,23 @@ describe('virtual unit', () => {
     expect(Math.abs(u.tilt.encoderDeg - best.tiltDeg)).toBeLessThan(4);
   });
 
+  it('its trap truth measures it against the best its own axes reach: a unit limited to tilt 0…20° is not trapped at 20° under a high sun', () => {
+    const world = frozenWorld(createScenarioWorld('clear-day', QED, createRng(1)), T0);
+    const tilt = { minDeg: 0, maxDeg: 20, speedDegS: 4, backlashDeg: 0.3 };
+    const fleet = createFleet({ sites: [{ site: QED, scenario: 'clear-day', world, units: [{ serial: 'U-0002', siteCode: 'QED', tilt }] }], startUnixMs: T0 }, { rng: createRng(7) });
+    fleet.step(1800);
+    const u = fleet.unit('U-0002')!;
+    const field = fleet.conditions('QED')!.field;
+    const own = fleet.bestReachable(field, { tiltRangeDeg: [0, 20], azimuthRangeDeg: [0, 360] });
+    const standard = fleet.bestReachable(field);
+    expect(standard.tiltDeg).toBeGreaterThan(30); // sun at about 45° elevation: a standard unit tilts further
+    expect(own.tiltDeg).toBe(20);
+    expect(own.wm2).toBeLessThan(standard.wm2);
+    expect(u.mode).toBe('settled');
+    expect(u.last!.truePoaWm2).toBeGreaterThan(0.98 * own.wm2);
+    expect(fleet.truth().filter((r) => r.fault === 'trap')).toEqual([]);
+  });
+
   it('every message it sends matches wire format v1', () => {
     const fleet = oneUnit();
     const msgs = fleet.step(120);
