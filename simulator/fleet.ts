@@ -197,6 +197,55 @@ function baselinesOf(sites: readonly SiteRun[]): BaselineEnergy[] {
   );
 }
 
+/** Ground truth as it accrues: injected faults while active, observed traps and wind stows, and the closed records. */
+class TruthBook {
+  private readonly closed: TruthRecord[] = [];
+  private readonly openFaults = new Map<ActiveFault, { unit: VirtualUnit; record: TruthRecord }>();
+  private readonly trapObs = new Map<VirtualUnit, Observer>();
+  private readonly windOpen = new Map<VirtualUnit, TruthRecord>();
+
+  constructor(units: readonly VirtualUnit[]) {
+    for (const u of units) this.trapObs.set(u, { candidateSinceMs: null, clearSinceMs: null, open: null });
+  }
+
+  faultStarted(u: VirtualUnit, f: ActiveFault, nowMs: number): void {
+    this.openFaults.set(f, { unit: u, record: { serial: u.serial, fault: f.kind, start: isoUtc(nowMs), end: null } });
+  }
+
+  /** Ends the injected faults that are due (the unit recovers) and closes their records. */
+  endDueFaults(nowMs: number): void {
+    for (const [f, { unit, record }] of this.openFaults) {
+      if (f.endMs <= nowMs) {
+        unit.endFault(f, nowMs);
+        record.end = isoUtc(nowMs);
+        this.closed.push(record);
+        this.openFaults.delete(f);
+      }
+    }
+  }
+
+  windStow(u: VirtualUnit, nowMs: number): void {
+    const w = this.windOpen.get(u);
+    if (u.windStow && !w) this.windOpen.set(u, { serial: u.serial, fault: 'wind-stow', start: isoUtc(nowMs), end: null });
+    if (!u.windStow && w) {
+      w.end = isoUtc(nowMs);
+      this.closed.push(w);
+      this.windOpen.delete(u);
+    }
+  }
+
+  trap(u: VirtualUnit, holds: boolean, nowMs: number): void {
+    const done = observeTrap(this.trapObs.get(u)!, holds, u.serial, nowMs);
+    if (done) this.closed.push(done);
+  }
+
+  /** Every record so far, closed first; open ones are copies with end null. */
+  all(): TruthRecord[] {
+    const open: TruthRecord[] = [...[...this.openFaults.values()].map((x) => x.record), ...[...this.trapObs.values()].flatMap((o) => (o.open ? [o.open] : [])), ...this.windOpen.values()];
+    return [...this.closed, ...open.map((r) => ({ ...r }))];
+  }
+}
+
 export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
   const rng = deps.rng;
   let now = spec.startUnixMs;
@@ -206,28 +255,14 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
   const bySerial = new Map(units.map((u) => [u.serial, u]));
   const faultRng = rng.fork('faults');
   const plan = Object.entries(spec.faults ?? {}).filter(([, r]) => (r ?? 0) > 0) as [FaultKind, number][];
-  const closed: TruthRecord[] = [];
-  const openFaults = new Map<ActiveFault, { unit: VirtualUnit; record: TruthRecord }>();
-  const trapObs = new Map<VirtualUnit, Observer>(units.map((u) => [u, { candidateSinceMs: null, clearSinceMs: null, open: null }]));
-  const windOpen = new Map<VirtualUnit, TruthRecord>();
+  const book = new TruthBook(units);
   const bestReachable = bestReachableSearch();
   const limits = new Map(units.map((u) => [u, limitsOf(u)]));
 
   function startFault(u: VirtualUnit, kind: FaultKind, durationS: number, target: number) {
     const f: ActiveFault = { kind, startMs: now, endMs: now + durationS * 1000, target };
     u.startFault(f, now);
-    openFaults.set(f, { unit: u, record: { serial: u.serial, fault: kind, start: isoUtc(now), end: null } });
-  }
-
-  function endDueFaults() {
-    for (const [f, { unit, record }] of openFaults) {
-      if (f.endMs <= now) {
-        unit.endFault(f, now);
-        record.end = isoUtc(now);
-        closed.push(record);
-        openFaults.delete(f);
-      }
-    }
+    book.faultStarted(u, f, now);
   }
 
   function startPlannedFaults(dtS: number) {
@@ -241,18 +276,11 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
 
   /** Observed truth: wind stows, and traps (settled well below the best reachable orientation, nothing else wrong). */
   function observe(u: VirtualUnit, c: SiteConditions) {
-    const w = windOpen.get(u);
-    if (u.windStow && !w) windOpen.set(u, { serial: u.serial, fault: 'wind-stow', start: isoUtc(now), end: null });
-    if (!u.windStow && w) {
-      w.end = isoUtc(now);
-      closed.push(w);
-      windOpen.delete(u);
-    }
+    book.windStow(u, now);
     const best = bestReachable(c.field, limits.get(u));
     const otherFault = u.faults.some((f) => BALANCE_FAULTS.has(f.kind));
     const holds = trapConditionHolds({ settled: u.mode === 'settled', otherFault, poaWm2: u.last?.truePoaWm2 ?? 0, bestWm2: best.wm2 });
-    const done = observeTrap(trapObs.get(u)!, holds, u.serial, now);
-    if (done) closed.push(done);
+    book.trap(u, holds, now);
   }
 
   function drain(): OutboundMessage[] {
@@ -264,7 +292,7 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
   function substep(dtS: number) {
     now += dtS * 1000;
     // Faults end, then new ones may start.
-    endDueFaults();
+    book.endDueFaults(now);
     if (plan.length) startPlannedFaults(dtS);
     for (const s of sites) {
       const c = s.world.at(now, dtS);
@@ -302,10 +330,7 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
       const u = bySerial.get(serial);
       if (u) u.transportUp = up;
     },
-    truth() {
-      const open: TruthRecord[] = [...[...openFaults.values()].map((x) => x.record), ...[...trapObs.values()].flatMap((o) => (o.open ? [o.open] : [])), ...windOpen.values()];
-      return [...closed, ...open.map((r) => ({ ...r }))];
-    },
+    truth: () => book.all(),
     baselines: () => baselinesOf(sites),
     conditions: (code) => sites.find((s) => s.spec.site.code === code)?.last,
     bestReachable,
