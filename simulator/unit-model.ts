@@ -2,7 +2,8 @@
  * One virtual unit: actuator, detectors, controller, modes, commands and its store-and-forward outbox. Pure and steppable:
  * it reads the site's conditions, moves, and queues the messages a field unit would send (telemetry, events, acks,
  * weather). It never touches the network; whoever carries its messages reports whether its link is up.
- * Fault magnitudes are in fault-effects.ts, the scan raster in unit-scan.ts, the wire encoding in unit-messages.ts.
+ * Fault magnitudes are in fault-effects.ts, command preconditions in unit-commands.ts, the scan raster in unit-scan.ts,
+ * the wire encoding in unit-messages.ts.
  */
 import type { Command, CommandAck, Telemetry, UnitConfig, UnitEvent, UnitMode, Weather } from '../shared/contracts/wire';
 import { atTarget, createAxis, setTarget, stepAxis, type AxisSpec, type AxisState } from './actuator';
@@ -13,6 +14,7 @@ import type { ActiveFault, FaultKind } from './faults';
 import type { Rng } from './rng';
 import type { SiteConditions } from './scenarios';
 import { StoreAndForward } from './store-and-forward';
+import { commandRefusal } from './unit-commands';
 import { ackPayload, eventPayload, r1, telemetryPayload, weatherPayload } from './unit-messages';
 import { newScan, SCAN_DWELL_S, takeScanSample, type ScanState } from './unit-scan';
 
@@ -200,9 +202,11 @@ export class VirtualUnit {
   /** Takes a command from the server; answers with acks in the outbox. */
   handleCommand(cmd: Command, nowMs: number): void {
     const id = cmd.commandId;
-    const motion = cmd.kind === 'scan' || cmd.kind === 'goto' || cmd.kind === 'stow' || cmd.kind === 'release-stow';
-    if (motion && this.held) return this.ack(nowMs, id, 'rejected', 'unit is on maintenance hold');
-    if (motion && this.faultCode !== null) return this.ack(nowMs, id, 'rejected', `unit is in fault: ${this.faultCode}`);
+    const refusal = commandRefusal(cmd, {
+      held: this.held, faultCode: this.faultCode, manualStow: this.manualStow, windStow: this.windStow, stuckStowed: this.fx.stuckStowed,
+      stowGustMs: this.stowGustMs, tiltSpec: this.tiltSpec, azimuthSpec: this.azimuthSpec, tiltEncoderDeg: this.tilt.encoderDeg, azimuthEncoderDeg: this.azimuth.encoderDeg,
+    });
+    if (refusal !== null) return this.ack(nowMs, id, 'rejected', refusal);
     switch (cmd.kind) {
       case 'hold':
         this.ack(nowMs, id, 'accepted');
@@ -224,7 +228,6 @@ export class VirtualUnit {
         this.stowCmd = id;
         break;
       case 'release-stow':
-        if (this.windStow) return this.ack(nowMs, id, 'rejected', `gusts above the stow limit (${this.stowGustMs} m/s)`);
         this.ack(nowMs, id, 'accepted');
         if (this.fx.stuckStowed) return; // firmware stuck in stow: accepts, never completes
         this.manualStow = false;
@@ -232,31 +235,21 @@ export class VirtualUnit {
         this.balancedS = 0;
         this.ack(nowMs, id, 'done');
         break;
-      case 'goto': {
-        if (this.manualStow || this.windStow || this.fx.stuckStowed) return this.ack(nowMs, id, 'rejected', 'unit is stowed; release the stow first');
-        if (cmd.tiltDeg === undefined && cmd.azimuthDeg === undefined) return this.ack(nowMs, id, 'rejected', 'goto needs tiltDeg and/or azimuthDeg');
-        const t = cmd.tiltDeg ?? this.tilt.encoderDeg;
-        const a = cmd.azimuthDeg ?? this.azimuth.encoderDeg;
-        if (t < this.tiltSpec.minDeg || t > this.tiltSpec.maxDeg) return this.ack(nowMs, id, 'rejected', `tiltDeg outside ${this.tiltSpec.minDeg}…${this.tiltSpec.maxDeg}`);
-        if (a < this.azimuthSpec.minDeg || a > this.azimuthSpec.maxDeg) return this.ack(nowMs, id, 'rejected', `azimuthDeg outside ${this.azimuthSpec.minDeg}…${this.azimuthSpec.maxDeg}`);
+      case 'goto':
         this.ack(nowMs, id, 'accepted');
         this.cancelMotions(nowMs, 'superseded by goto');
-        this.startGoto(t, a, id);
+        this.startGoto(cmd.tiltDeg ?? this.tilt.encoderDeg, cmd.azimuthDeg ?? this.azimuth.encoderDeg, id);
         break;
-      }
       case 'scan':
-        if (this.manualStow || this.windStow || this.fx.stuckStowed) return this.ack(nowMs, id, 'rejected', 'unit is stowed; release the stow first');
         this.ack(nowMs, id, 'accepted');
         this.cancelMotions(nowMs, 'superseded by scan');
         this.startScan(id);
         break;
-      case 'configure': {
-        if (!cmd.config || Object.keys(cmd.config).length === 0) return this.ack(nowMs, id, 'rejected', 'configure needs a config');
+      case 'configure':
         this.ack(nowMs, id, 'accepted');
-        this.applyConfig(cmd.config);
+        this.applyConfig(cmd.config!);
         this.ack(nowMs, id, 'done');
         break;
-      }
     }
   }
 

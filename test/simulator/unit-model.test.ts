@@ -7,6 +7,7 @@ import { parseFaultPlan } from '../../simulator/faults';
 import { createScenarioWorld, frozenWorld, UnknownNameError } from '../../simulator/scenarios';
 import { parseOptions } from '../../simulator/main';
 import { StoreAndForward } from '../../simulator/store-and-forward';
+import { commandRefusal } from '../../simulator/unit-commands';
 
 const QED = demoSiteInfo('QED');
 const T0 = Date.parse('2026-04-20T09:00:00Z');
@@ -148,5 +149,21 @@ describe('determinism and buffering', () => {
     for (let i = 0; i < 5; i++) b.push(i);
     expect(b.drain()).toEqual([2, 3, 4]);
     expect(b.dropped).toBe(2);
+  });
+});
+
+describe('command preconditions', () => {
+  const axes = { tiltSpec: { minDeg: 0, maxDeg: 85, speedDegS: 4, backlashDeg: 0.3 }, azimuthSpec: { minDeg: 0, maxDeg: 360, speedDegS: 4, backlashDeg: 0.4 } };
+  const ready = { held: false, faultCode: null, manualStow: false, windStow: false, stuckStowed: false, stowGustMs: 18, tiltEncoderDeg: 30, azimuthEncoderDeg: 180, ...axes };
+  it('refuse motion on hold or in fault, goto outside the travel or while stowed, release-stow in a gust, an empty configure', () => {
+    expect(commandRefusal(cmd('goto', 'a', { tiltDeg: 10 }), ready)).toBeNull();
+    expect(commandRefusal(cmd('scan', 'b'), { ...ready, held: true })).toBe('unit is on maintenance hold');
+    expect(commandRefusal(cmd('hold', 'c'), { ...ready, held: true })).toBeNull();
+    expect(commandRefusal(cmd('stow', 'd'), { ...ready, faultCode: 'actuator-stall' })).toBe('unit is in fault: actuator-stall');
+    expect(commandRefusal(cmd('goto', 'e', { tiltDeg: 88 }), ready)).toBe('tiltDeg outside 0…85');
+    expect(commandRefusal(cmd('goto', 'f'), ready)).toBe('goto needs tiltDeg and/or azimuthDeg');
+    expect(commandRefusal(cmd('goto', 'g', { azimuthDeg: 90 }), { ...ready, windStow: true })).toBe('unit is stowed; release the stow first');
+    expect(commandRefusal(cmd('release-stow', 'h'), { ...ready, windStow: true })).toBe('gusts above the stow limit (18 m/s)');
+    expect(commandRefusal(cmd('configure', 'i', { config: {} }), ready)).toBe('configure needs a config');
   });
 });
