@@ -2,13 +2,12 @@ import bcrypt from 'bcryptjs';
 import type { Knex } from 'knex';
 import { hashDeviceSecret, newDeviceSecret } from '../server/services/device-secret';
 import type { SiteSurvey } from '../shared/contracts/survey';
-import { CITY_HORIZON, FACADES } from '../simulator/scenarios/glass-facade';
-import { COURTYARD_HORIZON } from '../simulator/scenarios/urban-canyon';
-import { ATRIUM_LAMPS, ATRIUM_WALL_DEG } from '../simulator/scenarios/atrium-lamps';
+import { ATRIUM_LAMPS, ATRIUM_WALL_DEG, CITY_HORIZON, COURTYARD_HORIZON, DEMO_SITES, DEMO_UNIT, DETECTOR_TILTS_DEG, FACADES, UNITS_PER_SITE, demoSerial, demoSerials } from '../shared/demo-world';
 
 /**
  * The invented demo world: an O&M operator ("Saltmarsh Field Services"), two owners, four sites and 24 units.
- * Names, people and serials are made up; coordinates are realistic. Demo only — never used by tests of the computation.
+ * Names, people and serials are made up; sites, units and their geometry come from shared/demo-world, which the simulator
+ * runs too. Demo only — never used by tests of the computation.
  */
 export const DEMO_PASSWORD = 'brightward-demo';
 
@@ -28,15 +27,6 @@ export const DEMO_OWNERS = [
   { name: 'Fenwick Lane Schools Trust', contact_email: 'estates@fenwicklane.example' },
 ];
 
-export const DEMO_SITES = [
-  { owner: 'Quillmoor Energy Cooperative', name: 'Harbourside Library Roof', code: 'QHL', latitude_deg: 53.5413, longitude_deg: 9.9937, elevation_m: 24, time_zone: 'Europe/Berlin', albedo: 0.3, indoor: false },
-  { owner: 'Quillmoor Energy Cooperative', name: 'Eastfield Depot Yard', code: 'QED', latitude_deg: 53.5738, longitude_deg: 10.0806, elevation_m: 11, time_zone: 'Europe/Berlin', albedo: 0.18, indoor: false },
-  { owner: 'Fenwick Lane Schools Trust', name: 'Fenwick Lane School Courtyard', code: 'FSC', latitude_deg: 51.459, longitude_deg: -2.587, elevation_m: 42, time_zone: 'Europe/London', albedo: 0.2, indoor: false },
-  { owner: 'Fenwick Lane Schools Trust', name: 'Glasshouse Atrium', code: 'FGA', latitude_deg: 51.4545, longitude_deg: -2.5979, elevation_m: 15, time_zone: 'Europe/London', albedo: 0.5, indoor: true },
-];
-
-export const UNITS_PER_SITE = 6;
-
 /** Site surveys of the demo world: the same geometry the simulator's scenarios use, so model and demo fleet agree. */
 export const DEMO_SURVEYS: Record<string, SiteSurvey> = {
   QHL: { skyType: 12, horizon: CITY_HORIZON.map(([a, e]) => [a, e]), reflectors: FACADES.map((f) => ({ normalElevationDeg: 0, ...f })), lamps: [] },
@@ -44,14 +34,6 @@ export const DEMO_SURVEYS: Record<string, SiteSurvey> = {
   FSC: { skyType: 12, horizon: COURTYARD_HORIZON.map(([a, e]) => [a, e]), reflectors: [], lamps: [] },
   FGA: { skyType: 'isotropic', horizon: [[0, ATRIUM_WALL_DEG]], reflectors: [], lamps: ATRIUM_LAMPS.map(({ azimuthDeg, elevationDeg, irradianceWm2 }) => ({ azimuthDeg, elevationDeg, irradianceWm2 })) },
 };
-
-/** Detector tilt per unit index: most units well set up, a few too narrow for a cluttered sky (they can be trapped). */
-export const DETECTOR_TILTS_DEG = [20, 20, 15, 20, 8, 20];
-
-export const demoSerial = (siteCode: string, i: number) => `${siteCode}-${String(2401 + i)}`;
-
-/** Every serial of the demo world, site by site. */
-export const demoSerials = (): string[] => DEMO_SITES.flatMap((s) => Array.from({ length: UNITS_PER_SITE }, (_, i) => demoSerial(s.code, i)));
 
 export interface DemoSeedOptions {
   bcryptCost?: number;
@@ -85,9 +67,9 @@ export async function seedDemoWorld(db: Knex, opts: DemoSeedOptions = {}): Promi
         const serial = demoSerial(code, i);
         deviceSecrets[serial] = secretOf(serial);
         return {
-          serial, site_id: siteId, rated_power_wp: 420, detector_tilt_deg: DETECTOR_TILTS_DEG[i],
-          tilt_min_deg: 0, tilt_max_deg: 85, azimuth_min_deg: 0, azimuth_max_deg: 360,
-          plan_x_m: (i % 3) * 6, plan_y_m: Math.floor(i / 3) * 5, firmware: '2.4.1',
+          serial, site_id: siteId, rated_power_wp: DEMO_UNIT.ratedPowerWp, detector_tilt_deg: DETECTOR_TILTS_DEG[i],
+          tilt_min_deg: DEMO_UNIT.tiltRangeDeg[0], tilt_max_deg: DEMO_UNIT.tiltRangeDeg[1], azimuth_min_deg: DEMO_UNIT.azimuthRangeDeg[0], azimuth_max_deg: DEMO_UNIT.azimuthRangeDeg[1],
+          plan_x_m: (i % 3) * 6, plan_y_m: Math.floor(i / 3) * 5, firmware: DEMO_UNIT.firmware,
           device_secret_hash: hashDeviceSecret(deviceSecrets[serial]!),
           weather_station: i === 0 && !s.indoor,
         };

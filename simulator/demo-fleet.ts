@@ -2,7 +2,7 @@
  * The demo fleet: the 24 units of the invented demo world, each site under a fitting scenario. Unit index 4 of each site
  * has the narrow detector tilt (8°) and is the one prone to traps.
  */
-import { DEMO_SITES, DETECTOR_TILTS_DEG, UNITS_PER_SITE, demoSerial } from '../seeds/demo-world';
+import { DEMO_SITES, DEMO_UNIT, DETECTOR_TILTS_DEG, UNITS_PER_SITE, demoSerial } from '../shared/demo-world';
 import type { FleetSiteSpec } from './fleet';
 import type { SiteInfo } from './scenarios';
 
@@ -26,8 +26,8 @@ export function demoFleetSites(reportIntervalS = 5): FleetSiteSpec[] {
     units: Array.from({ length: UNITS_PER_SITE }, (_, i) => ({
       serial: demoSerial(s.code, i),
       siteCode: s.code,
-      firmware: '2.4.1',
-      ratedPowerWp: 420,
+      firmware: DEMO_UNIT.firmware,
+      ratedPowerWp: DEMO_UNIT.ratedPowerWp,
       wear: i === 5 ? 0.3 : 0.02 * i,
       controller: { detectorTiltDeg: DETECTOR_TILTS_DEG[i]!, reportIntervalS },
       weatherStation: i === 0 && !s.indoor,

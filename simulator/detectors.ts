@@ -1,12 +1,13 @@
 /**
  * The four photodetectors of a unit: a tilt pair (±δ in the plane of tilt) and an azimuth pair (±δ across it), fixed to
  * the panel frame, plus the in-plane reference cell that reports plane-of-array irradiance. Each reads the site's sky at its
- * own normal, with gain error, noise, optional drift and optional failure (dead detector reads ~0).
+ * own normal, with gain error, noise, optional drift and optional failure (dead detector reads ~0). The geometry is the
+ * shared detector model (`detectorNormals` in shared/landscape/detector-pairs.ts); only the sensor errors live here.
  */
+import { detectorNormals } from '../shared/landscape/detector-pairs';
+import { FAULT_EFFECTS } from './fault-effects';
 import type { Rng } from './rng';
-import { normalFromTiltAzimuth, type SkyField, type Vec3 } from './sky-field';
-
-const RAD = Math.PI / 180;
+import type { SkyField } from './sky-field';
 
 export const DETECTOR_NAMES = ['tiltPlus', 'tiltMinus', 'azimuthPlus', 'azimuthMinus'] as const;
 export type DetectorName = (typeof DETECTOR_NAMES)[number];
@@ -28,21 +29,6 @@ export function createDetectorSet(rng: Rng): DetectorSet {
   return { gain: [g(), g(), g(), g(), 1 + 0.005 * rng.normal()], drift: [1, 1, 1, 1], dead: [false, false, false, false], noiseAbsWm2: 0.4, noiseRel: 0.002 };
 }
 
-/** Normals of the panel and the four detectors for a true orientation and detector tilt δ. */
-export function detectorNormals(tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number): { panel: Vec3; tiltPlus: Vec3; tiltMinus: Vec3; azimuthPlus: Vec3; azimuthMinus: Vec3 } {
-  const panel = normalFromTiltAzimuth(tiltDeg, azimuthDeg);
-  const tiltPlus = normalFromTiltAzimuth(tiltDeg + detectorTiltDeg, azimuthDeg);
-  const tiltMinus = normalFromTiltAzimuth(tiltDeg - detectorTiltDeg, azimuthDeg);
-  // Across the tilt plane: toward azimuth + 90° (clockwise side) for the plus detector.
-  const a = azimuthDeg * RAD;
-  const c = Math.cos(detectorTiltDeg * RAD);
-  const s = Math.sin(detectorTiltDeg * RAD);
-  const side: Vec3 = [Math.cos(a), -Math.sin(a), 0];
-  const azimuthPlus: Vec3 = [panel[0] * c + side[0] * s, panel[1] * c + side[1] * s, panel[2] * c];
-  const azimuthMinus: Vec3 = [panel[0] * c - side[0] * s, panel[1] * c - side[1] * s, panel[2] * c];
-  return { panel, tiltPlus, tiltMinus, azimuthPlus, azimuthMinus };
-}
-
 export interface Readings {
   tiltPlusWm2: number;
   tiltMinusWm2: number;
@@ -55,11 +41,13 @@ export interface Readings {
 }
 
 /** Reads all five sensors; `soiling` (0…1 transmittance) dims detectors and reference cell alike. */
+const DEAD = FAULT_EFFECTS.deadDetector;
+
 export function readDetectors(sky: SkyField, set: DetectorSet, tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number, rng: Rng): Readings {
   const n = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
   const read = (i: number, e: number) => {
     const noise = rng.normal() * (set.noiseAbsWm2 + set.noiseRel * e);
-    if (i < 4 && set.dead[i]) return Math.max(0, 0.3 + noise * 0.5);
+    if (i < 4 && set.dead[i]) return Math.max(0, DEAD.floorWm2 + noise * DEAD.noiseShare);
     const g = set.gain[i]! * (i < 4 ? set.drift[i]! : 1);
     return Math.max(0, g * e + noise);
   };

@@ -11,6 +11,7 @@
  */
 import { extendedRadiance, type Sky } from '../shared/sky-radiance';
 import { directionFromAzimuthElevation, normalFromTiltAzimuth, type Vec3 } from '../shared/sphere/directions';
+import { order2IrradianceForm, shBasisOrder2 } from '../shared/sphere/sh-order2-ramamoorthi-hanrahan-2001';
 
 export type { Vec3 };
 export { directionFromAzimuthElevation, normalFromTiltAzimuth };
@@ -34,7 +35,8 @@ export interface SkyField {
   readonly sources: readonly SharpSource[];
 }
 
-// ---- quadrature lattice (Fibonacci) and real SH basis of degree ≤ 2 ----
+// Fibonacci lattice for the projection; basis and kernel from shared/sphere (the 6-digit constants printed by
+// Ramamoorthi & Hanrahan 2001, which this field has always used; the exact basis differs by < 1e-6 per value).
 const N_LATTICE = 4096;
 const LAT: Vec3[] = [];
 const LAT_Y = new Float64Array(N_LATTICE * 9);
@@ -46,19 +48,9 @@ const LAT_Y = new Float64Array(N_LATTICE * 9);
     const x = r * Math.cos(golden * i);
     const y = r * Math.sin(golden * i);
     LAT.push([x, y, z]);
-    const o = 9 * i;
-    LAT_Y[o] = 0.282095;
-    LAT_Y[o + 1] = 0.488603 * y;
-    LAT_Y[o + 2] = 0.488603 * z;
-    LAT_Y[o + 3] = 0.488603 * x;
-    LAT_Y[o + 4] = 1.092548 * x * y;
-    LAT_Y[o + 5] = 1.092548 * y * z;
-    LAT_Y[o + 6] = 0.315392 * (3 * z * z - 1);
-    LAT_Y[o + 7] = 1.092548 * x * z;
-    LAT_Y[o + 8] = 0.546274 * (x * x - y * y);
+    shBasisOrder2(x, y, z, LAT_Y, 9 * i);
   }
 }
-const A_HAT = [Math.PI, (2 * Math.PI) / 3, (2 * Math.PI) / 3, (2 * Math.PI) / 3, Math.PI / 4, Math.PI / 4, Math.PI / 4, Math.PI / 4, Math.PI / 4];
 
 /** Makes the fast field of a built sky. */
 export function skyField(sky: Sky): SkyField {
@@ -72,16 +64,7 @@ export function skyField(sky: Sky): SkyField {
     if (d[2] > 0) dhi += L * d[2] * w;
     for (let j = 0; j < 9; j++) c[j] = c[j]! + L * LAT_Y[9 * i + j]! * w;
   }
-  const q = Array.from(c, (v, j) => v * A_HAT[j]!);
-  const k0 = q[0]! * 0.282095 - q[6]! * 0.315392;
-  const ky = q[1]! * 0.488603;
-  const kz = q[2]! * 0.488603;
-  const kx = q[3]! * 0.488603;
-  const kxy = q[4]! * 1.092548;
-  const kyz = q[5]! * 1.092548;
-  const kzz = q[6]! * 0.315392 * 3;
-  const kxz = q[7]! * 1.092548;
-  const kxx = q[8]! * 0.546274;
+  const { k0, kx, ky, kz, kxy, kyz, kxz, kzz, kxx } = order2IrradianceForm(c);
   const sources: SharpSource[] = sky.pointSources.filter((p) => p.irradianceWm2 > 0).map((p) => ({ kind: p.kind, direction: p.direction, irradianceWm2: p.irradianceWm2 }));
   const flat = new Float64Array(sources.length * 4);
   sources.forEach((s, i) => flat.set([s.direction[0], s.direction[1], s.direction[2], s.irradianceWm2], 4 * i));

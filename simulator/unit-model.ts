@@ -2,18 +2,23 @@
  * One virtual unit: actuator, detectors, controller, modes, commands and its store-and-forward outbox. Pure and steppable:
  * it reads the site's conditions, moves, and queues the messages a field unit would send (telemetry, events, acks,
  * weather). It never touches the network; whoever carries its messages reports whether its link is up.
+ * Fault magnitudes are in fault-effects.ts, command preconditions in unit-commands.ts, the scan raster in unit-scan.ts,
+ * the wire encoding in unit-messages.ts.
  */
-import { MODULE_POWER_TEMP_COEFF_PER_K as TEMP_COEFF_PER_K } from '../shared/contracts/pv-module';
 import type { Command, CommandAck, Telemetry, UnitConfig, UnitEvent, Weather } from '../shared/contracts/wire';
-import { MOTION_COMMANDS, WIRE_RANGES as R, WIRE_VERSION, type UnitMode } from '../shared/contracts/wire-format';
-import { atTarget, clamp, createAxis, setTarget, stepAxis, type AxisSpec, type AxisState } from './actuator';
-import { isoUtc } from './clock';
+import type { UnitMode } from '../shared/contracts/wire-format';
+import { atTarget, createAxis, setTarget, stepAxis, type AxisSpec, type AxisState } from './actuator';
 import { controlStep, DEFAULT_CONTROLLER, type ControllerConfig } from './controller';
 import { createDetectorSet, readDetectors, type DetectorSet, type Readings } from './detectors';
+import { axisOf, FAULT_EFFECTS, noFaultEffects, stepSlowFaults, type FaultEffectState } from './fault-effects';
 import type { ActiveFault, FaultKind } from './faults';
 import type { Rng } from './rng';
 import type { SiteConditions } from './scenarios';
 import { StoreAndForward } from './store-and-forward';
+import { commandRefusal } from './unit-commands';
+import { ackPayload, eventPayload, r1, telemetryPayload, weatherPayload } from './unit-messages';
+import { newScan, SCAN_DWELL_S, takeScanSample, type ScanState } from './unit-scan';
+import { MODULE_POWER_TEMP_COEFF_PER_K as TEMP_COEFF_PER_K } from '../shared/contracts/pv-module';
 
 export interface UnitSpec {
   serial: string;
@@ -57,19 +62,6 @@ const STALL_AFTER_S = 20;
 const NOCT_RISE_K_PER_WM2 = (45 - 20) / 800; // NOCT 45 °C model, common practice
 const STOW_TILT_DEG = 0;
 
-/** Scan raster: rows of tilt, azimuth every 30°, serpentine. */
-const SCAN_TILTS = [10, 30, 50, 70];
-const SCAN_AZ_STEP = 30;
-
-interface ScanState {
-  commandId: string;
-  waypoints: [number, number][];
-  index: number;
-  dwellS: number;
-  row: [number, number, number][];
-  all: [number, number, number][];
-}
-
 export class VirtualUnit {
   readonly serial: string;
   readonly siteCode: string;
@@ -112,15 +104,7 @@ export class VirtualUnit {
   private scan: ScanState | null = null;
   private gotoCmd: { commandId: string | null } | null = null;
   private stowCmd: string | null = null;
-  // fault effects
-  private commsDown = false;
-  private stuckStowed = false;
-  private gainFactor = 1;
-  private deadbandOverride: number | null = null;
-  private detectorTiltOverride: number | null = null;
-  private driftRatePerS = 0;
-  private driftDetector = -1;
-  private soilingRatePerS = 0;
+  private readonly fx: FaultEffectState = noFaultEffects();
 
   constructor(spec: UnitSpec, rng: Rng, nowMs: number) {
     this.serial = spec.serial;
@@ -145,12 +129,12 @@ export class VirtualUnit {
 
   /** Whether messages can leave the unit now. */
   get linkUp(): boolean {
-    return this.transportUp && !this.commsDown;
+    return this.transportUp && !this.fx.commsDown;
   }
 
   /** Whether a comms-loss fault has cut the unit off (its transport should drop). */
   get commsLost(): boolean {
-    return this.commsDown;
+    return this.fx.commsDown;
   }
 
   /** Answers a command that could not be read (bad payload) with a rejection. */
@@ -160,21 +144,21 @@ export class VirtualUnit {
 
   /** Detector tilt in effect (a fault can change it). */
   get detectorTiltDeg(): number {
-    return this.detectorTiltOverride ?? this.config.detectorTiltDeg;
+    return this.fx.detectorTiltOverride ?? this.config.detectorTiltDeg;
   }
 
   /** Advances the unit by dt seconds under the site's conditions at `c.unixMs`. */
   step(c: SiteConditions, dtS: number): void {
     const now = c.unixMs;
     this.applyWind(c, dtS, now);
-    this.applySlowFaults(dtS);
+    this.soiling = stepSlowFaults(this.fx, this.detectors.drift, this.soiling, dtS);
     // Sense at the structure's true orientation.
     const r = readDetectors(c.field, this.detectors, this.tilt.trueDeg, this.azimuth.trueDeg, this.detectorTiltDeg, this.rng);
     this.last = r;
     // Decide where to go.
     if (this.faultCode !== null || this.held) {
       this.holdPosition();
-    } else if (this.stuckStowed || this.manualStow || this.windStow) {
+    } else if (this.fx.stuckStowed || this.manualStow || this.windStow) {
       setTarget(this.tiltSpec, this.tilt, STOW_TILT_DEG);
       setTarget(this.azimuthSpec, this.azimuth, this.azimuth.encoderDeg);
     } else if (this.scan) {
@@ -182,7 +166,7 @@ export class VirtualUnit {
     } else if (this.gotoCmd) {
       // target already set; wait for arrival
     } else {
-      const cfg = this.deadbandOverride === null && this.gainFactor === 1 ? this.config : { ...this.config, gain: this.config.gain * this.gainFactor, deadbandWm2: this.deadbandOverride ?? this.config.deadbandWm2 };
+      const cfg = this.fx.deadbandOverride === null && this.fx.gainFactor === 1 ? this.config : { ...this.config, gain: this.config.gain * this.fx.gainFactor, deadbandWm2: this.fx.deadbandOverride ?? this.config.deadbandWm2 };
       const out = controlStep(cfg, r, this.tilt.encoderDeg, dtS);
       setTarget(this.tiltSpec, this.tilt, this.tilt.encoderDeg + out.dTiltDeg);
       setTarget(this.azimuthSpec, this.azimuth, this.azimuth.encoderDeg + out.dAzimuthDeg);
@@ -192,7 +176,6 @@ export class VirtualUnit {
         this.anchor = [this.tilt.encoderDeg, this.azimuth.encoderDeg];
         this.balancedS = 0;
       } else this.balancedS += dtS;
-      void out.balanced;
     }
     // Move.
     stepAxis(this.tiltSpec, this.tilt, dtS);
@@ -213,21 +196,18 @@ export class VirtualUnit {
     }
     if (this.weatherStation && now - this.lastWeatherMs >= this.weatherIntervalS * 1000 - 1e-6) {
       this.lastWeatherMs = now;
-      const w = c.weather;
-      this.outbox.push({
-        serial: this.serial,
-        leaf: 'weather',
-        payload: { v: WIRE_VERSION, ts: isoUtc(now), ghiWm2: r1(clamp(w.ghiWm2, ...R.ghiWm2)), dhiWm2: r1(clamp(w.dhiWm2, ...R.dhiWm2)), airTempC: r1(w.airTempC), windMs: r1(w.windMs), gustMs: r1(w.gustMs) },
-      });
+      this.outbox.push({ serial: this.serial, leaf: 'weather', payload: weatherPayload(now, c.weather) });
     }
   }
 
   /** Takes a command from the server; answers with acks in the outbox. */
   handleCommand(cmd: Command, nowMs: number): void {
     const id = cmd.commandId;
-    const motion = MOTION_COMMANDS.includes(cmd.kind);
-    if (motion && this.held) return this.ack(nowMs, id, 'rejected', 'unit is on maintenance hold');
-    if (motion && this.faultCode !== null) return this.ack(nowMs, id, 'rejected', `unit is in fault: ${this.faultCode}`);
+    const refusal = commandRefusal(cmd, {
+      held: this.held, faultCode: this.faultCode, manualStow: this.manualStow, windStow: this.windStow, stuckStowed: this.fx.stuckStowed,
+      stowGustMs: this.stowGustMs, tiltSpec: this.tiltSpec, azimuthSpec: this.azimuthSpec, tiltEncoderDeg: this.tilt.encoderDeg, azimuthEncoderDeg: this.azimuth.encoderDeg,
+    });
+    if (refusal !== null) return this.ack(nowMs, id, 'rejected', refusal);
     switch (cmd.kind) {
       case 'hold':
         this.ack(nowMs, id, 'accepted');
@@ -249,39 +229,28 @@ export class VirtualUnit {
         this.stowCmd = id;
         break;
       case 'release-stow':
-        if (this.windStow) return this.ack(nowMs, id, 'rejected', `gusts above the stow limit (${this.stowGustMs} m/s)`);
         this.ack(nowMs, id, 'accepted');
-        if (this.stuckStowed) return; // firmware stuck in stow: accepts, never completes
+        if (this.fx.stuckStowed) return; // firmware stuck in stow: accepts, never completes
         this.manualStow = false;
         this.stowCmd = null;
         this.balancedS = 0;
         this.ack(nowMs, id, 'done');
         break;
-      case 'goto': {
-        if (this.manualStow || this.windStow || this.stuckStowed) return this.ack(nowMs, id, 'rejected', 'unit is stowed; release the stow first');
-        if (cmd.tiltDeg === undefined && cmd.azimuthDeg === undefined) return this.ack(nowMs, id, 'rejected', 'goto needs tiltDeg and/or azimuthDeg');
-        const t = cmd.tiltDeg ?? this.tilt.encoderDeg;
-        const a = cmd.azimuthDeg ?? this.azimuth.encoderDeg;
-        if (t < this.tiltSpec.minDeg || t > this.tiltSpec.maxDeg) return this.ack(nowMs, id, 'rejected', `tiltDeg outside ${this.tiltSpec.minDeg}…${this.tiltSpec.maxDeg}`);
-        if (a < this.azimuthSpec.minDeg || a > this.azimuthSpec.maxDeg) return this.ack(nowMs, id, 'rejected', `azimuthDeg outside ${this.azimuthSpec.minDeg}…${this.azimuthSpec.maxDeg}`);
+      case 'goto':
         this.ack(nowMs, id, 'accepted');
         this.cancelMotions(nowMs, 'superseded by goto');
-        this.startGoto(t, a, id);
+        this.startGoto(cmd.tiltDeg ?? this.tilt.encoderDeg, cmd.azimuthDeg ?? this.azimuth.encoderDeg, id);
         break;
-      }
       case 'scan':
-        if (this.manualStow || this.windStow || this.stuckStowed) return this.ack(nowMs, id, 'rejected', 'unit is stowed; release the stow first');
         this.ack(nowMs, id, 'accepted');
         this.cancelMotions(nowMs, 'superseded by scan');
         this.startScan(id);
         break;
-      case 'configure': {
-        if (!cmd.config || Object.keys(cmd.config).length === 0) return this.ack(nowMs, id, 'rejected', 'configure needs a config');
+      case 'configure':
         this.ack(nowMs, id, 'accepted');
-        this.applyConfig(cmd.config);
+        this.applyConfig(cmd.config!);
         this.ack(nowMs, id, 'done');
         break;
-      }
     }
   }
 
@@ -296,43 +265,43 @@ export class VirtualUnit {
   }
 
   /** Begins an injected fault. */
-  startFault(f: ActiveFault, nowMs: number): void {
+  startFault(f: ActiveFault, _nowMs: number): void {
     this.faults.push(f);
     switch (f.kind) {
       case 'trap': {
-        // A knock or a bad manual setting: narrow detectors and a random orientation to start from.
-        this.detectorTiltOverride = 4;
-        this.startGoto(this.rng.uniform(20, 70), this.rng.uniform(this.azimuthSpec.minDeg + 10, this.azimuthSpec.maxDeg - 10), null);
+        const e = FAULT_EFFECTS.trap;
+        this.fx.detectorTiltOverride = e.detectorTiltDeg;
+        const m = e.restartAzimuthMarginDeg;
+        this.startGoto(this.rng.uniform(e.restartTiltDeg[0], e.restartTiltDeg[1]), this.rng.uniform(this.azimuthSpec.minDeg + m, this.azimuthSpec.maxDeg - m), null);
         break;
       }
       case 'stall':
-        (f.target % 2 === 0 ? this.tilt : this.azimuth).stalled = true;
+        axisOf(f.target, this.tilt, this.azimuth).stalled = true;
         break;
       case 'slip':
-        (f.target % 2 === 0 ? this.tilt : this.azimuth).slipFraction = 0.3;
+        axisOf(f.target, this.tilt, this.azimuth).slipFraction = FAULT_EFFECTS.slip.fraction;
         break;
       case 'drift':
-        this.driftDetector = f.target % 4;
-        this.driftRatePerS = -0.2 / 3600;
+        this.fx.driftDetector = f.target % 4;
+        this.fx.driftRatePerS = -FAULT_EFFECTS.drift.lossPerHour / 3600;
         break;
       case 'dead-detector':
         this.detectors.dead[f.target % 4] = true;
         break;
       case 'hunting':
-        this.gainFactor = 15;
-        this.deadbandOverride = 0;
+        this.fx.gainFactor = FAULT_EFFECTS.hunting.gainFactor;
+        this.fx.deadbandOverride = FAULT_EFFECTS.hunting.deadbandWm2;
         break;
       case 'comms-loss':
-        this.commsDown = true;
+        this.fx.commsDown = true;
         break;
       case 'soiling':
-        this.soilingRatePerS = 0.05 / 86_400;
+        this.fx.soilingRatePerS = FAULT_EFFECTS.soiling.lossPerDay / 86_400;
         break;
       case 'stuck-mode':
-        this.stuckStowed = true;
+        this.fx.stuckStowed = true;
         break;
     }
-    void nowMs;
   }
 
   /** Ends an injected fault (repair, recalibration, cleaning, link restored). */
@@ -340,10 +309,10 @@ export class VirtualUnit {
     this.faults = this.faults.filter((x) => x !== f);
     switch (f.kind) {
       case 'trap':
-        this.detectorTiltOverride = null;
+        this.fx.detectorTiltOverride = null;
         break;
       case 'stall': {
-        const ax = f.target % 2 === 0 ? this.tilt : this.azimuth;
+        const ax = axisOf(f.target, this.tilt, this.azimuth);
         ax.stalled = false;
         if (this.faultCode === 'actuator-stall') {
           this.faultCode = null;
@@ -353,7 +322,7 @@ export class VirtualUnit {
         break;
       }
       case 'slip': {
-        const ax = f.target % 2 === 0 ? this.tilt : this.azimuth;
+        const ax = axisOf(f.target, this.tilt, this.azimuth);
         ax.slipFraction = 0;
         ax.slipOffsetDeg = 0;
         ax.trueDeg = ax.encoderDeg; // re-homed
@@ -361,25 +330,25 @@ export class VirtualUnit {
       }
       case 'drift':
         this.detectors.drift = [1, 1, 1, 1];
-        this.driftRatePerS = 0;
-        this.driftDetector = -1;
+        this.fx.driftRatePerS = 0;
+        this.fx.driftDetector = -1;
         break;
       case 'dead-detector':
         this.detectors.dead[f.target % 4] = false;
         break;
       case 'hunting':
-        this.gainFactor = 1;
-        this.deadbandOverride = null;
+        this.fx.gainFactor = 1;
+        this.fx.deadbandOverride = null;
         break;
       case 'comms-loss':
-        this.commsDown = false;
+        this.fx.commsDown = false;
         break;
       case 'soiling':
-        this.soilingRatePerS = 0;
+        this.fx.soilingRatePerS = 0;
         this.soiling = 1; // cleaned
         break;
       case 'stuck-mode':
-        this.stuckStowed = false;
+        this.fx.stuckStowed = false;
         break;
     }
   }
@@ -409,14 +378,6 @@ export class VirtualUnit {
     }
   }
 
-  private applySlowFaults(dtS: number): void {
-    if (this.driftDetector >= 0) {
-      const i = this.driftDetector;
-      this.detectors.drift[i] = Math.max(0.5, this.detectors.drift[i]! + this.driftRatePerS * dtS);
-    }
-    if (this.soilingRatePerS > 0) this.soiling = Math.max(0.6, this.soiling - this.soilingRatePerS * dtS);
-  }
-
   private holdPosition(): void {
     this.tilt.targetDeg = this.tilt.encoderDeg;
     this.azimuth.targetDeg = this.azimuth.encoderDeg;
@@ -430,14 +391,8 @@ export class VirtualUnit {
   }
 
   private startScan(commandId: string): void {
-    const w: [number, number][] = [];
-    const azs: number[] = [];
-    for (let a = this.azimuthSpec.minDeg; a <= this.azimuthSpec.maxDeg + 1e-9; a += SCAN_AZ_STEP) azs.push(a);
-    SCAN_TILTS.filter((t) => t >= this.tiltSpec.minDeg && t <= this.tiltSpec.maxDeg).forEach((t, row) => {
-      const order = row % 2 === 0 ? azs : [...azs].reverse();
-      for (const a of order) w.push([t, a]);
-    });
-    this.scan = { commandId, waypoints: w, index: 0, dwellS: 0, row: [], all: [] };
+    this.scan = newScan(commandId, this.tiltSpec, this.azimuthSpec);
+    const w = this.scan.waypoints;
     setTarget(this.tiltSpec, this.tilt, w[0]![0]);
     setTarget(this.azimuthSpec, this.azimuth, w[0]![1]);
   }
@@ -446,29 +401,19 @@ export class VirtualUnit {
     const s = this.scan!;
     if (!(atTarget(this.tilt, 0.2) && atTarget(this.azimuth, 0.2))) return;
     s.dwellS += dtS;
-    if (s.dwellS < 1) return;
+    if (s.dwellS < SCAN_DWELL_S) return;
     const [t, a] = s.waypoints[s.index]!;
-    const sample: [number, number, number] = [t, a, r1(r.poaWm2)];
-    s.row.push(sample);
-    s.all.push(sample);
-    s.index++;
-    s.dwellS = 0;
-    const rowEnds = s.index === s.waypoints.length || s.waypoints[s.index]![0] !== t || s.row.length >= 250;
-    if (rowEnds) {
-      this.event(now, { kind: 'scan-samples', commandId: s.commandId, samples: s.row });
-      s.row = [];
-    }
-    if (s.index === s.waypoints.length) {
-      const best = s.all.reduce((b, x) => (x[2] > b[2] ? x : b), s.all[0]!);
+    const { row, best, next } = takeScanSample(s, [t, a, r1(r.poaWm2)]);
+    if (row) this.event(now, { kind: 'scan-samples', commandId: s.commandId, samples: row });
+    if (best) {
       this.event(now, { kind: 'scan-complete', commandId: s.commandId, message: `${s.all.length} samples; brightest ${best[2]} W/m² at tilt ${best[0]}°, azimuth ${best[1]}°` });
       this.scan = null;
       this.ack(now, s.commandId, 'done');
       this.startGoto(best[0], best[1], null); // continue climbing from the brightest sample
       return;
     }
-    const [nt, na] = s.waypoints[s.index]!;
-    setTarget(this.tiltSpec, this.tilt, nt);
-    setTarget(this.azimuthSpec, this.azimuth, na);
+    setTarget(this.tiltSpec, this.tilt, next![0]);
+    setTarget(this.azimuthSpec, this.azimuth, next![1]);
   }
 
   private finishMotions(now: number): void {
@@ -516,7 +461,7 @@ export class VirtualUnit {
     let m: UnitMode;
     if (this.faultCode !== null) m = 'fault';
     else if (this.held) m = 'held';
-    else if (this.stuckStowed || this.manualStow || this.windStow) m = 'stowed';
+    else if (this.fx.stuckStowed || this.manualStow || this.windStow) m = 'stowed';
     else if (this.scan) m = 'scanning';
     else if (this.gotoCmd) m = 'seeking';
     else m = this.balancedS >= SETTLE_AFTER_S ? 'settled' : 'seeking';
@@ -527,37 +472,15 @@ export class VirtualUnit {
   }
 
   private report(now: number, r: Readings): void {
-    const payload: Telemetry = {
-      v: WIRE_VERSION,
-      seq: this.seq++,
-      ts: isoUtc(now),
-      tiltPlusWm2: r1(clamp(r.tiltPlusWm2, ...R.irradianceWm2)),
-      tiltMinusWm2: r1(clamp(r.tiltMinusWm2, ...R.irradianceWm2)),
-      azimuthPlusWm2: r1(clamp(r.azimuthPlusWm2, ...R.irradianceWm2)),
-      azimuthMinusWm2: r1(clamp(r.azimuthMinusWm2, ...R.irradianceWm2)),
-      poaWm2: r1(clamp(r.poaWm2, ...R.irradianceWm2)),
-      tiltDeg: r2(clamp(this.tilt.encoderDeg, ...R.tiltDeg)),
-      azimuthDeg: r2(clamp(this.azimuth.encoderDeg, ...R.azimuthDeg)),
-      cmdTiltDeg: r2(clamp(this.tilt.targetDeg, ...R.tiltDeg)),
-      cmdAzimuthDeg: r2(clamp(this.azimuth.targetDeg, ...R.azimuthDeg)),
-      tiltMotorA: r2(this.tilt.currentA),
-      azimuthMotorA: r2(this.azimuth.currentA),
-      dcPowerW: r1(this.lastDcW),
-      moduleTempC: r1(clamp(this.lastModuleTempC, ...R.moduleTempC)),
-      mode: this.mode,
-      firmware: this.firmware,
-    };
+    const payload: Telemetry = telemetryPayload(now, { seq: this.seq++, readings: r, tilt: this.tilt, azimuth: this.azimuth, dcW: this.lastDcW, moduleTempC: this.lastModuleTempC, mode: this.mode, firmware: this.firmware });
     this.outbox.push({ serial: this.serial, leaf: 'telemetry', payload });
   }
 
   private event(now: number, e: Omit<UnitEvent, 'v' | 'ts'>): void {
-    this.outbox.push({ serial: this.serial, leaf: 'events', payload: { v: WIRE_VERSION, ts: isoUtc(now), ...e } });
+    this.outbox.push({ serial: this.serial, leaf: 'events', payload: eventPayload(now, e) });
   }
 
   private ack(now: number, commandId: string, result: CommandAck['result'], reason?: string): void {
-    this.outbox.push({ serial: this.serial, leaf: 'acks', payload: { v: WIRE_VERSION, commandId, ts: isoUtc(now), result, ...(reason ? { reason } : {}) } });
+    this.outbox.push({ serial: this.serial, leaf: 'acks', payload: ackPayload(now, commandId, result, reason) });
   }
 }
-
-const r1 = (x: number) => Math.round(x * 10) / 10;
-const r2 = (x: number) => Math.round(x * 100) / 100;

@@ -5,6 +5,7 @@
  */
 import { z } from 'zod';
 import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module';
+import { TRAP_RATIO } from '../../shared/landscape/best-orientation';
 
 export interface HealthSettings {
   // ---- daylight gating
@@ -131,7 +132,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   daylightMinWm2: 100,
   daylightMinSunElevationDeg: 5,
 
-  trapRatio: 0.84,
+  trapRatio: TRAP_RATIO,
   trapPeerRatio: 0.9,
   trapPeerQuantile: 0.75,
   trapModelAgreement: 0.1,

@@ -4,7 +4,7 @@
  * (the offline evaluation, a test) can feed it the same inputs and get the same model.
  */
 import type { SiteSurvey } from '../../shared/contracts/survey';
-import { analyseLandscape, computeLandscape, detectorReadings, findMaxima, type Sky } from '../../shared/landscape';
+import { analyseLandscape, bestReachableOrientation, detectorReadings, type Sky } from '../../shared/landscape';
 import { parseSkyFile, resolveSkyFile, type ResolvedSky } from '../../shared/sky-file';
 import type { SiteModel } from './site-model';
 
@@ -72,6 +72,5 @@ export function siteModelOf(resolved: ResolvedSky, indoor: boolean, atMs: number
 
 /** The brightest orientation of a sky with tilt up to `maxTiltDeg` (2° grid). */
 export function globalMaxOf(sky: Sky, maxTiltDeg: number) {
-  const g = findMaxima(computeLandscape(sky, { stepDeg: 2, tiltRangeDeg: [0, maxTiltDeg] })).globalMax;
-  return { tiltDeg: g.tiltDeg, azimuthDeg: g.azimuthDeg, wm2: g.wm2 };
+  return bestReachableOrientation(sky, { tiltRangeDeg: [0, maxTiltDeg], azimuthRangeDeg: [0, 360] });
 }

@@ -2,7 +2,8 @@ import { chmodSync, existsSync, mkdirSync, readFileSync, writeFileSync } from 'n
 import { dirname } from 'node:path';
 import { loadConfig } from '../config';
 import { createDb, describeDbError, migrateLatest, type Db } from '../data/db';
-import { demoSerials, rekeyDemoUnits, seedDemoWorld } from '../../seeds/demo-world';
+import { demoSerials } from '../../shared/demo-world';
+import { rekeyDemoUnits, seedDemoWorld } from '../../seeds/demo-world';
 
 /**
  * `migrate.ts latest [--demo]` | `rollback` | `demo`: schema changes, and — only when asked — the invented demo world.

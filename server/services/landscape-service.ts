@@ -1,6 +1,6 @@
 import type { Site } from '../../shared/contracts/api';
 import type { LandscapeDay, LandscapeHour, SiteLandscape } from '../../shared/contracts/landscape';
-import { analyseLandscape, blurLandscape, computeLandscape } from '../../shared/landscape';
+import { analyseLandscape, bestReachableOrientation, blurLandscape, computeLandscape, STANDARD_UNIT_LIMITS } from '../../shared/landscape';
 import { solarPosition } from '../../shared/solar-position';
 import type { SiteModelService } from './site-model-service';
 import { localDate, utcWindowOfLocalDate } from './local-time';
@@ -12,6 +12,7 @@ const DAY_MS = 24 * HOUR_MS;
 /** The traces' modelled-best overlay is sampled every 15 minutes (trace-service); the warmer fills those slots. */
 const WARM_SLOT_MS = 15 * 60_000;
 const round1 = (x: number) => Math.round(x * 10) / 10;
+const roundedBest = (b: { tiltDeg: number; azimuthDeg: number; wm2: number }) => ({ tiltDeg: b.tiltDeg, azimuthDeg: b.azimuthDeg, wm2: round1(b.wm2) });
 
 export interface LandscapeOptions {
   /** Grid step [°], 1…10. */
@@ -122,7 +123,7 @@ export class LandscapeService {
       stepDeg: o.stepDeg,
       detectorTiltDeg: o.detectorTiltDeg,
       grid,
-      globalMax: { tiltDeg: report.globalMax.tiltDeg, azimuthDeg: report.globalMax.azimuthDeg, wm2: round1(report.globalMax.wm2) },
+      globalMax: roundedBest(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS, { resolutionDeg: o.stepDeg })),
       localMaxima: report.localMaxima.map((p) => ({
         tiltDeg: p.tiltDeg, azimuthDeg: p.azimuthDeg, wm2: round1(p.wm2), prominenceWm2: round1(p.prominenceWm2), basinShare: Math.round(p.basinShare * 1000) / 1000,
       })),
@@ -132,8 +133,8 @@ export class LandscapeService {
   }
 
   /**
-   * The modelled best in-plane irradiance (global maximum over all orientations, 3° grid) of a site at an instant,
-   * cached per 5-minute slot.
+   * The modelled best in-plane irradiance of a site at an instant (the best orientation a standard unit reaches, at the
+   * shared resolution), cached per 5-minute slot.
    */
   bestWm2(siteId: number, atMs: number): Promise<number> {
     const slot = Math.round(atMs / 300_000) * 300_000;
@@ -144,10 +145,7 @@ export class LandscapeService {
       p = new Promise<void>((r) => setImmediate(r)).then(() => this.model.skyAt(siteId, slot)).then(({ sky }) => {
         // A dark sky (night, no lamps) lights no orientation: skip the grid.
         if (!sky.ghiWm2 && !sky.dhiWm2 && !sky.dniWm2 && !sky.pointSources.length) return 0;
-        const l = computeLandscape(sky, { stepDeg: 3 });
-        let best = 0;
-        for (const v of l.values) if (v > best) best = v;
-        return round1(best);
+        return round1(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS).wm2);
       });
       p.catch(() => this.bests.delete(key));
       this.bests.set(key, p);
@@ -188,7 +186,7 @@ export class LandscapeService {
         sunElevationDeg: round1(sun.elevationDeg),
         sunAzimuthDeg: round1(sun.azimuthDeg),
         peaks: report.localMaxima.length,
-        globalMaxWm2: round1(report.globalMax.wm2),
+        globalMaxWm2: round1(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS, { resolutionDeg: stepDeg }).wm2),
         minSinglePeakDetectorTiltDeg: report.minSinglePeakDetectorTiltDeg,
       });
       // Give other requests a turn between hours.

@@ -44,14 +44,43 @@ export interface DetectorReadings {
   azimuthDifferentialWm2: number;
 }
 
+/** Normals of the panel and its four detectors, [east, north, up]. */
+export interface DetectorNormals {
+  panel: Vec3;
+  tiltPlus: Vec3;
+  tiltMinus: Vec3;
+  azimuthPlus: Vec3;
+  azimuthMinus: Vec3;
+}
+
+/**
+ * Normals of the panel and the four detectors for an orientation and detector tilt δ: the one detector geometry, used by
+ * the landscape engine, the server's site model and the simulator alike.
+ * The tilt pair is the panel normal at tilt ± δ (n cos δ ± t sin δ, the same vector; written this way it rounds exactly
+ * as the simulator always computed it, an earlier copy here rotated n toward t and differed in the last bits, < 1e-15);
+ * the azimuth pair is n cos δ ± u sin δ.
+ */
+export function detectorNormals(tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number): DetectorNormals {
+  const panel = normalFromTiltAzimuth(tiltDeg, azimuthDeg);
+  const tiltPlus = normalFromTiltAzimuth(tiltDeg + detectorTiltDeg, azimuthDeg);
+  const tiltMinus = normalFromTiltAzimuth(tiltDeg - detectorTiltDeg, azimuthDeg);
+  const a = azimuthDeg * RAD;
+  const c = Math.cos(detectorTiltDeg * RAD);
+  const s = Math.sin(detectorTiltDeg * RAD);
+  // u: horizontal, toward increasing azimuth (the clockwise side).
+  const u: Vec3 = [Math.cos(a), -Math.sin(a), 0];
+  const azimuthPlus: Vec3 = [panel[0] * c + u[0] * s, panel[1] * c + u[1] * s, panel[2] * c];
+  const azimuthMinus: Vec3 = [panel[0] * c - u[0] * s, panel[1] * c - u[1] * s, panel[2] * c];
+  return { panel, tiltPlus, tiltMinus, azimuthPlus, azimuthMinus };
+}
+
 export function detectorReadingsWith(irradiance: (n: Vec3) => number, tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number): DetectorReadings {
-  const { n, t, u } = motionAxes(tiltDeg, azimuthDeg);
-  const d = detectorTiltDeg * RAD;
-  const tp = irradiance(rotateToward(n, t, d));
-  const tm = irradiance(rotateToward(n, t, -d));
-  const ap = irradiance(rotateToward(n, u, d));
-  const am = irradiance(rotateToward(n, u, -d));
-  return { panelWm2: irradiance(n), tiltPlusWm2: tp, tiltMinusWm2: tm, azimuthPlusWm2: ap, azimuthMinusWm2: am, tiltDifferentialWm2: tp - tm, azimuthDifferentialWm2: ap - am };
+  const d = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
+  const tp = irradiance(d.tiltPlus);
+  const tm = irradiance(d.tiltMinus);
+  const ap = irradiance(d.azimuthPlus);
+  const am = irradiance(d.azimuthMinus);
+  return { panelWm2: irradiance(d.panel), tiltPlusWm2: tp, tiltMinusWm2: tm, azimuthPlusWm2: ap, azimuthMinusWm2: am, tiltDifferentialWm2: tp - tm, azimuthDifferentialWm2: ap - am };
 }
 
 /** One point of a unit's trajectory. */

@@ -20,6 +20,7 @@ import { blurLandscape } from './blurred-landscape';
 import { irradianceBruteAtNormal, landscapeBruteValues } from './irradiance-brute';
 import { irradianceFastAtNormal, landscapeFastValues, SH_ORDER } from './irradiance-fast';
 import { analysePeaks, basinShares, defaultMinProminenceWm2, gridGraph, type Peak } from './landscape-analysis';
+import { bestReachableOrientationWith, type BestOrientation, type BestOrientationOptions, type UnitLimits } from './best-orientation';
 import { validateGridOptions, type Landscape, type LandscapeGridOptions } from './landscape-grid';
 
 export { buildSky, extendedRadiance, type Sky, type SkyInput, type SkyType } from '../sky-radiance/sky';
@@ -27,6 +28,7 @@ export { type DetectorReadings, type TrajectoryPoint, type UnitControl } from '.
 export { blurLandscape, capRadiusForDetectorTiltDeg } from './blurred-landscape';
 export { type Landscape, type LandscapeGridOptions } from './landscape-grid';
 export { analysePeaks, basinShares, type Peak } from './landscape-analysis';
+export { BEST_ORIENTATION_RESOLUTION_DEG, bestReachableOrientationWith, STANDARD_UNIT_LIMITS, TRAP_RATIO, type BestOrientation, type BestOrientationOptions, type UnitLimits } from './best-orientation';
 export { SH_ORDER };
 
 export type Method = 'fast' | 'brute';
@@ -53,6 +55,11 @@ export function irradianceOnNormal(sky: Sky, n: Vec3, method: Method = 'fast'): 
 export function irradianceAt(sky: Sky, tiltDeg: number, azimuthDeg: number, method: Method = 'fast'): number {
   if (!Number.isFinite(tiltDeg) || !Number.isFinite(azimuthDeg)) throw new RangeError(`tiltDeg/azimuthDeg: must be finite numbers; got ${tiltDeg}, ${azimuthDeg}`);
   return irradianceOnNormal(sky, normalFromTiltAzimuth(tiltDeg, azimuthDeg), method);
+}
+
+/** The best orientation a unit with these limits can reach under a sky, at a stated resolution (fast irradiance). */
+export function bestReachableOrientation(sky: Sky, limits: UnitLimits, options: BestOrientationOptions = {}): BestOrientation {
+  return bestReachableOrientationWith((n) => irradianceFastAtNormal(sky, n), limits, options);
 }
 
 /** Readings of the tilt and azimuth detector pairs (±δ) and the two photodifferentials at a panel orientation. */

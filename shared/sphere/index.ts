@@ -6,3 +6,4 @@ export { shCount, shIndex, normalizedLegendre, realShBasis, evaluateSh, evaluate
 export { sphereGrid, projectGridOnSh, type SphereGrid } from './sphere-grid';
 export { skyDomeIrradianceOnPlane } from './plane-quadrature';
 export { capAverageMultipliers, capAveragedClampedCosineTable, lookupCapTable } from './cap-average';
+export { shBasisOrder2, order2IrradianceForm, type Order2IrradianceForm } from './sh-order2-ramamoorthi-hanrahan-2001';

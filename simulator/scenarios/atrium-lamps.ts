@@ -1,29 +1,14 @@
 /**
  * Indoor atrium: daylight only through the roof glazing (the atrium walls hide everything below 45°, glazing passes 55 %)
  * and banks of wall and ceiling lamps switched on and off through the day, with occasional manual switching. Lamps far
- * apart make a many-lobed landscape. Invented layout, demo and checks only.
+ * apart make a many-lobed landscape. Lamps and walls from the demo world's survey (shared/demo-world).
  */
-import type { LampInput } from '../../shared/sky-radiance';
+import { ATRIUM_LAMPS, ATRIUM_WALL_DEG, type ScheduledLamp } from '../../shared/demo-world';
 import type { Rng } from '../rng';
 import { outdoorSky } from './outdoor';
 import type { SiteInfo, SkyParts } from './site';
 import { CALM } from './weather';
 
-export interface ScheduledLamp extends LampInput {
-  /** On between these local solar hours. */
-  onHour: number;
-  offHour: number;
-}
-
-export const ATRIUM_LAMPS: readonly ScheduledLamp[] = [
-  { azimuthDeg: 40, elevationDeg: 35, irradianceWm2: 120, onHour: 6.5, offHour: 10 },
-  { azimuthDeg: 130, elevationDeg: 30, irradianceWm2: 90, onHour: 6.5, offHour: 10 },
-  { azimuthDeg: 180, elevationDeg: 70, irradianceWm2: 60, onHour: 8, offHour: 18 },
-  { azimuthDeg: 220, elevationDeg: 35, irradianceWm2: 110, onHour: 15, offHour: 21 },
-  { azimuthDeg: 310, elevationDeg: 40, irradianceWm2: 100, onHour: 15, offHour: 21 },
-];
-
-export const ATRIUM_WALL_DEG = 45;
 export const GLAZING_TRANSMITTANCE = 0.55;
 
 export function atriumLamps(site: SiteInfo, lamps: readonly ScheduledLamp[] = ATRIUM_LAMPS): SkyParts {

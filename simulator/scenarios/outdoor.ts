@@ -1,8 +1,6 @@
 /** Small helpers shared by the outdoor scenarios. */
 import type { SkyInput, SkyType } from '../../shared/sky-radiance';
 
-export type HorizonPoints = readonly (readonly [number, number])[];
-
 /** Sky input for an outdoor site from beam and diffuse, with the sun only while it is up. */
 export function outdoorSky(
   sun: { azimuthDeg: number; elevationDeg: number },

@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 import { hashDeviceSecret } from '../../server/services/device-secret';
-import { demoSerials } from '../../seeds/demo-world';
+import { demoSerials } from '../../shared/demo-world';
 
 const script = (name: string) => fileURLToPath(new URL(`../../server/scripts/${name}`, import.meta.url));
 let t: TestDatabase;

@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyseLandscape, ascentTrajectory, buildSky, detectorReadings, irradianceAt } from '../../shared/landscape/index';
+import { detectorNormals, motionAxes } from '../../shared/landscape/detector-pairs';
+import { angleBetweenDeg } from '../../shared/sphere/directions';
 
 const RAD = Math.PI / 180;
 
@@ -14,6 +16,21 @@ describe('detector pairs and photodifferentials', () => {
     expect(Math.abs(r.azimuthDifferentialWm2)).toBeLessThan(1e-9); // facing the sun's azimuth: sideways pair balanced
     const east = detectorReadings(sky, 50, 170, 10); // sun lies toward increasing azimuth
     expect(east.azimuthDifferentialWm2).toBeGreaterThan(0);
+  });
+
+  it('detector normals: each detector δ from the panel, tilt pair n cos δ ± t sin δ, azimuth pair n cos δ ± u sin δ', () => {
+    for (const [tilt, az, d] of [[30, 200, 20], [5, 10, 8], [80, 355, 15], [0, 90, 20]] as const) {
+      const n = detectorNormals(tilt, az, d);
+      const { n: p, t, u } = motionAxes(tilt, az);
+      const c = Math.cos(d * RAD);
+      const s = Math.sin(d * RAD);
+      for (const k of [0, 1, 2]) {
+        expect(Math.abs(n.tiltPlus[k]! - (p[k]! * c + t[k]! * s))).toBeLessThan(1e-12);
+        expect(Math.abs(n.tiltMinus[k]! - (p[k]! * c - t[k]! * s))).toBeLessThan(1e-12);
+        expect(Math.abs(n.azimuthPlus[k]! - (p[k]! * c + u[k]! * s))).toBeLessThan(1e-12);
+      }
+      for (const v of [n.tiltPlus, n.tiltMinus, n.azimuthPlus, n.azimuthMinus]) expect(angleBetweenDeg(v, n.panel)).toBeCloseTo(d, 9);
+    }
   });
 
   it('isotropic sky: D 300, β 30°, δ 20° → −51.3030 W/m² (fast and brute)', () => {

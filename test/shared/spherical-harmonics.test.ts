@@ -3,6 +3,7 @@ import { clampedCosineCoefficient } from '../../shared/sphere/clamped-cosine-ram
 import { directionFromAzimuthElevation, normalFromTiltAzimuth } from '../../shared/sphere/directions';
 import { gaussLegendreOn } from '../../shared/sphere/gauss-legendre';
 import { evaluateSh, normalizedLegendre, realShBasis, shCount, shIndex } from '../../shared/sphere/spherical-harmonics';
+import { order2IrradianceForm, shBasisOrder2 } from '../../shared/sphere/sh-order2-ramamoorthi-hanrahan-2001';
 import { projectGridOnSh, sphereGrid } from '../../shared/sphere/sphere-grid';
 
 // Ramamoorthi & Hanrahan 2001 (JOSA A 18(10); SIGGRAPH 2001): E_lm = Â_l L_lm for the clamped-cosine kernel.
@@ -93,5 +94,43 @@ describe('why sharp sources stay out of the harmonics', () => {
     expect(Math.abs(worst(2) - 0.09375)).toBeLessThan(1e-9);
     expect(Math.abs(worst(8) - 0.0336)).toBeLessThan(5e-4);
     expect(Math.abs(worst(24) - 0.0125)).toBeLessThan(5e-4);
+  });
+});
+
+// Ramamoorthi & Hanrahan 2001 (SIGGRAPH, Eq. 3) print the degree-2 basis with 6-digit constants; the simulator's fast
+// field uses them. They are the same basis as realShBasis, rounded: each constant within 5e-7, each value within 1e-6
+// (Y20 = 0.315392·(3z² − 1) doubles the rounding at the poles).
+describe('order-2 basis with the printed constants', () => {
+  it('matches realShBasis(2, d) within 1e-6 at 200 directions, same layout', () => {
+    const out = new Float64Array(9);
+    let worst = 0;
+    for (let i = 0; i < 200; i++) {
+      const d = directionFromAzimuthElevation((i * 137.5) % 360, -90 + (180 * (i + 0.5)) / 200);
+      shBasisOrder2(d[0], d[1], d[2], out);
+      const exact = realShBasis(2, d);
+      for (let j = 0; j < 9; j++) worst = Math.max(worst, Math.abs(out[j]! - exact[j]!));
+    }
+    expect(worst).toBeLessThan(1e-6);
+    expect(worst).toBeGreaterThan(1e-8); // rounded constants, not the exact basis
+  });
+  it('irradiance form: uniform radiance L = 1 gives E = π on every plane (Â0·4π·Y00² = π, to the constants\' rounding)', () => {
+    const c = new Float64Array(9);
+    c[0] = 4 * Math.PI * 0.282095; // ∫ 1·Y00 dω with the printed Y00
+    const f = order2IrradianceForm(c);
+    for (const b of [0, 45, 90, 135, 180]) {
+      const [x, y, z] = normalFromTiltAzimuth(b, 70);
+      const e = f.k0 + f.kx * x + f.ky * y + f.kz * z + f.kxy * x * y + f.kyz * y * z + f.kxz * x * z + f.kzz * z * z + f.kxx * (x * x - y * y);
+      expect(Math.abs(e - Math.PI)).toBeLessThan(5e-6);
+    }
+  });
+  it('irradiance form: radiance cos⁺θ (L00 = √π/2, L10 = √(π/3), L20 = √(5π)/8) gives E(up) = 127π/192 at order 2 (derived from Â_l)', () => {
+    // E(up) = Σ Â_l L_l0 Y_l0(up) = π/4 + π/3 + 5π/64 (the exact, untruncated 2π/3 is 1.6 % higher).
+    const c = new Float64Array(9);
+    c[0] = Math.sqrt(Math.PI) / 2;
+    c[2] = Math.sqrt(Math.PI / 3);
+    c[6] = Math.sqrt(5 * Math.PI) / 8;
+    const f = order2IrradianceForm(c);
+    const up = f.k0 + f.kz + f.kzz;
+    expect(Math.abs(up - (127 * Math.PI) / 192) / ((127 * Math.PI) / 192)).toBeLessThan(5e-6);
   });
 });

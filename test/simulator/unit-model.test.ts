@@ -7,6 +7,7 @@ import { parseFaultPlan } from '../../simulator/faults';
 import { createScenarioWorld, frozenWorld, UnknownNameError } from '../../simulator/scenarios';
 import { parseOptions } from '../../simulator/main';
 import { StoreAndForward } from '../../simulator/store-and-forward';
+import { commandRefusal } from '../../simulator/unit-commands';
 
 const QED = demoSiteInfo('QED');
 const T0 = Date.parse('2026-04-20T09:00:00Z');
@@ -26,6 +27,23 @@ describe('virtual unit', () => {
     expect(u.mode).toBe('settled');
     expect(u.last!.truePoaWm2).toBeGreaterThan(0.99 * best.wm2);
     expect(Math.abs(u.tilt.encoderDeg - best.tiltDeg)).toBeLessThan(4);
+  });
+
+  it('its trap truth measures it against the best its own axes reach: a unit limited to tilt 0…20° is not trapped at 20° under a high sun', () => {
+    const world = frozenWorld(createScenarioWorld('clear-day', QED, createRng(1)), T0);
+    const tilt = { minDeg: 0, maxDeg: 20, speedDegS: 4, backlashDeg: 0.3 };
+    const fleet = createFleet({ sites: [{ site: QED, scenario: 'clear-day', world, units: [{ serial: 'U-0002', siteCode: 'QED', tilt }] }], startUnixMs: T0 }, { rng: createRng(7) });
+    fleet.step(1800);
+    const u = fleet.unit('U-0002')!;
+    const field = fleet.conditions('QED')!.field;
+    const own = fleet.bestReachable(field, { tiltRangeDeg: [0, 20], azimuthRangeDeg: [0, 360] });
+    const standard = fleet.bestReachable(field);
+    expect(standard.tiltDeg).toBeGreaterThan(30); // sun at about 45° elevation: a standard unit tilts further
+    expect(own.tiltDeg).toBe(20);
+    expect(own.wm2).toBeLessThan(standard.wm2);
+    expect(u.mode).toBe('settled');
+    expect(u.last!.truePoaWm2).toBeGreaterThan(0.98 * own.wm2);
+    expect(fleet.truth().filter((r) => r.fault === 'trap')).toEqual([]);
   });
 
   it('every message it sends matches wire format v1', () => {
@@ -131,5 +149,21 @@ describe('determinism and buffering', () => {
     for (let i = 0; i < 5; i++) b.push(i);
     expect(b.drain()).toEqual([2, 3, 4]);
     expect(b.dropped).toBe(2);
+  });
+});
+
+describe('command preconditions', () => {
+  const axes = { tiltSpec: { minDeg: 0, maxDeg: 85, speedDegS: 4, backlashDeg: 0.3 }, azimuthSpec: { minDeg: 0, maxDeg: 360, speedDegS: 4, backlashDeg: 0.4 } };
+  const ready = { held: false, faultCode: null, manualStow: false, windStow: false, stuckStowed: false, stowGustMs: 18, tiltEncoderDeg: 30, azimuthEncoderDeg: 180, ...axes };
+  it('refuse motion on hold or in fault, goto outside the travel or while stowed, release-stow in a gust, an empty configure', () => {
+    expect(commandRefusal(cmd('goto', 'a', { tiltDeg: 10 }), ready)).toBeNull();
+    expect(commandRefusal(cmd('scan', 'b'), { ...ready, held: true })).toBe('unit is on maintenance hold');
+    expect(commandRefusal(cmd('hold', 'c'), { ...ready, held: true })).toBeNull();
+    expect(commandRefusal(cmd('stow', 'd'), { ...ready, faultCode: 'actuator-stall' })).toBe('unit is in fault: actuator-stall');
+    expect(commandRefusal(cmd('goto', 'e', { tiltDeg: 88 }), ready)).toBe('tiltDeg outside 0…85');
+    expect(commandRefusal(cmd('goto', 'f'), ready)).toBe('goto needs tiltDeg and/or azimuthDeg');
+    expect(commandRefusal(cmd('goto', 'g', { azimuthDeg: 90 }), { ...ready, windStow: true })).toBe('unit is stowed; release the stow first');
+    expect(commandRefusal(cmd('release-stow', 'h'), { ...ready, windStow: true })).toBe('gusts above the stow limit (18 m/s)');
+    expect(commandRefusal(cmd('configure', 'i', { config: {} }), ready)).toBe('configure needs a config');
   });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runEval } from '../../server/health/eval/run-eval';
+import { runEval } from './run-eval';
 import { expectTargets } from './eval-targets';
 
 describe('offline evaluation, seed 5', () => {

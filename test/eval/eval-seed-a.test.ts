@@ -1,5 +1,5 @@
 import { describe, it } from 'vitest';
-import { runEval } from '../../server/health/eval/run-eval';
+import { runEval } from './run-eval';
 import { expectTargets } from './eval-targets';
 
 // The offline evaluation on a fixed seed (a tuning seed, not one of the reported ones), on a small fleet so the test stays short.

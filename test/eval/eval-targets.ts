@@ -1,5 +1,5 @@
 import { expect } from 'vitest';
-import type { EvalResult } from '../../server/health/eval/run-eval';
+import type { EvalResult } from './run-eval';
 
 /** The contract: trap precision ≥ 0.95 and recall ≥ 0.90; every other detector ≥ 0.90 / 0.90. */
 export const CONTRACT = { trap: { precision: 0.95, recall: 0.9 }, other: { precision: 0.9, recall: 0.9 } };

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { score, type UnitObservability } from '../../server/health/eval/run-eval';
+import { score, type UnitObservability } from './run-eval';
 import type { Alarm } from '../../server/health/alarm-types';
 
 const T0 = Date.parse('2026-05-04T08:00:00Z');

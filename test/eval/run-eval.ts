@@ -18,21 +18,21 @@
  * a best reachable irradiance of at least 150 W/m², no drive or sensor fault, for 10 min), not the injected "knock" that
  * may or may not trap the unit; `drift` includes dead detectors; `comms` is the injected comms loss.
  */
-import { detectorNormals } from '../../../simulator/detectors';
-import { DETECTOR_TILTS_DEG } from '../../../seeds/demo-world';
-import { DEMO_SCENARIO_BY_SITE, demoSiteInfo } from '../../../simulator/demo-fleet';
-import { createFleet, type FleetSiteSpec } from '../../../simulator/fleet';
-import type { TruthRecord } from '../../../simulator/faults';
-import { createRng } from '../../../simulator/rng';
-import { isoUtc } from '../../../simulator/clock';
-import type { SkyField } from '../../../simulator/sky-field';
-import { analyseLandscape } from '../../../shared/landscape';
-import type { Telemetry, UnitEvent, Weather } from '../../../shared/contracts/wire';
-import type { Alarm } from '../alarm-types';
-import { HealthEngine } from '../health-engine';
-import { DEFAULT_HEALTH_SETTINGS, type HealthSettings } from '../health-settings';
-import type { SiteModel, SiteModelProvider } from '../site-model';
-import { azimuthDelta, median, type UnitRef } from '../unit-sample';
+import { detectorNormals } from '../../shared/landscape/detector-pairs';
+import { DETECTOR_TILTS_DEG } from '../../shared/demo-world';
+import { DEMO_SCENARIO_BY_SITE, demoSiteInfo } from '../../simulator/demo-fleet';
+import { createFleet, type FleetSiteSpec } from '../../simulator/fleet';
+import type { TruthRecord } from '../../simulator/faults';
+import { createRng } from '../../simulator/rng';
+import { isoUtc } from '../../simulator/clock';
+import type { SkyField } from '../../simulator/sky-field';
+import { analyseLandscape } from '../../shared/landscape';
+import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
+import type { Alarm } from '../../server/health/alarm-types';
+import { HealthEngine } from '../../server/health/health-engine';
+import { DEFAULT_HEALTH_SETTINGS, type HealthSettings } from '../../server/health/health-settings';
+import type { SiteModel, SiteModelProvider } from '../../server/health/site-model';
+import { azimuthDelta, median, type UnitRef } from '../../server/health/unit-sample';
 import { scheduleFaults, type ScheduledFault } from './fault-schedule';
 
 export const SCORED_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'soiling'] as const;

@@ -4,10 +4,10 @@
  * enough to matter; a unit has one fault at a time, with a gap between faults; a share of the fleet stays fault-free.
  * Everything is drawn from a seeded stream, so a seed gives the same schedule.
  */
-import { solarPosition } from '../../../shared/solar-position';
-import type { FaultKind } from '../../../simulator/faults';
-import type { Rng } from '../../../simulator/rng';
-import type { SiteInfo } from '../../../simulator/scenarios';
+import { solarPosition } from '../../shared/solar-position';
+import type { FaultKind } from '../../simulator/faults';
+import type { Rng } from '../../simulator/rng';
+import type { SiteInfo } from '../../simulator/scenarios';
 
 export interface ScheduledFault {
   serial: string;
