@@ -17,10 +17,18 @@ export const LAYERING_ZONES = [
     'shared/ is pure product code: it imports nothing outside itself.'),
   zone('./src', ['./server', './simulator', './seeds', './broker', './migrations', './test', './shared/cli', './shared/bench'],
     'The dashboard imports only shared/contracts and pure shared/ modules.'),
-  zone('./simulator', ['./server', './broker', './src', './migrations', './test'],
+  zone('./simulator', ['./server', './broker', './src', './migrations', './test', './seeds'],
     'The simulator is a field unit: it talks MQTT, never to the server\'s code.'),
   zone('./broker', ['./server', './simulator', './seeds', './src', './migrations', './test'],
     'The broker gets authentication injected; it imports only shared/.'),
+  // Top-level folders form one direction (shared ← broker, simulator, seeds, migrations ← server ← test; src ← shared):
+  // the zones above and these three leave no cycle between folders.
+  zone('./seeds', ['./server', './simulator', './broker', './src', './migrations', './test'],
+    'seeds/ is the demo world\'s data: it gets what it needs from the server passed in, and imports only shared/.'),
+  zone('./migrations', ['./server', './simulator', './seeds', './broker', './src', './test'],
+    'Migrations are schema changes only: they import nothing from the product.'),
+  zone('./server', ['./test', './src', './simulator'],
+    'The server never imports tests, the dashboard or the simulator (benchmarks and the evaluation live under test/).'),
   zone('./server/routes', ['./server/data'],
     'Routes call services; only services reach the repositories in server/data/.'),
   zone('./server/health', ['./server/data', './server/services', './server/routes', './server/consumers', './broker'],
@@ -50,7 +58,7 @@ export default tseslint.config(
   {
     // Only server/data/ (and the migrations, which are schema changes in Knex's own format) talk SQL.
     files: ['**/*.ts'],
-    ignores: ['server/data/**', 'migrations/**', 'seeds/**', 'test/**', 'server/scripts/**', 'server/bench/**'],
+    ignores: ['server/data/**', 'migrations/**', 'seeds/**', 'test/**', 'server/scripts/**'],
     rules: {
       '@typescript-eslint/no-restricted-imports': ['error', { paths: [{ name: 'knex', message: 'Only server/data/ talks to the database: add a repository method there.' }] }],
     },

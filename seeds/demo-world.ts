@@ -1,6 +1,5 @@
 import bcrypt from 'bcryptjs';
 import type { Knex } from 'knex';
-import { hashDeviceSecret, newDeviceSecret } from '../server/services/device-secret';
 import type { SiteSurvey } from '../shared/contracts/survey';
 import { ATRIUM_LAMPS, ATRIUM_WALL_DEG, CITY_HORIZON, COURTYARD_HORIZON, DEMO_SITES, DEMO_UNIT, DETECTOR_TILTS_DEG, FACADES, UNITS_PER_SITE, demoSerial, demoSerials } from '../shared/demo-world';
 
@@ -41,6 +40,15 @@ export interface DemoSeedOptions {
   deviceSecretOf?: (serial: string) => string;
 }
 
+/**
+ * The server's device-secret functions (server/services/device-secret.ts), passed in so that seeds/ never imports the
+ * server that imports seeds/.
+ */
+export interface DeviceSecretTools {
+  newDeviceSecret(): string;
+  hashDeviceSecret(secret: string): string;
+}
+
 export interface DemoSeedResult {
   seeded: boolean;
   /** serial → device secret of the units just created (empty when nothing was seeded); the simulator needs them. */
@@ -51,10 +59,10 @@ export interface DemoSeedResult {
  * Fills an empty database with the demo world. Refuses to touch a database that already has owners. Device secrets are
  * random unless the caller chooses them: a serial must never be enough to connect as a unit.
  */
-export async function seedDemoWorld(db: Knex, opts: DemoSeedOptions = {}): Promise<DemoSeedResult> {
+export async function seedDemoWorld(db: Knex, tools: DeviceSecretTools, opts: DemoSeedOptions = {}): Promise<DemoSeedResult> {
   const [{ n }] = (await db('owners').count({ n: '*' })) as [{ n: number | string }];
   if (Number(n) > 0) return { seeded: false, deviceSecrets: {} };
-  const secretOf = opts.deviceSecretOf ?? (() => newDeviceSecret());
+  const secretOf = opts.deviceSecretOf ?? (() => tools.newDeviceSecret());
   const deviceSecrets: Record<string, string> = {};
   const passwordHash = await bcrypt.hash(DEMO_PASSWORD, opts.bcryptCost ?? 10);
   await db.transaction(async (trx) => {
@@ -70,7 +78,7 @@ export async function seedDemoWorld(db: Knex, opts: DemoSeedOptions = {}): Promi
           serial, site_id: siteId, rated_power_wp: DEMO_UNIT.ratedPowerWp, detector_tilt_deg: DETECTOR_TILTS_DEG[i],
           tilt_min_deg: DEMO_UNIT.tiltRangeDeg[0], tilt_max_deg: DEMO_UNIT.tiltRangeDeg[1], azimuth_min_deg: DEMO_UNIT.azimuthRangeDeg[0], azimuth_max_deg: DEMO_UNIT.azimuthRangeDeg[1],
           plan_x_m: (i % 3) * 6, plan_y_m: Math.floor(i / 3) * 5, firmware: DEMO_UNIT.firmware,
-          device_secret_hash: hashDeviceSecret(deviceSecrets[serial]!),
+          device_secret_hash: tools.hashDeviceSecret(deviceSecrets[serial]!),
           weather_station: i === 0 && !s.indoor,
         };
       });
@@ -87,13 +95,13 @@ export async function seedDemoWorld(db: Knex, opts: DemoSeedOptions = {}): Promi
  * Gives the demo units new random secrets (the simulator's secrets file was lost, or the database predates random demo
  * secrets). Only units with demo serials are touched; returns serial → new secret.
  */
-export async function rekeyDemoUnits(db: Knex): Promise<Record<string, string>> {
+export async function rekeyDemoUnits(db: Knex, tools: DeviceSecretTools): Promise<Record<string, string>> {
   const serials: string[] = await db('units').whereIn('serial', demoSerials()).pluck('serial');
   const secrets: Record<string, string> = {};
   await db.transaction(async (trx) => {
     for (const serial of serials) {
-      secrets[serial] = newDeviceSecret();
-      await trx('units').where({ serial }).update({ device_secret_hash: hashDeviceSecret(secrets[serial]) });
+      secrets[serial] = tools.newDeviceSecret();
+      await trx('units').where({ serial }).update({ device_secret_hash: tools.hashDeviceSecret(secrets[serial]) });
     }
   });
   return secrets;

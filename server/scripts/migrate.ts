@@ -4,6 +4,7 @@ import { loadConfig } from '../config';
 import { createDb, describeDbError, migrateLatest, type Db } from '../data/db';
 import { demoSerials } from '../../shared/demo-world';
 import { rekeyDemoUnits, seedDemoWorld } from '../../seeds/demo-world';
+import { hashDeviceSecret, newDeviceSecret } from '../services/device-secret';
 
 /**
  * `migrate.ts latest [--demo]` | `rollback` | `demo`: schema changes, and — only when asked — the invented demo world.
@@ -13,14 +14,14 @@ import { rekeyDemoUnits, seedDemoWorld } from '../../seeds/demo-world';
 const DEMO_SECRETS_FILE = process.env['BW_DEMO_SECRETS_FILE'] ?? '.data/demo/device-secrets.json';
 
 async function seedDemo(db: Db, bcryptCost: number): Promise<void> {
-  const { seeded, deviceSecrets } = await seedDemoWorld(db, { bcryptCost });
+  const { seeded, deviceSecrets } = await seedDemoWorld(db, { newDeviceSecret, hashDeviceSecret }, { bcryptCost });
   if (seeded) {
     writeSecrets(deviceSecrets);
     console.log(`[db] demo world seeded (invented data; demo passwords — never use this database for real units). Device secrets in ${DEMO_SECRETS_FILE}`);
     return;
   }
   if (!secretsCoverDemo()) {
-    writeSecrets(await rekeyDemoUnits(db));
+    writeSecrets(await rekeyDemoUnits(db, { newDeviceSecret, hashDeviceSecret }));
     console.log(`[db] data present: demo seed skipped; demo units given new device secrets (${DEMO_SECRETS_FILE})`);
   } else {
     console.log('[db] data present: demo seed skipped');

@@ -3,6 +3,7 @@ import knexFactory from 'knex';
 import { loadConfig, type Config } from '../../server/config';
 import { createDb, migrateLatest, type Db } from '../../server/data/db';
 import { seedDemoWorld } from '../../seeds/demo-world';
+import { hashDeviceSecret, newDeviceSecret } from '../../server/services/device-secret';
 import { testDeviceSecret } from './device-secrets';
 
 export interface TestDatabase {
@@ -27,7 +28,7 @@ export async function createTestDatabase(opts: { seed?: boolean; env?: Record<st
   const config: Config = { ...base, db: { ...base.db, database: name } };
   const db = createDb(config.db);
   await migrateLatest(db);
-  if (opts.seed) await seedDemoWorld(db, { bcryptCost: 4, deviceSecretOf: testDeviceSecret });
+  if (opts.seed) await seedDemoWorld(db, { newDeviceSecret, hashDeviceSecret }, { bcryptCost: 4, deviceSecretOf: testDeviceSecret });
   return {
     config,
     db,

@@ -26,6 +26,12 @@ const violations: { rule: string; file: string; code: string }[] = [
   { rule: PATHS, file: 'broker/lint-fixture.ts', code: "import { loadConfig } from '../server/config';\nvoid loadConfig;\n" },
   { rule: PATHS, file: 'server/routes/lint-fixture.ts', code: "import { AuditRepository } from '../data/audit-repository';\nvoid AuditRepository;\n" },
   { rule: PATHS, file: 'server/health/lint-fixture.ts', code: "import { LiveHub } from '../services/live-hub';\nvoid LiveHub;\n" },
+  { rule: PATHS, file: 'simulator/lint-fixture.ts', code: "import { DEMO_PASSWORD } from '../seeds/demo-world';\nvoid DEMO_PASSWORD;\n" },
+  { rule: PATHS, file: 'seeds/lint-fixture.ts', code: "import { loadConfig } from '../server/config';\nvoid loadConfig;\n" },
+  { rule: PATHS, file: 'seeds/lint-fixture.ts', code: "import { createRng } from '../simulator/rng';\nvoid createRng;\n" },
+  { rule: PATHS, file: 'migrations/lint-fixture.ts', code: "import { loadConfig } from '../server/config';\nvoid loadConfig;\n" },
+  { rule: PATHS, file: 'server/lint-fixture.ts', code: "import { createTestDatabase } from '../test/helpers/test-db';\nvoid createTestDatabase;\n" },
+  { rule: PATHS, file: 'server/lint-fixture.ts', code: "import { createRng } from '../simulator/rng';\nvoid createRng;\n" },
   { rule: IMPORTS, file: 'server/services/lint-fixture.ts', code: "import knex from 'knex';\nvoid knex;\n" },
   { rule: IMPORTS, file: 'server/services/lint-fixture.ts', code: "import express from 'express';\nvoid express;\n" },
   { rule: IMPORTS, file: 'server/services/lint-fixture.ts', code: "import { z } from 'zod';\nvoid z;\n" },
@@ -40,6 +46,8 @@ const allowed: { file: string; code: string }[] = [
   { file: 'server/data/lint-fixture.ts', code: "import knex from 'knex';\nvoid knex;\n" },
   { file: 'src/app/lint-fixture.ts', code: "import { ROLES } from '../../shared/contracts/api';\nvoid ROLES;\n" },
   { file: 'simulator/lint-fixture.ts', code: "import { solarPosition } from '../shared/solar-position';\nvoid solarPosition;\n" },
+  { file: 'server/lint-fixture.ts', code: "import { DEMO_PASSWORD } from '../seeds/demo-world';\nvoid DEMO_PASSWORD;\n" },
+  { file: 'seeds/lint-fixture.ts', code: "import { DEMO_SITES } from '../shared/demo-world';\nvoid DEMO_SITES;\n" },
 ];
 
 describe('layering lint', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { CHAOS_SCENARIOS, runChaos } from '../../server/bench/chaos';
+import { CHAOS_SCENARIOS, runChaos } from '../bench/chaos';
 
 // The short version of `npm run chaos`: the same three disruptions at a small load. Its own MariaDB on the test
 // database's port + 1000 (the outage scenario stops it, so it cannot be the shared test server).

@@ -6,10 +6,10 @@
  * Prints a readable line; with --json the last stdout line is `{ "rows", "points", "ms" }` (ms = median).
  */
 import { parseArgs } from 'node:util';
-import { createTestDatabase } from '../../test/helpers/test-db';
-import { TraceRepository } from '../data/trace-repository';
-import { TelemetryRepository } from '../data/telemetry-repository';
-import { TraceService } from '../services/trace-service';
+import { createTestDatabase } from '../helpers/test-db';
+import { TraceRepository } from '../../server/data/trace-repository';
+import { TelemetryRepository } from '../../server/data/telemetry-repository';
+import { TraceService } from '../../server/services/trace-service';
 import type { Unit } from '../../shared/contracts/api';
 
 const { values: args } = parseArgs({

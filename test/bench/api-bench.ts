@@ -14,11 +14,11 @@ import { parseArgs } from 'node:util';
 import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { pino } from 'pino';
 import bcrypt from 'bcryptjs';
-import { loadConfig } from '../config';
-import { startStack } from '../stack';
-import { createTestDatabase } from '../../test/helpers/test-db';
-import { insertDayOfTelemetry } from '../../test/e2e/demo-data';
-import { hashDeviceSecret } from '../services/device-secret';
+import { loadConfig } from '../../server/config';
+import { startStack } from '../../server/stack';
+import { createTestDatabase } from '../helpers/test-db';
+import { insertDayOfTelemetry } from '../e2e/demo-data';
+import { hashDeviceSecret } from '../../server/services/device-secret';
 
 const { values: args } = parseArgs({
   options: {

@@ -20,8 +20,8 @@ import { parseArgs } from 'node:util';
 import knexFactory from 'knex';
 import bcrypt from 'bcryptjs';
 import WebSocket from 'ws';
-import { createDb, migrateLatest } from '../data/db';
-import { hashDeviceSecret } from '../services/device-secret';
+import { createDb, migrateLatest } from '../../server/data/db';
+import { hashDeviceSecret } from '../../server/services/device-secret';
 import type { LiveServerMessage } from '../../shared/contracts/live';
 
 export const CHAOS_SCENARIOS = ['kill-9-server', 'db-outage-30s', 'broker-restart'] as const;

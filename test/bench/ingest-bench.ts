@@ -14,10 +14,10 @@ import { parseArgs } from 'node:util';
 import { pino } from 'pino';
 import request from 'supertest';
 import bcrypt from 'bcryptjs';
-import { loadConfig } from '../config';
-import { startStack } from '../stack';
-import { createTestDatabase } from '../../test/helpers/test-db';
-import { hashDeviceSecret } from '../services/device-secret';
+import { loadConfig } from '../../server/config';
+import { startStack } from '../../server/stack';
+import { createTestDatabase } from '../helpers/test-db';
+import { hashDeviceSecret } from '../../server/services/device-secret';
 
 const { values: args } = parseArgs({
   options: {
