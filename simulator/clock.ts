@@ -1,29 +1,10 @@
 /**
  * Time for the simulator. The fleet model never reads the wall clock: it is stepped with simulated seconds and told the
- * simulated instant. A Clock maps between them for live runs; tests use a manual clock.
+ * simulated instant. A Clock maps between them for live runs; tests and offline runs pass simulated instants directly.
  */
 export interface Clock {
   /** Simulated instant, epoch ms. */
   now(): number;
-}
-
-/** A clock that moves only when told to (tests, offline runs). */
-export interface ManualClock extends Clock {
-  advance(ms: number): void;
-  set(unixMs: number): void;
-}
-
-export function manualClock(startUnixMs: number): ManualClock {
-  let t = startUnixMs;
-  return {
-    now: () => t,
-    advance: (ms) => {
-      t += ms;
-    },
-    set: (ms) => {
-      t = ms;
-    },
-  };
 }
 
 /**

@@ -6,6 +6,7 @@
  * over what the unit got before the scan.
  */
 import { azimuthDelta, round1 } from './unit-sample';
+import { wrap360 } from '../../shared/sphere/directions';
 
 export type ScanSample = readonly [number, number, number];
 
@@ -45,11 +46,11 @@ const key = (x: number) => Math.round(x * 100) / 100;
 export function rebuildScan(samples: readonly ScanSample[]): ScanLandscape {
   if (samples.length === 0) throw new RangeError('a scan needs at least one sample');
   const tilts = [...new Set(samples.map((s) => key(s[0])))].sort((a, b) => a - b);
-  const azs = [...new Set(samples.map((s) => key(((s[1] % 360) + 360) % 360)))].sort((a, b) => a - b);
+  const azs = [...new Set(samples.map((s) => key(wrap360(s[1]))))].sort((a, b) => a - b);
   const values: (number | null)[][] = tilts.map(() => azs.map(() => null));
   for (const [t, a, e] of samples) {
     const i = tilts.indexOf(key(t));
-    const j = azs.indexOf(key(((a % 360) + 360) % 360));
+    const j = azs.indexOf(key(wrap360(a)));
     values[i]![j] = Math.max(values[i]![j] ?? -Infinity, e);
   }
   const periodic = azs.length > 2 && 360 - azs[azs.length - 1]! + azs[0]! <= 1.5 * (azs[1]! - azs[0]!);
@@ -80,7 +81,7 @@ export function rebuildScan(samples: readonly ScanSample[]): ScanLandscape {
   const localMaxima: MeasuredPeak[] = [];
   for (let i = 0; i < tilts.length; i++) {
     for (let j = 0; j < azs.length; j++) {
-      const v = values[i]![j];
+      const v = values[i]![j] ?? null;
       if (v === null) continue;
       let top = true;
       for (let di = -1; di <= 1 && top; di++) for (let dj = -1; dj <= 1 && top; dj++) {
@@ -100,7 +101,7 @@ export function rebuildScan(samples: readonly ScanSample[]): ScanLandscape {
     sampleMax: { tiltDeg: tilts[bi]!, azimuthDeg: azs[bj]!, wm2: best },
     globalMax: {
       tiltDeg: round1(Math.max(tilts[0]!, Math.min(tilts[tilts.length - 1]!, tilts[bi]! + rt.offset))),
-      azimuthDeg: round1((((azs[bj]! + ra.offset) % 360) + 360) % 360),
+      azimuthDeg: round1(wrap360(azs[bj]! + ra.offset)),
       wm2: round1(Math.max(rt.peak, ra.peak)),
     },
     localMaxima,

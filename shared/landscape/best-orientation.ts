@@ -12,7 +12,7 @@
  * E_max = |v| + (D + ρG)/2 with v = DNI·s + ((D − ρG)/2)·up.
  * Angles in degrees: tilt from horizontal, azimuth clockwise from north; irradiance in W/m².
  */
-import { normalFromTiltAzimuth, type Vec3 } from '../sphere/directions';
+import { normalFromTiltAzimuth, type Vec3, wrap360 } from '../sphere/directions';
 
 /** The travel of a unit's two axes [°]. */
 export interface UnitLimits {
@@ -63,8 +63,6 @@ function axisPoints(lo: number, hi: number, step: number, periodic: boolean): nu
   if (periodic && hi - pts[pts.length - 1]! < 1e-9 && pts.length > 1) pts.pop(); // 360° is 0°
   return pts;
 }
-
-const wrap360 = (x: number) => ((x % 360) + 360) % 360;
 
 /**
  * Best reachable orientation for an irradiance function E(n) of the unit normal n = [east, north, up].

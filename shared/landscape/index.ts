@@ -75,32 +75,6 @@ export function ascentTrajectory(sky: Sky, start: { tiltDeg: number; azimuthDeg:
   return ascentTrajectoryWith((n) => irradianceFastAtNormal(sky, n), start, control);
 }
 
-/** Keep the rows with tilt in [t0, t1] (and, for a partial range, the azimuth columns in [a0, a1]). */
-export function cropLandscape(l: Landscape, tiltRangeDeg: readonly [number, number], azimuthRangeDeg: readonly [number, number] = [0, 360]): Landscape {
-  const eps = 1e-9;
-  const rows: number[] = [];
-  l.tiltsDeg.forEach((t, i) => {
-    if (t >= tiltRangeDeg[0] - eps && t <= tiltRangeDeg[1] + eps) rows.push(i);
-  });
-  const full = azimuthRangeDeg[1] - azimuthRangeDeg[0] >= 360 - eps;
-  const cols: number[] = [];
-  l.azimuthsDeg.forEach((a, j) => {
-    const da = (((a - azimuthRangeDeg[0]) % 360) + 360) % 360;
-    if (full || da <= azimuthRangeDeg[1] - azimuthRangeDeg[0] + eps) cols.push(j);
-  });
-  if (!full) cols.sort((x, y) => ((((l.azimuthsDeg[x]! - azimuthRangeDeg[0]) % 360) + 360) % 360) - ((((l.azimuthsDeg[y]! - azimuthRangeDeg[0]) % 360) + 360) % 360));
-  const nA = l.azimuthsDeg.length;
-  const values = new Float64Array(rows.length * cols.length);
-  rows.forEach((i, r) => cols.forEach((j, c) => (values[r * cols.length + c] = l.values[i * nA + j]!)));
-  return {
-    ...l,
-    tiltsDeg: Float64Array.from(rows.map((i) => l.tiltsDeg[i]!)),
-    azimuthsDeg: Float64Array.from(cols.map((j) => l.azimuthsDeg[j]!)),
-    periodicAzimuth: full && l.periodicAzimuth,
-    values,
-  };
-}
-
 /** Global maximum and prominent local maxima of a landscape. */
 export function findMaxima(l: Landscape, options: { minProminenceWm2?: number } = {}): { globalMax: Peak; localMaxima: Peak[] } {
   const a = analysePeaks(l, options.minProminenceWm2);

@@ -16,7 +16,7 @@
  */
 import { capAverageMultipliers, capAveragedClampedCosineTable, lookupCapTable } from '../sphere/cap-average';
 import { clampedCosineCoefficients } from '../sphere/clamped-cosine-ramamoorthi-hanrahan-2001';
-import { directionFromAzimuthElevation, normalFromTiltAzimuth, type Vec3 } from '../sphere/directions';
+import { directionFromAzimuthElevation, normalFromTiltAzimuth, type Vec3, wrap360 } from '../sphere/directions';
 import { evaluateSh, evaluateShOnTiltAzimuthGrid, shIndex } from '../sphere/spherical-harmonics';
 import { projectGridOnSh, sphereGrid, type SphereGrid } from '../sphere/sphere-grid';
 import { horizonMeanElevationDeg } from '../sky-radiance/horizon-profile';
@@ -105,7 +105,7 @@ export function cellRadiance(sky: Sky, grid: SphereGrid): Float64Array {
 }
 
 function clampAzimuthInto(a: number, from: number, width: number): number {
-  const da = (((a - from) % 360) + 360) % 360;
+  const da = wrap360(a - from);
   if (da <= width) return a;
   // outside: snap to the nearer end
   return da - width < 360 - da ? (from + width) % 360 : from;
@@ -120,7 +120,7 @@ export function fastModel(sky: Sky, order = SH_ORDER): FastModel {
   const radiance = cellRadiance(sky, grid);
   const c = projectGridOnSh(grid, radiance, order);
   const a = clampedCosineCoefficients(order);
-  for (let l = 0; l <= order; l++) for (let m = -l; m <= l; m++) c[shIndex(l, m)] *= a[l]!;
+  for (let l = 0; l <= order; l++) for (let m = -l; m <= l; m++) c[shIndex(l, m)] = c[shIndex(l, m)]! * a[l]!;
   const model: FastModel = { order, irradianceCoefficients: c, scratch: new Float64Array(((order + 1) * (order + 2)) / 2) };
   sky.cache.set(key, model);
   return model;
@@ -138,7 +138,7 @@ function coefficientsFor(sky: Sky, order: number, capRadiusRad: number): Float64
   if (capRadiusRad <= 0) return m.irradianceCoefficients;
   const k = capAverageMultipliers(order, capRadiusRad);
   const c = m.irradianceCoefficients.slice();
-  for (let l = 0; l <= order; l++) for (let mm = -l; mm <= l; mm++) c[shIndex(l, mm)] *= k[l]!;
+  for (let l = 0; l <= order; l++) for (let mm = -l; mm <= l; mm++) c[shIndex(l, mm)] = c[shIndex(l, mm)]! * k[l]!;
   return c;
 }
 
@@ -155,8 +155,8 @@ export function landscapeFastValues(sky: Sky, tiltsDeg: Float64Array, azimuthsDe
     for (let i = 0; i < tiltsDeg.length; i++) {
       for (let j = 0; j < nA; j++) {
         const n = normalFromTiltAzimuth(tiltsDeg[i]!, azimuthsDeg[j]!);
-        if (!table) out[i * nA + j] += pointSourceIrradiance(sky, n);
-        else for (const p of sky.pointSources) out[i * nA + j] += p.irradianceWm2 * lookupCapTable(table, dot(n, p.direction));
+        if (!table) out[i * nA + j] = out[i * nA + j]! + pointSourceIrradiance(sky, n);
+        else for (const p of sky.pointSources) out[i * nA + j] = out[i * nA + j]! + p.irradianceWm2 * lookupCapTable(table, dot(n, p.direction));
       }
     }
   }

@@ -54,7 +54,7 @@ export function gridGraph(l: Landscape): GridGraph {
     for (let j = 0; j < nA; j++) {
       const node = nodeOfCell[i * nA + j]!;
       if (i === 0 && zenithRow) {
-        weights[0] += band;
+        weights[0] = weights[0]! + band;
       } else {
         weights[node] = band;
         cellOfNode[node] = i * nA + j;
@@ -95,7 +95,7 @@ export function nodeValues(graph: GridGraph, l: Landscape): Float64Array {
   const values = new Float64Array(graph.nodeCount);
   for (let c = 0; c < l.values.length; c++) {
     const node = graph.nodeOfCell[c]!;
-    if (graph.zenithRow && node === 0) values[0] += l.values[c]! / graph.nAzimuth;
+    if (graph.zenithRow && node === 0) values[0] = values[0]! + l.values[c]! / graph.nAzimuth;
     else values[node] = l.values[c]!;
   }
   return values;

@@ -62,7 +62,3 @@ export function validateGridOptions(o: LandscapeGridOptions): { stepDeg: number;
   return { stepDeg, tilts, azimuths, azimuthStepDeg, periodic };
 }
 
-/** Value at grid indices. */
-export function landscapeValue(l: Landscape, tiltIndex: number, azimuthIndex: number): number {
-  return l.values[tiltIndex * l.azimuthsDeg.length + azimuthIndex]!;
-}

@@ -10,7 +10,7 @@
  * Angular extent: an azimuth band (clockwise from `azimuthFromDeg` to `azimuthToDeg`, may wrap through north)
  * times an elevation band [elevationFromDeg, elevationToDeg] as surveyed from the site.
  */
-import { directionFromAzimuthElevation, dot, reflectDirection, type Vec3 } from '../sphere/directions';
+import { directionFromAzimuthElevation, dot, reflectDirection, type Vec3, wrap360 } from '../sphere/directions';
 
 export interface ReflectorInput {
   /** Facade normal azimuth (clockwise from north): the direction the glass faces. */
@@ -36,10 +36,10 @@ export interface Reflector {
 }
 
 export function buildReflector(r: ReflectorInput): Reflector {
-  const width = (((r.azimuthToDeg - r.azimuthFromDeg) % 360) + 360) % 360;
+  const width = wrap360(r.azimuthToDeg - r.azimuthFromDeg);
   return {
     normal: directionFromAzimuthElevation(r.normalAzimuthDeg, r.normalElevationDeg ?? 0),
-    azimuthFromDeg: ((r.azimuthFromDeg % 360) + 360) % 360,
+    azimuthFromDeg: wrap360(r.azimuthFromDeg),
     azimuthWidthDeg: width === 0 ? 360 : width,
     elevationFromDeg: Math.min(r.elevationFromDeg, r.elevationToDeg),
     elevationToDeg: Math.max(r.elevationFromDeg, r.elevationToDeg),
@@ -50,7 +50,7 @@ export function buildReflector(r: ReflectorInput): Reflector {
 /** Whether a direction (given by azimuth/elevation) lies inside the reflector's angular extent. */
 export function reflectorContains(r: Reflector, azimuthDeg: number, elevationDeg: number): boolean {
   if (elevationDeg < r.elevationFromDeg || elevationDeg > r.elevationToDeg) return false;
-  const da = (((azimuthDeg - r.azimuthFromDeg) % 360) + 360) % 360;
+  const da = wrap360(azimuthDeg - r.azimuthFromDeg);
   return da <= r.azimuthWidthDeg;
 }
 

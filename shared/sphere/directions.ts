@@ -53,8 +53,10 @@ export function angleBetweenDeg(a: Vec3, b: Vec3): number {
   return Math.acos(Math.max(-1, Math.min(1, dot(a, b)))) * DEG;
 }
 
-/** Wrap an angle to [0, 360). */
+/**
+ * Wrap an angle to [0, 360). Written as ((x % 360) + 360) % 360, the form every caller used before it had one home, so
+ * results stay bit-identical (the extra +360 − 360 can move the last bit of a positive angle).
+ */
 export function wrap360(x: number): number {
-  const r = x % 360;
-  return r < 0 ? r + 360 : r;
+  return ((x % 360) + 360) % 360;
 }

@@ -94,10 +94,10 @@ export function projectGridOnSh(grid: SphereGrid, values: Float64Array, order: n
       if (v === 0) continue;
       any = true;
       const base = j * (order + 1);
-      fc[0] += v;
+      fc[0] = fc[0]! + v;
       for (let m = 1; m <= order; m++) {
-        fc[m] += v * cosT[base + m]!;
-        fs[m] += v * sinT[base + m]!;
+        fc[m] = fc[m]! + v * cosT[base + m]!;
+        fs[m] = fs[m]! + v * sinT[base + m]!;
       }
     }
     if (!any) continue;
@@ -105,11 +105,11 @@ export function projectGridOnSh(grid: SphereGrid, values: Float64Array, order: n
     normalizedLegendre(order, grid.rowZ[i]!, scratch);
     for (let l = 0; l <= order; l++) {
       const ll = l * l + l;
-      out[ll] += w * scratch[legendreIndex(l, 0)]! * fc[0]!;
+      out[ll] = out[ll]! + w * scratch[legendreIndex(l, 0)]! * fc[0]!;
       for (let m = 1; m <= l; m++) {
         const p = w * Math.SQRT2 * scratch[legendreIndex(l, m)]!;
-        out[ll + m] += p * fc[m]!;
-        out[ll - m] += p * fs[m]!;
+        out[ll + m] = out[ll + m]! + p * fc[m]!;
+        out[ll - m] = out[ll - m]! + p * fs[m]!;
       }
     }
   }

@@ -1,5 +1,6 @@
 /** Small helpers shared by the outdoor scenarios. */
 import type { SkyInput, SkyType } from '../../shared/sky-radiance';
+import { wrap360 } from '../../shared/sphere/directions';
 
 /** Sky input for an outdoor site from beam and diffuse, with the sun only while it is up. */
 export function outdoorSky(
@@ -12,7 +13,7 @@ export function outdoorSky(
 ): SkyInput {
   const up = sun.elevationDeg > 0;
   return {
-    sun: up ? { azimuthDeg: ((sun.azimuthDeg % 360) + 360) % 360, elevationDeg: sun.elevationDeg, dniWm2: Math.min(1500, Math.max(0, dniWm2)) } : null,
+    sun: up ? { azimuthDeg: wrap360(sun.azimuthDeg), elevationDeg: sun.elevationDeg, dniWm2: Math.min(1500, Math.max(0, dniWm2)) } : null,
     dhiWm2: up ? Math.max(0, dhiWm2) : 0,
     skyType: up ? skyType : 'isotropic',
     albedo,

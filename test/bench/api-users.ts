@@ -11,6 +11,7 @@ import type { LiveServerMessage } from '../../shared/contracts/live';
 
 interface User { email: string; password: string; unitId: number; siteId: number }
 const [base, periodArg, durationArg, usersFile] = process.argv.slice(2);
+if (!base || !periodArg || !durationArg || !usersFile) throw new Error('usage: api-users <base url> <period ms> <duration s> <users file>');
 const PERIOD_MS = Number(periodArg);
 const DURATION_MS = Number(durationArg) * 1000;
 const users = JSON.parse(readFileSync(usersFile!, 'utf8')) as User[];
@@ -57,7 +58,7 @@ async function runUser(u: User, index: number): Promise<void> {
   const res = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: u.email, password: u.password }) });
   if (!res.ok) throw new Error(`sign-in of ${u.email}: ${res.status}`);
   const cookie = res.headers.get('set-cookie')!.split(';')[0]!;
-  const ws = new WebSocket(`${base.replace('http', 'ws')}/ws`, { headers: { cookie } });
+  const ws = new WebSocket(`${base!.replace('http', 'ws')}/ws`, { headers: { cookie } });
   await new Promise((r, j) => { ws.once('open', r); ws.once('error', j); });
   ws.on('message', (d) => {
     const m = JSON.parse(String(d)) as LiveServerMessage;

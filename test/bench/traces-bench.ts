@@ -63,7 +63,7 @@ async function main() {
     // The server keeps the 1-minute rollup current as data arrives; build it here the same way, a day at a time.
     const rollupStarted = performance.now();
     const telemetry = new TelemetryRepository(db);
-    for (let d = 0; d < DAYS; d++) await telemetry.rollupMinuteRange([unitId], new Date(start + d * 86_400_000), new Date(start + (d + 1) * 86_400_000));
+    for (let d = 0; d < DAYS; d++) await telemetry.rollupMinuteRange([unitId!], new Date(start + d * 86_400_000), new Date(start + (d + 1) * 86_400_000));
     say(`built the 1-minute rollup in ${((performance.now() - rollupStarted) / 1000).toFixed(1)} s`);
 
     const unit = { id: unitId, serial: 'BT-000001', siteId } as Unit;

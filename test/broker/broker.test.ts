@@ -114,7 +114,7 @@ describe('memory before authentication', () => {
 
   it('drops an authenticated unit sending a packet above the packet limit, and counts it for the unit', async () => {
     const denied: string[] = [];
-    const { b } = await broker({ onDenied: (p, topic, reason) => denied.push(`${p?.kind === 'unit' ? p.serial : '?'} ${reason}`) });
+    const { b } = await broker({ onDenied: (p, _topic, reason) => denied.push(`${p?.kind === 'unit' ? p.serial : '?'} ${reason}`) });
     const { c, connack } = await rawConnect(b.port, 'U-0020', secret('U-0020'));
     expect(connack.returnCode).toBe(0);
     c.send(qos1(unitTopic('U-0020', 'telemetry'), Buffer.alloc(1024 * 1024, 0x20), 1));

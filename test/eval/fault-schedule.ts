@@ -51,7 +51,7 @@ export function sunAbove(site: SiteInfo, ms: number, deg: number): boolean {
 export function scheduleFaults(input: ScheduleInput): ScheduledFault[] {
   const out: ScheduledFault[] = [];
   const { rng } = input;
-  input.units.forEach((u, i) => {
+  input.units.forEach((u) => {
     if (rng.next() < input.faultFreeShare) return;
     let t = input.startMs + rng.uniform(2, 10) * HOUR;
     let soiled = false;
@@ -68,7 +68,6 @@ export function scheduleFaults(input: ScheduleInput): ScheduledFault[] {
       if (f.kind === 'soiling') soiled = true;
       t = start + durationS * 1000 + rng.uniform(1, 4) * HOUR;
     }
-    void i;
   });
   return out.sort((a, b) => a.startMs - b.startMs);
 }

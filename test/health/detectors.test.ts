@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { normalFromTiltAzimuth } from '../../shared/sphere/directions';
 import { T0, UNIT, feed, modelOf, peer, report, sunLandscape, testEngine } from './synthetic';
 
 // Sun at azimuth 180°, elevation 50°: the global maximum is the panel facing it, tilt 40°, azimuth 180°.
@@ -200,8 +199,6 @@ describe('comms detector and stow watch', () => {
     expect(n[0]!.raisedMs - T0).toBe(3 * MIN);
   });
 });
-
-void normalFromTiltAzimuth;
 
 describe('hunting under changing light', () => {
   it('measures light variation as standard deviation over mean', async () => {

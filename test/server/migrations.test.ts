@@ -27,7 +27,7 @@ describe('holds migration', () => {
     const s = await createTestDatabase({ seed: true });
     try {
       while (String(await s.db.migrate.currentVersion()) >= '20261203100000') await s.db.migrate.down();
-      const [a, b, c] = (await s.db('units').orderBy('id').limit(3).select('id')).map((r: { id: number }) => r.id);
+      const [a, b, c] = (await s.db('units').orderBy('id').limit(3).select('id')).map((r: { id: number }) => r.id) as [number, number, number];
       const crew = (await s.db('users').where({ email: 'crew1@saltmarsh.example' }).first('id')).id;
       const admin = (await s.db('users').where({ email: 'admin@saltmarsh.example' }).first('id')).id;
       const issuedAt = new Date('2026-11-30T08:15:00.000Z');

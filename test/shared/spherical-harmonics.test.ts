@@ -42,7 +42,7 @@ describe('order-2 reconstruction of a point source (physics.md §3, exact [SC])'
   it('E2(0) = 1.0625, E2(90°) = 0.09375 (the 9.4 % worst case), E2(180°) = 0.0625', () => {
     const s = directionFromAzimuthElevation(0, 90);
     const coeff = realShBasis(2, s); // L_lm of a unit-irradiance point source = Y_lm(s)
-    for (let l = 0; l <= 2; l++) for (let m = -l; m <= l; m++) coeff[shIndex(l, m)] *= clampedCosineCoefficient(l);
+    for (let l = 0; l <= 2; l++) for (let m = -l; m <= l; m++) coeff[shIndex(l, m)] = coeff[shIndex(l, m)]! * clampedCosineCoefficient(l);
     expect(evaluateSh(2, coeff, normalFromTiltAzimuth(0, 0))).toBeCloseTo(1.0625, 12);
     expect(evaluateSh(2, coeff, normalFromTiltAzimuth(90, 33))).toBeCloseTo(0.09375, 12);
     expect(evaluateSh(2, coeff, normalFromTiltAzimuth(180, 0))).toBeCloseTo(0.0625, 12);
@@ -74,7 +74,7 @@ describe('projection on the sphere grid', () => {
     const c = projectGridOnSh(grid, vals, 6);
     for (const l of [2, 4, 6]) expect(Math.abs(c[shIndex(l, 0)]!)).toBeLessThan(1e-12);
     const e1 = c.slice(0, 4);
-    for (let l = 0; l <= 1; l++) for (let m = -l; m <= l; m++) e1[shIndex(l, m)] *= clampedCosineCoefficient(l);
+    for (let l = 0; l <= 1; l++) for (let m = -l; m <= l; m++) e1[shIndex(l, m)] = e1[shIndex(l, m)]! * clampedCosineCoefficient(l);
     for (const b of [0, 30, 60, 90, 150]) {
       expect(evaluateSh(1, e1, normalFromTiltAzimuth(b, 40))).toBeCloseTo((Math.PI * (1 + Math.cos((b * Math.PI) / 180))) / 2, 12);
     }
@@ -86,7 +86,7 @@ describe('why sharp sources stay out of the harmonics', () => {
     const worst = (order: number) => {
       const s = directionFromAzimuthElevation(0, 90);
       const c = realShBasis(order, s);
-      for (let l = 0; l <= order; l++) for (let m = -l; m <= l; m++) c[shIndex(l, m)] *= clampedCosineCoefficient(l);
+      for (let l = 0; l <= order; l++) for (let m = -l; m <= l; m++) c[shIndex(l, m)] = c[shIndex(l, m)]! * clampedCosineCoefficient(l);
       let w = 0;
       for (let t = 0; t <= 180; t += 0.25) w = Math.max(w, Math.abs(evaluateSh(order, c, normalFromTiltAzimuth(t, 0)) - Math.max(0, Math.cos((t * Math.PI) / 180))));
       return w;

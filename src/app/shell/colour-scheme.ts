@@ -45,7 +45,7 @@ export class ColourScheme {
 
   /** Moves to the next choice: device → light → dark → device. */
   next(): void {
-    this.set(ORDER[(ORDER.indexOf(this.choice()) + 1) % ORDER.length]);
+    this.set(ORDER[(ORDER.indexOf(this.choice()) + 1) % ORDER.length]!);
   }
 
   private read(): SchemeChoice {

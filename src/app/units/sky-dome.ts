@@ -1,5 +1,6 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import type { TonePalette } from '../live/tone-palette';
+import { wrap360 } from '../../../shared/sphere/directions';
 
 /** A marked direction on the sky dome. */
 export interface DomePoint {
@@ -31,7 +32,7 @@ const COMPASS: Record<number, string> = { 0: 'N', 45: 'NE', 90: 'E', 135: 'SE', 
 
 /** The panel normal as a sky direction: a panel tilted t° looks at elevation 90° − t. */
 export function normalToDome(tiltDeg: number, azimuthDeg: number): { azimuthDeg: number; elevationDeg: number } {
-  return { azimuthDeg: ((azimuthDeg % 360) + 360) % 360, elevationDeg: 90 - tiltDeg };
+  return { azimuthDeg: wrap360(azimuthDeg), elevationDeg: 90 - tiltDeg };
 }
 
 /** Polar radius of an elevation: the zenith is the centre, the horizon the rim. Below-horizon points sit on the rim. */
@@ -77,7 +78,7 @@ export function skyDomeOptions(d: SkyDome, palette: TonePalette): EChartsCoreOpt
     });
   }
   for (const [i, r] of (d.reflectors ?? []).entries()) {
-    const span = (((r.azimuthToDeg - r.azimuthFromDeg) % 360) + 360) % 360;
+    const span = wrap360(r.azimuthToDeg - r.azimuthFromDeg);
     const edge: [number, number][] = [];
     for (let k = 0; k <= 12; k++) edge.push([domeRadius(r.elevationFromDeg), r.azimuthFromDeg + (span * k) / 12]);
     for (let k = 12; k >= 0; k--) edge.push([domeRadius(r.elevationToDeg), r.azimuthFromDeg + (span * k) / 12]);
@@ -88,7 +89,7 @@ export function skyDomeOptions(d: SkyDome, palette: TonePalette): EChartsCoreOpt
       coordinateSystem: 'polar',
       showSymbol: false,
       lineStyle: { color: palette.accent, width: 2, type: 'dashed' },
-      data: edge.map(([rad, az]) => [rad, ((az % 360) + 360) % 360]),
+      data: edge.map(([rad, az]) => [rad, wrap360(az)]),
       tooltip: { show: false },
     });
   }
