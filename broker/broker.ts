@@ -6,7 +6,10 @@ import { MAX_PAYLOAD_BYTES } from '../shared/contracts/wire-format';
 import { UNIT_PUBLISH_LEAVES, type UnitPublishLeaf } from '../shared/contracts/topics';
 
 /** A field unit, confined to its own topic prefix. */
-export interface UnitPrincipal { kind: 'unit'; serial: string }
+export interface UnitPrincipal {
+  kind: 'unit';
+  serial: string;
+}
 /** Who a connected client is: a field unit or a server-side service. */
 export type Principal = UnitPrincipal | { kind: 'service'; name: string };
 
@@ -106,8 +109,17 @@ interface PacketParser {
 export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const limits: BrokerLimits = { ...DEFAULT_BROKER_LIMITS, ...opts.limits };
   const counters: BrokerCounters = {
-    pending: 0, refused: Object.fromEntries(REFUSALS.map((r) => [r, 0])) as Record<Refusal, number>, pendingLimit: 0, tooLarge: 0,
-    connectTimeouts: 0, keepaliveTimeouts: 0, protocolErrors: 0, socketErrors: 0, tlsErrors: 0, publishesDenied: 0, subscribesDenied: 0,
+    pending: 0,
+    refused: Object.fromEntries(REFUSALS.map((r) => [r, 0])) as Record<Refusal, number>,
+    pendingLimit: 0,
+    tooLarge: 0,
+    connectTimeouts: 0,
+    keepaliveTimeouts: 0,
+    protocolErrors: 0,
+    socketErrors: 0,
+    tlsErrors: 0,
+    publishesDenied: 0,
+    subscribesDenied: 0,
     disconnectedByServer: 0,
   };
   const principals = new WeakMap<Client, Principal>();
@@ -121,7 +133,13 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const counted = new WeakSet<Client>();
   const ackQueues = new WeakMap<Client, { done: (err: Error | null) => void; ready: boolean; err: Error | null }[]>();
 
-  const refuse = (client: Client, done: (e: AuthenticateError, ok: false) => void, code: 2 | 3 | 4 | 5, reason: Refusal, message: string) => {
+  const refuse = (
+    client: Client,
+    done: (e: AuthenticateError, ok: false) => void,
+    code: 2 | 3 | 4 | 5,
+    reason: Refusal,
+    message: string,
+  ) => {
     counters.refused[reason]++;
     counted.add(client);
     const err = new BrokerRefusal(message) as unknown as AuthenticateError;
@@ -176,12 +194,17 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
           if (!p) return refuse(client, done, 4, 'bad_credentials', 'Bad username or password');
           if (p.kind === 'unit') {
             // A unit's client id is its serial: otherwise one unit could take over another's session (and fire its will).
-            if (client.id !== p.serial) return refuse(client, done, 2, 'identifier_rejected', `client id must be the unit serial ${p.serial}`);
+            if (client.id !== p.serial)
+              return refuse(client, done, 2, 'identifier_rejected', `client id must be the unit serial ${p.serial}`);
             const will = wills.get(client);
-            if (will && (will.topic !== `${opts.unitPrefix(p.serial)}status` || (will.qos ?? 0) > 1 || will.payload.length > MAX_PAYLOAD_BYTES)) {
+            if (
+              will &&
+              (will.topic !== `${opts.unitPrefix(p.serial)}status` || (will.qos ?? 0) > 1 || will.payload.length > MAX_PAYLOAD_BYTES)
+            ) {
               return refuse(client, done, 5, 'will_denied', `a unit's will must be its own status topic (got ${will.topic})`);
             }
-            if ((revocations.get(p.serial) ?? 0) !== generation) return refuse(client, done, 3, 'server_unavailable', 'the unit was disconnected while signing in');
+            if ((revocations.get(p.serial) ?? 0) !== generation)
+              return refuse(client, done, 3, 'server_unavailable', 'the unit was disconnected while signing in');
           }
           principals.set(client, p);
           done(null, true);
@@ -221,7 +244,8 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       const p = client ? principals.get(client) : undefined;
       if (p?.kind === 'service') return done(null, sub);
       // A unit reads its own commands and nothing else: no wildcards, no other leaf, no other unit, no $SYS.
-      if (p?.kind === 'unit' && sub.topic === `${opts.unitPrefix(p.serial)}commands`) return done(null, { ...sub, qos: Math.min(sub.qos, 1) as 0 | 1 });
+      if (p?.kind === 'unit' && sub.topic === `${opts.unitPrefix(p.serial)}commands`)
+        return done(null, { ...sub, qos: Math.min(sub.qos, 1) as 0 | 1 });
       counters.subscribesDenied++;
       done(null, null); // a null subscription answers SUBACK 0x80 (failure) and keeps the client connected
     },
@@ -309,7 +333,10 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   await listen(server, opts.port, opts.host);
   let tlsPort: number | undefined;
   if (opts.tls) {
-    const tls = createTlsServer({ cert: opts.tls.cert, key: opts.tls.key, minVersion: 'TLSv1.2', handshakeTimeout: limits.connectTimeoutMs }, onConnection);
+    const tls = createTlsServer(
+      { cert: opts.tls.cert, key: opts.tls.key, minVersion: 'TLSv1.2', handshakeTimeout: limits.connectTimeoutMs },
+      onConnection,
+    );
     tls.on('tlsClientError', (_err, socket) => {
       counters.tlsErrors++;
       socket.destroy();

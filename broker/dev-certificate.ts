@@ -20,11 +20,29 @@ export function ensureDevCertificate(dir: string): CertificateFiles & { created:
   const tmpCert = `${certPath}.${process.pid}.tmp`;
   const tmpKey = `${keyPath}.${process.pid}.tmp`;
   try {
-    execFileSync('openssl', [
-      'req', '-x509', '-newkey', 'ec', '-pkeyopt', 'ec_paramgen_curve:prime256v1', '-nodes', '-days', '825',
-      '-subj', '/CN=Brightward development MQTT broker', '-addext', 'subjectAltName=IP:127.0.0.1,IP:::1,DNS:localhost',
-      '-keyout', tmpKey, '-out', tmpCert,
-    ], { stdio: ['ignore', 'ignore', 'pipe'] });
+    execFileSync(
+      'openssl',
+      [
+        'req',
+        '-x509',
+        '-newkey',
+        'ec',
+        '-pkeyopt',
+        'ec_paramgen_curve:prime256v1',
+        '-nodes',
+        '-days',
+        '825',
+        '-subj',
+        '/CN=Brightward development MQTT broker',
+        '-addext',
+        'subjectAltName=IP:127.0.0.1,IP:::1,DNS:localhost',
+        '-keyout',
+        tmpKey,
+        '-out',
+        tmpCert,
+      ],
+      { stdio: ['ignore', 'ignore', 'pipe'] },
+    );
     chmodSync(tmpKey, 0o600);
     renameSync(tmpKey, keyPath);
     renameSync(tmpCert, certPath);

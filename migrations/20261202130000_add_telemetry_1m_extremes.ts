@@ -2,8 +2,18 @@ import type { Knex } from 'knex';
 
 /** Per-minute minimum and maximum of each traced quantity, so long trace ranges read minutes instead of raw reports. */
 export const EXTREME_COLUMNS = [
-  'tilt_plus_wm2', 'tilt_minus_wm2', 'azimuth_plus_wm2', 'azimuth_minus_wm2', 'tilt_diff_wm2', 'azimuth_diff_wm2',
-  'tilt_deg', 'cmd_tilt_deg', 'azimuth_deg', 'cmd_azimuth_deg', 'poa_wm2', 'dc_power_w',
+  'tilt_plus_wm2',
+  'tilt_minus_wm2',
+  'azimuth_plus_wm2',
+  'azimuth_minus_wm2',
+  'tilt_diff_wm2',
+  'azimuth_diff_wm2',
+  'tilt_deg',
+  'cmd_tilt_deg',
+  'azimuth_deg',
+  'cmd_azimuth_deg',
+  'poa_wm2',
+  'dc_power_w',
 ] as const;
 
 export async function up(knex: Knex): Promise<void> {

@@ -1,7 +1,19 @@
 import bcrypt from 'bcryptjs';
 import type { Knex } from 'knex';
 import type { SiteSurvey } from '../shared/contracts/survey';
-import { ATRIUM_LAMPS, ATRIUM_WALL_DEG, CITY_HORIZON, COURTYARD_HORIZON, DEMO_SITES, DEMO_UNIT, DETECTOR_TILTS_DEG, FACADES, UNITS_PER_SITE, demoSerial, demoSerials } from '../shared/demo-world';
+import {
+  ATRIUM_LAMPS,
+  ATRIUM_WALL_DEG,
+  CITY_HORIZON,
+  COURTYARD_HORIZON,
+  DEMO_SITES,
+  DEMO_UNIT,
+  DETECTOR_TILTS_DEG,
+  FACADES,
+  UNITS_PER_SITE,
+  demoSerial,
+  demoSerials,
+} from '../shared/demo-world';
 
 /**
  * The invented demo world: an O&M operator ("Saltmarsh Field Services"), two owners, four sites and 24 units.
@@ -28,10 +40,20 @@ export const DEMO_OWNERS = [
 
 /** Site surveys of the demo world: the same geometry the simulator's scenarios use, so model and demo fleet agree. */
 export const DEMO_SURVEYS: Record<string, SiteSurvey> = {
-  QHL: { skyType: 12, horizon: CITY_HORIZON.map(([a, e]) => [a, e]), reflectors: FACADES.map((f) => ({ normalElevationDeg: 0, ...f })), lamps: [] },
+  QHL: {
+    skyType: 12,
+    horizon: CITY_HORIZON.map(([a, e]) => [a, e]),
+    reflectors: FACADES.map((f) => ({ normalElevationDeg: 0, ...f })),
+    lamps: [],
+  },
   QED: { skyType: 12, horizon: [], reflectors: [], lamps: [] },
   FSC: { skyType: 12, horizon: COURTYARD_HORIZON.map(([a, e]) => [a, e]), reflectors: [], lamps: [] },
-  FGA: { skyType: 'isotropic', horizon: [[0, ATRIUM_WALL_DEG]], reflectors: [], lamps: ATRIUM_LAMPS.map(({ azimuthDeg, elevationDeg, irradianceWm2 }) => ({ azimuthDeg, elevationDeg, irradianceWm2 })) },
+  FGA: {
+    skyType: 'isotropic',
+    horizon: [[0, ATRIUM_WALL_DEG]],
+    reflectors: [],
+    lamps: ATRIUM_LAMPS.map(({ azimuthDeg, elevationDeg, irradianceWm2 }) => ({ azimuthDeg, elevationDeg, irradianceWm2 })),
+  },
 };
 
 export interface DemoSeedOptions {
@@ -75,9 +97,17 @@ export async function seedDemoWorld(db: Knex, tools: DeviceSecretTools, opts: De
         const serial = demoSerial(code, i);
         deviceSecrets[serial] = secretOf(serial);
         return {
-          serial, site_id: siteId, rated_power_wp: DEMO_UNIT.ratedPowerWp, detector_tilt_deg: DETECTOR_TILTS_DEG[i],
-          tilt_min_deg: DEMO_UNIT.tiltRangeDeg[0], tilt_max_deg: DEMO_UNIT.tiltRangeDeg[1], azimuth_min_deg: DEMO_UNIT.azimuthRangeDeg[0], azimuth_max_deg: DEMO_UNIT.azimuthRangeDeg[1],
-          plan_x_m: (i % 3) * 6, plan_y_m: Math.floor(i / 3) * 5, firmware: DEMO_UNIT.firmware,
+          serial,
+          site_id: siteId,
+          rated_power_wp: DEMO_UNIT.ratedPowerWp,
+          detector_tilt_deg: DETECTOR_TILTS_DEG[i],
+          tilt_min_deg: DEMO_UNIT.tiltRangeDeg[0],
+          tilt_max_deg: DEMO_UNIT.tiltRangeDeg[1],
+          azimuth_min_deg: DEMO_UNIT.azimuthRangeDeg[0],
+          azimuth_max_deg: DEMO_UNIT.azimuthRangeDeg[1],
+          plan_x_m: (i % 3) * 6,
+          plan_y_m: Math.floor(i / 3) * 5,
+          firmware: DEMO_UNIT.firmware,
           device_secret_hash: tools.hashDeviceSecret(deviceSecrets[serial]!),
           weather_station: i === 0 && !s.indoor,
         };
@@ -85,7 +115,13 @@ export async function seedDemoWorld(db: Knex, tools: DeviceSecretTools, opts: De
       await trx('units').insert(rows);
     }
     await trx('users').insert(
-      DEMO_USERS.map((u) => ({ email: u.email, name: u.name, role: u.role, owner_id: u.owner ? ownerIds.get(u.owner) : null, password_hash: passwordHash })),
+      DEMO_USERS.map((u) => ({
+        email: u.email,
+        name: u.name,
+        role: u.role,
+        owner_id: u.owner ? ownerIds.get(u.owner) : null,
+        password_hash: passwordHash,
+      })),
     );
   });
   return { seeded: true, deviceSecrets };
@@ -101,7 +137,9 @@ export async function rekeyDemoUnits(db: Knex, tools: DeviceSecretTools): Promis
   await db.transaction(async (trx) => {
     for (const serial of serials) {
       secrets[serial] = tools.newDeviceSecret();
-      await trx('units').where({ serial }).update({ device_secret_hash: tools.hashDeviceSecret(secrets[serial]) });
+      await trx('units')
+        .where({ serial })
+        .update({ device_secret_hash: tools.hashDeviceSecret(secrets[serial]) });
     }
   });
   return secrets;

@@ -18,10 +18,16 @@ const trustProxy = z
   .transform((v, ctx): TrustProxy => {
     if (v === '' || v === 'off' || v === 'false') return false;
     if (/^\d{1,2}$/.test(v)) return Number(v) || false;
-    const parts = v.split(',').map((p) => p.trim()).filter(Boolean);
+    const parts = v
+      .split(',')
+      .map((p) => p.trim())
+      .filter(Boolean);
     const bad = parts.filter((p) => !PROXY_NAMES.has(p) && !isAddressOrRange(p));
     if (bad.length || !parts.length) {
-      ctx.addIssue({ code: 'custom', message: `off, a hop count, or a comma list of loopback, linklocal, uniquelocal, IP addresses or CIDR ranges (not ${bad.join(', ') || 'empty'})` });
+      ctx.addIssue({
+        code: 'custom',
+        message: `off, a hop count, or a comma list of loopback, linklocal, uniquelocal, IP addresses or CIDR ranges (not ${bad.join(', ') || 'empty'})`,
+      });
       return z.NEVER;
     }
     return parts;
@@ -32,7 +38,10 @@ const allowedOrigins = z
   .default('')
   .transform((v, ctx): string[] => {
     const out: string[] = [];
-    for (const raw of v.split(',').map((p) => p.trim()).filter(Boolean)) {
+    for (const raw of v
+      .split(',')
+      .map((p) => p.trim())
+      .filter(Boolean)) {
       let url: URL | undefined;
       try {
         url = new URL(raw);
@@ -54,7 +63,10 @@ const envSchema = z.object({
   BW_PORT: z.coerce.number().int().min(0).max(65535).default(4300),
   BW_DB_HOST: z.string().default('127.0.0.1'),
   BW_DB_PORT: z.coerce.number().int().min(1).max(65535).default(3307),
-  BW_DB_NAME: z.string().regex(/^[A-Za-z0-9_]+$/, 'letters, digits and _ only').default('brightward'),
+  BW_DB_NAME: z
+    .string()
+    .regex(/^[A-Za-z0-9_]+$/, 'letters, digits and _ only')
+    .default('brightward'),
   BW_DB_USER: z.string().min(1).default('brightward'),
   BW_DB_PASSWORD: z.string().default('brightward-local'),
   BW_DB_POOL_MAX: z.coerce.number().int().min(1).max(64).default(6),
@@ -66,7 +78,11 @@ const envSchema = z.object({
   BW_BROKER_TLS_CERT: z.string().min(1).optional(),
   BW_BROKER_TLS_KEY: z.string().min(1).optional(),
   BW_SESSION_SECRET: z.string().min(32, 'at least 32 characters').optional(),
-  BW_SESSION_HOURS: z.coerce.number().min(0.1).max(24 * 30).default(12),
+  BW_SESSION_HOURS: z.coerce
+    .number()
+    .min(0.1)
+    .max(24 * 30)
+    .default(12),
   BW_WEB_DIR: z.string().default('dist/web/browser'),
   BW_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   BW_SIGNIN_LIMIT_PER_MIN: z.coerce.number().int().min(1).default(10),
@@ -111,17 +127,30 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
   }
   const e = parsed.data;
   const tlsProblem =
-    (e.BW_BROKER_TLS_CERT === undefined) !== (e.BW_BROKER_TLS_KEY === undefined) ? 'BW_BROKER_TLS_CERT and BW_BROKER_TLS_KEY: give both or neither'
-    : e.BW_BROKER_TLS_CERT !== undefined && e.BW_BROKER_TLS_PORT === undefined ? 'BW_BROKER_TLS_PORT: required when BW_BROKER_TLS_CERT/BW_BROKER_TLS_KEY are set'
-    : null;
+    (e.BW_BROKER_TLS_CERT === undefined) !== (e.BW_BROKER_TLS_KEY === undefined)
+      ? 'BW_BROKER_TLS_CERT and BW_BROKER_TLS_KEY: give both or neither'
+      : e.BW_BROKER_TLS_CERT !== undefined && e.BW_BROKER_TLS_PORT === undefined
+        ? 'BW_BROKER_TLS_PORT: required when BW_BROKER_TLS_CERT/BW_BROKER_TLS_KEY are set'
+        : null;
   if (tlsProblem) throw new ConfigError(`Invalid configuration:\n  ${tlsProblem}`);
   return {
     host: e.BW_HOST,
     port: e.BW_PORT,
-    db: { host: e.BW_DB_HOST, port: e.BW_DB_PORT, database: e.BW_DB_NAME, user: e.BW_DB_USER, password: e.BW_DB_PASSWORD, poolMax: e.BW_DB_POOL_MAX },
+    db: {
+      host: e.BW_DB_HOST,
+      port: e.BW_DB_PORT,
+      database: e.BW_DB_NAME,
+      user: e.BW_DB_USER,
+      password: e.BW_DB_PASSWORD,
+      poolMax: e.BW_DB_POOL_MAX,
+    },
     broker: {
-      host: e.BW_BROKER_HOST, port: e.BW_BROKER_PORT, connectTimeoutMs: e.BW_BROKER_CONNECT_TIMEOUT_MS,
-      ...(e.BW_BROKER_TLS_PORT === undefined ? {} : { tls: { port: e.BW_BROKER_TLS_PORT, certPath: e.BW_BROKER_TLS_CERT, keyPath: e.BW_BROKER_TLS_KEY } }),
+      host: e.BW_BROKER_HOST,
+      port: e.BW_BROKER_PORT,
+      connectTimeoutMs: e.BW_BROKER_CONNECT_TIMEOUT_MS,
+      ...(e.BW_BROKER_TLS_PORT === undefined
+        ? {}
+        : { tls: { port: e.BW_BROKER_TLS_PORT, certPath: e.BW_BROKER_TLS_CERT, keyPath: e.BW_BROKER_TLS_KEY } }),
     },
     sessionSecret: e.BW_SESSION_SECRET,
     sessionHours: e.BW_SESSION_HOURS,
@@ -131,6 +160,12 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     bcryptCost: e.BW_BCRYPT_COST,
     trustProxy: e.BW_TRUST_PROXY,
     allowedOrigins: e.BW_ALLOWED_ORIGINS,
-    ingest: { retentionDays: e.BW_RAW_RETENTION_DAYS, batchRows: e.BW_INGEST_BATCH_ROWS, flushMs: e.BW_INGEST_FLUSH_MS, maxBufferRows: e.BW_INGEST_MAX_BUFFER_ROWS, flushConcurrency: e.BW_INGEST_CONCURRENCY },
+    ingest: {
+      retentionDays: e.BW_RAW_RETENTION_DAYS,
+      batchRows: e.BW_INGEST_BATCH_ROWS,
+      flushMs: e.BW_INGEST_FLUSH_MS,
+      maxBufferRows: e.BW_INGEST_MAX_BUFFER_ROWS,
+      flushConcurrency: e.BW_INGEST_CONCURRENCY,
+    },
   };
 }

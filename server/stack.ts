@@ -109,10 +109,16 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const auditLog = new AuditService(audit);
   const passwords = new Passwords(config.bcryptCost);
   const sessionEvents = new SessionEvents();
-  const auth = new AuthService({ users, sessions: new SessionRepository(db), audit }, new SignInLimiter(config.signInLimitPerMinute), passwords, sessionEvents, {
-    secret: config.sessionSecret ?? randomBytes(32).toString('hex'),
-    sessionHours: config.sessionHours,
-  });
+  const auth = new AuthService(
+    { users, sessions: new SessionRepository(db), audit },
+    new SignInLimiter(config.signInLimitPerMinute),
+    passwords,
+    sessionEvents,
+    {
+      secret: config.sessionSecret ?? randomBytes(32).toString('hex'),
+      sessionHours: config.sessionHours,
+    },
+  );
   let brokerRef: RunningBroker | undefined;
   const directory = new UnitDirectory(units, new HoldRepository(db));
   await directory.load();
@@ -142,18 +148,33 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const health = new HealthService(new AlarmStore(alarmRepo, directory, live, log), siteModels, healthSettings, live, log, healthOpts);
   let commands: CommandService | undefined;
   const ingest = new IngestService(
-    telemetry, directory, log,
+    telemetry,
+    directory,
+    log,
     {
       // Live state as reports arrive (it ignores resends); health detectors once per stored reading, after its commit.
-      telemetry: (u, t) => { live.onTelemetry(u, t); opts.listeners?.telemetry?.(u, t); },
-      stored: (u, t) => { health.telemetry(u, t); opts.listeners?.stored?.(u, t); },
-      event: (u, e) => { health.event(u, e); opts.listeners?.event?.(u, e); },
-      weather: (u, w) => { health.weather(u, w); opts.listeners?.weather?.(u, w); },
+      telemetry: (u, t) => {
+        live.onTelemetry(u, t);
+        opts.listeners?.telemetry?.(u, t);
+      },
+      stored: (u, t) => {
+        health.telemetry(u, t);
+        opts.listeners?.stored?.(u, t);
+      },
+      event: (u, e) => {
+        health.event(u, e);
+        opts.listeners?.event?.(u, e);
+      },
+      weather: (u, w) => {
+        health.weather(u, w);
+        opts.listeners?.weather?.(u, w);
+      },
       // The unit's PUBACK for an ack waits for the command to be updated; a failure closes its connection (it resends).
-      ack: (u, a) => commands?.onAck(u, a).catch((err: unknown) => {
-        log.error({ err }, 'command ack failed');
-        throw err;
-      }),
+      ack: (u, a) =>
+        commands?.onAck(u, a).catch((err: unknown) => {
+          log.error({ err }, 'command ack failed');
+          throw err;
+        }),
       status: (u, st) => {
         live.onStatus(u, st);
         health.status(u, st);
@@ -168,11 +189,16 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   let tls: { port: number; cert: Buffer; key: Buffer } | undefined;
   if (config.broker.tls) {
     try {
-      const files = config.broker.tls.certPath && config.broker.tls.keyPath
-        ? { certPath: config.broker.tls.certPath, keyPath: config.broker.tls.keyPath }
-        : ensureDevCertificate(join(process.cwd(), '.data', 'tls'));
+      const files =
+        config.broker.tls.certPath && config.broker.tls.keyPath
+          ? { certPath: config.broker.tls.certPath, keyPath: config.broker.tls.keyPath }
+          : ensureDevCertificate(join(process.cwd(), '.data', 'tls'));
       tls = { port: config.broker.tls.port, cert: readFileSync(files.certPath), key: readFileSync(files.keyPath) };
-      if (!config.broker.tls.certPath) log.warn({ cert: files.certPath }, 'MQTT over TLS uses the self-signed development certificate; set BW_BROKER_TLS_CERT and BW_BROKER_TLS_KEY in production');
+      if (!config.broker.tls.certPath)
+        log.warn(
+          { cert: files.certPath },
+          'MQTT over TLS uses the self-signed development certificate; set BW_BROKER_TLS_CERT and BW_BROKER_TLS_KEY in production',
+        );
     } catch (err) {
       await db.destroy();
       throw new StartupError(`Cannot offer MQTT over TLS: ${(err as Error).message}`);
@@ -193,14 +219,25 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     },
   }).catch(async (err) => {
     await db.destroy();
-    throw new StartupError(`Cannot start the MQTT broker on ${config.broker.host}:${config.broker.port}${tls ? ` (TLS ${tls.port})` : ''}: ${(err as Error).message}. Set BW_BROKER_PORT${tls ? ' / BW_BROKER_TLS_PORT' : ''} to a free port.`);
+    throw new StartupError(
+      `Cannot start the MQTT broker on ${config.broker.host}:${config.broker.port}${tls ? ` (TLS ${tls.port})` : ''}: ${(err as Error).message}. Set BW_BROKER_PORT${tls ? ' / BW_BROKER_TLS_PORT' : ''} to a free port.`,
+    );
   });
   commands = new CommandService(
-    new CommandStore(db), directory, live,
+    new CommandStore(db),
+    directory,
+    live,
     (serial, command) =>
       new Promise<void>((res, rej) =>
         broker.aedes.publish(
-          { cmd: 'publish', topic: unitTopic(serial, 'commands'), payload: Buffer.from(JSON.stringify(command)), qos: 1, retain: false, dup: false },
+          {
+            cmd: 'publish',
+            topic: unitTopic(serial, 'commands'),
+            payload: Buffer.from(JSON.stringify(command)),
+            qos: 1,
+            retain: false,
+            dup: false,
+          },
           (err) => (err ? rej(err) : res()),
         ),
       ),
@@ -226,22 +263,46 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
 
   const allowedOrigins = new Set(config.allowedOrigins);
   const app = createApp({
-    log, auth, admin, webDir: config.webDir, trustProxy: config.trustProxy, allowedOrigins, pingDatabase: () => pingDatabase(db),
+    log,
+    auth,
+    admin,
+    webDir: config.webDir,
+    trustProxy: config.trustProxy,
+    allowedOrigins,
+    pingDatabase: () => pingDatabase(db),
     broker: () => ({ ok: true, port: broker.port, clients: broker.clients() }),
-    routers: [telemetryRoutes({ admin, commands, ingest, live, telemetry: new TelemetryHistory(telemetry), rollups, brokerCounters: () => broker.counters }), siteModelRoutes(admin, siteModel),
-      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at)), auditLog), landscapeRoutes(admin, landscapes),
+    routers: [
+      telemetryRoutes({
+        admin,
+        commands,
+        ingest,
+        live,
+        telemetry: new TelemetryHistory(telemetry),
+        rollups,
+        brokerCounters: () => broker.counters,
+      }),
+      siteModelRoutes(admin, siteModel),
+      traceRoutes(admin, new TraceService(new TraceRepository(db), (siteId, at) => landscapes.bestWm2(siteId, at)), auditLog),
+      landscapeRoutes(admin, landscapes),
       alarmRoutes({
-        admin, settings: healthSettings,
+        admin,
+        settings: healthSettings,
         alarms: new AlarmService(alarmRepo, admin, live, healthOpts.now),
         scans: new ScanService(healthReads, admin, directory, siteModels),
         replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings),
       }),
-      auditRoutes(auditLog)],
+      auditRoutes(auditLog),
+    ],
   });
   const http = createServer(app);
-  const liveSocket = attachLiveSocket(http, auth, live, sessionEvents, log, { allowedOrigins, sessionRecheckMs: opts.sessionRecheckMs ?? 30_000 });
+  const liveSocket = attachLiveSocket(http, auth, live, sessionEvents, log, {
+    allowedOrigins,
+    sessionRecheckMs: opts.sessionRecheckMs ?? 30_000,
+  });
   await new Promise<void>((res, rej) => {
-    http.once('error', (err) => rej(new StartupError(`Cannot listen on ${config.host}:${config.port}: ${err.message}. Set BW_PORT to a free port.`)));
+    http.once('error', (err) =>
+      rej(new StartupError(`Cannot listen on ${config.host}:${config.port}: ${err.message}. Set BW_PORT to a free port.`)),
+    );
     http.listen(config.port, config.host, () => res());
   });
   const { port } = http.address() as AddressInfo;
@@ -265,5 +326,21 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await rollups.runOnce({ includeOpenMinutes: true }).catch(() => undefined);
       await db.destroy();
     })());
-  return { url, db, broker, http, log, stop, ingest, rollups, live, commands, units: directory, siteModel, retention, health, landscapesWarm };
+  return {
+    url,
+    db,
+    broker,
+    http,
+    log,
+    stop,
+    ingest,
+    rollups,
+    live,
+    commands,
+    units: directory,
+    siteModel,
+    retention,
+    health,
+    landscapesWarm,
+  };
 }

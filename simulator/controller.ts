@@ -19,7 +19,13 @@ export interface ControllerConfig {
   reportIntervalS: number;
 }
 
-export const DEFAULT_CONTROLLER: ControllerConfig = { detectorTiltDeg: 20, gain: 0.05, deadbandWm2: 2, rateLimitDegS: 2, reportIntervalS: 5 };
+export const DEFAULT_CONTROLLER: ControllerConfig = {
+  detectorTiltDeg: 20,
+  gain: 0.05,
+  deadbandWm2: 2,
+  rateLimitDegS: 2,
+  reportIntervalS: 5,
+};
 
 export interface ControlOutput {
   dTiltDeg: number;

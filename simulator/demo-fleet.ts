@@ -16,7 +16,15 @@ export const DEMO_SCENARIO_BY_SITE: Record<string, string> = {
 export function demoSiteInfo(code: string): SiteInfo {
   const s = DEMO_SITES.find((x) => x.code === code);
   if (!s) throw new RangeError(`no demo site ${code}`);
-  return { name: s.name, code: s.code, latitudeDeg: s.latitude_deg, longitudeDeg: s.longitude_deg, elevationM: s.elevation_m, albedo: s.albedo, indoor: s.indoor };
+  return {
+    name: s.name,
+    code: s.code,
+    latitudeDeg: s.latitude_deg,
+    longitudeDeg: s.longitude_deg,
+    elevationM: s.elevation_m,
+    albedo: s.albedo,
+    indoor: s.indoor,
+  };
 }
 
 export function demoFleetSites(reportIntervalS = 5): FleetSiteSpec[] {
@@ -35,4 +43,3 @@ export function demoFleetSites(reportIntervalS = 5): FleetSiteSpec[] {
     })),
   }));
 }
-

@@ -26,7 +26,13 @@ export interface DetectorSet {
 
 export function createDetectorSet(rng: Rng): DetectorSet {
   const g = () => 1 + 0.01 * rng.normal();
-  return { gain: [g(), g(), g(), g(), 1 + 0.005 * rng.normal()], drift: [1, 1, 1, 1], dead: [false, false, false, false], noiseAbsWm2: 0.4, noiseRel: 0.002 };
+  return {
+    gain: [g(), g(), g(), g(), 1 + 0.005 * rng.normal()],
+    drift: [1, 1, 1, 1],
+    dead: [false, false, false, false],
+    noiseAbsWm2: 0.4,
+    noiseRel: 0.002,
+  };
 }
 
 export interface Readings {
@@ -43,7 +49,14 @@ export interface Readings {
 /** Reads all five sensors; `soiling` (0…1 transmittance) dims detectors and reference cell alike. */
 const DEAD = FAULT_EFFECTS.deadDetector;
 
-export function readDetectors(sky: SkyField, set: DetectorSet, tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number, rng: Rng): Readings {
+export function readDetectors(
+  sky: SkyField,
+  set: DetectorSet,
+  tiltDeg: number,
+  azimuthDeg: number,
+  detectorTiltDeg: number,
+  rng: Rng,
+): Readings {
   const n = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
   const read = (i: number, e: number) => {
     const noise = rng.normal() * (set.noiseAbsWm2 + set.noiseRel * e);

@@ -44,7 +44,16 @@ export interface FaultEffectState {
 }
 
 export function noFaultEffects(): FaultEffectState {
-  return { commsDown: false, stuckStowed: false, gainFactor: 1, deadbandOverride: null, detectorTiltOverride: null, driftRatePerS: 0, driftDetector: -1, soilingRatePerS: 0 };
+  return {
+    commsDown: false,
+    stuckStowed: false,
+    gainFactor: 1,
+    deadbandOverride: null,
+    detectorTiltOverride: null,
+    driftRatePerS: 0,
+    driftDetector: -1,
+    soilingRatePerS: 0,
+  };
 }
 
 /** The axis a fault hits: even targets the tilt axis, odd the azimuth axis. */

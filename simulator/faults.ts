@@ -28,11 +28,15 @@ export type FaultPlan = Partial<Record<FaultKind, number>>;
 /** Parses `kind=rate,kind=rate` (rate per unit per simulated day; a bare kind means 1). Unknown kinds throw with the list. */
 export function parseFaultPlan(text: string): FaultPlan {
   const plan: FaultPlan = {};
-  for (const part of text.split(',').map((s) => s.trim()).filter(Boolean)) {
+  for (const part of text
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean)) {
     const [kind, rateText] = part.split('=');
     if (!(FAULT_KINDS as readonly string[]).includes(kind!)) throw new UnknownNameError('fault', kind!, FAULT_KINDS);
     const rate = rateText === undefined ? 1 : Number(rateText);
-    if (!Number.isFinite(rate) || rate < 0) throw new RangeError(`fault rate for ${kind} must be a number ≥ 0 (per unit per day), got ${rateText}`);
+    if (!Number.isFinite(rate) || rate < 0)
+      throw new RangeError(`fault rate for ${kind} must be a number ≥ 0 (per unit per day), got ${rateText}`);
     plan[kind as FaultKind] = rate;
   }
   return plan;

@@ -8,7 +8,15 @@ import { MODULE_POWER_TEMP_COEFF_PER_K as TEMP_COEFF_PER_K } from '../shared/con
 import type { Command } from '../shared/contracts/wire';
 import { bestReachableOrientationWith, STANDARD_UNIT_LIMITS, TRAP_RATIO, type BestOrientation, type UnitLimits } from '../shared/landscape';
 import { isoUtc } from './clock';
-import { FAULT_KINDS, FAULT_MEAN_HOURS, type ActiveFault, type FaultKind, type FaultPlan, type TruthKind, type TruthRecord } from './faults';
+import {
+  FAULT_KINDS,
+  FAULT_MEAN_HOURS,
+  type ActiveFault,
+  type FaultKind,
+  type FaultPlan,
+  type TruthKind,
+  type TruthRecord,
+} from './faults';
 import type { Rng } from './rng';
 import { createScenarioWorld, type SiteConditions, type SiteInfo, type SiteWorld } from './scenarios';
 import { irradianceTiltAz, normalFromTiltAzimuth, type SkyField } from './sky-field';
@@ -156,7 +164,8 @@ function observeTrap(o: Observer, holds: boolean, serial: string, nowMs: number)
   if (holds) {
     o.clearSinceMs = null;
     if (o.candidateSinceMs === null) o.candidateSinceMs = nowMs;
-    if (!o.open && nowMs - o.candidateSinceMs >= TRAP_OPEN_S * 1000) o.open = { serial, fault: 'trap', start: isoUtc(o.candidateSinceMs), end: null };
+    if (!o.open && nowMs - o.candidateSinceMs >= TRAP_OPEN_S * 1000)
+      o.open = { serial, fault: 'trap', start: isoUtc(o.candidateSinceMs), end: null };
     return null;
   }
   o.candidateSinceMs = null;
@@ -174,7 +183,9 @@ function observeTrap(o: Observer, holds: boolean, serial: string, nowMs: number)
 function accumulateTwins(s: SiteRun, c: SiteConditions, dtS: number): void {
   const lat = s.spec.site.latitudeDeg;
   const fixed = irradianceTiltAz(c.field, Math.abs(lat), lat >= 0 ? 180 : 0);
-  const sun = c.sunDir ? c.field.irradiance(c.sunDir[2] >= Math.cos((85 * Math.PI) / 180) ? c.sunDir : normalFromTiltAzimuth(85, c.sunAzimuthDeg)) : irradianceTiltAz(c.field, 0, 0);
+  const sun = c.sunDir
+    ? c.field.irradiance(c.sunDir[2] >= Math.cos((85 * Math.PI) / 180) ? c.sunDir : normalFromTiltAzimuth(85, c.sunAzimuthDeg))
+    : irradianceTiltAz(c.field, 0, 0);
   const dc = (e: number) => (e / 1000) * (1 + TEMP_COEFF_PER_K * (c.weather.airTempC + e * NOCT_RISE_K_PER_WM2 - 25));
   s.fixedPoaWhm2 += (fixed * dtS) / 3600;
   s.sunPoaWhm2 += (sun * dtS) / 3600;
@@ -241,7 +252,11 @@ class TruthBook {
 
   /** Every record so far, closed first; open ones are copies with end null. */
   all(): TruthRecord[] {
-    const open: TruthRecord[] = [...[...this.openFaults.values()].map((x) => x.record), ...[...this.trapObs.values()].flatMap((o) => (o.open ? [o.open] : [])), ...this.windOpen.values()];
+    const open: TruthRecord[] = [
+      ...[...this.openFaults.values()].map((x) => x.record),
+      ...[...this.trapObs.values()].flatMap((o) => (o.open ? [o.open] : [])),
+      ...this.windOpen.values(),
+    ];
     return [...this.closed, ...open.map((r) => ({ ...r }))];
   }
 }
@@ -266,12 +281,13 @@ export function createFleet(spec: FleetSpec, deps: { rng: Rng }): Fleet {
   }
 
   function startPlannedFaults(dtS: number) {
-    for (const u of units) for (const [kind, rate] of plan) {
-      if (!u.hasFault(kind) && faultRng.chance((rate * dtS) / 86_400)) {
-        const dur = Math.max(300, faultRng.exponential(FAULT_MEAN_HOURS[kind] * 3600));
-        startFault(u, kind, dur, Math.floor(faultRng.next() * 4));
+    for (const u of units)
+      for (const [kind, rate] of plan) {
+        if (!u.hasFault(kind) && faultRng.chance((rate * dtS) / 86_400)) {
+          const dur = Math.max(300, faultRng.exponential(FAULT_MEAN_HOURS[kind] * 3600));
+          startFault(u, kind, dur, Math.floor(faultRng.next() * 4));
+        }
       }
-    }
   }
 
   /** Observed truth: wind stows, and traps (settled well below the best reachable orientation, nothing else wrong). */

@@ -67,10 +67,25 @@ export function parseOptions(argv: string[], env: NodeJS.ProcessEnv = process.en
     args: argv,
     strict: true,
     options: {
-      demo: { type: 'boolean' }, offline: { type: 'boolean' }, broker: { type: 'string' }, scenario: { type: 'string' }, site: { type: 'string' },
-      units: { type: 'string' }, prefix: { type: 'string' }, 'detector-tilt': { type: 'string' }, secrets: { type: 'string' }, seed: { type: 'string' },
-      speed: { type: 'string' }, start: { type: 'string' }, duration: { type: 'string' }, 'report-interval': { type: 'string' }, faults: { type: 'string' },
-      truth: { type: 'string' }, baseline: { type: 'string' }, list: { type: 'boolean' }, help: { type: 'boolean' },
+      demo: { type: 'boolean' },
+      offline: { type: 'boolean' },
+      broker: { type: 'string' },
+      scenario: { type: 'string' },
+      site: { type: 'string' },
+      units: { type: 'string' },
+      prefix: { type: 'string' },
+      'detector-tilt': { type: 'string' },
+      secrets: { type: 'string' },
+      seed: { type: 'string' },
+      speed: { type: 'string' },
+      start: { type: 'string' },
+      duration: { type: 'string' },
+      'report-interval': { type: 'string' },
+      faults: { type: 'string' },
+      truth: { type: 'string' },
+      baseline: { type: 'string' },
+      list: { type: 'boolean' },
+      help: { type: 'boolean' },
     },
   });
   if (values.help) return 'help';
@@ -106,7 +121,8 @@ export function parseOptions(argv: string[], env: NodeJS.ProcessEnv = process.en
     truth: values.truth,
     baseline: values.baseline,
   };
-  if (!/^[A-Z0-9][A-Z0-9-]{0,20}$/.test(o.prefix)) throw new UsageError('--prefix: capital letters, digits and dashes, up to 21 characters');
+  if (!/^[A-Z0-9][A-Z0-9-]{0,20}$/.test(o.prefix))
+    throw new UsageError('--prefix: capital letters, digits and dashes, up to 21 characters');
   if (o.offline && o.duration === undefined) throw new UsageError('--offline needs --duration');
   return o;
 }
@@ -146,7 +162,11 @@ async function run(o: Options): Promise<void> {
     // Closed records are appended in the order they closed; open ones are written once, at the end.
     writeLines(truthOut, closed.slice(truthWritten));
     truthWritten = closed.length;
-    if (final) writeLines(truthOut, all.filter((r) => r.end === null));
+    if (final)
+      writeLines(
+        truthOut,
+        all.filter((r) => r.end === null),
+      );
   };
   const log = (line: string) => process.stderr.write(`[simulator] ${line}\n`);
   const units = fleet.units.length;
@@ -167,7 +187,9 @@ async function run(o: Options): Promise<void> {
     await Promise.all([truthOut, baselineOut].map((s) => s && new Promise<void>((res) => s.end(() => res()))));
     return;
   }
-  const secrets = readSecrets(o.secrets ?? (o.demo ? (process.env['BW_DEMO_SECRETS_FILE'] ?? '.data/demo/device-secrets.json') : undefined));
+  const secrets = readSecrets(
+    o.secrets ?? (o.demo ? (process.env['BW_DEMO_SECRETS_FILE'] ?? '.data/demo/device-secrets.json') : undefined),
+  );
   const clock = acceleratedClock(real, startMs, o.speed);
   const publisher = createPublisher(fleet, { url: o.broker, secretOf: (s) => secrets[s] ?? '', now: () => fleet.now(), log });
   log(`${units} units → ${o.broker}, speed ${o.speed}, start ${isoUtc(startMs)}, seed ${o.seed}${o.demo ? ' (demo)' : ''}`);
@@ -211,7 +233,9 @@ function readSecrets(file: string | undefined): Record<string, string> {
   try {
     return JSON.parse(readFileSync(file, 'utf8')) as Record<string, string>;
   } catch (e) {
-    throw new Error(`cannot read device secrets from ${file}: ${(e as Error).message}. Seed the demo first (npm start or npm run db:seed).`);
+    throw new Error(
+      `cannot read device secrets from ${file}: ${(e as Error).message}. Seed the demo first (npm start or npm run db:seed).`,
+    );
   }
 }
 

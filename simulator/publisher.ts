@@ -59,7 +59,10 @@ export function createPublisher(fleet: Fleet, opts: PublisherOptions): Publisher
     });
     c.on('connect', () => {
       fleet.setTransport(serial, true);
-      c.publish(statusTopic, JSON.stringify({ v: WIRE_VERSION, online: true, ts: isoUtc(opts.now()), firmware: unit.firmware }), { qos: 1, retain: true });
+      c.publish(statusTopic, JSON.stringify({ v: WIRE_VERSION, online: true, ts: isoUtc(opts.now()), firmware: unit.firmware }), {
+        qos: 1,
+        retain: true,
+      });
       c.subscribe(unitTopic(serial, 'commands'), { qos: 1 });
     });
     c.on('close', () => fleet.setTransport(serial, false));
@@ -75,7 +78,8 @@ export function createPublisher(fleet: Fleet, opts: PublisherOptions): Publisher
       if (parsed.success) fleet.command(serial, parsed.data);
       else {
         const id = (raw as { commandId?: unknown })?.commandId;
-        if (typeof id === 'string' && id.length > 0 && id.length <= 64) unit.rejectCommand(id, 'command does not match wire format v1', fleet.now());
+        if (typeof id === 'string' && id.length > 0 && id.length <= 64)
+          unit.rejectCommand(id, 'command does not match wire format v1', fleet.now());
       }
     });
     return c;
@@ -94,7 +98,10 @@ export function createPublisher(fleet: Fleet, opts: PublisherOptions): Publisher
       await Promise.race([
         Promise.all(waits),
         new Promise<void>((_, rej) => {
-          timer = setTimeout(() => rej(new Error(`not every unit connected to ${opts.url} within ${timeoutMs} ms (${this.connected()}/${clients.size})`)), timeoutMs);
+          timer = setTimeout(
+            () => rej(new Error(`not every unit connected to ${opts.url} within ${timeoutMs} ms (${this.connected()}/${clients.size})`)),
+            timeoutMs,
+          );
         }),
       ]).finally(() => clearTimeout(timer));
     },
@@ -143,8 +150,19 @@ export function createPublisher(fleet: Fleet, opts: PublisherOptions): Publisher
       await Promise.all(
         [...clients.entries()].map(async ([serial, c]) => {
           if (c.connected) {
-            await within(c.publishAsync(unitTopic(serial, 'status'), JSON.stringify({ v: WIRE_VERSION, online: false, ts: isoUtc(opts.now()) }), { qos: 1, retain: true }).catch(() => {}), 2000);
-            await within(c.endAsync().catch(() => {}), 2000);
+            await within(
+              c
+                .publishAsync(unitTopic(serial, 'status'), JSON.stringify({ v: WIRE_VERSION, online: false, ts: isoUtc(opts.now()) }), {
+                  qos: 1,
+                  retain: true,
+                })
+                .catch(() => {}),
+              2000,
+            );
+            await within(
+              c.endAsync().catch(() => {}),
+              2000,
+            );
           }
           c.end(true); // no-op when already ended; stops reconnect attempts otherwise
         }),

@@ -65,7 +65,9 @@ export function skyField(sky: Sky): SkyField {
     for (let j = 0; j < 9; j++) c[j] = c[j]! + L * LAT_Y[9 * i + j]! * w;
   }
   const { k0, kx, ky, kz, kxy, kyz, kxz, kzz, kxx } = order2IrradianceForm(c);
-  const sources: SharpSource[] = sky.pointSources.filter((p) => p.irradianceWm2 > 0).map((p) => ({ kind: p.kind, direction: p.direction, irradianceWm2: p.irradianceWm2 }));
+  const sources: SharpSource[] = sky.pointSources
+    .filter((p) => p.irradianceWm2 > 0)
+    .map((p) => ({ kind: p.kind, direction: p.direction, irradianceWm2: p.irradianceWm2 }));
   const flat = new Float64Array(sources.length * 4);
   sources.forEach((s, i) => flat.set([s.direction[0], s.direction[1], s.direction[2], s.irradianceWm2], 4 * i));
   const nSrc = sources.length;

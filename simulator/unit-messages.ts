@@ -49,7 +49,15 @@ export function telemetryPayload(nowMs: number, u: TelemetryState): Telemetry {
 }
 
 export function weatherPayload(nowMs: number, w: WeatherNow): Weather {
-  return { v: WIRE_VERSION, ts: isoUtc(nowMs), ghiWm2: r1(clamp(w.ghiWm2, ...R.ghiWm2)), dhiWm2: r1(clamp(w.dhiWm2, ...R.dhiWm2)), airTempC: r1(w.airTempC), windMs: r1(w.windMs), gustMs: r1(w.gustMs) };
+  return {
+    v: WIRE_VERSION,
+    ts: isoUtc(nowMs),
+    ghiWm2: r1(clamp(w.ghiWm2, ...R.ghiWm2)),
+    dhiWm2: r1(clamp(w.dhiWm2, ...R.dhiWm2)),
+    airTempC: r1(w.airTempC),
+    windMs: r1(w.windMs),
+    gustMs: r1(w.gustMs),
+  };
 }
 
 export function eventPayload(nowMs: number, e: Omit<UnitEvent, 'v' | 'ts'>): UnitEvent {

@@ -166,7 +166,14 @@ export class VirtualUnit {
     } else if (this.gotoCmd) {
       // target already set; wait for arrival
     } else {
-      const cfg = this.fx.deadbandOverride === null && this.fx.gainFactor === 1 ? this.config : { ...this.config, gain: this.config.gain * this.fx.gainFactor, deadbandWm2: this.fx.deadbandOverride ?? this.config.deadbandWm2 };
+      const cfg =
+        this.fx.deadbandOverride === null && this.fx.gainFactor === 1
+          ? this.config
+          : {
+              ...this.config,
+              gain: this.config.gain * this.fx.gainFactor,
+              deadbandWm2: this.fx.deadbandOverride ?? this.config.deadbandWm2,
+            };
       const out = controlStep(cfg, r, this.tilt.encoderDeg, dtS);
       setTarget(this.tiltSpec, this.tilt, this.tilt.encoderDeg + out.dTiltDeg);
       setTarget(this.azimuthSpec, this.azimuth, this.azimuth.encoderDeg + out.dAzimuthDeg);
@@ -204,8 +211,16 @@ export class VirtualUnit {
   handleCommand(cmd: Command, nowMs: number): void {
     const id = cmd.commandId;
     const refusal = commandRefusal(cmd, {
-      held: this.held, faultCode: this.faultCode, manualStow: this.manualStow, windStow: this.windStow, stuckStowed: this.fx.stuckStowed,
-      stowGustMs: this.stowGustMs, tiltSpec: this.tiltSpec, azimuthSpec: this.azimuthSpec, tiltEncoderDeg: this.tilt.encoderDeg, azimuthEncoderDeg: this.azimuth.encoderDeg,
+      held: this.held,
+      faultCode: this.faultCode,
+      manualStow: this.manualStow,
+      windStow: this.windStow,
+      stuckStowed: this.fx.stuckStowed,
+      stowGustMs: this.stowGustMs,
+      tiltSpec: this.tiltSpec,
+      azimuthSpec: this.azimuthSpec,
+      tiltEncoderDeg: this.tilt.encoderDeg,
+      azimuthEncoderDeg: this.azimuth.encoderDeg,
     });
     if (refusal !== null) return this.ack(nowMs, id, 'rejected', refusal);
     switch (cmd.kind) {
@@ -272,7 +287,11 @@ export class VirtualUnit {
         const e = FAULT_EFFECTS.trap;
         this.fx.detectorTiltOverride = e.detectorTiltDeg;
         const m = e.restartAzimuthMarginDeg;
-        this.startGoto(this.rng.uniform(e.restartTiltDeg[0], e.restartTiltDeg[1]), this.rng.uniform(this.azimuthSpec.minDeg + m, this.azimuthSpec.maxDeg - m), null);
+        this.startGoto(
+          this.rng.uniform(e.restartTiltDeg[0], e.restartTiltDeg[1]),
+          this.rng.uniform(this.azimuthSpec.minDeg + m, this.azimuthSpec.maxDeg - m),
+          null,
+        );
         break;
       }
       case 'stall':
@@ -366,14 +385,23 @@ export class VirtualUnit {
       if (!this.windStow && !this.held) {
         this.windStow = true;
         this.cancelMotions(now, 'interrupted by wind stow');
-        this.event(now, { kind: 'mode-change', mode: 'stowed', code: 'wind-stow', message: `gust ${gust.toFixed(1)} m/s above stow limit ${this.stowGustMs} m/s` });
+        this.event(now, {
+          kind: 'mode-change',
+          mode: 'stowed',
+          code: 'wind-stow',
+          message: `gust ${gust.toFixed(1)} m/s above stow limit ${this.stowGustMs} m/s`,
+        });
       }
     } else if (this.windStow) {
       this.calmS += dtS;
       if (this.calmS >= this.stowReleaseS) {
         this.windStow = false;
         this.balancedS = 0;
-        this.event(now, { kind: 'mode-change', code: 'wind-stow-released', message: `gusts below ${this.stowGustMs} m/s for ${this.stowReleaseS / 60} min` });
+        this.event(now, {
+          kind: 'mode-change',
+          code: 'wind-stow-released',
+          message: `gusts below ${this.stowGustMs} m/s for ${this.stowReleaseS / 60} min`,
+        });
       }
     }
   }
@@ -406,7 +434,11 @@ export class VirtualUnit {
     const { row, best, next } = takeScanSample(s, [t, a, r1(r.poaWm2)]);
     if (row) this.event(now, { kind: 'scan-samples', commandId: s.commandId, samples: row });
     if (best) {
-      this.event(now, { kind: 'scan-complete', commandId: s.commandId, message: `${s.all.length} samples; brightest ${best[2]} W/m² at tilt ${best[0]}°, azimuth ${best[1]}°` });
+      this.event(now, {
+        kind: 'scan-complete',
+        commandId: s.commandId,
+        message: `${s.all.length} samples; brightest ${best[2]} W/m² at tilt ${best[0]}°, azimuth ${best[1]}°`,
+      });
       this.scan = null;
       this.ack(now, s.commandId, 'done');
       this.startGoto(best[0], best[1], null); // continue climbing from the brightest sample
@@ -431,7 +463,11 @@ export class VirtualUnit {
   private cancelMotions(now: number, reason: string): void {
     if (this.scan) {
       this.ack(now, this.scan.commandId, 'rejected', reason);
-      this.event(now, { kind: 'scan-complete', commandId: this.scan.commandId, message: `scan ${reason} after ${this.scan.all.length} samples` });
+      this.event(now, {
+        kind: 'scan-complete',
+        commandId: this.scan.commandId,
+        message: `scan ${reason} after ${this.scan.all.length} samples`,
+      });
       this.scan = null;
     }
     if (this.gotoCmd) {
@@ -453,7 +489,11 @@ export class VirtualUnit {
       const ax = this.tilt.stalled ? this.tilt : this.azimuth;
       this.faultCode = 'actuator-stall';
       this.cancelMotions(now, 'actuator stall');
-      this.event(now, { kind: 'fault', code: 'actuator-stall', message: `${this.tilt.stalled ? 'tilt' : 'azimuth'} axis does not move (motor ${ax.currentA.toFixed(1)} A)` });
+      this.event(now, {
+        kind: 'fault',
+        code: 'actuator-stall',
+        message: `${this.tilt.stalled ? 'tilt' : 'azimuth'} axis does not move (motor ${ax.currentA.toFixed(1)} A)`,
+      });
     }
   }
 
@@ -472,7 +512,16 @@ export class VirtualUnit {
   }
 
   private report(now: number, r: Readings): void {
-    const payload: Telemetry = telemetryPayload(now, { seq: this.seq++, readings: r, tilt: this.tilt, azimuth: this.azimuth, dcW: this.lastDcW, moduleTempC: this.lastModuleTempC, mode: this.mode, firmware: this.firmware });
+    const payload: Telemetry = telemetryPayload(now, {
+      seq: this.seq++,
+      readings: r,
+      tilt: this.tilt,
+      azimuth: this.azimuth,
+      dcW: this.lastDcW,
+      moduleTempC: this.lastModuleTempC,
+      mode: this.mode,
+      firmware: this.firmware,
+    });
     this.outbox.push({ serial: this.serial, leaf: 'telemetry', payload });
   }
 

@@ -44,7 +44,10 @@ export function newScan(commandId: string, tiltSpec: AxisSpec, azimuthSpec: Axis
  * Records the sample at the current waypoint. Returns the finished row (to send) if this sample ends one, and the
  * brightest sample once the raster is done (else the next waypoint).
  */
-export function takeScanSample(s: ScanState, sample: ScanSample): { row: ScanSample[] | null; best: ScanSample | null; next: [number, number] | null } {
+export function takeScanSample(
+  s: ScanState,
+  sample: ScanSample,
+): { row: ScanSample[] | null; best: ScanSample | null; next: [number, number] | null } {
   s.row.push(sample);
   s.all.push(sample);
   s.index++;

@@ -25,5 +25,6 @@ const DENIED = { acl: 'acl_denied', retain: 'retain_denied', too_large: 'packet_
 
 /** Counts what the broker refused with the ingest's reject reasons, so `GET /api/metrics` shows every bad message in one place. */
 export function countDenied(ingest: IngestService): NonNullable<BrokerOptions['onDenied']> {
-  return (p: Principal | undefined, topic: string, reason: DenyReason) => ingest.countDenied(p?.kind === 'unit' ? p.serial : '?', DENIED[reason], topic);
+  return (p: Principal | undefined, topic: string, reason: DenyReason) =>
+    ingest.countDenied(p?.kind === 'unit' ? p.serial : '?', DENIED[reason], topic);
 }

@@ -54,11 +54,26 @@ export class AlarmRepository {
   }
 
   async markSeen(id: number, s: AlarmSeen): Promise<void> {
-    await this.db('alarms').where({ id }).update({ severity: s.severity, message: s.message.slice(0, 600), advice: s.advice.slice(0, 600), evidence: JSON.stringify(s.evidence), last_seen_at: new Date(s.lastSeenMs) });
+    await this.db('alarms')
+      .where({ id })
+      .update({
+        severity: s.severity,
+        message: s.message.slice(0, 600),
+        advice: s.advice.slice(0, 600),
+        evidence: JSON.stringify(s.evidence),
+        last_seen_at: new Date(s.lastSeenMs),
+      });
   }
 
   async markCleared(id: number, c: AlarmClear): Promise<void> {
-    await this.db('alarms').where({ id }).update({ state: 'cleared', cleared_at: c.clearedMs === null ? null : new Date(c.clearedMs), clear_reason: c.clearReason, last_seen_at: new Date(c.lastSeenMs) });
+    await this.db('alarms')
+      .where({ id })
+      .update({
+        state: 'cleared',
+        cleared_at: c.clearedMs === null ? null : new Date(c.clearedMs),
+        clear_reason: c.clearReason,
+        last_seen_at: new Date(c.lastSeenMs),
+      });
   }
 
   /** The id of the active alarm of a unit (or a site, unitId null) and kind, if any (dedupe across restarts). */
@@ -69,7 +84,9 @@ export class AlarmRepository {
   }
 
   async list(scope: SiteScope, f: AlarmFilter): Promise<AlarmView[]> {
-    const q = this.base(scope).orderBy('a.raised_at', 'desc').limit(f.limit ?? 500);
+    const q = this.base(scope)
+      .orderBy('a.raised_at', 'desc')
+      .limit(f.limit ?? 500);
     if (f.siteId !== undefined) q.where('a.site_id', f.siteId);
     if (f.unitId !== undefined) q.where('a.unit_id', f.unitId);
     if (f.state) q.where('a.state', f.state);
@@ -106,20 +123,44 @@ export class AlarmRepository {
 
 function rowOf(a: Alarm): Omit<AlarmRow, 'id'> {
   return {
-    unit_id: a.unitId, site_id: a.siteId, kind: a.kind, severity: a.severity, state: a.state,
-    message: a.message.slice(0, 600), advice: a.advice.slice(0, 600), evidence: JSON.stringify(a.evidence),
-    first_seen_at: new Date(a.firstSeenMs), raised_at: new Date(a.raisedMs), last_seen_at: new Date(a.lastSeenMs),
-    cleared_at: a.clearedMs === null ? null : new Date(a.clearedMs), clear_reason: a.clearReason,
-    acknowledged_at: null, acknowledged_by: null,
+    unit_id: a.unitId,
+    site_id: a.siteId,
+    kind: a.kind,
+    severity: a.severity,
+    state: a.state,
+    message: a.message.slice(0, 600),
+    advice: a.advice.slice(0, 600),
+    evidence: JSON.stringify(a.evidence),
+    first_seen_at: new Date(a.firstSeenMs),
+    raised_at: new Date(a.raisedMs),
+    last_seen_at: new Date(a.lastSeenMs),
+    cleared_at: a.clearedMs === null ? null : new Date(a.clearedMs),
+    clear_reason: a.clearReason,
+    acknowledged_at: null,
+    acknowledged_by: null,
   };
 }
 
 function toView(r: AlarmListRow): AlarmView {
   const d = (x: Date | null) => (x === null ? null : new Date(x).toISOString());
   return {
-    id: r.id, kind: r.kind, severity: r.severity, state: r.state, unitId: r.unit_id, serial: r.serial, siteId: r.site_id, siteName: r.site_name,
-    message: r.message, advice: r.advice, evidence: typeof r.evidence === 'string' ? JSON.parse(r.evidence) : r.evidence,
-    firstSeenAt: d(r.first_seen_at)!, raisedAt: d(r.raised_at)!, lastSeenAt: d(r.last_seen_at)!, clearedAt: d(r.cleared_at), clearReason: r.clear_reason,
-    acknowledgedAt: d(r.acknowledged_at), acknowledgedBy: r.acknowledged_by_name,
+    id: r.id,
+    kind: r.kind,
+    severity: r.severity,
+    state: r.state,
+    unitId: r.unit_id,
+    serial: r.serial,
+    siteId: r.site_id,
+    siteName: r.site_name,
+    message: r.message,
+    advice: r.advice,
+    evidence: typeof r.evidence === 'string' ? JSON.parse(r.evidence) : r.evidence,
+    firstSeenAt: d(r.first_seen_at)!,
+    raisedAt: d(r.raised_at)!,
+    lastSeenAt: d(r.last_seen_at)!,
+    clearedAt: d(r.cleared_at),
+    clearReason: r.clear_reason,
+    acknowledgedAt: d(r.acknowledged_at),
+    acknowledgedBy: r.acknowledged_by_name,
   };
 }

@@ -84,15 +84,24 @@ export class AuditRepository {
       filtered()
         .leftJoin('users as u', 'u.id', 'a.user_id')
         .select('a.id', 'a.at', 'a.user_id', 'a.action', 'a.target', 'a.detail', 'u.name as user_name', 'u.email as user_email')
-        .orderBy([{ column: 'a.at', order: 'desc' }, { column: 'a.id', order: 'desc' }])
+        .orderBy([
+          { column: 'a.at', order: 'desc' },
+          { column: 'a.id', order: 'desc' },
+        ])
         .limit(limit)
         .offset(offset),
     ]);
     return {
       total: Number((count as { n: number | string } | undefined)?.n ?? 0),
       rows: (rows as AuditListRow[]).map((r) => ({
-        id: Number(r.id), at: new Date(r.at), userId: r.user_id, action: r.action, target: r.target,
-        detail: typeof r.detail === 'string' ? JSON.parse(r.detail) : r.detail, userName: r.user_name, userEmail: r.user_email,
+        id: Number(r.id),
+        at: new Date(r.at),
+        userId: r.user_id,
+        action: r.action,
+        target: r.target,
+        detail: typeof r.detail === 'string' ? JSON.parse(r.detail) : r.detail,
+        userName: r.user_name,
+        userEmail: r.user_email,
       })),
     };
   }
@@ -106,13 +115,25 @@ export class AuditRepository {
       pick(ids.owners, (x) => this.db('owners').whereIn('id', x).select('id', 'name')),
       pick(ids.users, (x) => this.db('users').whereIn('id', x).select('id', 'name')),
       pick(ids.alarms, (x) =>
-        this.db('alarms as a').join('sites as s', 's.id', 'a.site_id').leftJoin('units as u', 'u.id', 'a.unit_id').whereIn('a.id', x)
-          .select('a.id', 'a.kind', 'u.serial', 's.name as site_name')),
+        this.db('alarms as a')
+          .join('sites as s', 's.id', 'a.site_id')
+          .leftJoin('units as u', 'u.id', 'a.unit_id')
+          .whereIn('a.id', x)
+          .select('a.id', 'a.kind', 'u.serial', 's.name as site_name'),
+      ),
     ]);
     const byId = (rows: { id: number; name: string }[]) => new Map(rows.map((r) => [r.id, r.name]));
     return {
-      units: byId(units), sites: byId(sites), owners: byId(owners), users: byId(users),
-      alarms: new Map((alarms as { id: number; kind: string; serial: string | null; site_name: string }[]).map((a) => [a.id, { kind: a.kind, serial: a.serial, siteName: a.site_name }])),
+      units: byId(units),
+      sites: byId(sites),
+      owners: byId(owners),
+      users: byId(users),
+      alarms: new Map(
+        (alarms as { id: number; kind: string; serial: string | null; site_name: string }[]).map((a) => [
+          a.id,
+          { kind: a.kind, serial: a.serial, siteName: a.site_name },
+        ]),
+      ),
     };
   }
 }

@@ -46,8 +46,17 @@ export class CommandRepository {
 
   async insert(c: StoredCommand): Promise<void> {
     const row: CommandRow = {
-      id: c.id, unit_id: c.unitId, kind: c.kind, params: c.params ? JSON.stringify(c.params) : null, status: c.status, reason: clip(c.reason),
-      issued_by: c.issuedBy, issued_at: c.issuedAt, sent_at: c.sentAt, acked_at: c.ackedAt, finished_at: c.finishedAt,
+      id: c.id,
+      unit_id: c.unitId,
+      kind: c.kind,
+      params: c.params ? JSON.stringify(c.params) : null,
+      status: c.status,
+      reason: clip(c.reason),
+      issued_by: c.issuedBy,
+      issued_at: c.issuedAt,
+      sent_at: c.sentAt,
+      acked_at: c.ackedAt,
+      finished_at: c.finishedAt,
     };
     await this.db('commands').insert(row);
   }
@@ -75,23 +84,48 @@ export class CommandRepository {
   }
 
   async listForUnit(unitId: number, limit = 100): Promise<CommandView[]> {
-    return (await this.base().where('c.unit_id', unitId).orderBy([{ column: 'c.issued_at', order: 'desc' }, { column: 'c.seq', order: 'desc' }]).limit(limit)).map(toView);
+    return (
+      await this.base()
+        .where('c.unit_id', unitId)
+        .orderBy([
+          { column: 'c.issued_at', order: 'desc' },
+          { column: 'c.seq', order: 'desc' },
+        ])
+        .limit(limit)
+    ).map(toView);
   }
 
   /** Commands still waiting for the unit (queued, or sent and not yet answered), in the order issued. */
   async open(): Promise<StoredCommand[]> {
-    return (await this.db<CommandRow>('commands').whereIn('status', OPEN).orderBy([{ column: 'issued_at' }, { column: 'seq' }])).map(stored);
+    return (
+      await this.db<CommandRow>('commands')
+        .whereIn('status', OPEN)
+        .orderBy([{ column: 'issued_at' }, { column: 'seq' }])
+    ).map(stored);
   }
 
   /** A unit's queued commands in the order issued: the order they go out in. */
   async queuedForUnit(unitId: number): Promise<StoredCommand[]> {
-    return (await this.db<CommandRow>('commands').where({ unit_id: unitId, status: 'queued' }).orderBy([{ column: 'issued_at' }, { column: 'seq' }])).map(stored);
+    return (
+      await this.db<CommandRow>('commands')
+        .where({ unit_id: unitId, status: 'queued' })
+        .orderBy([{ column: 'issued_at' }, { column: 'seq' }])
+    ).map(stored);
   }
 
   /** Ends the unit's queued commands of these kinds as cancelled, with the reason; returns their ids. */
   async cancelQueued(unitId: number, kinds: readonly CommandKind[], reason: string, at: Date): Promise<string[]> {
-    const rows: { id: string }[] = await this.db('commands').where({ unit_id: unitId, status: 'queued' }).whereIn('kind', kinds).select('id');
-    if (rows.length) await this.db('commands').whereIn('id', rows.map((r) => r.id)).update({ status: 'cancelled', reason: clip(reason), finished_at: at });
+    const rows: { id: string }[] = await this.db('commands')
+      .where({ unit_id: unitId, status: 'queued' })
+      .whereIn('kind', kinds)
+      .select('id');
+    if (rows.length)
+      await this.db('commands')
+        .whereIn(
+          'id',
+          rows.map((r) => r.id),
+        )
+        .update({ status: 'cancelled', reason: clip(reason), finished_at: at });
     return rows.map((r) => r.id);
   }
 
@@ -100,9 +134,15 @@ export class CommandRepository {
    * order. Requests that changed nothing on the unit (a second hold, a release with other holds left) are not among them.
    */
   async lastHoldDelivery(unitId: number): Promise<StoredCommand | undefined> {
-    const r = await this.db<CommandRow>('commands').where({ unit_id: unitId }).whereIn('kind', HOLD_COMMANDS)
+    const r = await this.db<CommandRow>('commands')
+      .where({ unit_id: unitId })
+      .whereIn('kind', HOLD_COMMANDS)
       .andWhere((q) => q.where('status', 'queued').orWhereNotNull('sent_at'))
-      .orderBy([{ column: 'issued_at', order: 'desc' }, { column: 'seq', order: 'desc' }]).first();
+      .orderBy([
+        { column: 'issued_at', order: 'desc' },
+        { column: 'seq', order: 'desc' },
+      ])
+      .first();
     return r ? stored(r) : undefined;
   }
 
@@ -148,17 +188,33 @@ const paramsOf = (p: CommandRow['params']) => (p ? (typeof p === 'string' ? JSON
 
 function stored(r: CommandRow): StoredCommand {
   return {
-    id: r.id, unitId: r.unit_id, kind: r.kind, params: paramsOf(r.params), status: r.status, reason: r.reason, issuedBy: r.issued_by,
-    issuedAt: r.issued_at, sentAt: r.sent_at, ackedAt: r.acked_at, finishedAt: r.finished_at,
+    id: r.id,
+    unitId: r.unit_id,
+    kind: r.kind,
+    params: paramsOf(r.params),
+    status: r.status,
+    reason: r.reason,
+    issuedBy: r.issued_by,
+    issuedAt: r.issued_at,
+    sentAt: r.sent_at,
+    ackedAt: r.acked_at,
+    finishedAt: r.finished_at,
   };
 }
 
 function toView(r: CommandRow & { issued_by_name: string }): CommandView {
   return {
-    id: r.id, unitId: r.unit_id, kind: r.kind,
+    id: r.id,
+    unitId: r.unit_id,
+    kind: r.kind,
     params: paramsOf(r.params),
-    status: r.status, reason: r.reason, issuedBy: { id: r.issued_by, name: r.issued_by_name },
-    issuedAt: r.issued_at.toISOString(), sentAt: iso(r.sent_at), ackedAt: iso(r.acked_at), finishedAt: iso(r.finished_at),
+    status: r.status,
+    reason: r.reason,
+    issuedBy: { id: r.issued_by, name: r.issued_by_name },
+    issuedAt: r.issued_at.toISOString(),
+    sentAt: iso(r.sent_at),
+    ackedAt: iso(r.acked_at),
+    finishedAt: iso(r.finished_at),
     expiresAt: null,
   };
 }

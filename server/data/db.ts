@@ -20,7 +20,14 @@ export function createDb(db: Config['db']): Db {
       dateStrings: false,
     },
     // Session time zone UTC, so SQL date functions agree with the UTC values mysql2 writes.
-    pool: { min: 0, max: db.poolMax, afterCreate: (conn: { query: (sql: string, cb: (err: Error | null) => void) => void }, done: (err: Error | null, conn: unknown) => void) => conn.query("SET time_zone = '+00:00'", (err) => done(err, conn)) },
+    pool: {
+      min: 0,
+      max: db.poolMax,
+      afterCreate: (
+        conn: { query: (sql: string, cb: (err: Error | null) => void) => void },
+        done: (err: Error | null, conn: unknown) => void,
+      ) => conn.query("SET time_zone = '+00:00'", (err) => done(err, conn)),
+    },
     migrations: { migrationSource, tableName: 'knex_migrations' },
   });
 }
@@ -39,8 +46,10 @@ export async function migrateLatest(db: Db): Promise<string[]> {
 export function describeDbError(err: unknown, cfg: Config['db']): string {
   const code = (err as { code?: string })?.code;
   const where = `MariaDB at ${cfg.host}:${cfg.port} (database ${cfg.database}, user ${cfg.user})`;
-  if (code === 'ECONNREFUSED') return `Cannot reach ${where}: connection refused. Start it with "npm run db -- start" or set BW_DB_HOST/BW_DB_PORT.`;
-  if (code === 'ER_ACCESS_DENIED_ERROR') return `${where} refused the credentials. Check BW_DB_USER/BW_DB_PASSWORD (or run "npm run db -- start" to create the account).`;
+  if (code === 'ECONNREFUSED')
+    return `Cannot reach ${where}: connection refused. Start it with "npm run db -- start" or set BW_DB_HOST/BW_DB_PORT.`;
+  if (code === 'ER_ACCESS_DENIED_ERROR')
+    return `${where} refused the credentials. Check BW_DB_USER/BW_DB_PASSWORD (or run "npm run db -- start" to create the account).`;
   if (code === 'ER_BAD_DB_ERROR') return `${where}: the database does not exist. Run "npm run db -- start" to create it.`;
   return `Cannot use ${where}: ${(err as Error)?.message ?? String(err)}`;
 }

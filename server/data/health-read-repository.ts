@@ -15,13 +15,23 @@ export class HealthReadRepository {
 
   /** In-plane irradiance of the unit's last report before an instant that was not part of a scan. */
   async poaBefore(unitId: number, before: Date): Promise<number | null> {
-    const r = await this.db('telemetry').where('unit_id', unitId).andWhere('ts', '<', before).whereNot('mode', 'scanning').orderBy('ts', 'desc').first('poa_wm2');
+    const r = await this.db('telemetry')
+      .where('unit_id', unitId)
+      .andWhere('ts', '<', before)
+      .whereNot('mode', 'scanning')
+      .orderBy('ts', 'desc')
+      .first('poa_wm2');
     return r ? Number(r.poa_wm2) : null;
   }
 
   /** Stored telemetry of some units over a range, in time order, back in wire form (on-demand runs). */
   async telemetryRange(unitIds: number[], from: Date, to: Date, limit: number): Promise<{ unitId: number; t: Telemetry }[]> {
-    const rows: Record<string, unknown>[] = await this.db('telemetry').whereIn('unit_id', unitIds).andWhere('ts', '>=', from).andWhere('ts', '<', to).orderBy('ts').limit(limit);
+    const rows: Record<string, unknown>[] = await this.db('telemetry')
+      .whereIn('unit_id', unitIds)
+      .andWhere('ts', '>=', from)
+      .andWhere('ts', '<', to)
+      .orderBy('ts')
+      .limit(limit);
     return rows.map((r) => ({ unitId: Number(r['unit_id']), t: telemetryOf(r) }));
   }
 
@@ -51,10 +61,23 @@ const bodyOf = (body: unknown) => (typeof body === 'string' ? JSON.parse(body) :
 function telemetryOf(r: Record<string, unknown>): Telemetry {
   const n = (k: string) => Number(r[k]);
   return {
-    v: WIRE_VERSION, seq: n('seq'), ts: new Date(r['ts'] as Date).toISOString(),
-    tiltPlusWm2: n('tilt_plus_wm2'), tiltMinusWm2: n('tilt_minus_wm2'), azimuthPlusWm2: n('azimuth_plus_wm2'), azimuthMinusWm2: n('azimuth_minus_wm2'),
-    poaWm2: n('poa_wm2'), tiltDeg: n('tilt_deg'), azimuthDeg: n('azimuth_deg'), cmdTiltDeg: n('cmd_tilt_deg'), cmdAzimuthDeg: n('cmd_azimuth_deg'),
-    tiltMotorA: n('tilt_motor_a'), azimuthMotorA: n('azimuth_motor_a'), dcPowerW: n('dc_power_w'), moduleTempC: n('module_temp_c'),
-    mode: r['mode'] as Telemetry['mode'], firmware: '',
+    v: WIRE_VERSION,
+    seq: n('seq'),
+    ts: new Date(r['ts'] as Date).toISOString(),
+    tiltPlusWm2: n('tilt_plus_wm2'),
+    tiltMinusWm2: n('tilt_minus_wm2'),
+    azimuthPlusWm2: n('azimuth_plus_wm2'),
+    azimuthMinusWm2: n('azimuth_minus_wm2'),
+    poaWm2: n('poa_wm2'),
+    tiltDeg: n('tilt_deg'),
+    azimuthDeg: n('azimuth_deg'),
+    cmdTiltDeg: n('cmd_tilt_deg'),
+    cmdAzimuthDeg: n('cmd_azimuth_deg'),
+    tiltMotorA: n('tilt_motor_a'),
+    azimuthMotorA: n('azimuth_motor_a'),
+    dcPowerW: n('dc_power_w'),
+    moduleTempC: n('module_temp_c'),
+    mode: r['mode'] as Telemetry['mode'],
+    firmware: '',
   };
 }

@@ -23,7 +23,13 @@ export class HealthSettingsRepository {
    * Replaces a site's overrides and writes the audit entry in the same transaction; `audit` is given the overrides
    * being replaced (read under a row lock, so two saves at once each see what they replace).
    */
-  async saveSettings(siteId: number, settings: Record<string, number>, userId: number, at: Date, audit: (before: StoredOverrides | null) => Omit<AuditEntry, 'userId'>): Promise<void> {
+  async saveSettings(
+    siteId: number,
+    settings: Record<string, number>,
+    userId: number,
+    at: Date,
+    audit: (before: StoredOverrides | null) => Omit<AuditEntry, 'userId'>,
+  ): Promise<void> {
     await this.db.transaction(async (trx) => {
       // Lock the site's row (it always exists): locking a settings row that is not there yet takes a gap lock, and two
       // first saves of one site at once would then deadlock on their inserts.

@@ -27,7 +27,10 @@ export class OwnerRepository {
   }
 
   async update(id: number, p: { name?: string; contactEmail?: string | null }): Promise<void> {
-    const patch = { ...(p.name !== undefined ? { name: p.name } : {}), ...(p.contactEmail !== undefined ? { contact_email: p.contactEmail } : {}) };
+    const patch = {
+      ...(p.name !== undefined ? { name: p.name } : {}),
+      ...(p.contactEmail !== undefined ? { contact_email: p.contactEmail } : {}),
+    };
     if (Object.keys(patch).length) await this.db('owners').where({ id }).update(patch);
   }
 }

@@ -16,7 +16,10 @@ export class SessionRepository {
   constructor(private readonly db: Db) {}
 
   async insert(s: { id: string; userId: number; expiresAt: Date }): Promise<void> {
-    await this.db('sessions').insert({ id: s.id, user_id: s.userId, expires_at: s.expiresAt } satisfies Pick<SessionRow, 'id' | 'user_id' | 'expires_at'>);
+    await this.db('sessions').insert({ id: s.id, user_id: s.userId, expires_at: s.expiresAt } satisfies Pick<
+      SessionRow,
+      'id' | 'user_id' | 'expires_at'
+    >);
   }
 
   /** The sessions among `ids` that are neither revoked nor past their end, each with its user (disabled users included). */
@@ -29,7 +32,16 @@ export class SessionRepository {
         .whereNull('s.revoked_at')
         .where('s.expires_at', '>', now)
         .select('s.id as session_id', 'u.id', 'u.email', 'u.name', 'u.role', 'u.owner_id', 'u.disabled');
-      for (const r of rows) out.push({ sessionId: r.session_id, id: r.id, email: r.email, name: r.name, role: r.role, ownerId: r.owner_id, disabled: Boolean(r.disabled) });
+      for (const r of rows)
+        out.push({
+          sessionId: r.session_id,
+          id: r.id,
+          email: r.email,
+          name: r.name,
+          role: r.role,
+          ownerId: r.owner_id,
+          disabled: Boolean(r.disabled),
+        });
     }
     return out;
   }

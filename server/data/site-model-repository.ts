@@ -27,7 +27,9 @@ export class SiteModelRepository {
 
   /** Replaces the site's survey; returns whether the site exists. */
   async saveSurvey(siteId: number, survey: SiteSurvey): Promise<boolean> {
-    const n = await this.db('sites').where({ id: siteId }).update({ survey: JSON.stringify(survey) });
+    const n = await this.db('sites')
+      .where({ id: siteId })
+      .update({ survey: JSON.stringify(survey) });
     return n > 0;
   }
 

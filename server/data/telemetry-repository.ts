@@ -26,8 +26,24 @@ export interface TelemetryRow {
 }
 
 export const TELEMETRY_COLUMNS: (keyof TelemetryRow)[] = [
-  'unit_id', 'ts', 'seq', 'tilt_plus_wm2', 'tilt_minus_wm2', 'azimuth_plus_wm2', 'azimuth_minus_wm2', 'poa_wm2', 'tilt_deg',
-  'azimuth_deg', 'cmd_tilt_deg', 'cmd_azimuth_deg', 'tilt_motor_a', 'azimuth_motor_a', 'dc_power_w', 'module_temp_c', 'mode', 'received_at',
+  'unit_id',
+  'ts',
+  'seq',
+  'tilt_plus_wm2',
+  'tilt_minus_wm2',
+  'azimuth_plus_wm2',
+  'azimuth_minus_wm2',
+  'poa_wm2',
+  'tilt_deg',
+  'azimuth_deg',
+  'cmd_tilt_deg',
+  'cmd_azimuth_deg',
+  'tilt_motor_a',
+  'azimuth_motor_a',
+  'dc_power_w',
+  'module_temp_c',
+  'mode',
+  'received_at',
 ];
 
 /** A unit's newest stored report (what a restart rebuilds the live picture and the comms watch from). */
@@ -49,25 +65,63 @@ export interface LatestReport {
   moduleTempC: number;
 }
 
-export interface EventRow { unit_id: number; ts: Date; kind: string; body: string }
-export interface WeatherRow { site_id: number; ts: Date; ghi_wm2: number; dhi_wm2: number | null; air_temp_c: number; wind_ms: number; gust_ms: number }
+export interface EventRow {
+  unit_id: number;
+  ts: Date;
+  kind: string;
+  body: string;
+}
+export interface WeatherRow {
+  site_id: number;
+  ts: Date;
+  ghi_wm2: number;
+  dhi_wm2: number | null;
+  air_temp_c: number;
+  wind_ms: number;
+  gust_ms: number;
+}
 
 /** The stored row of a validated report (`tsMs` its parsed timestamp, `receivedMs` when it arrived). */
 export function telemetryRowOf(unitId: number, t: Telemetry, tsMs: number, receivedMs: number): TelemetryRow {
   return {
-    unit_id: unitId, ts: new Date(tsMs), seq: t.seq, tilt_plus_wm2: t.tiltPlusWm2, tilt_minus_wm2: t.tiltMinusWm2,
-    azimuth_plus_wm2: t.azimuthPlusWm2, azimuth_minus_wm2: t.azimuthMinusWm2, poa_wm2: t.poaWm2, tilt_deg: t.tiltDeg,
-    azimuth_deg: t.azimuthDeg, cmd_tilt_deg: t.cmdTiltDeg, cmd_azimuth_deg: t.cmdAzimuthDeg, tilt_motor_a: t.tiltMotorA,
-    azimuth_motor_a: t.azimuthMotorA, dc_power_w: t.dcPowerW, module_temp_c: t.moduleTempC, mode: t.mode, received_at: new Date(receivedMs),
+    unit_id: unitId,
+    ts: new Date(tsMs),
+    seq: t.seq,
+    tilt_plus_wm2: t.tiltPlusWm2,
+    tilt_minus_wm2: t.tiltMinusWm2,
+    azimuth_plus_wm2: t.azimuthPlusWm2,
+    azimuth_minus_wm2: t.azimuthMinusWm2,
+    poa_wm2: t.poaWm2,
+    tilt_deg: t.tiltDeg,
+    azimuth_deg: t.azimuthDeg,
+    cmd_tilt_deg: t.cmdTiltDeg,
+    cmd_azimuth_deg: t.cmdAzimuthDeg,
+    tilt_motor_a: t.tiltMotorA,
+    azimuth_motor_a: t.azimuthMotorA,
+    dc_power_w: t.dcPowerW,
+    module_temp_c: t.moduleTempC,
+    mode: t.mode,
+    received_at: new Date(receivedMs),
   };
 }
 
 /** The stored row of a validated unit event. */
-export const eventRowOf = (unitId: number, e: UnitEvent, tsMs: number): EventRow => ({ unit_id: unitId, ts: new Date(tsMs), kind: e.kind, body: JSON.stringify(e) });
+export const eventRowOf = (unitId: number, e: UnitEvent, tsMs: number): EventRow => ({
+  unit_id: unitId,
+  ts: new Date(tsMs),
+  kind: e.kind,
+  body: JSON.stringify(e),
+});
 
 /** The stored row of a validated weather reading of a site. */
 export const weatherRowOf = (siteId: number, w: Weather, tsMs: number): WeatherRow => ({
-  site_id: siteId, ts: new Date(tsMs), ghi_wm2: w.ghiWm2, dhi_wm2: w.dhiWm2 ?? null, air_temp_c: w.airTempC, wind_ms: w.windMs, gust_ms: w.gustMs,
+  site_id: siteId,
+  ts: new Date(tsMs),
+  ghi_wm2: w.ghiWm2,
+  dhi_wm2: w.dhiWm2 ?? null,
+  air_temp_c: w.airTempC,
+  wind_ms: w.windMs,
+  gust_ms: w.gustMs,
 });
 
 const MINUTE_MS = 60_000;
@@ -95,21 +149,39 @@ export class TelemetryRepository {
    */
   async insertTelemetry(rows: TelemetryRow[]): Promise<string[]> {
     if (!rows.length) return [];
-    const out = await this.insertIgnoreReturning(this.db, 'telemetry', TELEMETRY_COLUMNS as string[], rows as unknown as Record<string, unknown>[], ['unit_id', 'ts']);
+    const out = await this.insertIgnoreReturning(
+      this.db,
+      'telemetry',
+      TELEMETRY_COLUMNS as string[],
+      rows as unknown as Record<string, unknown>[],
+      ['unit_id', 'ts'],
+    );
     return out.map((r) => telemetryKey(Number(r['unit_id']), r['ts'] as Date));
   }
 
   /** Like insertTelemetry, for unit events (key: unit, ts, kind). */
   async insertEvents(rows: EventRow[]): Promise<string[]> {
     if (!rows.length) return [];
-    const out = await this.insertIgnoreReturning(this.db, 'unit_events', ['unit_id', 'ts', 'kind', 'body'], rows as unknown as Record<string, unknown>[], ['unit_id', 'ts', 'kind']);
+    const out = await this.insertIgnoreReturning(
+      this.db,
+      'unit_events',
+      ['unit_id', 'ts', 'kind', 'body'],
+      rows as unknown as Record<string, unknown>[],
+      ['unit_id', 'ts', 'kind'],
+    );
     return out.map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])));
   }
 
   /** Like insertTelemetry, for site weather readings (key: site, ts). */
   async insertWeather(rows: WeatherRow[]): Promise<string[]> {
     if (!rows.length) return [];
-    const out = await this.insertIgnoreReturning(this.db, 'weather', ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'], rows as unknown as Record<string, unknown>[], ['site_id', 'ts']);
+    const out = await this.insertIgnoreReturning(
+      this.db,
+      'weather',
+      ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'],
+      rows as unknown as Record<string, unknown>[],
+      ['site_id', 'ts'],
+    );
     return out.map((r) => weatherKey(Number(r['site_id']), r['ts'] as Date));
   }
 
@@ -117,7 +189,10 @@ export class TelemetryRepository {
     const tuple = `(${cols.map(() => '?').join(',')})`;
     const values: Knex.RawBinding[] = [];
     for (const r of rows) for (const c of cols) values.push(r[c] as Knex.RawBinding);
-    return { sql: `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`, values };
+    return {
+      sql: `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`,
+      values,
+    };
   }
 
   /**
@@ -126,18 +201,40 @@ export class TelemetryRepository {
    */
   async latestPerUnit(): Promise<LatestReport[]> {
     const rows: TelemetryRow[] = await this.db('telemetry as t')
-      .join(this.db('telemetry').select('unit_id').max({ ts: 'ts' }).groupBy('unit_id').as('m'), (j) => j.on('m.unit_id', 't.unit_id').andOn('m.ts', 't.ts'))
+      .join(this.db('telemetry').select('unit_id').max({ ts: 'ts' }).groupBy('unit_id').as('m'), (j) =>
+        j.on('m.unit_id', 't.unit_id').andOn('m.ts', 't.ts'),
+      )
       .select('t.*');
     return rows.map((r) => ({
-      unitId: r.unit_id, ts: r.ts, receivedAt: r.received_at, mode: r.mode, poaWm2: r.poa_wm2, dcPowerW: r.dc_power_w, tiltDeg: r.tilt_deg,
-      azimuthDeg: r.azimuth_deg, cmdTiltDeg: r.cmd_tilt_deg, cmdAzimuthDeg: r.cmd_azimuth_deg, tiltPlusWm2: r.tilt_plus_wm2,
-      tiltMinusWm2: r.tilt_minus_wm2, azimuthPlusWm2: r.azimuth_plus_wm2, azimuthMinusWm2: r.azimuth_minus_wm2, moduleTempC: r.module_temp_c,
+      unitId: r.unit_id,
+      ts: r.ts,
+      receivedAt: r.received_at,
+      mode: r.mode,
+      poaWm2: r.poa_wm2,
+      dcPowerW: r.dc_power_w,
+      tiltDeg: r.tilt_deg,
+      azimuthDeg: r.azimuth_deg,
+      cmdTiltDeg: r.cmd_tilt_deg,
+      cmdAzimuthDeg: r.cmd_azimuth_deg,
+      tiltPlusWm2: r.tilt_plus_wm2,
+      tiltMinusWm2: r.tilt_minus_wm2,
+      azimuthPlusWm2: r.azimuth_plus_wm2,
+      azimuthMinusWm2: r.azimuth_minus_wm2,
+      moduleTempC: r.module_temp_c,
     }));
   }
 
-  private async insertIgnoreReturning(db: Knex, table: string, cols: string[], rows: Record<string, unknown>[], key: string[]): Promise<Record<string, unknown>[]> {
+  private async insertIgnoreReturning(
+    db: Knex,
+    table: string,
+    cols: string[],
+    rows: Record<string, unknown>[],
+    key: string[],
+  ): Promise<Record<string, unknown>[]> {
     const { sql, values } = this.statement(table, cols, rows);
-    const [res] = (await db.raw(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values)) as unknown as [Record<string, unknown>[]];
+    const [res] = (await db.raw(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values)) as unknown as [
+      Record<string, unknown>[],
+    ];
     return res;
   }
 
@@ -150,7 +247,17 @@ export class TelemetryRepository {
   /** Recomputes the 1-minute rollup of every minute in [from, to) for the given units (also used to rebuild rollups). */
   async rollupMinuteRange(unitIds: number[], from: Date, to: Date): Promise<void> {
     if (!unitIds.length) return;
-    const sets = ['samples', 'poa_avg_wm2', 'poa_max_wm2', 'dc_power_avg_w', 'energy_wh', 'tilt_avg_deg', 'azimuth_avg_deg', 'module_temp_avg_c', ...TRACE_EXTREMES.flatMap(([c]) => [`${c}_min`, `${c}_max`])];
+    const sets = [
+      'samples',
+      'poa_avg_wm2',
+      'poa_max_wm2',
+      'dc_power_avg_w',
+      'energy_wh',
+      'tilt_avg_deg',
+      'azimuth_avg_deg',
+      'module_temp_avg_c',
+      ...TRACE_EXTREMES.flatMap(([c]) => [`${c}_min`, `${c}_max`]),
+    ];
     await this.db.raw(
       `INSERT INTO telemetry_1m (unit_id, bucket, ${sets.join(', ')})
        SELECT unit_id, FROM_UNIXTIME(FLOOR(UNIX_TIMESTAMP(ts) / 60) * 60) AS minute, COUNT(*), AVG(poa_wm2), MAX(poa_wm2), AVG(dc_power_w), AVG(dc_power_w) / 60,
@@ -178,9 +285,16 @@ export class TelemetryRepository {
   }
 
   /** Quarter-hour rows of some units in a UTC window (used to sum local days). */
-  async quartersBetween(unitIds: number[], from: Date, to: Date): Promise<{ unitId: number; bucket: Date; energyWh: number; minutes: number }[]> {
+  async quartersBetween(
+    unitIds: number[],
+    from: Date,
+    to: Date,
+  ): Promise<{ unitId: number; bucket: Date; energyWh: number; minutes: number }[]> {
     const rows: { unit_id: number; bucket: Date; energy_wh: number; minutes: number }[] = await this.db('telemetry_15m')
-      .whereIn('unit_id', unitIds).andWhere('bucket', '>=', from).andWhere('bucket', '<', to).select('unit_id', 'bucket', 'energy_wh', 'minutes');
+      .whereIn('unit_id', unitIds)
+      .andWhere('bucket', '>=', from)
+      .andWhere('bucket', '<', to)
+      .select('unit_id', 'bucket', 'energy_wh', 'minutes');
     return rows.map((r) => ({ unitId: r.unit_id, bucket: r.bucket, energyWh: r.energy_wh, minutes: r.minutes }));
   }
 
@@ -195,13 +309,20 @@ export class TelemetryRepository {
   async purgeRawBefore(cutoff: Date, chunk = 50_000): Promise<number> {
     let total = 0;
     for (;;) {
-      const [res] = (await this.db.raw('DELETE FROM telemetry WHERE ts < ? LIMIT ?', [cutoff, chunk])) as unknown as [{ affectedRows: number }];
+      const [res] = (await this.db.raw('DELETE FROM telemetry WHERE ts < ? LIMIT ?', [cutoff, chunk])) as unknown as [
+        { affectedRows: number },
+      ];
       total += res.affectedRows;
       if (res.affectedRows < chunk) return total;
     }
   }
 
   recent(unitId: number, from: Date, to: Date, limit = 20_000): Promise<TelemetryRow[]> {
-    return this.db<TelemetryRow>('telemetry').where('unit_id', unitId).andWhere('ts', '>=', from).andWhere('ts', '<', to).orderBy('ts').limit(limit);
+    return this.db<TelemetryRow>('telemetry')
+      .where('unit_id', unitId)
+      .andWhere('ts', '>=', from)
+      .andWhere('ts', '<', to)
+      .orderBy('ts')
+      .limit(limit);
   }
 }

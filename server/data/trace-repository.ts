@@ -24,7 +24,15 @@ export class TraceRepository {
    * Reads the primary key range (unit_id, ts) only; the grouping happens in the database. Long ranges are split into
    * `parts` bucket-aligned slices queried at once, so the database can use more than one core.
    */
-  async buckets(unitId: number, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[], parts = 1, origin: Date = from): Promise<BucketRow[]> {
+  async buckets(
+    unitId: number,
+    from: Date,
+    to: Date,
+    bucketMs: number,
+    quantities: readonly TraceQuantity[],
+    parts = 1,
+    origin: Date = from,
+  ): Promise<BucketRow[]> {
     const aggregates = quantities.map((q) => `MIN(${traceSql(q)}) AS \`${q}_lo\`, MAX(${traceSql(q)}) AS \`${q}_hi\``).join(', ');
     const sql = `SELECT TIMESTAMPDIFF(SECOND, ?, ts) DIV ? AS b, COUNT(*) AS n, ${aggregates}
        FROM telemetry WHERE unit_id = ? AND ts >= ? AND ts < ?
@@ -51,8 +59,17 @@ export class TraceRepository {
    * The same buckets read from the 1-minute rollup over [from, to) (minute-aligned; `bucketMs` a whole number of minutes):
    * a month is 43,200 rows instead of half a million.
    */
-  async bucketsFromMinutes(unitId: number, origin: Date, from: Date, to: Date, bucketMs: number, quantities: readonly TraceQuantity[]): Promise<BucketRow[]> {
-    const aggregates = quantities.map((q) => `MIN(${traceColumn(q)}_min) AS \`${q}_lo\`, MAX(${traceColumn(q)}_max) AS \`${q}_hi\``).join(', ');
+  async bucketsFromMinutes(
+    unitId: number,
+    origin: Date,
+    from: Date,
+    to: Date,
+    bucketMs: number,
+    quantities: readonly TraceQuantity[],
+  ): Promise<BucketRow[]> {
+    const aggregates = quantities
+      .map((q) => `MIN(${traceColumn(q)}_min) AS \`${q}_lo\`, MAX(${traceColumn(q)}_max) AS \`${q}_hi\``)
+      .join(', ');
     const [rows] = (await this.db.raw(
       `SELECT TIMESTAMPDIFF(SECOND, ?, bucket) DIV ? AS b, SUM(samples) AS n, ${aggregates}
        FROM telemetry_1m WHERE unit_id = ? AND bucket >= ? AND bucket < ? GROUP BY b ORDER BY b`,
@@ -70,8 +87,21 @@ export class TraceRepository {
       .orderBy('ts')
       .limit(limit)
       .select(
-        'ts', 'mode', 'tilt_plus_wm2', 'tilt_minus_wm2', 'azimuth_plus_wm2', 'azimuth_minus_wm2', 'poa_wm2', 'tilt_deg', 'azimuth_deg',
-        'cmd_tilt_deg', 'cmd_azimuth_deg', 'tilt_motor_a', 'azimuth_motor_a', 'dc_power_w', 'module_temp_c',
+        'ts',
+        'mode',
+        'tilt_plus_wm2',
+        'tilt_minus_wm2',
+        'azimuth_plus_wm2',
+        'azimuth_minus_wm2',
+        'poa_wm2',
+        'tilt_deg',
+        'azimuth_deg',
+        'cmd_tilt_deg',
+        'cmd_azimuth_deg',
+        'tilt_motor_a',
+        'azimuth_motor_a',
+        'dc_power_w',
+        'module_temp_c',
       );
   }
 
@@ -88,7 +118,12 @@ export class TraceRepository {
   }
 
   /** Alarms of the unit raised in the range, oldest first. */
-  alarms(unitId: number, from: Date, to: Date, limit = 500): Promise<{ raised_at: Date; kind: string; severity: string; message: string }[]> {
+  alarms(
+    unitId: number,
+    from: Date,
+    to: Date,
+    limit = 500,
+  ): Promise<{ raised_at: Date; kind: string; severity: string; message: string }[]> {
     return this.db('alarms')
       .where('unit_id', unitId)
       .andWhere('raised_at', '>=', from)

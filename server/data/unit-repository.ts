@@ -37,7 +37,10 @@ export class UnitRepository {
   constructor(private readonly db: Db) {}
 
   private base(scope: SiteScope) {
-    const q = this.db('units as u').join('sites as s', 's.id', 'u.site_id').select('u.*', 's.name as site_name', 's.owner_id').orderBy('u.serial');
+    const q = this.db('units as u')
+      .join('sites as s', 's.id', 'u.site_id')
+      .select('u.*', 's.name as site_name', 's.owner_id')
+      .orderBy('u.serial');
     if (scope.ownerId !== null) q.where('s.owner_id', scope.ownerId);
     return q;
   }
@@ -54,9 +57,13 @@ export class UnitRepository {
   }
 
   /** Credentials lookup for the broker: serial → secret hash and whether the unit may connect. */
-  async findCredentials(serial: string): Promise<{ id: number; serial: string; siteId: number; deviceSecretHash: string; disabled: boolean } | undefined> {
+  async findCredentials(
+    serial: string,
+  ): Promise<{ id: number; serial: string; siteId: number; deviceSecretHash: string; disabled: boolean } | undefined> {
     const r = await this.db<UnitRow>('units').where({ serial }).first('id', 'serial', 'site_id', 'device_secret_hash', 'disabled');
-    return r ? { id: r.id, serial: r.serial, siteId: r.site_id, deviceSecretHash: r.device_secret_hash, disabled: Boolean(r.disabled) } : undefined;
+    return r
+      ? { id: r.id, serial: r.serial, siteId: r.site_id, deviceSecretHash: r.device_secret_hash, disabled: Boolean(r.disabled) }
+      : undefined;
   }
 
   /** Every unit with its site's owner and time zone (the unit directory's load). */
@@ -65,8 +72,14 @@ export class UnitRepository {
       .join('sites as s', 's.id', 'u.site_id')
       .select('u.id', 'u.serial', 'u.site_id', 's.owner_id', 's.time_zone', 'u.disabled', 'u.detector_tilt_deg', 'u.weather_station');
     return rows.map((r) => ({
-      id: r.id, serial: r.serial, siteId: r.site_id, ownerId: r.owner_id, timeZone: r.time_zone,
-      disabled: Boolean(r.disabled), detectorTiltDeg: r.detector_tilt_deg, weatherStation: Boolean(r.weather_station),
+      id: r.id,
+      serial: r.serial,
+      siteId: r.site_id,
+      ownerId: r.owner_id,
+      timeZone: r.time_zone,
+      disabled: Boolean(r.disabled),
+      detectorTiltDeg: r.detector_tilt_deg,
+      weatherStation: Boolean(r.weather_station),
     }));
   }
 
@@ -88,10 +101,20 @@ export class UnitRepository {
 /** The columns of the fields given. */
 function unitRow(i: Partial<UnitInput> & { deviceSecretHash?: string }): Partial<Omit<UnitRow, 'id'>> {
   const map: Record<keyof UnitInput | 'deviceSecretHash', string> = {
-    serial: 'serial', siteId: 'site_id', ratedPowerWp: 'rated_power_wp', detectorTiltDeg: 'detector_tilt_deg',
-    tiltMinDeg: 'tilt_min_deg', tiltMaxDeg: 'tilt_max_deg', azimuthMinDeg: 'azimuth_min_deg', azimuthMaxDeg: 'azimuth_max_deg',
-    planXM: 'plan_x_m', planYM: 'plan_y_m', firmware: 'firmware', disabled: 'disabled',
-    weatherStation: 'weather_station', deviceSecretHash: 'device_secret_hash',
+    serial: 'serial',
+    siteId: 'site_id',
+    ratedPowerWp: 'rated_power_wp',
+    detectorTiltDeg: 'detector_tilt_deg',
+    tiltMinDeg: 'tilt_min_deg',
+    tiltMaxDeg: 'tilt_max_deg',
+    azimuthMinDeg: 'azimuth_min_deg',
+    azimuthMaxDeg: 'azimuth_max_deg',
+    planXM: 'plan_x_m',
+    planYM: 'plan_y_m',
+    firmware: 'firmware',
+    disabled: 'disabled',
+    weatherStation: 'weather_station',
+    deviceSecretHash: 'device_secret_hash',
   };
   const r: Record<string, unknown> = {};
   for (const [k, col] of Object.entries(map)) if (i[k as keyof typeof map] !== undefined) r[col] = i[k as keyof typeof map];

@@ -38,7 +38,14 @@ export const toUser = (u: StoredUser): User => ({
 });
 
 const storedUser = (r: UserRow): StoredUser => ({
-  id: r.id, email: r.email, name: r.name, role: r.role, ownerId: r.owner_id, passwordHash: r.password_hash, disabled: Boolean(r.disabled), createdAt: r.created_at,
+  id: r.id,
+  email: r.email,
+  name: r.name,
+  role: r.role,
+  ownerId: r.owner_id,
+  passwordHash: r.password_hash,
+  disabled: Boolean(r.disabled),
+  createdAt: r.created_at,
 });
 
 export class UserRepository {
@@ -59,7 +66,13 @@ export class UserRepository {
   }
 
   async insert(u: NewUser): Promise<number> {
-    const [id] = await this.db('users').insert({ email: u.email, name: u.name, role: u.role, owner_id: u.ownerId, password_hash: u.passwordHash });
+    const [id] = await this.db('users').insert({
+      email: u.email,
+      name: u.name,
+      role: u.role,
+      owner_id: u.ownerId,
+      password_hash: u.passwordHash,
+    });
     return id as number;
   }
 

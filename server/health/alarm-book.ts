@@ -52,7 +52,15 @@ export class AlarmBook {
    * Reports the condition of `kind` on `subject` at `atMs`. `detail` is called only when an alarm is raised or refreshed.
    * `suppressed` blocks raising (an alarm already open stays open).
    */
-  assess(subject: AlarmSubject, kind: AlarmKind, condition: boolean | null, atMs: number, timing: AlarmTiming, detail: () => AlarmDetail, suppressed = false): Alarm | null {
+  assess(
+    subject: AlarmSubject,
+    kind: AlarmKind,
+    condition: boolean | null,
+    atMs: number,
+    timing: AlarmTiming,
+    detail: () => AlarmDetail,
+    suppressed = false,
+  ): Alarm | null {
     const key = `${subjectKey(subject)}/${kind}`;
     let t = this.tracks.get(key);
     if (!t) {
@@ -69,7 +77,12 @@ export class AlarmBook {
           t.lastUpdateMs = atMs;
           const d = detail();
           // Severity may rise (e.g. many units trapped); the evidence snapshot of the raise is kept, the latest added.
-          Object.assign(t.open, { severity: d.severity < t.open.severity ? d.severity : t.open.severity, message: d.message, advice: d.advice, evidence: { ...t.open.evidence, latest: d.evidence } });
+          Object.assign(t.open, {
+            severity: d.severity < t.open.severity ? d.severity : t.open.severity,
+            message: d.message,
+            advice: d.advice,
+            evidence: { ...t.open.evidence, latest: d.evidence },
+          });
           for (const l of this.listeners) l.updated?.(t.open);
         }
         return t.open;
@@ -78,8 +91,16 @@ export class AlarmBook {
       if (atMs - t.pendingSinceMs >= timing.delayOnMs && !suppressed) {
         const d = detail();
         const a: Alarm = {
-          ...subject, ...d, key: `${key}@${atMs}`, kind, state: 'active',
-          firstSeenMs: t.pendingSinceMs, raisedMs: atMs, lastSeenMs: atMs, clearedMs: null, clearReason: null,
+          ...subject,
+          ...d,
+          key: `${key}@${atMs}`,
+          kind,
+          state: 'active',
+          firstSeenMs: t.pendingSinceMs,
+          raisedMs: atMs,
+          lastSeenMs: atMs,
+          clearedMs: null,
+          clearReason: null,
         };
         t.open = a;
         t.lastUpdateMs = atMs;

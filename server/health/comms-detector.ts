@@ -64,7 +64,14 @@ export class CommsDetector {
     const offlineByWill = u.offlineSinceMs !== null;
     const allowedMs = s.commsIntervals * intervalMs;
     const silentSinceMs = offlineByWill ? Math.min(u.offlineSinceMs!, u.lastArrivalMs + allowedMs) : u.lastArrivalMs + allowedMs;
-    return { silent: offlineByWill || silentForMs > allowedMs, silentForMs, lastArrivalMs: u.lastArrivalMs, offlineByWill, intervalMs, silentSinceMs };
+    return {
+      silent: offlineByWill || silentForMs > allowedMs,
+      silentForMs,
+      lastArrivalMs: u.lastArrivalMs,
+      offlineByWill,
+      intervalMs,
+      silentSinceMs,
+    };
   }
 
   known(): number[] {

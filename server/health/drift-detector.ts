@@ -30,7 +30,15 @@ const JUDGE_EVERY_MS = 30_000;
 export class DriftDetector {
   private readonly units = new Map<number, UnitState>();
 
-  assess(unit: UnitRef, t: Telemetry, atMs: number, model: SiteModel | undefined, daylight: boolean, open: boolean, s: HealthSettings): Assessment {
+  assess(
+    unit: UnitRef,
+    t: Telemetry,
+    atMs: number,
+    model: SiteModel | undefined,
+    daylight: boolean,
+    open: boolean,
+    s: HealthSettings,
+  ): Assessment {
     let u = this.units.get(unit.unitId);
     if (!u) this.units.set(unit.unitId, (u = { window: [], judgedMs: -Infinity, sampledMs: -Infinity }));
     const windowMs = s.driftWindowMin * 60_000;
@@ -50,7 +58,8 @@ export class DriftDetector {
       model.readings(t.tiltDeg, t.azimuthDeg + azTol, unit.detectorTiltDeg),
       model.readings(t.tiltDeg, t.azimuthDeg - azTol, unit.detectorTiltDeg),
     ];
-    const steep = (d: 'panel' | Detector) => around.some((r) => Math.abs(r[`${d}Wm2` as const] / m[`${d}Wm2` as const] - 1) > s.driftMaxModelChange);
+    const steep = (d: 'panel' | Detector) =>
+      around.some((r) => Math.abs(r[`${d}Wm2` as const] / m[`${d}Wm2` as const] - 1) > s.driftMaxModelChange);
     if (steep('panel')) return judged(null);
     const reading = (d: Detector) => t[`${d}Wm2` as const];
     const modelled = (d: Detector) => m[`${d}Wm2` as const];
@@ -67,7 +76,10 @@ export class DriftDetector {
     });
     const known = medians.filter((v): v is number => v !== null);
     if (known.length === 0) return judged(null);
-    const worst = medians.reduce<{ i: number; dev: number }>((b, v, i) => (v !== null && Math.abs(v - 1) > b.dev ? { i, dev: Math.abs(v - 1) } : b), { i: -1, dev: 0 });
+    const worst = medians.reduce<{ i: number; dev: number }>(
+      (b, v, i) => (v !== null && Math.abs(v - 1) > b.dev ? { i, dev: Math.abs(v - 1) } : b),
+      { i: -1, dev: 0 },
+    );
     if (worst.dev > s.driftTolerance) {
       const name = DETECTORS[worst.i]!;
       const v = medians[worst.i]!;
@@ -75,15 +87,19 @@ export class DriftDetector {
       return judged(true, () => ({
         severity: kind === 'drifting' ? 'P4' : 'P3',
         message:
-          kind === 'saturated' ? `Detector ${name} reads at full scale (${round1(reading(name))} W/m²).`
-          : kind === 'dead' ? `Detector ${name} reads ${round1(v * 100)} % of what it should (dead or disconnected).`
-          : `Detector ${name} reads ${round1(v * 100)} % of what it should where the unit points (gain drift ${round1((v - 1) * 100)} %); the unit balances on a skewed pair and points off its peak.`,
+          kind === 'saturated'
+            ? `Detector ${name} reads at full scale (${round1(reading(name))} W/m²).`
+            : kind === 'dead'
+              ? `Detector ${name} reads ${round1(v * 100)} % of what it should (dead or disconnected).`
+              : `Detector ${name} reads ${round1(v * 100)} % of what it should where the unit points (gain drift ${round1((v - 1) * 100)} %); the unit balances on a skewed pair and points off its peak.`,
         advice: `Clean and inspect the ${name} detector and its connector; recalibrate the pair or replace the detector. Until then the unit tracks with an offset.`,
         evidence: {
           readings: readingsSnapshot(t),
           modelled: Object.fromEntries(DETECTORS.map((d) => [d, round1(modelled(d))])),
           modelledPanelWm2: round1(m.panelWm2),
-          normalisedMedian: Object.fromEntries(DETECTORS.map((d, i) => [d, medians[i] === null ? null : Math.round(medians[i]! * 1000) / 1000])),
+          normalisedMedian: Object.fromEntries(
+            DETECTORS.map((d, i) => [d, medians[i] === null ? null : Math.round(medians[i]! * 1000) / 1000]),
+          ),
           detector: name,
           finding: kind,
           windowMin: s.driftWindowMin,

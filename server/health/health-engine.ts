@@ -65,7 +65,8 @@ export class HealthEngine {
     const current = snap;
     return {
       peers: () => (current.peers ??= [...sitePeers.values()]),
-      trapped: () => (current.trapped ??= [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length),
+      trapped: () =>
+        (current.trapped ??= [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length),
     };
   }
 
@@ -97,7 +98,15 @@ export class HealthEngine {
     // (consequential alarms are suppressed under their cause: common practice).
     const sensorFault = this.book.holding(subject, 'drift') || open('drift');
     const huntingNow = this.hunting.assess(unit, t, atMs, daylight, open('hunting'), s);
-    this.book.assess(subject, 'hunting', huntingNow.condition, atMs, timing(s.huntingDelayOnMin, s.huntingClearDelayMin), huntingNow.detail, suppressed || sensorFault);
+    this.book.assess(
+      subject,
+      'hunting',
+      huntingNow.condition,
+      atMs,
+      timing(s.huntingDelayOnMin, s.huntingClearDelayMin),
+      huntingNow.detail,
+      suppressed || sensorFault,
+    );
     // Parent/child suppression: a stall, drift or hunting condition that holds, or a stall or drift alarm still open (a
     // drive or sensor fault changes where the unit can balance until it is repaired), explains a deficit; the unit gets
     // no trap alarm on top. A hunting unit that has come to rest on a local maximum is trapped like any other.
@@ -105,7 +114,29 @@ export class HealthEngine {
     // Site-wide figures cost one pass over the site's units: computed only when the trap detector asks, and shared by the
     // reports of the site within the same couple of seconds (a large site would otherwise make each report O(units)).
     const site = this.siteSnapshot(unit.siteId, atMs, sitePeers);
-    put('trap', this.trap.assess(unit, t, atMs, { model, daylight, get peers() { return site.peers(); }, otherCause, open: open('trap'), get trappedAtSite() { return site.trapped(); } }, s), s.trapDelayOnMin, s.trapClearDelayMin);
+    put(
+      'trap',
+      this.trap.assess(
+        unit,
+        t,
+        atMs,
+        {
+          model,
+          daylight,
+          get peers() {
+            return site.peers();
+          },
+          otherCause,
+          open: open('trap'),
+          get trappedAtSite() {
+            return site.trapped();
+          },
+        },
+        s,
+      ),
+      s.trapDelayOnMin,
+      s.trapClearDelayMin,
+    );
     put('soiling', this.soiling.assess(unit, t, atMs, daylight, open('soiling'), s), s.soilingDelayOnMin, s.soilingClearDelayMin);
     put('not-stowed', this.stow.assess(unit, t, atMs, s), s.stowArrivalMin, 0);
   }
@@ -116,7 +147,14 @@ export class HealthEngine {
     this.heard(unit, atMs, false, this.settingsFor(unit.siteId));
     this.stall.event(unit, e);
     if (e.kind === 'mode-change' && (e.code === 'wind-stow' || e.code === 'wind-stow-released')) {
-      this.opts.listeners?.stow?.({ unitId: unit.unitId, serial: unit.serial, siteId: unit.siteId, atMs, kind: e.code === 'wind-stow' ? 'stowed' : 'released', message: e.message ?? '' });
+      this.opts.listeners?.stow?.({
+        unitId: unit.unitId,
+        serial: unit.serial,
+        siteId: unit.siteId,
+        atMs,
+        kind: e.code === 'wind-stow' ? 'stowed' : 'released',
+        message: e.message ?? '',
+      });
     }
   }
 
@@ -179,13 +217,30 @@ export class HealthEngine {
       if (dark && !this.book.holding(site, 'site-comms')) {
         const since = silent.map((x) => x.silentSinceMs).sort((a, b) => a - b);
         const darkSinceMs = since[Math.max(1, Math.ceil(s.siteDarkFraction * list.length) - 1)] ?? now;
-        this.book.assess(site, 'site-comms', true, Math.min(now, darkSinceMs), commsTiming, () => ({ severity: 'P4', message: '', advice: '', evidence: {} }), true);
+        this.book.assess(
+          site,
+          'site-comms',
+          true,
+          Math.min(now, darkSinceMs),
+          commsTiming,
+          () => ({ severity: 'P4', message: '', advice: '', evidence: {} }),
+          true,
+        );
       }
       const siteAlarm = this.book.assess(site, 'site-comms', dark, now, commsTiming, () => ({
         severity: day ? 'P2' : 'P3',
         message: `${silent.length} of ${list.length} units silent${day ? '' : ' (night)'}: the site's gateway, backhaul or power is down.`,
-        advice: 'Check the site gateway, its backhaul and power first; check whether the units still produce (meter or inverter). After reconnection confirm the buffered data came in.',
-        evidence: { silentUnits: silent.map((x) => ({ serial: x.unit.serial, silentMin: round1(x.silentForMs / MIN_MS), byLastWill: x.offlineByWill })), units: list.length, night: !day },
+        advice:
+          'Check the site gateway, its backhaul and power first; check whether the units still produce (meter or inverter). After reconnection confirm the buffered data came in.',
+        evidence: {
+          silentUnits: silent.map((x) => ({
+            serial: x.unit.serial,
+            silentMin: round1(x.silentForMs / MIN_MS),
+            byLastWill: x.offlineByWill,
+          })),
+          units: list.length,
+          night: !day,
+        },
       }));
       if (dark) this.darkSites.add(siteId);
       else this.darkSites.delete(siteId);
@@ -196,13 +251,37 @@ export class HealthEngine {
           continue;
         }
         // The silence started before this tick: let the delay-on run from its start.
-        if (x.silent && !this.book.holding(subject, 'comms')) this.book.assess(subject, 'comms', true, Math.min(now, x.silentSinceMs), commsTiming, () => ({ severity: 'P4', message: '', advice: '', evidence: {} }), true);
-        this.book.assess(subject, 'comms', x.silent, now, commsTiming, () => ({
-          severity: day ? 'P3' : 'P4',
-          message: `No message for ${round1(x.silentForMs / MIN_MS)} min${x.offlineByWill ? ' (the unit went offline without a clean disconnect)' : ''}; expected one every ${round1(x.intervalMs / 1000)} s.`,
-          advice: 'Check the unit controller\'s power and modem; check whether it still produces. It stores and forwards its reports, so confirm the gap fills after reconnection.',
-          evidence: { lastMessageAt: new Date(x.lastArrivalMs).toISOString(), silentMin: round1(x.silentForMs / MIN_MS), byLastWill: x.offlineByWill, intervalS: round1(x.intervalMs / 1000), night: !day },
-        }), dark);
+        if (x.silent && !this.book.holding(subject, 'comms'))
+          this.book.assess(
+            subject,
+            'comms',
+            true,
+            Math.min(now, x.silentSinceMs),
+            commsTiming,
+            () => ({ severity: 'P4', message: '', advice: '', evidence: {} }),
+            true,
+          );
+        this.book.assess(
+          subject,
+          'comms',
+          x.silent,
+          now,
+          commsTiming,
+          () => ({
+            severity: day ? 'P3' : 'P4',
+            message: `No message for ${round1(x.silentForMs / MIN_MS)} min${x.offlineByWill ? ' (the unit went offline without a clean disconnect)' : ''}; expected one every ${round1(x.intervalMs / 1000)} s.`,
+            advice:
+              "Check the unit controller's power and modem; check whether it still produces. It stores and forwards its reports, so confirm the gap fills after reconnection.",
+            evidence: {
+              lastMessageAt: new Date(x.lastArrivalMs).toISOString(),
+              silentMin: round1(x.silentForMs / MIN_MS),
+              byLastWill: x.offlineByWill,
+              intervalS: round1(x.intervalMs / 1000),
+              night: !day,
+            },
+          }),
+          dark,
+        );
       }
     }
   }
@@ -224,7 +303,12 @@ export class HealthEngine {
     this.restoredGraceUntil.delete(unit.unitId);
     this.comms.heard(unit.unitId, now, tsMs, isTelemetry);
     // A message clears the unit's comms alarm at once (its clear delay applies).
-    this.book.assess(this.subjectOf(unit), 'comms', false, now, timing(s.commsDelayOnMin, s.commsClearDelayMin), () => ({ severity: 'P4', message: '', advice: '', evidence: {} }));
+    this.book.assess(this.subjectOf(unit), 'comms', false, now, timing(s.commsDelayOnMin, s.commsClearDelayMin), () => ({
+      severity: 'P4',
+      message: '',
+      advice: '',
+      evidence: {},
+    }));
   }
 
   private subjectOf(u: UnitRef): AlarmSubject {
@@ -232,4 +316,7 @@ export class HealthEngine {
   }
 }
 
-const timing = (delayOnMin: number, clearDelayMin: number): AlarmTiming => ({ delayOnMs: delayOnMin * MIN_MS, clearDelayMs: clearDelayMin * MIN_MS });
+const timing = (delayOnMin: number, clearDelayMin: number): AlarmTiming => ({
+  delayOnMs: delayOnMin * MIN_MS,
+  clearDelayMs: clearDelayMin * MIN_MS,
+});

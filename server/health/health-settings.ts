@@ -286,7 +286,10 @@ export const HEALTH_SETTING_RANGES: Readonly<Record<keyof HealthSettings, Health
 
 function rangeSchema(r: HealthSettingRange) {
   const message = `Must be between ${r.min} and ${r.max} ${r.unit}.`;
-  const n = z.number({ error: `Must be a number (${r.unit}).` }).min(r.min, message).max(r.max, message);
+  const n = z
+    .number({ error: `Must be a number (${r.unit}).` })
+    .min(r.min, message)
+    .max(r.max, message);
   return r.integer ? n.int('Must be a whole number.') : n;
 }
 
@@ -302,7 +305,12 @@ const HYSTERESIS: { clear: keyof HealthSettings; raise: keyof HealthSettings; cl
  * checked on the effective values (the overrides over the defaults), so an override may not cross a default either.
  */
 export const healthSettingsOverrideSchema = z
-  .strictObject(Object.fromEntries(Object.entries(HEALTH_SETTING_RANGES).map(([k, r]) => [k, rangeSchema(r).optional()])) as Record<keyof HealthSettings, z.ZodOptional<z.ZodNumber>>)
+  .strictObject(
+    Object.fromEntries(Object.entries(HEALTH_SETTING_RANGES).map(([k, r]) => [k, rangeSchema(r).optional()])) as Record<
+      keyof HealthSettings,
+      z.ZodOptional<z.ZodNumber>
+    >,
+  )
   .superRefine((o, ctx) => {
     const eff = resolveHealthSettings(Object.fromEntries(Object.entries(o).filter(([, v]) => v !== undefined)));
     const inRange = (k: keyof HealthSettings) => rangeSchema(HEALTH_SETTING_RANGES[k]).safeParse(eff[k]).success;
@@ -317,7 +325,10 @@ export const healthSettingsOverrideSchema = z
  * Overrides read back from the database, keeping only known settings within their ranges (rows written before the
  * ranges existed may hold anything); each dropped one is reported so it can be logged, and its default applies.
  */
-export function sanitizeStoredOverrides(stored: Record<string, unknown> | null | undefined, dropped: (key: string, value: unknown) => void = () => undefined): HealthSettingsOverride {
+export function sanitizeStoredOverrides(
+  stored: Record<string, unknown> | null | undefined,
+  dropped: (key: string, value: unknown) => void = () => undefined,
+): HealthSettingsOverride {
   const out: Record<string, number> = {};
   for (const [k, v] of Object.entries(stored ?? {})) {
     const range = HEALTH_SETTING_RANGES[k as keyof HealthSettings];

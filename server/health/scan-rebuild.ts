@@ -64,7 +64,8 @@ export function rebuildScan(samples: readonly ScanSample[]): ScanLandscape {
   };
   let bi = 0;
   let bj = 0;
-  for (let i = 0; i < tilts.length; i++) for (let j = 0; j < azs.length; j++) if ((values[i]![j] ?? -Infinity) > (values[bi]![bj] ?? -Infinity)) [bi, bj] = [i, j];
+  for (let i = 0; i < tilts.length; i++)
+    for (let j = 0; j < azs.length; j++) if ((values[i]![j] ?? -Infinity) > (values[bi]![bj] ?? -Infinity)) [bi, bj] = [i, j];
   const best = values[bi]![bj]!;
   // Parabolic refinement on each axis where both neighbours exist.
   const refine = (lo: number | null, hi: number | null, step: number) => {
@@ -84,11 +85,12 @@ export function rebuildScan(samples: readonly ScanSample[]): ScanLandscape {
       const v = values[i]![j] ?? null;
       if (v === null) continue;
       let top = true;
-      for (let di = -1; di <= 1 && top; di++) for (let dj = -1; dj <= 1 && top; dj++) {
-        if (di === 0 && dj === 0) continue;
-        const n = at(i + di, j + dj);
-        if (n !== null && n > v) top = false;
-      }
+      for (let di = -1; di <= 1 && top; di++)
+        for (let dj = -1; dj <= 1 && top; dj++) {
+          if (di === 0 && dj === 0) continue;
+          const n = at(i + di, j + dj);
+          if (n !== null && n > v) top = false;
+        }
       if (top) localMaxima.push({ tiltDeg: tilts[i]!, azimuthDeg: azs[j]!, wm2: v });
     }
   }
@@ -111,11 +113,17 @@ export function rebuildScan(samples: readonly ScanSample[]): ScanLandscape {
 /** Angle between two panel normals given as tilt/azimuth [°]. */
 export function angleBetweenDeg(a: { tiltDeg: number; azimuthDeg: number }, b: { tiltDeg: number; azimuthDeg: number }): number {
   const r = Math.PI / 180;
-  const c = Math.cos(a.tiltDeg * r) * Math.cos(b.tiltDeg * r) + Math.sin(a.tiltDeg * r) * Math.sin(b.tiltDeg * r) * Math.cos(azimuthDelta(a.azimuthDeg, b.azimuthDeg) * r);
+  const c =
+    Math.cos(a.tiltDeg * r) * Math.cos(b.tiltDeg * r) +
+    Math.sin(a.tiltDeg * r) * Math.sin(b.tiltDeg * r) * Math.cos(azimuthDelta(a.azimuthDeg, b.azimuthDeg) * r);
   return Math.acos(Math.max(-1, Math.min(1, c))) / r;
 }
 
-export function compareScan(samples: readonly ScanSample[], beforeWm2: number | null, model: { globalMax: MeasuredPeak } | null): ScanComparison {
+export function compareScan(
+  samples: readonly ScanSample[],
+  beforeWm2: number | null,
+  model: { globalMax: MeasuredPeak } | null,
+): ScanComparison {
   const landscape = rebuildScan(samples);
   const g = landscape.globalMax;
   const gain = beforeWm2 === null ? null : g.wm2 - beforeWm2;
@@ -125,7 +133,11 @@ export function compareScan(samples: readonly ScanSample[], beforeWm2: number | 
     expectedGainWm2: gain === null ? null : round1(gain),
     expectedGainPct: gain === null || !beforeWm2 ? null : round1((gain / beforeWm2) * 100),
     model: model
-      ? { globalMax: model.globalMax, angleApartDeg: round1(angleBetweenDeg(g, model.globalMax)), measuredVsModelPct: round1((g.wm2 / model.globalMax.wm2 - 1) * 100) }
+      ? {
+          globalMax: model.globalMax,
+          angleApartDeg: round1(angleBetweenDeg(g, model.globalMax)),
+          measuredVsModelPct: round1((g.wm2 / model.globalMax.wm2 - 1) * 100),
+        }
       : null,
     goto: { kind: 'goto', tiltDeg: Math.max(0, Math.min(90, g.tiltDeg)), azimuthDeg: Math.max(0, Math.min(360, g.azimuthDeg)) },
   };

@@ -59,7 +59,8 @@ export function siteModelOf(resolved: ResolvedSky, indoor: boolean, atMs: number
     sunElevationDeg: resolved.input.sun?.elevationDeg ?? -90,
     indoor,
     globalMax: globalMaxOf(sky, maxTiltDeg),
-    readings: (tiltDeg, azimuthDeg, detectorTiltDeg) => detectorReadings(sky, tiltDeg, azimuthDeg, Math.min(45, Math.max(0, detectorTiltDeg))),
+    readings: (tiltDeg, azimuthDeg, detectorTiltDeg) =>
+      detectorReadings(sky, tiltDeg, azimuthDeg, Math.min(45, Math.max(0, detectorTiltDeg))),
     analyse: () => {
       if (!analysis) {
         const r = analyseLandscape(sky, { stepDeg: 2, tiltRangeDeg: [0, maxTilt] });

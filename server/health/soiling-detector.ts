@@ -34,7 +34,11 @@ export class SoilingDetector {
 
   assess(unit: UnitRef, t: Telemetry, atMs: number, daylight: boolean, open: boolean, s: HealthSettings): Assessment {
     let u = this.units.get(unit.unitId);
-    if (!u) this.units.set(unit.unitId, (u = { recent: [], hourStartMs: Math.floor(atMs / HOUR_MS) * HOUR_MS, hour: [], hourly: [], judgedMs: -Infinity }));
+    if (!u)
+      this.units.set(
+        unit.unitId,
+        (u = { recent: [], hourStartMs: Math.floor(atMs / HOUR_MS) * HOUR_MS, hour: [], hourly: [], judgedMs: -Infinity }),
+      );
     const hourMs = Math.floor(atMs / HOUR_MS) * HOUR_MS;
     if (hourMs > u.hourStartMs) {
       if (u.hour.length >= 20) u.hourly.push({ hourMs: u.hourStartMs, median: median(u.hour) });
@@ -49,16 +53,21 @@ export class SoilingDetector {
       u.recent.push({ atMs, index: idx });
     }
     while (u.recent.length && atMs - u.recent[0]!.atMs > HOUR_MS) u.recent.shift();
-    if (idx === null || u.recent.length < 20 || u.hourly.length < s.soilingMinHours || atMs - u.judgedMs < JUDGE_EVERY_MS) return judged(null);
+    if (idx === null || u.recent.length < 20 || u.hourly.length < s.soilingMinHours || atMs - u.judgedMs < JUDGE_EVERY_MS)
+      return judged(null);
     u.judgedMs = atMs;
-    const reference = quantile(u.hourly.map((h) => h.median), s.soilingReferenceQuantile);
+    const reference = quantile(
+      u.hourly.map((h) => h.median),
+      s.soilingReferenceQuantile,
+    );
     const current = median(u.recent.map((r) => r.index));
     const loss = 1 - current / reference;
     if (loss > s.soilingLossThreshold) {
       return judged(true, () => ({
         severity: 'P4',
         message: `Output per in-plane irradiance is ${round1(loss * 100)} % below this unit's clean reference (temperature-corrected ${round1(current)} vs ${round1(reference)} W per kW/m²).`,
-        advice: 'Inspect and clean the modules (and the reference cell); if cleaning does not restore it, check strings, connectors and the inverter for degradation or a fault.',
+        advice:
+          'Inspect and clean the modules (and the reference cell); if cleaning does not restore it, check strings, connectors and the inverter for degradation or a fault.',
         evidence: {
           readings: readingsSnapshot(t),
           lossPct: round1(loss * 100),

@@ -34,7 +34,11 @@ export class StallDetector {
   private state(unitId: number): UnitState {
     let u = this.units.get(unitId);
     if (!u) {
-      u = { prev: null, axes: { tilt: { evidenceMs: [], stalled: false, lastWhy: '' }, azimuth: { evidenceMs: [], stalled: false, lastWhy: '' } }, faultCode: null };
+      u = {
+        prev: null,
+        axes: { tilt: { evidenceMs: [], stalled: false, lastWhy: '' }, azimuth: { evidenceMs: [], stalled: false, lastWhy: '' } },
+        faultCode: null,
+      };
       this.units.set(unitId, u);
     }
     return u;
@@ -57,12 +61,18 @@ export class StallDetector {
       const a = u.axes[axis];
       const err = axis === 'tilt' ? Math.abs(t.cmdTiltDeg - t.tiltDeg) : Math.abs(azimuthDelta(t.azimuthDeg, t.cmdAzimuthDeg));
       const currentA = Math.abs(axis === 'tilt' ? t.tiltMotorA : t.azimuthMotorA);
-      const progress = prev ? (axis === 'tilt' ? Math.abs(t.tiltDeg - prev.tiltDeg) : Math.abs(azimuthDelta(prev.azimuthDeg, t.azimuthDeg))) : NaN;
+      const progress = prev
+        ? axis === 'tilt'
+          ? Math.abs(t.tiltDeg - prev.tiltDeg)
+          : Math.abs(azimuthDelta(prev.azimuthDeg, t.azimuthDeg))
+        : NaN;
       const over = currentA >= s.motorOverCurrentA;
       const noProgress = err > s.stallAngleErrorDeg && progress < s.stallNoProgressDeg;
       if (over || noProgress) {
         a.evidenceMs.push(atMs);
-        a.lastWhy = over ? `motor current ${round1(currentA)} A (anomaly above ${s.motorOverCurrentA} A)` : `commanded ${round1(err)}° away with no progress`;
+        a.lastWhy = over
+          ? `motor current ${round1(currentA)} A (anomaly above ${s.motorOverCurrentA} A)`
+          : `commanded ${round1(err)}° away with no progress`;
       } else if (progress >= s.stallNoProgressDeg && !unitFault) {
         a.stalled = false;
         a.evidenceMs = [];

@@ -46,8 +46,15 @@ export class StowWatch {
     return judged(true, () => ({
       severity: 'P1',
       message: `Not stowed ${round1((atMs - since) / 60_000)} min after gusts of ${round1(st.peakGustMs)} m/s (limit ${s.stowGustMs} m/s): tilt ${round1(t.tiltDeg)}°, mode ${t.mode}.`,
-      advice: 'Keep everyone clear of the unit. Check its drive and power; send a stow if the unit answers, else make it safe on site once the wind allows.',
-      evidence: { readings: readingsSnapshot(t), gustLimitMs: s.stowGustMs, peakGustMs: st.peakGustMs, demandSinceMs: since, allowedMin: s.stowArrivalMin },
+      advice:
+        'Keep everyone clear of the unit. Check its drive and power; send a stow if the unit answers, else make it safe on site once the wind allows.',
+      evidence: {
+        readings: readingsSnapshot(t),
+        gustLimitMs: s.stowGustMs,
+        peakGustMs: st.peakGustMs,
+        demandSinceMs: since,
+        allowedMin: s.stowArrivalMin,
+      },
     }));
   }
 }

@@ -55,13 +55,26 @@ export class TrapDetector {
     // The pairs must read what the model says they should read here: a unit balanced on a drifting detector is a sensor
     // fault (the drift detector's), not a trap.
     const mr = m.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
-    const pairAgrees = (p: number, q: number, mp: number, mq: number) => mp <= 0 || mq <= 0 || q <= 0 || Math.abs(p / q / (mp / mq) - 1) <= s.trapPairModelTolerance;
-    if (!pairAgrees(t.tiltPlusWm2, t.tiltMinusWm2, mr.tiltPlusWm2, mr.tiltMinusWm2) || !pairAgrees(t.azimuthPlusWm2, t.azimuthMinusWm2, mr.azimuthPlusWm2, mr.azimuthMinusWm2)) return judged(ctx.open ? null : false);
+    const pairAgrees = (p: number, q: number, mp: number, mq: number) =>
+      mp <= 0 || mq <= 0 || q <= 0 || Math.abs(p / q / (mp / mq) - 1) <= s.trapPairModelTolerance;
+    if (
+      !pairAgrees(t.tiltPlusWm2, t.tiltMinusWm2, mr.tiltPlusWm2, mr.tiltMinusWm2) ||
+      !pairAgrees(t.azimuthPlusWm2, t.azimuthMinusWm2, mr.azimuthPlusWm2, mr.azimuthMinusWm2)
+    )
+      return judged(ctx.open ? null : false);
     const ratio = t.poaWm2 / best;
     if (ratio >= s.trapClearRatio) return judged(false);
     if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
-    const peers = ctx.peers.filter((p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'));
-    const peerHigh = peers.length >= 2 ? quantile(peers.map((p) => p.poaWm2), s.trapPeerQuantile) : null;
+    const peers = ctx.peers.filter(
+      (p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'),
+    );
+    const peerHigh =
+      peers.length >= 2
+        ? quantile(
+            peers.map((p) => p.poaWm2),
+            s.trapPeerQuantile,
+          )
+        : null;
     const belowPeers = peerHigh === null || t.poaWm2 < s.trapPeerRatio * peerHigh;
     const here = mr.panelWm2;
     const modelConfirmed = here > 0 && Math.abs(t.poaWm2 / here - 1) <= s.trapModelAgreement;
@@ -72,11 +85,12 @@ export class TrapDetector {
       const lossWm2 = best - t.poaWm2;
       const lossPct = (lossWm2 / best) * 100;
       const g = m.globalMax;
-      const tiltAdvice = minTilt == null
-        ? 'no detector tilt up to 30° makes this sky single-peaked, so plan periodic scans'
-        : minTilt > unit.detectorTiltDeg
-          ? `raise the detector tilt from ${round1(unit.detectorTiltDeg)}° to at least ${round1(minTilt)}°, the smallest that leaves this site's landscape a single peak`
-          : `the detector tilt (${round1(unit.detectorTiltDeg)}°) already exceeds the site's single-peak tilt (${round1(minTilt)}°) for this sky; check the detectors and the deadband`;
+      const tiltAdvice =
+        minTilt == null
+          ? 'no detector tilt up to 30° makes this sky single-peaked, so plan periodic scans'
+          : minTilt > unit.detectorTiltDeg
+            ? `raise the detector tilt from ${round1(unit.detectorTiltDeg)}° to at least ${round1(minTilt)}°, the smallest that leaves this site's landscape a single peak`
+            : `the detector tilt (${round1(unit.detectorTiltDeg)}°) already exceeds the site's single-peak tilt (${round1(minTilt)}°) for this sky; check the detectors and the deadband`;
       return {
         severity: ctx.trappedAtSite >= s.trapManyUnits ? 'P2' : 'P3',
         message:

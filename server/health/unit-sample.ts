@@ -23,13 +23,45 @@ export const judged = (condition: boolean | null, detail: () => AlarmDetail = NO
 
 /** Telemetry fields kept in an evidence snapshot. */
 export function readingsSnapshot(t: Telemetry) {
-  const { ts, mode, poaWm2, tiltDeg, azimuthDeg, cmdTiltDeg, cmdAzimuthDeg, tiltPlusWm2, tiltMinusWm2, azimuthPlusWm2, azimuthMinusWm2, tiltMotorA, azimuthMotorA, dcPowerW, moduleTempC } = t;
-  return { ts, mode, poaWm2, tiltDeg, azimuthDeg, cmdTiltDeg, cmdAzimuthDeg, tiltPlusWm2, tiltMinusWm2, azimuthPlusWm2, azimuthMinusWm2, tiltMotorA, azimuthMotorA, dcPowerW, moduleTempC };
+  const {
+    ts,
+    mode,
+    poaWm2,
+    tiltDeg,
+    azimuthDeg,
+    cmdTiltDeg,
+    cmdAzimuthDeg,
+    tiltPlusWm2,
+    tiltMinusWm2,
+    azimuthPlusWm2,
+    azimuthMinusWm2,
+    tiltMotorA,
+    azimuthMotorA,
+    dcPowerW,
+    moduleTempC,
+  } = t;
+  return {
+    ts,
+    mode,
+    poaWm2,
+    tiltDeg,
+    azimuthDeg,
+    cmdTiltDeg,
+    cmdAzimuthDeg,
+    tiltPlusWm2,
+    tiltMinusWm2,
+    azimuthPlusWm2,
+    azimuthMinusWm2,
+    tiltMotorA,
+    azimuthMotorA,
+    dcPowerW,
+    moduleTempC,
+  };
 }
 
 /** Signed smallest difference b − a of two azimuths [°], in (−180, 180]. */
 export function azimuthDelta(a: number, b: number): number {
-  const d = (((b - a) % 360) + 540) % 360 - 180;
+  const d = ((((b - a) % 360) + 540) % 360) - 180;
   return d === -180 ? 180 : d;
 }
 

@@ -70,7 +70,9 @@ export function alarmRoutes(d: AlarmRouteDeps): Router {
   r.put('/sites/:id/health-settings', requireRole('editHealthSettings'), async (req, res) => {
     const siteId = id(req.params);
     await d.admin.getSite(callerOf(req), siteId); // an unknown site is a 404 before its body is judged
-    res.json(await d.settings.saveSiteSettings(callerOf(req), siteId, parse(healthSettingsOverrideSchema, req.body, 'The health settings')));
+    res.json(
+      await d.settings.saveSiteSettings(callerOf(req), siteId, parse(healthSettingsOverrideSchema, req.body, 'The health settings')),
+    );
   });
 
   r.post('/health/run', requireRole('runHealth'), async (req, res) => {

@@ -57,7 +57,13 @@ function serialized(msg: LiveServerMessage): string {
   return text;
 }
 
-const STATUS_TEXT: Record<number, string> = { 400: 'Bad Request', 401: 'Unauthorized', 403: 'Forbidden', 404: 'Not Found', 503: 'Service Unavailable' };
+const STATUS_TEXT: Record<number, string> = {
+  400: 'Bad Request',
+  401: 'Unauthorized',
+  403: 'Forbidden',
+  404: 'Not Found',
+  503: 'Service Unavailable',
+};
 
 /** Answers an upgrade request with a plain HTTP error in the one error shape, then closes the connection. */
 function refuse(socket: Duplex, status: number, code: string, message: string): void {
@@ -76,7 +82,14 @@ function refuse(socket: Duplex, status: number, code: string, message: string): 
  * out or revoked (a notice from the services), and a periodic check catches anything that changed behind their back.
  * Every entry point here (upgrade, message, notice, timer) catches its own failures: no client can stop the process.
  */
-export function attachLiveSocket(http: Server, auth: AuthService, hub: LiveHub, events: SessionEvents, log: Logger, opts: LiveSocketOptions): LiveSocket {
+export function attachLiveSocket(
+  http: Server,
+  auth: AuthService,
+  hub: LiveHub,
+  events: SessionEvents,
+  log: Logger,
+  opts: LiveSocketOptions,
+): LiveSocket {
   const wss = new WebSocketServer({ noServer: true, maxPayload: 16 * 1024 });
   const connections = new Set<Connection>();
 
@@ -92,23 +105,28 @@ export function attachLiveSocket(http: Server, auth: AuthService, hub: LiveHub, 
   });
 
   function upgrade(req: IncomingMessage, socket: Duplex, head: Buffer): void {
-    if (new URL(req.url ?? '/', 'http://localhost').pathname !== '/ws') return refuse(socket, 404, 'not_found', 'The live stream is at /ws.');
-    if (isForeignOrigin(req.headers, opts.allowedOrigins)) return refuse(socket, 403, 'foreign_origin', 'Live connections from pages on another site are refused.');
+    if (new URL(req.url ?? '/', 'http://localhost').pathname !== '/ws')
+      return refuse(socket, 404, 'not_found', 'The live stream is at /ws.');
+    if (isForeignOrigin(req.headers, opts.allowedOrigins))
+      return refuse(socket, 403, 'foreign_origin', 'Live connections from pages on another site are refused.');
     const token = parseCookies(req.headers.cookie ?? '')[SESSION_COOKIE];
-    auth.verify(token).then(
-      (caller) => {
-        if (socket.destroyed) return;
-        wss.handleUpgrade(req, socket, head, (ws) => serve(ws, caller));
-      },
-      (err: unknown) => {
-        if (err instanceof AppError && err.status === 401) return refuse(socket, 401, err.code, err.message);
-        log.error({ err }, 'live socket: session check failed');
-        refuse(socket, 503, 'unavailable', 'The session could not be checked. Try again shortly.');
-      },
-    ).catch((err: unknown) => {
-      log.error({ err }, 'live socket: upgrade failed');
-      socket.destroy();
-    });
+    auth
+      .verify(token)
+      .then(
+        (caller) => {
+          if (socket.destroyed) return;
+          wss.handleUpgrade(req, socket, head, (ws) => serve(ws, caller));
+        },
+        (err: unknown) => {
+          if (err instanceof AppError && err.status === 401) return refuse(socket, 401, err.code, err.message);
+          log.error({ err }, 'live socket: session check failed');
+          refuse(socket, 503, 'unavailable', 'The session could not be checked. Try again shortly.');
+        },
+      )
+      .catch((err: unknown) => {
+        log.error({ err }, 'live socket: upgrade failed');
+        socket.destroy();
+      });
   }
 
   function serve(ws: WebSocket, caller: SessionCaller): void {
@@ -152,7 +170,11 @@ export function attachLiveSocket(http: Server, auth: AuthService, hub: LiveHub, 
     }
     const msg = clientMessage.safeParse(json);
     if (!msg.success) {
-      return send({ type: 'error', code: 'bad_message', message: 'Send { "type": "subscribe" | "unsubscribe" } with one of fleet: true, siteId or unitId (positive whole numbers).' });
+      return send({
+        type: 'error',
+        code: 'bad_message',
+        message: 'Send { "type": "subscribe" | "unsubscribe" } with one of fleet: true, siteId or unitId (positive whole numbers).',
+      });
     }
     conn.live.handle(msg.data as LiveClientMessage);
   }
@@ -200,19 +222,25 @@ export function attachLiveSocket(http: Server, auth: AuthService, hub: LiveHub, 
         if (!checkFailing) log.error({ err }, 'live socket: session check failed');
         checkFailing = true;
       })
-      .finally(() => { checking = false; });
+      .finally(() => {
+        checking = false;
+      });
   }, opts.sessionRecheckMs);
   timer.unref();
 
   return {
-    get open() { return connections.size; },
+    get open() {
+      return connections.size;
+    },
     close() {
       clearInterval(timer);
       unsubscribe();
       // Upgraded sockets are no longer the HTTP server's to close, and an open dashboard would hold a graceful stop
       // forever: say "going away" (clients reconnect to the next server), then drop whatever has not closed.
       for (const conn of connections) conn.ws.close(1001, 'server stopping');
-      setTimeout(() => { for (const conn of connections) conn.ws.terminate(); }, 500).unref();
+      setTimeout(() => {
+        for (const conn of connections) conn.ws.terminate();
+      }, 500).unref();
       wss.close();
     },
   };

@@ -10,16 +10,30 @@ const name = z.string().trim().min(1, 'Required.').max(120, 'At most 120 charact
 const password = z
   .string({ error: 'Required.' })
   .min(10, 'At least 10 characters.')
-  .refine((s) => utf8Bytes(s) <= MAX_PASSWORD_BYTES, `At most ${MAX_PASSWORD_BYTES} bytes (UTF-8): fewer characters when they are accented or not Latin.`);
+  .refine(
+    (s) => utf8Bytes(s) <= MAX_PASSWORD_BYTES,
+    `At most ${MAX_PASSWORD_BYTES} bytes (UTF-8): fewer characters when they are accented or not Latin.`,
+  );
 const role = z.enum(ROLES, `Must be one of ${ROLES.join(', ')}.`);
 const id = z.number().int().positive();
 
-export const signInBody = z.strictObject({ email: z.string().min(1, 'Required.').max(254), password: z.string().min(1, 'Required.').max(200) });
+export const signInBody = z.strictObject({
+  email: z.string().min(1, 'Required.').max(254),
+  password: z.string().min(1, 'Required.').max(200),
+});
 
 export const createUserBody = z.strictObject({ email, name, role, ownerId: id.nullable().optional(), password });
-export const updateUserBody = z.strictObject({ name: name.optional(), role: role.optional(), ownerId: id.nullable().optional(), disabled: z.boolean().optional() });
+export const updateUserBody = z.strictObject({
+  name: name.optional(),
+  role: role.optional(),
+  ownerId: id.nullable().optional(),
+  disabled: z.boolean().optional(),
+});
 export const passwordBody = z.strictObject({ password });
-export const changePasswordBody = z.strictObject({ currentPassword: z.string({ error: 'Required.' }).min(1, 'Required.').max(200), newPassword: password });
+export const changePasswordBody = z.strictObject({
+  currentPassword: z.string({ error: 'Required.' }).min(1, 'Required.').max(200),
+  newPassword: password,
+});
 
 export const ownerBody = z.strictObject({ name, contactEmail: email.nullable().optional() });
 

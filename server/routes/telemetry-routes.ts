@@ -77,7 +77,12 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
     } catch (err) {
       if (err instanceof AppError) {
         const raw = Number((req.params as { id?: string }).id);
-        await d.commands.recordRefusal(caller, Number.isInteger(raw) && raw > 0 ? raw : null, (req.body as { kind?: unknown } | undefined)?.kind, err);
+        await d.commands.recordRefusal(
+          caller,
+          Number.isInteger(raw) && raw > 0 ? raw : null,
+          (req.body as { kind?: unknown } | undefined)?.kind,
+          err,
+        );
       }
       throw err;
     }
@@ -89,7 +94,11 @@ export function telemetryRoutes(d: TelemetryRouteDeps): Router {
   });
 
   r.get('/metrics', requireRole('readMetrics'), (_req, res) => {
-    res.json({ ingest: { ...d.ingest.counters, buffered: d.ingest.bufferedRows }, broker: d.brokerCounters?.() ?? null, rollups: { passes: d.rollups.passes } });
+    res.json({
+      ingest: { ...d.ingest.counters, buffered: d.ingest.bufferedRows },
+      broker: d.brokerCounters?.() ?? null,
+      rollups: { passes: d.rollups.passes },
+    });
   });
   return r;
 }

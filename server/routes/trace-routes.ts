@@ -11,7 +11,12 @@ const iso = z.iso.datetime({ offset: true, error: 'Must be an ISO 8601 time with
 const tracesQuery = z.strictObject({
   from: iso,
   to: iso,
-  points: z.coerce.number().int('Must be a whole number.').min(10, 'Must be between 10 and 5000.').max(5000, 'Must be between 10 and 5000.').default(2000),
+  points: z.coerce
+    .number()
+    .int('Must be a whole number.')
+    .min(10, 'Must be between 10 and 5000.')
+    .max(5000, 'Must be between 10 and 5000.')
+    .default(2000),
 });
 const csvQuery = z.strictObject({ from: iso, to: iso });
 
@@ -33,8 +38,16 @@ export function traceRoutes(admin: AdminService, traces: TraceService, audit: Au
     const q = parse(csvQuery, req.query);
     const { from, to } = checkRange(q.from, q.to, MAX_CSV_DAYS);
     // Recorded before the first byte: an export the log cannot record is not made.
-    await audit.record(callerOf(req), 'trace-export', `unit:${unit.id}`, { serial: unit.serial, from: from.toISOString(), to: to.toISOString() });
-    const stamp = (d: Date) => d.toISOString().replace(/[:]/g, '').replace(/\.\d{3}/, '');
+    await audit.record(callerOf(req), 'trace-export', `unit:${unit.id}`, {
+      serial: unit.serial,
+      from: from.toISOString(),
+      to: to.toISOString(),
+    });
+    const stamp = (d: Date) =>
+      d
+        .toISOString()
+        .replace(/[:]/g, '')
+        .replace(/\.\d{3}/, '');
     res.setHeader('Content-Type', 'text/csv; charset=utf-8; header=present');
     res.setHeader('Content-Disposition', `attachment; filename="${unit.serial}_${stamp(from)}_${stamp(to)}.csv"`);
     for await (const chunk of traces.csv(unit, from, to)) {

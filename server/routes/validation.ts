@@ -14,4 +14,7 @@ const zones = new Set([...Intl.supportedValuesOf('timeZone'), 'UTC']);
 export const timeZone = z.string().refine((z) => zones.has(z), 'Must be an IANA time zone such as Europe/Berlin.');
 
 export const num = (min: number, max: number, unit: string) =>
-  z.number({ error: `Must be a number (${unit}).` }).min(min, `Must be between ${min} and ${max} ${unit}.`).max(max, `Must be between ${min} and ${max} ${unit}.`);
+  z
+    .number({ error: `Must be a number (${unit}).` })
+    .min(min, `Must be between ${min} and ${max} ${unit}.`)
+    .max(max, `Must be between ${min} and ${max} ${unit}.`);

@@ -29,8 +29,19 @@ try {
     console.error(`[admin] ${email} already has an account; change its role or password from the People screen.`);
     process.exitCode = 1;
   } else {
-    const id = await users.insert({ email, name: parsed.data.name, role: 'admin', ownerId: null, passwordHash: await bcrypt.hash(password, config.bcryptCost) });
-    await new AuditRepository(db).append({ userId: null, action: 'user-create', target: `user:${id}`, detail: { email, role: 'admin', via: 'admin:create' } });
+    const id = await users.insert({
+      email,
+      name: parsed.data.name,
+      role: 'admin',
+      ownerId: null,
+      passwordHash: await bcrypt.hash(password, config.bcryptCost),
+    });
+    await new AuditRepository(db).append({
+      userId: null,
+      action: 'user-create',
+      target: `user:${id}`,
+      detail: { email, role: 'admin', via: 'admin:create' },
+    });
     console.log(`[admin] created admin ${email}`);
   }
 } catch (err) {

@@ -17,7 +17,9 @@ async function seedDemo(db: Db, bcryptCost: number): Promise<void> {
   const { seeded, deviceSecrets } = await seedDemoWorld(db, { newDeviceSecret, hashDeviceSecret }, { bcryptCost });
   if (seeded) {
     writeSecrets(deviceSecrets);
-    console.log(`[db] demo world seeded (invented data; demo passwords — never use this database for real units). Device secrets in ${DEMO_SECRETS_FILE}`);
+    console.log(
+      `[db] demo world seeded (invented data; demo passwords — never use this database for real units). Device secrets in ${DEMO_SECRETS_FILE}`,
+    );
     return;
   }
   if (!secretsCoverDemo()) {

@@ -26,6 +26,7 @@ step() { # name command...
   if "$@"; then echo "=== $name: ok ($((SECONDS - t0)) s)"; else echo "=== $name: FAILED ($((SECONDS - t0)) s)"; failed+=("$name"); fi
 }
 step "lint (layering, TypeScript, Angular)" npx eslint --config .config/eslint.config.mjs .
+step "format (Prettier)" npx prettier --check --log-level warn .
 step "typecheck (server, broker, shared, simulator, tests)" npx tsc -p test/tsconfig.json
 step "node suites (vitest)" npx vitest run --config test/vitest.config.ts
 step "angular unit tests" npx ng test --watch=false

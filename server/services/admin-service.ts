@@ -1,5 +1,13 @@
 import type {
-  CreateUserRequest, Owner, OwnerInput, Site, SiteInput, Unit, UnitInput, UpdateUserRequest, User,
+  CreateUserRequest,
+  Owner,
+  OwnerInput,
+  Site,
+  SiteInput,
+  Unit,
+  UnitInput,
+  UpdateUserRequest,
+  User,
 } from '../../shared/contracts/api';
 import { badRequest, conflict, notFound } from '../errors/app-error';
 import type { AuditRepository } from '../data/audit-repository';
@@ -65,7 +73,10 @@ export class AdminService {
     if (await this.repo.users.findByEmail(email)) throw conflict('That e-mail is already in use.', { email: 'Already in use.' });
     const ownerId = await this.checkOwnerLink(input.role, input.ownerId ?? null);
     const id = await this.repo.users.insert({
-      email, name: input.name, role: input.role, ownerId,
+      email,
+      name: input.name,
+      role: input.role,
+      ownerId,
       passwordHash: await this.passwords.hash(input.password),
     });
     await this.repo.audit.append({ userId: by.id, action: 'user-create', target: `user:${id}`, detail: { email, role: input.role } });
@@ -76,13 +87,20 @@ export class AdminService {
     const current = await this.repo.users.findById(id);
     if (!current) throw notFound('User');
     const role = patch.role ?? current.role;
-    const ownerId = await this.checkOwnerLink(role, patch.ownerId !== undefined ? patch.ownerId : role === 'owner' ? current.ownerId : null);
+    const ownerId = await this.checkOwnerLink(
+      role,
+      patch.ownerId !== undefined ? patch.ownerId : role === 'owner' ? current.ownerId : null,
+    );
     if (id === by.id && (patch.disabled || (patch.role && patch.role !== 'admin'))) {
-      throw badRequest('You cannot disable yourself or remove your own admin role.', patch.disabled ? { disabled: 'Not for your own account.' } : { role: 'Not for your own account.' });
+      throw badRequest(
+        'You cannot disable yourself or remove your own admin role.',
+        patch.disabled ? { disabled: 'Not for your own account.' } : { role: 'Not for your own account.' },
+      );
     }
     await this.repo.users.update(id, {
       ...(patch.name !== undefined ? { name: patch.name } : {}),
-      role, ownerId,
+      role,
+      ownerId,
       ...(patch.disabled !== undefined ? { disabled: patch.disabled } : {}),
     });
     await this.repo.audit.append({ userId: by.id, action: 'user-update', target: `user:${id}`, detail: patch });
@@ -170,7 +188,8 @@ export class AdminService {
   }
 
   private async checkSite(input: Partial<SiteInput>, id?: number): Promise<void> {
-    if (input.ownerId !== undefined && !(await this.repo.owners.findById(input.ownerId))) throw badRequest('No such owner.', { ownerId: 'No such owner.' });
+    if (input.ownerId !== undefined && !(await this.repo.owners.findById(input.ownerId)))
+      throw badRequest('No such owner.', { ownerId: 'No such owner.' });
     if (input.name !== undefined) {
       const other = await this.repo.sites.findByName(input.name);
       if (other && other.id !== id) throw conflict('A site with that name exists.', { name: 'Already in use.' });
@@ -204,7 +223,9 @@ export class AdminService {
     await this.repo.audit.append({ userId: by.id, action: 'unit-update', target: `unit:${id}`, detail: patch });
     const renamed = patch.serial !== undefined && patch.serial !== current.serial;
     await this.unitChanged(id, {
-      credentialsChanged: renamed, disabled: patch.disabled ?? current.disabled, serial: patch.serial ?? current.serial,
+      credentialsChanged: renamed,
+      disabled: patch.disabled ?? current.disabled,
+      serial: patch.serial ?? current.serial,
       ...(renamed ? { previousSerial: current.serial } : {}),
     });
     return this.getUnit(by, id);

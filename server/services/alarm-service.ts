@@ -29,7 +29,9 @@ export class AlarmService {
   async acknowledge(c: Caller, id: number): Promise<AlarmView> {
     const a = await this.get(c, id);
     await this.repo.acknowledge(id, c.id, new Date(this.now()), {
-      action: 'alarm-acknowledge', target: `alarm:${id}`, detail: { unitId: a.unitId, serial: a.serial, siteId: a.siteId, kind: a.kind, severity: a.severity },
+      action: 'alarm-acknowledge',
+      target: `alarm:${id}`,
+      detail: { unitId: a.unitId, serial: a.serial, siteId: a.siteId, kind: a.kind, severity: a.severity },
     });
     const v = await this.get(c, id);
     if (v.unitId !== null) this.live.publishAlarm(v.unitId, v);

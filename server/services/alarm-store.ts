@@ -42,23 +42,31 @@ export class AlarmStore {
       return null;
     });
     this.dbIds.set(a.key, p);
-    this.track(p.then((id) => {
-      if (id === null) return;
-      const v = alarmView(id, a);
-      this.publish(a, v);
-      for (const l of this.raisedListeners) {
-        try {
-          l(v);
-        } catch (err) {
-          this.log.error({ err }, 'alarm-raised listener failed');
+    this.track(
+      p.then((id) => {
+        if (id === null) return;
+        const v = alarmView(id, a);
+        this.publish(a, v);
+        for (const l of this.raisedListeners) {
+          try {
+            l(v);
+          } catch (err) {
+            this.log.error({ err }, 'alarm-raised listener failed');
+          }
         }
-      }
-    }));
+      }),
+    );
   }
 
   updated(a: Alarm): void {
     // What the alarm says now: the engine keeps changing its record while the write waits its turn.
-    const seen = { severity: a.severity, message: a.message, advice: a.advice, evidence: structuredClone(a.evidence), lastSeenMs: a.lastSeenMs };
+    const seen = {
+      severity: a.severity,
+      message: a.message,
+      advice: a.advice,
+      evidence: structuredClone(a.evidence),
+      lastSeenMs: a.lastSeenMs,
+    };
     this.chain(a, (id) => this.repo.markSeen(id, seen));
   }
 

@@ -29,10 +29,14 @@ function labelOf(target: string | null, names: TargetNames): string | null {
   if (!t) return target;
   const missing = `${t.kind[0]!.toUpperCase()}${t.kind.slice(1)} ${t.id} (no longer exists)`;
   switch (t.kind) {
-    case 'unit': return names.units.has(t.id) ? `Unit ${names.units.get(t.id)}` : missing;
-    case 'site': return names.sites.has(t.id) ? `Site ${names.sites.get(t.id)}` : missing;
-    case 'owner': return names.owners.has(t.id) ? `Owner ${names.owners.get(t.id)}` : missing;
-    case 'user': return names.users.has(t.id) ? `Person ${names.users.get(t.id)}` : missing;
+    case 'unit':
+      return names.units.has(t.id) ? `Unit ${names.units.get(t.id)}` : missing;
+    case 'site':
+      return names.sites.has(t.id) ? `Site ${names.sites.get(t.id)}` : missing;
+    case 'owner':
+      return names.owners.has(t.id) ? `Owner ${names.owners.get(t.id)}` : missing;
+    case 'user':
+      return names.users.has(t.id) ? `Person ${names.users.get(t.id)}` : missing;
     case 'alarm': {
       const a = names.alarms.get(t.id);
       if (!a) return missing;
@@ -69,7 +73,8 @@ function toEntry(r: StoredAuditEntry, names: TargetNames): AuditLogEntry {
   return {
     id: r.id,
     at: r.at.toISOString(),
-    user: r.userId === null ? null : { id: r.userId, name: r.userName ?? `Person ${r.userId} (no longer exists)`, email: r.userEmail ?? '' },
+    user:
+      r.userId === null ? null : { id: r.userId, name: r.userName ?? `Person ${r.userId} (no longer exists)`, email: r.userEmail ?? '' },
     action: r.action,
     target: r.target,
     targetLabel: labelOf(r.target, names),

@@ -71,7 +71,12 @@ export class AuthService implements SessionRevoker {
     if (!(await this.limiter.take([accountKey]))) throw tooMany();
     const ok = await this.passwords.verify(password, row?.passwordHash);
     if (!row || row.disabled || !ok) {
-      await this.repo.audit.append({ userId: row?.id ?? null, action: 'sign-in-failed', target: email.toLowerCase().slice(0, 128), detail: { address } });
+      await this.repo.audit.append({
+        userId: row?.id ?? null,
+        action: 'sign-in-failed',
+        target: email.toLowerCase().slice(0, 128),
+        detail: { address },
+      });
       throw new AppError(401, 'invalid_credentials', GENERIC);
     }
     await this.limiter.giveBack([addressKey, accountKey]);
@@ -119,11 +124,17 @@ export class AuthService implements SessionRevoker {
     const row = await this.repo.users.findById(caller.id);
     if (!row || row.disabled) throw unauthorized(ENDED);
     if (!(await this.passwords.verify(currentPassword, row.passwordHash))) {
-      await this.repo.audit.append({ userId: caller.id, action: 'password-change-failed', target: `user:${caller.id}`, detail: { address } });
+      await this.repo.audit.append({
+        userId: caller.id,
+        action: 'password-change-failed',
+        target: `user:${caller.id}`,
+        detail: { address },
+      });
       throw badRequest('The current password is not right.', { currentPassword: 'That is not your current password.' });
     }
     await this.limiter.giveBack([accountKey]);
-    if (newPassword === currentPassword) throw badRequest('The new password is the current one.', { newPassword: 'Choose a password different from the current one.' });
+    if (newPassword === currentPassword)
+      throw badRequest('The new password is the current one.', { newPassword: 'Choose a password different from the current one.' });
     await this.repo.users.update(caller.id, { passwordHash: await this.passwords.hash(newPassword) });
     await this.endSessionsOf(caller.id, caller.sessionId);
     await this.repo.audit.append({ userId: caller.id, action: 'password-change', target: `user:${caller.id}`, detail: { address } });
@@ -143,7 +154,8 @@ export class AuthService implements SessionRevoker {
     if (!token) return null;
     try {
       const p = jwt.verify(token, this.key, { algorithms: ['HS256'] });
-      if (typeof p !== 'object' || typeof p.sid !== 'string' || !/^[0-9a-f]{32}$/.test(p.sid) || !/^[1-9]\d{0,9}$/.test(String(p.sub))) return null;
+      if (typeof p !== 'object' || typeof p.sid !== 'string' || !/^[0-9a-f]{32}$/.test(p.sid) || !/^[1-9]\d{0,9}$/.test(String(p.sub)))
+        return null;
       return { sub: Number(p.sub), sid: p.sid };
     } catch {
       return null;

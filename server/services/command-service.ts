@@ -73,7 +73,11 @@ export class CommandService {
       this.checkRequest(by, unit, req);
       return await this.inOrder(unit.id, () => {
         const u = this.units.byUnitId(unit.id) ?? unit; // current serial after waiting for earlier requests
-        return req.kind === 'hold' ? this.placeHold(by, u, req.note) : req.kind === 'release-hold' ? this.releaseHold(by, u, req.holdId, req.reason) : this.issueCommand(by, u, req);
+        return req.kind === 'hold'
+          ? this.placeHold(by, u, req.note)
+          : req.kind === 'release-hold'
+            ? this.releaseHold(by, u, req.holdId, req.reason)
+            : this.issueCommand(by, u, req);
       });
     } catch (err) {
       if (err instanceof AppError) await this.recordRefusal(by, unitId, req.kind, err);
@@ -88,8 +92,16 @@ export class CommandService {
   async recordRefusal(by: Caller, unitId: number | null, kind: unknown, err: AppError): Promise<void> {
     try {
       await this.store.audit.append({
-        userId: by.id, action: 'command-refused', ...(unitId !== null ? { target: `unit:${unitId}` } : {}),
-        detail: { kind: typeof kind === 'string' ? kind.slice(0, 32) : null, status: err.status, code: err.code, message: err.message, ...(err.fields ? { fields: err.fields } : {}) },
+        userId: by.id,
+        action: 'command-refused',
+        ...(unitId !== null ? { target: `unit:${unitId}` } : {}),
+        detail: {
+          kind: typeof kind === 'string' ? kind.slice(0, 32) : null,
+          status: err.status,
+          code: err.code,
+          message: err.message,
+          ...(err.fields ? { fields: err.fields } : {}),
+        },
       });
     } catch (auditErr) {
       this.log.error({ err: auditErr, unitId, code: err.code }, 'refused command not audited');
@@ -113,9 +125,11 @@ export class CommandService {
     const prev = this.ackChains.get(ack.commandId) ?? Promise.resolve();
     const next = prev.then(() => this.applyAck(unit, ack));
     this.ackChains.set(ack.commandId, next);
-    void next.finally(() => {
-      if (this.ackChains.get(ack.commandId) === next) this.ackChains.delete(ack.commandId);
-    }).catch(() => undefined);
+    void next
+      .finally(() => {
+        if (this.ackChains.get(ack.commandId) === next) this.ackChains.delete(ack.commandId);
+      })
+      .catch(() => undefined);
     return next;
   }
 
@@ -140,8 +154,10 @@ export class CommandService {
   async sweep(): Promise<void> {
     const now = this.opts.now();
     for (const cmd of await this.store.commands.open()) {
-      if (cmd.status === 'queued' && expires(cmd.kind) && now - cmd.issuedAt.getTime() > this.opts.queueTimeoutMs) await this.finish(cmd, 'timed-out', 'unit stayed offline');
-      else if (cmd.status === 'sent' && cmd.sentAt && now - cmd.sentAt.getTime() > this.opts.ackTimeoutMs) await this.finish(cmd, 'timed-out', 'no answer from the unit');
+      if (cmd.status === 'queued' && expires(cmd.kind) && now - cmd.issuedAt.getTime() > this.opts.queueTimeoutMs)
+        await this.finish(cmd, 'timed-out', 'unit stayed offline');
+      else if (cmd.status === 'sent' && cmd.sentAt && now - cmd.sentAt.getTime() > this.opts.ackTimeoutMs)
+        await this.finish(cmd, 'timed-out', 'no answer from the unit');
     }
   }
 
@@ -155,20 +171,35 @@ export class CommandService {
 
   private checkRequest(by: Caller, unit: UnitInfo, req: IssueCommandRequest): void {
     if (!may(by.role, 'command')) throw forbidden('Owners cannot command units.');
-    if (by.role === 'crew' && !HOLD_KINDS.includes(req.kind)) throw forbidden('Field crews may only put a unit on maintenance hold or release it.');
+    if (by.role === 'crew' && !HOLD_KINDS.includes(req.kind))
+      throw forbidden('Field crews may only put a unit on maintenance hold or release it.');
     const misplaced: Record<string, string> = {};
     if (req.note !== undefined && req.kind !== 'hold') misplaced['note'] = 'Only for hold.';
     if (req.holdId !== undefined && req.kind !== 'release-hold') misplaced['holdId'] = 'Only for release-hold.';
     if (req.reason !== undefined && req.kind !== 'release-hold') misplaced['reason'] = 'Only for release-hold.';
-    if (Object.keys(misplaced).length) throw badRequest(`Field(s) ${Object.keys(misplaced).join(', ')} do not belong to ${req.kind}.`, misplaced);
+    if (Object.keys(misplaced).length)
+      throw badRequest(`Field(s) ${Object.keys(misplaced).join(', ')} do not belong to ${req.kind}.`, misplaced);
     if (req.kind === 'goto' && (req.tiltDeg === undefined || req.azimuthDeg === undefined)) {
-      throw badRequest('Go to needs a tilt and an azimuth.', { ...(req.tiltDeg === undefined ? { tiltDeg: 'Required for go to.' } : {}), ...(req.azimuthDeg === undefined ? { azimuthDeg: 'Required for go to.' } : {}) });
+      throw badRequest('Go to needs a tilt and an azimuth.', {
+        ...(req.tiltDeg === undefined ? { tiltDeg: 'Required for go to.' } : {}),
+        ...(req.azimuthDeg === undefined ? { azimuthDeg: 'Required for go to.' } : {}),
+      });
     }
-    if (req.kind === 'configure' && (!req.config || !Object.keys(req.config).length)) throw badRequest('Configure needs at least one setting.', { config: 'Required for configure.' });
+    if (req.kind === 'configure' && (!req.config || !Object.keys(req.config).length))
+      throw badRequest('Configure needs at least one setting.', { config: 'Required for configure.' });
     if (req.confirm !== true) {
-      if (MOTION_COMMANDS.includes(req.kind)) throw badRequest('Motion commands must be confirmed: make sure nobody is within reach of the unit.', { confirm: 'Must be true for a command that moves the unit.' });
-      if (req.kind === 'release-hold') throw badRequest(`Releasing a hold on ${unit.serial} must be confirmed: the unit may move at once.`, { confirm: 'Must be true to release a hold: the unit may move at once.' });
-      if (req.kind === 'configure') throw badRequest(`New settings for ${unit.serial} must be confirmed: they change how the unit moves.`, { confirm: 'Must be true for configure: new settings change how the unit moves.' });
+      if (MOTION_COMMANDS.includes(req.kind))
+        throw badRequest('Motion commands must be confirmed: make sure nobody is within reach of the unit.', {
+          confirm: 'Must be true for a command that moves the unit.',
+        });
+      if (req.kind === 'release-hold')
+        throw badRequest(`Releasing a hold on ${unit.serial} must be confirmed: the unit may move at once.`, {
+          confirm: 'Must be true to release a hold: the unit may move at once.',
+        });
+      if (req.kind === 'configure')
+        throw badRequest(`New settings for ${unit.serial} must be confirmed: they change how the unit moves.`, {
+          confirm: 'Must be true for configure: new settings change how the unit moves.',
+        });
     }
   }
 
@@ -189,7 +220,8 @@ export class CommandService {
   private async issueCommand(by: Caller, unit: UnitInfo, req: IssueCommandRequest): Promise<CommandView> {
     const motion = MOTION_COMMANDS.includes(req.kind);
     const now = new Date(this.opts.now());
-    const params = req.kind === 'goto' ? { tiltDeg: req.tiltDeg, azimuthDeg: req.azimuthDeg } : req.kind === 'configure' ? { config: req.config } : null;
+    const params =
+      req.kind === 'goto' ? { tiltDeg: req.tiltDeg, azimuthDeg: req.azimuthDeg } : req.kind === 'configure' ? { config: req.config } : null;
     const row = this.newRow(by.id, unit, req.kind, now, params);
     await this.store.locked(unit.id, async (tx) => {
       if (motion) {
@@ -210,14 +242,39 @@ export class CommandService {
         throw new AppError(409, 'already_holding', `You already hold ${unit.serial}: your hold stays in force until you release it.`);
       }
       const first = before.length === 0;
-      const row = this.newRow(by.id, unit, 'hold', now, null, first ? null : { status: 'completed', reason: 'Added to the hold already in force: nothing more to send to the unit.' });
+      const row = this.newRow(
+        by.id,
+        unit,
+        'hold',
+        now,
+        null,
+        first ? null : { status: 'completed', reason: 'Added to the hold already in force: nothing more to send to the unit.' },
+      );
       await tx.commands.insert(row);
-      const holdId = await tx.holds.insert({ unitId: unit.id, holderKind: 'person', holderId: by.id, note: note?.trim() || null, placedAt: now, placedBy: by.id, commandId: row.id });
+      const holdId = await tx.holds.insert({
+        unitId: unit.id,
+        holderKind: 'person',
+        holderId: by.id,
+        note: note?.trim() || null,
+        placedAt: now,
+        placedBy: by.id,
+        commandId: row.id,
+      });
       const holds = await tx.holds.active(unit.id);
       const name = holds.find((h) => h.id === holdId)!.holder.name;
-      const cancelled = await tx.commands.cancelQueued(unit.id, MOTION_COMMANDS, `Cancelled before it reached the unit: maintenance hold placed by ${name}.`, now);
+      const cancelled = await tx.commands.cancelQueued(
+        unit.id,
+        MOTION_COMMANDS,
+        `Cancelled before it reached the unit: maintenance hold placed by ${name}.`,
+        now,
+      );
       await this.auditCommand(tx, by, unit, row, { holdId });
-      await tx.audit.append({ userId: by.id, action: 'hold-place', target: `unit:${unit.id}`, detail: { holdId, commandId: row.id, note: note?.trim() || null, firstHold: first, cancelledCommands: cancelled } });
+      await tx.audit.append({
+        userId: by.id,
+        action: 'hold-place',
+        target: `unit:${unit.id}`,
+        detail: { holdId, commandId: row.id, note: note?.trim() || null, firstHold: first, cancelledCommands: cancelled },
+      });
       return { row, holds, cancelled };
     });
     this.holdsChanged(unit, holds);
@@ -230,11 +287,20 @@ export class CommandService {
     const why = reason?.trim() || null;
     const { row, holds } = await this.store.locked(unit.id, async (tx) => {
       const active = await tx.holds.active(unit.id);
-      const hold = holdId === undefined ? active.find((h) => h.holder.kind === 'person' && h.holder.id === by.id) : active.find((h) => h.id === holdId);
+      const hold =
+        holdId === undefined
+          ? active.find((h) => h.holder.kind === 'person' && h.holder.id === by.id)
+          : active.find((h) => h.id === holdId);
       if (!hold && holdId === undefined) {
         if (!active.length) throw new AppError(409, 'not_held', `${unit.serial} is not on hold.`);
-        throw new AppError(409, 'no_own_hold', `You have no hold on ${unit.serial} to release. ` +
-          (by.role === 'admin' ? 'To release someone else\'s, name the hold (holdId) and give a reason.' : `It is held by ${active.map((h) => h.holder.name).join(', ')}; a hold is released by its holder, or by an admin giving a reason.`));
+        throw new AppError(
+          409,
+          'no_own_hold',
+          `You have no hold on ${unit.serial} to release. ` +
+            (by.role === 'admin'
+              ? "To release someone else's, name the hold (holdId) and give a reason."
+              : `It is held by ${active.map((h) => h.holder.name).join(', ')}; a hold is released by its holder, or by an admin giving a reason.`),
+        );
       }
       if (!hold) {
         const old = await tx.holds.get(holdId!);
@@ -243,20 +309,36 @@ export class CommandService {
       }
       const own = hold.holder.kind === 'person' && hold.holder.id === by.id;
       if (!own && by.role !== 'admin') {
-        throw forbidden(hold.holder.kind === 'ticket'
-          ? 'A ticket\'s hold is released by the ticket\'s check-out, cancel or close, or by an admin giving a reason.'
-          : `Only ${hold.holder.name}, who placed this hold, or an admin giving a reason may release it.`);
+        throw forbidden(
+          hold.holder.kind === 'ticket'
+            ? "A ticket's hold is released by the ticket's check-out, cancel or close, or by an admin giving a reason."
+            : `Only ${hold.holder.name}, who placed this hold, or an admin giving a reason may release it.`,
+        );
       }
-      if (!own && !why) throw badRequest('Say why you release a hold that is not yours.', { reason: 'Required when releasing someone else\'s hold.' });
-      if (!(await tx.holds.release(hold.id, { releasedAt: now, releasedBy: by.id, releaseReason: why }))) throw new AppError(409, 'hold_released', 'That hold was already released.');
+      if (!own && !why)
+        throw badRequest('Say why you release a hold that is not yours.', { reason: "Required when releasing someone else's hold." });
+      if (!(await tx.holds.release(hold.id, { releasedAt: now, releasedBy: by.id, releaseReason: why })))
+        throw new AppError(409, 'hold_released', 'That hold was already released.');
       const holds = active.filter((h) => h.id !== hold.id);
-      const row = this.newRow(by.id, unit, 'release-hold', now, null, holds.length
-        ? { status: 'completed', reason: `Hold released; ${holds.length === 1 ? 'another hold keeps' : `${holds.length} other holds keep`} the unit held, so nothing was sent.` }
-        : null);
+      const row = this.newRow(
+        by.id,
+        unit,
+        'release-hold',
+        now,
+        null,
+        holds.length
+          ? {
+              status: 'completed',
+              reason: `Hold released; ${holds.length === 1 ? 'another hold keeps' : `${holds.length} other holds keep`} the unit held, so nothing was sent.`,
+            }
+          : null,
+      );
       await tx.commands.insert(row);
       await this.auditCommand(tx, by, unit, row, { holdId: hold.id });
       await tx.audit.append({
-        userId: by.id, action: 'hold-release', target: `unit:${unit.id}`,
+        userId: by.id,
+        action: 'hold-release',
+        target: `unit:${unit.id}`,
         detail: { holdId: hold.id, holder: hold.holder, ownHold: own, reason: why, commandId: row.id, holdsLeft: holds.length },
       });
       return { row, holds };
@@ -287,7 +369,12 @@ export class CommandService {
     const row = this.newRow(by, unit, kind, new Date(this.opts.now()), null);
     await this.store.locked(unit.id, async (tx) => {
       await tx.commands.insert(row);
-      await tx.audit.append({ userId: by, action: 'command', target: `unit:${unit.id}`, detail: { commandId: row.id, kind, resentAfter: after?.id ?? null, why: 'unit came online without the hold state of its holds' } });
+      await tx.audit.append({
+        userId: by,
+        action: 'command',
+        target: `unit:${unit.id}`,
+        detail: { commandId: row.id, kind, resentAfter: after?.id ?? null, why: 'unit came online without the hold state of its holds' },
+      });
     });
     await this.emit(row.id);
   }
@@ -300,7 +387,12 @@ export class CommandService {
     if (ack.result === 'accepted' && cmd.status === 'acknowledged') return;
     const at = new Date(this.opts.now());
     if (ack.result === 'rejected') {
-      await this.store.commands.update(cmd.id, { status: 'rejected', reason: ack.reason ?? 'rejected by the unit', ackedAt: cmd.ackedAt ?? at, finishedAt: at });
+      await this.store.commands.update(cmd.id, {
+        status: 'rejected',
+        reason: ack.reason ?? 'rejected by the unit',
+        ackedAt: cmd.ackedAt ?? at,
+        finishedAt: at,
+      });
     } else if (ack.result === 'accepted') {
       await this.store.commands.update(cmd.id, { status: 'acknowledged', ackedAt: at });
     } else {
@@ -309,15 +401,36 @@ export class CommandService {
     await this.emit(cmd.id);
   }
 
-  private newRow(byUserId: number, unit: UnitInfo, kind: CommandKind, at: Date, params: object | null, done?: { status: 'completed'; reason: string } | null): StoredCommand {
+  private newRow(
+    byUserId: number,
+    unit: UnitInfo,
+    kind: CommandKind,
+    at: Date,
+    params: object | null,
+    done?: { status: 'completed'; reason: string } | null,
+  ): StoredCommand {
     return {
-      id: randomUUID(), unitId: unit.id, kind, params: params ? { ...params } : null, status: done?.status ?? 'queued',
-      reason: done?.reason ?? null, issuedBy: byUserId, issuedAt: at, sentAt: null, ackedAt: null, finishedAt: done ? at : null,
+      id: randomUUID(),
+      unitId: unit.id,
+      kind,
+      params: params ? { ...params } : null,
+      status: done?.status ?? 'queued',
+      reason: done?.reason ?? null,
+      issuedBy: byUserId,
+      issuedAt: at,
+      sentAt: null,
+      ackedAt: null,
+      finishedAt: done ? at : null,
     };
   }
 
   private auditCommand(tx: CommandTx, by: Caller, unit: UnitInfo, row: StoredCommand, detail: object): Promise<void> {
-    return tx.audit.append({ userId: by.id, action: 'command', target: `unit:${unit.id}`, detail: { commandId: row.id, kind: row.kind, ...detail } });
+    return tx.audit.append({
+      userId: by.id,
+      action: 'command',
+      target: `unit:${unit.id}`,
+      detail: { commandId: row.id, kind: row.kind, ...detail },
+    });
   }
 
   /** After a stored request: send it now if it is queued and the unit is online, and tell the dashboards. */
@@ -357,7 +470,11 @@ export class CommandService {
   }
 
   private withExpiry(v: CommandView): CommandView {
-    return { ...v, expiresAt: v.status === 'queued' && expires(v.kind) ? new Date(Date.parse(v.issuedAt) + this.opts.queueTimeoutMs).toISOString() : null };
+    return {
+      ...v,
+      expiresAt:
+        v.status === 'queued' && expires(v.kind) ? new Date(Date.parse(v.issuedAt) + this.opts.queueTimeoutMs).toISOString() : null,
+    };
   }
 
   private async emit(id: string): Promise<CommandView> {
@@ -370,9 +487,11 @@ export class CommandService {
   private inOrder<T>(unitId: number, fn: () => Promise<T>): Promise<T> {
     const next = (this.unitChains.get(unitId) ?? Promise.resolve()).catch(() => undefined).then(fn);
     this.unitChains.set(unitId, next);
-    void next.catch(() => undefined).finally(() => {
-      if (this.unitChains.get(unitId) === next) this.unitChains.delete(unitId);
-    });
+    void next
+      .catch(() => undefined)
+      .finally(() => {
+        if (this.unitChains.get(unitId) === next) this.unitChains.delete(unitId);
+      });
     return next;
   }
 }

@@ -48,16 +48,25 @@ export class HealthReplay {
     const from = Date.parse(req.from);
     const to = Date.parse(req.to);
     if (!(from < to)) throw badRequest('The range is empty.', { to: 'Must be after from.' });
-    if (to - from > RUN_MAX_HOURS * 3_600_000) throw badRequest(`The range is longer than ${RUN_MAX_HOURS} h.`, { to: `At most ${RUN_MAX_HOURS} h after from.` });
+    if (to - from > RUN_MAX_HOURS * 3_600_000)
+      throw badRequest(`The range is longer than ${RUN_MAX_HOURS} h.`, { to: `At most ${RUN_MAX_HOURS} h after from.` });
     const visible = new Set((await this.admin.listUnits(c)).map((u) => u.id));
     const ids = (req.unitIds ?? [...visible]).filter((id) => visible.has(id));
     if (req.unitIds && ids.length !== req.unitIds.length) throw notFound('Unit');
     const infos = ids.map((id) => this.units.byUnitId(id)).filter((u): u is UnitInfo => !!u);
-    const rows = infos.length ? await this.reads.telemetryRange(infos.map((u) => u.id), new Date(from), new Date(to), RUN_MAX_ROWS) : [];
+    const rows = infos.length
+      ? await this.reads.telemetryRange(
+          infos.map((u) => u.id),
+          new Date(from),
+          new Date(to),
+          RUN_MAX_ROWS,
+        )
+      : [];
     const slotMs = SLOT_MS;
     const cache = new Map<string, SiteModel | undefined>();
     for (const siteId of new Set(infos.map((u) => u.siteId))) {
-      for (let s = Math.floor(from / slotMs) * slotMs; s < to; s += slotMs) cache.set(`${siteId}@${s}`, await this.models.build(siteId, s + slotMs / 2).catch(() => undefined));
+      for (let s = Math.floor(from / slotMs) * slotMs; s < to; s += slotMs)
+        cache.set(`${siteId}@${s}`, await this.models.build(siteId, s + slotMs / 2).catch(() => undefined));
     }
     let clock = from;
     const engine = new HealthEngine({

@@ -24,7 +24,14 @@ export interface HealthServiceOptions extends SiteModelCacheOptions {
   restoreGraceMs: number;
 }
 
-export const DEFAULT_HEALTH_SERVICE_OPTIONS: HealthServiceOptions = { now: Date.now, tickMs: 5000, modelRefreshMs: 5 * 60_000, modelMaxAgeMs: 15 * 60_000, maxTiltDeg: 85, restoreGraceMs: 60_000 };
+export const DEFAULT_HEALTH_SERVICE_OPTIONS: HealthServiceOptions = {
+  now: Date.now,
+  tickMs: 5000,
+  modelRefreshMs: 5 * 60_000,
+  modelMaxAgeMs: 15 * 60_000,
+  maxTiltDeg: 85,
+  restoreGraceMs: 60_000,
+};
 
 export class HealthService {
   readonly engine: HealthEngine;
@@ -48,7 +55,17 @@ export class HealthService {
         raised: (a) => this.store.raised(a),
         updated: (a) => this.store.updated(a),
         cleared: (a) => this.store.cleared(a),
-        stow: (e) => live.publishAlarm(e.unitId, { kind: 'wind-stow', severity: 'P4', state: 'event', serial: e.serial, siteId: e.siteId, at: new Date(e.atMs).toISOString(), event: e.kind, message: e.message }),
+        stow: (e) =>
+          live.publishAlarm(e.unitId, {
+            kind: 'wind-stow',
+            severity: 'P4',
+            state: 'event',
+            serial: e.serial,
+            siteId: e.siteId,
+            at: new Date(e.atMs).toISOString(),
+            event: e.kind,
+            message: e.message,
+          }),
       },
     });
   }

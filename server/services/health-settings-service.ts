@@ -1,6 +1,13 @@
 import type { Logger } from 'pino';
 import type { HealthSettingsRepository, StoredOverrides } from '../data/health-settings-repository';
-import { resolveHealthSettings, sanitizeStoredOverrides, DEFAULT_HEALTH_SETTINGS, HEALTH_SETTING_RANGES, type HealthSettings, type HealthSettingsOverride } from '../health/health-settings';
+import {
+  resolveHealthSettings,
+  sanitizeStoredOverrides,
+  DEFAULT_HEALTH_SETTINGS,
+  HEALTH_SETTING_RANGES,
+  type HealthSettings,
+  type HealthSettingsOverride,
+} from '../health/health-settings';
 import type { AdminService } from './admin-service';
 import type { Caller } from './caller';
 
@@ -35,7 +42,12 @@ export class HealthSettingsService {
   async siteSettings(c: Caller, siteId: number): Promise<SiteHealthSettings> {
     await this.admin.getSite(c, siteId);
     const overrides = this.stored(siteId, await this.repo.settings(siteId));
-    return { defaults: { ...DEFAULT_HEALTH_SETTINGS }, overrides, effective: resolveHealthSettings(overrides), ranges: HEALTH_SETTING_RANGES };
+    return {
+      defaults: { ...DEFAULT_HEALTH_SETTINGS },
+      overrides,
+      effective: resolveHealthSettings(overrides),
+      ranges: HEALTH_SETTING_RANGES,
+    };
   }
 
   /** Replaces a site's overrides (already validated against the ranges). */
@@ -43,7 +55,9 @@ export class HealthSettingsService {
     await this.admin.getSite(c, siteId);
     const overrides = Object.fromEntries(Object.entries(override).filter(([, v]) => v !== undefined)) as Record<string, number>;
     await this.repo.saveSettings(siteId, overrides, c.id, new Date(this.now()), (before) => ({
-      action: 'health-settings-update', target: `site:${siteId}`, detail: { before: before ?? {}, after: overrides },
+      action: 'health-settings-update',
+      target: `site:${siteId}`,
+      detail: { before: before ?? {}, after: overrides },
     }));
     this.settings.set(siteId, resolveHealthSettings(overrides));
     return this.siteSettings(c, siteId);
@@ -51,6 +65,8 @@ export class HealthSettingsService {
 
   /** Stored overrides within their ranges; anything else (written before the ranges existed) falls back to its default. */
   private stored(siteId: number, overrides: StoredOverrides | null): HealthSettingsOverride {
-    return sanitizeStoredOverrides(overrides, (key, value) => this.log.warn({ siteId, key, value }, 'stored health setting out of range: its default applies'));
+    return sanitizeStoredOverrides(overrides, (key, value) =>
+      this.log.warn({ siteId, key, value }, 'stored health setting out of range: its default applies'),
+    );
   }
 }

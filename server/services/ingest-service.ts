@@ -1,12 +1,28 @@
 import type { Logger } from 'pino';
 import {
-  ackSchema, eventSchema, statusSchema, telemetrySchema, weatherSchema,
-  type CommandAck, type Telemetry, type UnitEvent, type UnitStatus, type Weather,
+  ackSchema,
+  eventSchema,
+  statusSchema,
+  telemetrySchema,
+  weatherSchema,
+  type CommandAck,
+  type Telemetry,
+  type UnitEvent,
+  type UnitStatus,
+  type Weather,
 } from '../../shared/contracts/wire';
 import { MAX_PAYLOAD_BYTES } from '../../shared/contracts/wire-format';
 import {
-  eventRowKey, eventRowOf, telemetryRowKey, telemetryRowOf, weatherRowKey, weatherRowOf,
-  type EventRow, type TelemetryRepository, type TelemetryRow, type WeatherRow,
+  eventRowKey,
+  eventRowOf,
+  telemetryRowKey,
+  telemetryRowOf,
+  weatherRowKey,
+  weatherRowOf,
+  type EventRow,
+  type TelemetryRepository,
+  type TelemetryRow,
+  type WeatherRow,
 } from '../data/telemetry-repository';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
@@ -17,8 +33,18 @@ import type { UnitDirectory, UnitInfo } from './unit-directory';
  * topics, a retained message other than status, a packet over the broker's size cap.
  */
 export const REJECT_REASONS = [
-  'oversized', 'malformed_json', 'invalid_payload', 'unknown_unit', 'disabled_unit', 'future_timestamp', 'too_old', 'unknown_topic',
-  'weather_denied', 'acl_denied', 'retain_denied', 'packet_too_large',
+  'oversized',
+  'malformed_json',
+  'invalid_payload',
+  'unknown_unit',
+  'disabled_unit',
+  'future_timestamp',
+  'too_old',
+  'unknown_topic',
+  'weather_denied',
+  'acl_denied',
+  'retain_denied',
+  'packet_too_large',
 ] as const;
 export type RejectReason = (typeof REJECT_REASONS)[number];
 
@@ -39,7 +65,13 @@ export interface IngestOptions {
 }
 
 export const DEFAULT_INGEST_OPTIONS: IngestOptions = {
-  batchRows: 1000, flushMs: 50, maxBufferRows: 200_000, flushConcurrency: 2, retentionDays: 400, futureToleranceMs: 5 * 60_000, now: Date.now,
+  batchRows: 1000,
+  flushMs: 50,
+  maxBufferRows: 200_000,
+  flushConcurrency: 2,
+  retentionDays: 400,
+  futureToleranceMs: 5 * 60_000,
+  now: Date.now,
 };
 
 /**
@@ -76,13 +108,31 @@ export interface IngestCounters {
 /** Called once a message may be acknowledged to the unit (its row committed); with an error, it must not be. */
 export type Acknowledge = (err?: Error) => void;
 
-interface HeldTelemetry { row: TelemetryRow; unit: UnitInfo; t: Telemetry; tsMs: number; ack: Acknowledge | undefined }
-interface HeldEvent { row: EventRow; unit: UnitInfo; e: UnitEvent; ack: Acknowledge | undefined }
-interface HeldWeather { row: WeatherRow; unit: UnitInfo; w: Weather; ack: Acknowledge | undefined }
+interface HeldTelemetry {
+  row: TelemetryRow;
+  unit: UnitInfo;
+  t: Telemetry;
+  tsMs: number;
+  ack: Acknowledge | undefined;
+}
+interface HeldEvent {
+  row: EventRow;
+  unit: UnitInfo;
+  e: UnitEvent;
+  ack: Acknowledge | undefined;
+}
+interface HeldWeather {
+  row: WeatherRow;
+  unit: UnitInfo;
+  w: Weather;
+  ack: Acknowledge | undefined;
+}
 
 /** A wire schema as the ingest uses it (the zod schemas of shared/contracts/wire have this shape). */
 interface PayloadSchema<T> {
-  safeParse(value: unknown): { success: true; data: T } | { success: false; error: { issues: readonly { path: readonly PropertyKey[]; message: string }[] } };
+  safeParse(
+    value: unknown,
+  ): { success: true; data: T } | { success: false; error: { issues: readonly { path: readonly PropertyKey[]; message: string }[] } };
 }
 
 /**
@@ -110,7 +160,14 @@ export class IngestService {
   private lastLog = new Map<string, number>();
   private stopped = false;
   readonly counters: IngestCounters = {
-    received: 0, stored: 0, duplicates: 0, flushes: 0, flushFailures: 0, databaseUp: true, buffered: 0, held: 0,
+    received: 0,
+    stored: 0,
+    duplicates: 0,
+    flushes: 0,
+    flushFailures: 0,
+    databaseUp: true,
+    buffered: 0,
+    held: 0,
     rejected: Object.fromEntries(REJECT_REASONS.map((r) => [r, 0])) as Record<RejectReason, number>,
   };
   private readonly opts: IngestOptions;
@@ -160,7 +217,8 @@ export class IngestService {
       ack?.();
       return reason;
     };
-    if (payload.length > MAX_PAYLOAD_BYTES) return refuse(this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`));
+    if (payload.length > MAX_PAYLOAD_BYTES)
+      return refuse(this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`));
     const unit = this.units.get(serial);
     if (!unit) return refuse(this.reject(serial, 'unknown_unit', 'no unit has this serial'));
     if (unit.disabled) return refuse(this.reject(serial, 'disabled_unit', 'unit is disabled'));
@@ -192,7 +250,8 @@ export class IngestService {
       }
       case 'weather': {
         // Only the unit that carries its site's station may report the site's weather (fake gusts would raise stow alarms).
-        if (!unit.weatherStation) return refuse(this.reject(serial, 'weather_denied', 'this unit does not carry its site\'s weather station'));
+        if (!unit.weatherStation)
+          return refuse(this.reject(serial, 'weather_denied', "this unit does not carry its site's weather station"));
         const w = this.validate(serial, weatherSchema, json);
         if (!w) return refuse('invalid_payload');
         const ts = Date.parse(w.ts);
@@ -205,7 +264,11 @@ export class IngestService {
         const a = this.validate(serial, ackSchema, json);
         if (!a) return refuse('invalid_payload');
         const answered = this.listeners.ack?.(unit, a);
-        if (answered) answered.then(() => ack?.(), (err: Error) => ack?.(err));
+        if (answered)
+          answered.then(
+            () => ack?.(),
+            (err: Error) => ack?.(err),
+          );
         else ack?.();
         return null;
       }
@@ -238,8 +301,10 @@ export class IngestService {
 
   private checkTime(serial: string, ts: number): RejectReason | null {
     const now = this.opts.now();
-    if (ts > now + this.opts.futureToleranceMs) return this.reject(serial, 'future_timestamp', `ts ${new Date(ts).toISOString()} is ahead of server time`);
-    if (ts < now - this.opts.retentionDays * 86_400_000) return this.reject(serial, 'too_old', `ts ${new Date(ts).toISOString()} is older than the retention`);
+    if (ts > now + this.opts.futureToleranceMs)
+      return this.reject(serial, 'future_timestamp', `ts ${new Date(ts).toISOString()} is ahead of server time`);
+    if (ts < now - this.opts.retentionDays * 86_400_000)
+      return this.reject(serial, 'too_old', `ts ${new Date(ts).toISOString()} is older than the retention`);
     return null;
   }
 
@@ -316,8 +381,10 @@ export class IngestService {
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
     this.inOrder(batch, () => {
       // Weather first: a gust demands a stow of the units whose reports of the same batch are judged next.
-      if (newWeather) for (const x of w) if (newWeather.delete(weatherRowKey(x.row))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
-      if (newTelemetry) for (const x of t) if (newTelemetry.delete(telemetryRowKey(x.row))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
+      if (newWeather)
+        for (const x of w) if (newWeather.delete(weatherRowKey(x.row))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
+      if (newTelemetry)
+        for (const x of t) if (newTelemetry.delete(telemetryRowKey(x.row))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
       if (newEvents) for (const x of e) if (newEvents.delete(eventRowKey(x.row))) this.announce(() => this.listeners.event?.(x.unit, x.e));
     });
     if (tDone) {
@@ -325,7 +392,11 @@ export class IngestService {
       this.counters.duplicates += t.length - storedCount;
       if (t.length) {
         this.onStored(t.map((x) => ({ unitId: x.unit.id, tsMs: x.tsMs })));
-        if (this.listeners.committed) this.listeners.committed(t.map((x) => x.row), this.opts.now());
+        if (this.listeners.committed)
+          this.listeners.committed(
+            t.map((x) => x.row),
+            this.opts.now(),
+          );
       }
       for (const x of t) x.ack?.();
     }
@@ -367,7 +438,11 @@ export class IngestService {
     this.counters.flushFailures++;
     const code = (err as { code?: string }).code;
     if (code === 'ER_LOCK_DEADLOCK' || code === 'ER_LOCK_WAIT_TIMEOUT') return; // a lost race between flushes: retry at once
-    if (this.counters.databaseUp) this.log.error({ code, error: (err as { sqlMessage?: string }).sqlMessage ?? (err as Error).message.slice(0, 200), buffered: this.bufferedRows }, 'ingest flush failed; buffering and retrying');
+    if (this.counters.databaseUp)
+      this.log.error(
+        { code, error: (err as { sqlMessage?: string }).sqlMessage ?? (err as Error).message.slice(0, 200), buffered: this.bufferedRows },
+        'ingest flush failed; buffering and retrying',
+      );
     this.counters.databaseUp = false;
     this.retryAt = this.opts.now() + this.backoffMs;
     this.backoffMs = Math.min(this.backoffMs * 2, 5000);

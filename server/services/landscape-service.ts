@@ -12,7 +12,11 @@ const DAY_MS = 24 * HOUR_MS;
 /** The traces' modelled-best overlay is sampled every 15 minutes (trace-service); the warmer fills those slots. */
 const WARM_SLOT_MS = 15 * 60_000;
 const round1 = (x: number) => Math.round(x * 10) / 10;
-const roundedBest = (b: { tiltDeg: number; azimuthDeg: number; wm2: number }) => ({ tiltDeg: b.tiltDeg, azimuthDeg: b.azimuthDeg, wm2: round1(b.wm2) });
+const roundedBest = (b: { tiltDeg: number; azimuthDeg: number; wm2: number }) => ({
+  tiltDeg: b.tiltDeg,
+  azimuthDeg: b.azimuthDeg,
+  wm2: round1(b.wm2),
+});
 
 export interface LandscapeOptions {
   /** Grid step [°], 1…10. */
@@ -118,14 +122,21 @@ export class LandscapeService {
     return {
       siteId: site.id,
       at: new Date(atMs).toISOString(),
-      sun: sky.sunDirection && sky.sunElevationDeg > -0.27 ? { azimuthDeg: round1(sky.sunAzimuthDeg), elevationDeg: round1(sky.sunElevationDeg) } : null,
+      sun:
+        sky.sunDirection && sky.sunElevationDeg > -0.27
+          ? { azimuthDeg: round1(sky.sunAzimuthDeg), elevationDeg: round1(sky.sunElevationDeg) }
+          : null,
       magnitudeSource: resolved.magnitudeSource,
       stepDeg: o.stepDeg,
       detectorTiltDeg: o.detectorTiltDeg,
       grid,
       globalMax: roundedBest(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS, { resolutionDeg: o.stepDeg })),
       localMaxima: report.localMaxima.map((p) => ({
-        tiltDeg: p.tiltDeg, azimuthDeg: p.azimuthDeg, wm2: round1(p.wm2), prominenceWm2: round1(p.prominenceWm2), basinShare: Math.round(p.basinShare * 1000) / 1000,
+        tiltDeg: p.tiltDeg,
+        azimuthDeg: p.azimuthDeg,
+        wm2: round1(p.wm2),
+        prominenceWm2: round1(p.prominenceWm2),
+        basinShare: Math.round(p.basinShare * 1000) / 1000,
       })),
       minSinglePeakDetectorTiltDeg: report.minSinglePeakDetectorTiltDeg,
       minProminenceWm2: round1(report.minProminenceWm2),
@@ -142,11 +153,13 @@ export class LandscapeService {
     let p = this.bests.get(key);
     if (!p) {
       // A turn for other requests first: callers ask for many slots in a row (a day of traces), each tens of ms of CPU.
-      p = new Promise<void>((r) => setImmediate(r)).then(() => this.model.skyAt(siteId, slot)).then(({ sky }) => {
-        // A dark sky (night, no lamps) lights no orientation: skip the grid.
-        if (!sky.ghiWm2 && !sky.dhiWm2 && !sky.dniWm2 && !sky.pointSources.length) return 0;
-        return round1(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS).wm2);
-      });
+      p = new Promise<void>((r) => setImmediate(r))
+        .then(() => this.model.skyAt(siteId, slot))
+        .then(({ sky }) => {
+          // A dark sky (night, no lamps) lights no orientation: skip the grid.
+          if (!sky.ghiWm2 && !sky.dhiWm2 && !sky.dniWm2 && !sky.pointSources.length) return 0;
+          return round1(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS).wm2);
+        });
       p.catch(() => this.bests.delete(key));
       this.bests.set(key, p);
     }
@@ -155,7 +168,8 @@ export class LandscapeService {
 
   /** Every daylight hour of a local date: how many peaks, and the smallest single-peak detector tilt (3° grid). */
   async day(site: Site, date: string): Promise<LandscapeDay> {
-    if (!/^\d{4}-\d{2}-\d{2}$/.test(date) || Number.isNaN(Date.parse(`${date}T00:00:00Z`))) throw badRequest('The date is not valid.', { date: 'Must be a date YYYY-MM-DD.' });
+    if (!/^\d{4}-\d{2}-\d{2}$/.test(date) || Number.isNaN(Date.parse(`${date}T00:00:00Z`)))
+      throw badRequest('The date is not valid.', { date: 'Must be a date YYYY-MM-DD.' });
     const survey = await this.model.survey(site.id);
     const key = `${site.id}|${date}|${site.timeZone}|${site.latitudeDeg},${site.longitudeDeg}|${JSON.stringify(survey)}`;
     let p = this.days.get(key);

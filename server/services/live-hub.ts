@@ -61,9 +61,20 @@ export class LiveHub {
     // Resent buffers arrive oldest first; only newer reports change the live picture.
     if (s.lastReportAt && t.ts <= s.lastReportAt) return;
     Object.assign(s, {
-      online: true, lastReportAt: t.ts, mode: t.mode, poaWm2: t.poaWm2, dcPowerW: t.dcPowerW, tiltDeg: t.tiltDeg,
-      azimuthDeg: t.azimuthDeg, cmdTiltDeg: t.cmdTiltDeg, cmdAzimuthDeg: t.cmdAzimuthDeg, tiltDiffWm2: t.tiltPlusWm2 - t.tiltMinusWm2,
-      azimuthDiffWm2: t.azimuthPlusWm2 - t.azimuthMinusWm2, moduleTempC: t.moduleTempC, onHold: unit.onHold, holds: unit.holds,
+      online: true,
+      lastReportAt: t.ts,
+      mode: t.mode,
+      poaWm2: t.poaWm2,
+      dcPowerW: t.dcPowerW,
+      tiltDeg: t.tiltDeg,
+      azimuthDeg: t.azimuthDeg,
+      cmdTiltDeg: t.cmdTiltDeg,
+      cmdAzimuthDeg: t.cmdAzimuthDeg,
+      tiltDiffWm2: t.tiltPlusWm2 - t.tiltMinusWm2,
+      azimuthDiffWm2: t.azimuthPlusWm2 - t.azimuthMinusWm2,
+      moduleTempC: t.moduleTempC,
+      onHold: unit.onHold,
+      holds: unit.holds,
     });
     this.dirty.add(unit.id);
   }
@@ -76,9 +87,19 @@ export class LiveHub {
     const s = this.ensure(unit);
     if (s.lastReportAt && s.lastReportAt >= r.ts.toISOString()) return;
     Object.assign(s, {
-      online: false, lastReportAt: r.ts.toISOString(), mode: r.mode as UnitMode, poaWm2: r.poaWm2, dcPowerW: r.dcPowerW, tiltDeg: r.tiltDeg,
-      azimuthDeg: r.azimuthDeg, cmdTiltDeg: r.cmdTiltDeg, cmdAzimuthDeg: r.cmdAzimuthDeg, tiltDiffWm2: r.tiltPlusWm2 - r.tiltMinusWm2,
-      azimuthDiffWm2: r.azimuthPlusWm2 - r.azimuthMinusWm2, moduleTempC: r.moduleTempC, onHold: unit.onHold,
+      online: false,
+      lastReportAt: r.ts.toISOString(),
+      mode: r.mode as UnitMode,
+      poaWm2: r.poaWm2,
+      dcPowerW: r.dcPowerW,
+      tiltDeg: r.tiltDeg,
+      azimuthDeg: r.azimuthDeg,
+      cmdTiltDeg: r.cmdTiltDeg,
+      cmdAzimuthDeg: r.cmdAzimuthDeg,
+      tiltDiffWm2: r.tiltPlusWm2 - r.tiltMinusWm2,
+      azimuthDiffWm2: r.azimuthPlusWm2 - r.azimuthMinusWm2,
+      moduleTempC: r.moduleTempC,
+      onHold: unit.onHold,
     });
   }
 
@@ -205,9 +226,23 @@ export class LiveHub {
     let s = this.state.get(unit.id);
     if (!s) {
       s = {
-        unitId: unit.id, serial: unit.serial, siteId: unit.siteId, online: false, lastReportAt: null, mode: null, poaWm2: null,
-        dcPowerW: null, tiltDeg: null, azimuthDeg: null, cmdTiltDeg: null, cmdAzimuthDeg: null, tiltDiffWm2: null,
-        azimuthDiffWm2: null, moduleTempC: null, onHold: unit.onHold, holds: unit.holds,
+        unitId: unit.id,
+        serial: unit.serial,
+        siteId: unit.siteId,
+        online: false,
+        lastReportAt: null,
+        mode: null,
+        poaWm2: null,
+        dcPowerW: null,
+        tiltDeg: null,
+        azimuthDeg: null,
+        cmdTiltDeg: null,
+        cmdAzimuthDeg: null,
+        tiltDiffWm2: null,
+        azimuthDiffWm2: null,
+        moduleTempC: null,
+        onHold: unit.onHold,
+        holds: unit.holds,
       };
       this.state.set(unit.id, s);
     }

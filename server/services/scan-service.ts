@@ -38,6 +38,12 @@ export class ScanService {
       const globalMax = await this.models.globalMaxAt(info.siteId, (done ?? started).getTime()).catch(() => null);
       if (globalMax) model = { globalMax };
     }
-    return { commandId: id, startedAt: started.toISOString(), completedAt: done ? (done as Date).toISOString() : null, complete: done !== null, ...compareScan(samples, before, model) };
+    return {
+      commandId: id,
+      startedAt: started.toISOString(),
+      completedAt: done ? (done as Date).toISOString() : null,
+      complete: done !== null,
+      ...compareScan(samples, before, model),
+    };
   }
 }

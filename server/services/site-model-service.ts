@@ -28,7 +28,11 @@ export class SiteModelService {
   /** Replaces a site's survey (already validated) and records who did it. */
   async saveSurvey(by: Caller, siteId: number, survey: SiteSurvey): Promise<SiteSurvey> {
     if (!(await this.repo.saveSurvey(siteId, survey))) throw notFound('Site');
-    await this.audit.record(by, 'site-survey-update', `site:${siteId}`, { horizonPoints: survey.horizon.length, reflectors: survey.reflectors.length, lamps: survey.lamps.length });
+    await this.audit.record(by, 'site-survey-update', `site:${siteId}`, {
+      horizonPoints: survey.horizon.length,
+      reflectors: survey.reflectors.length,
+      lamps: survey.lamps.length,
+    });
     return survey;
   }
 

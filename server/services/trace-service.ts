@@ -1,5 +1,13 @@
 import type { Unit } from '../../shared/contracts/api';
-import { MAX_CSV_DAYS, TRACE_QUANTITIES, TRACE_QUANTITY_INFO, type TraceMark, type TraceQuantity, type TraceSeries, type UnitTraces } from '../../shared/contracts/traces';
+import {
+  MAX_CSV_DAYS,
+  TRACE_QUANTITIES,
+  TRACE_QUANTITY_INFO,
+  type TraceMark,
+  type TraceQuantity,
+  type TraceSeries,
+  type UnitTraces,
+} from '../../shared/contracts/traces';
 import type { BucketRow, TraceRepository, RawTraceRow } from '../data/trace-repository';
 import { badRequest } from '../errors/app-error';
 import { csvLine } from '../../shared/csv/csv-field';
@@ -55,7 +63,8 @@ export function checkRange(fromIso: string, toIso: string, maxDays: number): { f
   const from = new Date(fromIso);
   const to = new Date(toIso);
   if (!(from < to)) throw badRequest('The range is empty.', { to: 'Must be after from.' });
-  if (to.getTime() - from.getTime() > maxDays * DAY_MS) throw badRequest(`Choose at most ${maxDays} days.`, { to: `Must be within ${maxDays} days of from.` });
+  if (to.getTime() - from.getTime() > maxDays * DAY_MS)
+    throw badRequest(`Choose at most ${maxDays} days.`, { to: `Must be within ${maxDays} days of from.` });
   return { from, to };
 }
 
@@ -80,7 +89,9 @@ export class TraceService {
       // the rollup has not closed yet and are read raw; both land in the same buckets and are merged.
       bucketMs = Math.ceil(bucketMs / MINUTE_MS) * MINUTE_MS;
       from = new Date(Math.floor(requestedFrom.getTime() / MINUTE_MS) * MINUTE_MS);
-      const split = new Date(Math.min(to.getTime(), Math.max(from.getTime(), Math.floor((this.now() - ROLLUP_LAG_MS) / MINUTE_MS) * MINUTE_MS)));
+      const split = new Date(
+        Math.min(to.getTime(), Math.max(from.getTime(), Math.floor((this.now() - ROLLUP_LAG_MS) / MINUTE_MS) * MINUTE_MS)),
+      );
       source = split < to ? 'rollup+raw' : 'rollup';
       buckets = Promise.all([
         this.repo.bucketsFromMinutes(unit.id, from, from, split, bucketMs, TRACE_QUANTITIES),
@@ -95,7 +106,10 @@ export class TraceService {
       this.repo.alarms(unit.id, from, to),
       this.modelledBest(unit.siteId, from, to),
     ]);
-    const series = Object.fromEntries(TRACE_QUANTITIES.map((q) => [q, { min: [], max: [] } as TraceSeries])) as Record<TraceQuantity, TraceSeries>;
+    const series = Object.fromEntries(TRACE_QUANTITIES.map((q) => [q, { min: [], max: [] } as TraceSeries])) as Record<
+      TraceQuantity,
+      TraceSeries
+    >;
     const t: number[] = [];
     const samples: number[] = [];
     let total = 0;

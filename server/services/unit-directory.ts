@@ -45,13 +45,17 @@ export class UnitDirectory {
    */
   load(): Promise<void> {
     if (!this.running) {
-      this.running = this.read().finally(() => { this.running = undefined; });
+      this.running = this.read().finally(() => {
+        this.running = undefined;
+      });
       return this.running;
     }
-    this.again ??= this.running.catch(() => undefined).then(() => {
-      this.again = undefined;
-      return this.load();
-    });
+    this.again ??= this.running
+      .catch(() => undefined)
+      .then(() => {
+        this.again = undefined;
+        return this.load();
+      });
     return this.again;
   }
 
@@ -101,4 +105,10 @@ export class UnitDirectory {
 }
 
 /** What the health detectors know of a unit. */
-export const unitRefOf = (u: UnitInfo): UnitRef => ({ unitId: u.id, serial: u.serial, siteId: u.siteId, detectorTiltDeg: u.detectorTiltDeg, onHold: u.onHold });
+export const unitRefOf = (u: UnitInfo): UnitRef => ({
+  unitId: u.id,
+  serial: u.serial,
+  siteId: u.siteId,
+  detectorTiltDeg: u.detectorTiltDeg,
+  onHold: u.onHold,
+});

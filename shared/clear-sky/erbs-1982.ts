@@ -14,7 +14,11 @@ export function erbsDiffuseFraction(kt: number): number {
 }
 
 /** Split measured GHI into DHI and DNI with Erbs; I0n is the extraterrestrial normal irradiance. */
-export function erbsSplit(ghiWm2: number, zenithDeg: number, extraterrestrialNormalWm2: number): { kt: number; dhiWm2: number; dniWm2: number } {
+export function erbsSplit(
+  ghiWm2: number,
+  zenithDeg: number,
+  extraterrestrialNormalWm2: number,
+): { kt: number; dhiWm2: number; dniWm2: number } {
   const cosZ = Math.cos((zenithDeg * Math.PI) / 180);
   if (cosZ < Math.cos((87 * Math.PI) / 180) || ghiWm2 <= 0) return { kt: 0, dhiWm2: Math.max(0, ghiWm2), dniWm2: 0 };
   const kt = Math.min(1, Math.max(0, ghiWm2 / (extraterrestrialNormalWm2 * cosZ)));

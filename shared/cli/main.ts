@@ -12,7 +12,14 @@ import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { analyseLandscape } from '../landscape/index';
 import { skyFromFile } from '../sky-file/index';
-import { formatInstant, incidenceAngleDeg, parseInstant, solarPosition, spaEventsForLocalDate, sunEventsOfLocalDay } from '../solar-position/index';
+import {
+  formatInstant,
+  incidenceAngleDeg,
+  parseInstant,
+  solarPosition,
+  spaEventsForLocalDate,
+  sunEventsOfLocalDay,
+} from '../solar-position/index';
 
 class InputError extends Error {}
 
@@ -20,7 +27,14 @@ const USAGE = `usage:
   brightward sun --lat <deg> --lon <deg> --time <ISO 8601 with offset> [--elev <m>] [--pressure <hPa>] [--temp <°C>] [--delta-t <s>] [--slope <deg> --surface-azimuth <deg>]
   brightward landscape --sky <file.json> [--step <deg>] [--detector-tilt <deg>]`;
 
-function numberOption(values: Record<string, unknown>, name: string, lo: number, hi: number, fallback?: number, exclusiveLo = false): number {
+function numberOption(
+  values: Record<string, unknown>,
+  name: string,
+  lo: number,
+  hi: number,
+  fallback?: number,
+  exclusiveLo = false,
+): number {
   const raw = values[name];
   if (raw === undefined) {
     if (fallback === undefined) throw new InputError(`--${name}: required`);
@@ -84,7 +98,10 @@ function runSun(args: string[]): unknown {
   };
   const hasSlope = values.slope !== undefined;
   const hasAz = values['surface-azimuth'] !== undefined;
-  if (hasSlope !== hasAz) throw new InputError(`${hasSlope ? '--surface-azimuth' : '--slope'}: required together with ${hasSlope ? '--slope' : '--surface-azimuth'}`);
+  if (hasSlope !== hasAz)
+    throw new InputError(
+      `${hasSlope ? '--surface-azimuth' : '--slope'}: required together with ${hasSlope ? '--slope' : '--surface-azimuth'}`,
+    );
   const p = solarPosition(site, instant.unixMs, options);
   const out: Record<string, unknown> = {
     zenithDeg: p.zenithDeg,
@@ -105,7 +122,8 @@ function runSun(args: string[]): unknown {
     sunset: fmt(ev.sunsetUnixMs),
     day: formatInstant(ev.dayStartUnixMs, instant.offsetMinutes).slice(0, 10),
     dayKind: ev.kind,
-    riseSetNote: 'sunrise, transit and sunset of the local calendar day of --time (root-finding on SPA; rise/set at topocentric elevation −0.8333°)',
+    riseSetNote:
+      'sunrise, transit and sunset of the local calendar day of --time (root-finding on SPA; rise/set at topocentric elevation −0.8333°)',
     spaAppendixA2: {
       note: 'SPA Appendix A.2 on the UT day of the same date; its sunset may be the previous local evening',
       sunrise: fmt(a2.sunriseUnixMs),
@@ -126,7 +144,12 @@ function runSun(args: string[]): unknown {
 function runLandscape(args: string[]): unknown {
   const { values } = parseArgs({
     args,
-    options: { sky: { type: 'string' }, step: { type: 'string' }, 'detector-tilt': { type: 'string' }, 'max-detector-tilt': { type: 'string' } },
+    options: {
+      sky: { type: 'string' },
+      step: { type: 'string' },
+      'detector-tilt': { type: 'string' },
+      'max-detector-tilt': { type: 'string' },
+    },
     strict: true,
     allowPositionals: false,
   });

@@ -48,7 +48,11 @@ export const skyTypeSchema = z.union(
 export const surveySchema = z.strictObject({
   skyType: skyTypeSchema,
   horizon: z
-    .array(z.tuple([z.number().min(0).max(359.999999), z.number().min(0).max(90)], { error: 'must be a pair [azimuthDeg 0…360, elevationDeg 0…90]' }))
+    .array(
+      z.tuple([z.number().min(0).max(359.999999), z.number().min(0).max(90)], {
+        error: 'must be a pair [azimuthDeg 0…360, elevationDeg 0…90]',
+      }),
+    )
     .max(720)
     .refine((h) => h.every((p, i) => i === 0 || p[0] >= h[i - 1]![0]), 'must be sorted by azimuth'),
   reflectors: z.array(reflectorSchema).max(20),

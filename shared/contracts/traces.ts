@@ -6,10 +6,18 @@
 
 /** Quantities of a trace, with their unit in the key. */
 export const TRACE_QUANTITIES = [
-  'tiltPlusWm2', 'tiltMinusWm2', 'azimuthPlusWm2', 'azimuthMinusWm2',
-  'tiltDiffWm2', 'azimuthDiffWm2',
-  'tiltDeg', 'cmdTiltDeg', 'azimuthDeg', 'cmdAzimuthDeg',
-  'poaWm2', 'dcPowerW',
+  'tiltPlusWm2',
+  'tiltMinusWm2',
+  'azimuthPlusWm2',
+  'azimuthMinusWm2',
+  'tiltDiffWm2',
+  'azimuthDiffWm2',
+  'tiltDeg',
+  'cmdTiltDeg',
+  'azimuthDeg',
+  'cmdAzimuthDeg',
+  'poaWm2',
+  'dcPowerW',
 ] as const;
 export type TraceQuantity = (typeof TRACE_QUANTITIES)[number];
 
@@ -28,8 +36,18 @@ export const TRACE_QUANTITY_INFO: Record<TraceQuantity, TraceQuantityInfo> = {
   tiltMinusWm2: { label: 'Tilt detector −', unit: 'W/m²', csv: 'tilt_minus_detector_W_m2' },
   azimuthPlusWm2: { label: 'Azimuth detector +', unit: 'W/m²', csv: 'azimuth_plus_detector_W_m2' },
   azimuthMinusWm2: { label: 'Azimuth detector −', unit: 'W/m²', csv: 'azimuth_minus_detector_W_m2' },
-  tiltDiffWm2: { label: 'Tilt photodifferential', unit: 'W/m²', csv: 'tilt_differential_W_m2', difference: ['tiltPlusWm2', 'tiltMinusWm2'] },
-  azimuthDiffWm2: { label: 'Azimuth photodifferential', unit: 'W/m²', csv: 'azimuth_differential_W_m2', difference: ['azimuthPlusWm2', 'azimuthMinusWm2'] },
+  tiltDiffWm2: {
+    label: 'Tilt photodifferential',
+    unit: 'W/m²',
+    csv: 'tilt_differential_W_m2',
+    difference: ['tiltPlusWm2', 'tiltMinusWm2'],
+  },
+  azimuthDiffWm2: {
+    label: 'Azimuth photodifferential',
+    unit: 'W/m²',
+    csv: 'azimuth_differential_W_m2',
+    difference: ['azimuthPlusWm2', 'azimuthMinusWm2'],
+  },
   tiltDeg: { label: 'Measured tilt', unit: '°', csv: 'tracker_tilt_deg' },
   cmdTiltDeg: { label: 'Commanded tilt', unit: '°', csv: 'commanded_tilt_deg' },
   azimuthDeg: { label: 'Measured azimuth', unit: '°', csv: 'tracker_azimuth_deg' },

@@ -43,7 +43,10 @@ export const eventSchema = z.strictObject({
   code: z.string().max(64).optional(),
   message: z.string().max(500).optional(),
   commandId: z.string().max(64).optional(),
-  samples: z.array(z.tuple([finite(...R.tiltDeg), finite(...R.azimuthDeg), wm2])).max(250).optional(),
+  samples: z
+    .array(z.tuple([finite(...R.tiltDeg), finite(...R.azimuthDeg), wm2]))
+    .max(250)
+    .optional(),
 });
 export type UnitEvent = z.infer<typeof eventSchema>;
 

@@ -12,7 +12,16 @@ export type HorizonPoints = readonly (readonly [number, number])[];
  * Roof between glass towers (QHL): a city horizon with a tower block to the south-east that hides the morning sun…
  */
 export const CITY_HORIZON: HorizonPoints = [
-  [0, 6], [40, 8], [45, 24], [100, 24], [100, 46], [165, 46], [170, 9], [230, 9], [300, 12], [350, 6],
+  [0, 6],
+  [40, 8],
+  [45, 24],
+  [100, 24],
+  [100, 46],
+  [165, 46],
+  [170, 9],
+  [230, 9],
+  [300, 12],
+  [350, 6],
 ];
 
 /**
@@ -27,8 +36,23 @@ export const FACADES: readonly ReflectorInput[] = [
 
 /** School courtyard (FSC) ringed by buildings and tree crowns: the sun is behind obstructions for part of the day. */
 export const COURTYARD_HORIZON: HorizonPoints = [
-  [0, 22], [40, 22], [40, 14], [75, 16], [95, 30], [120, 34], [135, 12], [150, 12], [165, 28], [200, 28],
-  [200, 10], [230, 12], [250, 26], [280, 32], [300, 20], [330, 20], [330, 22],
+  [0, 22],
+  [40, 22],
+  [40, 14],
+  [75, 16],
+  [95, 30],
+  [120, 34],
+  [135, 12],
+  [150, 12],
+  [165, 28],
+  [200, 28],
+  [200, 10],
+  [230, 12],
+  [250, 26],
+  [280, 32],
+  [300, 20],
+  [330, 20],
+  [330, 22],
 ];
 
 /** A lamp switched by the clock. */

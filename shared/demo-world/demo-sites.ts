@@ -5,10 +5,50 @@
  */
 
 export const DEMO_SITES = [
-  { owner: 'Quillmoor Energy Cooperative', name: 'Harbourside Library Roof', code: 'QHL', latitude_deg: 53.5413, longitude_deg: 9.9937, elevation_m: 24, time_zone: 'Europe/Berlin', albedo: 0.3, indoor: false },
-  { owner: 'Quillmoor Energy Cooperative', name: 'Eastfield Depot Yard', code: 'QED', latitude_deg: 53.5738, longitude_deg: 10.0806, elevation_m: 11, time_zone: 'Europe/Berlin', albedo: 0.18, indoor: false },
-  { owner: 'Fenwick Lane Schools Trust', name: 'Fenwick Lane School Courtyard', code: 'FSC', latitude_deg: 51.459, longitude_deg: -2.587, elevation_m: 42, time_zone: 'Europe/London', albedo: 0.2, indoor: false },
-  { owner: 'Fenwick Lane Schools Trust', name: 'Glasshouse Atrium', code: 'FGA', latitude_deg: 51.4545, longitude_deg: -2.5979, elevation_m: 15, time_zone: 'Europe/London', albedo: 0.5, indoor: true },
+  {
+    owner: 'Quillmoor Energy Cooperative',
+    name: 'Harbourside Library Roof',
+    code: 'QHL',
+    latitude_deg: 53.5413,
+    longitude_deg: 9.9937,
+    elevation_m: 24,
+    time_zone: 'Europe/Berlin',
+    albedo: 0.3,
+    indoor: false,
+  },
+  {
+    owner: 'Quillmoor Energy Cooperative',
+    name: 'Eastfield Depot Yard',
+    code: 'QED',
+    latitude_deg: 53.5738,
+    longitude_deg: 10.0806,
+    elevation_m: 11,
+    time_zone: 'Europe/Berlin',
+    albedo: 0.18,
+    indoor: false,
+  },
+  {
+    owner: 'Fenwick Lane Schools Trust',
+    name: 'Fenwick Lane School Courtyard',
+    code: 'FSC',
+    latitude_deg: 51.459,
+    longitude_deg: -2.587,
+    elevation_m: 42,
+    time_zone: 'Europe/London',
+    albedo: 0.2,
+    indoor: false,
+  },
+  {
+    owner: 'Fenwick Lane Schools Trust',
+    name: 'Glasshouse Atrium',
+    code: 'FGA',
+    latitude_deg: 51.4545,
+    longitude_deg: -2.5979,
+    elevation_m: 15,
+    time_zone: 'Europe/London',
+    albedo: 0.5,
+    indoor: true,
+  },
 ];
 
 export const UNITS_PER_SITE = 6;
@@ -27,4 +67,5 @@ export const DEMO_UNIT = {
 export const demoSerial = (siteCode: string, i: number) => `${siteCode}-${String(2401 + i)}`;
 
 /** Every serial of the demo world, site by site. */
-export const demoSerials = (): string[] => DEMO_SITES.flatMap((s) => Array.from({ length: UNITS_PER_SITE }, (_, i) => demoSerial(s.code, i)));
+export const demoSerials = (): string[] =>
+  DEMO_SITES.flatMap((s) => Array.from({ length: UNITS_PER_SITE }, (_, i) => demoSerial(s.code, i)));

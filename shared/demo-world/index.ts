@@ -1,3 +1,11 @@
 /** The invented demo world's sites, units and surveyed geometry: one home for the seed and the simulator. */
 export { DEMO_SITES, DEMO_UNIT, DETECTOR_TILTS_DEG, UNITS_PER_SITE, demoSerial, demoSerials } from './demo-sites';
-export { ATRIUM_LAMPS, ATRIUM_WALL_DEG, CITY_HORIZON, COURTYARD_HORIZON, FACADES, type HorizonPoints, type ScheduledLamp } from './demo-geometry';
+export {
+  ATRIUM_LAMPS,
+  ATRIUM_WALL_DEG,
+  CITY_HORIZON,
+  COURTYARD_HORIZON,
+  FACADES,
+  type HorizonPoints,
+  type ScheduledLamp,
+} from './demo-geometry';

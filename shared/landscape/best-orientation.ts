@@ -50,7 +50,8 @@ export interface BestOrientationOptions {
 function checkLimits(l: UnitLimits): void {
   const [t0, t1] = l.tiltRangeDeg;
   const [a0, a1] = l.azimuthRangeDeg;
-  if (![t0, t1, a0, a1].every(Number.isFinite)) throw new RangeError(`limits: must be finite numbers; got tilt ${t0}…${t1}, azimuth ${a0}…${a1}`);
+  if (![t0, t1, a0, a1].every(Number.isFinite))
+    throw new RangeError(`limits: must be finite numbers; got tilt ${t0}…${t1}, azimuth ${a0}…${a1}`);
   if (t0 < 0 || t1 > 180 || t0 > t1) throw new RangeError(`tiltRangeDeg: must be [min, max] with 0 ≤ min ≤ max ≤ 180; got [${t0}, ${t1}]`);
   if (a0 > a1 || a1 - a0 > 360) throw new RangeError(`azimuthRangeDeg: must be [min, max] with min ≤ max ≤ min + 360; got [${a0}, ${a1}]`);
 }
@@ -68,12 +69,17 @@ function axisPoints(lo: number, hi: number, step: number, periodic: boolean): nu
  * Best reachable orientation for an irradiance function E(n) of the unit normal n = [east, north, up].
  * Throws a RangeError naming the bad limit or option.
  */
-export function bestReachableOrientationWith(irradiance: (n: Vec3) => number, limits: UnitLimits, options: BestOrientationOptions = {}): BestOrientation {
+export function bestReachableOrientationWith(
+  irradiance: (n: Vec3) => number,
+  limits: UnitLimits,
+  options: BestOrientationOptions = {},
+): BestOrientation {
   checkLimits(limits);
   const res = options.resolutionDeg ?? BEST_ORIENTATION_RESOLUTION_DEG;
   if (!Number.isFinite(res) || res < 0.05 || res > 10) throw new RangeError(`resolutionDeg: must be a number in [0.05, 10]; got ${res}`);
   const coarse = options.coarseStepDeg ?? Math.max(5, res);
-  if (!Number.isFinite(coarse) || coarse < res || coarse > 45) throw new RangeError(`coarseStepDeg: must be a number in [resolutionDeg, 45]; got ${coarse}`);
+  if (!Number.isFinite(coarse) || coarse < res || coarse > 45)
+    throw new RangeError(`coarseStepDeg: must be a number in [resolutionDeg, 45]; got ${coarse}`);
   const candidates = options.candidates ?? 3;
   const [tMin, tMax] = limits.tiltRangeDeg;
   const [aMin, aMax] = limits.azimuthRangeDeg;
@@ -91,12 +97,18 @@ export function bestReachableOrientationWith(irradiance: (n: Vec3) => number, li
     return v[i]![j]!;
   };
   const peaks: { i: number; j: number; wm2: number }[] = [];
-  for (let i = 0; i < ts.length; i++) for (let j = 0; j < as.length; j++) {
-    const x = v[i]![j]!;
-    let top = true;
-    for (let di = -1; di <= 1 && top; di++) for (let dj = -1; dj <= 1; dj++) if ((di || dj) && at(i + di, j + dj) > x) { top = false; break; }
-    if (top) peaks.push({ i, j, wm2: x });
-  }
+  for (let i = 0; i < ts.length; i++)
+    for (let j = 0; j < as.length; j++) {
+      const x = v[i]![j]!;
+      let top = true;
+      for (let di = -1; di <= 1 && top; di++)
+        for (let dj = -1; dj <= 1; dj++)
+          if ((di || dj) && at(i + di, j + dj) > x) {
+            top = false;
+            break;
+          }
+      if (top) peaks.push({ i, j, wm2: x });
+    }
   peaks.sort((p, q) => q.wm2 - p.wm2);
 
   // Hill climb on the fine grid (index space: tilt tMin + k·res, azimuth aMin + k·res), each axis clamped or wrapped.
@@ -115,16 +127,17 @@ export function bestReachableOrientationWith(irradiance: (n: Vec3) => number, li
     let here = e(tiltOf(ki), azOf(kj));
     for (let guard = 0; guard < 100_000; guard++) {
       let move: [number, number, number] | null = null;
-      for (let di = -1; di <= 1; di++) for (let dj = -1; dj <= 1; dj++) {
-        if (!di && !dj) continue;
-        const ni = ki + di;
-        let nj = kj + dj;
-        if (ni < 0 || ni > tiltTop) continue;
-        if (!periodic && (nj < 0 || nj > azTop)) continue;
-        if (periodic) nj = ((nj % kAzMax) + kAzMax) % kAzMax;
-        const x = e(tiltOf(ni), azOf(nj));
-        if (x > here && (!move || x > move[2])) move = [ni, nj, x];
-      }
+      for (let di = -1; di <= 1; di++)
+        for (let dj = -1; dj <= 1; dj++) {
+          if (!di && !dj) continue;
+          const ni = ki + di;
+          let nj = kj + dj;
+          if (ni < 0 || ni > tiltTop) continue;
+          if (!periodic && (nj < 0 || nj > azTop)) continue;
+          if (periodic) nj = ((nj % kAzMax) + kAzMax) % kAzMax;
+          const x = e(tiltOf(ni), azOf(nj));
+          if (x > here && (!move || x > move[2])) move = [ni, nj, x];
+        }
       if (!move) break;
       [ki, kj, here] = move;
     }

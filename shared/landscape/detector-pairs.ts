@@ -74,13 +74,26 @@ export function detectorNormals(tiltDeg: number, azimuthDeg: number, detectorTil
   return { panel, tiltPlus, tiltMinus, azimuthPlus, azimuthMinus };
 }
 
-export function detectorReadingsWith(irradiance: (n: Vec3) => number, tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number): DetectorReadings {
+export function detectorReadingsWith(
+  irradiance: (n: Vec3) => number,
+  tiltDeg: number,
+  azimuthDeg: number,
+  detectorTiltDeg: number,
+): DetectorReadings {
   const d = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
   const tp = irradiance(d.tiltPlus);
   const tm = irradiance(d.tiltMinus);
   const ap = irradiance(d.azimuthPlus);
   const am = irradiance(d.azimuthMinus);
-  return { panelWm2: irradiance(d.panel), tiltPlusWm2: tp, tiltMinusWm2: tm, azimuthPlusWm2: ap, azimuthMinusWm2: am, tiltDifferentialWm2: tp - tm, azimuthDifferentialWm2: ap - am };
+  return {
+    panelWm2: irradiance(d.panel),
+    tiltPlusWm2: tp,
+    tiltMinusWm2: tm,
+    azimuthPlusWm2: ap,
+    azimuthMinusWm2: am,
+    tiltDifferentialWm2: tp - tm,
+    azimuthDifferentialWm2: ap - am,
+  };
 }
 
 /** One point of a unit's trajectory. */
@@ -123,7 +136,13 @@ export function ascentTrajectoryWith(
   const maxSteps = control.maxSteps ?? 1000;
   for (let k = 0; k <= maxSteps; k++) {
     const r = detectorReadingsWith(irradiance, tilt, az, control.detectorTiltDeg);
-    points.push({ tiltDeg: tilt, azimuthDeg: az, wm2: r.panelWm2, tiltDifferentialWm2: r.tiltDifferentialWm2, azimuthDifferentialWm2: r.azimuthDifferentialWm2 });
+    points.push({
+      tiltDeg: tilt,
+      azimuthDeg: az,
+      wm2: r.panelWm2,
+      tiltDifferentialWm2: r.tiltDifferentialWm2,
+      azimuthDifferentialWm2: r.azimuthDifferentialWm2,
+    });
     const mt = Math.abs(r.tiltDifferentialWm2) > control.deadbandWm2 ? control.gainDegPerWm2 * r.tiltDifferentialWm2 * RAD : 0;
     const ma = Math.abs(r.azimuthDifferentialWm2) > control.deadbandWm2 ? control.gainDegPerWm2 * r.azimuthDifferentialWm2 * RAD : 0;
     if (mt === 0 && ma === 0) return { points, converged: true };

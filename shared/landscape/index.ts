@@ -15,7 +15,13 @@
  */
 import { normalFromTiltAzimuth, type Vec3 } from '../sphere/directions';
 import type { Sky } from '../sky-radiance/sky';
-import { ascentTrajectoryWith, detectorReadingsWith, type DetectorReadings, type TrajectoryPoint, type UnitControl } from './detector-pairs';
+import {
+  ascentTrajectoryWith,
+  detectorReadingsWith,
+  type DetectorReadings,
+  type TrajectoryPoint,
+  type UnitControl,
+} from './detector-pairs';
 import { blurLandscape } from './blurred-landscape';
 import { irradianceBruteAtNormal, landscapeBruteValues } from './irradiance-brute';
 import { irradianceFastAtNormal, landscapeFastValues, SH_ORDER } from './irradiance-fast';
@@ -28,7 +34,15 @@ export { type DetectorReadings, type TrajectoryPoint, type UnitControl } from '.
 export { blurLandscape, capRadiusForDetectorTiltDeg } from './blurred-landscape';
 export { type Landscape, type LandscapeGridOptions } from './landscape-grid';
 export { analysePeaks, basinShares, type Peak } from './landscape-analysis';
-export { BEST_ORIENTATION_RESOLUTION_DEG, bestReachableOrientationWith, STANDARD_UNIT_LIMITS, TRAP_RATIO, type BestOrientation, type BestOrientationOptions, type UnitLimits } from './best-orientation';
+export {
+  BEST_ORIENTATION_RESOLUTION_DEG,
+  bestReachableOrientationWith,
+  STANDARD_UNIT_LIMITS,
+  TRAP_RATIO,
+  type BestOrientation,
+  type BestOrientationOptions,
+  type UnitLimits,
+} from './best-orientation';
 export { SH_ORDER };
 
 export type Method = 'fast' | 'brute';
@@ -43,7 +57,16 @@ export function computeLandscape(sky: Sky, options: LandscapeOptions = {}): Land
   const g = validateGridOptions(options);
   const method = options.method ?? 'fast';
   const values = method === 'brute' ? landscapeBruteValues(sky, g.tilts, g.azimuths) : landscapeFastValues(sky, g.tilts, g.azimuths);
-  return { stepDeg: g.stepDeg, tiltsDeg: g.tilts, azimuthsDeg: g.azimuths, azimuthStepDeg: g.azimuthStepDeg, periodicAzimuth: g.periodic, values, method, sky };
+  return {
+    stepDeg: g.stepDeg,
+    tiltsDeg: g.tilts,
+    azimuthsDeg: g.azimuths,
+    azimuthStepDeg: g.azimuthStepDeg,
+    periodicAzimuth: g.periodic,
+    values,
+    method,
+    sky,
+  };
 }
 
 /** Irradiance on a plane given by its unit normal [east, north, up]. */
@@ -53,7 +76,8 @@ export function irradianceOnNormal(sky: Sky, n: Vec3, method: Method = 'fast'): 
 
 /** Irradiance on one panel orientation (W/m²); the fast path costs a few microseconds after the first call per sky. */
 export function irradianceAt(sky: Sky, tiltDeg: number, azimuthDeg: number, method: Method = 'fast'): number {
-  if (!Number.isFinite(tiltDeg) || !Number.isFinite(azimuthDeg)) throw new RangeError(`tiltDeg/azimuthDeg: must be finite numbers; got ${tiltDeg}, ${azimuthDeg}`);
+  if (!Number.isFinite(tiltDeg) || !Number.isFinite(azimuthDeg))
+    throw new RangeError(`tiltDeg/azimuthDeg: must be finite numbers; got ${tiltDeg}, ${azimuthDeg}`);
   return irradianceOnNormal(sky, normalFromTiltAzimuth(tiltDeg, azimuthDeg), method);
 }
 
@@ -63,7 +87,13 @@ export function bestReachableOrientation(sky: Sky, limits: UnitLimits, options: 
 }
 
 /** Readings of the tilt and azimuth detector pairs (±δ) and the two photodifferentials at a panel orientation. */
-export function detectorReadings(sky: Sky, tiltDeg: number, azimuthDeg: number, detectorTiltDeg: number, method: Method = 'fast'): DetectorReadings {
+export function detectorReadings(
+  sky: Sky,
+  tiltDeg: number,
+  azimuthDeg: number,
+  detectorTiltDeg: number,
+  method: Method = 'fast',
+): DetectorReadings {
   if (!Number.isFinite(detectorTiltDeg) || detectorTiltDeg < 0 || detectorTiltDeg > 45) {
     throw new RangeError(`detectorTiltDeg: must be a finite number in [0, 45]; got ${detectorTiltDeg}`);
   }
@@ -71,7 +101,11 @@ export function detectorReadings(sky: Sky, tiltDeg: number, azimuthDeg: number, 
 }
 
 /** The path a unit with the given detector tilt, gain and deadband takes from a start orientation. */
-export function ascentTrajectory(sky: Sky, start: { tiltDeg: number; azimuthDeg: number }, control: UnitControl): { points: TrajectoryPoint[]; converged: boolean } {
+export function ascentTrajectory(
+  sky: Sky,
+  start: { tiltDeg: number; azimuthDeg: number },
+  control: UnitControl,
+): { points: TrajectoryPoint[]; converged: boolean } {
   return ascentTrajectoryWith((n) => irradianceFastAtNormal(sky, n), start, control);
 }
 
@@ -120,8 +154,10 @@ export function analyseLandscape(sky: Sky, options: LandscapeAnalysisOptions = {
   const azRange = options.azimuthRangeDeg ?? [0, 360];
   const delta = options.detectorTiltDeg ?? 0;
   const maxDelta = options.maxDetectorTiltDeg ?? 30;
-  if (!Number.isFinite(delta) || delta < 0 || delta > 45) throw new RangeError(`detectorTiltDeg: must be a finite number in [0, 45]; got ${delta}`);
-  if (!Number.isFinite(maxDelta) || maxDelta < 0.5 || maxDelta > 45) throw new RangeError(`maxDetectorTiltDeg: must be a finite number in [0.5, 45]; got ${maxDelta}`);
+  if (!Number.isFinite(delta) || delta < 0 || delta > 45)
+    throw new RangeError(`detectorTiltDeg: must be a finite number in [0, 45]; got ${delta}`);
+  if (!Number.isFinite(maxDelta) || maxDelta < 0.5 || maxDelta > 45)
+    throw new RangeError(`maxDetectorTiltDeg: must be a finite number in [0.5, 45]; got ${maxDelta}`);
   const raw = computeLandscape(sky, { stepDeg, tiltRangeDeg: tiltRange, azimuthRangeDeg: azRange, method: options.method });
   const graph = gridGraph(raw);
   const rawPeaks = analysePeaks(raw, options.minProminenceWm2, graph);
@@ -152,7 +188,13 @@ export function analyseLandscape(sky: Sky, options: LandscapeAnalysisOptions = {
   const g = rawPeaks.peaks[0]!;
   return {
     globalMax: { tiltDeg: g.tiltDeg, azimuthDeg: g.azimuthDeg, wm2: g.wm2 },
-    localMaxima: rawPeaks.peaks.map((p) => ({ tiltDeg: p.tiltDeg, azimuthDeg: p.azimuthDeg, wm2: p.wm2, prominenceWm2: p.prominenceWm2, basinShare: shares.get(p.node) ?? 0 })),
+    localMaxima: rawPeaks.peaks.map((p) => ({
+      tiltDeg: p.tiltDeg,
+      azimuthDeg: p.azimuthDeg,
+      wm2: p.wm2,
+      prominenceWm2: p.prominenceWm2,
+      basinShare: shares.get(p.node) ?? 0,
+    })),
     minSinglePeakDetectorTiltDeg: minSingle,
     detectorTiltDeg: delta,
     minProminenceWm2: threshold,

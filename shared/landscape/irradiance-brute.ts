@@ -8,7 +8,14 @@
  * DISC_SAMPLES points, each tested against the horizon profile and the facades; lamps are exact point sources.
  * Cost ≈ (number of normals) × 64 800 multiply-adds.
  */
-import { azimuthElevationOf, directionFromAzimuthElevation, dot, normalFromTiltAzimuth, reflectDirection, type Vec3 } from '../sphere/directions';
+import {
+  azimuthElevationOf,
+  directionFromAzimuthElevation,
+  dot,
+  normalFromTiltAzimuth,
+  reflectDirection,
+  type Vec3,
+} from '../sphere/directions';
 import { horizonElevationDeg } from '../sky-radiance/horizon-profile';
 import { reflectorContains } from '../sky-radiance/facade-reflectors';
 import { extendedRadiance, SUN_ANGULAR_RADIUS_DEG, type Sky } from '../sky-radiance/sky';
@@ -151,7 +158,8 @@ export function irradianceBruteAtNormal(sky: Sky, n: Vec3): number {
 export function landscapeBruteValues(sky: Sky, tiltsDeg: Float64Array, azimuthsDeg: Float64Array): Float64Array {
   const out = new Float64Array(tiltsDeg.length * azimuthsDeg.length);
   for (let i = 0; i < tiltsDeg.length; i++) {
-    for (let j = 0; j < azimuthsDeg.length; j++) out[i * azimuthsDeg.length + j] = irradianceBruteAtNormal(sky, normalFromTiltAzimuth(tiltsDeg[i]!, azimuthsDeg[j]!));
+    for (let j = 0; j < azimuthsDeg.length; j++)
+      out[i * azimuthsDeg.length + j] = irradianceBruteAtNormal(sky, normalFromTiltAzimuth(tiltsDeg[i]!, azimuthsDeg[j]!));
   }
   return out;
 }

@@ -146,7 +146,13 @@ function coefficientsFor(sky: Sky, order: number, capRadiusRad: number): Float64
  * Fast landscape on a tilt × azimuth grid. With `capRadiusDeg` > 0 the result is the landscape averaged over a
  * spherical cap of that radius around each normal (exact in the harmonic domain; tabulated for the sharp sources).
  */
-export function landscapeFastValues(sky: Sky, tiltsDeg: Float64Array, azimuthsDeg: Float64Array, order = SH_ORDER, capRadiusDeg = 0): Float64Array {
+export function landscapeFastValues(
+  sky: Sky,
+  tiltsDeg: Float64Array,
+  azimuthsDeg: Float64Array,
+  order = SH_ORDER,
+  capRadiusDeg = 0,
+): Float64Array {
   const capRad = (capRadiusDeg * Math.PI) / 180;
   const out = evaluateShOnTiltAzimuthGrid(order, coefficientsFor(sky, order, capRad), tiltsDeg, azimuthsDeg);
   const nA = azimuthsDeg.length;
@@ -156,7 +162,9 @@ export function landscapeFastValues(sky: Sky, tiltsDeg: Float64Array, azimuthsDe
       for (let j = 0; j < nA; j++) {
         const n = normalFromTiltAzimuth(tiltsDeg[i]!, azimuthsDeg[j]!);
         if (!table) out[i * nA + j] = out[i * nA + j]! + pointSourceIrradiance(sky, n);
-        else for (const p of sky.pointSources) out[i * nA + j] = out[i * nA + j]! + p.irradianceWm2 * lookupCapTable(table, dot(n, p.direction));
+        else
+          for (const p of sky.pointSources)
+            out[i * nA + j] = out[i * nA + j]! + p.irradianceWm2 * lookupCapTable(table, dot(n, p.direction));
       }
     }
   }

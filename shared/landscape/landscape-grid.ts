@@ -30,7 +30,13 @@ export interface LandscapeGridOptions {
   azimuthRangeDeg?: readonly [number, number];
 }
 
-export function validateGridOptions(o: LandscapeGridOptions): { stepDeg: number; tilts: Float64Array; azimuths: Float64Array; azimuthStepDeg: number; periodic: boolean } {
+export function validateGridOptions(o: LandscapeGridOptions): {
+  stepDeg: number;
+  tilts: Float64Array;
+  azimuths: Float64Array;
+  azimuthStepDeg: number;
+  periodic: boolean;
+} {
   const stepDeg = o.stepDeg ?? 1;
   if (typeof stepDeg !== 'number' || !Number.isFinite(stepDeg) || stepDeg <= 0 || stepDeg > 10) {
     throw new RangeError(`stepDeg: must be a finite number with 0 < step ≤ 10 degrees; got ${stepDeg}`);
@@ -61,4 +67,3 @@ export function validateGridOptions(o: LandscapeGridOptions): { stepDeg: number;
   }
   return { stepDeg, tilts, azimuths, azimuthStepDeg, periodic };
 }
-

@@ -67,7 +67,11 @@ export const skyFileSchema = z
       .superRefine((pts, ctx) => {
         for (let i = 1; i < pts.length; i++) {
           if (pts[i]![0] < pts[i - 1]![0]) {
-            ctx.addIssue({ code: 'custom', path: [i, 0], message: `must be sorted by azimuth: ${pts[i]![0]}° comes after ${pts[i - 1]![0]}°` });
+            ctx.addIssue({
+              code: 'custom',
+              path: [i, 0],
+              message: `must be sorted by azimuth: ${pts[i]![0]}° comes after ${pts[i - 1]![0]}°`,
+            });
             return;
           }
         }

@@ -46,7 +46,16 @@ export function resolveSkyFile(file: SkyFile): ResolvedSky {
   }
   if (sunAz === null) {
     const dhi = file.dhiWm2 ?? 0;
-    const input: SkyInput = { sun: null, dhiWm2: dhi, ghiWm2: file.ghiWm2 ?? dhi, skyType: file.skyType, albedo: file.albedo, horizon: file.horizon, reflectors: file.reflectors, lamps: file.lamps };
+    const input: SkyInput = {
+      sun: null,
+      dhiWm2: dhi,
+      ghiWm2: file.ghiWm2 ?? dhi,
+      skyType: file.skyType,
+      albedo: file.albedo,
+      horizon: file.horizon,
+      reflectors: file.reflectors,
+      lamps: file.lamps,
+    };
     return { sky: buildSky(input), input, magnitudeSource: 'no sun: measured DHI (default 0)', sunSource };
   }
   const zenithDeg = 90 - sunEl;

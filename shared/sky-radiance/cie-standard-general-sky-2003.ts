@@ -58,7 +58,8 @@ export interface CieParameters {
 
 export function cieParameters(skyType: number): CieParameters {
   const t = CIE_SKY_TYPES[skyType - 1];
-  if (!Number.isInteger(skyType) || !t) throw new RangeError(`skyType: CIE standard general sky type must be an integer 1…15; got ${skyType}`);
+  if (!Number.isInteger(skyType) || !t)
+    throw new RangeError(`skyType: CIE standard general sky type must be an integer 1…15; got ${skyType}`);
   const [a, b] = CIE_GRADATION[t[0]];
   const [c, d, e] = CIE_INDICATRIX[t[1]];
   return { a, b, c, d, e };

@@ -72,7 +72,11 @@ export function reflectedViewDirection(r: Reflector, v: Vec3): Vec3 | null {
 }
 
 /** Direction of the sun's image in the reflector, or null when the facade does not face the sun or the image is outside it. */
-export function sunImageDirection(r: Reflector, sun: Vec3, sunAzimuthElevation: (v: Vec3) => { azimuthDeg: number; elevationDeg: number }): Vec3 | null {
+export function sunImageDirection(
+  r: Reflector,
+  sun: Vec3,
+  sunAzimuthElevation: (v: Vec3) => { azimuthDeg: number; elevationDeg: number },
+): Vec3 | null {
   if (dot(sun, r.normal) <= 0) return null;
   const v = reflectDirection(sun, r.normal);
   const { azimuthDeg, elevationDeg } = sunAzimuthElevation(v);

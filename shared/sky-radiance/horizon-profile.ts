@@ -17,9 +17,14 @@ export interface HorizonProfile {
 export function horizonProfile(points: readonly (readonly [number, number])[] = [], field = 'horizon'): HorizonProfile {
   for (let i = 0; i < points.length; i++) {
     const [a, e] = points[i]!;
-    if (!Number.isFinite(a) || a < 0 || a >= 360) throw new RangeError(`${field}[${i}][0]: azimuth must be a finite number in [0, 360); got ${a}`);
-    if (!Number.isFinite(e) || e < 0 || e > 90) throw new RangeError(`${field}[${i}][1]: elevation must be a finite number in [0, 90]; got ${e}`);
-    if (i > 0 && a < points[i - 1]![0]) throw new RangeError(`${field}: points must be sorted by azimuth (non-decreasing); point ${i} (${a}°) comes after ${points[i - 1]![0]}°`);
+    if (!Number.isFinite(a) || a < 0 || a >= 360)
+      throw new RangeError(`${field}[${i}][0]: azimuth must be a finite number in [0, 360); got ${a}`);
+    if (!Number.isFinite(e) || e < 0 || e > 90)
+      throw new RangeError(`${field}[${i}][1]: elevation must be a finite number in [0, 90]; got ${e}`);
+    if (i > 0 && a < points[i - 1]![0])
+      throw new RangeError(
+        `${field}: points must be sorted by azimuth (non-decreasing); point ${i} (${a}°) comes after ${points[i - 1]![0]}°`,
+      );
   }
   if (points.length === 0) {
     return { az: Float64Array.of(-1, 361), el: Float64Array.of(0, 0), cumulative: Float64Array.of(0, 0), empty: true, maxElevationDeg: 0 };

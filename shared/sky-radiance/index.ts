@@ -1,5 +1,15 @@
 /** Sky radiance model: build a sky, query its radiance and its closed-form sources. */
-export { buildSky, extendedRadiance, environmentRadiance, reflectorRadiance, pointSourceIrradiance, type Sky, type SkyInput, type SkyType, type PointSource } from './sky';
+export {
+  buildSky,
+  extendedRadiance,
+  environmentRadiance,
+  reflectorRadiance,
+  pointSourceIrradiance,
+  type Sky,
+  type SkyInput,
+  type SkyType,
+  type PointSource,
+} from './sky';
 export { cieRelativeLuminance, cieParameters, CIE_SKY_TYPES, CIE_GRADATION, CIE_INDICATRIX } from './cie-standard-general-sky-2003';
 export { moonSpencerRelativeLuminance } from './cie-overcast-moon-spencer-1942';
 export { horizonProfile, horizonElevationDeg, horizonMeanElevationDeg, type HorizonProfile } from './horizon-profile';

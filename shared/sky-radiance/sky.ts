@@ -17,7 +17,14 @@ import { skyDomeIrradianceOnPlane } from '../sphere/plane-quadrature';
 import { cieParameters, cieGradation, cieIndicatrix, type CieParameters } from './cie-standard-general-sky-2003';
 import { moonSpencerRelativeLuminance } from './cie-overcast-moon-spencer-1942';
 import { buildLamp, type Lamp, type LampInput } from './lamps';
-import { buildReflector, reflectedViewDirection, reflectorContains, sunImageDirection, type Reflector, type ReflectorInput } from './facade-reflectors';
+import {
+  buildReflector,
+  reflectedViewDirection,
+  reflectorContains,
+  sunImageDirection,
+  type Reflector,
+  type ReflectorInput,
+} from './facade-reflectors';
 import { horizonElevationDeg, horizonProfile, type HorizonProfile } from './horizon-profile';
 import { SUN_ANGULAR_RADIUS_DEG, sunDiscVisibleFraction } from './sun-disc';
 
@@ -102,7 +109,11 @@ function domeShapeFor(skyType: SkyType, sun: Vec3): (d: Vec3) => number {
 /** Validate and build a sky. Throws RangeError naming the offending field. */
 export function buildSky(input: SkyInput): Sky {
   const skyType = input.skyType ?? 'isotropic';
-  if (!(skyType === 'isotropic' || skyType === 'moon-spencer' || (typeof skyType === 'number' && Number.isInteger(skyType) && skyType >= 1 && skyType <= 15))) {
+  if (!(
+    skyType === 'isotropic' ||
+    skyType === 'moon-spencer' ||
+    (typeof skyType === 'number' && Number.isInteger(skyType) && skyType >= 1 && skyType <= 15)
+  )) {
     throw new RangeError(`skyType: must be "isotropic", "moon-spencer" or an integer 1…15; got ${JSON.stringify(skyType)}`);
   }
   requireFinite(input.dhiWm2, 'dhiWm2', 0, 2000);
@@ -139,7 +150,12 @@ export function buildSky(input: SkyInput): Sky {
   });
   const shapeSun: Vec3 = sunDirection ?? [0, 0, 1];
   const domeShape = domeShapeFor(skyType, shapeSun);
-  const domeHorizontalIntegralSr = skyDomeIrradianceOnPlane((z, a) => domeShape([Math.sin(z) * Math.sin(a), Math.sin(z) * Math.cos(a), Math.cos(z)]), 0, 0, 96);
+  const domeHorizontalIntegralSr = skyDomeIrradianceOnPlane(
+    (z, a) => domeShape([Math.sin(z) * Math.sin(a), Math.sin(z) * Math.cos(a), Math.cos(z)]),
+    0,
+    0,
+    96,
+  );
   const zenithRadianceWm2Sr = input.dhiWm2 / domeHorizontalIntegralSr;
   const pointSources: PointSource[] = [];
   if (sunDirection && dni > 0 && input.sun) {
@@ -153,7 +169,8 @@ export function buildSky(input: SkyInput): Sky {
       if (img) pointSources.push({ kind: 'sun-image', direction: img, irradianceWm2: r.reflectance * dni });
     }
   }
-  for (const l of lamps) if (l.irradianceWm2 > 0) pointSources.push({ kind: 'lamp', direction: l.direction, irradianceWm2: l.irradianceWm2 });
+  for (const l of lamps)
+    if (l.irradianceWm2 > 0) pointSources.push({ kind: 'lamp', direction: l.direction, irradianceWm2: l.irradianceWm2 });
   return {
     input,
     sunDirection,

@@ -12,7 +12,15 @@ import { localDayStartUnixMs } from './instant';
 import { spaRiseTransitSet, spaSolarPosition, type SpaResult } from './spa-reda-andreas-2008';
 
 export { parseInstant, formatInstant, localDayStartUnixMs, type Instant } from './instant';
-export { spaSolarPosition, spaRiseTransitSet, spaGeocentric, horizonCoordinates, julianDayFromUnixMs, type SpaInput, type SpaResult } from './spa-reda-andreas-2008';
+export {
+  spaSolarPosition,
+  spaRiseTransitSet,
+  spaGeocentric,
+  horizonCoordinates,
+  julianDayFromUnixMs,
+  type SpaInput,
+  type SpaResult,
+} from './spa-reda-andreas-2008';
 export { deltaTSecondsEspenakMeeus } from './delta-t-espenak-meeus-2006';
 
 const RAD = Math.PI / 180;
@@ -150,7 +158,16 @@ export function sunEventsOfLocalDay(site: Site, unixMs: number, offsetMinutes: n
   const start = localDayStartUnixMs(unixMs, offsetMinutes);
   const deltaTS = options.deltaTS ?? deltaTSecondsEspenakMeeus(decimalYear(start + 43_200_000));
   const h0 = -(0.26667 + 0.5667);
-  const geo = (t: number) => spaSolarPosition({ unixMs: t, deltaTS, latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM, pressureHpa: 1010, temperatureC: 10 });
+  const geo = (t: number) =>
+    spaSolarPosition({
+      unixMs: t,
+      deltaTS,
+      latitudeDeg: site.latitudeDeg,
+      longitudeDeg: site.longitudeDeg,
+      elevationM: site.elevationM,
+      pressureHpa: 1010,
+      temperatureC: 10,
+    });
   const elev = (t: number) => geo(t).elevationNoRefractionDeg - h0;
   const hourSin = (t: number) => Math.sin(geo(t).topocentricHourAngleDeg * RAD);
   const stepMs = 20 * 60_000;
@@ -162,7 +179,7 @@ export function sunEventsOfLocalDay(site: Site, unixMs: number, offsetMinutes: n
     for (let i = 0; i < 40 && hi - lo > 0.5; i++) {
       const mid = (lo + hi) / 2;
       const fm = f(mid);
-      if ((fm < 0) === (flo < 0)) {
+      if (fm < 0 === flo < 0) {
         lo = mid;
         flo = fm;
       } else hi = mid;

@@ -16,7 +16,9 @@ const ISO_WITH_OFFSET = /^(-?\d{4,6})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{
 export function parseInstant(text: string, field = 'time'): Instant {
   const m = ISO_WITH_OFFSET.exec(text.trim());
   if (!m) {
-    throw new RangeError(`${field}: expected an ISO 8601 instant with an offset, e.g. 2003-10-17T12:30:30-07:00 or …Z; got ${JSON.stringify(text)}`);
+    throw new RangeError(
+      `${field}: expected an ISO 8601 instant with an offset, e.g. 2003-10-17T12:30:30-07:00 or …Z; got ${JSON.stringify(text)}`,
+    );
   }
   const [, y, mo, d, h, mi, s, frac, off] = m;
   const year = Number(y);

@@ -121,7 +121,8 @@ export function julianDayFromUnixMs(unixMs: number, deltaUt1S = 0): number {
 export function earthHeliocentric(jme: number): { lDeg: number; bDeg: number; rAu: number } {
   const lRad =
     (sumTerms(L0, jme) +
-      jme * (sumTerms(L1, jme) + jme * (sumTerms(L2, jme) + jme * (sumTerms(L3, jme) + jme * (sumTerms(L4, jme) + jme * sumTerms(L5, jme)))))) /
+      jme *
+        (sumTerms(L1, jme) + jme * (sumTerms(L2, jme) + jme * (sumTerms(L3, jme) + jme * (sumTerms(L4, jme) + jme * sumTerms(L5, jme)))))) /
     1e8;
   const bRad = (sumTerms(B0, jme) + jme * sumTerms(B1, jme)) / 1e8;
   const rAu =
@@ -157,7 +158,9 @@ export function meanObliquityArcsec(jme: number): number {
   const u = jme / 10;
   return (
     84381.448 +
-    u * (-4680.93 + u * (-1.55 + u * (1999.25 + u * (-51.38 + u * (-249.67 + u * (-39.05 + u * (7.12 + u * (27.87 + u * (5.79 + u * 2.45)))))))))
+    u *
+      (-4680.93 +
+        u * (-1.55 + u * (1999.25 + u * (-51.38 + u * (-249.67 + u * (-39.05 + u * (7.12 + u * (27.87 + u * (5.79 + u * 2.45)))))))))
   );
 }
 
@@ -236,7 +239,11 @@ export function spaGeocentric(julianDay: number, deltaTS: number): SpaGeocentric
  * Eqs. 41–44 without refraction: topocentric elevation e0 and astronomers' azimuth Γ from latitude φ,
  * declination δ′ and hour angle H′ (all degrees). Also the textbook horizon-coordinate transform.
  */
-export function horizonCoordinates(latitudeDeg: number, declinationDeg: number, hourAngleDeg: number): { elevationDeg: number; astronomersAzimuthDeg: number } {
+export function horizonCoordinates(
+  latitudeDeg: number,
+  declinationDeg: number,
+  hourAngleDeg: number,
+): { elevationDeg: number; astronomersAzimuthDeg: number } {
   const phi = latitudeDeg * RAD;
   const d = declinationDeg * RAD;
   const h = hourAngleDeg * RAD;
@@ -246,13 +253,23 @@ export function horizonCoordinates(latitudeDeg: number, declinationDeg: number, 
 }
 
 /** Eq. 42: atmospheric refraction correction Δe (degrees) for e0, pressure (hPa) and temperature (°C). */
-export function refractionCorrectionDeg(e0Deg: number, pressureHpa: number, temperatureC: number, atmosphericRefractionDeg = 0.5667): number {
+export function refractionCorrectionDeg(
+  e0Deg: number,
+  pressureHpa: number,
+  temperatureC: number,
+  atmosphericRefractionDeg = 0.5667,
+): number {
   if (e0Deg < -(0.26667 + atmosphericRefractionDeg)) return 0;
   return ((pressureHpa / 1010) * (283 / (273 + temperatureC)) * 1.02) / (60 * Math.tan((e0Deg + 10.3 / (e0Deg + 5.11)) * RAD));
 }
 
 /** Eq. 47: incidence angle (deg) on a surface of slope ω, azimuth rotation γ (from south, W+), for zenith θ and astronomers' azimuth Γ. */
-export function spaIncidenceDeg(zenithDeg: number, astronomersAzimuthDeg: number, slopeDeg: number, surfaceAzimuthRotationDeg: number): number {
+export function spaIncidenceDeg(
+  zenithDeg: number,
+  astronomersAzimuthDeg: number,
+  slopeDeg: number,
+  surfaceAzimuthRotationDeg: number,
+): number {
   const th = zenithDeg * RAD;
   const om = slopeDeg * RAD;
   const c = Math.cos(th) * Math.cos(om) + Math.sin(om) * Math.sin(th) * Math.cos((astronomersAzimuthDeg - surfaceAzimuthRotationDeg) * RAD);
@@ -294,7 +311,9 @@ export function spaSolarPosition(input: SpaInput): SpaResult {
   const zenithDeg = 90 - e; // eq. 44
   const azimuthDeg = limitDegrees(gammaDeg + 180); // eq. 46
   const incidenceDeg =
-    input.surfaceSlopeDeg === undefined ? null : spaIncidenceDeg(zenithDeg, gammaDeg, input.surfaceSlopeDeg, input.surfaceAzimuthRotationDeg ?? 0);
+    input.surfaceSlopeDeg === undefined
+      ? null
+      : spaIncidenceDeg(zenithDeg, gammaDeg, input.surfaceSlopeDeg, input.surfaceAzimuthRotationDeg ?? 0);
   return {
     ...g,
     observerHourAngleDeg: hDeg,
@@ -310,7 +329,12 @@ export function spaSolarPosition(input: SpaInput): SpaResult {
     astronomersAzimuthDeg: gammaDeg,
     azimuthDeg,
     incidenceDeg,
-    equationOfTimeMin: equationOfTimeMin(g.julianEphemerisMillennium, g.geocentricRightAscensionDeg, g.nutationLongitudeDeg, g.trueObliquityDeg),
+    equationOfTimeMin: equationOfTimeMin(
+      g.julianEphemerisMillennium,
+      g.geocentricRightAscensionDeg,
+      g.nutationLongitudeDeg,
+      g.trueObliquityDeg,
+    ),
   };
 }
 

@@ -19,7 +19,13 @@ export function skyDomeIrradianceOnPlane(
   const an = planeAzimuthDeg * RAD;
   const cb = Math.cos(beta);
   const sb = Math.sin(beta);
-  const pieces: [number, number][] = sb < 1e-12 ? [[an, an + 2 * Math.PI]] : [[an - Math.PI / 2, an + Math.PI / 2], [an + Math.PI / 2, an + (3 * Math.PI) / 2]];
+  const pieces: [number, number][] =
+    sb < 1e-12
+      ? [[an, an + 2 * Math.PI]]
+      : [
+          [an - Math.PI / 2, an + Math.PI / 2],
+          [an + Math.PI / 2, an + (3 * Math.PI) / 2],
+        ];
   let total = 0;
   for (const [a0, a1] of pieces) {
     const ga = gaussLegendreOn(nodes, a0, a1);

@@ -47,7 +47,12 @@ export function normalizedLegendre(order: number, x: number, out: Float64Array):
 }
 
 /** Evaluate all real Y_lm at a unit direction [east, north, up]. */
-export function realShBasis(order: number, d: Vec3, out: Float64Array = new Float64Array(shCount(order)), scratch: Float64Array = new Float64Array(((order + 1) * (order + 2)) / 2)): Float64Array {
+export function realShBasis(
+  order: number,
+  d: Vec3,
+  out: Float64Array = new Float64Array(shCount(order)),
+  scratch: Float64Array = new Float64Array(((order + 1) * (order + 2)) / 2),
+): Float64Array {
   normalizedLegendre(order, d[2], scratch);
   const phi = Math.atan2(d[1], d[0]);
   const c1 = Math.cos(phi);
@@ -71,7 +76,12 @@ export function realShBasis(order: number, d: Vec3, out: Float64Array = new Floa
 }
 
 /** Σ c_lm Y_lm(d). */
-export function evaluateSh(order: number, coefficients: Float64Array, d: Vec3, scratch: Float64Array = new Float64Array(((order + 1) * (order + 2)) / 2)): number {
+export function evaluateSh(
+  order: number,
+  coefficients: Float64Array,
+  d: Vec3,
+  scratch: Float64Array = new Float64Array(((order + 1) * (order + 2)) / 2),
+): number {
   normalizedLegendre(order, d[2], scratch);
   const phi = Math.atan2(d[1], d[0]);
   const c1 = Math.cos(phi);
@@ -99,7 +109,12 @@ export function evaluateSh(order: number, coefficients: Float64Array, d: Vec3, s
  * Evaluate Σ c_lm Y_lm on the grid of normals (tilt_i, azimuth_j), row-major [i * nAz + j].
  * Separable: Legendre sums per tilt row (O(nTilt · order²)), then a Fourier sum per cell (O(nTilt · nAz · order)).
  */
-export function evaluateShOnTiltAzimuthGrid(order: number, coefficients: Float64Array, tiltsDeg: ArrayLike<number>, azimuthsDeg: ArrayLike<number>): Float64Array {
+export function evaluateShOnTiltAzimuthGrid(
+  order: number,
+  coefficients: Float64Array,
+  tiltsDeg: ArrayLike<number>,
+  azimuthsDeg: ArrayLike<number>,
+): Float64Array {
   const nT = tiltsDeg.length;
   const nA = azimuthsDeg.length;
   const out = new Float64Array(nT * nA);

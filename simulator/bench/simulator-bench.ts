@@ -17,11 +17,21 @@ async function brokerChild(): Promise<void> {
   const { startBroker } = await import('../../broker/broker');
   const { unitPrefix, unitTopic } = await import('../../shared/contracts/topics');
   const b = await startBroker({
-    host: '127.0.0.1', port: 0, unitPrefix, limits: { maxPendingConnections: 100_000 }, // every unit connects at once here
+    host: '127.0.0.1',
+    port: 0,
+    unitPrefix,
+    limits: { maxPendingConnections: 100_000 }, // every unit connects at once here
     authenticate: async (u) => (/^BENCH-\d+$/.test(u) ? { kind: 'unit', serial: u } : null),
   });
   let received = 0;
-  b.aedes.subscribe(unitTopic('+', 'telemetry'), (_p, cb) => { received++; cb(); }, () => {});
+  b.aedes.subscribe(
+    unitTopic('+', 'telemetry'),
+    (_p, cb) => {
+      received++;
+      cb();
+    },
+    () => {},
+  );
   process.send!({ port: b.port });
   process.on('message', (m: { cmd: string }) => {
     if (m.cmd === 'count') process.send!({ received });
@@ -30,17 +40,37 @@ async function brokerChild(): Promise<void> {
 }
 
 async function main(): Promise<void> {
-  const { values } = parseArgs({ options: { units: { type: 'string' }, seconds: { type: 'string' }, json: { type: 'boolean' }, child: { type: 'boolean' } } });
+  const { values } = parseArgs({
+    options: { units: { type: 'string' }, seconds: { type: 'string' }, json: { type: 'boolean' }, child: { type: 'boolean' } },
+  });
   if (values.child) return brokerChild();
   const units = Number(values.units ?? 2000);
   const seconds = Number(values.seconds ?? 20);
   const child = fork(new URL(import.meta.url).pathname, ['--child'], { execArgv: ['--import', 'tsx'] });
   const port = await new Promise<number>((res) => child.once('message', (m: { port: number }) => res(m.port)));
-  const ask = () => new Promise<number>((res) => { child.once('message', (m: { received: number }) => res(m.received)); child.send({ cmd: 'count' }); });
+  const ask = () =>
+    new Promise<number>((res) => {
+      child.once('message', (m: { received: number }) => res(m.received));
+      child.send({ cmd: 'count' });
+    });
   const site = demoSiteInfo('QED');
   const start = Date.parse('2026-04-20T10:00:00Z');
   const fleet = createFleet(
-    { sites: [{ site, scenario: 'broken-cloud', units: Array.from({ length: units }, (_, i) => ({ serial: `BENCH-${i + 1}`, siteCode: 'QED', controller: { reportIntervalS: 1 }, weatherStation: i === 0 })) }], startUnixMs: start },
+    {
+      sites: [
+        {
+          site,
+          scenario: 'broken-cloud',
+          units: Array.from({ length: units }, (_, i) => ({
+            serial: `BENCH-${i + 1}`,
+            siteCode: 'QED',
+            controller: { reportIntervalS: 1 },
+            weatherStation: i === 0,
+          })),
+        },
+      ],
+      startUnixMs: start,
+    },
     { rng: createRng('bench') },
   );
   const real = wallClock();
@@ -68,7 +98,9 @@ async function main(): Promise<void> {
   const reportsPerSec = Math.round(sent / elapsedS);
   const cpuPct = Math.round(((c1.user + c1.system) / 1000 / (elapsedS * 1000)) * 1000) / 10;
   if (!values.json) {
-    process.stderr.write(`${units} units, ${elapsedS.toFixed(1)} s: ${sent} messages sent (${reportsPerSec}/s), broker received ${Math.round((r1 - r0) / elapsedS)} telemetry/s; simulator CPU ${cpuPct} % of one core\n`);
+    process.stderr.write(
+      `${units} units, ${elapsedS.toFixed(1)} s: ${sent} messages sent (${reportsPerSec}/s), broker received ${Math.round((r1 - r0) / elapsedS)} telemetry/s; simulator CPU ${cpuPct} % of one core\n`,
+    );
   }
   process.stdout.write(`${JSON.stringify({ units, reportsPerSec, cpuPct })}\n`);
   process.exit(0);

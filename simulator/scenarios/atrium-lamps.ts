@@ -29,7 +29,9 @@ export function atriumLamps(site: SiteInfo, lamps: readonly ScheduledLamp[] = AT
     shape: (clear, sun) =>
       outdoorSky(sun, clear.dniWm2 * GLAZING_TRANSMITTANCE, clear.dhiWm2 * GLAZING_TRANSMITTANCE, 'isotropic', site.albedo, {
         horizon: [[0, ATRIUM_WALL_DEG]],
-        lamps: lamps.filter((_, i) => on[i]).map(({ azimuthDeg, elevationDeg, irradianceWm2 }) => ({ azimuthDeg, elevationDeg, irradianceWm2 })),
+        lamps: lamps
+          .filter((_, i) => on[i])
+          .map(({ azimuthDeg, elevationDeg, irradianceWm2 }) => ({ azimuthDeg, elevationDeg, irradianceWm2 })),
       }),
     wind: CALM,
     airTemp: { meanC: 21, amplitudeC: 1.5 },

@@ -2,7 +2,13 @@
  * What a scenario needs to know about a site, and what it gives back at each instant: the sky field every unit on the
  * site reads, the sun, and the weather (the site station's quantities).
  */
-import { absoluteAirMass, clearSkyIneichenPerez, dayOfYearUtc, extraterrestrialNormalIrradianceWm2, relativeAirMassKastenYoung } from '../../shared/clear-sky';
+import {
+  absoluteAirMass,
+  clearSkyIneichenPerez,
+  dayOfYearUtc,
+  extraterrestrialNormalIrradianceWm2,
+  relativeAirMassKastenYoung,
+} from '../../shared/clear-sky';
 import { solarPosition } from '../../shared/solar-position';
 import { buildSky, type SkyInput } from '../../shared/sky-radiance';
 import type { Rng } from '../rng';
@@ -51,7 +57,11 @@ export interface SkyParts {
   /** Linke turbidity for the clear-sky magnitudes; default 3.5. */
   linkeTurbidity?: number;
   /** Shapes the sky input of the instant from the clear-sky values. */
-  shape(clear: { dniWm2: number; dhiWm2: number; ghiWm2: number }, sun: { azimuthDeg: number; elevationDeg: number }, unixMs: number): SkyInput;
+  shape(
+    clear: { dniWm2: number; dhiWm2: number; ghiWm2: number },
+    sun: { azimuthDeg: number; elevationDeg: number },
+    unixMs: number,
+  ): SkyInput;
   /** Per-step process update (clouds, lamps), called before `shape`; returns a key of the process state, and a change of key rebuilds the sky. */
   advance?(unixMs: number, dtS: number, rng: Rng): string;
   wind: WindProfile;
@@ -109,11 +119,19 @@ export function createSiteWorld(scenario: string, site: SiteInfo, parts: SkyPart
         };
       }
       const c = cached!;
-      const airTempC = airTemperatureC(parts.airTemp.meanC, parts.airTemp.amplitudeC, site.longitudeDeg, unixMs) + (site.indoor ? 0 : c.field.ghiWm2 * 0.002);
+      const airTempC =
+        airTemperatureC(parts.airTemp.meanC, parts.airTemp.amplitudeC, site.longitudeDeg, unixMs) +
+        (site.indoor ? 0 : c.field.ghiWm2 * 0.002);
       return {
         ...c,
         unixMs,
-        weather: { ghiWm2: c.field.ghiWm2, dhiWm2: c.field.dhiWm2, airTempC, windMs: site.indoor ? 0 : wind.windMs, gustMs: site.indoor ? 0 : wind.gustMs },
+        weather: {
+          ghiWm2: c.field.ghiWm2,
+          dhiWm2: c.field.dhiWm2,
+          airTempC,
+          windMs: site.indoor ? 0 : wind.windMs,
+          gustMs: site.indoor ? 0 : wind.gustMs,
+        },
       };
     },
   };
@@ -122,5 +140,10 @@ export function createSiteWorld(scenario: string, site: SiteInfo, parts: SkyPart
 /** A site whose sky and weather stay as they were at `skyUnixMs` while time goes on (checks at one instant of a scenario). */
 export function frozenWorld(world: SiteWorld, skyUnixMs: number): SiteWorld {
   const c = world.at(skyUnixMs, 0);
-  return { site: world.site, scenario: `${world.scenario} (frozen)`, hasWeatherStation: world.hasWeatherStation, at: (unixMs) => ({ ...c, unixMs }) };
+  return {
+    site: world.site,
+    scenario: `${world.scenario} (frozen)`,
+    hasWeatherStation: world.hasWeatherStation,
+    at: (unixMs) => ({ ...c, unixMs }),
+  };
 }

@@ -22,8 +22,12 @@ import { hashDeviceSecret } from '../../server/services/device-secret';
 
 const { values: args } = parseArgs({
   options: {
-    users: { type: 'string', default: '50' }, units: { type: 'string', default: '2000' }, sites: { type: 'string', default: '10' },
-    period: { type: 'string', default: '2000' }, duration: { type: 'string', default: '60' }, warmup: { type: 'string', default: '10' },
+    users: { type: 'string', default: '50' },
+    units: { type: 'string', default: '2000' },
+    sites: { type: 'string', default: '10' },
+    period: { type: 'string', default: '2000' },
+    duration: { type: 'string', default: '60' },
+    warmup: { type: 'string', default: '10' },
     json: { type: 'boolean', default: false },
   },
 });
@@ -48,9 +52,29 @@ async function main() {
   const hash = hashDeviceSecret(SECRET);
   for (let s = 0; s < SITES; s++) {
     const [ownerId] = await db('owners').insert({ name: `Bench Owner ${s}` });
-    const [siteId] = await db('sites').insert({ owner_id: ownerId, name: `Bench Site ${s}`, latitude_deg: 50, longitude_deg: 8 + s, elevation_m: 100, time_zone: 'Europe/Berlin', albedo: 0.2 });
-    const mine = Array.from({ length: Math.ceil(UNITS / SITES) }, (_, i) => `BA-${String(s).padStart(2, '0')}-${String(i).padStart(4, '0')}`);
-    await db('units').insert(mine.map((serial) => ({ serial, site_id: siteId, rated_power_wp: 400, detector_tilt_deg: 20, firmware: '2.4.1', device_secret_hash: hash })));
+    const [siteId] = await db('sites').insert({
+      owner_id: ownerId,
+      name: `Bench Site ${s}`,
+      latitude_deg: 50,
+      longitude_deg: 8 + s,
+      elevation_m: 100,
+      time_zone: 'Europe/Berlin',
+      albedo: 0.2,
+    });
+    const mine = Array.from(
+      { length: Math.ceil(UNITS / SITES) },
+      (_, i) => `BA-${String(s).padStart(2, '0')}-${String(i).padStart(4, '0')}`,
+    );
+    await db('units').insert(
+      mine.map((serial) => ({
+        serial,
+        site_id: siteId,
+        rated_power_wp: 400,
+        detector_tilt_deg: 20,
+        firmware: '2.4.1',
+        device_secret_hash: hash,
+      })),
+    );
     const unitIds: number[] = await db('units').where({ site_id: siteId }).orderBy('id').pluck('id');
     sites.push({ id: siteId!, ownerId: ownerId!, unitIds });
     serials.push(...mine);
@@ -61,14 +85,31 @@ async function main() {
     const role = i % 2 ? 'engineer' : 'technician';
     return { email: `user${i}@bench.example`, role, site, unitId: site.unitIds[Math.floor(i / SITES) % site.unitIds.length]! };
   });
-  await db('users').insert(users.map((u) => ({ email: u.email, name: u.email, role: u.role, owner_id: u.role === 'owner' ? u.site.ownerId : null, password_hash: passwordHash })));
+  await db('users').insert(
+    users.map((u) => ({
+      email: u.email,
+      name: u.email,
+      role: u.role,
+      owner_id: u.role === 'owner' ? u.site.ownerId : null,
+      password_hash: passwordHash,
+    })),
+  );
   // A day of history for every unit a user will trace (written before the live reports start).
   const dayStart = Date.now() - 86_400_000;
   say(`writing a day of history for ${new Set(users.map((u) => u.unitId)).size} units…`);
   for (const id of new Set(users.map((u) => u.unitId))) await insertDayOfTelemetry(db, id, dayStart - 60_000);
 
   const base = loadConfig({ ...process.env, BW_LOG_LEVEL: 'silent' });
-  const stack = await startStack({ ...testDb.config, port: 0, signInLimitPerMinute: USERS * 2, broker: { ...base.broker, port: 0 }, db: { ...testDb.config.db, poolMax: 8 } }, pino({ level: 'warn' }));
+  const stack = await startStack(
+    {
+      ...testDb.config,
+      port: 0,
+      signInLimitPerMinute: USERS * 2,
+      broker: { ...base.broker, port: 0 },
+      db: { ...testDb.config.db, poolMax: 8 },
+    },
+    pino({ level: 'warn' }),
+  );
 
   mkdirSync('.data/bench', { recursive: true });
   const usersFile = '.data/bench/api-users.json';
@@ -78,7 +119,10 @@ async function main() {
   await stack.landscapesWarm;
   say(`modelled best of the last day cached for ${SITES} sites in ${((Date.now() - warm0) / 1000).toFixed(1)} s`);
   say(`connecting ${UNITS} units…`);
-  const load = fork(fileURLToPath(new URL('./unit-load.ts', import.meta.url)), [String(stack.broker.port), SECRET, ...serials], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
+  const load = fork(fileURLToPath(new URL('./unit-load.ts', import.meta.url)), [String(stack.broker.port), SECRET, ...serials], {
+    execArgv: ['--import', 'tsx'],
+    stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
+  });
   await new Promise<void>((res, rej) => {
     load.on('message', (m: { type: string }) => m.type === 'ready' && res());
     load.once('exit', (code) => rej(new Error(`unit load exited with ${code}`)));
@@ -92,12 +136,22 @@ async function main() {
   // The server's event-loop delay: a stall shows in every route's tail at once.
   const loopDelay = monitorEventLoopDelay({ resolution: 10 });
   setTimeout(() => loopDelay.enable(), warmupS * 1000);
-  const usersProc = fork(fileURLToPath(new URL('./api-users.ts', import.meta.url)), [stack.url, args.period!, String(warmupS + durationS), usersFile], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
+  const usersProc = fork(
+    fileURLToPath(new URL('./api-users.ts', import.meta.url)),
+    [stack.url, args.period!, String(warmupS + durationS), usersFile],
+    { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] },
+  );
   setTimeout(() => usersProc.send({ type: 'measure' }), warmupS * 1000);
-  const result = await new Promise<{ latencies: number[]; socketLags: number[]; errors: string[]; byRoute: Record<string, number[]> }>((res, rej) => {
-    usersProc.on('message', (m: { type: string; latencies: number[]; socketLags: number[]; errors: string[]; byRoute: Record<string, number[]> }) => m.type === 'done' && res(m));
-    usersProc.once('exit', (code) => code !== 0 && rej(new Error(`users exited with ${code}`)));
-  });
+  const result = await new Promise<{ latencies: number[]; socketLags: number[]; errors: string[]; byRoute: Record<string, number[]> }>(
+    (res, rej) => {
+      usersProc.on(
+        'message',
+        (m: { type: string; latencies: number[]; socketLags: number[]; errors: string[]; byRoute: Record<string, number[]> }) =>
+          m.type === 'done' && res(m),
+      );
+      usersProc.once('exit', (code) => code !== 0 && rej(new Error(`users exited with ${code}`)));
+    },
+  );
   const cpu = process.cpuUsage(cpu0);
   loopDelay.disable();
   load.send({ type: 'stop' });
@@ -106,11 +160,28 @@ async function main() {
   await testDb.drop();
 
   const out = {
-    users: USERS, requests: result.latencies.length, p95Ms: pct(result.latencies, 95), p99Ms: pct(result.latencies, 99),
-    socketLagP99Ms: pct(result.socketLags, 99), errors: result.errors.length,
+    users: USERS,
+    requests: result.latencies.length,
+    p95Ms: pct(result.latencies, 95),
+    p99Ms: pct(result.latencies, 99),
+    socketLagP99Ms: pct(result.socketLags, 99),
+    errors: result.errors.length,
   };
-  say({ ...out, p50Ms: pct(result.latencies, 50), socketLagP50Ms: pct(result.socketLags, 50), loopDelayP99Ms: Math.round(loopDelay.percentile(99) / 1e6), loopDelayMaxMs: Math.round(loopDelay.max / 1e6), serverCpuPct: Math.round(((cpu.user + cpu.system) / 1e6 / (warmupS + durationS)) * 100), firstErrors: result.errors.slice(0, 5) });
-  if (!args.json) console.table(Object.fromEntries(Object.entries(result.byRoute).map(([r, xs]) => [r, { n: xs.length, p50Ms: pct(xs, 50), p95Ms: pct(xs, 95), maxMs: pct(xs, 100) }])));
+  say({
+    ...out,
+    p50Ms: pct(result.latencies, 50),
+    socketLagP50Ms: pct(result.socketLags, 50),
+    loopDelayP99Ms: Math.round(loopDelay.percentile(99) / 1e6),
+    loopDelayMaxMs: Math.round(loopDelay.max / 1e6),
+    serverCpuPct: Math.round(((cpu.user + cpu.system) / 1e6 / (warmupS + durationS)) * 100),
+    firstErrors: result.errors.slice(0, 5),
+  });
+  if (!args.json)
+    console.table(
+      Object.fromEntries(
+        Object.entries(result.byRoute).map(([r, xs]) => [r, { n: xs.length, p50Ms: pct(xs, 50), p95Ms: pct(xs, 95), maxMs: pct(xs, 100) }]),
+      ),
+    );
   if (args.json) console.log(JSON.stringify(out));
 }
 

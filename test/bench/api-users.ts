@@ -9,7 +9,12 @@ import { readFileSync } from 'node:fs';
 import WebSocket from 'ws';
 import type { LiveServerMessage } from '../../shared/contracts/live';
 
-interface User { email: string; password: string; unitId: number; siteId: number }
+interface User {
+  email: string;
+  password: string;
+  unitId: number;
+  siteId: number;
+}
 const [base, periodArg, durationArg, usersFile] = process.argv.slice(2);
 if (!base || !periodArg || !durationArg || !usersFile) throw new Error('usage: api-users <base url> <period ms> <duration s> <users file>');
 const PERIOD_MS = Number(periodArg);
@@ -34,35 +39,58 @@ async function get(path: string, cookie: string): Promise<void> {
   if (measuring) {
     const ms = performance.now() - t0;
     latencies.push(ms);
-    (byRoute[path.split('?')[0]!.replace(/\/\d+/g, '/:id') + (path.includes('state=') ? '?' + /state=\w+/.exec(path)![0] : '')] ??= []).push(ms);
+    (byRoute[path.split('?')[0]!.replace(/\/\d+/g, '/:id') + (path.includes('state=') ? '?' + /state=\w+/.exec(path)![0] : '')] ??=
+      []).push(ms);
   }
 }
 
 function views(u: User, dayFrom: string, dayTo: string, hourFrom: string, now: string): { subscribe: object; paths: string[] }[] {
   const q = (o: Record<string, string>) => new URLSearchParams(o).toString();
   return [
-    { subscribe: { fleet: true }, paths: ['/api/sites', '/api/units', '/api/alarms?state=active', `/api/sites/${u.siteId}/landscape/best`] },
+    {
+      subscribe: { fleet: true },
+      paths: ['/api/sites', '/api/units', '/api/alarms?state=active', `/api/sites/${u.siteId}/landscape/best`],
+    },
     { subscribe: { fleet: true }, paths: ['/api/sites', '/api/alarms?state=active', '/api/alarms?state=cleared'] },
     {
       subscribe: { unitId: u.unitId },
       paths: [
-        `/api/units/${u.unitId}`, `/api/sites/${u.siteId}`, `/api/units/${u.unitId}/state`, `/api/units/${u.unitId}/commands`,
-        `/api/units/${u.unitId}/telemetry?${q({ from: hourFrom, to: now })}`, `/api/alarms?unitId=${u.unitId}`,
+        `/api/units/${u.unitId}`,
+        `/api/sites/${u.siteId}`,
+        `/api/units/${u.unitId}/state`,
+        `/api/units/${u.unitId}/commands`,
+        `/api/units/${u.unitId}/telemetry?${q({ from: hourFrom, to: now })}`,
+        `/api/alarms?unitId=${u.unitId}`,
       ],
     },
-    { subscribe: { siteId: u.siteId }, paths: ['/api/sites', `/api/units?siteId=${u.siteId}`, `/api/units/${u.unitId}/traces?${q({ from: dayFrom, to: dayTo, points: '1200' })}`] },
+    {
+      subscribe: { siteId: u.siteId },
+      paths: [
+        '/api/sites',
+        `/api/units?siteId=${u.siteId}`,
+        `/api/units/${u.unitId}/traces?${q({ from: dayFrom, to: dayTo, points: '1200' })}`,
+      ],
+    },
   ];
 }
 
 async function runUser(u: User, index: number): Promise<void> {
-  const res = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: u.email, password: u.password }) });
+  const res = await fetch(`${base}/api/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ email: u.email, password: u.password }),
+  });
   if (!res.ok) throw new Error(`sign-in of ${u.email}: ${res.status}`);
   const cookie = res.headers.get('set-cookie')!.split(';')[0]!;
   const ws = new WebSocket(`${base!.replace('http', 'ws')}/ws`, { headers: { cookie } });
-  await new Promise((r, j) => { ws.once('open', r); ws.once('error', j); });
+  await new Promise((r, j) => {
+    ws.once('open', r);
+    ws.once('error', j);
+  });
   ws.on('message', (d) => {
     const m = JSON.parse(String(d)) as LiveServerMessage;
-    if (measuring && m.type === 'units') for (const s of m.units) if (s.lastReportAt) socketLags.push(Date.now() - Date.parse(s.lastReportAt));
+    if (measuring && m.type === 'units')
+      for (const s of m.units) if (s.lastReportAt) socketLags.push(Date.now() - Date.parse(s.lastReportAt));
   });
   let current: object | undefined;
   let turn = index % 4;

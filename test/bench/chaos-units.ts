@@ -13,7 +13,10 @@ import { writeFileSync } from 'node:fs';
 import mqttPacket from 'mqtt-packet';
 import { unitTopic } from '../../shared/contracts/topics';
 
-interface Reading { tsMs: number; payload: string }
+interface Reading {
+  tsMs: number;
+  payload: string;
+}
 interface Unit {
   serial: string;
   topic: string;
@@ -30,7 +33,15 @@ interface Unit {
 const [port, password, outFile, inflightArg, ...serials] = process.argv.slice(2);
 const INFLIGHT = Number(inflightArg);
 const units: Unit[] = serials.map((serial) => ({
-  serial, topic: unitTopic(serial, 'telemetry'), ready: false, nextId: 1, lastTs: 0, seq: 0, queue: [], inflight: new Map(), acked: [],
+  serial,
+  topic: unitTopic(serial, 'telemetry'),
+  ready: false,
+  nextId: 1,
+  lastTs: 0,
+  seq: 0,
+  queue: [],
+  inflight: new Map(),
+  acked: [],
 }));
 let rate = 0;
 let sent = 0;
@@ -65,7 +76,18 @@ function dial(u: Unit): void {
     u.socket = undefined;
     setTimeout(() => dial(u), 300 + Math.random() * 700);
   });
-  socket.write(mqttPacket.generate({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: u.serial, keepalive: 30, username: u.serial, password: Buffer.from(password!) }));
+  socket.write(
+    mqttPacket.generate({
+      cmd: 'connect',
+      protocolId: 'MQTT',
+      protocolVersion: 4,
+      clean: true,
+      clientId: u.serial,
+      keepalive: 30,
+      username: u.serial,
+      password: Buffer.from(password!),
+    }),
+  );
 }
 
 function write(u: Unit, id: number, r: Reading, dup: boolean): void {
@@ -115,7 +137,13 @@ function done(): void {
   if (reported) return;
   reported = true;
   writeFileSync(outFile!, units.flatMap((u) => u.acked.map((t) => `${u.serial} ${t}`)).join('\n') + '\n');
-  process.send?.({ type: 'done', file: outFile, sent, acked, undelivered: units.reduce((s, u) => s + u.queue.length + u.inflight.size, 0) });
+  process.send?.({
+    type: 'done',
+    file: outFile,
+    sent,
+    acked,
+    undelivered: units.reduce((s, u) => s + u.queue.length + u.inflight.size, 0),
+  });
   for (const u of units) u.socket?.removeAllListeners('close').destroy();
   setTimeout(() => process.exit(0), 100);
 }

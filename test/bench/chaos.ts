@@ -47,7 +47,14 @@ export interface ChaosResult {
   stored: number;
   lost: number;
   duplicated: number;
-  detail: { duplicateRows: number; duplicateRollupSamples: number; duplicatePushes: number; duplicateAlarms: number; undelivered: number; downS: number };
+  detail: {
+    duplicateRows: number;
+    duplicateRollupSamples: number;
+    duplicatePushes: number;
+    duplicateAlarms: number;
+    undelivered: number;
+    downS: number;
+  };
 }
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
@@ -57,8 +64,13 @@ const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 function dbEnv(port: number): Record<string, string> {
   return {
-    BW_DB_DIR: `.data/mariadb-chaos-${port}`, BW_DB_PORT: String(port), BW_DB_HOST: '127.0.0.1', BW_DB_USER: 'bw_chaos',
-    BW_DB_PASSWORD: 'bw-chaos-only', BW_DB_NAME: 'bw_chaos', BW_DB_SUPER: '1',
+    BW_DB_DIR: `.data/mariadb-chaos-${port}`,
+    BW_DB_PORT: String(port),
+    BW_DB_HOST: '127.0.0.1',
+    BW_DB_USER: 'bw_chaos',
+    BW_DB_PASSWORD: 'bw-chaos-only',
+    BW_DB_NAME: 'bw_chaos',
+    BW_DB_SUPER: '1',
   };
 }
 
@@ -77,20 +89,45 @@ async function freePort(): Promise<number> {
 
 async function prepareDatabase(name: string, port: number, units: number): Promise<{ serials: string[]; unitIds: Map<number, string> }> {
   const env = dbEnv(port);
-  const admin = knexFactory({ client: 'mysql2', connection: { host: '127.0.0.1', port, user: env.BW_DB_USER, password: env.BW_DB_PASSWORD } });
+  const admin = knexFactory({
+    client: 'mysql2',
+    connection: { host: '127.0.0.1', port, user: env.BW_DB_USER, password: env.BW_DB_PASSWORD },
+  });
   await admin.raw(`DROP DATABASE IF EXISTS \`${name}\``);
   await admin.raw(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
   await admin.destroy();
   const k = createDb({ host: '127.0.0.1', port, user: env.BW_DB_USER!, password: env.BW_DB_PASSWORD!, database: name, poolMax: 2 });
   await migrateLatest(k);
   const [ownerId] = await k('owners').insert({ name: 'Chaos Owner' });
-  const [siteId] = await k('sites').insert({ owner_id: ownerId, name: 'Chaos Site', latitude_deg: 50, longitude_deg: 8, elevation_m: 100, time_zone: 'Europe/Berlin', albedo: 0.2 });
+  const [siteId] = await k('sites').insert({
+    owner_id: ownerId,
+    name: 'Chaos Site',
+    latitude_deg: 50,
+    longitude_deg: 8,
+    elevation_m: 100,
+    time_zone: 'Europe/Berlin',
+    albedo: 0.2,
+  });
   const serials = Array.from({ length: units }, (_, i) => `CH-${String(i).padStart(5, '0')}`);
   const hash = hashDeviceSecret(SECRET);
   for (let i = 0; i < serials.length; i += 1000) {
-    await k('units').insert(serials.slice(i, i + 1000).map((serial) => ({ serial, site_id: siteId, rated_power_wp: 400, detector_tilt_deg: 20, firmware: '2.4.1', device_secret_hash: hash })));
+    await k('units').insert(
+      serials.slice(i, i + 1000).map((serial) => ({
+        serial,
+        site_id: siteId,
+        rated_power_wp: 400,
+        detector_tilt_deg: 20,
+        firmware: '2.4.1',
+        device_secret_hash: hash,
+      })),
+    );
   }
-  await k('users').insert({ email: 'chaos@chaos.example', name: 'Chaos Watcher', role: 'technician', password_hash: await bcrypt.hash(PASSWORD, 4) });
+  await k('users').insert({
+    email: 'chaos@chaos.example',
+    name: 'Chaos Watcher',
+    role: 'technician',
+    password_hash: await bcrypt.hash(PASSWORD, 4),
+  });
   const rows: { id: number; serial: string }[] = await k('units').select('id', 'serial');
   await k.destroy();
   return { serials, unitIds: new Map(rows.map((r) => [r.id, r.serial])) };
@@ -107,7 +144,11 @@ class ServerProcess {
 
   async start(): Promise<void> {
     const out = createWriteStream(this.logFile, { flags: 'a' });
-    const proc = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], { cwd: ROOT, env: { ...process.env, ...this.env }, stdio: ['ignore', 'pipe', 'pipe'] });
+    const proc = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
+      cwd: ROOT,
+      env: { ...process.env, ...this.env },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
     proc.stdout!.pipe(out);
     proc.stderr!.pipe(out);
     this.proc = proc;
@@ -164,8 +205,14 @@ function watchFleet(baseUrl: string, cookie: () => Promise<string>) {
   };
   void open();
   return {
-    get duplicates() { return duplicates; },
-    stop: () => { stopped = true; ws?.removeAllListeners('close'); ws?.close(); },
+    get duplicates() {
+      return duplicates;
+    },
+    stop: () => {
+      stopped = true;
+      ws?.removeAllListeners('close');
+      ws?.close();
+    },
   };
 }
 
@@ -177,8 +224,17 @@ async function runScenario(name: ChaosScenario, o: ChaosOptions): Promise<ChaosR
   const url = `http://127.0.0.1:${httpPort}`;
   mkdirSync(`${ROOT}.data/chaos`, { recursive: true });
   const server = new ServerProcess(
-    { ...dbEnv(o.dbPort), BW_DB_NAME: database, BW_PORT: String(httpPort), BW_BROKER_PORT: String(brokerPort), BW_SESSION_SECRET: 'chaos-session-secret-chaos-session-secret', BW_LOG_LEVEL: 'warn', BW_BCRYPT_COST: '4' },
-    url, `${ROOT}.data/chaos/${name}-server.log`,
+    {
+      ...dbEnv(o.dbPort),
+      BW_DB_NAME: database,
+      BW_PORT: String(httpPort),
+      BW_BROKER_PORT: String(brokerPort),
+      BW_SESSION_SECRET: 'chaos-session-secret-chaos-session-secret',
+      BW_LOG_LEVEL: 'warn',
+      BW_BCRYPT_COST: '4',
+    },
+    url,
+    `${ROOT}.data/chaos/${name}-server.log`,
   );
   await server.start();
   say(`${name}: server up on ${url}, broker ${brokerPort}`);
@@ -186,7 +242,11 @@ async function runScenario(name: ChaosScenario, o: ChaosOptions): Promise<ChaosR
   let sessionCookie: string | undefined;
   const cookie = async () => {
     if (sessionCookie) return sessionCookie;
-    const res = await fetch(`${url}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'chaos@chaos.example', password: PASSWORD }) });
+    const res = await fetch(`${url}/api/auth/sign-in`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ email: 'chaos@chaos.example', password: PASSWORD }),
+    });
     if (!res.ok) throw new Error(`sign-in ${res.status}`);
     return (sessionCookie = res.headers.get('set-cookie')!.split(';')[0]!);
   };
@@ -194,7 +254,8 @@ async function runScenario(name: ChaosScenario, o: ChaosOptions): Promise<ChaosR
 
   const ackFile = `${ROOT}.data/chaos/${name}-acked.txt`;
   const units = fork(fileURLToPath(new URL('./chaos-units.ts', import.meta.url)), [String(brokerPort), SECRET, ackFile, '10', ...serials], {
-    execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
+    execArgv: ['--import', 'tsx'],
+    stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
   });
   let counts = { sent: 0, acked: 0, connected: 0 };
   let done: { sent: number; acked: number; undelivered: number } | undefined;
@@ -237,7 +298,15 @@ async function runScenario(name: ChaosScenario, o: ChaosOptions): Promise<ChaosR
   const k = createDb({ host: '127.0.0.1', port: o.dbPort, user: 'bw_chaos', password: 'bw-chaos-only', database, poolMax: 2 });
   const rows: { unit_id: number; ts: Date }[] = await k('telemetry').select('unit_id', 'ts');
   const [{ samples }] = (await k('telemetry_1m').sum({ samples: 'samples' })) as [{ samples: number | string | null }];
-  const dupAlarms = (await k('alarms').whereNull('cleared_at').whereNotNull('unit_id').select('unit_id', 'kind').count({ n: '*' }).groupBy('unit_id', 'kind').having(k.raw('COUNT(*) > 1'))).length;
+  const dupAlarms = (
+    await k('alarms')
+      .whereNull('cleared_at')
+      .whereNotNull('unit_id')
+      .select('unit_id', 'kind')
+      .count({ n: '*' })
+      .groupBy('unit_id', 'kind')
+      .having(k.raw('COUNT(*) > 1'))
+  ).length;
   await k.raw(`DROP DATABASE \`${database}\``);
   await k.destroy();
 
@@ -247,9 +316,20 @@ async function runScenario(name: ChaosScenario, o: ChaosOptions): Promise<ChaosR
   const duplicateRows = rows.length - stored.size;
   const duplicateRollupSamples = Math.max(0, Number(samples ?? 0) - rows.length);
   return {
-    name, sent: done.sent, acked: acked.length, stored: rows.length, lost,
+    name,
+    sent: done.sent,
+    acked: acked.length,
+    stored: rows.length,
+    lost,
     duplicated: duplicateRows + duplicateRollupSamples + watcher.duplicates + dupAlarms,
-    detail: { duplicateRows, duplicateRollupSamples, duplicatePushes: watcher.duplicates, duplicateAlarms: dupAlarms, undelivered: done.undelivered, downS: Math.round(downS * 10) / 10 },
+    detail: {
+      duplicateRows,
+      duplicateRollupSamples,
+      duplicatePushes: watcher.duplicates,
+      duplicateAlarms: dupAlarms,
+      undelivered: done.undelivered,
+      downS: Math.round(downS * 10) / 10,
+    },
   };
 }
 
@@ -267,8 +347,12 @@ export async function runChaos(o: ChaosOptions): Promise<{ scenarios: ChaosResul
 if (process.argv[1] && import.meta.url === new URL(`file://${process.argv[1]}`).href) {
   const { values } = parseArgs({
     options: {
-      units: { type: 'string', default: '500' }, rate: { type: 'string', default: '2000' }, steady: { type: 'string', default: '20' },
-      outage: { type: 'string', default: '30' }, scenarios: { type: 'string', default: CHAOS_SCENARIOS.join(',') }, json: { type: 'boolean', default: false },
+      units: { type: 'string', default: '500' },
+      rate: { type: 'string', default: '2000' },
+      steady: { type: 'string', default: '20' },
+      outage: { type: 'string', default: '30' },
+      scenarios: { type: 'string', default: CHAOS_SCENARIOS.join(',') },
+      json: { type: 'boolean', default: false },
     },
   });
   const scenarios = values.scenarios!.split(',') as ChaosScenario[];
@@ -279,8 +363,13 @@ if (process.argv[1] && import.meta.url === new URL(`file://${process.argv[1]}`).
   }
   const log = (l: string) => (values.json ? console.error(l) : console.log(l));
   runChaos({
-    units: Number(values.units), rate: Number(values.rate), steadyS: Number(values.steady), outageS: Number(values.outage), scenarios,
-    dbPort: Number(process.env['BW_CHAOS_DB_PORT'] ?? 3310), log,
+    units: Number(values.units),
+    rate: Number(values.rate),
+    steadyS: Number(values.steady),
+    outageS: Number(values.outage),
+    scenarios,
+    dbPort: Number(process.env['BW_CHAOS_DB_PORT'] ?? 3310),
+    log,
   }).then(
     (r) => {
       if (values.json) console.log(JSON.stringify({ scenarios: r.scenarios.map(({ detail, ...s }) => ({ ...s, detail })) }));

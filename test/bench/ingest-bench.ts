@@ -35,7 +35,10 @@ const WINDOW_S = Number(args.window);
 const WARMUP_S = Number(args.warmup);
 const PROCS = Number(args.processes);
 const SECRET = 'bench-device-secret';
-const say = (...a: unknown[]) => { if (!args.json) console.log(...a); else console.error(...a); };
+const say = (...a: unknown[]) => {
+  if (!args.json) console.log(...a);
+  else console.error(...a);
+};
 
 const pct = (xs: number[], p: number) => {
   if (!xs.length) return null;
@@ -48,13 +51,35 @@ async function main() {
   const { db } = testDb;
   // One owner, one site, UNITS units sharing one bench secret.
   const [ownerId] = await db('owners').insert({ name: 'Bench Owner' });
-  const [siteId] = await db('sites').insert({ owner_id: ownerId, name: 'Bench Site', latitude_deg: 50, longitude_deg: 8, elevation_m: 100, time_zone: 'Europe/Berlin', albedo: 0.2 });
+  const [siteId] = await db('sites').insert({
+    owner_id: ownerId,
+    name: 'Bench Site',
+    latitude_deg: 50,
+    longitude_deg: 8,
+    elevation_m: 100,
+    time_zone: 'Europe/Berlin',
+    albedo: 0.2,
+  });
   const serials = Array.from({ length: UNITS }, (_, i) => `BN-${String(i).padStart(6, '0')}`);
   const hash = hashDeviceSecret(SECRET);
   for (let i = 0; i < serials.length; i += 2000) {
-    await db('units').insert(serials.slice(i, i + 2000).map((serial) => ({ serial, site_id: siteId, rated_power_wp: 400, detector_tilt_deg: 20, firmware: '2.4.1', device_secret_hash: hash })));
+    await db('units').insert(
+      serials.slice(i, i + 2000).map((serial) => ({
+        serial,
+        site_id: siteId,
+        rated_power_wp: 400,
+        detector_tilt_deg: 20,
+        firmware: '2.4.1',
+        device_secret_hash: hash,
+      })),
+    );
   }
-  await db('users').insert({ email: 'bench@bench.example', name: 'Bench', role: 'technician', password_hash: await bcrypt.hash('bench-password', 4) });
+  await db('users').insert({
+    email: 'bench@bench.example',
+    name: 'Bench',
+    role: 'technician',
+    password_hash: await bcrypt.hash('bench-password', 4),
+  });
 
   const commitLags: number[] = [];
   let committed = 0;
@@ -78,7 +103,10 @@ async function main() {
   // A browser-like socket watching the whole fleet, in its own process (socket-watcher.ts).
   const signIn = await request(stack.http).post('/api/auth/sign-in').send({ email: 'bench@bench.example', password: 'bench-password' });
   const cookie = String(signIn.headers['set-cookie']).split(';')[0]!;
-  const watcher = fork(fileURLToPath(new URL('./socket-watcher.ts', import.meta.url)), [`${stack.url.replace('http', 'ws')}/ws`, cookie], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
+  const watcher = fork(fileURLToPath(new URL('./socket-watcher.ts', import.meta.url)), [`${stack.url.replace('http', 'ws')}/ws`, cookie], {
+    execArgv: ['--import', 'tsx'],
+    stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
+  });
   let socketLags: number[] = [];
   let socketLagsReady: ((lags: number[]) => void) | undefined;
   watcher.on('message', (m: { type: string; lags?: number[] }) => m.type === 'socketLags' && socketLagsReady?.(m.lags!));
@@ -94,13 +122,19 @@ async function main() {
   await Promise.all(
     Array.from({ length: PROCS }, (_, p) => {
       const share = serials.filter((_, i) => i % PROCS === p);
-      const proc = fork(script, [String(stack.broker.port), SECRET, ...share], { execArgv: ['--import', 'tsx'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
+      const proc = fork(script, [String(stack.broker.port), SECRET, ...share], {
+        execArgv: ['--import', 'tsx'],
+        stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
+      });
       const c: (typeof children)[number] = { proc, published: 0, acked: 0 };
       children.push(c);
       return new Promise<void>((res, rej) => {
         proc.on('message', (m: { type: string; published?: number; acked?: number; lags?: number[] }) => {
           if (m.type === 'ready') res();
-          if (m.type === 'counts') { c.published = m.published!; c.acked = m.acked!; }
+          if (m.type === 'counts') {
+            c.published = m.published!;
+            c.acked = m.acked!;
+          }
           if (m.type === 'ackLags') c.ackLags?.(m.lags!);
         });
         proc.once('exit', (code) => rej(new Error(`load process exited with ${code}`)));
@@ -126,17 +160,37 @@ async function main() {
     watcher.send({ type: 'measure', on: true });
     await sleep(WINDOW_S);
     measuring = false;
-    socketLags = await new Promise<number[]>((res) => { socketLagsReady = res; watcher.send({ type: 'measure', on: false }); });
-    const ackLags = (await Promise.all(children.map((c) => new Promise<number[]>((res) => { c.ackLags = res; c.proc.send({ type: 'measure', on: false }); })))).flat();
+    socketLags = await new Promise<number[]>((res) => {
+      socketLagsReady = res;
+      watcher.send({ type: 'measure', on: false });
+    });
+    const ackLags = (
+      await Promise.all(
+        children.map(
+          (c) =>
+            new Promise<number[]>((res) => {
+              c.ackLags = res;
+              c.proc.send({ type: 'measure', on: false });
+            }),
+        ),
+      )
+    ).flat();
     const cpu = cpuOf();
     const committedRate = (committed - c0) / WINDOW_S;
     const backlog1 = published() - committed;
     const sustained = committedRate >= rate * 0.97 && backlog1 - backlog0 < rate * 0.5;
     const step = {
-      offeredMsgsPerSec: rate, committedMsgsPerSec: Math.round(committedRate), backlogStart: backlog0, backlogEnd: backlog1,
-      p50PublishToCommitMs: pct(commitLags, 50), p99PublishToCommitMs: pct(commitLags, 99), p99PublishToSocketMs: pct(socketLags, 99),
-      p50PublishToAckMs: pct(ackLags, 50), p99PublishToAckMs: pct(ackLags, 99),
-      serverCpuPct: Math.round(((cpu.user - cpu0.user + cpu.system - cpu0.system) / 1e6 / WINDOW_S) * 100), sustained,
+      offeredMsgsPerSec: rate,
+      committedMsgsPerSec: Math.round(committedRate),
+      backlogStart: backlog0,
+      backlogEnd: backlog1,
+      p50PublishToCommitMs: pct(commitLags, 50),
+      p99PublishToCommitMs: pct(commitLags, 99),
+      p99PublishToSocketMs: pct(socketLags, 99),
+      p50PublishToAckMs: pct(ackLags, 50),
+      p99PublishToAckMs: pct(ackLags, 99),
+      serverCpuPct: Math.round(((cpu.user - cpu0.user + cpu.system - cpu0.system) / 1e6 / WINDOW_S) * 100),
+      sustained,
     };
     steps.push(step);
     say(JSON.stringify(step));

@@ -30,8 +30,23 @@ async function main() {
   const { db } = testDb;
   try {
     const [ownerId] = await db('owners').insert({ name: 'Bench Owner' });
-    const [siteId] = await db('sites').insert({ owner_id: ownerId, name: 'Bench Site', latitude_deg: 53.5, longitude_deg: 10, elevation_m: 10, time_zone: 'Europe/Berlin', albedo: 0.2 });
-    const [unitId] = await db('units').insert({ serial: 'BT-000001', site_id: siteId, rated_power_wp: 420, detector_tilt_deg: 10, firmware: '2.4.1', device_secret_hash: 'x' });
+    const [siteId] = await db('sites').insert({
+      owner_id: ownerId,
+      name: 'Bench Site',
+      latitude_deg: 53.5,
+      longitude_deg: 10,
+      elevation_m: 10,
+      time_zone: 'Europe/Berlin',
+      albedo: 0.2,
+    });
+    const [unitId] = await db('units').insert({
+      serial: 'BT-000001',
+      site_id: siteId,
+      rated_power_wp: 420,
+      detector_tilt_deg: 10,
+      firmware: '2.4.1',
+      device_secret_hash: 'x',
+    });
 
     // A month of 5-second reports: a daily irradiance arch with noise, loaded 5,000 rows per INSERT.
     const start = Date.parse('2026-05-01T00:00:00Z');
@@ -63,7 +78,8 @@ async function main() {
     // The server keeps the 1-minute rollup current as data arrives; build it here the same way, a day at a time.
     const rollupStarted = performance.now();
     const telemetry = new TelemetryRepository(db);
-    for (let d = 0; d < DAYS; d++) await telemetry.rollupMinuteRange([unitId!], new Date(start + d * 86_400_000), new Date(start + (d + 1) * 86_400_000));
+    for (let d = 0; d < DAYS; d++)
+      await telemetry.rollupMinuteRange([unitId!], new Date(start + d * 86_400_000), new Date(start + (d + 1) * 86_400_000));
     say(`built the 1-minute rollup in ${((performance.now() - rollupStarted) / 1000).toFixed(1)} s`);
 
     const unit = { id: unitId, serial: 'BT-000001', siteId } as Unit;
@@ -83,8 +99,10 @@ async function main() {
     }
     times.sort((a, b) => a - b);
     const median = Math.round(times[Math.floor(times.length / 2)]!);
-    say(`downsampled ${rows.toLocaleString('en')} rows to ${points} buckets (min/max of 12 quantities): median ${median} ms over ${RUNS} runs ` +
-      `(min ${Math.round(times[0]!)} ms, max ${Math.round(times.at(-1)!)} ms); target ≤ 300 ms`);
+    say(
+      `downsampled ${rows.toLocaleString('en')} rows to ${points} buckets (min/max of 12 quantities): median ${median} ms over ${RUNS} runs ` +
+        `(min ${Math.round(times[0]!)} ms, max ${Math.round(times.at(-1)!)} ms); target ≤ 300 ms`,
+    );
     if (args.json) console.log(JSON.stringify({ rows, points, ms: median }));
   } finally {
     await testDb.drop();

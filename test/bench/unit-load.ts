@@ -7,7 +7,16 @@ import { connect, type Socket } from 'node:net';
 import mqttPacket from 'mqtt-packet';
 import { unitTopic } from '../../shared/contracts/topics';
 
-interface Conn { serial: string; topic: string; socket: Socket; nextId: number; lastTs: number; seq: number; ready: boolean; sentAt: Map<number, number> }
+interface Conn {
+  serial: string;
+  topic: string;
+  socket: Socket;
+  nextId: number;
+  lastTs: number;
+  seq: number;
+  ready: boolean;
+  sentAt: Map<number, number>;
+}
 
 const [port, password, ...serials] = process.argv.slice(2);
 const conns: Conn[] = [];
@@ -39,7 +48,18 @@ async function open(serial: string): Promise<Conn> {
     });
     socket.on('data', (d) => parser.parse(d));
     socket.once('error', rej);
-    socket.write(mqttPacket.generate({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: serial, keepalive: 120, username: serial, password: Buffer.from(password!) }));
+    socket.write(
+      mqttPacket.generate({
+        cmd: 'connect',
+        protocolId: 'MQTT',
+        protocolVersion: 4,
+        clean: true,
+        clientId: serial,
+        keepalive: 120,
+        username: serial,
+        password: Buffer.from(password!),
+      }),
+    );
   });
   return c;
 }

@@ -5,7 +5,12 @@ import { rawConnect, rawSocket, qos1 } from '../helpers/raw-mqtt';
 import { waitFor } from '../helpers/fake-unit';
 
 const secret = (serial: string) => `secret-${serial}`;
-const statusWill = (serial: string) => ({ topic: unitTopic(serial, 'status'), payload: Buffer.from('{"v":1,"online":false}'), qos: 1 as const, retain: true });
+const statusWill = (serial: string) => ({
+  topic: unitTopic(serial, 'status'),
+  payload: Buffer.from('{"v":1,"online":false}'),
+  qos: 1 as const,
+  retain: true,
+});
 
 let brokers: RunningBroker[] = [];
 afterEach(async () => {
@@ -16,12 +21,21 @@ afterEach(async () => {
 async function broker(extra: Partial<BrokerOptions> = {}): Promise<{ b: RunningBroker; got: string[] }> {
   const got: string[] = [];
   const b = await startBroker({
-    host: '127.0.0.1', port: 0, unitPrefix,
+    host: '127.0.0.1',
+    port: 0,
+    unitPrefix,
     authenticate: async (u, p) => (p === secret(u) ? { kind: 'unit', serial: u } : null),
     ...extra,
   });
   brokers.push(b);
-  b.aedes.subscribe('bw/v1/units/#', (pkt, cb) => { got.push(`${pkt.topic} ${pkt.payload.toString()}`); cb(); }, () => undefined);
+  b.aedes.subscribe(
+    'bw/v1/units/#',
+    (pkt, cb) => {
+      got.push(`${pkt.topic} ${pkt.payload.toString()}`);
+      cb();
+    },
+    () => undefined,
+  );
   return { b, got };
 }
 
@@ -65,7 +79,9 @@ describe('client id is tied to the authenticated serial', () => {
     const { b } = await broker();
     const foreign = await rawConnect(b.port, 'U-0005', secret('U-0005'), { will: statusWill('U-0006') });
     expect(foreign.connack.returnCode).toBe(5);
-    const ownTelemetry = await rawConnect(b.port, 'U-0005', secret('U-0005'), { will: { ...statusWill('U-0005'), topic: unitTopic('U-0005', 'telemetry') } });
+    const ownTelemetry = await rawConnect(b.port, 'U-0005', secret('U-0005'), {
+      will: { ...statusWill('U-0005'), topic: unitTopic('U-0005', 'telemetry') },
+    });
     expect(ownTelemetry.connack.returnCode).toBe(5);
     expect(b.counters.refused.will_denied).toBe(2);
   });
@@ -87,7 +103,9 @@ describe('disconnectUnit', () => {
 
   it('refuses a CONNECT whose credential check was still running when the unit was disconnected', async () => {
     let release: () => void = () => undefined;
-    const gate = new Promise<void>((r) => { release = r; });
+    const gate = new Promise<void>((r) => {
+      release = r;
+    });
     const { b } = await broker({
       authenticate: async (u, p) => {
         if (u === 'U-0012') await gate;

@@ -81,7 +81,9 @@ export function expectTrue(condition: boolean, what: string): void {
 export async function openedDialog(page: Page) {
   const dialog = page.getByRole('dialog');
   await dialog.waitFor();
-  await page.waitForFunction(() => !!document.activeElement?.closest('mat-dialog-container') && !document.querySelector('.mdc-dialog--opening'));
+  await page.waitForFunction(
+    () => !!document.activeElement?.closest('mat-dialog-container') && !document.querySelector('.mdc-dialog--opening'),
+  );
   return dialog;
 }
 

@@ -32,8 +32,18 @@ const OUTPUT = join(ROOT, 'test/.output/e2e');
 const CHROMIUM = process.env['BW_CHROMIUM'] ?? '/usr/bin/chromium';
 
 const JOURNEYS: readonly Journey[] = [
-  signInJourney, rolesJourney, accountJourney, ownerIsolationJourney, adminJourney, auditJourney, shellJourney,
-  fleetBoardJourney, unitCommandsJourney, alarmsJourney, tracesJourney, landscapeJourney,
+  signInJourney,
+  rolesJourney,
+  accountJourney,
+  ownerIsolationJourney,
+  adminJourney,
+  auditJourney,
+  shellJourney,
+  fleetBoardJourney,
+  unitCommandsJourney,
+  alarmsJourney,
+  tracesJourney,
+  landscapeJourney,
 ];
 
 async function main(only: readonly string[]): Promise<number> {
@@ -48,7 +58,9 @@ async function main(only: readonly string[]): Promise<number> {
   }
   const unknown = only.filter((name) => !JOURNEYS.some((j) => j.name === name));
   if (unknown.length) {
-    console.error(`No journey named ${unknown.map((n) => `"${n}"`).join(', ')}. Journeys: ${JOURNEYS.map((j) => `"${j.name}"`).join(', ')}.`);
+    console.error(
+      `No journey named ${unknown.map((n) => `"${n}"`).join(', ')}. Journeys: ${JOURNEYS.map((j) => `"${j.name}"`).join(', ')}.`,
+    );
     return 1;
   }
   mkdirSync(OUTPUT, { recursive: true });
@@ -81,7 +93,8 @@ async function main(only: readonly string[]): Promise<number> {
     const origin = new URL(base).origin;
     context.on('request', (request) => {
       const url = request.url();
-      if (!url.startsWith(origin) && !url.startsWith('data:') && !url.startsWith('blob:') && url !== 'about:blank') record.offMachine.push(url);
+      if (!url.startsWith(origin) && !url.startsWith('data:') && !url.startsWith('blob:') && url !== 'about:blank')
+        record.offMachine.push(url);
     });
     // The built dashboard must run under the server's content security policy: any refusal shows as a console message.
     context.on('console', (message) => {
@@ -109,7 +122,9 @@ async function main(only: readonly string[]): Promise<number> {
           journeyFailed++;
           const shot = join(OUTPUT, `failed-${journeyName.replace(/\W+/g, '-')}-${journeyPassed + journeyFailed}.png`);
           await page.screenshot({ path: shot, fullPage: true }).catch(() => undefined);
-          console.log(`  FAIL  ${name}\n        ${error instanceof Error ? error.message.split('\n')[0] : String(error)}\n        screenshot: ${shot}`);
+          console.log(
+            `  FAIL  ${name}\n        ${error instanceof Error ? error.message.split('\n')[0] : String(error)}\n        screenshot: ${shot}`,
+          );
         }
       },
     };
@@ -134,7 +149,9 @@ async function main(only: readonly string[]): Promise<number> {
         journeyFailed++;
         console.log(`  FAIL  ${name} could not run\n        ${error instanceof Error ? error.message.split('\n')[0] : String(error)}`);
       }
-      results.push(`  ${journeyFailed ? 'FAIL' : 'ok  '}  ${name}: ${journeyPassed} passed, ${journeyFailed} failed (${Math.round((Date.now() - started) / 1000)} s)`);
+      results.push(
+        `  ${journeyFailed ? 'FAIL' : 'ok  '}  ${name}: ${journeyPassed} passed, ${journeyFailed} failed (${Math.round((Date.now() - started) / 1000)} s)`,
+      );
     };
 
     // Journeys named on the command line run in the order given (any order works: none relies on another).

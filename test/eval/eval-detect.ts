@@ -15,8 +15,14 @@ function main(): void {
       args: process.argv.slice(2),
       strict: true,
       options: {
-        seed: { type: 'string' }, units: { type: 'string' }, hours: { type: 'string' }, json: { type: 'boolean' },
-        'fault-free': { type: 'boolean' }, evidence: { type: 'boolean' }, start: { type: 'string' }, help: { type: 'boolean' },
+        seed: { type: 'string' },
+        units: { type: 'string' },
+        hours: { type: 'string' },
+        json: { type: 'boolean' },
+        'fault-free': { type: 'boolean' },
+        evidence: { type: 'boolean' },
+        start: { type: 'string' },
+        help: { type: 'boolean' },
       },
     }));
   } catch (e) {
@@ -24,7 +30,9 @@ function main(): void {
     process.exit(2);
   }
   if (values.help) {
-    process.stdout.write('eval:detect --seed <n> [--units <n> (default 24)] [--hours <n> (default 96)] [--fault-free] [--evidence] [--start <ISO instant>] [--json]\n');
+    process.stdout.write(
+      'eval:detect --seed <n> [--units <n> (default 24)] [--hours <n> (default 96)] [--fault-free] [--evidence] [--start <ISO instant>] [--json]\n',
+    );
     return;
   }
   const num = (name: string, text: string | undefined, dflt: number, lo: number, hi: number) => {
@@ -45,13 +53,19 @@ function main(): void {
     return;
   }
   const pct = (x: number | null) => (x === null ? '  n/a' : `${(x * 100).toFixed(1).padStart(5)} %`);
-  process.stdout.write(`seed ${seed}: ${units} units × ${hours} h = ${result.unitDays} unit-days, ${result.injected} faults injected, ${result.runtimeS} s\n`);
+  process.stdout.write(
+    `seed ${seed}: ${units} units × ${hours} h = ${result.unitDays} unit-days, ${result.injected} faults injected, ${result.runtimeS} s\n`,
+  );
   process.stdout.write('kind       precision   recall   median delay   alarms  truths  eligible\n');
   for (const k of SCORED_KINDS) {
     const d = result.detectors[k];
-    process.stdout.write(`${k.padEnd(10)} ${pct(d.precision)}   ${pct(d.recall)}   ${d.medianDelayMin === null ? '   n/a' : `${d.medianDelayMin.toFixed(1).padStart(6)} min`}   ${String(d.alarms).padStart(6)}  ${String(d.truths).padStart(6)}  ${String(d.eligible).padStart(8)}\n`);
+    process.stdout.write(
+      `${k.padEnd(10)} ${pct(d.precision)}   ${pct(d.recall)}   ${d.medianDelayMin === null ? '   n/a' : `${d.medianDelayMin.toFixed(1).padStart(6)} min`}   ${String(d.alarms).padStart(6)}  ${String(d.truths).padStart(6)}  ${String(d.eligible).padStart(8)}\n`,
+    );
   }
-  process.stdout.write(`false alarms: ${result.falseAlarms} (${result.falseAlarmsPer100UnitDays} per 100 unit-days); other alarms: ${JSON.stringify(result.otherAlarms)}\n`);
+  process.stdout.write(
+    `false alarms: ${result.falseAlarms} (${result.falseAlarmsPer100UnitDays} per 100 unit-days); other alarms: ${JSON.stringify(result.otherAlarms)}\n`,
+  );
 }
 
 main();

@@ -5,8 +5,18 @@ import type { Alarm } from '../../server/health/alarm-types';
 const T0 = Date.parse('2026-05-04T08:00:00Z');
 const MIN = 60_000;
 const iso = (ms: number) => new Date(ms).toISOString().replace('.000Z', 'Z');
-const minutes = (fromMin: number, toMin: number) => new Set(Array.from({ length: toMin - fromMin }, (_, i) => Math.floor(T0 / MIN) + fromMin + i));
-const base = { injectedKeys: new Set<string>(), serialOf: new Map([[1, 'U1']]), refs: [{ unitId: 1, serial: 'U1', siteId: 1, detectorTiltDeg: 20 }], startMs: T0 - 60 * MIN, endMs: T0 + 600 * MIN, graceMin: 30, units: 1, hours: 11 };
+const minutes = (fromMin: number, toMin: number) =>
+  new Set(Array.from({ length: toMin - fromMin }, (_, i) => Math.floor(T0 / MIN) + fromMin + i));
+const base = {
+  injectedKeys: new Set<string>(),
+  serialOf: new Map([[1, 'U1']]),
+  refs: [{ unitId: 1, serial: 'U1', siteId: 1, detectorTiltDeg: 20 }],
+  startMs: T0 - 60 * MIN,
+  endMs: T0 + 600 * MIN,
+  graceMin: 30,
+  units: 1,
+  hours: 11,
+};
 
 describe('evaluation scoring: observability of a fault', () => {
   it('counts a hunting record for recall only when the unit was seen moving in daylight for the minimum time', () => {
@@ -25,7 +35,15 @@ describe('evaluation scoring: observability of a fault', () => {
     const tiltOnly: UnitObservability = { movingInDaylight: new Set(), tiltDriven: minutes(0, 30), azimuthDriven: new Set() };
     expect(score({ ...base, alarms: [], truth, seen: new Map([['U1', tiltOnly]]), stallAxis }).detectors.stall.eligible).toBe(0);
     const driven: UnitObservability = { ...tiltOnly, azimuthDriven: minutes(10, 12) };
-    const alarm = { kind: 'stall', serial: 'U1', unitId: 1, siteId: 1, raisedMs: T0 + 12 * MIN, firstSeenMs: T0 + 11 * MIN, clearedMs: null } as unknown as Alarm;
+    const alarm = {
+      kind: 'stall',
+      serial: 'U1',
+      unitId: 1,
+      siteId: 1,
+      raisedMs: T0 + 12 * MIN,
+      firstSeenMs: T0 + 11 * MIN,
+      clearedMs: null,
+    } as unknown as Alarm;
     const r = score({ ...base, alarms: [alarm], truth, seen: new Map([['U1', driven]]), stallAxis });
     expect(r.detectors.stall).toMatchObject({ eligible: 1, recall: 1, precision: 1, medianDelayMin: 12 });
   });

@@ -3,7 +3,7 @@ import { runEval } from './run-eval';
 import { expectTargets } from './eval-targets';
 
 describe('offline evaluation, seed 5', () => {
-  it('meets the detection targets against the simulator\'s ground truth', () => {
+  it("meets the detection targets against the simulator's ground truth", () => {
     const { result } = runEval({ seed: 5, units: 8, hours: 36 });
     expectTargets(result);
   }, 300_000);

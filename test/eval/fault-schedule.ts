@@ -45,7 +45,9 @@ export interface ScheduleInput {
 
 /** Whether the sun is at least `deg` high at a site. */
 export function sunAbove(site: SiteInfo, ms: number, deg: number): boolean {
-  return solarPosition({ latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM }, ms).elevationDeg >= deg;
+  return (
+    solarPosition({ latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM }, ms).elevationDeg >= deg
+  );
 }
 
 export function scheduleFaults(input: ScheduleInput): ScheduledFault[] {

@@ -39,7 +39,13 @@ export const SCORED_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'soil
 export type ScoredKind = (typeof SCORED_KINDS)[number];
 
 const TRUTH_KIND: Record<string, ScoredKind | undefined> = {
-  trap: 'trap', stall: 'stall', drift: 'drift', 'dead-detector': 'drift', hunting: 'hunting', 'comms-loss': 'comms', soiling: 'soiling',
+  trap: 'trap',
+  stall: 'stall',
+  drift: 'drift',
+  'dead-detector': 'drift',
+  hunting: 'hunting',
+  'comms-loss': 'comms',
+  soiling: 'soiling',
 };
 
 /** Minimum duration of a truth record for it to count toward recall [min]. */
@@ -94,21 +100,23 @@ export interface EvalRun {
 /** The evaluation fleet: the four demo scenarios, units spread over them, detector tilts as in the demo world. */
 export function evalFleetSites(units: number): FleetSiteSpec[] {
   const codes = Object.keys(DEMO_SCENARIO_BY_SITE);
-  return codes.map((code, si) => {
-    const n = Math.floor(units / codes.length) + (si < units % codes.length ? 1 : 0);
-    const site = demoSiteInfo(code);
-    return {
-      site,
-      scenario: DEMO_SCENARIO_BY_SITE[code]!,
-      units: Array.from({ length: n }, (_, i) => ({
-        serial: `${code}-E${String(i + 1).padStart(3, '0')}`,
-        siteCode: code,
-        wear: (i % 4) * 0.08,
-        controller: { detectorTiltDeg: DETECTOR_TILTS_DEG[i % DETECTOR_TILTS_DEG.length]!, reportIntervalS: 5 },
-        weatherStation: i === 0 && !site.indoor,
-      })),
-    };
-  }).filter((s) => s.units.length > 0);
+  return codes
+    .map((code, si) => {
+      const n = Math.floor(units / codes.length) + (si < units % codes.length ? 1 : 0);
+      const site = demoSiteInfo(code);
+      return {
+        site,
+        scenario: DEMO_SCENARIO_BY_SITE[code]!,
+        units: Array.from({ length: n }, (_, i) => ({
+          serial: `${code}-E${String(i + 1).padStart(3, '0')}`,
+          siteCode: code,
+          wear: (i % 4) * 0.08,
+          controller: { detectorTiltDeg: DETECTOR_TILTS_DEG[i % DETECTOR_TILTS_DEG.length]!, reportIntervalS: 5 },
+          weatherStation: i === 0 && !site.indoor,
+        })),
+      };
+    })
+    .filter((s) => s.units.length > 0);
 }
 
 export function runEval(o: EvalOptions): EvalRun {
@@ -122,7 +130,14 @@ export function runEval(o: EvalOptions): EvalRun {
   const indoorOf = new Map(sites.map((s, i) => [i + 1, s.site.indoor]));
   const refs = new Map<string, UnitRef>();
   let nextId = 1;
-  for (const s of sites) for (const u of s.units) refs.set(u.serial, { unitId: nextId++, serial: u.serial, siteId: siteIdOf.get(s.site.code)!, detectorTiltDeg: u.controller!.detectorTiltDeg! });
+  for (const s of sites)
+    for (const u of s.units)
+      refs.set(u.serial, {
+        unitId: nextId++,
+        serial: u.serial,
+        siteId: siteIdOf.get(s.site.code)!,
+        detectorTiltDeg: u.controller!.detectorTiltDeg!,
+      });
   const serialOf = new Map([...refs.values()].map((r) => [r.unitId, r.serial]));
 
   // Model provider: the simulator's own sky at the latest step (in this benchmark the model is the world; the server
@@ -148,7 +163,13 @@ export function runEval(o: EvalOptions): EvalRun {
         globalMax: fleet.bestReachable(field),
         readings(tiltDeg, azimuthDeg, detectorTiltDeg) {
           const n = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
-          return { panelWm2: field.irradiance(n.panel), tiltPlusWm2: field.irradiance(n.tiltPlus), tiltMinusWm2: field.irradiance(n.tiltMinus), azimuthPlusWm2: field.irradiance(n.azimuthPlus), azimuthMinusWm2: field.irradiance(n.azimuthMinus) };
+          return {
+            panelWm2: field.irradiance(n.panel),
+            tiltPlusWm2: field.irradiance(n.tiltPlus),
+            tiltMinusWm2: field.irradiance(n.tiltMinus),
+            azimuthPlusWm2: field.irradiance(n.azimuthPlus),
+            azimuthMinusWm2: field.irradiance(n.azimuthMinus),
+          };
         },
         analyse: o.evidence
           ? () => {
@@ -173,7 +194,10 @@ export function runEval(o: EvalOptions): EvalRun {
     ? []
     : scheduleFaults({
         units: sites.flatMap((s) => s.units.map((u) => ({ serial: u.serial, site: s.site }))),
-        startMs, endMs, rng: createRng(`eval-faults:${o.seed}`), faultFreeShare: o.faultFreeShare ?? 0.25,
+        startMs,
+        endMs,
+        rng: createRng(`eval-faults:${o.seed}`),
+        faultFreeShare: o.faultFreeShare ?? 0.25,
       });
   let next = 0;
   const stepS = 5;
@@ -198,22 +222,39 @@ export function runEval(o: EvalOptions): EvalRun {
         const minute = Math.floor(atMs / 60_000);
         let ob = seen.get(ref.serial);
         if (!ob) seen.set(ref.serial, (ob = { movingInDaylight: new Set(), tiltDriven: new Set(), azimuthDriven: new Set() }));
-        const moved = ob.prev ? Math.hypot(t.tiltDeg - ob.prev.tiltDeg, azimuthDelta(ob.prev.azimuthDeg, t.azimuthDeg) * Math.sin((t.tiltDeg * Math.PI) / 180)) >= MOVED_DEG : false;
+        const moved = ob.prev
+          ? Math.hypot(
+              t.tiltDeg - ob.prev.tiltDeg,
+              azimuthDelta(ob.prev.azimuthDeg, t.azimuthDeg) * Math.sin((t.tiltDeg * Math.PI) / 180),
+            ) >= MOVED_DEG
+          : false;
         ob.prev = { tiltDeg: t.tiltDeg, azimuthDeg: t.azimuthDeg };
         if (moved && HealthEngine.daylight(provider.siteModel(ref.siteId, atMs), settings)) ob.movingInDaylight.add(minute);
         if (Math.abs(t.cmdTiltDeg - t.tiltDeg) >= DRIVEN_DEG) ob.tiltDriven.add(minute);
         if (Math.abs(t.cmdAzimuthDeg - t.azimuthDeg) >= DRIVEN_DEG) ob.azimuthDriven.add(minute);
         engine.telemetry(ref, t);
         o.observe?.(ref, m.payload as Telemetry, fleet);
-      }
-      else if (m.leaf === 'events') engine.event(ref, m.payload as UnitEvent);
+      } else if (m.leaf === 'events') engine.event(ref, m.payload as UnitEvent);
       else if (m.leaf === 'weather') engine.weather(ref.siteId, m.payload as Weather, ref);
     }
     engine.tick();
   }
   const alarms = engine.book.all();
   const truth = fleet.truth();
-  const result = score({ alarms, truth, injectedKeys, seen, stallAxis, serialOf, refs: [...refs.values()], startMs, endMs, graceMin: o.graceMin ?? 30, units: refs.size, hours: o.hours });
+  const result = score({
+    alarms,
+    truth,
+    injectedKeys,
+    seen,
+    stallAxis,
+    serialOf,
+    refs: [...refs.values()],
+    startMs,
+    endMs,
+    graceMin: o.graceMin ?? 30,
+    units: refs.size,
+    hours: o.hours,
+  });
   result.seed = o.seed;
   result.injected = schedule.length;
   result.faultFree = !!o.faultFree;
@@ -321,7 +362,17 @@ export function score(i: ScoreInput): EvalResult {
   const unitDays = (i.units * i.hours) / 24;
   const otherAlarms: Record<string, number> = {};
   for (const a of i.alarms) if (!(SCORED_KINDS as readonly string[]).includes(a.kind)) otherAlarms[a.kind] = (otherAlarms[a.kind] ?? 0) + 1;
-  return { seed: 0, unitDays: round3(unitDays), detectors, falseAlarmsPer100UnitDays: round3((falseAlarms / unitDays) * 100), falseAlarms, otherAlarms, injected: 0, faultFree: false, runtimeS: 0 };
+  return {
+    seed: 0,
+    unitDays: round3(unitDays),
+    detectors,
+    falseAlarmsPer100UnitDays: round3((falseAlarms / unitDays) * 100),
+    falseAlarms,
+    otherAlarms,
+    injected: 0,
+    faultFree: false,
+    runtimeS: 0,
+  };
 }
 
 const round3 = (x: number) => Math.round(x * 1000) / 1000;

@@ -82,7 +82,12 @@ describe('site-level suppression', () => {
 
   it('a whole site going silent raises one site alarm and no unit comms alarms; it clears when the site reports again', () => {
     const e = testEngine(model);
-    let at = feed(e, T0, 5, units.map((u) => ({ unit: u, make: (t: number) => report(irr, t, { tiltDeg: 40, azimuthDeg: 180 }) })));
+    let at = feed(
+      e,
+      T0,
+      5,
+      units.map((u) => ({ unit: u, make: (t: number) => report(irr, t, { tiltDeg: 40, azimuthDeg: 180 }) })),
+    );
     for (; at < T0 + 30 * MIN; at += 5000) {
       e.setNow(at);
       e.engine.tick();
@@ -90,14 +95,27 @@ describe('site-level suppression', () => {
     expect(e.raised.map((a) => a.kind)).toEqual(['site-comms']);
     expect(e.raised[0]!.unitId).toBeNull();
     expect(e.raised[0]!.message).toMatch(/4 of 4 units silent/);
-    feed(e, at, 1, units.map((u) => ({ unit: u, make: (t: number) => report(irr, t, { tiltDeg: 40, azimuthDeg: 180 }) })));
+    feed(
+      e,
+      at,
+      1,
+      units.map((u) => ({ unit: u, make: (t: number) => report(irr, t, { tiltDeg: 40, azimuthDeg: 180 }) })),
+    );
     expect(e.cleared.map((a) => a.kind)).toEqual(['site-comms']);
     expect(e.raised.filter((a) => a.kind === 'comms')).toHaveLength(0);
   });
 
   it('one silent unit among reporting peers gets its own comms alarm', () => {
     const e = testEngine(model);
-    feed(e, T0, 20, units.map((u) => ({ unit: u, make: (t: number, i: number) => (u === UNIT && i > 12 ? null : report(irr, t, { tiltDeg: 40, azimuthDeg: 180 })) })));
+    feed(
+      e,
+      T0,
+      20,
+      units.map((u) => ({
+        unit: u,
+        make: (t: number, i: number) => (u === UNIT && i > 12 ? null : report(irr, t, { tiltDeg: 40, azimuthDeg: 180 })),
+      })),
+    );
     expect(e.raised.map((a) => `${a.kind}/${a.serial}`)).toEqual([`comms/${UNIT.serial}`]);
   });
 });

@@ -6,8 +6,12 @@ import type { UnitInfo } from '../../server/services/unit-directory';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
 let clock = Date.parse('2026-06-21T23:00:00Z');
-beforeAll(async () => { stack = await startTestStack({ seed: true, stack: { health: { now: () => clock, tickMs: 3_600_000 } } }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true, stack: { health: { now: () => clock, tickMs: 3_600_000 } } });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
 async function as(email: string) {
   const agent = request.agent(stack.http);
@@ -56,10 +60,23 @@ describe('alarms over HTTP', () => {
     const t0 = Date.parse('2026-06-21T10:00:00Z');
     const peak = (t: number, a: number) => 900 - 8 * Math.abs(t - 50) - 4 * Math.abs(a - 240);
     const rows = [10, 30, 50, 70].map((t, i) => ({
-      unit_id: u.id, ts: new Date(t0 + i * 60_000), kind: 'scan-samples',
-      body: JSON.stringify({ v: 1, ts: new Date(t0 + i * 60_000).toISOString(), kind: 'scan-samples', commandId: 'scan-7', samples: Array.from({ length: 13 }, (_, j) => [t, j * 30, peak(t, j * 30)]) }),
+      unit_id: u.id,
+      ts: new Date(t0 + i * 60_000),
+      kind: 'scan-samples',
+      body: JSON.stringify({
+        v: 1,
+        ts: new Date(t0 + i * 60_000).toISOString(),
+        kind: 'scan-samples',
+        commandId: 'scan-7',
+        samples: Array.from({ length: 13 }, (_, j) => [t, j * 30, peak(t, j * 30)]),
+      }),
     }));
-    rows.push({ unit_id: u.id, ts: new Date(t0 + 5 * 60_000), kind: 'scan-complete', body: JSON.stringify({ v: 1, ts: new Date(t0 + 5 * 60_000).toISOString(), kind: 'scan-complete', commandId: 'scan-7' }) });
+    rows.push({
+      unit_id: u.id,
+      ts: new Date(t0 + 5 * 60_000),
+      kind: 'scan-complete',
+      body: JSON.stringify({ v: 1, ts: new Date(t0 + 5 * 60_000).toISOString(), kind: 'scan-complete', commandId: 'scan-7' }),
+    });
     await stack.db('unit_events').insert(rows);
     const eng = await as('engineer@saltmarsh.example');
     const r = (await eng.get(`/api/units/${u.id}/scans/latest`).expect(200)).body;
@@ -92,10 +109,20 @@ describe('alarms over HTTP', () => {
 
   it('runs the detectors on demand over a stored range (engineer), and refuses an empty or too long range', async () => {
     const eng = await as('engineer@saltmarsh.example');
-    const r = (await eng.post('/api/health/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z', unitIds: [unit('QED-2401').id] }).expect(200)).body;
+    const r = (
+      await eng
+        .post('/api/health/run')
+        .send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z', unitIds: [unit('QED-2401').id] })
+        .expect(200)
+    ).body;
     expect(r).toMatchObject({ units: 1, reports: 0, alarms: [] });
     await eng.post('/api/health/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
     await eng.post('/api/health/run').send({ from: '2026-06-01T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
-    await (await as('owner@quillmoor.example')).post('/api/health/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z' }).expect(403);
+    await (
+      await as('owner@quillmoor.example')
+    )
+      .post('/api/health/run')
+      .send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z' })
+      .expect(403);
   });
 });

@@ -40,7 +40,10 @@ describe('trap detector', () => {
     ] as const) {
       const e = testEngine(m);
       feed(e, T0, 30, [{ unit: UNIT, make }]);
-      expect(e.raised.filter((a) => a.kind === 'trap'), name).toHaveLength(0);
+      expect(
+        e.raised.filter((a) => a.kind === 'trap'),
+        name,
+      ).toHaveLength(0);
     }
   });
 
@@ -91,7 +94,9 @@ describe('trap detector', () => {
 describe('stall detector', () => {
   it('raises for an axis commanded away that does not move and draws stall current', () => {
     const e = testEngine(model);
-    feed(e, T0, 5, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 40, tiltMotorA: 3.8, mode: 'seeking' }) }]);
+    feed(e, T0, 5, [
+      { unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 40, tiltMotorA: 3.8, mode: 'seeking' }) },
+    ]);
     const s = e.raised.filter((a) => a.kind === 'stall');
     expect(s).toHaveLength(1);
     expect(s[0]!.message).toMatch(/tilt axis/);
@@ -100,18 +105,34 @@ describe('stall detector', () => {
 
   it('stays quiet for a drive that moves at normal current, and clears once the stalled axis moves again', () => {
     const e = testEngine(model);
-    feed(e, T0, 10, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 20 + i * 0.2, azimuthDeg: 180, cmdTiltDeg: 21 + i * 0.2, tiltMotorA: 1.3, mode: 'seeking' }) }]);
+    feed(e, T0, 10, [
+      {
+        unit: UNIT,
+        make: (at, i) =>
+          report(irr, at, { tiltDeg: 20 + i * 0.2, azimuthDeg: 180, cmdTiltDeg: 21 + i * 0.2, tiltMotorA: 1.3, mode: 'seeking' }),
+      },
+    ]);
     expect(e.raised).toHaveLength(0);
-    const end = feed(e, T0 + 10 * MIN, 3, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 40, tiltMotorA: 3.8, mode: 'seeking' }) }]);
+    const end = feed(e, T0 + 10 * MIN, 3, [
+      { unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 40, tiltMotorA: 3.8, mode: 'seeking' }) },
+    ]);
     expect(e.raised.map((a) => a.kind)).toEqual(['stall']);
-    feed(e, end, 5, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 30 + i, azimuthDeg: 180, cmdTiltDeg: 31 + i, tiltMotorA: 1.2, mode: 'seeking' }) }]);
+    feed(e, end, 5, [
+      {
+        unit: UNIT,
+        make: (at, i) => report(irr, at, { tiltDeg: 30 + i, azimuthDeg: 180, cmdTiltDeg: 31 + i, tiltMotorA: 1.2, mode: 'seeking' }),
+      },
+    ]);
     expect(e.cleared.map((a) => a.kind)).toEqual(['stall']);
   });
 });
 
 describe('drift detector', () => {
   it('names the detector that reads low against the model where the unit points, and calls a dead one dead', () => {
-    for (const [gains, finding] of [[[1, 0.85, 1, 1], 'drifting'], [[1, 1, 0.001, 1], 'dead']] as const) {
+    for (const [gains, finding] of [
+      [[1, 0.85, 1, 1], 'drifting'],
+      [[1, 1, 0.001, 1], 'dead'],
+    ] as const) {
       const e = testEngine(model);
       feed(e, T0, 30, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180, gains: [...gains] }) }]);
       const d = e.raised.filter((a) => a.kind === 'drift');
@@ -131,7 +152,9 @@ describe('drift detector', () => {
 describe('hunting detector', () => {
   it('raises for a unit swinging back and forth without getting anywhere', () => {
     const e = testEngine(model);
-    feed(e, T0, 20, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 40 + (i % 2 ? 4 : -4), azimuthDeg: 180, mode: 'seeking' }) }]);
+    feed(e, T0, 20, [
+      { unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 40 + (i % 2 ? 4 : -4), azimuthDeg: 180, mode: 'seeking' }) },
+    ]);
     const h = e.raised.filter((a) => a.kind === 'hunting');
     expect(h).toHaveLength(1);
     expect(h[0]!.message).toMatch(/reversals per hour/);
@@ -143,7 +166,12 @@ describe('hunting detector', () => {
     const end = feed(e, T0, 40, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 35, azimuthDeg: 170, gains: [1, 0.8, 1, 1] }) }]);
     expect(e.raised.map((a) => a.kind)).toContain('drift');
     // Then it swings back and forth chasing the false differential: no hunting alarm while the drift alarm is open.
-    feed(e, end, 20, [{ unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 40 + (i % 2 ? 4 : -4), azimuthDeg: 180, mode: 'seeking', gains: [1, 0.8, 1, 1] }) }]);
+    feed(e, end, 20, [
+      {
+        unit: UNIT,
+        make: (at, i) => report(irr, at, { tiltDeg: 40 + (i % 2 ? 4 : -4), azimuthDeg: 180, mode: 'seeking', gains: [1, 0.8, 1, 1] }),
+      },
+    ]);
     expect(e.raised.filter((a) => a.kind === 'hunting')).toHaveLength(0);
   });
 
@@ -151,18 +179,29 @@ describe('hunting detector', () => {
     const e = testEngine(model);
     feed(e, T0, 30, [
       { unit: UNIT, make: (at, i) => report(irr, at, { tiltDeg: 40 + i * 0.02, azimuthDeg: 180 + i * 0.02, mode: 'settled' }) },
-      { unit: peer(1), make: (at, i) => report(irr, at, { tiltDeg: 40, azimuthDeg: (i % 24) < 12 ? i % 12 * 30 : 360 - (i % 12) * 30, mode: 'scanning' }) },
+      {
+        unit: peer(1),
+        make: (at, i) => report(irr, at, { tiltDeg: 40, azimuthDeg: i % 24 < 12 ? (i % 12) * 30 : 360 - (i % 12) * 30, mode: 'scanning' }),
+      },
     ]);
     expect(e.raised).toHaveLength(0);
   });
 });
 
 describe('soiling detector', () => {
-  it('raises when power per in-plane irradiance falls 5 % below the unit\'s own clean history, and not before', () => {
+  it("raises when power per in-plane irradiance falls 5 % below the unit's own clean history, and not before", () => {
     const e = testEngine(model);
     let end = feed(e, T0, 4 * 60, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
     expect(e.raised).toHaveLength(0);
-    end = feed(e, end, 3 * 60, [{ unit: UNIT, make: (at) => { const t = report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }); return { ...t, dcPowerW: t.dcPowerW * 0.93 }; } }]);
+    end = feed(e, end, 3 * 60, [
+      {
+        unit: UNIT,
+        make: (at) => {
+          const t = report(irr, at, { tiltDeg: 40, azimuthDeg: 180 });
+          return { ...t, dcPowerW: t.dcPowerW * 0.93 };
+        },
+      },
+    ]);
     const s = e.raised.filter((a) => a.kind === 'soiling');
     expect(s).toHaveLength(1);
     expect((s[0]!.evidence as { lossPct: number }).lossPct).toBeCloseTo(7, 0);

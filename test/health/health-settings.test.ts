@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { DEFAULT_HEALTH_SETTINGS, HEALTH_SETTING_RANGES, healthSettingsOverrideSchema, sanitizeStoredOverrides, type HealthSettings } from '../../server/health/health-settings';
+import {
+  DEFAULT_HEALTH_SETTINGS,
+  HEALTH_SETTING_RANGES,
+  healthSettingsOverrideSchema,
+  sanitizeStoredOverrides,
+  type HealthSettings,
+} from '../../server/health/health-settings';
 
 const keys = Object.keys(DEFAULT_HEALTH_SETTINGS) as (keyof HealthSettings)[];
 const fieldsOf = (body: unknown): Record<string, string> => {
@@ -42,7 +48,15 @@ describe('health setting ranges', () => {
   it('keeps the physical meaning: wind in m/s up to a storm, fractions within 0…1, a negative temperature coefficient', () => {
     expect(HEALTH_SETTING_RANGES.stowGustMs).toMatchObject({ min: 5, max: 35, unit: 'm/s' });
     expect(HEALTH_SETTING_RANGES.powerTempCoeffPerK.max).toBeLessThanOrEqual(0);
-    for (const k of ['trapRatio', 'trapPeerRatio', 'trapClearRatio', 'driftTolerance', 'siteDarkFraction', 'huntingSiteShare', 'soilingLossThreshold'] as const) {
+    for (const k of [
+      'trapRatio',
+      'trapPeerRatio',
+      'trapClearRatio',
+      'driftTolerance',
+      'siteDarkFraction',
+      'huntingSiteShare',
+      'soilingLossThreshold',
+    ] as const) {
       expect(HEALTH_SETTING_RANGES[k].min, k).toBeGreaterThanOrEqual(0);
       expect(HEALTH_SETTING_RANGES[k].max, k).toBeLessThanOrEqual(1);
     }

@@ -23,7 +23,9 @@ describe('scan rebuild', () => {
     expect(l.tiltsDeg).toEqual([10, 30, 50, 70]);
     expect(l.sampleMax).toMatchObject({ tiltDeg: 50, azimuthDeg: 120 });
     expect(angleBetweenDeg(l.globalMax, { tiltDeg: 42, azimuthDeg: 125 })).toBeLessThan(6);
-    expect(angleBetweenDeg(l.sampleMax, { tiltDeg: 42, azimuthDeg: 125 })).toBeGreaterThan(angleBetweenDeg(l.globalMax, { tiltDeg: 42, azimuthDeg: 125 }));
+    expect(angleBetweenDeg(l.sampleMax, { tiltDeg: 42, azimuthDeg: 125 })).toBeGreaterThan(
+      angleBetweenDeg(l.globalMax, { tiltDeg: 42, azimuthDeg: 125 }),
+    );
     expect(l.globalMax.wm2).toBeGreaterThanOrEqual(l.sampleMax.wm2);
     expect(l.globalMax.wm2).toBeLessThanOrEqual(irradianceAt(sky, 42, 125) + 1);
     expect(l.localMaxima[0]).toMatchObject({ tiltDeg: 50, azimuthDeg: 120 });

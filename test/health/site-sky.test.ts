@@ -24,6 +24,8 @@ describe('site sky and site model from inputs alone', () => {
     expect(day.globalMax).toEqual(globalMaxOf(siteSky(site, open, noon, null).sky, 60));
     expect(HealthEngine.daylight(day, DEFAULT_HEALTH_SETTINGS)).toBe(true);
     const midnight = Date.parse('2026-06-21T23:00:00Z');
-    expect(HealthEngine.daylight(siteModelOf(siteSky(site, open, midnight, null), false, midnight, 60), DEFAULT_HEALTH_SETTINGS)).toBe(false);
+    expect(HealthEngine.daylight(siteModelOf(siteSky(site, open, midnight, null), false, midnight, 60), DEFAULT_HEALTH_SETTINGS)).toBe(
+      false,
+    );
   });
 });

@@ -7,14 +7,18 @@ const t0 = Date.parse('2026-06-21T10:00:00Z');
 let clock = t0;
 // One clock for the ingest and the health engine; the periodic health tick is pushed out of reach: nothing here may
 // depend on it.
-beforeAll(async () => { stack = await startTestStack({ seed: true, stack: { ingest: { now: () => clock }, health: { now: () => clock, tickMs: 3_600_000 } } }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true, stack: { ingest: { now: () => clock }, health: { now: () => clock, tickMs: 3_600_000 } } });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
 const receive = (serial: string, leaf: string, body: unknown) =>
   new Promise<void>((res, rej) => stack.ingest.receive(serial, leaf, Buffer.from(JSON.stringify(body)), (err) => (err ? rej(err) : res())));
 
 describe('wind stow from the ingest', () => {
-  it('a gust reported by the site\'s weather station raises the not-stowed alarm on the unit\'s next reports, without a health tick', async () => {
+  it("a gust reported by the site's weather station raises the not-stowed alarm on the unit's next reports, without a health tick", async () => {
     const station = stack.units.all().find((u) => u.weatherStation && !u.onHold && !u.disabled)!;
     expect(station).toBeDefined();
     // Default limits (health-settings.ts): gusts above 18 m/s demand a stow, reached within 3 min (tilt ≤ 2° or mode stowed).

@@ -17,13 +17,18 @@ export function sunLandscape(sunAzimuthDeg: number, sunElevationDeg: number, bea
 
 const bestCache = new WeakMap<object, { tiltDeg: number; azimuthDeg: number; wm2: number }>();
 
-export function modelOf(irr: (n: readonly number[]) => number, atMs: number, opts: { sunElevationDeg?: number; globalMax?: { tiltDeg: number; azimuthDeg: number; wm2: number } } = {}): SiteModel {
+export function modelOf(
+  irr: (n: readonly number[]) => number,
+  atMs: number,
+  opts: { sunElevationDeg?: number; globalMax?: { tiltDeg: number; azimuthDeg: number; wm2: number } } = {},
+): SiteModel {
   let best = bestCache.get(irr) ?? { tiltDeg: 0, azimuthDeg: 0, wm2: -1 };
   if (!opts.globalMax && best.wm2 < 0) {
-    for (let t = 0; t <= 85; t += 1) for (let a = 0; a < 360; a += 2) {
-      const e = irr(normalFromTiltAzimuth(t, a));
-      if (e > best.wm2) best = { tiltDeg: t, azimuthDeg: a, wm2: e };
-    }
+    for (let t = 0; t <= 85; t += 1)
+      for (let a = 0; a < 360; a += 2) {
+        const e = irr(normalFromTiltAzimuth(t, a));
+        if (e > best.wm2) best = { tiltDeg: t, azimuthDeg: a, wm2: e };
+      }
     bestCache.set(irr, best);
   }
   return {
@@ -39,15 +44,31 @@ export const UNIT: UnitRef = { unitId: 1, serial: 'T-0001', siteId: 1, detectorT
 export const peer = (i: number): UnitRef => ({ unitId: 1 + i, serial: `T-000${1 + i}`, siteId: 1, detectorTiltDeg: 20 });
 
 /** A report of a unit at an orientation, readings from the landscape (optionally altered). */
-export function report(irr: (n: readonly number[]) => number, atMs: number, o: Partial<Telemetry> & { tiltDeg: number; azimuthDeg: number; detectorTiltDeg?: number; gains?: [number, number, number, number] }): Telemetry {
+export function report(
+  irr: (n: readonly number[]) => number,
+  atMs: number,
+  o: Partial<Telemetry> & { tiltDeg: number; azimuthDeg: number; detectorTiltDeg?: number; gains?: [number, number, number, number] },
+): Telemetry {
   const r = detectorReadingsWith(irr as never, o.tiltDeg, o.azimuthDeg, o.detectorTiltDeg ?? 20);
   const g = o.gains ?? [1, 1, 1, 1];
   const { detectorTiltDeg: _d, gains: _g, ...rest } = o;
   return {
-    v: 1, seq: 0, ts: new Date(atMs).toISOString(),
-    tiltPlusWm2: r.tiltPlusWm2 * g[0], tiltMinusWm2: r.tiltMinusWm2 * g[1], azimuthPlusWm2: r.azimuthPlusWm2 * g[2], azimuthMinusWm2: r.azimuthMinusWm2 * g[3],
-    poaWm2: r.panelWm2, cmdTiltDeg: o.tiltDeg, cmdAzimuthDeg: o.azimuthDeg, tiltMotorA: 0.05, azimuthMotorA: 0.05,
-    dcPowerW: (420 * r.panelWm2) / 1000, moduleTempC: 25, mode: 'settled', firmware: '2.4.1',
+    v: 1,
+    seq: 0,
+    ts: new Date(atMs).toISOString(),
+    tiltPlusWm2: r.tiltPlusWm2 * g[0],
+    tiltMinusWm2: r.tiltMinusWm2 * g[1],
+    azimuthPlusWm2: r.azimuthPlusWm2 * g[2],
+    azimuthMinusWm2: r.azimuthMinusWm2 * g[3],
+    poaWm2: r.panelWm2,
+    cmdTiltDeg: o.tiltDeg,
+    cmdAzimuthDeg: o.azimuthDeg,
+    tiltMotorA: 0.05,
+    azimuthMotorA: 0.05,
+    dcPowerW: (420 * r.panelWm2) / 1000,
+    moduleTempC: 25,
+    mode: 'settled',
+    firmware: '2.4.1',
     ...rest,
   };
 }
@@ -57,12 +78,21 @@ export function testEngine(model: (atMs: number) => SiteModel | undefined) {
   let now = T0;
   const raised: Alarm[] = [];
   const cleared: Alarm[] = [];
-  const engine = new HealthEngine({ now: () => now, models: { siteModel: (_s, at) => model(at) }, listeners: { raised: (a) => raised.push(a), cleared: (a) => cleared.push(a) } });
+  const engine = new HealthEngine({
+    now: () => now,
+    models: { siteModel: (_s, at) => model(at) },
+    listeners: { raised: (a) => raised.push(a), cleared: (a) => cleared.push(a) },
+  });
   return { engine, raised, cleared, setNow: (ms: number) => void (now = ms), now: () => now };
 }
 
 /** Feeds `minutes` of reports every 5 s from `startMs`; `make(atMs)` builds each report (per unit). */
-export function feed(e: ReturnType<typeof testEngine>, startMs: number, minutes: number, units: { unit: UnitRef; make: (atMs: number, i: number) => Telemetry | null }[]): number {
+export function feed(
+  e: ReturnType<typeof testEngine>,
+  startMs: number,
+  minutes: number,
+  units: { unit: UnitRef; make: (atMs: number, i: number) => Telemetry | null }[],
+): number {
   let at = startMs;
   for (let i = 0; i < minutes * 12; i++, at += 5000) {
     e.setNow(at);

@@ -39,11 +39,13 @@ export async function rawSocket(port: number, tls?: ConnectionOptions): Promise<
   parser.on('error', () => socket.destroy());
   socket.on('data', (d: Buffer) => parser.parse(d));
   socket.on('error', () => undefined);
-  const closed = new Promise<void>((res) => socket.once('close', () => {
-    isClosed = true;
-    for (const w of [...waiters]) w();
-    res();
-  }));
+  const closed = new Promise<void>((res) =>
+    socket.once('close', () => {
+      isClosed = true;
+      for (const w of [...waiters]) w();
+      res();
+    }),
+  );
   await new Promise<void>((res, rej) => {
     socket.once(tls ? 'secureConnect' : 'connect', () => res());
     socket.once('error', rej);
@@ -81,14 +83,36 @@ export async function rawSocket(port: number, tls?: ConnectionOptions): Promise<
 export type ConnectFields = Partial<Omit<IConnectPacket, 'cmd'>>;
 
 /** Opens a socket and sends CONNECT (username = serial, client id = serial unless overridden); resolves with the CONNACK. */
-export async function rawConnect(port: number, serial: string, password: string, fields: ConnectFields = {}, tls?: ConnectionOptions): Promise<{ c: RawClient; connack: IConnackPacket }> {
+export async function rawConnect(
+  port: number,
+  serial: string,
+  password: string,
+  fields: ConnectFields = {},
+  tls?: ConnectionOptions,
+): Promise<{ c: RawClient; connack: IConnackPacket }> {
   const c = await rawSocket(port, tls);
-  c.send({ cmd: 'connect', protocolId: 'MQTT', protocolVersion: 4, clean: true, clientId: serial, keepalive: 60, username: serial, password: Buffer.from(password), ...fields });
+  c.send({
+    cmd: 'connect',
+    protocolId: 'MQTT',
+    protocolVersion: 4,
+    clean: true,
+    clientId: serial,
+    keepalive: 60,
+    username: serial,
+    password: Buffer.from(password),
+    ...fields,
+  });
   const connack = await c.next('connack', `the CONNACK for ${serial}`);
   return { c, connack };
 }
 
 /** A QoS 1 PUBLISH packet. */
 export const qos1 = (topic: string, payload: string | Buffer, messageId: number, retain = false, dup = false): IPublishPacket => ({
-  cmd: 'publish', topic, payload, qos: 1, messageId, retain, dup,
+  cmd: 'publish',
+  topic,
+  payload,
+  qos: 1,
+  messageId,
+  retain,
+  dup,
 });

@@ -23,7 +23,12 @@ export async function startServerProcess(database: string, env: Record<string, s
     stdio: ['ignore', 'pipe', 'inherit'],
   });
   let exited = false;
-  const exit = new Promise<number | null>((res) => proc.once('exit', (code) => { exited = true; res(code); }));
+  const exit = new Promise<number | null>((res) =>
+    proc.once('exit', (code) => {
+      exited = true;
+      res(code);
+    }),
+  );
   const ready = await new Promise<{ url: string; brokerPort: number }>((res, rej) => {
     void exit.then((code) => rej(new Error(`server exited with ${code} before it was ready`)));
     createInterface({ input: proc.stdout! }).on('line', (line) => {
@@ -36,7 +41,8 @@ export async function startServerProcess(database: string, env: Record<string, s
     });
   });
   return {
-    proc, ...ready,
+    proc,
+    ...ready,
     rssMb: () => {
       const kb = /VmRSS:\s+(\d+) kB/.exec(readFileSync(`/proc/${proc.pid}/status`, 'utf8'));
       return kb ? Number(kb[1]) / 1024 : Number.NaN;

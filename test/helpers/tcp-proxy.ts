@@ -2,7 +2,10 @@ import { createServer, connect, type Server, type Socket } from 'node:net';
 import type { AddressInfo } from 'node:net';
 
 /** A loopback TCP proxy a test can cut and restore, to stage a real database outage. */
-export async function startTcpProxy(targetPort: number, listenPort = 0): Promise<{ port: number; cut(): Promise<void>; restore(): Promise<void>; close(): Promise<void> }> {
+export async function startTcpProxy(
+  targetPort: number,
+  listenPort = 0,
+): Promise<{ port: number; cut(): Promise<void>; restore(): Promise<void>; close(): Promise<void> }> {
   const sockets = new Set<Socket>();
   let server: Server;
   let port = listenPort;
@@ -13,7 +16,12 @@ export async function startTcpProxy(targetPort: number, listenPort = 0): Promise
         sockets.add(client);
         sockets.add(upstream);
         client.pipe(upstream).pipe(client);
-        const drop = () => { client.destroy(); upstream.destroy(); sockets.delete(client); sockets.delete(upstream); };
+        const drop = () => {
+          client.destroy();
+          upstream.destroy();
+          sockets.delete(client);
+          sockets.delete(upstream);
+        };
         client.on('error', drop).on('close', drop);
         upstream.on('error', drop).on('close', drop);
       });
@@ -30,5 +38,12 @@ export async function startTcpProxy(targetPort: number, listenPort = 0): Promise
       server.close(() => res());
     });
   await listen();
-  return { get port() { return port; }, cut: stop, restore: listen, close: stop };
+  return {
+    get port() {
+      return port;
+    },
+    cut: stop,
+    restore: listen,
+    close: stop,
+  };
 }

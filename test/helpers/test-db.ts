@@ -19,7 +19,10 @@ export interface TestDatabase {
 export async function createTestDatabase(opts: { seed?: boolean; env?: Record<string, string> } = {}): Promise<TestDatabase> {
   const base = loadConfig({ BW_BCRYPT_COST: '4', BW_LOG_LEVEL: 'silent', ...process.env, ...opts.env });
   const name = `bwt_${process.pid}_${randomBytes(3).toString('hex')}`;
-  const admin = knexFactory({ client: 'mysql2', connection: { host: base.db.host, port: base.db.port, user: base.db.user, password: base.db.password } });
+  const admin = knexFactory({
+    client: 'mysql2',
+    connection: { host: base.db.host, port: base.db.port, user: base.db.user, password: base.db.password },
+  });
   try {
     await admin.raw(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
   } finally {

@@ -18,16 +18,42 @@ beforeAll(async () => {
     agents.set(role, a);
   }
 });
-afterAll(async () => { await stack?.stop(); });
+afterAll(async () => {
+  await stack?.stop();
+});
 
 type Cell = { method: 'get' | 'post' | 'patch'; path: string; body?: () => object };
-const site = () => ({ ownerId: 2, name: `Matrix Site ${++n}`, latitudeDeg: 50, longitudeDeg: 8, elevationM: 100, timeZone: 'Europe/Berlin', albedo: 0.2 });
-const unit = () => ({ serial: `MX-${++n}`, siteId: 3, ratedPowerWp: 400, detectorTiltDeg: 20, tiltMinDeg: 0, tiltMaxDeg: 85, azimuthMinDeg: 0, azimuthMaxDeg: 360, planXM: 0, planYM: 0, firmware: '2.4.1' });
+const site = () => ({
+  ownerId: 2,
+  name: `Matrix Site ${++n}`,
+  latitudeDeg: 50,
+  longitudeDeg: 8,
+  elevationM: 100,
+  timeZone: 'Europe/Berlin',
+  albedo: 0.2,
+});
+const unit = () => ({
+  serial: `MX-${++n}`,
+  siteId: 3,
+  ratedPowerWp: 400,
+  detectorTiltDeg: 20,
+  tiltMinDeg: 0,
+  tiltMaxDeg: 85,
+  azimuthMinDeg: 0,
+  azimuthMaxDeg: 360,
+  planXM: 0,
+  planYM: 0,
+  firmware: '2.4.1',
+});
 
 // Every admin route, and the status each role gets (admin: success; others: 403; anonymous: 401).
 const adminOnly: Cell[] = [
   { method: 'get', path: '/api/users' },
-  { method: 'post', path: '/api/users', body: () => ({ email: `m${++n}@saltmarsh.example`, name: 'Matrix Person', role: 'technician', password: 'long-enough-pw' }) },
+  {
+    method: 'post',
+    path: '/api/users',
+    body: () => ({ email: `m${++n}@saltmarsh.example`, name: 'Matrix Person', role: 'technician', password: 'long-enough-pw' }),
+  },
   { method: 'patch', path: '/api/users/4', body: () => ({ name: 'Tomasz Velde' }) },
   { method: 'post', path: '/api/users/4/password', body: () => ({ password: DEMO_PASSWORD }) },
   { method: 'get', path: '/api/owners' },
@@ -52,7 +78,10 @@ describe('role × route matrix for admin routes', () => {
   for (const c of adminOnly) {
     for (const role of ['anonymous', 'admin', 'engineer', 'technician', 'crew', 'owner'] as const) {
       it(`${c.method.toUpperCase()} ${c.path} as ${role} → ${expected(c, role)}`, async () => {
-        const res = await agents.get(role)![c.method](c.path).send(c.body?.() ?? {});
+        const res = await agents
+          .get(role)!
+          [c.method](c.path)
+          .send(c.body?.() ?? {});
         expect(res.status).toBe(expected(c, role));
       });
     }
@@ -67,7 +96,7 @@ describe('role × route matrix for admin routes', () => {
 });
 
 describe('owner isolation', () => {
-  it('an owner sees only their own sites and units, and 404 for another owner\'s', async () => {
+  it("an owner sees only their own sites and units, and 404 for another owner's", async () => {
     const owner = agents.get('owner')!; // Quillmoor Energy Cooperative (owner 1)
     const sites = (await owner.get('/api/sites')).body as { name: string; ownerId: number; id: number }[];
     expect(sites.map((s) => s.name).sort()).toEqual(['Eastfield Depot Yard', 'Harbourside Library Roof']);
@@ -88,7 +117,16 @@ describe('validation', () => {
   it('names every bad field of a site and writes nothing', async () => {
     const admin = agents.get('admin')!;
     const before = (await admin.get('/api/sites')).body.length;
-    const res = await admin.post('/api/sites').send({ ownerId: 1, name: '', latitudeDeg: 95, longitudeDeg: 'east', elevationM: 0, timeZone: 'Mars/Olympus', albedo: 2, colour: 'red' });
+    const res = await admin.post('/api/sites').send({
+      ownerId: 1,
+      name: '',
+      latitudeDeg: 95,
+      longitudeDeg: 'east',
+      elevationM: 0,
+      timeZone: 'Mars/Olympus',
+      albedo: 2,
+      colour: 'red',
+    });
     expect(res.status).toBe(400);
     expect(res.body.error.code).toBe('validation_failed');
     expect(Object.keys(res.body.error.fields).sort()).toEqual(['albedo', 'colour', 'latitudeDeg', 'longitudeDeg', 'name', 'timeZone']);
@@ -122,7 +160,9 @@ describe('validation', () => {
     const a = await admin.post('/api/users').send({ email: 'x1@quillmoor.example', name: 'X', role: 'owner', password: 'long-enough-pw' });
     expect(a.status).toBe(400);
     expect(a.body.error.fields).toEqual({ ownerId: 'Choose the owner.' });
-    const b = await admin.post('/api/users').send({ email: 'x2@saltmarsh.example', name: 'X', role: 'crew', ownerId: 1, password: 'long-enough-pw' });
+    const b = await admin
+      .post('/api/users')
+      .send({ email: 'x2@saltmarsh.example', name: 'X', role: 'crew', ownerId: 1, password: 'long-enough-pw' });
     expect(b.body.error.fields).toEqual({ ownerId: 'Leave empty for this role.' });
     const c = await admin.post('/api/users').send({ email: 'not-an-email', name: 'X', role: 'pilot', password: 'short' });
     expect(Object.keys(c.body.error.fields).sort()).toEqual(['email', 'password', 'role']);

@@ -13,10 +13,17 @@ beforeAll(async () => {
   ids.tech = await user('tech1@saltmarsh.example');
   ids.eng = await user('engineer@saltmarsh.example');
   ids.admin = await user('admin@saltmarsh.example');
-  const u = await stack.db('units').join('sites', 'sites.id', 'units.site_id').where('sites.name', 'Harbourside Library Roof').orderBy('units.id').first('units.id', 'units.serial', 'units.site_id');
+  const u = await stack
+    .db('units')
+    .join('sites', 'sites.id', 'units.site_id')
+    .where('sites.name', 'Harbourside Library Roof')
+    .orderBy('units.id')
+    .first('units.id', 'units.serial', 'units.site_id');
   Object.assign(ids, { unit: u.id, site: u.site_id, serial: u.serial });
 });
-afterAll(async () => { await stack?.stop(); });
+afterAll(async () => {
+  await stack?.stop();
+});
 
 async function as(email: string) {
   const agent = request.agent(stack.http);
@@ -28,7 +35,19 @@ const detailOf = (r: { detail: unknown }) => (typeof r.detail === 'string' ? JSO
 
 async function insertAlarm(): Promise<number> {
   const at = new Date('2026-06-21T10:00:00Z');
-  const [id] = await stack.db('alarms').insert({ unit_id: ids.unit, site_id: ids.site, kind: 'stall', severity: 'P2', state: 'active', message: 'Tilt drive stalled.', advice: 'Check the drive.', evidence: '{}', first_seen_at: at, raised_at: at, last_seen_at: at });
+  const [id] = await stack.db('alarms').insert({
+    unit_id: ids.unit,
+    site_id: ids.site,
+    kind: 'stall',
+    severity: 'P2',
+    state: 'active',
+    message: 'Tilt drive stalled.',
+    advice: 'Check the drive.',
+    evidence: '{}',
+    first_seen_at: at,
+    raised_at: at,
+    last_seen_at: at,
+  });
   return id as number;
 }
 
@@ -88,16 +107,25 @@ describe('GET /api/audit', () => {
   it('lists newest first with the person, the action, the target in words and the detail, with a total for paging', async () => {
     const admin = await as('admin@saltmarsh.example');
     const base = new Date('2030-01-01T00:00:00Z').getTime();
-    await stack.db('audit_log').insert(Array.from({ length: 7 }, (_, i) => ({
-      at: new Date(base + i * 60_000), user_id: ids.tech, action: 'paging-probe', target: `unit:${ids.unit}`, detail: JSON.stringify({ n: i }),
-    })));
+    await stack.db('audit_log').insert(
+      Array.from({ length: 7 }, (_, i) => ({
+        at: new Date(base + i * 60_000),
+        user_id: ids.tech,
+        action: 'paging-probe',
+        target: `unit:${ids.unit}`,
+        detail: JSON.stringify({ n: i }),
+      })),
+    );
     const first = (await admin.get('/api/audit?action=paging-probe&limit=3').expect(200)).body as AuditPage;
     expect(first.total).toBe(7);
     expect(first.limit).toBe(3);
     expect(first.offset).toBe(0);
     expect(first.entries.map((e) => (e.detail as { n: number }).n)).toEqual([6, 5, 4]);
     expect(first.entries[0]).toMatchObject({
-      at: '2030-01-01T00:06:00.000Z', action: 'paging-probe', target: `unit:${ids.unit}`, targetLabel: `Unit ${ids.serial}`,
+      at: '2030-01-01T00:06:00.000Z',
+      action: 'paging-probe',
+      target: `unit:${ids.unit}`,
+      targetLabel: `Unit ${ids.serial}`,
       user: { id: ids.tech, name: 'Mara Okonjo', email: 'tech1@saltmarsh.example' },
     });
     const last = (await admin.get('/api/audit?action=paging-probe&limit=3&offset=6').expect(200)).body as AuditPage;
@@ -114,7 +142,8 @@ describe('GET /api/audit', () => {
       { at: t(20), user_id: ids.eng, action: 'filter-probe-b', target: `unit:${ids.unit}` },
       { at: t(30), user_id: null, action: 'filter-probe-b', target: 'nobody@example.org' },
     ]);
-    const q = async (query: string) => ((await admin.get(`/api/audit?${query}`).expect(200)).body as AuditPage).entries.map((e) => `${e.action}@${e.at.slice(14, 16)}`);
+    const q = async (query: string) =>
+      ((await admin.get(`/api/audit?${query}`).expect(200)).body as AuditPage).entries.map((e) => `${e.action}@${e.at.slice(14, 16)}`);
     const range = `from=${t(0).toISOString()}&to=${t(31).toISOString()}`;
     expect(await q(range)).toEqual(['filter-probe-b@30', 'filter-probe-b@20', 'filter-probe-a@10', 'filter-probe-a@00']);
     expect(await q(`${range}&action=filter-probe-a`)).toEqual(['filter-probe-a@10', 'filter-probe-a@00']);

@@ -5,8 +5,12 @@ import { startTestStack } from '../helpers/test-stack';
 import { DEMO_PASSWORD } from '../../seeds/demo-world';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
-beforeAll(async () => { stack = await startTestStack({ seed: true, env: { BW_ALLOWED_ORIGINS: 'https://ops.example.org' } }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true, env: { BW_ALLOWED_ORIGINS: 'https://ops.example.org' } });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
 describe('sign-in, session cookie, /api/me, sign-out', () => {
   it('signs in with the right password, sets an httpOnly SameSite=Strict cookie and answers /api/me', async () => {
@@ -105,13 +109,24 @@ describe('requests from pages on other origins', () => {
 });
 
 describe('security headers', () => {
-  it('sends a content security policy that allows only the server\'s own scripts, and the usual hardening headers', async () => {
+  it("sends a content security policy that allows only the server's own scripts, and the usual hardening headers", async () => {
     const res = await request(stack.http).get('/api/health');
     const csp = String(res.headers['content-security-policy']);
-    const directives = Object.fromEntries(csp.split(';').map((d) => d.trim().split(/\s+/)).map(([k, ...v]) => [k, v.join(' ')]));
+    const directives = Object.fromEntries(
+      csp
+        .split(';')
+        .map((d) => d.trim().split(/\s+/))
+        .map(([k, ...v]) => [k, v.join(' ')]),
+    );
     expect(directives).toMatchObject({
-      'default-src': "'self'", 'script-src': "'self'", 'script-src-attr': "'none'", 'object-src': "'none'",
-      'base-uri': "'self'", 'frame-ancestors': "'none'", 'form-action': "'self'", 'connect-src': "'self'",
+      'default-src': "'self'",
+      'script-src': "'self'",
+      'script-src-attr': "'none'",
+      'object-src': "'none'",
+      'base-uri': "'self'",
+      'frame-ancestors': "'none'",
+      'form-action': "'self'",
+      'connect-src': "'self'",
     });
     expect(res.headers['x-content-type-options']).toBe('nosniff');
     expect(res.headers['x-frame-options']).toBe('DENY');

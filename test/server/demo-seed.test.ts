@@ -12,9 +12,16 @@ const script = (name: string) => fileURLToPath(new URL(`../../server/scripts/${n
 let t: TestDatabase;
 let dir: string;
 const envOf = (extra: Record<string, string> = {}) => ({
-  PATH: process.env['PATH'] ?? '', BW_LOG_LEVEL: 'silent', BW_BCRYPT_COST: '4',
-  BW_DB_HOST: t.config.db.host, BW_DB_PORT: String(t.config.db.port), BW_DB_NAME: t.config.db.database,
-  BW_DB_USER: t.config.db.user, BW_DB_PASSWORD: t.config.db.password, BW_DEMO_SECRETS_FILE: join(dir, 'secrets.json'), ...extra,
+  PATH: process.env['PATH'] ?? '',
+  BW_LOG_LEVEL: 'silent',
+  BW_BCRYPT_COST: '4',
+  BW_DB_HOST: t.config.db.host,
+  BW_DB_PORT: String(t.config.db.port),
+  BW_DB_NAME: t.config.db.database,
+  BW_DB_USER: t.config.db.user,
+  BW_DB_PASSWORD: t.config.db.password,
+  BW_DEMO_SECRETS_FILE: join(dir, 'secrets.json'),
+  ...extra,
 });
 const run = (file: string, args: string[], extra: Record<string, string> = {}, input?: string) =>
   spawnSync(process.execPath, ['--import', 'tsx', script(file), ...args], { env: envOf(extra), encoding: 'utf8', timeout: 30_000, input });
@@ -43,7 +50,9 @@ describe('demo seeding is an explicit choice', () => {
     const ok = run('create-admin.ts', ['--email', 'Ops@Example.org', '--name', 'Ops Lead'], { BW_ADMIN_PASSWORD: 'a-long-enough-secret' });
     expect(ok.status, ok.stderr).toBe(0);
     expect(await t.db('users').where({ email: 'ops@example.org' }).first()).toMatchObject({ role: 'admin', name: 'Ops Lead' });
-    expect(run('create-admin.ts', ['--email', 'ops@example.org', '--name', 'Ops'], { BW_ADMIN_PASSWORD: 'a-long-enough-secret' }).status).toBe(1);
+    expect(
+      run('create-admin.ts', ['--email', 'ops@example.org', '--name', 'Ops'], { BW_ADMIN_PASSWORD: 'a-long-enough-secret' }).status,
+    ).toBe(1);
     await t.db('audit_log').del();
     await t.db('users').del();
   });

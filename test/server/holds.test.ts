@@ -15,10 +15,17 @@ const QUEUE_TIMEOUT_MS = 10 * 60_000;
 let clockOffsetMs = 0;
 let stack: Awaited<ReturnType<typeof startTestStack>>;
 beforeAll(async () => {
-  stack = await startTestStack({ seed: true, stack: { ingest: { flushMs: 20 }, commands: { queueTimeoutMs: QUEUE_TIMEOUT_MS, now: () => Date.now() + clockOffsetMs } } });
+  stack = await startTestStack({
+    seed: true,
+    stack: { ingest: { flushMs: 20 }, commands: { queueTimeoutMs: QUEUE_TIMEOUT_MS, now: () => Date.now() + clockOffsetMs } },
+  });
 });
-afterAll(async () => { await stack?.stop(); });
-afterEach(() => { clockOffsetMs = 0; });
+afterAll(async () => {
+  await stack?.stop();
+});
+afterEach(() => {
+  clockOffsetMs = 0;
+});
 
 type Agent = ReturnType<typeof request.agent>;
 
@@ -31,7 +38,8 @@ async function signIn(email: string): Promise<{ agent: Agent; cookie: string; us
 }
 
 const unitId = (serial: string) => stack.units.get(serial)!.id;
-const commandsOf = async (agent: Agent, id: number): Promise<CommandView[]> => (await agent.get(`/api/units/${id}/commands`).expect(200)).body;
+const commandsOf = async (agent: Agent, id: number): Promise<CommandView[]> =>
+  (await agent.get(`/api/units/${id}/commands`).expect(200)).body;
 const holdsOf = async (agent: Agent, id: number): Promise<UnitHolds> => (await agent.get(`/api/units/${id}/holds`).expect(200)).body;
 
 /** A unit that answers every command accepted → done and remembers what it received, in arrival order. */
@@ -82,7 +90,12 @@ describe('a hold is in force the moment it is requested', () => {
     const holds = await holdsOf(tech.agent, id);
     expect(holds.held).toBe(true);
     expect(holds.active).toHaveLength(1);
-    expect(holds.active[0]).toMatchObject({ holder: { kind: 'person', id: crew.userId, name: 'Ines Calder' }, note: null, placedBy: { name: 'Ines Calder' }, releasedAt: null });
+    expect(holds.active[0]).toMatchObject({
+      holder: { kind: 'person', id: crew.userId, name: 'Ines Calder' },
+      note: null,
+      placedBy: { name: 'Ines Calder' },
+      releasedAt: null,
+    });
     const live = stack.live.get(id)!;
     expect(live.onHold).toBe(true);
     expect(live.holds.map((h) => h.holder.name)).toEqual(['Ines Calder']);
@@ -99,7 +112,10 @@ describe('a hold is in force the moment it is requested', () => {
     const crew = await signIn('crew2@saltmarsh.example');
     const stow = await tech.agent.post(`/api/units/${id}/commands`).send({ kind: 'stow', confirm: true }).expect(201);
     const go = await tech.agent.post(`/api/units/${id}/commands`).send(GOTO).expect(201);
-    const conf = await tech.agent.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { gain: 0.7 }, confirm: true }).expect(201);
+    const conf = await tech.agent
+      .post(`/api/units/${id}/commands`)
+      .send({ kind: 'configure', config: { gain: 0.7 }, confirm: true })
+      .expect(201);
     expect([stow.body.status, go.body.status, conf.body.status]).toEqual(['queued', 'queued', 'queued']);
     await crew.agent.post(`/api/units/${id}/commands`).send({ kind: 'hold' }).expect(201);
 
@@ -123,7 +139,8 @@ describe('queued commands', () => {
     const id = unitId('QHL-2405');
     const tech = await signIn('tech1@saltmarsh.example');
     const gains = [1, 2, 3, 4, 5, 6, 7, 8];
-    for (const gain of gains) await tech.agent.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { gain }, confirm: true }).expect(201);
+    for (const gain of gains)
+      await tech.agent.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { gain }, confirm: true }).expect(201);
     // Same issue time for all of them: only the tie-breaker keeps their order.
     await stack.db('commands').where({ unit_id: id }).update({ issued_at: new Date() });
     const unit = await recordingUnit('QHL-2405');
@@ -207,18 +224,27 @@ describe('several holders', () => {
 
     const r2 = await kwame.agent.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', confirm: true }).expect(201);
     expect(r2.body.status).toBe('sent');
-    await waitFor(async () => (await commandsOf(tech.agent, id)).find((c) => c.id === r2.body.id && c.status === 'completed'), 3000, 'release done');
+    await waitFor(
+      async () => (await commandsOf(tech.agent, id)).find((c) => c.id === r2.body.id && c.status === 'completed'),
+      3000,
+      'release done',
+    );
     expect(stack.live.get(id)!.onHold).toBe(false);
     await tech.agent.post(`/api/units/${id}/commands`).send(GOTO).expect(201);
     await waitFor(() => unit.received.length === 3, 3000, 'go-to sent');
     expect(unit.received.map((c) => c.kind)).toEqual(['hold', 'release-hold', 'goto']);
 
     const released = (await holdsOf(tech.agent, id)).released;
-    expect(released.map((h) => [h.holder.name, h.releasedBy?.name])).toEqual(expect.arrayContaining([['Ines Calder', 'Ines Calder'], ['Kwame Ruiz', 'Kwame Ruiz']]));
+    expect(released.map((h) => [h.holder.name, h.releasedBy?.name])).toEqual(
+      expect.arrayContaining([
+        ['Ines Calder', 'Ines Calder'],
+        ['Kwame Ruiz', 'Kwame Ruiz'],
+      ]),
+    );
     await unit.client.endAsync();
   });
 
-  it('lets only the holder release a person\'s hold; an admin releases it giving a reason', async () => {
+  it("lets only the holder release a person's hold; an admin releases it giving a reason", async () => {
     const id = unitId('FSC-2404');
     const ines = await signIn('crew1@saltmarsh.example');
     const kwame = await signIn('crew2@saltmarsh.example');
@@ -230,17 +256,29 @@ describe('several holders', () => {
     expect(notHis.body.error.code).toBe('no_own_hold');
 
     const holdId = (await holdsOf(admin.agent, id)).active[0]!.id;
-    expect((await kwame.agent.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', holdId, reason: 'done', confirm: true })).status).toBe(403);
-    expect((await tech.agent.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', holdId, reason: 'done', confirm: true })).status).toBe(403);
+    expect(
+      (await kwame.agent.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', holdId, reason: 'done', confirm: true })).status,
+    ).toBe(403);
+    expect(
+      (await tech.agent.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', holdId, reason: 'done', confirm: true })).status,
+    ).toBe(403);
     const noReason = await admin.agent.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', holdId, confirm: true });
     expect(noReason.status).toBe(400);
     expect(Object.keys(noReason.body.error.fields)).toEqual(['reason']);
     expect((await holdsOf(admin.agent, id)).held).toBe(true);
 
-    await admin.agent.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', holdId, reason: 'Crew left site without releasing; confirmed by phone', confirm: true }).expect(201);
+    await admin.agent
+      .post(`/api/units/${id}/commands`)
+      .send({ kind: 'release-hold', holdId, reason: 'Crew left site without releasing; confirmed by phone', confirm: true })
+      .expect(201);
     const after = await holdsOf(tech.agent, id);
     expect(after.held).toBe(false);
-    expect(after.released[0]).toMatchObject({ id: holdId, holder: { name: 'Ines Calder' }, releasedBy: { name: 'Ada Kestrel' }, releaseReason: 'Crew left site without releasing; confirmed by phone' });
+    expect(after.released[0]).toMatchObject({
+      id: holdId,
+      holder: { name: 'Ines Calder' },
+      releasedBy: { name: 'Ada Kestrel' },
+      releaseReason: 'Crew left site without releasing; confirmed by phone',
+    });
     const audit = await stack.db('audit_log').where({ action: 'hold-release', target: `unit:${id}` });
     expect(audit).toHaveLength(1);
     expect(audit[0].user_id).toBe(admin.userId);
@@ -260,7 +298,7 @@ describe('several holders', () => {
     expect((await holdsOf(tech.agent, id)).held).toBe(true);
   });
 
-  it('shows a unit\'s holds only to those who may see the unit', async () => {
+  it("shows a unit's holds only to those who may see the unit", async () => {
     const id = unitId('FSC-2406');
     await (await signIn('crew2@saltmarsh.example')).agent.post(`/api/units/${id}/commands`).send({ kind: 'hold' }).expect(201);
     const own = await holdsOf((await signIn('owner@fenwicklane.example')).agent, id);
@@ -274,10 +312,22 @@ describe('unit directory stays fresh after admin changes', () => {
   it('takes commands for a newly registered unit at once', async () => {
     const admin = await signIn('admin@saltmarsh.example');
     const siteId = stack.units.get('QHL-2401')!.siteId;
-    const created = await admin.agent.post('/api/units').send({
-      serial: 'QHL-2490', siteId, ratedPowerWp: 420, detectorTiltDeg: 8, tiltMinDeg: 0, tiltMaxDeg: 85, azimuthMinDeg: 60, azimuthMaxDeg: 300,
-      planXM: 40, planYM: 12, firmware: '2.4.1',
-    }).expect(201);
+    const created = await admin.agent
+      .post('/api/units')
+      .send({
+        serial: 'QHL-2490',
+        siteId,
+        ratedPowerWp: 420,
+        detectorTiltDeg: 8,
+        tiltMinDeg: 0,
+        tiltMaxDeg: 85,
+        azimuthMinDeg: 60,
+        azimuthMaxDeg: 300,
+        planXM: 40,
+        planYM: 12,
+        firmware: '2.4.1',
+      })
+      .expect(201);
     const tech = await signIn('tech1@saltmarsh.example');
     const res = await tech.agent.post(`/api/units/${created.body.unit.id}/commands`).send({ kind: 'stow', confirm: true });
     expect(res.status).toBe(201);
@@ -298,17 +348,28 @@ describe('unit directory stays fresh after admin changes', () => {
       await waitFor(() => s.messages.find((m) => m.type === 'snapshot'), 3000, 'snapshot');
     }
 
-    await admin.agent.patch(`/api/units/${id}`).send({ siteId: stack.units.get('QHL-2401')!.siteId }).expect(200);
+    await admin.agent
+      .patch(`/api/units/${id}`)
+      .send({ siteId: stack.units.get('QHL-2401')!.siteId })
+      .expect(200);
     expect((await fenwick.agent.get(`/api/units/${id}/commands`)).status).toBe(404);
     expect((await quillmoor.agent.get(`/api/units/${id}/commands`)).status).toBe(200);
 
     const moved = await connectUnit(stack.broker.port, serial);
     const stayed = await connectUnit(stack.broker.port, 'FGA-2402');
     await publish(moved, serial, 'telemetry', sample(1, Date.now()));
-    await waitFor(() => newSock.messages.some((m) => m.type === 'units' && m.units.some((u) => u.serial === serial)), 3000, 'new owner gets the moved unit');
+    await waitFor(
+      () => newSock.messages.some((m) => m.type === 'units' && m.units.some((u) => u.serial === serial)),
+      3000,
+      'new owner gets the moved unit',
+    );
     // A report of a unit the old owner still has, sent after: once it arrives, anything about the moved unit would have too.
     await publish(stayed, 'FGA-2402', 'telemetry', sample(1, Date.now()));
-    await waitFor(() => oldSock.messages.some((m) => m.type === 'units' && m.units.some((u) => u.serial === 'FGA-2402')), 3000, 'old owner gets its own unit');
+    await waitFor(
+      () => oldSock.messages.some((m) => m.type === 'units' && m.units.some((u) => u.serial === 'FGA-2402')),
+      3000,
+      'old owner gets its own unit',
+    );
     expect(oldSock.messages.some((m) => m.type === 'units' && m.units.some((u) => u.serial === serial))).toBe(false);
     const state = newSock.messages.flatMap((m) => (m.type === 'units' ? m.units : [])).find((u) => u.serial === serial)!;
     expect(state.siteId).toBe(stack.units.get('QHL-2401')!.siteId);
@@ -322,8 +383,13 @@ describe('unit directory stays fresh after admin changes', () => {
     const admin = await signIn('admin@saltmarsh.example');
     const fenwick = await signIn('owner@fenwicklane.example');
     const quillmoor = await signIn('owner@quillmoor.example');
-    const quillmoorId = (await admin.agent.get('/api/owners').expect(200)).body.find((o: { name: string }) => o.name === 'Quillmoor Energy Cooperative').id;
-    await admin.agent.patch(`/api/sites/${stack.units.get('FGA-2403')!.siteId}`).send({ ownerId: quillmoorId }).expect(200);
+    const quillmoorId = (await admin.agent.get('/api/owners').expect(200)).body.find(
+      (o: { name: string }) => o.name === 'Quillmoor Energy Cooperative',
+    ).id;
+    await admin.agent
+      .patch(`/api/sites/${stack.units.get('FGA-2403')!.siteId}`)
+      .send({ ownerId: quillmoorId })
+      .expect(200);
     expect((await fenwick.agent.get(`/api/units/${id}/commands`)).status).toBe(404);
     expect((await quillmoor.agent.get(`/api/units/${id}/commands`)).status).toBe(200);
     expect(stack.units.byUnitId(id)!.ownerId).toBe(quillmoorId);
@@ -348,8 +414,13 @@ describe('refused commands', () => {
     expect((await owner.agent.post(`/api/units/${id}/commands`).send({ kind: 'hold' })).status).toBe(403);
     expect((await ines.agent.post(`/api/units/${id}/commands`).send({ kind: 'stow', confirm: true })).status).toBe(403);
     expect((await tech.agent.post(`/api/units/${id}/commands`).send({ kind: 'stow' })).status).toBe(400);
-    const refusals = async () => (await stack.db('audit_log').where({ action: 'command-refused', target: `unit:${id}` }).orderBy('id'))
-      .map((r) => ({ userId: r.user_id, ...(typeof r.detail === 'string' ? JSON.parse(r.detail) : r.detail) }));
+    const refusals = async () =>
+      (
+        await stack
+          .db('audit_log')
+          .where({ action: 'command-refused', target: `unit:${id}` })
+          .orderBy('id')
+      ).map((r) => ({ userId: r.user_id, ...(typeof r.detail === 'string' ? JSON.parse(r.detail) : r.detail) }));
     expect((await refusals()).map((r) => [r.userId, r.kind, r.status, r.code])).toEqual([
       [owner.userId, 'hold', 403, 'forbidden'],
       [ines.userId, 'stow', 403, 'forbidden'],

@@ -16,8 +16,12 @@ const heard: string[] = [];
 beforeAll(async () => {
   proxy = await startTcpProxy(Number(process.env['BW_DB_PORT'] ?? 3308));
   stack = await startTestStack({
-    seed: true, dbPort: proxy.port,
-    stack: { ingest: { flushMs: 20, batchRows: 50, maxBufferRows: 100 }, listeners: { stored: (u: UnitInfo, t: Telemetry) => void heard.push(`${u.serial} ${t.ts}`) } },
+    seed: true,
+    dbPort: proxy.port,
+    stack: {
+      ingest: { flushMs: 20, batchRows: 50, maxBufferRows: 100 },
+      listeners: { stored: (u: UnitInfo, t: Telemetry) => void heard.push(`${u.serial} ${t.ts}`) },
+    },
   });
 });
 afterAll(async () => {
@@ -29,7 +33,14 @@ afterAll(async () => {
 const id = (serial: string) => stack.units.get(serial)!.id;
 /** Counted through a direct connection: the stack's own goes through the proxy. */
 const stored = async (serial: string, tsMs?: number) =>
-  Number(((await stack.testDb.db('telemetry').where({ unit_id: id(serial), ...(tsMs === undefined ? {} : { ts: new Date(tsMs) }) }).count({ n: '*' })) as [{ n: number }])[0].n);
+  Number(
+    (
+      (await stack.testDb
+        .db('telemetry')
+        .where({ unit_id: id(serial), ...(tsMs === undefined ? {} : { ts: new Date(tsMs) }) })
+        .count({ n: '*' })) as [{ n: number }]
+    )[0].n,
+  );
 
 describe('QoS 1 acknowledgement after commit', () => {
   it('sends no PUBACK for a reading while the database cannot store it, and every PUBACK finds its row committed', async () => {
@@ -87,7 +98,9 @@ describe('QoS 1 acknowledgement after commit', () => {
     const { c } = await rawConnect(stack.broker.port, serial, testDeviceSecret(serial));
     await proxy.cut();
     let maxBuffered = 0;
-    const watch = setInterval(() => { maxBuffered = Math.max(maxBuffered, stack.ingest.bufferedRows); }, 2);
+    const watch = setInterval(() => {
+      maxBuffered = Math.max(maxBuffered, stack.ingest.bufferedRows);
+    }, 2);
     for (let i = 0; i < 400; i++) c.send(qos1(unitTopic(serial, 'telemetry'), JSON.stringify(sample(i, t0 + i * 100)), (i % 60000) + 1));
     await waitFor(() => stack.ingest.counters.held > 0, 10_000, 'deliveries to be held');
     expect(stack.ingest.bufferedRows).toBeLessThanOrEqual(100);

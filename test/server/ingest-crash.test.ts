@@ -9,7 +9,9 @@ import { sample, waitFor } from '../helpers/fake-unit';
 let testDb: TestDatabase;
 const children = new Set<ServerProcess>();
 
-beforeAll(async () => { testDb = await createTestDatabase({ seed: true }); });
+beforeAll(async () => {
+  testDb = await createTestDatabase({ seed: true });
+});
 afterAll(async () => {
   for (const c of children) await c.kill('SIGKILL');
   await testDb?.drop();
@@ -17,7 +19,8 @@ afterAll(async () => {
 
 const startServer = () => startServerProcess(testDb.config.db.database, { BW_INGEST_FLUSH_MS: '300', BW_INGEST_BATCH_ROWS: '1000' });
 
-const pubacks = (c: RawClient) => new Set(c.received.flatMap((p) => (p.cmd === 'puback' && p.messageId !== undefined ? [p.messageId] : [])));
+const pubacks = (c: RawClient) =>
+  new Set(c.received.flatMap((p) => (p.cmd === 'puback' && p.messageId !== undefined ? [p.messageId] : [])));
 
 describe('server process killed with SIGKILL', () => {
   it('loses no reading it acknowledged, and stores the unacknowledged ones once when the unit resends them after a restart', async () => {
@@ -41,7 +44,8 @@ describe('server process killed with SIGKILL', () => {
     await c.closed;
 
     const acked = [...pubacks(c)].map((id) => id - 1);
-    const storedSeqs = async () => new Set((await testDb.db('telemetry').where({ unit_id: unitId }).select('seq')).map((r) => Number(r.seq)));
+    const storedSeqs = async () =>
+      new Set((await testDb.db('telemetry').where({ unit_id: unitId }).select('seq')).map((r) => Number(r.seq)));
     const afterKill = await storedSeqs();
     expect(acked.filter((i) => !afterKill.has(i))).toEqual([]); // lost: acknowledged but not stored
 

@@ -21,7 +21,8 @@ describe('database outage during ingestion', () => {
     const serial = 'FSC-2401';
     const id = stack.units.get(serial)!.id;
     // Count through a direct connection (the stack's own goes through the proxy).
-    const rows = async () => Number(((await stack.testDb.db('telemetry').where({ unit_id: id }).count({ n: '*' })) as [{ n: number }])[0].n);
+    const rows = async () =>
+      Number(((await stack.testDb.db('telemetry').where({ unit_id: id }).count({ n: '*' })) as [{ n: number }])[0].n);
     const u = await connectUnit(stack.broker.port, serial);
     const t0 = Date.now() - 600_000;
     for (let i = 0; i < 100; i++) await publish(u, serial, 'telemetry', sample(i, t0 + i * 1000));

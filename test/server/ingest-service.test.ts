@@ -5,7 +5,18 @@ import { telemetryKey, type TelemetryRepository, type TelemetryRow } from '../..
 import type { UnitDirectory, UnitInfo } from '../../server/services/unit-directory';
 import { sample, waitFor } from '../helpers/fake-unit';
 
-const unit: UnitInfo = { id: 7, serial: 'T-0007', siteId: 1, ownerId: 1, timeZone: 'UTC', disabled: false, onHold: false, holds: [], detectorTiltDeg: 20, weatherStation: false };
+const unit: UnitInfo = {
+  id: 7,
+  serial: 'T-0007',
+  siteId: 1,
+  ownerId: 1,
+  timeZone: 'UTC',
+  disabled: false,
+  onHold: false,
+  holds: [],
+  detectorTiltDeg: 20,
+  weatherStation: false,
+};
 const directory = { get: (serial: string) => (serial === unit.serial ? unit : undefined) } as unknown as UnitDirectory;
 
 /** A repository whose commits the test releases one by one, in any order; it remembers stored keys like the primary key would. */
@@ -49,7 +60,13 @@ describe('ingest acknowledgement and announcements', () => {
   it('announces batches in the order they were taken, even when a later one commits first', async () => {
     const { repo, pending } = heldRepository();
     const heard: number[] = [];
-    const ingest = new IngestService(repo, directory, pino({ level: 'silent' }), { stored: (_u, t) => heard.push(t.seq) }, { batchRows: 2, flushMs: 5, flushConcurrency: 2 });
+    const ingest = new IngestService(
+      repo,
+      directory,
+      pino({ level: 'silent' }),
+      { stored: (_u, t) => heard.push(t.seq) },
+      { batchRows: 2, flushMs: 5, flushConcurrency: 2 },
+    );
     for (const seq of [1, 2, 3, 4]) ingest.receive(unit.serial, 'telemetry', body(seq));
     await waitFor(() => pending.length === 2, 1000, 'two batches in flight');
     pending[1]!.commit();
@@ -64,7 +81,13 @@ describe('ingest acknowledgement and announcements', () => {
   it('announces a reading once when it and its resend share a batch, or the resend comes after it was stored', async () => {
     const { repo, pending } = heldRepository();
     const heard: number[] = [];
-    const ingest = new IngestService(repo, directory, pino({ level: 'silent' }), { stored: (_u, t) => heard.push(t.seq) }, { batchRows: 10, flushMs: 5, flushConcurrency: 1 });
+    const ingest = new IngestService(
+      repo,
+      directory,
+      pino({ level: 'silent' }),
+      { stored: (_u, t) => heard.push(t.seq) },
+      { batchRows: 10, flushMs: 5, flushConcurrency: 1 },
+    );
     let acks = 0;
     ingest.receive(unit.serial, 'telemetry', body(5), () => acks++);
     ingest.receive(unit.serial, 'telemetry', body(5), () => acks++);
@@ -114,7 +137,9 @@ describe('ingest acknowledgement and announcements', () => {
     const ingest = new IngestService(repo, directory, pino({ level: 'silent' }), {}, { batchRows: 10, flushMs: 5, flushConcurrency: 1 });
     const acked: string[] = [];
     ingest.receive(unit.serial, 'telemetry', body(1), () => acked.push('telemetry'));
-    ingest.receive(unit.serial, 'events', Buffer.from(JSON.stringify({ v: 1, ts: new Date(T0).toISOString(), kind: 'boot' })), () => acked.push('event'));
+    ingest.receive(unit.serial, 'events', Buffer.from(JSON.stringify({ v: 1, ts: new Date(T0).toISOString(), kind: 'boot' })), () =>
+      acked.push('event'),
+    );
     await waitFor(() => acked.length === 1, 1000, 'the telemetry acknowledgement');
     expect(acked).toEqual(['telemetry']);
     await waitFor(() => acked.length === 2, 5000, 'the event acknowledgement after the retry');

@@ -13,10 +13,17 @@ function countingModel() {
     skyAt: async (siteId: number, atMs: number) => {
       asked.push({ siteId, atMs });
       if (siteId === 99) throw new Error('site 99 is gone');
-      return resolveSkyFile(parseSkyFile({
-        site: { latitudeDeg: 50, longitudeDeg: 8, elevationM: 100 }, time: new Date(atMs).toISOString(), albedo: 0.2,
-        skyType: 'isotropic', horizon: [], reflectors: [], lamps: [],
-      }));
+      return resolveSkyFile(
+        parseSkyFile({
+          site: { latitudeDeg: 50, longitudeDeg: 8, elevationM: 100 },
+          time: new Date(atMs).toISOString(),
+          albedo: 0.2,
+          skyType: 'isotropic',
+          horizon: [],
+          reflectors: [],
+          lamps: [],
+        }),
+      );
     },
   } as unknown as SiteModelService;
   return { model, asked };

@@ -15,7 +15,9 @@ beforeAll(async () => {
   depot = await id('Eastfield Depot Yard');
   atrium = await id('Glasshouse Atrium');
 });
-afterAll(async () => { await stack?.stop(); });
+afterAll(async () => {
+  await stack?.stop();
+});
 
 const agent = async (email: string) => {
   const a = request.agent(stack.http);

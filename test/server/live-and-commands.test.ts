@@ -10,8 +10,12 @@ import type { LiveServerMessage } from '../../shared/contracts/live';
 import type { Command } from '../../shared/contracts/wire';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
-beforeAll(async () => { stack = await startTestStack({ seed: true, stack: { ingest: { flushMs: 20 }, commands: { ackTimeoutMs: 300 } } }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true, stack: { ingest: { flushMs: 20 }, commands: { ackTimeoutMs: 300 } } });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
 async function signIn(email: string) {
   const agent = request.agent(stack.http);
@@ -43,7 +47,9 @@ async function obedientUnit(serial: string, answer: (c: Command) => 'done' | 're
     const answered =
       a === 'rejected'
         ? publish(u, serial, 'acks', { v: 1, commandId: c.commandId, ts, result: 'rejected', reason: 'limit switch active' })
-        : publish(u, serial, 'acks', { v: 1, commandId: c.commandId, ts, result: 'accepted' }).then(() => publish(u, serial, 'acks', { v: 1, commandId: c.commandId, ts, result: 'done' }));
+        : publish(u, serial, 'acks', { v: 1, commandId: c.commandId, ts, result: 'accepted' }).then(() =>
+            publish(u, serial, 'acks', { v: 1, commandId: c.commandId, ts, result: 'done' }),
+          );
     answered.catch(() => undefined); // the test may already have disconnected the unit
   });
   await publish(u, serial, 'status', { v: 1, online: true, firmware: '2.4.1' }, true);
@@ -63,12 +69,21 @@ describe('live WebSocket', () => {
     const site = stack.units.get('QHL-2401')!.siteId;
     ws.send(JSON.stringify({ type: 'subscribe', siteId: site }));
     const snap = await waitFor(() => messages.find((m) => m.type === 'snapshot'), 3000, 'snapshot');
-    expect(snap.type === 'snapshot' && snap.units.map((u) => u.serial).sort()).toEqual(['QHL-2401', 'QHL-2402', 'QHL-2403', 'QHL-2404', 'QHL-2405', 'QHL-2406']);
+    expect(snap.type === 'snapshot' && snap.units.map((u) => u.serial).sort()).toEqual([
+      'QHL-2401',
+      'QHL-2402',
+      'QHL-2403',
+      'QHL-2404',
+      'QHL-2405',
+      'QHL-2406',
+    ]);
 
     const u = await connectUnit(stack.broker.port, 'QHL-2401');
     const t0 = Date.now() - 5000;
     // Sent together (QoS 1 in flight at once), so all five arrive within one coalescing window even on a busy machine.
-    await Promise.all(Array.from({ length: 5 }, (_, i) => publish(u, 'QHL-2401', 'telemetry', sample(i, t0 + i * 1000, { poaWm2: 700 + i }))));
+    await Promise.all(
+      Array.from({ length: 5 }, (_, i) => publish(u, 'QHL-2401', 'telemetry', sample(i, t0 + i * 1000, { poaWm2: 700 + i }))),
+    );
     const updatesOf = (serial: string) => messages.flatMap((m) => (m.type === 'units' ? m.units.filter((u) => u.serial === serial) : []));
     const first = await waitFor(() => updatesOf('QHL-2401')[0], 3000, 'unit update');
     expect(first.online).toBe(true);
@@ -81,7 +96,7 @@ describe('live WebSocket', () => {
     await u.endAsync();
   });
 
-  it('scopes an owner\'s socket to that owner\'s units', async () => {
+  it("scopes an owner's socket to that owner's units", async () => {
     const { cookie } = await signIn('owner@fenwicklane.example');
     const { ws, messages } = await openSocket(cookie);
     ws.send(JSON.stringify({ type: 'subscribe', fleet: true }));
@@ -109,9 +124,24 @@ describe('commands', () => {
     const { ws, messages } = await openSocket(cookie);
     ws.send(JSON.stringify({ type: 'subscribe', unitId: id }));
     await waitFor(() => messages.find((m) => m.type === 'snapshot'), 3000, 'snapshot');
-    const res = await agent.post(`/api/units/${id}/commands`).send({ kind: 'goto', tiltDeg: 30, azimuthDeg: 200, confirm: true }).expect(201);
-    expect(res.body).toMatchObject({ kind: 'goto', status: 'sent', params: { tiltDeg: 30, azimuthDeg: 200 }, issuedBy: { name: 'Tomasz Velde' } });
-    const done = await waitFor(async () => (await agent.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string }) => c.id === res.body.id && c.status === 'completed'), 3000, 'completed');
+    const res = await agent
+      .post(`/api/units/${id}/commands`)
+      .send({ kind: 'goto', tiltDeg: 30, azimuthDeg: 200, confirm: true })
+      .expect(201);
+    expect(res.body).toMatchObject({
+      kind: 'goto',
+      status: 'sent',
+      params: { tiltDeg: 30, azimuthDeg: 200 },
+      issuedBy: { name: 'Tomasz Velde' },
+    });
+    const done = await waitFor(
+      async () =>
+        (await agent.get(`/api/units/${id}/commands`)).body.find(
+          (c: { id: string; status: string }) => c.id === res.body.id && c.status === 'completed',
+        ),
+      3000,
+      'completed',
+    );
     expect(done.ackedAt).not.toBeNull();
     expect(done.finishedAt).not.toBeNull();
     const pushed = () => messages.flatMap((m) => (m.type === 'command' && m.command.id === res.body.id ? [m.command.status] : []));
@@ -130,10 +160,28 @@ describe('commands', () => {
     const u = await obedientUnit(serial, () => mode);
     const { agent } = await signIn('engineer@saltmarsh.example');
     const a = await agent.post(`/api/units/${id}/commands`).send({ kind: 'scan', confirm: true }).expect(201);
-    await waitFor(async () => (await agent.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string; reason: string }) => c.id === a.body.id && c.status === 'rejected' && c.reason === 'limit switch active'), 3000, 'rejected');
+    await waitFor(
+      async () =>
+        (await agent.get(`/api/units/${id}/commands`)).body.find(
+          (c: { id: string; status: string; reason: string }) =>
+            c.id === a.body.id && c.status === 'rejected' && c.reason === 'limit switch active',
+        ),
+      3000,
+      'rejected',
+    );
     mode = 'silent';
-    const b = await agent.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { gain: 0.5 }, confirm: true }).expect(201);
-    await waitFor(async () => (await agent.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string }) => c.id === b.body.id && c.status === 'timed-out'), 4000, 'timed out');
+    const b = await agent
+      .post(`/api/units/${id}/commands`)
+      .send({ kind: 'configure', config: { gain: 0.5 }, confirm: true })
+      .expect(201);
+    await waitFor(
+      async () =>
+        (await agent.get(`/api/units/${id}/commands`)).body.find(
+          (c: { id: string; status: string }) => c.id === b.body.id && c.status === 'timed-out',
+        ),
+      4000,
+      'timed out',
+    );
     await u.endAsync();
   });
 
@@ -152,7 +200,14 @@ describe('commands', () => {
     const sentBefore = (await tech.get(`/api/units/${id}/commands`)).body.length;
     expect(sentBefore).toBe(1); // the refused command was never stored or sent
     await crew.post(`/api/units/${id}/commands`).send({ kind: 'release-hold', confirm: true }).expect(201);
-    await waitFor(async () => (await tech.get(`/api/units/${id}/commands`)).body.find((c: { kind: string; status: string }) => c.kind === 'release-hold' && c.status === 'completed'), 3000, 'release carried out');
+    await waitFor(
+      async () =>
+        (await tech.get(`/api/units/${id}/commands`)).body.find(
+          (c: { kind: string; status: string }) => c.kind === 'release-hold' && c.status === 'completed',
+        ),
+      3000,
+      'release carried out',
+    );
     expect((await tech.get(`/api/units/${id}/holds`)).body.held).toBe(false);
     await tech.post(`/api/units/${id}/commands`).send({ kind: 'goto', tiltDeg: 10, azimuthDeg: 180, confirm: true }).expect(201);
     await u.endAsync();
@@ -178,10 +233,20 @@ describe('commands', () => {
     const serial = 'FSC-2403';
     const id = stack.units.get(serial)!.id;
     const tech = (await signIn('tech1@saltmarsh.example')).agent;
-    const res = await tech.post(`/api/units/${id}/commands`).send({ kind: 'configure', config: { deadbandWm2: 4 }, confirm: true }).expect(201);
+    const res = await tech
+      .post(`/api/units/${id}/commands`)
+      .send({ kind: 'configure', config: { deadbandWm2: 4 }, confirm: true })
+      .expect(201);
     expect(res.body.status).toBe('queued');
     const u = await obedientUnit(serial);
-    await waitFor(async () => (await tech.get(`/api/units/${id}/commands`)).body.find((c: { id: string; status: string }) => c.id === res.body.id && c.status === 'completed'), 3000, 'completed after coming online').catch(async (e) => {
+    await waitFor(
+      async () =>
+        (await tech.get(`/api/units/${id}/commands`)).body.find(
+          (c: { id: string; status: string }) => c.id === res.body.id && c.status === 'completed',
+        ),
+      3000,
+      'completed after coming online',
+    ).catch(async (e) => {
       console.log(JSON.stringify((await tech.get(`/api/units/${id}/commands`)).body));
       throw e;
     });

@@ -8,8 +8,12 @@ import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import type { LiveServerMessage } from '../../shared/contracts/live';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
-beforeAll(async () => { stack = await startTestStack({ seed: true, stack: { sessionRecheckMs: 200 } }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true, stack: { sessionRecheckMs: 200 } });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
 const host = () => new URL(stack.url).host;
 
@@ -30,7 +34,9 @@ function openSocket(cookie: string, headers: Record<string, string> = {}): Promi
   const ws = new WebSocket(`${stack.url.replace('http', 'ws')}/ws`, { headers: { Cookie: cookie, ...headers } });
   const s: OpenSocket = { ws, messages: [], closed: null };
   ws.on('message', (d) => s.messages.push(JSON.parse(String(d))));
-  ws.on('close', (code, reason) => { s.closed = { code, reason: String(reason) }; });
+  ws.on('close', (code, reason) => {
+    s.closed = { code, reason: String(reason) };
+  });
   return new Promise((res, rej) => {
     ws.once('open', () => res(s));
     ws.once('unexpected-response', (_req, r) => rej(new Error(`HTTP ${r.statusCode}`)));
@@ -42,10 +48,22 @@ function openSocket(cookie: string, headers: Record<string, string> = {}): Promi
 function rawUpgrade(headers: Record<string, string>): Promise<number> {
   return new Promise((resolve, reject) => {
     const req = httpRequest(`${stack.url}/ws`, {
-      headers: { Connection: 'Upgrade', Upgrade: 'websocket', 'Sec-WebSocket-Version': '13', 'Sec-WebSocket-Key': 'dGhlIHNhbXBsZSBub25jZQ==', ...headers },
+      headers: {
+        Connection: 'Upgrade',
+        Upgrade: 'websocket',
+        'Sec-WebSocket-Version': '13',
+        'Sec-WebSocket-Key': 'dGhlIHNhbXBsZSBub25jZQ==',
+        ...headers,
+      },
     });
-    req.on('response', (res) => { res.resume(); resolve(res.statusCode ?? 0); });
-    req.on('upgrade', (_res, socket) => { socket.destroy(); resolve(101); });
+    req.on('response', (res) => {
+      res.resume();
+      resolve(res.statusCode ?? 0);
+    });
+    req.on('upgrade', (_res, socket) => {
+      socket.destroy();
+      resolve(101);
+    });
     req.on('error', reject);
     req.end();
   });
@@ -78,8 +96,16 @@ describe('live socket entry point', () => {
     const { cookie } = await signIn('tech2@saltmarsh.example');
     const s = await openSocket(cookie);
     const hostile = [
-      'null', '"subscribe"', '42', '[]', '{"type":"subscribe"}', '{"type":"subscribe","siteId":{"toString":1}}',
-      '{"type":"subscribe","unitId":{"valueOf":1,"toString":1}}', '{"type":"subscribe","fleet":"yes"}', '{"type":"nope"}', '{',
+      'null',
+      '"subscribe"',
+      '42',
+      '[]',
+      '{"type":"subscribe"}',
+      '{"type":"subscribe","siteId":{"toString":1}}',
+      '{"type":"subscribe","unitId":{"valueOf":1,"toString":1}}',
+      '{"type":"subscribe","fleet":"yes"}',
+      '{"type":"nope"}',
+      '{',
     ];
     for (const text of hostile) s.ws.send(text);
     s.ws.send(Buffer.from([0xff, 0xfe, 0x00]));
@@ -121,17 +147,31 @@ describe('live socket and the session behind it', () => {
     const tech = await openSocket((await signIn('tech2@saltmarsh.example')).cookie);
     const owner = await openSocket((await signIn('owner@quillmoor.example')).cookie);
     const bystander = await openSocket((await signIn('tech1@saltmarsh.example')).cookie);
-    const otherOwner = (await stack.db('owners').whereNot({ id: (await stack.db('users').where({ email: 'owner@quillmoor.example' }).first()).owner_id }).first()).id as number;
+    const otherOwner = (
+      await stack
+        .db('owners')
+        .whereNot({ id: (await stack.db('users').where({ email: 'owner@quillmoor.example' }).first()).owner_id })
+        .first()
+    ).id as number;
 
-    await admin.patch(`/api/users/${await userId('crew1@saltmarsh.example')}`).send({ disabled: true }).expect(200);
-    await admin.patch(`/api/users/${await userId('tech2@saltmarsh.example')}`).send({ role: 'crew' }).expect(200);
-    await admin.patch(`/api/users/${await userId('owner@quillmoor.example')}`).send({ ownerId: otherOwner }).expect(200);
+    await admin
+      .patch(`/api/users/${await userId('crew1@saltmarsh.example')}`)
+      .send({ disabled: true })
+      .expect(200);
+    await admin
+      .patch(`/api/users/${await userId('tech2@saltmarsh.example')}`)
+      .send({ role: 'crew' })
+      .expect(200);
+    await admin
+      .patch(`/api/users/${await userId('owner@quillmoor.example')}`)
+      .send({ ownerId: otherOwner })
+      .expect(200);
     for (const s of [crew, tech, owner]) expect((await waitFor(() => s.closed, 3000, 'the socket to close')).code).toBe(4401);
     expect(bystander.closed).toBeNull();
     bystander.ws.close();
   });
 
-  it('closes a socket whose user was disabled behind the server\'s back at the next periodic check', async () => {
+  it("closes a socket whose user was disabled behind the server's back at the next periodic check", async () => {
     const s = await openSocket((await signIn('crew2@saltmarsh.example')).cookie);
     await stack.testDb.db('users').where({ email: 'crew2@saltmarsh.example' }).update({ disabled: true });
     expect((await waitFor(() => s.closed, 5000, 'the periodic check to close the socket')).code).toBe(4401);

@@ -30,8 +30,12 @@ describe('MQTT over TLS', () => {
   it('stores a reading from a unit that verified the broker against the development certificate', async () => {
     const serial = 'FSC-2402';
     const u = await mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, {
-      username: serial, password: testDeviceSecret(serial), clientId: serial, reconnectPeriod: 0,
-      ca: readFileSync(cert.certPath), rejectUnauthorized: true,
+      username: serial,
+      password: testDeviceSecret(serial),
+      clientId: serial,
+      reconnectPeriod: 0,
+      ca: readFileSync(cert.certPath),
+      rejectUnauthorized: true,
     });
     const ts = Date.now() - 30_000;
     await u.publishAsync(unitTopic(serial, 'telemetry'), JSON.stringify(sample(1, ts)), { qos: 1 });
@@ -42,8 +46,17 @@ describe('MQTT over TLS', () => {
 
   it('applies the same credentials and client-id rule as plain MQTT', async () => {
     const opts = { reconnectPeriod: 0, ca: readFileSync(cert.certPath), rejectUnauthorized: true };
-    await expect(mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, { ...opts, username: 'FSC-2403', password: 'wrong', clientId: 'FSC-2403' })).rejects.toMatchObject({ code: 4 });
-    await expect(mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, { ...opts, username: 'FSC-2403', password: testDeviceSecret('FSC-2403'), clientId: 'FSC-2404' })).rejects.toMatchObject({ code: 2 });
+    await expect(
+      mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, { ...opts, username: 'FSC-2403', password: 'wrong', clientId: 'FSC-2403' }),
+    ).rejects.toMatchObject({ code: 4 });
+    await expect(
+      mqtt.connectAsync(`mqtts://127.0.0.1:${tlsPort()}`, {
+        ...opts,
+        username: 'FSC-2403',
+        password: testDeviceSecret('FSC-2403'),
+        clientId: 'FSC-2404',
+      }),
+    ).rejects.toMatchObject({ code: 2 });
   });
 
   it('does not complete a handshake for a client that does not trust the certificate, and keeps serving', async () => {

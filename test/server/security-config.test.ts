@@ -11,7 +11,12 @@ describe('security settings from the environment', () => {
   it('reads BW_TRUST_PROXY as off, a hop count, or named addresses and ranges', () => {
     expect(loadConfig({ BW_TRUST_PROXY: 'off' }).trustProxy).toBe(false);
     expect(loadConfig({ BW_TRUST_PROXY: '1' }).trustProxy).toBe(1);
-    expect(loadConfig({ BW_TRUST_PROXY: 'loopback, 10.0.0.0/8,fd00::/8, 192.0.2.7' }).trustProxy).toEqual(['loopback', '10.0.0.0/8', 'fd00::/8', '192.0.2.7']);
+    expect(loadConfig({ BW_TRUST_PROXY: 'loopback, 10.0.0.0/8,fd00::/8, 192.0.2.7' }).trustProxy).toEqual([
+      'loopback',
+      '10.0.0.0/8',
+      'fd00::/8',
+      '192.0.2.7',
+    ]);
   });
 
   it('refuses a BW_TRUST_PROXY it cannot read, naming the variable and the bad part', () => {
@@ -23,7 +28,10 @@ describe('security settings from the environment', () => {
   });
 
   it('reads BW_ALLOWED_ORIGINS as comma-separated origins and refuses anything else', () => {
-    expect(loadConfig({ BW_ALLOWED_ORIGINS: 'https://ops.example.org, http://10.1.2.3:8080' }).allowedOrigins).toEqual(['https://ops.example.org', 'http://10.1.2.3:8080']);
+    expect(loadConfig({ BW_ALLOWED_ORIGINS: 'https://ops.example.org, http://10.1.2.3:8080' }).allowedOrigins).toEqual([
+      'https://ops.example.org',
+      'http://10.1.2.3:8080',
+    ]);
     for (const bad of ['ops.example.org', 'https://ops.example.org/dashboard', 'ftp://ops.example.org', '*']) {
       expect(() => loadConfig({ BW_ALLOWED_ORIGINS: bad }), bad).toThrow(/BW_ALLOWED_ORIGINS/);
     }

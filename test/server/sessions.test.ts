@@ -4,8 +4,12 @@ import { startTestStack } from '../helpers/test-stack';
 import { DEMO_PASSWORD } from '../../seeds/demo-world';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
-beforeAll(async () => { stack = await startTestStack({ seed: true }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
 async function signIn(email: string, password = DEMO_PASSWORD) {
   const agent = request.agent(stack.http);
@@ -42,7 +46,14 @@ describe('sessions end when they should', () => {
     const cases: [string, (id: number) => Promise<unknown>][] = [
       ['crew1@saltmarsh.example', (id) => admin.patch(`/api/users/${id}`).send({ disabled: true }).expect(200)],
       ['tech2@saltmarsh.example', (id) => admin.patch(`/api/users/${id}`).send({ role: 'engineer' }).expect(200)],
-      ['owner@quillmoor.example', (id) => admin.patch(`/api/users/${id}`).send({ ownerId: owners.at(-1)!.id }).expect(200)],
+      [
+        'owner@quillmoor.example',
+        (id) =>
+          admin
+            .patch(`/api/users/${id}`)
+            .send({ ownerId: owners.at(-1)!.id })
+            .expect(200),
+      ],
       ['crew2@saltmarsh.example', (id) => admin.post(`/api/users/${id}/password`).send({ password: 'a-brand-new-password' }).expect(204)],
     ];
     for (const [email, change] of cases) {
@@ -60,7 +71,10 @@ describe('sessions end when they should', () => {
   it('keeps the sessions of a user whose name alone changed', async () => {
     const admin = (await signIn('admin@saltmarsh.example')).agent;
     const { token } = await signIn('owner@fenwicklane.example');
-    await admin.patch(`/api/users/${await userId('owner@fenwicklane.example')}`).send({ name: 'Jonah W. Whitcombe' }).expect(200);
+    await admin
+      .patch(`/api/users/${await userId('owner@fenwicklane.example')}`)
+      .send({ name: 'Jonah W. Whitcombe' })
+      .expect(200);
     const me = await meAs(token);
     expect(me.status).toBe(200);
     expect(me.body.name).toBe('Jonah W. Whitcombe');
@@ -69,22 +83,30 @@ describe('sessions end when they should', () => {
   it('refuses a session past its end even while the token itself is still valid', async () => {
     const { token } = await signIn('engineer@saltmarsh.example');
     expect((await meAs(token)).status).toBe(200);
-    await stack.testDb.db('sessions').where({ user_id: await userId('engineer@saltmarsh.example') }).update({ expires_at: new Date(Date.now() - 1000) });
+    await stack.testDb
+      .db('sessions')
+      .where({ user_id: await userId('engineer@saltmarsh.example') })
+      .update({ expires_at: new Date(Date.now() - 1000) });
     expect((await meAs(token)).status).toBe(401);
   });
 });
 
-describe('changing one\'s own password', () => {
+describe("changing one's own password", () => {
   it('needs the current password: a wrong one is a 400 naming the field and is audited', async () => {
     const { agent } = await signIn('tech1@saltmarsh.example');
     const res = await agent.post('/api/me/password').send({ currentPassword: 'not-the-password', newPassword: 'another-long-password' });
     expect(res.status).toBe(400);
     expect(res.body.error.fields).toEqual({ currentPassword: 'That is not your current password.' });
-    expect(await stack.db('audit_log').where({ action: 'password-change-failed', user_id: await userId('tech1@saltmarsh.example') })).toHaveLength(1);
+    expect(
+      await stack.db('audit_log').where({ action: 'password-change-failed', user_id: await userId('tech1@saltmarsh.example') }),
+    ).toHaveLength(1);
     const missing = await agent.post('/api/me/password').send({ newPassword: 'short' });
     expect(missing.status).toBe(400);
     expect(Object.keys(missing.body.error.fields).sort()).toEqual(['currentPassword', 'newPassword']);
-    expect((await request(stack.http).post('/api/me/password').send({ currentPassword: DEMO_PASSWORD, newPassword: 'another-long-password' })).status).toBe(401);
+    expect(
+      (await request(stack.http).post('/api/me/password').send({ currentPassword: DEMO_PASSWORD, newPassword: 'another-long-password' }))
+        .status,
+    ).toBe(401);
   });
 
   it('sets the new password for every role, keeps this session, ends the others and is audited', async () => {
@@ -110,7 +132,10 @@ describe('changing one\'s own password', () => {
   it('limits wrong current passwords like sign-in: 429 after 10 in a minute, also for the right one', async () => {
     const { agent } = await signIn('tech2@saltmarsh.example');
     const statuses: number[] = [];
-    for (let i = 0; i < 11; i++) statuses.push((await agent.post('/api/me/password').send({ currentPassword: `wrong-${i}`, newPassword: 'another-long-password' })).status);
+    for (let i = 0; i < 11; i++)
+      statuses.push(
+        (await agent.post('/api/me/password').send({ currentPassword: `wrong-${i}`, newPassword: 'another-long-password' })).status,
+      );
     expect(statuses).toEqual([...Array(10).fill(400), 429]);
     const blocked = await agent.post('/api/me/password').send({ currentPassword: DEMO_PASSWORD, newPassword: 'another-long-password' });
     expect(blocked.status).toBe(429);
@@ -125,9 +150,13 @@ describe('passwords longer than bcrypt reads', () => {
 
   it('are refused with a field error wherever a password is set', async () => {
     const admin = (await signIn('admin@saltmarsh.example')).agent;
-    const create = await admin.post('/api/users').send({ email: 'long@saltmarsh.example', name: 'Long Password', role: 'engineer', password: long });
+    const create = await admin
+      .post('/api/users')
+      .send({ email: 'long@saltmarsh.example', name: 'Long Password', role: 'engineer', password: long });
     expect(create.status).toBe(400);
-    expect(create.body.error.fields).toEqual({ password: 'At most 72 bytes (UTF-8): fewer characters when they are accented or not Latin.' });
+    expect(create.body.error.fields).toEqual({
+      password: 'At most 72 bytes (UTF-8): fewer characters when they are accented or not Latin.',
+    });
     const reset = await admin.post(`/api/users/${await userId('engineer@saltmarsh.example')}/password`).send({ password: long });
     expect(reset.status).toBe(400);
     expect(Object.keys(reset.body.error.fields)).toEqual(['password']);
@@ -138,8 +167,14 @@ describe('passwords longer than bcrypt reads', () => {
 
   it('up to 72 bytes work, and every byte of them counts', async () => {
     const admin = (await signIn('admin@saltmarsh.example')).agent;
-    await admin.post('/api/users').send({ email: 'fits@saltmarsh.example', name: 'Fits Exactly', role: 'engineer', password: fits }).expect(201);
+    await admin
+      .post('/api/users')
+      .send({ email: 'fits@saltmarsh.example', name: 'Fits Exactly', role: 'engineer', password: fits })
+      .expect(201);
     await signIn('fits@saltmarsh.example', fits);
-    await request(stack.http).post('/api/auth/sign-in').send({ email: 'fits@saltmarsh.example', password: `${'é'.repeat(35)}e` }).expect(401);
+    await request(stack.http)
+      .post('/api/auth/sign-in')
+      .send({ email: 'fits@saltmarsh.example', password: `${'é'.repeat(35)}e` })
+      .expect(401);
   });
 });

@@ -8,19 +8,30 @@ import { DEMO_PASSWORD } from '../../seeds/demo-world';
 let plain: Awaited<ReturnType<typeof startTestStack>>;
 let proxied: Awaited<ReturnType<typeof startTestStack>>;
 beforeAll(async () => {
-  [plain, proxied] = await Promise.all([startTestStack({ seed: true }), startTestStack({ seed: true, env: { BW_TRUST_PROXY: 'loopback' } })]);
+  [plain, proxied] = await Promise.all([
+    startTestStack({ seed: true }),
+    startTestStack({ seed: true, env: { BW_TRUST_PROXY: 'loopback' } }),
+  ]);
 });
-afterAll(async () => { await Promise.all([plain?.stop(), proxied?.stop()]); });
+afterAll(async () => {
+  await Promise.all([plain?.stop(), proxied?.stop()]);
+});
 
 /** A fresh client address for each request through the trusted proxy, so only the account limit applies. */
 let n = 0;
-const nextAddress = () => { n++; return `10.${Math.floor(n / 250)}.${n % 250}.7`; };
+const nextAddress = () => {
+  n++;
+  return `10.${Math.floor(n / 250)}.${n % 250}.7`;
+};
 const signIn = (stack: typeof plain, email: string, password: string, headers: Record<string, string> = {}) =>
   request(stack.http).post('/api/auth/sign-in').set(headers).send({ email, password });
 
 describe('session cookie over HTTPS', () => {
   it('marks the cookie Secure when the request came over HTTPS through the configured proxy', async () => {
-    const secure = await signIn(proxied, 'tech1@saltmarsh.example', DEMO_PASSWORD, { 'X-Forwarded-For': nextAddress(), 'X-Forwarded-Proto': 'https' });
+    const secure = await signIn(proxied, 'tech1@saltmarsh.example', DEMO_PASSWORD, {
+      'X-Forwarded-For': nextAddress(),
+      'X-Forwarded-Proto': 'https',
+    });
     expect(secure.status).toBe(200);
     expect(String(secure.headers['set-cookie'])).toMatch(/;\s*Secure/i);
     const clear = await signIn(proxied, 'tech1@saltmarsh.example', DEMO_PASSWORD, { 'X-Forwarded-For': nextAddress() });
@@ -38,7 +49,8 @@ describe('sign-in limit', () => {
   it('answers 429 after 10 failed sign-ins within a minute for one account, even for the right password', async () => {
     const email = 'crew2@saltmarsh.example';
     const statuses: number[] = [];
-    for (let i = 0; i < 11; i++) statuses.push((await signIn(proxied, email, 'nope-nope-nope', { 'X-Forwarded-For': nextAddress() })).status);
+    for (let i = 0; i < 11; i++)
+      statuses.push((await signIn(proxied, email, 'nope-nope-nope', { 'X-Forwarded-For': nextAddress() })).status);
     expect(statuses).toEqual([...Array(10).fill(401), 429]);
     const ok = await signIn(proxied, email, DEMO_PASSWORD, { 'X-Forwarded-For': nextAddress() });
     expect(ok.status).toBe(429);
@@ -47,17 +59,27 @@ describe('sign-in limit', () => {
 
   it('counts the failures of one account under every spelling the database matches to it', async () => {
     const spellings = [
-      'tech2@saltmarsh.example', 'TECH2@saltmarsh.example', 'tech2@saltmarsh.example ', 'tech2@saltmarsh.example   ',
-      'téch2@saltmarsh.example', 'Tech2@Saltmarsh.Example', 'tèch2@saltmarsh.example ', 'tech2@sältmarsh.example',
-      'TÉCH2@SALTMARSH.EXAMPLE', 'tech2@saltmarsh.examplé',
+      'tech2@saltmarsh.example',
+      'TECH2@saltmarsh.example',
+      'tech2@saltmarsh.example ',
+      'tech2@saltmarsh.example   ',
+      'téch2@saltmarsh.example',
+      'Tech2@Saltmarsh.Example',
+      'tèch2@saltmarsh.example ',
+      'tech2@sältmarsh.example',
+      'TÉCH2@SALTMARSH.EXAMPLE',
+      'tech2@saltmarsh.examplé',
     ];
-    for (const email of spellings) expect((await signIn(proxied, email, 'wrong-password', { 'X-Forwarded-For': nextAddress() })).status, email).toBe(401);
+    for (const email of spellings)
+      expect((await signIn(proxied, email, 'wrong-password', { 'X-Forwarded-For': nextAddress() })).status, email).toBe(401);
     expect((await signIn(proxied, 'tech2@saltmarsh.example', DEMO_PASSWORD, { 'X-Forwarded-For': nextAddress() })).status).toBe(429);
   });
 
   it('counts each attempt before checking the password, so a parallel burst gets no more than 10 tries', async () => {
     const burst = await Promise.all(
-      Array.from({ length: 30 }, (_, i) => signIn(proxied, 'engineer@saltmarsh.example', `guess-${i}`, { 'X-Forwarded-For': nextAddress() })),
+      Array.from({ length: 30 }, (_, i) =>
+        signIn(proxied, 'engineer@saltmarsh.example', `guess-${i}`, { 'X-Forwarded-For': nextAddress() }),
+      ),
     );
     const statuses = burst.map((r) => r.status);
     expect(statuses.filter((s) => s === 401)).toHaveLength(10);
@@ -66,13 +88,15 @@ describe('sign-in limit', () => {
 
   it('does not count successful sign-ins', async () => {
     const statuses: number[] = [];
-    for (let i = 0; i < 15; i++) statuses.push((await signIn(proxied, 'owner@quillmoor.example', DEMO_PASSWORD, { 'X-Forwarded-For': nextAddress() })).status);
+    for (let i = 0; i < 15; i++)
+      statuses.push((await signIn(proxied, 'owner@quillmoor.example', DEMO_PASSWORD, { 'X-Forwarded-For': nextAddress() })).status);
     expect(statuses).toEqual(Array(15).fill(200));
   });
 
   it('limits one client address across accounts and ignores X-Forwarded-For unless a proxy is configured', async () => {
     const statuses: number[] = [];
-    for (let i = 0; i < 11; i++) statuses.push((await signIn(plain, `nobody${i}@saltmarsh.example`, 'wrong-password', { 'X-Forwarded-For': `10.200.0.${i}` })).status);
+    for (let i = 0; i < 11; i++)
+      statuses.push((await signIn(plain, `nobody${i}@saltmarsh.example`, 'wrong-password', { 'X-Forwarded-For': `10.200.0.${i}` })).status);
     expect(statuses).toEqual([...Array(10).fill(401), 429]);
   });
 });

@@ -4,8 +4,12 @@ import { startTestStack } from '../helpers/test-stack';
 import { DEMO_PASSWORD, DEMO_SURVEYS } from '../../seeds/demo-world';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
-beforeAll(async () => { stack = await startTestStack({ seed: true }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
 const agent = async (email: string) => {
   const a = request.agent(stack.http);
@@ -20,7 +24,16 @@ describe('site survey', () => {
     const roof = sites.find((s) => s.name === 'Harbourside Library Roof')!;
     const got = await eng.get(`/api/sites/${roof.id}/survey`).expect(200);
     expect(got.body.reflectors).toHaveLength(DEMO_SURVEYS['QHL']!.reflectors.length);
-    const next = { skyType: 5, horizon: [[0, 5], [90, 20], [180, 3]], reflectors: [], lamps: [] };
+    const next = {
+      skyType: 5,
+      horizon: [
+        [0, 5],
+        [90, 20],
+        [180, 3],
+      ],
+      reflectors: [],
+      lamps: [],
+    };
     await eng.put(`/api/sites/${roof.id}/survey`).send(next).expect(200);
     expect((await eng.get(`/api/sites/${roof.id}/survey`)).body).toEqual(next);
     const tech = await agent('tech1@saltmarsh.example');
@@ -31,19 +44,32 @@ describe('site survey', () => {
     const eng = await agent('engineer@saltmarsh.example');
     const id = ((await eng.get('/api/sites')).body as { id: number; name: string }[]).find((s) => s.name === 'Eastfield Depot Yard')!.id;
     const before = (await eng.get(`/api/sites/${id}/survey`)).body;
-    const res = await eng.put(`/api/sites/${id}/survey`).send({ skyType: 16, horizon: [[90, 10], [40, 5]], reflectors: [{ normalAzimuthDeg: 90 }], lamps: [], colour: 1 });
+    const res = await eng.put(`/api/sites/${id}/survey`).send({
+      skyType: 16,
+      horizon: [
+        [90, 10],
+        [40, 5],
+      ],
+      reflectors: [{ normalAzimuthDeg: 90 }],
+      lamps: [],
+      colour: 1,
+    });
     expect(res.status).toBe(400);
-    expect(Object.keys(res.body.error.fields)).toEqual(expect.arrayContaining(['skyType', 'horizon', 'reflectors.0.azimuthFromDeg', 'colour']));
+    expect(Object.keys(res.body.error.fields)).toEqual(
+      expect.arrayContaining(['skyType', 'horizon', 'reflectors.0.azimuthFromDeg', 'colour']),
+    );
     expect((await eng.get(`/api/sites/${id}/survey`)).body).toEqual(before);
   });
 
-  it('models a site\'s sky from its survey, at noon brighter than at dawn, with weather when recent', async () => {
+  it("models a site's sky from its survey, at noon brighter than at dawn, with weather when recent", async () => {
     const id = (await stack.db('sites').where({ name: 'Eastfield Depot Yard' }).first()).id;
     const noon = Date.parse('2026-06-21T11:00:00Z');
     const clear = await stack.siteModel.skyAt(id, noon);
     expect(clear.sunSource).toBe('SPA');
     expect(clear.input.dhiWm2).toBeGreaterThan(0);
-    await stack.db('weather').insert({ site_id: id, ts: new Date(noon - 60_000), ghi_wm2: 300, dhi_wm2: 280, air_temp_c: 18, wind_ms: 3, gust_ms: 6 });
+    await stack
+      .db('weather')
+      .insert({ site_id: id, ts: new Date(noon - 60_000), ghi_wm2: 300, dhi_wm2: 280, air_temp_c: 18, wind_ms: 3, gust_ms: 6 });
     const cloudy = await stack.siteModel.skyAt(id, noon);
     expect(cloudy.input.dhiWm2).toBeCloseTo(280, 6);
     expect(cloudy.input.ghiWm2).toBeCloseTo(300, 6);

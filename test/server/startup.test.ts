@@ -4,7 +4,11 @@ import { fileURLToPath } from 'node:url';
 
 const main = fileURLToPath(new URL('../../server/main.ts', import.meta.url));
 const run = (env: Record<string, string>) =>
-  spawnSync(process.execPath, ['--import', 'tsx', main], { env: { PATH: process.env['PATH'] ?? '', BW_LOG_LEVEL: 'silent', ...env }, encoding: 'utf8', timeout: 20_000 });
+  spawnSync(process.execPath, ['--import', 'tsx', main], {
+    env: { PATH: process.env['PATH'] ?? '', BW_LOG_LEVEL: 'silent', ...env },
+    encoding: 'utf8',
+    timeout: 20_000,
+  });
 
 describe('start-up', () => {
   it('stops with one clear line naming host, port and the fix when MariaDB is unreachable', () => {

@@ -32,7 +32,17 @@ describe('npm start supervises the server', () => {
     const dir = mkdtempSync(join(tmpdir(), 'bw-sup-'));
     const log = join(dir, 'runs');
     const s = supervise(`echo run >> ${log}; trap 'echo stopped >> ${log}; exit 0' TERM; while :; do sleep 0.05; done`);
-    await waitFor(() => { try { return readFileSync(log, 'utf8').includes('run'); } catch { return false; } }, 5000, 'first run');
+    await waitFor(
+      () => {
+        try {
+          return readFileSync(log, 'utf8').includes('run');
+        } catch {
+          return false;
+        }
+      },
+      5000,
+      'first run',
+    );
     s.p.kill('SIGTERM');
     expect(await s.exited).toBe(0);
     expect(readFileSync(log, 'utf8').trim().split('\n')).toEqual(['run', 'stopped']);

@@ -4,10 +4,15 @@ import { connectUnit, publish, sample, waitFor } from '../helpers/fake-unit';
 import { unitTopic } from '../../shared/contracts/topics';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
-beforeAll(async () => { stack = await startTestStack({ seed: true, stack: { ingest: { flushMs: 20 }, rollupIntervalMs: 60_000 } }); });
-afterAll(async () => { await stack?.stop(); });
+beforeAll(async () => {
+  stack = await startTestStack({ seed: true, stack: { ingest: { flushMs: 20 }, rollupIntervalMs: 60_000 } });
+});
+afterAll(async () => {
+  await stack?.stop();
+});
 
-const count = async (table: string, where: Record<string, unknown> = {}) => Number(((await stack.db(table).where(where).count({ n: '*' })) as [{ n: number }])[0].n);
+const count = async (table: string, where: Record<string, unknown> = {}) =>
+  Number(((await stack.db(table).where(where).count({ n: '*' })) as [{ n: number }])[0].n);
 const unitId = (serial: string) => stack.units.get(serial)!.id;
 
 describe('device credentials and topic ACL', () => {
@@ -39,7 +44,7 @@ describe('device credentials and topic ACL', () => {
     a.end(true);
   });
 
-  it('does not let unit A read unit B\'s commands (SUBACK failure), but its own', async () => {
+  it("does not let unit A read unit B's commands (SUBACK failure), but its own", async () => {
     const a = await connectUnit(stack.broker.port, 'QHL-2404');
     // mqtt.js turns a SUBACK return code 0x80 into a rejected promise.
     await expect(a.subscribeAsync(unitTopic('QHL-2405', 'commands'), { qos: 1 })).rejects.toThrow(/Subscribe error/);
@@ -99,7 +104,10 @@ describe('storage', () => {
     const order = [5, 1, 9, 0, 3, 7, 2, 8, 4, 6];
     for (const i of order) await publish(u, serial, 'telemetry', sample(i, t0 + i * 5000));
     await waitFor(async () => (await count('telemetry', { unit_id: unitId(serial) })) === 10, 5000, '10 rows');
-    const rows = await stack.db('telemetry').where({ unit_id: unitId(serial) }).orderBy('ts');
+    const rows = await stack
+      .db('telemetry')
+      .where({ unit_id: unitId(serial) })
+      .orderBy('ts');
     expect(rows.map((r) => Number(r.seq))).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8, 9]);
     expect(rows[0].ts.getTime()).toBe(t0);
     await u.endAsync();
@@ -135,16 +143,39 @@ describe('storage', () => {
     }
     const quarters = await stack.db('telemetry_15m').where({ unit_id: id }).orderBy('bucket');
     expect(quarters.map((q) => q.minutes)).toEqual([15, 5]);
-    expect(quarters[0].energy_wh).toBeCloseTo(minutes.slice(0, 15).reduce((s, m) => s + m.energy_wh, 0), 6);
+    expect(quarters[0].energy_wh).toBeCloseTo(
+      minutes.slice(0, 15).reduce((s, m) => s + m.energy_wh, 0),
+      6,
+    );
     const daily = await stack.db('energy_daily').where({ unit_id: id });
-    expect(daily.reduce((s, d) => s + d.energy_wh, 0)).toBeCloseTo(minutes.reduce((s, m) => s + m.energy_wh, 0), 6);
+    expect(daily.reduce((s, d) => s + d.energy_wh, 0)).toBeCloseTo(
+      minutes.reduce((s, m) => s + m.energy_wh, 0),
+      6,
+    );
     expect(daily.reduce((s, d) => s + d.minutes, 0)).toBe(20);
     await u.endAsync();
   });
 
   it('deletes raw samples past the retention and keeps newer ones', async () => {
     const id = unitId('QED-2405');
-    const base = { seq: 1, tilt_plus_wm2: 1, tilt_minus_wm2: 1, azimuth_plus_wm2: 1, azimuth_minus_wm2: 1, poa_wm2: 1, tilt_deg: 1, azimuth_deg: 1, cmd_tilt_deg: 1, cmd_azimuth_deg: 1, tilt_motor_a: 0, azimuth_motor_a: 0, dc_power_w: 1, module_temp_c: 1, mode: 'settled', received_at: new Date() };
+    const base = {
+      seq: 1,
+      tilt_plus_wm2: 1,
+      tilt_minus_wm2: 1,
+      azimuth_plus_wm2: 1,
+      azimuth_minus_wm2: 1,
+      poa_wm2: 1,
+      tilt_deg: 1,
+      azimuth_deg: 1,
+      cmd_tilt_deg: 1,
+      cmd_azimuth_deg: 1,
+      tilt_motor_a: 0,
+      azimuth_motor_a: 0,
+      dc_power_w: 1,
+      module_temp_c: 1,
+      mode: 'settled',
+      received_at: new Date(),
+    };
     const now = Date.now();
     await stack.db('telemetry').insert([
       { ...base, unit_id: id, ts: new Date(now - 401 * 86_400_000) },
@@ -165,7 +196,11 @@ describe('storage', () => {
     const event = { v: 1, ts, kind: 'mode-change', mode: 'stowed', code: 'wind-stow', message: 'gust 19.2 m/s' };
     await publish(u, serial, 'events', event);
     await publish(u, serial, 'events', event);
-    await waitFor(async () => (await count('weather', { site_id: siteId })) === 1 && (await count('unit_events', { unit_id: unitId(serial) })) === 1, 5000, 'weather and event rows');
+    await waitFor(
+      async () => (await count('weather', { site_id: siteId })) === 1 && (await count('unit_events', { unit_id: unitId(serial) })) === 1,
+      5000,
+      'weather and event rows',
+    );
     await new Promise((r) => setTimeout(r, 200));
     const w = await stack.db('weather').where({ site_id: siteId }).first();
     expect(w).toMatchObject({ ghi_wm2: 420, dhi_wm2: 130, wind_ms: 4.2 });

@@ -15,15 +15,36 @@ const SPIKE_AT = T0 + 3000 * 1000; // inside bucket 5 of 12 (10-minute buckets)
 
 beforeAll(async () => {
   stack = await startTestStack({ seed: true });
-  const unit = await stack.db('units').join('sites', 'sites.id', 'units.site_id').where('sites.name', 'Eastfield Depot Yard').first('units.id');
+  const unit = await stack
+    .db('units')
+    .join('sites', 'sites.id', 'units.site_id')
+    .where('sites.name', 'Eastfield Depot Yard')
+    .first('units.id');
   unitId = unit.id;
-  otherOwnersUnit = (await stack.db('units').join('sites', 'sites.id', 'units.site_id').where('sites.name', 'Glasshouse Atrium').first('units.id')).id;
+  otherOwnersUnit = (
+    await stack.db('units').join('sites', 'sites.id', 'units.site_id').where('sites.name', 'Glasshouse Atrium').first('units.id')
+  ).id;
   const rows = Array.from({ length: ROWS }, (_, i) => {
     const ts = T0 + i * 5000;
     return {
-      unit_id: unitId, ts: new Date(ts), seq: i, tilt_plus_wm2: 500 + (i % 10), tilt_minus_wm2: 490, azimuth_plus_wm2: 480, azimuth_minus_wm2: 485,
-      poa_wm2: ts === SPIKE_AT ? 1200 : 600, tilt_deg: 30, azimuth_deg: 180, cmd_tilt_deg: 31, cmd_azimuth_deg: 181,
-      tilt_motor_a: 0.1, azimuth_motor_a: 0.2, dc_power_w: 300, module_temp_c: 30, mode: 'settled', received_at: new Date(ts),
+      unit_id: unitId,
+      ts: new Date(ts),
+      seq: i,
+      tilt_plus_wm2: 500 + (i % 10),
+      tilt_minus_wm2: 490,
+      azimuth_plus_wm2: 480,
+      azimuth_minus_wm2: 485,
+      poa_wm2: ts === SPIKE_AT ? 1200 : 600,
+      tilt_deg: 30,
+      azimuth_deg: 180,
+      cmd_tilt_deg: 31,
+      cmd_azimuth_deg: 181,
+      tilt_motor_a: 0.1,
+      azimuth_motor_a: 0.2,
+      dc_power_w: 300,
+      module_temp_c: 30,
+      mode: 'settled',
+      received_at: new Date(ts),
     };
   });
   for (let i = 0; i < rows.length; i += 500) await stack.db('telemetry').insert(rows.slice(i, i + 500));
@@ -31,13 +52,32 @@ beforeAll(async () => {
   await new TelemetryRepository(stack.db).rollupMinuteRange([unitId], new Date(T0), new Date(T0 + ROWS * 5000));
   const siteId = (await stack.db('units').where({ id: unitId }).first('site_id')).site_id;
   const at = new Date(T0 + 1_200_000);
-  await stack.db('alarms').insert({ unit_id: unitId, site_id: siteId, kind: 'trap', severity: 'P3', state: 'active', message: 'Settled on a lesser peak', advice: 'Scan and relocate.', evidence: '{}', first_seen_at: at, raised_at: at, last_seen_at: at });
+  await stack.db('alarms').insert({
+    unit_id: unitId,
+    site_id: siteId,
+    kind: 'trap',
+    severity: 'P3',
+    state: 'active',
+    message: 'Settled on a lesser peak',
+    advice: 'Scan and relocate.',
+    evidence: '{}',
+    first_seen_at: at,
+    raised_at: at,
+    last_seen_at: at,
+  });
   await stack.db('unit_events').insert([
-    { unit_id: unitId, ts: new Date(T0 + 600_000), kind: 'mode-change', body: JSON.stringify({ v: 1, kind: 'mode-change', mode: 'scanning' }) },
+    {
+      unit_id: unitId,
+      ts: new Date(T0 + 600_000),
+      kind: 'mode-change',
+      body: JSON.stringify({ v: 1, kind: 'mode-change', mode: 'scanning' }),
+    },
     { unit_id: unitId, ts: new Date(T0 + 601_000), kind: 'scan-samples', body: JSON.stringify({ v: 1, samples: [[1, 2, 3]] }) },
   ]);
 });
-afterAll(async () => { await stack?.stop(); });
+afterAll(async () => {
+  await stack?.stop();
+});
 
 const agent = async (email: string) => {
   const a = request.agent(stack.http);
@@ -93,7 +133,9 @@ describe('downsampled traces', () => {
 
   it('reads raw reports for sub-minute buckets and agrees with the rollup on the same range', async () => {
     const eng = await agent('engineer@saltmarsh.example');
-    const fine = (await eng.get(`/api/units/${unitId}/traces?${range(T0 + 3000_000 - 60_000, T0 + 3000_000 + 60_000)}&points=24`).expect(200)).body as UnitTraces;
+    const fine = (
+      await eng.get(`/api/units/${unitId}/traces?${range(T0 + 3000_000 - 60_000, T0 + 3000_000 + 60_000)}&points=24`).expect(200)
+    ).body as UnitTraces;
     expect(fine.source).toBe('raw');
     expect(fine.bucketMs).toBe(5000);
     expect(Math.max(...fine.series.poaWm2.max.map(Number))).toBe(1200);
@@ -116,11 +158,15 @@ describe('downsampled traces', () => {
 describe('CSV export', () => {
   it('streams RFC 4180 CSV with CRLF, ISO UTC first column and units in the column names', async () => {
     const eng = await agent('engineer@saltmarsh.example');
-    const res = await eng.get(`/api/units/${unitId}/traces.csv?${range(T0, T0 + 3600_000)}`).buffer(true).parse((r, cb) => {
-      let s = '';
-      r.on('data', (c: Buffer) => (s += c.toString('utf8')));
-      r.on('end', () => cb(null, s));
-    }).expect(200);
+    const res = await eng
+      .get(`/api/units/${unitId}/traces.csv?${range(T0, T0 + 3600_000)}`)
+      .buffer(true)
+      .parse((r, cb) => {
+        let s = '';
+        r.on('data', (c: Buffer) => (s += c.toString('utf8')));
+        r.on('end', () => cb(null, s));
+      })
+      .expect(200);
     expect(res.headers['content-type']).toMatch(/^text\/csv/);
     expect(res.headers['content-disposition']).toMatch(/attachment; filename="QED-.*\.csv"/);
     const text = res.body as string;
@@ -158,8 +204,40 @@ describe('CSV export', () => {
 describe('bucket merging', () => {
   it('merges the rollup part and the raw tail of one bucket', async () => {
     const { mergeBuckets } = await import('../../server/services/trace-service');
-    const q = (lo: number, hi: number) => Object.fromEntries(['tiltPlusWm2', 'tiltMinusWm2', 'azimuthPlusWm2', 'azimuthMinusWm2', 'tiltDiffWm2', 'azimuthDiffWm2', 'tiltDeg', 'cmdTiltDeg', 'azimuthDeg', 'cmdAzimuthDeg', 'poaWm2', 'dcPowerW'].flatMap((k) => [[`${k}_lo`, lo], [`${k}_hi`, hi]]));
-    const merged = mergeBuckets([{ b: 0, n: 12, ...q(1, 5) }, { b: 1, n: 3, ...q(2, 3) }], [{ b: 1, n: 4, ...q(0, 9) }, { b: 2, n: 1, ...q(7, 7) }]);
-    expect(merged.map((r) => [r.b, r.n, r['poaWm2_lo'], r['poaWm2_hi']])).toEqual([[0, 12, 1, 5], [1, 7, 0, 9], [2, 1, 7, 7]]);
+    const q = (lo: number, hi: number) =>
+      Object.fromEntries(
+        [
+          'tiltPlusWm2',
+          'tiltMinusWm2',
+          'azimuthPlusWm2',
+          'azimuthMinusWm2',
+          'tiltDiffWm2',
+          'azimuthDiffWm2',
+          'tiltDeg',
+          'cmdTiltDeg',
+          'azimuthDeg',
+          'cmdAzimuthDeg',
+          'poaWm2',
+          'dcPowerW',
+        ].flatMap((k) => [
+          [`${k}_lo`, lo],
+          [`${k}_hi`, hi],
+        ]),
+      );
+    const merged = mergeBuckets(
+      [
+        { b: 0, n: 12, ...q(1, 5) },
+        { b: 1, n: 3, ...q(2, 3) },
+      ],
+      [
+        { b: 1, n: 4, ...q(0, 9) },
+        { b: 2, n: 1, ...q(7, 7) },
+      ],
+    );
+    expect(merged.map((r) => [r.b, r.n, r['poaWm2_lo'], r['poaWm2_hi']])).toEqual([
+      [0, 12, 1, 5],
+      [1, 7, 0, 9],
+      [2, 1, 7, 7],
+    ]);
   });
 });

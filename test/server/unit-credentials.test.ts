@@ -9,9 +9,15 @@ let admin: ReturnType<typeof request.agent>;
 beforeAll(async () => {
   stack = await startTestStack({ seed: true });
   admin = request.agent(stack.http);
-  await admin.post('/api/auth/sign-in').set('Origin', stack.url).send({ email: 'admin@saltmarsh.example', password: DEMO_PASSWORD }).expect(200);
+  await admin
+    .post('/api/auth/sign-in')
+    .set('Origin', stack.url)
+    .send({ email: 'admin@saltmarsh.example', password: DEMO_PASSWORD })
+    .expect(200);
 });
-afterAll(async () => { await stack?.stop(); });
+afterAll(async () => {
+  await stack?.stop();
+});
 
 async function connectedUnit(serial: string) {
   const u = await connectUnit(stack.broker.port, serial);
@@ -20,7 +26,7 @@ async function connectedUnit(serial: string) {
 }
 
 describe('unit credentials changed by an admin', () => {
-  it('rotating a unit\'s secret drops its MQTT connection at once, and the old secret no longer connects', async () => {
+  it("rotating a unit's secret drops its MQTT connection at once, and the old secret no longer connects", async () => {
     const serial = 'QED-2402';
     const { closed } = await connectedUnit(serial);
     const id = stack.units.get(serial)!.id;

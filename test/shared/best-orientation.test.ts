@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { bestReachableOrientation, bestReachableOrientationWith, buildSky, irradianceAt, STANDARD_UNIT_LIMITS, type UnitLimits } from '../../shared/landscape/index';
+import {
+  bestReachableOrientation,
+  bestReachableOrientationWith,
+  buildSky,
+  irradianceAt,
+  STANDARD_UNIT_LIMITS,
+  type UnitLimits,
+} from '../../shared/landscape/index';
 import { directionFromAzimuthElevation, dot, normalFromTiltAzimuth, type Vec3 } from '../../shared/sphere/directions';
 
 // Global optimum with beam + isotropic sky + ground (physics.md, derived from Lambert's cosine law):
@@ -32,7 +39,13 @@ describe('best reachable orientation', () => {
   });
 
   it('the engine sky of the same example gives the same optimum (fast irradiance, within 0.05 W/m²)', () => {
-    const sky = buildSky({ sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: DNI }, dhiWm2: D, ghiWm2: G, skyType: 'isotropic', albedo: RHO });
+    const sky = buildSky({
+      sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: DNI },
+      dhiWm2: D,
+      ghiWm2: G,
+      skyType: 'isotropic',
+      albedo: RHO,
+    });
     const b = bestReachableOrientation(sky, ANY, { resolutionDeg: 0.5 });
     expect(Math.abs(b.tiltDeg - 27.693)).toBeLessThanOrEqual(0.25 + 1e-9);
     expect(b.azimuthDeg).toBe(180);
@@ -52,21 +65,26 @@ describe('best reachable orientation', () => {
     const b = bestReachableOrientationWith(closedForm, limits, { resolutionDeg: 0.5 });
     expect(b.azimuthDeg).toBe(150);
     let brute = -Infinity;
-    for (let t = 0; t <= 85; t += 0.5) for (let a = 60; a <= 150; a += 0.5) brute = Math.max(brute, closedForm(normalFromTiltAzimuth(t, a)));
+    for (let t = 0; t <= 85; t += 0.5)
+      for (let a = 60; a <= 150; a += 0.5) brute = Math.max(brute, closedForm(normalFromTiltAzimuth(t, a)));
     expect(b.wm2).toBeCloseTo(brute, 9);
   });
 
   it('two lobes: the brighter one wins, as on a 0.5° brute grid (low lamps at azimuth 0° and 180°, 100 and 104 W/m²)', () => {
-    const lamp = (az: number, el: number, wm2: number) => { const d = directionFromAzimuthElevation(az, el); return (n: Vec3) => wm2 * Math.max(0, dot(n, d)); };
+    const lamp = (az: number, el: number, wm2: number) => {
+      const d = directionFromAzimuthElevation(az, el);
+      return (n: Vec3) => wm2 * Math.max(0, dot(n, d));
+    };
     const a = lamp(0, 10, 100);
     const c = lamp(180, 10, 104);
     const e = (n: Vec3) => a(n) + c(n);
     const b = bestReachableOrientationWith(e, STANDARD_UNIT_LIMITS, { resolutionDeg: 0.5 });
     let brute = { wm2: -Infinity, tiltDeg: 0, azimuthDeg: 0 };
-    for (let t = 0; t <= 85; t += 0.5) for (let az = 0; az < 360; az += 0.5) {
-      const x = e(normalFromTiltAzimuth(t, az));
-      if (x > brute.wm2) brute = { wm2: x, tiltDeg: t, azimuthDeg: az };
-    }
+    for (let t = 0; t <= 85; t += 0.5)
+      for (let az = 0; az < 360; az += 0.5) {
+        const x = e(normalFromTiltAzimuth(t, az));
+        if (x > brute.wm2) brute = { wm2: x, tiltDeg: t, azimuthDeg: az };
+      }
     expect(brute.azimuthDeg).toBe(180);
     expect(b.azimuthDeg).toBe(180);
     expect(b.tiltDeg).toBe(brute.tiltDeg);

@@ -11,15 +11,41 @@ function cli(...args: string[]) {
 }
 const dir = mkdtempSync(join(tmpdir(), 'brightward-cli-'));
 function skyFile(value: unknown): string {
-  const path = join(dir, `${Math.abs(JSON.stringify(value).split('').reduce((h, c) => (h * 31 + c.charCodeAt(0)) | 0, 7))}.json`);
+  const path = join(
+    dir,
+    `${Math.abs(
+      JSON.stringify(value)
+        .split('')
+        .reduce((h, c) => (h * 31 + c.charCodeAt(0)) | 0, 7),
+    )}.json`,
+  );
   writeFileSync(path, typeof value === 'string' ? value : JSON.stringify(value));
   return path;
 }
 
 describe('brightward sun', () => {
   it('reproduces the SPA worked example (Reda & Andreas 2008, Table A5.1) and the pinned local-day events', () => {
-    const r = cli('sun', '--lat', '39.742476', '--lon', '-105.1786', '--elev', '1830.14', '--pressure', '820', '--temp', '11', '--delta-t', '67',
-      '--time', '2003-10-17T12:30:30-07:00', '--slope', '30', '--surface-azimuth', '170');
+    const r = cli(
+      'sun',
+      '--lat',
+      '39.742476',
+      '--lon',
+      '-105.1786',
+      '--elev',
+      '1830.14',
+      '--pressure',
+      '820',
+      '--temp',
+      '11',
+      '--delta-t',
+      '67',
+      '--time',
+      '2003-10-17T12:30:30-07:00',
+      '--slope',
+      '30',
+      '--surface-azimuth',
+      '170',
+    );
     expect(r.code).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(Math.abs(out.zenithDeg - 50.11162)).toBeLessThan(1e-5); // Table A5.1
@@ -54,7 +80,9 @@ describe('brightward landscape', () => {
     sun: { azimuthDeg: 110, elevationDeg: 20, dniWm2: 700 },
     dhiWm2: 100,
     skyType: 12,
-    reflectors: [{ normalAzimuthDeg: 90, azimuthFromDeg: 230, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 40, reflectance: 0.35 }],
+    reflectors: [
+      { normalAzimuthDeg: 90, azimuthFromDeg: 230, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 40, reflectance: 0.35 },
+    ],
   });
   it('reports the global maximum, the trap with prominence and basin share, and the single-peak detector tilt', () => {
     const r = cli('landscape', '--sky', facade, '--step', '2', '--detector-tilt', '5');
@@ -70,7 +98,12 @@ describe('brightward landscape', () => {
   });
 
   it('gives null when no detector tilt up to the maximum makes one peak', () => {
-    const lamps = skyFile({ lamps: [{ azimuthDeg: 0, elevationDeg: 20, irradianceWm2: 60 }, { azimuthDeg: 180, elevationDeg: 20, irradianceWm2: 45 }] });
+    const lamps = skyFile({
+      lamps: [
+        { azimuthDeg: 0, elevationDeg: 20, irradianceWm2: 60 },
+        { azimuthDeg: 180, elevationDeg: 20, irradianceWm2: 45 },
+      ],
+    });
     const out = JSON.parse(cli('landscape', '--sky', lamps, '--step', '3', '--max-detector-tilt', '10').stdout);
     expect(out.minSinglePeakDetectorTiltDeg).toBeNull();
   });
@@ -90,7 +123,17 @@ describe('brightward landscape', () => {
   }
 
   it('names the bad field of a sky file, and refuses broken JSON and missing files', () => {
-    const unsorted = cli('landscape', '--sky', skyFile({ skyType: 16, horizon: [[20, 5], [10, 5]] }));
+    const unsorted = cli(
+      'landscape',
+      '--sky',
+      skyFile({
+        skyType: 16,
+        horizon: [
+          [20, 5],
+          [10, 5],
+        ],
+      }),
+    );
     expect(unsorted.code).toBe(2);
     expect(unsorted.stderr).toMatch(/skyType: must be .*1…15/);
     expect(unsorted.stderr).toMatch(/horizon\[1\]\[0\]: must be sorted by azimuth/);
@@ -115,7 +158,11 @@ describe('brightward landscape', () => {
 
 describe('the installed bin shim', () => {
   it('shared/cli/brightward.mjs runs the same command line through tsx', () => {
-    const r = spawnSync(process.execPath, ['shared/cli/brightward.mjs', 'sun', '--lat', '0', '--lon', '0', '--time', '2020-03-20T12:00:00Z'], { cwd: root, encoding: 'utf8' });
+    const r = spawnSync(
+      process.execPath,
+      ['shared/cli/brightward.mjs', 'sun', '--lat', '0', '--lon', '0', '--time', '2020-03-20T12:00:00Z'],
+      { cwd: root, encoding: 'utf8' },
+    );
     expect(r.status).toBe(0);
     const out = JSON.parse(r.stdout);
     expect(out.zenithDeg).toBeGreaterThan(0);

@@ -3,7 +3,13 @@ import { clearSkyGhiHaurwitz, clearSkyIneichenPerez, erbsDiffuseFraction, erbsSp
 
 describe('Ineichen & Perez 2002 clear sky', () => {
   it('Z = 10°, AM = 1, TL = 3, h = 0, I0 = 1364 W/m²', () => {
-    const r = clearSkyIneichenPerez({ apparentZenithDeg: 10, absoluteAirMass: 1, linkeTurbidity: 3, altitudeM: 0, extraterrestrialNormalWm2: 1364 });
+    const r = clearSkyIneichenPerez({
+      apparentZenithDeg: 10,
+      absoluteAirMass: 1,
+      linkeTurbidity: 3,
+      altitudeM: 0,
+      extraterrestrialNormalWm2: 1364,
+    });
     // pvlib-python test values (published copy) reproducing Ineichen & Perez 2002 — physics.md §6 [CS]
     expect(Math.abs(r.ghiWm2 - 1038.159219)).toBeLessThan(1e-6);
     expect(Math.abs(r.dniWm2 - 942.208186)).toBeLessThan(1e-6);
@@ -11,15 +17,28 @@ describe('Ineichen & Perez 2002 clear sky', () => {
   });
 
   it('with the exp(0.01·AM^1.8) enhancement factor', () => {
-    const r = clearSkyIneichenPerez({ apparentZenithDeg: 10, absoluteAirMass: 1, linkeTurbidity: 3, altitudeM: 0, extraterrestrialNormalWm2: 1364, perezEnhancement: true });
+    const r = clearSkyIneichenPerez({
+      apparentZenithDeg: 10,
+      absoluteAirMass: 1,
+      linkeTurbidity: 3,
+      altitudeM: 0,
+      extraterrestrialNormalWm2: 1364,
+      perezEnhancement: true,
+    });
     expect(Math.abs(r.ghiWm2 - 1048.592893)).toBeLessThan(1e-6); // physics.md §6 [CS]
     expect(Math.abs(r.dhiWm2 - 120.698967)).toBeLessThan(1e-6); // physics.md §6 [CS]
   });
 
   it('altitude raises the clear-sky irradiance and the sun below the horizon gives zero', () => {
     const args = { apparentZenithDeg: 30, absoluteAirMass: 1.15, linkeTurbidity: 3, extraterrestrialNormalWm2: 1361 };
-    expect(clearSkyIneichenPerez({ ...args, altitudeM: 2000 }).ghiWm2).toBeGreaterThan(clearSkyIneichenPerez({ ...args, altitudeM: 0 }).ghiWm2);
-    expect(clearSkyIneichenPerez({ ...args, apparentZenithDeg: 95, absoluteAirMass: Infinity, altitudeM: 0 })).toEqual({ ghiWm2: 0, dniWm2: 0, dhiWm2: 0 });
+    expect(clearSkyIneichenPerez({ ...args, altitudeM: 2000 }).ghiWm2).toBeGreaterThan(
+      clearSkyIneichenPerez({ ...args, altitudeM: 0 }).ghiWm2,
+    );
+    expect(clearSkyIneichenPerez({ ...args, apparentZenithDeg: 95, absoluteAirMass: Infinity, altitudeM: 0 })).toEqual({
+      ghiWm2: 0,
+      dniWm2: 0,
+      dhiWm2: 0,
+    });
   });
 });
 

@@ -19,7 +19,12 @@ describe('detector pairs and photodifferentials', () => {
   });
 
   it('detector normals: each detector δ from the panel, tilt pair n cos δ ± t sin δ, azimuth pair n cos δ ± u sin δ', () => {
-    for (const [tilt, az, d] of [[30, 200, 20], [5, 10, 8], [80, 355, 15], [0, 90, 20]] as const) {
+    for (const [tilt, az, d] of [
+      [30, 200, 20],
+      [5, 10, 8],
+      [80, 355, 15],
+      [0, 90, 20],
+    ] as const) {
       const n = detectorNormals(tilt, az, d);
       const { n: p, t, u } = motionAxes(tilt, az);
       const c = Math.cos(d * RAD);
@@ -62,7 +67,11 @@ describe('detector pairs and photodifferentials', () => {
   });
 
   it('a unit climbing its differentials reaches that optimum', () => {
-    const { points, converged } = ascentTrajectory(optimumSky, { tiltDeg: 70, azimuthDeg: 110 }, { detectorTiltDeg: 5, gainDegPerWm2: 0.5, deadbandWm2: 0.05 });
+    const { points, converged } = ascentTrajectory(
+      optimumSky,
+      { tiltDeg: 70, azimuthDeg: 110 },
+      { detectorTiltDeg: 5, gainDegPerWm2: 0.5, deadbandWm2: 0.05 },
+    );
     expect(converged).toBe(true);
     const end = points[points.length - 1]!;
     expect(Math.abs(end.tiltDeg - (90 - 62.307))).toBeLessThan(1);

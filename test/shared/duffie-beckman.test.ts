@@ -59,7 +59,13 @@ describe('Duffie & Beckman worked examples', () => {
     expect(Math.abs(theta - 36.97)).toBeLessThanOrEqual(0.05); // same: θ 36.97
     // hourly totals in kJ/m² used as proportional "W/m²": I = 1040, Id = 796, Ib = 244 (D&B Ex 2.15.1)
     const cosZ = Math.cos((s.zenithDeg * Math.PI) / 180);
-    const sky = buildSky({ sun: { azimuthDeg: s.azimuthDeg, elevationDeg: 90 - s.zenithDeg, dniWm2: 244 / cosZ }, dhiWm2: 796, ghiWm2: 1040, skyType: 'isotropic', albedo: 0.6 });
+    const sky = buildSky({
+      sun: { azimuthDeg: s.azimuthDeg, elevationDeg: 90 - s.zenithDeg, dniWm2: 244 / cosZ },
+      dhiWm2: 796,
+      ghiWm2: 1040,
+      skyType: 'isotropic',
+      albedo: 0.6,
+    });
     const fast = irradianceAt(sky, 60, 180);
     const brute = irradianceAt(sky, 60, 180, 'brute');
     expect(Math.abs(fast - 1170)).toBeLessThanOrEqual(10); // D&B Ex 2.15.1: 1.17 MJ/m² (0.418 + 0.597 + 0.156)

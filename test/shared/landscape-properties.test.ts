@@ -1,5 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { analyseLandscape, blurLandscape, buildSky, capRadiusForDetectorTiltDeg, computeLandscape, detectorReadings, type SkyInput } from '../../shared/landscape/index';
+import {
+  analyseLandscape,
+  blurLandscape,
+  buildSky,
+  capRadiusForDetectorTiltDeg,
+  computeLandscape,
+  detectorReadings,
+  type SkyInput,
+} from '../../shared/landscape/index';
 import { skyFromFile } from '../../shared/sky-file/index';
 import { analysePeaks, basinShares, gridGraph } from '../../shared/landscape/landscape-analysis';
 import { seededRandom } from './seeded-random';
@@ -28,7 +36,11 @@ function randomSky(rnd: () => number): SkyInput {
             elevationToDeg: 10 + rnd() * 40,
             reflectance: 0.1 + rnd() * 0.3,
           },
-        ].map((r) => ({ ...r, azimuthToDeg: (r.azimuthFromDeg + 20 + rnd() * 60) % 360, normalAzimuthDeg: (r.azimuthFromDeg + 180 + (rnd() - 0.5) * 40 + 360) % 360 }))
+        ].map((r) => ({
+          ...r,
+          azimuthToDeg: (r.azimuthFromDeg + 20 + rnd() * 60) % 360,
+          normalAzimuthDeg: (r.azimuthFromDeg + 180 + (rnd() - 0.5) * 40 + 360) % 360,
+        }))
       : [];
   return {
     sun: { azimuthDeg: rnd() * 360, elevationDeg: 5 + rnd() * 75, dniWm2: rnd() * 900 },
@@ -93,7 +105,8 @@ describe('blurred landscape (cap average matched to the detector box)', () => {
   });
 
   it('a larger δ never has more peaks than a smaller one (test skies)', () => {
-    for (const { name, counts } of peakCounts) for (let k = 1; k < counts.length; k++) expect(counts[k], name).toBeLessThanOrEqual(counts[k - 1]!);
+    for (const { name, counts } of peakCounts)
+      for (let k = 1; k < counts.length; k++) expect(counts[k], name).toBeLessThanOrEqual(counts[k - 1]!);
   });
 
   it('the test skies include traps: the facade sky has two peaks that merge, the lamp atrium keeps two', () => {
@@ -178,7 +191,17 @@ describe('degenerate skies never produce NaN', () => {
       {
         sun: { azimuthDeg: 10, elevationDeg: 40, dniWm2: 500 },
         dhiWm2: 100,
-        reflectors: [{ normalAzimuthDeg: 0, normalElevationDeg: 90, azimuthFromDeg: 0, azimuthToDeg: 0, elevationFromDeg: -90, elevationToDeg: 90, reflectance: 1 }],
+        reflectors: [
+          {
+            normalAzimuthDeg: 0,
+            normalElevationDeg: 90,
+            azimuthFromDeg: 0,
+            azimuthToDeg: 0,
+            elevationFromDeg: -90,
+            elevationToDeg: 90,
+            reflectance: 1,
+          },
+        ],
       },
     ];
     for (const f of files) {

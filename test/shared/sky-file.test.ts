@@ -9,11 +9,25 @@ describe('sky file validation (messages name the field and the allowed range)', 
   const bad: [unknown, RegExp][] = [
     [{ site: { ...site, latitudeDeg: 91 }, time }, /site\.latitudeDeg: must be in \[-90, 90\]/],
     [{ site, time: '2003-10-17T12:30:30' }, /time: must be an ISO 8601 instant with an offset/],
-    [{ sun: { azimuthDeg: 10, elevationDeg: 30, dniWm2: 100 }, skyType: 16 }, /skyType: must be "isotropic", "moon-spencer" or an integer .*1…15/],
+    [
+      { sun: { azimuthDeg: 10, elevationDeg: 30, dniWm2: 100 }, skyType: 16 },
+      /skyType: must be "isotropic", "moon-spencer" or an integer .*1…15/,
+    ],
     [{ skyType: 'cloudy' }, /skyType/],
-    [{ horizon: [[10, 5], [5, 5]] }, /horizon\[1\]\[0\]: must be sorted by azimuth/],
+    [
+      {
+        horizon: [
+          [10, 5],
+          [5, 5],
+        ],
+      },
+      /horizon\[1\]\[0\]: must be sorted by azimuth/,
+    ],
     [{ horizon: [[10, 95]] }, /horizon\[0\]\[1\]: must be in \[0, 90\]/],
-    [{ reflectors: [{ normalAzimuthDeg: 1, azimuthFromDeg: 0, azimuthToDeg: 5, elevationFromDeg: 0, elevationToDeg: 5, reflectance: 2 }] }, /reflectors\[0\]\.reflectance: must be in \[0, 1\]/],
+    [
+      { reflectors: [{ normalAzimuthDeg: 1, azimuthFromDeg: 0, azimuthToDeg: 5, elevationFromDeg: 0, elevationToDeg: 5, reflectance: 2 }] },
+      /reflectors\[0\]\.reflectance: must be in \[0, 1\]/,
+    ],
     [{ lamps: [{ azimuthDeg: 0, elevationDeg: 60 }] }, /lamps\[0\]\.irradianceWm2/],
     [{ albedo: -0.1 }, /albedo: must be in \[0, 1\]/],
     [{ ghiWm2: 100, dhiWm2: 200 }, /dhiWm2: must not exceed ghiWm2/],
@@ -59,7 +73,13 @@ describe('sky magnitudes from the sky file', () => {
     const r = skyFromFile({ sun: { azimuthDeg: 180, elevationDeg: 60 }, dhiWm2: 80, linkeTurbidity: 4 });
     const z = 30;
     const am = 1 / (Math.cos((z * Math.PI) / 180) + 0.50572 * Math.pow(96.07995 - z, -1.6364)); // Kasten & Young 1989
-    const clear = clearSkyIneichenPerez({ apparentZenithDeg: z, absoluteAirMass: am, linkeTurbidity: 4, altitudeM: 0, extraterrestrialNormalWm2: 1361 });
+    const clear = clearSkyIneichenPerez({
+      apparentZenithDeg: z,
+      absoluteAirMass: am,
+      linkeTurbidity: 4,
+      altitudeM: 0,
+      extraterrestrialNormalWm2: 1361,
+    });
     expect(r.input.sun!.dniWm2).toBeCloseTo(clear.dniWm2, 9);
     expect(r.input.dhiWm2).toBe(80);
   });

@@ -1,7 +1,14 @@
 import { describe, expect, it } from 'vitest';
 import { buildSky, computeLandscape, irradianceAt } from '../../shared/landscape/index';
 import { skyDomeIrradianceOnPlane } from '../../shared/sphere/plane-quadrature';
-import { cieRelativeLuminance, horizonElevationDeg, horizonMeanElevationDeg, horizonProfile, moonSpencerRelativeLuminance, sunDiscVisibleFraction } from '../../shared/sky-radiance/index';
+import {
+  cieRelativeLuminance,
+  horizonElevationDeg,
+  horizonMeanElevationDeg,
+  horizonProfile,
+  moonSpencerRelativeLuminance,
+  sunDiscVisibleFraction,
+} from '../../shared/sky-radiance/index';
 import type { Sky } from '../../shared/sky-radiance/sky';
 
 const RAD = Math.PI / 180;
@@ -36,8 +43,18 @@ describe('sky-dome integrals on tilted planes (physics.md §4 table, [SC] closed
     ['isotropic', buildSky({ sun: null, dhiWm2: 100, skyType: 'isotropic' }), [30, 60, 90].map((b) => (1 + Math.cos(b * RAD)) / 2), 1e-9],
     // Moon & Spencer 1942 traditional CIE overcast; E(90°)/Eh ≈ 39.6 % "vertical sky component"
     ['Moon–Spencer', buildSky({ sun: null, dhiWm2: 100, skyType: 'moon-spencer' }), [0.9032013, 0.6694273, 0.3961771], 1e-7],
-    ['CIE type 1, sun elevation 30°', buildSky({ sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: 0 }, dhiWm2: 100, skyType: 1 }), [0.898203, 0.655543, 0.379182], 1e-5],
-    ['CIE type 5 (uniform)', buildSky({ sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: 0 }, dhiWm2: 100, skyType: 5 }), [30, 60, 90].map((b) => (1 + Math.cos(b * RAD)) / 2), 1e-9],
+    [
+      'CIE type 1, sun elevation 30°',
+      buildSky({ sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: 0 }, dhiWm2: 100, skyType: 1 }),
+      [0.898203, 0.655543, 0.379182],
+      1e-5,
+    ],
+    [
+      'CIE type 5 (uniform)',
+      buildSky({ sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: 0 }, dhiWm2: 100, skyType: 5 }),
+      [30, 60, 90].map((b) => (1 + Math.cos(b * RAD)) / 2),
+      1e-9,
+    ],
   ];
   for (const [name, sky, values, tol] of table) {
     it(`${name}: E(β)/Eh at β = 30°, 60°, 90°`, () => {
@@ -55,7 +72,9 @@ describe('sky-dome integrals on tilted planes (physics.md §4 table, [SC] closed
     for (const method of ['fast', 'brute'] as const) {
       const eh = irradianceAt(sky, 0, 0, method);
       expect(Math.abs(eh - 200)).toBeLessThan(0.2); // scaled so the open dome gives DHI on the horizontal
-      [30, 60, 90].forEach((b, i) => expect(Math.abs(irradianceAt(sky, b, 123, method) / eh - [0.9032013, 0.6694273, 0.3961771][i]!)).toBeLessThan(2e-3));
+      [30, 60, 90].forEach((b, i) =>
+        expect(Math.abs(irradianceAt(sky, b, 123, method) / eh - [0.9032013, 0.6694273, 0.3961771][i]!)).toBeLessThan(2e-3),
+      );
     }
   });
   it('a clear CIE type 12 dome gives DHI on the horizontal plane (scaling)', () => {
@@ -67,22 +86,48 @@ describe('sky-dome integrals on tilted planes (physics.md §4 table, [SC] closed
 
 describe('horizon profile, sun disc, facades and lamps', () => {
   it('interpolates piecewise-linearly with wrap-around and vertical edges', () => {
-    const h = horizonProfile([[10, 20], [10, 40], [100, 40], [350, 0]]);
+    const h = horizonProfile([
+      [10, 20],
+      [10, 40],
+      [100, 40],
+      [350, 0],
+    ]);
     expect(horizonElevationDeg(h, 55)).toBeCloseTo(40, 12);
     expect(horizonElevationDeg(h, 5)).toBeCloseTo(15, 12); // between 350° (0) and 370° (20)
     expect(horizonElevationDeg(h, 225)).toBeCloseTo(20, 12);
     expect(horizonMeanElevationDeg(h, 10, 100)).toBeCloseTo(40, 12);
     expect(horizonMeanElevationDeg(h, 0, 10)).toBeCloseTo(15, 12); // 10 at 0°, 20 at 10°
-    expect(() => horizonProfile([[10, 5], [5, 5]])).toThrow(/horizon: points must be sorted by azimuth/);
+    expect(() =>
+      horizonProfile([
+        [10, 5],
+        [5, 5],
+      ]),
+    ).toThrow(/horizon: points must be sorted by azimuth/);
     expect(() => horizonProfile([[10, 95]])).toThrow(/horizon\[0\]\[1\]/);
   });
   it('sun disc occultation: half visible when its centre is on the edge', () => {
     expect(sunDiscVisibleFraction(0)).toBeCloseTo(0.5, 12);
     expect(sunDiscVisibleFraction(1)).toBe(1);
     expect(sunDiscVisibleFraction(-1)).toBe(0);
-    const onEdge = buildSky({ sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: 800 }, dhiWm2: 0, horizon: [[170, 30], [190, 30]], albedo: 0 });
+    const onEdge = buildSky({
+      sun: { azimuthDeg: 180, elevationDeg: 30, dniWm2: 800 },
+      dhiWm2: 0,
+      horizon: [
+        [170, 30],
+        [190, 30],
+      ],
+      albedo: 0,
+    });
     expect(onEdge.pointSources[0]!.irradianceWm2).toBeCloseTo(400, 9);
-    const behind = buildSky({ sun: { azimuthDeg: 180, elevationDeg: 20, dniWm2: 800 }, dhiWm2: 0, horizon: [[170, 30], [190, 30]], albedo: 0 });
+    const behind = buildSky({
+      sun: { azimuthDeg: 180, elevationDeg: 20, dniWm2: 800 },
+      dhiWm2: 0,
+      horizon: [
+        [170, 30],
+        [190, 30],
+      ],
+      albedo: 0,
+    });
     expect(behind.pointSources).toHaveLength(0);
     expect(irradianceAt(behind, 70, 180, 'brute')).toBe(0);
   });
@@ -92,7 +137,9 @@ describe('horizon profile, sun disc, facades and lamps', () => {
       sun: { azimuthDeg: 110, elevationDeg: 20, dniWm2: 700 },
       dhiWm2: 0,
       albedo: 0,
-      reflectors: [{ normalAzimuthDeg: 90, azimuthFromDeg: 230, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 40, reflectance: 0.35 }],
+      reflectors: [
+        { normalAzimuthDeg: 90, azimuthFromDeg: 230, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 40, reflectance: 0.35 },
+      ],
     });
     const image = sky.pointSources.find((p) => p.kind === 'sun-image')!;
     expect(image).toBeDefined();

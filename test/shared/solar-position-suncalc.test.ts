@@ -21,11 +21,27 @@ describe('SPA against suncalc over 1,000 seeded random instants and places', () 
       const lon = -180 + rnd() * 360;
       const sc = getPosition(new Date(unixMs), lat, lon);
       // P = 1010 hPa and T = 10 °C make SPA's refraction (eq. 42) the same Saemundsson/Meeus form suncalc uses
-      const s = spaSolarPosition({ unixMs, deltaTS: 69, latitudeDeg: lat, longitudeDeg: lon, elevationM: 0, pressureHpa: 1010, temperatureC: 10 });
+      const s = spaSolarPosition({
+        unixMs,
+        deltaTS: 69,
+        latitudeDeg: lat,
+        longitudeDeg: lon,
+        elevationM: 0,
+        pressureHpa: 1010,
+        temperatureC: 10,
+      });
       let sep: number;
       if (s.elevationDeg > 2) {
-        const a = [Math.sin(sc.azimuth * R) * Math.cos(sc.altitude * R), Math.cos(sc.azimuth * R) * Math.cos(sc.altitude * R), Math.sin(sc.altitude * R)];
-        const b = [Math.sin(s.azimuthDeg * R) * Math.cos(s.elevationDeg * R), Math.cos(s.azimuthDeg * R) * Math.cos(s.elevationDeg * R), Math.sin(s.elevationDeg * R)];
+        const a = [
+          Math.sin(sc.azimuth * R) * Math.cos(sc.altitude * R),
+          Math.cos(sc.azimuth * R) * Math.cos(sc.altitude * R),
+          Math.sin(sc.altitude * R),
+        ];
+        const b = [
+          Math.sin(s.azimuthDeg * R) * Math.cos(s.elevationDeg * R),
+          Math.cos(s.azimuthDeg * R) * Math.cos(s.elevationDeg * R),
+          Math.sin(s.elevationDeg * R),
+        ];
         sep = Math.acos(Math.min(1, a[0]! * b[0]! + a[1]! * b[1]! + a[2]! * b[2]!)) / R;
       } else if (s.elevationNoRefractionDeg < -1.5) {
         // below the horizon: geometric altitude and azimuth (refraction models differ near the horizon)

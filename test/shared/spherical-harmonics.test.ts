@@ -55,7 +55,13 @@ describe('projection on the sphere grid', () => {
     const order = 24;
     const vals = new Float64Array(grid.nRows * grid.nAzimuth);
     const basis = new Float64Array(shCount(order));
-    const picks: [number, number][] = [[0, 0], [3, -2], [7, 5], [24, 24], [24, -13]];
+    const picks: [number, number][] = [
+      [0, 0],
+      [3, -2],
+      [7, 5],
+      [24, 24],
+      [24, -13],
+    ];
     for (const [l, m] of picks) {
       for (let i = 0; i < grid.nRows; i++) {
         for (let j = 0; j < grid.nAzimuth; j++) {
@@ -88,7 +94,8 @@ describe('why sharp sources stay out of the harmonics', () => {
       const c = realShBasis(order, s);
       for (let l = 0; l <= order; l++) for (let m = -l; m <= l; m++) c[shIndex(l, m)] = c[shIndex(l, m)]! * clampedCosineCoefficient(l);
       let w = 0;
-      for (let t = 0; t <= 180; t += 0.25) w = Math.max(w, Math.abs(evaluateSh(order, c, normalFromTiltAzimuth(t, 0)) - Math.max(0, Math.cos((t * Math.PI) / 180))));
+      for (let t = 0; t <= 180; t += 0.25)
+        w = Math.max(w, Math.abs(evaluateSh(order, c, normalFromTiltAzimuth(t, 0)) - Math.max(0, Math.cos((t * Math.PI) / 180))));
       return w;
     };
     expect(Math.abs(worst(2) - 0.09375)).toBeLessThan(1e-9);
@@ -113,13 +120,14 @@ describe('order-2 basis with the printed constants', () => {
     expect(worst).toBeLessThan(1e-6);
     expect(worst).toBeGreaterThan(1e-8); // rounded constants, not the exact basis
   });
-  it('irradiance form: uniform radiance L = 1 gives E = π on every plane (Â0·4π·Y00² = π, to the constants\' rounding)', () => {
+  it("irradiance form: uniform radiance L = 1 gives E = π on every plane (Â0·4π·Y00² = π, to the constants' rounding)", () => {
     const c = new Float64Array(9);
     c[0] = 4 * Math.PI * 0.282095; // ∫ 1·Y00 dω with the printed Y00
     const f = order2IrradianceForm(c);
     for (const b of [0, 45, 90, 135, 180]) {
       const [x, y, z] = normalFromTiltAzimuth(b, 70);
-      const e = f.k0 + f.kx * x + f.ky * y + f.kz * z + f.kxy * x * y + f.kyz * y * z + f.kxz * x * z + f.kzz * z * z + f.kxx * (x * x - y * y);
+      const e =
+        f.k0 + f.kx * x + f.ky * y + f.kz * z + f.kxy * x * y + f.kyz * y * z + f.kxz * x * z + f.kzz * z * z + f.kxx * (x * x - y * y);
       expect(Math.abs(e - Math.PI)).toBeLessThan(5e-6);
     }
   });

@@ -7,7 +7,9 @@ export const testSkies: Record<string, SkyInput> = {
     dhiWm2: 100,
     skyType: 12,
     albedo: 0.2,
-    reflectors: [{ normalAzimuthDeg: 90, azimuthFromDeg: 230, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 40, reflectance: 0.35 }],
+    reflectors: [
+      { normalAzimuthDeg: 90, azimuthFromDeg: 230, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 40, reflectance: 0.35 },
+    ],
   },
   'two facades, turbid sky': {
     sun: { azimuthDeg: 150, elevationDeg: 25, dniWm2: 800 },
@@ -24,7 +26,17 @@ export const testSkies: Record<string, SkyInput> = {
     dhiWm2: 150,
     skyType: 11,
     albedo: 0.25,
-    horizon: [[0, 10], [60, 10], [60, 45], [150, 45], [150, 5], [200, 5], [200, 40], [300, 40], [300, 12]],
+    horizon: [
+      [0, 10],
+      [60, 10],
+      [60, 45],
+      [150, 45],
+      [150, 5],
+      [200, 5],
+      [200, 40],
+      [300, 40],
+      [300, 12],
+    ],
   },
   'CIE overcast': { sun: { azimuthDeg: 200, elevationDeg: 25, dniWm2: 0 }, dhiWm2: 150, skyType: 1, albedo: 0.2 },
   'atrium with two opposite lamps': {

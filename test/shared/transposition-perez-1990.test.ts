@@ -28,6 +28,16 @@ describe('Perez 1990 sky-diffuse transposition', () => {
     expect(Math.abs(118.45831879 * ((1 + Math.cos((40 * Math.PI) / 180)) / 2) - 104.6013)).toBeLessThan(1e-4);
   });
   it('no diffuse, no sky diffuse', () => {
-    expect(perezSkyDiffuse({ tiltDeg: 30, incidenceDeg: 10, zenithDeg: 20, dhiWm2: 0, dniWm2: 800, extraterrestrialNormalWm2: 1361, relativeAirMass: 1.06 }).skyDiffuseWm2).toBe(0);
+    expect(
+      perezSkyDiffuse({
+        tiltDeg: 30,
+        incidenceDeg: 10,
+        zenithDeg: 20,
+        dhiWm2: 0,
+        dniWm2: 800,
+        extraterrestrialNormalWm2: 1361,
+        relativeAirMass: 1.06,
+      }).skyDiffuseWm2,
+    ).toBe(0);
   });
 });

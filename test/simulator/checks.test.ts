@@ -13,7 +13,14 @@ const DAY = '2026-04-20';
 
 function dayRun(scenario: string, site = QED, tilts = [20]) {
   const fleet = createFleet(
-    { sites: [{ site, scenario, units: tilts.map((d) => ({ serial: `CHK-${d}`, siteCode: site.code, controller: { detectorTiltDeg: d } })) }], startUnixMs: Date.parse(`${DAY}T02:00:00Z`), skyRefreshS: 120, maxStepS: 2 },
+    {
+      sites: [
+        { site, scenario, units: tilts.map((d) => ({ serial: `CHK-${d}`, siteCode: site.code, controller: { detectorTiltDeg: d } })) },
+      ],
+      startUnixMs: Date.parse(`${DAY}T02:00:00Z`),
+      skyRefreshS: 120,
+      maxStepS: 2,
+    },
     { rng: createRng('checks') },
   );
   fleet.step(20 * 3600);
@@ -32,7 +39,17 @@ describe('facts of the trade (common practice)', () => {
     expect(ePointed).toBeLessThan(eh);
     expect(ePointed / eh).toBeCloseTo(0.719, 2);
     // And over a whole overcast day the horizontal orientation beats the sun-following twin.
-    const fleet = createFleet({ sites: [{ site: QED, scenario: 'overcast', units: [{ serial: 'FLAT-1', siteCode: 'QED', start: { tiltDeg: 0, azimuthDeg: 180 } }] }], startUnixMs: Date.parse(`${DAY}T02:00:00Z`), skyRefreshS: 300, maxStepS: 10 }, { rng: createRng(2) });
+    const fleet = createFleet(
+      {
+        sites: [
+          { site: QED, scenario: 'overcast', units: [{ serial: 'FLAT-1', siteCode: 'QED', start: { tiltDeg: 0, azimuthDeg: 180 } }] },
+        ],
+        startUnixMs: Date.parse(`${DAY}T02:00:00Z`),
+        skyRefreshS: 300,
+        maxStepS: 10,
+      },
+      { rng: createRng(2) },
+    );
     fleet.unit('FLAT-1')!.handleCommand({ v: 1, commandId: 'h', ts: `${DAY}T02:00:00Z`, kind: 'hold' }, fleet.now());
     fleet.step(20 * 3600);
     const b = fleet.baselines()[0]!;
@@ -66,7 +83,19 @@ describe('facts of the trade (common practice)', () => {
     expect(weak.wm2).toBeLessThan(0.9 * report.globalMax.wm2);
     const fleet = createFleet(
       {
-        sites: [{ site: QHL, scenario: 'glass-facade', world, units: [minTilt - 5, minTilt + 10].map((d, i) => ({ serial: `TRAP-${i}`, siteCode: 'QHL', controller: { detectorTiltDeg: d }, start: { tiltDeg: weak.tiltDeg, azimuthDeg: weak.azimuthDeg } })) }],
+        sites: [
+          {
+            site: QHL,
+            scenario: 'glass-facade',
+            world,
+            units: [minTilt - 5, minTilt + 10].map((d, i) => ({
+              serial: `TRAP-${i}`,
+              siteCode: 'QHL',
+              controller: { detectorTiltDeg: d },
+              start: { tiltDeg: weak.tiltDeg, azimuthDeg: weak.azimuthDeg },
+            })),
+          },
+        ],
         startUnixMs: at,
       },
       { rng: createRng(3) },

@@ -11,11 +11,23 @@ import { commandRefusal } from '../../simulator/unit-commands';
 
 const QED = demoSiteInfo('QED');
 const T0 = Date.parse('2026-04-20T09:00:00Z');
-const cmd = (kind: string, id: string, extra: object = {}) => ({ v: 1 as const, commandId: id, ts: '2026-04-20T09:00:00Z', kind: kind as 'scan', ...extra });
+const cmd = (kind: string, id: string, extra: object = {}) => ({
+  v: 1 as const,
+  commandId: id,
+  ts: '2026-04-20T09:00:00Z',
+  kind: kind as 'scan',
+  ...extra,
+});
 
 function oneUnit(scenario = 'clear-day', start = { tiltDeg: 0, azimuthDeg: 180 }) {
   const world = frozenWorld(createScenarioWorld(scenario, QED, createRng(1)), T0);
-  return createFleet({ sites: [{ site: QED, scenario, world, units: [{ serial: 'U-0001', siteCode: 'QED', start, weatherStation: true }] }], startUnixMs: T0 }, { rng: createRng(7) });
+  return createFleet(
+    {
+      sites: [{ site: QED, scenario, world, units: [{ serial: 'U-0001', siteCode: 'QED', start, weatherStation: true }] }],
+      startUnixMs: T0,
+    },
+    { rng: createRng(7) },
+  );
 }
 
 describe('virtual unit', () => {
@@ -32,7 +44,10 @@ describe('virtual unit', () => {
   it('its trap truth measures it against the best its own axes reach: a unit limited to tilt 0…20° is not trapped at 20° under a high sun', () => {
     const world = frozenWorld(createScenarioWorld('clear-day', QED, createRng(1)), T0);
     const tilt = { minDeg: 0, maxDeg: 20, speedDegS: 4, backlashDeg: 0.3 };
-    const fleet = createFleet({ sites: [{ site: QED, scenario: 'clear-day', world, units: [{ serial: 'U-0002', siteCode: 'QED', tilt }] }], startUnixMs: T0 }, { rng: createRng(7) });
+    const fleet = createFleet(
+      { sites: [{ site: QED, scenario: 'clear-day', world, units: [{ serial: 'U-0002', siteCode: 'QED', tilt }] }], startUnixMs: T0 },
+      { rng: createRng(7) },
+    );
     fleet.step(1800);
     const u = fleet.unit('U-0002')!;
     const field = fleet.conditions('QED')!.field;
@@ -62,14 +77,20 @@ describe('virtual unit', () => {
     fleet.command('U-0001', cmd('goto', 'c2', { tiltDeg: 40, azimuthDeg: 100 }));
     fleet.command('U-0001', cmd('scan', 'c3'));
     const before = fleet.unit('U-0001')!.tilt.encoderDeg;
-    const acks = fleet.step(60).filter((m) => m.leaf === 'acks').map((m) => m.payload as { commandId: string; result: string; reason?: string });
+    const acks = fleet
+      .step(60)
+      .filter((m) => m.leaf === 'acks')
+      .map((m) => m.payload as { commandId: string; result: string; reason?: string });
     expect(acks.map((a) => `${a.commandId}:${a.result}`)).toEqual(['c1:accepted', 'c1:done', 'c2:rejected', 'c3:rejected']);
     expect(acks[2]!.reason).toMatch(/hold/);
     expect(fleet.unit('U-0001')!.mode).toBe('held');
     expect(fleet.unit('U-0001')!.tilt.encoderDeg).toBe(before);
     fleet.command('U-0001', cmd('release-hold', 'c4'));
     fleet.command('U-0001', cmd('goto', 'c5', { tiltDeg: 40, azimuthDeg: 100 }));
-    const after = fleet.step(60).filter((m) => m.leaf === 'acks').map((m) => `${(m.payload as { commandId: string }).commandId}:${(m.payload as { result: string }).result}`);
+    const after = fleet
+      .step(60)
+      .filter((m) => m.leaf === 'acks')
+      .map((m) => `${(m.payload as { commandId: string }).commandId}:${(m.payload as { result: string }).result}`);
     expect(after).toEqual(['c4:accepted', 'c4:done', 'c5:accepted', 'c5:done']);
     expect(Math.abs(fleet.unit('U-0001')!.tilt.encoderDeg - before)).toBeGreaterThan(5); // it went, then climbed on from there
   });
@@ -87,7 +108,10 @@ describe('virtual unit', () => {
   });
 
   it('stows itself in gusts above the stow limit and reports it', () => {
-    const fleet = createFleet({ sites: [{ site: QED, scenario: 'gusty', units: [{ serial: 'G-1', siteCode: 'QED' }] }], startUnixMs: T0 }, { rng: createRng(4) });
+    const fleet = createFleet(
+      { sites: [{ site: QED, scenario: 'gusty', units: [{ serial: 'G-1', siteCode: 'QED' }] }], startUnixMs: T0 },
+      { rng: createRng(4) },
+    );
     const msgs = fleet.step(6 * 3600);
     const stow = msgs.find((m) => m.leaf === 'events' && (m.payload as { code?: string }).code === 'wind-stow');
     expect(stow).toBeDefined();
@@ -110,7 +134,10 @@ describe('faults and ground truth', () => {
   });
 
   it('a fault plan draws faults at the given rates', () => {
-    const fleet = createFleet({ sites: demoFleetSites(), startUnixMs: T0, faults: parseFaultPlan('comms-loss=6,drift=3'), skyRefreshS: 600, maxStepS: 5 }, { rng: createRng(9) });
+    const fleet = createFleet(
+      { sites: demoFleetSites(), startUnixMs: T0, faults: parseFaultPlan('comms-loss=6,drift=3'), skyRefreshS: 600, maxStepS: 5 },
+      { rng: createRng(9) },
+    );
     fleet.step(4 * 3600);
     const kinds = new Set(fleet.truth().map((r) => r.fault));
     expect(kinds.has('comms-loss')).toBe(true);
@@ -118,16 +145,23 @@ describe('faults and ground truth', () => {
   });
 
   it('unknown scenario and fault names give the list of valid ones', () => {
-    expect(() => parseFaultPlan('stall=1,wobble=2')).toThrow(/unknown fault "wobble"; valid faults: trap, stall, slip, drift, dead-detector, hunting, comms-loss, soiling, stuck-mode/);
+    expect(() => parseFaultPlan('stall=1,wobble=2')).toThrow(
+      /unknown fault "wobble"; valid faults: trap, stall, slip, drift, dead-detector, hunting, comms-loss, soiling, stuck-mode/,
+    );
     expect(() => createScenarioWorld('fog', QED, createRng(1))).toThrow(UnknownNameError);
-    expect(() => parseOptions(['--scenario', 'fog'])).toThrow(/valid scenarios: clear-day, overcast, broken-cloud, urban-canyon, glass-facade, atrium-lamps, gusty/);
+    expect(() => parseOptions(['--scenario', 'fog'])).toThrow(
+      /valid scenarios: clear-day, overcast, broken-cloud, urban-canyon, glass-facade, atrium-lamps, gusty/,
+    );
   });
 });
 
 describe('determinism and buffering', () => {
   it('the same seed gives the same run; another seed a different one', () => {
     const run = (seed: number) => {
-      const f = createFleet({ sites: demoFleetSites(), startUnixMs: T0, faults: { hunting: 4, 'dead-detector': 4 }, skyRefreshS: 300 }, { rng: createRng(seed) });
+      const f = createFleet(
+        { sites: demoFleetSites(), startUnixMs: T0, faults: { hunting: 4, 'dead-detector': 4 }, skyRefreshS: 300 },
+        { rng: createRng(seed) },
+      );
       return JSON.stringify([f.step(900), f.truth()]);
     };
     expect(run(5)).toBe(run(5));
@@ -139,7 +173,10 @@ describe('determinism and buffering', () => {
     fleet.setTransport('U-0001', false);
     expect(fleet.step(60)).toHaveLength(0);
     fleet.setTransport('U-0001', true);
-    const tel = fleet.step(5).filter((m) => m.leaf === 'telemetry').map((m) => m.payload as { seq: number; ts: string });
+    const tel = fleet
+      .step(5)
+      .filter((m) => m.leaf === 'telemetry')
+      .map((m) => m.payload as { seq: number; ts: string });
     expect(tel.map((t) => t.seq)).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12]);
     expect(tel[0]!.ts).toBe('2026-04-20T09:00:01Z');
   });
@@ -153,8 +190,21 @@ describe('determinism and buffering', () => {
 });
 
 describe('command preconditions', () => {
-  const axes = { tiltSpec: { minDeg: 0, maxDeg: 85, speedDegS: 4, backlashDeg: 0.3 }, azimuthSpec: { minDeg: 0, maxDeg: 360, speedDegS: 4, backlashDeg: 0.4 } };
-  const ready = { held: false, faultCode: null, manualStow: false, windStow: false, stuckStowed: false, stowGustMs: 18, tiltEncoderDeg: 30, azimuthEncoderDeg: 180, ...axes };
+  const axes = {
+    tiltSpec: { minDeg: 0, maxDeg: 85, speedDegS: 4, backlashDeg: 0.3 },
+    azimuthSpec: { minDeg: 0, maxDeg: 360, speedDegS: 4, backlashDeg: 0.4 },
+  };
+  const ready = {
+    held: false,
+    faultCode: null,
+    manualStow: false,
+    windStow: false,
+    stuckStowed: false,
+    stowGustMs: 18,
+    tiltEncoderDeg: 30,
+    azimuthEncoderDeg: 180,
+    ...axes,
+  };
   it('refuse motion on hold or in fault, goto outside the travel or while stowed, release-stow in a gust, an empty configure', () => {
     expect(commandRefusal(cmd('goto', 'a', { tiltDeg: 10 }), ready)).toBeNull();
     expect(commandRefusal(cmd('scan', 'b'), { ...ready, held: true })).toBe('unit is on maintenance hold');
@@ -162,7 +212,9 @@ describe('command preconditions', () => {
     expect(commandRefusal(cmd('stow', 'd'), { ...ready, faultCode: 'actuator-stall' })).toBe('unit is in fault: actuator-stall');
     expect(commandRefusal(cmd('goto', 'e', { tiltDeg: 88 }), ready)).toBe('tiltDeg outside 0…85');
     expect(commandRefusal(cmd('goto', 'f'), ready)).toBe('goto needs tiltDeg and/or azimuthDeg');
-    expect(commandRefusal(cmd('goto', 'g', { azimuthDeg: 90 }), { ...ready, windStow: true })).toBe('unit is stowed; release the stow first');
+    expect(commandRefusal(cmd('goto', 'g', { azimuthDeg: 90 }), { ...ready, windStow: true })).toBe(
+      'unit is stowed; release the stow first',
+    );
     expect(commandRefusal(cmd('release-stow', 'h'), { ...ready, windStow: true })).toBe('gusts above the stow limit (18 m/s)');
     expect(commandRefusal(cmd('configure', 'i', { config: {} }), ready)).toBe('configure needs a config');
   });

@@ -25,9 +25,25 @@ class FakeSocket {
 }
 
 const alarm = (over: Partial<AlarmView>): AlarmView => ({
-  id: 1, kind: 'stall', severity: 'P3', state: 'active', unitId: 7, serial: 'QHL-2407', siteId: 1, siteName: 'Harbour Roof', message: 'Tilt drive stalled.',
-  advice: 'Check the drive.', evidence: {}, firstSeenAt: '2026-06-21T09:00:00Z', raisedAt: '2026-06-21T09:10:00Z', lastSeenAt: '2026-06-21T10:00:00Z',
-  clearedAt: null, clearReason: null, acknowledgedAt: null, acknowledgedBy: null, ...over,
+  id: 1,
+  kind: 'stall',
+  severity: 'P3',
+  state: 'active',
+  unitId: 7,
+  serial: 'QHL-2407',
+  siteId: 1,
+  siteName: 'Harbour Roof',
+  message: 'Tilt drive stalled.',
+  advice: 'Check the drive.',
+  evidence: {},
+  firstSeenAt: '2026-06-21T09:00:00Z',
+  raisedAt: '2026-06-21T09:10:00Z',
+  lastSeenAt: '2026-06-21T10:00:00Z',
+  clearedAt: null,
+  clearReason: null,
+  acknowledgedAt: null,
+  acknowledgedBy: null,
+  ...over,
 });
 
 let current: HttpTestingController | null = null;
@@ -35,7 +51,9 @@ let current: HttpTestingController | null = null;
 async function render(role: Role, alarms: AlarmView[]) {
   TestBed.configureTestingModule({
     providers: [
-      provideHttpClient(), provideHttpClientTesting(), provideRouter([]),
+      provideHttpClient(),
+      provideHttpClientTesting(),
+      provideRouter([]),
       { provide: LIVE_SOCKET_FACTORY, useValue: () => new FakeSocket() as unknown as WebSocket },
     ],
   });
@@ -71,7 +89,9 @@ describe('AlarmBoard', () => {
     expect(el.querySelector('[data-testid="count-P1"]')!.textContent).toContain('1');
     // 09:00 UTC is 10:00 in London in June.
     expect(el.querySelector('[data-testid="alarm-1"] .facts dd')!.textContent).toContain('10:00');
-    expect(el.querySelector('[data-testid="alarm-traces-1"]')!.getAttribute('href')).toContain('/traces?units=7&from=2026-06-21T08:30:00.000Z');
+    expect(el.querySelector('[data-testid="alarm-traces-1"]')!.getAttribute('href')).toContain(
+      '/traces?units=7&from=2026-06-21T08:30:00.000Z',
+    );
   });
 
   it('lets a technician acknowledge: posts, then shows who acknowledged and hides the button', async () => {
@@ -103,7 +123,19 @@ describe('AlarmBoard', () => {
     const { fixture, titles } = await render('engineer', [alarm({ id: 1 })]);
     FakeSocket.last!.push({ type: 'alarm', alarm: alarm({ id: 9, severity: 'P2', kind: 'hunting' }) });
     FakeSocket.last!.push({ type: 'alarm', alarm: alarm({ id: 1, state: 'cleared', clearedAt: '2026-06-21T10:30:00Z' }) });
-    FakeSocket.last!.push({ type: 'alarm', alarm: { kind: 'wind-stow', severity: 'P4', state: 'event', serial: 'S', siteId: 1, at: '2026-06-21T10:00:00Z', event: 'stowed', message: 'm' } });
+    FakeSocket.last!.push({
+      type: 'alarm',
+      alarm: {
+        kind: 'wind-stow',
+        severity: 'P4',
+        state: 'event',
+        serial: 'S',
+        siteId: 1,
+        at: '2026-06-21T10:00:00Z',
+        event: 'stowed',
+        message: 'm',
+      },
+    });
     await fixture.whenStable();
     expect(titles()).toEqual(['Hunting']);
   });
@@ -112,7 +144,9 @@ describe('AlarmBoard', () => {
     const { fixture, http, el } = await render('technician', []);
     expect(el.querySelector('[data-testid="alarms-empty"]')!.textContent).toContain('No open alarms.');
     fixture.componentInstance['setState']('cleared');
-    http.expectOne((r) => r.url === '/api/alarms' && r.params.get('state') === 'cleared').flush({ error: { message: 'Database unavailable.' } }, { status: 503, statusText: 'x' });
+    http
+      .expectOne((r) => r.url === '/api/alarms' && r.params.get('state') === 'cleared')
+      .flush({ error: { message: 'Database unavailable.' } }, { status: 503, statusText: 'x' });
     await fixture.whenStable();
     expect(el.querySelector('[role="alert"]')!.textContent).toContain('Alarms could not be loaded.');
   });

@@ -52,7 +52,8 @@ export class AlarmBoard {
   );
   protected readonly counts = computed(() => {
     const c: Record<string, number> = {};
-    for (const a of filterAlarms(this.alarms(), { siteId: this.siteFilter(), kind: null, state: 'open' })) c[a.severity] = (c[a.severity] ?? 0) + 1;
+    for (const a of filterAlarms(this.alarms(), { siteId: this.siteFilter(), kind: null, state: 'open' }))
+      c[a.severity] = (c[a.severity] ?? 0) + 1;
     return ALARM_SEVERITIES.map((code) => ({ look: severityLook(code), count: c[code] ?? 0 }));
   });
   protected readonly kinds = computed(() => [...new Set<string>([...ALARM_KINDS, ...this.alarms().map((a) => a.kind)])]);
@@ -86,7 +87,12 @@ export class AlarmBoard {
     this.loading.set(true);
     this.problem.set(null);
     const s = this.stateFilter();
-    const filter = s === 'open' || s === 'unacknowledged' ? { state: 'active' as const, limit: 1000 } : s === 'cleared' ? { state: 'cleared' as const, limit: 500 } : { limit: 1000 };
+    const filter =
+      s === 'open' || s === 'unacknowledged'
+        ? { state: 'active' as const, limit: 1000 }
+        : s === 'cleared'
+          ? { state: 'cleared' as const, limit: 500 }
+          : { limit: 1000 };
     this.api.list(filter).subscribe((r) => {
       this.loading.set(false);
       if (r.available) this.alarms.set(r.alarms);

@@ -14,9 +14,17 @@ import { siteTime, utcTime } from '../live/unit-status';
   template: `
     @let a = alarm();
     @let sev = look();
-    <article class="card" [class.cleared]="a.state === 'cleared'" [attr.aria-labelledby]="'alarm-' + a.id + '-title'" [attr.data-testid]="'alarm-' + a.id">
+    <article
+      class="card"
+      [class.cleared]="a.state === 'cleared'"
+      [attr.aria-labelledby]="'alarm-' + a.id + '-title'"
+      [attr.data-testid]="'alarm-' + a.id"
+    >
       <header>
-        <span [class]="'sev ' + sev.cssClass" [attr.data-testid]="'alarm-sev-' + a.id"><mat-icon aria-hidden="true">{{ sev.icon }}</mat-icon>{{ sev.code }} {{ sev.label }}</span>
+        <span [class]="'sev ' + sev.cssClass" [attr.data-testid]="'alarm-sev-' + a.id"
+          ><mat-icon aria-hidden="true">{{ sev.icon }}</mat-icon
+          >{{ sev.code }} {{ sev.label }}</span
+        >
         <h3 [id]="'alarm-' + a.id + '-title'">{{ kindLabel() }}</h3>
         @if (showSubject()) {
           <span class="subject">
@@ -35,7 +43,8 @@ import { siteTime, utcTime } from '../live/unit-status';
             <mat-icon aria-hidden="true">notifications_active</mat-icon>Open
           }
           @if (a.acknowledgedAt) {
-            · <mat-icon aria-hidden="true">done_all</mat-icon><span [matTooltip]="utc(a.acknowledgedAt)">Acknowledged{{ a.acknowledgedBy ? ' by ' + a.acknowledgedBy : '' }}</span>
+            · <mat-icon aria-hidden="true">done_all</mat-icon
+            ><span [matTooltip]="utc(a.acknowledgedAt)">Acknowledged{{ a.acknowledgedBy ? ' by ' + a.acknowledgedBy : '' }}</span>
           } @else {
             · <mat-icon aria-hidden="true">mark_email_unread</mat-icon>Not acknowledged
           }
@@ -43,16 +52,30 @@ import { siteTime, utcTime } from '../live/unit-status';
       </header>
       <p class="message">{{ a.message }}</p>
       @if (a.advice) {
-        <p class="advice"><mat-icon aria-hidden="true">lightbulb</mat-icon><span><strong>What to do:</strong> {{ a.advice }}</span></p>
+        <p class="advice">
+          <mat-icon aria-hidden="true">lightbulb</mat-icon><span><strong>What to do:</strong> {{ a.advice }}</span>
+        </p>
       }
       <dl class="facts">
-        <div><dt>First seen</dt><dd [matTooltip]="utc(a.firstSeenAt)">{{ local(a.firstSeenAt) }}</dd></div>
-        <div><dt>Last seen</dt><dd [matTooltip]="utc(a.lastSeenAt)">{{ local(a.lastSeenAt) }}</dd></div>
+        <div>
+          <dt>First seen</dt>
+          <dd [matTooltip]="utc(a.firstSeenAt)">{{ local(a.firstSeenAt) }}</dd>
+        </div>
+        <div>
+          <dt>Last seen</dt>
+          <dd [matTooltip]="utc(a.lastSeenAt)">{{ local(a.lastSeenAt) }}</dd>
+        </div>
         @if (a.clearedAt) {
-          <div><dt>Cleared</dt><dd [matTooltip]="utc(a.clearedAt)">{{ local(a.clearedAt) }}{{ a.clearReason ? ' — ' + a.clearReason : '' }}</dd></div>
+          <div>
+            <dt>Cleared</dt>
+            <dd [matTooltip]="utc(a.clearedAt)">{{ local(a.clearedAt) }}{{ a.clearReason ? ' — ' + a.clearReason : '' }}</dd>
+          </div>
         }
         @for (f of evidence(); track f.label) {
-          <div><dt>{{ f.label }}</dt><dd>{{ f.value }}</dd></div>
+          <div>
+            <dt>{{ f.label }}</dt>
+            <dd>{{ f.value }}</dd>
+          </div>
         }
       </dl>
       <div class="actions">
@@ -65,24 +88,82 @@ import { siteTime, utcTime } from '../live/unit-status';
           <a mat-button [routerLink]="['/units', a.unitId]"><mat-icon>solar_power</mat-icon>Open unit</a>
         }
         @if (traceLinks() && trace(); as q) {
-          <a mat-button routerLink="/traces" [queryParams]="q" [attr.data-testid]="'alarm-traces-' + a.id"><mat-icon>query_stats</mat-icon>Traces at this time</a>
+          <a mat-button routerLink="/traces" [queryParams]="q" [attr.data-testid]="'alarm-traces-' + a.id"
+            ><mat-icon>query_stats</mat-icon>Traces at this time</a
+          >
         }
       </div>
     </article>
   `,
   styles: `
-    .card { border: 1px solid var(--mat-sys-outline-variant); border-radius: 12px; padding: 12px 16px; background: var(--mat-sys-surface-container-lowest); }
-    .card.cleared { opacity: 0.85; border-style: dashed; }
-    header { display: flex; flex-wrap: wrap; align-items: center; gap: 6px 12px; }
-    h3 { margin: 0; font: var(--mat-sys-title-medium); }
-    .subject a { font-weight: 600; }
-    .status { display: inline-flex; align-items: center; gap: 4px; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-small);
-      mat-icon { font-size: 16px; width: 16px; height: 16px; } }
-    .message { margin: 8px 0 4px; }
-    .advice { display: flex; gap: 6px; margin: 4px 0; color: var(--mat-sys-on-surface-variant); mat-icon { flex: none; font-size: 18px; width: 18px; height: 18px; } }
-    .facts { display: grid; grid-template-columns: repeat(auto-fill, minmax(180px, 1fr)); gap: 4px 16px; margin: 8px 0;
-      dt { font: var(--mat-sys-label-small); color: var(--mat-sys-on-surface-variant); } dd { margin: 0; } }
-    .actions { display: flex; flex-wrap: wrap; gap: 8px; }
+    .card {
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: 12px;
+      padding: 12px 16px;
+      background: var(--mat-sys-surface-container-lowest);
+    }
+    .card.cleared {
+      opacity: 0.85;
+      border-style: dashed;
+    }
+    header {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 6px 12px;
+    }
+    h3 {
+      margin: 0;
+      font: var(--mat-sys-title-medium);
+    }
+    .subject a {
+      font-weight: 600;
+    }
+    .status {
+      display: inline-flex;
+      align-items: center;
+      gap: 4px;
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-body-small);
+      mat-icon {
+        font-size: 16px;
+        width: 16px;
+        height: 16px;
+      }
+    }
+    .message {
+      margin: 8px 0 4px;
+    }
+    .advice {
+      display: flex;
+      gap: 6px;
+      margin: 4px 0;
+      color: var(--mat-sys-on-surface-variant);
+      mat-icon {
+        flex: none;
+        font-size: 18px;
+        width: 18px;
+        height: 18px;
+      }
+    }
+    .facts {
+      display: grid;
+      grid-template-columns: repeat(auto-fill, minmax(180px, 1fr));
+      gap: 4px 16px;
+      margin: 8px 0;
+      dt {
+        font: var(--mat-sys-label-small);
+        color: var(--mat-sys-on-surface-variant);
+      }
+      dd {
+        margin: 0;
+      }
+    }
+    .actions {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px;
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })

@@ -77,17 +77,25 @@ describe('ChangePassword', () => {
     expect(request.request.body).toEqual({ currentPassword: 'brightward-demo', newPassword: 'a much better password' });
     request.flush(null, { status: 204, statusText: 'No Content' });
     await fixture.whenStable();
-    expect(page.querySelector('[data-testid="password-changed"]')!.textContent).toContain('Other devices signed in as you have been signed out');
+    expect(page.querySelector('[data-testid="password-changed"]')!.textContent).toContain(
+      'Other devices signed in as you have been signed out',
+    );
     expect(input('newPassword').value).toBe('');
     expect(errors()).toEqual([]);
     expect(button().disabled).toBe(false);
   });
 
-  it('puts the server\'s message under the current password when it is wrong', async () => {
+  it("puts the server's message under the current password when it is wrong", async () => {
     await fill('not-it-at-all', 'a much better password');
     await submit();
     http.expectOne('/api/me/password').flush(
-      { error: { code: 'validation_failed', message: 'The current password is not right.', fields: { currentPassword: 'That is not your current password.' } } },
+      {
+        error: {
+          code: 'validation_failed',
+          message: 'The current password is not right.',
+          fields: { currentPassword: 'That is not your current password.' },
+        },
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await fixture.whenStable();
@@ -99,7 +107,9 @@ describe('ChangePassword', () => {
   it('asks the user to wait after too many wrong current passwords', async () => {
     await fill('not-it-at-all', 'a much better password');
     await submit();
-    http.expectOne('/api/me/password').flush({ error: { code: 'too_many_attempts', message: 'Slow down.' } }, { status: 429, statusText: 'Too Many Requests' });
+    http
+      .expectOne('/api/me/password')
+      .flush({ error: { code: 'too_many_attempts', message: 'Slow down.' } }, { status: 429, statusText: 'Too Many Requests' });
     await fixture.whenStable();
     expect(problem()).toBe('Too many wrong current passwords. Wait a minute, then try again.');
   });

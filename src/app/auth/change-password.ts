@@ -43,7 +43,9 @@ export class ChangePassword {
 
   constructor() {
     // Typing a new password again re-checks the repeat field.
-    this.form.controls.newPassword.valueChanges.subscribe(() => this.form.controls.repeatPassword.updateValueAndValidity({ emitEvent: false }));
+    this.form.controls.newPassword.valueChanges.subscribe(() =>
+      this.form.controls.repeatPassword.updateValueAndValidity({ emitEvent: false }),
+    );
   }
 
   protected save(): void {
@@ -67,7 +69,9 @@ export class ChangePassword {
         this.saving.set(false);
         const problem = toApiProblem(error);
         this.problem.set(
-          problem.code === 'too_many_attempts' ? 'Too many wrong current passwords. Wait a minute, then try again.' : applyServerErrors(this.form, error),
+          problem.code === 'too_many_attempts'
+            ? 'Too many wrong current passwords. Wait a minute, then try again.'
+            : applyServerErrors(this.form, error),
         );
       },
     });

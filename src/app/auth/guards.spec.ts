@@ -94,7 +94,9 @@ describe('route guards', () => {
 
   it('returns to sign-in when the session ends during use (401 from the API)', async () => {
     await visit('/sites', me('engineer'));
-    TestBed.inject(HttpClient).get('/api/sites').subscribe({ error: () => undefined });
+    TestBed.inject(HttpClient)
+      .get('/api/sites')
+      .subscribe({ error: () => undefined });
     http.expectOne('/api/sites').flush({ error: { code: 'unauthenticated', message: 'x' } }, { status: 401, statusText: 'Unauthorized' });
     await harness.fixture.whenStable();
     expect(router.url).toBe('/sign-in?returnUrl=%2Fsites');
@@ -102,7 +104,9 @@ describe('route guards', () => {
 
   it('shows no-access when the API refuses the role (403)', async () => {
     await visit('/sites', me('crew'));
-    TestBed.inject(HttpClient).get('/api/users').subscribe({ error: () => undefined });
+    TestBed.inject(HttpClient)
+      .get('/api/users')
+      .subscribe({ error: () => undefined });
     http.expectOne('/api/users').flush({ error: { code: 'forbidden', message: 'x' } }, { status: 403, statusText: 'Forbidden' });
     await harness.fixture.whenStable();
     expect(router.url).toBe('/no-access');

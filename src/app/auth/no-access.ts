@@ -13,13 +13,18 @@ import { Session } from './session';
       <mat-icon aria-hidden="true">block</mat-icon>
       <h1 id="no-access-title">No access to this page</h1>
       <p>
-        Your role{{ roleLabel() ? ' (' + roleLabel() + ')' : '' }} does not include this page.
-        If you need it for your work, ask a Brightward administrator to change your role.
+        Your role{{ roleLabel() ? ' (' + roleLabel() + ')' : '' }} does not include this page. If you need it for your work, ask a
+        Brightward administrator to change your role.
       </p>
       <a mat-flat-button routerLink="/"><mat-icon>home</mat-icon>Go to your start page</a>
     </section>
   `,
-  styles: `h1 { font: var(--mat-sys-headline-small); color: var(--mat-sys-on-surface); }`,
+  styles: `
+    h1 {
+      font: var(--mat-sys-headline-small);
+      color: var(--mat-sys-on-surface);
+    }
+  `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class NoAccess {

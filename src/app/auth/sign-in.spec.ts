@@ -90,7 +90,10 @@ describe('SignIn', () => {
     await submit();
     http
       .expectOne('/api/auth/sign-in')
-      .flush({ error: { code: 'invalid_credentials', message: 'Invalid email or password.' } }, { status: 401, statusText: 'Unauthorized' });
+      .flush(
+        { error: { code: 'invalid_credentials', message: 'Invalid email or password.' } },
+        { status: 401, statusText: 'Unauthorized' },
+      );
     await harness.fixture.whenStable();
     expect(problem()).toContain('email address or password is not right');
     expect(button().disabled).toBe(false);

@@ -33,7 +33,9 @@ export class AlarmApi {
     for (const [k, v] of Object.entries(filter)) if (v !== undefined && v !== null && v !== '') params = params.set(k, v);
     return this.http.get<AlarmView[]>('/api/alarms', { params }).pipe(
       map((alarms): AlarmList => ({ available: true, alarms })),
-      catchError((error: unknown) => of<AlarmList>({ available: false, reason: `Alarms could not be loaded. ${toApiProblem(error).message}` })),
+      catchError((error: unknown) =>
+        of<AlarmList>({ available: false, reason: `Alarms could not be loaded. ${toApiProblem(error).message}` }),
+      ),
     );
   }
 

@@ -10,7 +10,11 @@ export class LandscapeApi {
   private readonly http = inject(HttpClient);
 
   landscape(siteId: number, at: Date, detectorTiltDeg: number, grid = true, stepDeg = 2): Observable<SiteLandscape> {
-    const params = new HttpParams().set('at', at.toISOString()).set('detectorTiltDeg', detectorTiltDeg).set('stepDeg', stepDeg).set('grid', grid);
+    const params = new HttpParams()
+      .set('at', at.toISOString())
+      .set('detectorTiltDeg', detectorTiltDeg)
+      .set('stepDeg', stepDeg)
+      .set('grid', grid);
     return this.http.get<SiteLandscape>(`/api/sites/${siteId}/landscape`, { params });
   }
 

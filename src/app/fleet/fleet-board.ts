@@ -34,8 +34,20 @@ import { sitePlanOptions } from './site-plan';
 @Component({
   selector: 'bw-fleet-board',
   imports: [
-    FormsModule, MatButtonModule, MatButtonToggleModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule,
-    MatSelectModule, MatSortModule, MatTableModule, MatTooltipModule, RouterLink, NgxEchartsDirective, LinkBadge,
+    FormsModule,
+    MatButtonModule,
+    MatButtonToggleModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MatSortModule,
+    MatTableModule,
+    MatTooltipModule,
+    RouterLink,
+    NgxEchartsDirective,
+    LinkBadge,
   ],
   templateUrl: './fleet-board.html',
   styleUrl: './fleet-board.scss',
@@ -71,15 +83,24 @@ export class FleetBoard {
   protected readonly allRows = computed(() => fleetRows(this.units(), this.siteMap(), this.states(), this.bests(), this.alarms()));
   protected readonly rows = computed(() => {
     const s = this.sort();
-    return sortRows(filterRows(this.allRows(), { text: this.text(), siteId: this.siteFilter(), tone: this.toneFilter() }), s.key, s.direction);
+    return sortRows(
+      filterRows(this.allRows(), { text: this.text(), siteId: this.siteFilter(), tone: this.toneFilter() }),
+      s.key,
+      s.direction,
+    );
   });
   protected readonly counts = computed(() => toneCounts(this.allRows()));
-  protected readonly planSite = computed(() => this.siteMap().get(this.planSiteId() ?? this.siteFilter() ?? this.sites()[0]?.id ?? -1) ?? null);
+  protected readonly planSite = computed(
+    () => this.siteMap().get(this.planSiteId() ?? this.siteFilter() ?? this.sites()[0]?.id ?? -1) ?? null,
+  );
   protected readonly planOptions = computed(() => {
     void this.scheme.current();
     const site = this.planSite();
     if (!site) return null;
-    return sitePlanOptions(this.allRows().filter((r) => r.unit.siteId === site.id), readPalette());
+    return sitePlanOptions(
+      this.allRows().filter((r) => r.unit.siteId === site.id),
+      readPalette(),
+    );
   });
 
   protected readonly toneChips: { tone: Tone | 'alarm'; label: string; icon: string }[] = [
@@ -111,8 +132,12 @@ export class FleetBoard {
       }
     });
     // Ages ("12 s ago") tick; modelled bests refresh every 5 minutes.
-    interval(5000).pipe(takeUntilDestroyed()).subscribe(() => this.now.set(Date.now()));
-    interval(300_000).pipe(startWith(0), takeUntilDestroyed()).subscribe(() => this.loadBests());
+    interval(5000)
+      .pipe(takeUntilDestroyed())
+      .subscribe(() => this.now.set(Date.now()));
+    interval(300_000)
+      .pipe(startWith(0), takeUntilDestroyed())
+      .subscribe(() => this.loadBests());
     effect(() => {
       // Follow the site filter on the plan unless a plan site was chosen.
       const f = this.siteFilter();
@@ -171,7 +196,12 @@ export class FleetBoard {
   }
 
   protected alarmTitle(r: FleetRow): string {
-    return r.alarms.map((a) => `${a.severity} ${severityLook(a.severity).label} · ${alarmKindLabel(a.kind)}${a.acknowledgedAt ? ' (acknowledged)' : ''}: ${a.message}`).join('\n');
+    return r.alarms
+      .map(
+        (a) =>
+          `${a.severity} ${severityLook(a.severity).label} · ${alarmKindLabel(a.kind)}${a.acknowledgedAt ? ' (acknowledged)' : ''}: ${a.message}`,
+      )
+      .join('\n');
   }
 
   protected trackRow = (_: number, r: FleetRow) => r.unit.id;

@@ -3,27 +3,90 @@ import type { UnitLiveState } from '../../../shared/contracts/live';
 import type { AlarmView } from '../core/alarm-api';
 import { filterRows, fleetRows, mergeStates, sortRows, toneCounts } from './fleet-rows';
 
-const site = (id: number, name: string): Site =>
-  ({ id, name, ownerId: 1, ownerName: 'O', latitudeDeg: 0, longitudeDeg: 0, elevationM: 0, timeZone: 'Europe/Berlin', albedo: 0.2, indoor: false, unitCount: 0 });
-const unit = (id: number, serial: string, siteId: number): Unit =>
-  ({ id, serial, siteId, siteName: '', ratedPowerWp: 420, detectorTiltDeg: 20, tiltMinDeg: 0, tiltMaxDeg: 85, azimuthMinDeg: 0, azimuthMaxDeg: 360, planXM: 0, planYM: 0, firmware: '1', disabled: false, weatherStation: false });
-const live = (unitId: number, over: Partial<UnitLiveState> = {}): UnitLiveState => ({
-  unitId, serial: '', siteId: 1, online: true, lastReportAt: '2026-06-21T10:00:00Z', mode: 'settled', poaWm2: 800, dcPowerW: 300,
-  tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 30, cmdAzimuthDeg: 180, tiltDiffWm2: 0, azimuthDiffWm2: 0, moduleTempC: 30, onHold: false, holds: [], ...over,
+const site = (id: number, name: string): Site => ({
+  id,
+  name,
+  ownerId: 1,
+  ownerName: 'O',
+  latitudeDeg: 0,
+  longitudeDeg: 0,
+  elevationM: 0,
+  timeZone: 'Europe/Berlin',
+  albedo: 0.2,
+  indoor: false,
+  unitCount: 0,
 });
-const alarm = (unitId: number, severity: string, state = 'active'): AlarmView =>
-  ({ id: unitId * 10 + Number(severity.slice(1)), unitId, siteId: 1, serial: null, kind: 'trap', severity, state, message: 'm', advice: '', evidence: {},
-     firstSeenAt: '2026-06-21T09:00:00Z', raisedAt: '2026-06-21T09:10:00Z', lastSeenAt: '2026-06-21T10:00:00Z', clearedAt: null, clearReason: null,
-     acknowledgedAt: null, acknowledgedBy: null });
+const unit = (id: number, serial: string, siteId: number): Unit => ({
+  id,
+  serial,
+  siteId,
+  siteName: '',
+  ratedPowerWp: 420,
+  detectorTiltDeg: 20,
+  tiltMinDeg: 0,
+  tiltMaxDeg: 85,
+  azimuthMinDeg: 0,
+  azimuthMaxDeg: 360,
+  planXM: 0,
+  planYM: 0,
+  firmware: '1',
+  disabled: false,
+  weatherStation: false,
+});
+const live = (unitId: number, over: Partial<UnitLiveState> = {}): UnitLiveState => ({
+  unitId,
+  serial: '',
+  siteId: 1,
+  online: true,
+  lastReportAt: '2026-06-21T10:00:00Z',
+  mode: 'settled',
+  poaWm2: 800,
+  dcPowerW: 300,
+  tiltDeg: 30,
+  azimuthDeg: 180,
+  cmdTiltDeg: 30,
+  cmdAzimuthDeg: 180,
+  tiltDiffWm2: 0,
+  azimuthDiffWm2: 0,
+  moduleTempC: 30,
+  onHold: false,
+  holds: [],
+  ...over,
+});
+const alarm = (unitId: number, severity: string, state = 'active'): AlarmView => ({
+  id: unitId * 10 + Number(severity.slice(1)),
+  unitId,
+  siteId: 1,
+  serial: null,
+  kind: 'trap',
+  severity,
+  state,
+  message: 'm',
+  advice: '',
+  evidence: {},
+  firstSeenAt: '2026-06-21T09:00:00Z',
+  raisedAt: '2026-06-21T09:10:00Z',
+  lastSeenAt: '2026-06-21T10:00:00Z',
+  clearedAt: null,
+  clearReason: null,
+  acknowledgedAt: null,
+  acknowledgedBy: null,
+});
 
-const sites = new Map([[1, site(1, 'Harbour Roof')], [2, site(2, 'Depot Yard')]]);
+const sites = new Map([
+  [1, site(1, 'Harbour Roof')],
+  [2, site(2, 'Depot Yard')],
+]);
 const units = [unit(1, 'A-1', 1), unit(2, 'A-2', 1), unit(3, 'B-1', 2), unit(4, 'B-2', 2)];
 const states = new Map([
   [1, live(1, { poaWm2: 500, dcPowerW: 100 })],
   [2, live(2, { online: false })],
   [3, live(3, { mode: 'seeking', dcPowerW: 350, onHold: true })],
 ]);
-const bests = new Map([[1, 1000], [2, 900]]);
+const bests = new Map([
+  [1, 1000],
+  [2, 900],
+]);
 
 describe('fleet board rows', () => {
   const rows = fleetRows(units, sites, states, bests, [alarm(1, 'P3'), alarm(1, 'P2'), alarm(3, 'P1', 'cleared')]);
@@ -46,7 +109,10 @@ describe('fleet board rows', () => {
   });
 
   it('claims no shortfall indoors, where the building switches the lamps', () => {
-    const indoor = new Map([[1, { ...site(1, 'Atrium'), indoor: true }], [2, site(2, 'Depot Yard')]]);
+    const indoor = new Map([
+      [1, { ...site(1, 'Atrium'), indoor: true }],
+      [2, site(2, 'Depot Yard')],
+    ]);
     const r = fleetRows(units, indoor, states, bests, []);
     expect(r.find((x) => x.unit.serial === 'A-1')!.shortfall).toBeNull();
     expect(fleetRows(units, sites, states, bests, []).find((x) => x.unit.serial === 'A-1')!.shortfall).toBe(50);
@@ -69,7 +135,12 @@ describe('fleet board rows', () => {
 
   it('sorts by most urgent open alarm, P1 first, units without alarms last in both directions', () => {
     const r = fleetRows(units, sites, states, bests, [alarm(1, 'P3'), alarm(2, 'P1'), alarm(4, 'P4'), alarm(3, 'P1', 'cleared')]);
-    expect(sortRows(r, 'alarms', 'asc').map((x) => `${x.unit.serial}:${x.worstSeverity}`)).toEqual(['A-2:P1', 'A-1:P3', 'B-2:P4', 'B-1:null']);
+    expect(sortRows(r, 'alarms', 'asc').map((x) => `${x.unit.serial}:${x.worstSeverity}`)).toEqual([
+      'A-2:P1',
+      'A-1:P3',
+      'B-2:P4',
+      'B-1:null',
+    ]);
     expect(sortRows(r, 'alarms', 'desc').map((x) => x.unit.serial)).toEqual(['B-2', 'A-1', 'A-2', 'B-1']);
   });
 

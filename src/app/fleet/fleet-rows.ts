@@ -96,7 +96,11 @@ export function sortRows(rows: readonly FleetRow[], key: FleetSortKey, direction
         return missingLast(rank(a), rank(b), dir) || (b.alarms.length - a.alarms.length) * dir;
       }
       case 'lastReport':
-        return missingLast(a.live?.lastReportAt ? Date.parse(a.live.lastReportAt) : null, b.live?.lastReportAt ? Date.parse(b.live.lastReportAt) : null, dir);
+        return missingLast(
+          a.live?.lastReportAt ? Date.parse(a.live.lastReportAt) : null,
+          b.live?.lastReportAt ? Date.parse(b.live.lastReportAt) : null,
+          dir,
+        );
     }
   };
   return [...rows].sort((a, b) => cmp(a, b) || a.unit.serial.localeCompare(b.unit.serial));
@@ -113,7 +117,11 @@ export function toneCounts(rows: readonly FleetRow[]): Record<Tone | 'alarm', nu
 }
 
 /** Applies a batch of live states to a map (returns a new map so signals notice). */
-export function mergeStates(current: ReadonlyMap<number, UnitLiveState>, states: readonly UnitLiveState[], replace = false): Map<number, UnitLiveState> {
+export function mergeStates(
+  current: ReadonlyMap<number, UnitLiveState>,
+  states: readonly UnitLiveState[],
+  replace = false,
+): Map<number, UnitLiveState> {
   const next = replace ? new Map<number, UnitLiveState>() : new Map(current);
   for (const s of states) next.set(s.unitId, s);
   return next;

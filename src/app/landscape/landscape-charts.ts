@@ -12,7 +12,9 @@ function cellIndex(values: readonly number[], v: number): number {
 }
 
 /** Which maxima to mark and how: the global one as a pin, lesser ones as diamonds (shape differs, not only colour). */
-export function maximaMarks(l: SiteLandscape): { name: string; tiltDeg: number; azimuthDeg: number; wm2: number; basinShare: number; best: boolean }[] {
+export function maximaMarks(
+  l: SiteLandscape,
+): { name: string; tiltDeg: number; azimuthDeg: number; wm2: number; basinShare: number; best: boolean }[] {
   return l.localMaxima.map((m, i) => ({
     name: i === 0 ? 'Modelled best (global peak)' : `Lesser peak ${i}`,
     tiltDeg: m.tiltDeg,
@@ -46,7 +48,16 @@ export function heatmapOptions(l: SiteLandscape, which: 'values' | 'blurred', pa
     symbolSize: size,
     z: 5,
     itemStyle: { color: colour, borderColor: '#000', borderWidth: 1 },
-    label: { show: true, position: 'right', color: '#000', backgroundColor: 'rgba(255,255,255,0.8)', padding: [2, 4], borderRadius: 3, fontSize: 11, formatter: (p: { data: { label: string } }) => p.data.label },
+    label: {
+      show: true,
+      position: 'right',
+      color: '#000',
+      backgroundColor: 'rgba(255,255,255,0.8)',
+      padding: [2, 4],
+      borderRadius: 3,
+      fontSize: 11,
+      formatter: (p: { data: { label: string } }) => p.data.label,
+    },
     data: points.map((p) => ({ value: [p.x, p.y], label: p.label })),
   });
   const series: unknown[] = [
@@ -59,15 +70,43 @@ export function heatmapOptions(l: SiteLandscape, which: 'values' | 'blurred', pa
     },
   ];
   if (which === 'values') {
-    series.push(scatter('Modelled best', 'pin', 26, palette.good, marks.filter((m) => m.best).map((m) => ({
-      x: cellIndex(g.azimuthsDeg, m.azimuthDeg), y: cellIndex(g.tiltsDeg, m.tiltDeg), label: `best ${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
-    }))));
-    series.push(scatter('Lesser peak', 'diamond', 16, palette.caution, marks.filter((m) => !m.best).map((m) => ({
-      x: cellIndex(g.azimuthsDeg, m.azimuthDeg), y: cellIndex(g.tiltsDeg, m.tiltDeg), label: `${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
-    }))));
+    series.push(
+      scatter(
+        'Modelled best',
+        'pin',
+        26,
+        palette.good,
+        marks
+          .filter((m) => m.best)
+          .map((m) => ({
+            x: cellIndex(g.azimuthsDeg, m.azimuthDeg),
+            y: cellIndex(g.tiltsDeg, m.tiltDeg),
+            label: `best ${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
+          })),
+      ),
+    );
+    series.push(
+      scatter(
+        'Lesser peak',
+        'diamond',
+        16,
+        palette.caution,
+        marks
+          .filter((m) => !m.best)
+          .map((m) => ({
+            x: cellIndex(g.azimuthsDeg, m.azimuthDeg),
+            y: cellIndex(g.tiltsDeg, m.tiltDeg),
+            label: `${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
+          })),
+      ),
+    );
   }
   if (l.sun && l.sun.elevationDeg > 0) {
-    series.push(scatter('Facing the sun', 'circle', 14, palette.accent, [{ x: cellIndex(g.azimuthsDeg, l.sun.azimuthDeg), y: cellIndex(g.tiltsDeg, 90 - l.sun.elevationDeg), label: 'sun' }]));
+    series.push(
+      scatter('Facing the sun', 'circle', 14, palette.accent, [
+        { x: cellIndex(g.azimuthsDeg, l.sun.azimuthDeg), y: cellIndex(g.tiltsDeg, 90 - l.sun.elevationDeg), label: 'sun' },
+      ]),
+    );
   }
   return {
     animation: false,
@@ -90,7 +129,11 @@ export function heatmapOptions(l: SiteLandscape, which: 'values' | 'blurred', pa
       nameLocation: 'middle',
       nameGap: 28,
       nameTextStyle: { color: palette.muted },
-      axisLabel: { color: palette.muted, interval: (i: number) => g.azimuthsDeg[i]! % 45 === 0, formatter: (v: string) => `${v}°${COMPASS[Number(v)] ? ` ${COMPASS[Number(v)]}` : ''}` },
+      axisLabel: {
+        color: palette.muted,
+        interval: (i: number) => g.azimuthsDeg[i]! % 45 === 0,
+        formatter: (v: string) => `${v}°${COMPASS[Number(v)] ? ` ${COMPASS[Number(v)]}` : ''}`,
+      },
       splitArea: { show: false },
     },
     yAxis: {
@@ -125,21 +168,74 @@ export function dayOptions(day: LandscapeDay, palette: TonePalette, formatHour: 
     legend: { top: 0, textStyle: { color: palette.text } },
     tooltip: { trigger: 'axis' },
     grid: { left: 64, right: 64, top: 40, bottom: 48 },
-    xAxis: { type: 'category', data: hours, name: `hour (site time, ${day.timeZone})`, nameLocation: 'middle', nameGap: 30, nameTextStyle: { color: palette.muted }, axisLabel: { color: palette.muted } },
+    xAxis: {
+      type: 'category',
+      data: hours,
+      name: `hour (site time, ${day.timeZone})`,
+      nameLocation: 'middle',
+      nameGap: 30,
+      nameTextStyle: { color: palette.muted },
+      axisLabel: { color: palette.muted },
+    },
     yAxis: [
-      { type: 'value', name: 'Detector tilt [°]', min: 0, axisLabel: { color: palette.muted, formatter: '{value}°' }, nameTextStyle: { color: palette.muted }, splitLine: { lineStyle: { color: palette.grid } } },
-      { type: 'value', name: 'Peaks', min: 0, minInterval: 1, axisLabel: { color: palette.muted }, nameTextStyle: { color: palette.muted }, splitLine: { show: false } },
+      {
+        type: 'value',
+        name: 'Detector tilt [°]',
+        min: 0,
+        axisLabel: { color: palette.muted, formatter: '{value}°' },
+        nameTextStyle: { color: palette.muted },
+        splitLine: { lineStyle: { color: palette.grid } },
+      },
+      {
+        type: 'value',
+        name: 'Peaks',
+        min: 0,
+        minInterval: 1,
+        axisLabel: { color: palette.muted },
+        nameTextStyle: { color: palette.muted },
+        splitLine: { show: false },
+      },
     ],
     series: [
       {
         name: 'Smallest single-peak detector tilt',
         type: 'bar',
         itemStyle: { color: palette.primary },
-        data: day.hours.map((h) => (h.minSinglePeakDetectorTiltDeg === null ? { value: 30, itemStyle: { color: palette.problem, decal: { symbol: 'rect' } } } : h.minSinglePeakDetectorTiltDeg)),
-        label: { show: true, position: 'top', color: palette.text, fontSize: 10, formatter: (p: { dataIndex: number }) => (day.hours[p.dataIndex]!.minSinglePeakDetectorTiltDeg === null ? '> 30°' : `${day.hours[p.dataIndex]!.minSinglePeakDetectorTiltDeg}°`) },
-        ...(day.recommendedDetectorTiltDeg !== null ? { markLine: { symbol: 'none', data: [{ yAxis: day.recommendedDetectorTiltDeg, name: 'whole day' }], label: { formatter: 'whole day {c}°', color: palette.text }, lineStyle: { color: palette.good, type: 'dashed' } } } : {}),
+        data: day.hours.map((h) =>
+          h.minSinglePeakDetectorTiltDeg === null
+            ? { value: 30, itemStyle: { color: palette.problem, decal: { symbol: 'rect' } } }
+            : h.minSinglePeakDetectorTiltDeg,
+        ),
+        label: {
+          show: true,
+          position: 'top',
+          color: palette.text,
+          fontSize: 10,
+          formatter: (p: { dataIndex: number }) =>
+            day.hours[p.dataIndex]!.minSinglePeakDetectorTiltDeg === null
+              ? '> 30°'
+              : `${day.hours[p.dataIndex]!.minSinglePeakDetectorTiltDeg}°`,
+        },
+        ...(day.recommendedDetectorTiltDeg !== null
+          ? {
+              markLine: {
+                symbol: 'none',
+                data: [{ yAxis: day.recommendedDetectorTiltDeg, name: 'whole day' }],
+                label: { formatter: 'whole day {c}°', color: palette.text },
+                lineStyle: { color: palette.good, type: 'dashed' },
+              },
+            }
+          : {}),
       },
-      { name: 'Peaks', type: 'line', yAxisIndex: 1, symbol: 'diamond', symbolSize: 8, itemStyle: { color: palette.caution }, data: day.hours.map((h) => h.peaks) },
+      {
+        name: 'Peaks',
+        type: 'line',
+        yAxisIndex: 1,
+        symbol: 'diamond',
+        symbolSize: 8,
+        itemStyle: { color: palette.caution },
+        data: day.hours.map((h) => h.peaks),
+      },
     ],
   };
 }

@@ -9,11 +9,25 @@ import { surveyProblems } from './survey-editor';
 describe('horizon CSV import', () => {
   it('reads azimuth,elevation rows with a header, CRLF and quotes, sorted by azimuth', () => {
     const r = parseHorizonCsv('azimuth_deg,elevation_deg\r\n90,12.5\r\n"10",3\r\n\r\n180,0\r\n');
-    expect(r).toEqual({ ok: true, points: [[10, 3], [90, 12.5], [180, 0]] });
+    expect(r).toEqual({
+      ok: true,
+      points: [
+        [10, 3],
+        [90, 12.5],
+        [180, 0],
+      ],
+    });
   });
 
   it('keeps equal azimuths in file order (a vertical building edge)', () => {
-    expect(parseHorizonCsv('60,10\n60,45\n0,5')).toEqual({ ok: true, points: [[0, 5], [60, 10], [60, 45]] });
+    expect(parseHorizonCsv('60,10\n60,45\n0,5')).toEqual({
+      ok: true,
+      points: [
+        [0, 5],
+        [60, 10],
+        [60, 45],
+      ],
+    });
   });
 
   it('reports every bad row by its line number and returns no points', () => {
@@ -28,38 +42,83 @@ describe('horizon CSV import', () => {
   });
 
   it('refuses an empty file', () => {
-    expect(parseHorizonCsv('azimuth,elevation\n')).toEqual({ ok: false, problems: [{ line: 1, message: 'the file has no azimuth, elevation rows' }] });
+    expect(parseHorizonCsv('azimuth,elevation\n')).toEqual({
+      ok: false,
+      problems: [{ line: 1, message: 'the file has no azimuth, elevation rows' }],
+    });
   });
 });
 
 describe('survey editor checks', () => {
-  const base: SiteSurvey = { skyType: 'isotropic', horizon: [[0, 5], [90, 10]], reflectors: [], lamps: [] };
+  const base: SiteSurvey = {
+    skyType: 'isotropic',
+    horizon: [
+      [0, 5],
+      [90, 10],
+    ],
+    reflectors: [],
+    lamps: [],
+  };
   it('accepts a good survey and names bad points and facades', () => {
     expect(surveyProblems(base)).toEqual({});
-    const bad = surveyProblems({ ...base, horizon: [[90, 5], [10, 100]], reflectors: [{ normalAzimuthDeg: 90, normalElevationDeg: 0, azimuthFromDeg: 1, azimuthToDeg: 2, elevationFromDeg: 0, elevationToDeg: 5, reflectance: 1.5 }] });
+    const bad = surveyProblems({
+      ...base,
+      horizon: [
+        [90, 5],
+        [10, 100],
+      ],
+      reflectors: [
+        {
+          normalAzimuthDeg: 90,
+          normalElevationDeg: 0,
+          azimuthFromDeg: 1,
+          azimuthToDeg: 2,
+          elevationFromDeg: 0,
+          elevationToDeg: 5,
+          reflectance: 1.5,
+        },
+      ],
+    });
     expect(Object.keys(bad).sort()).toEqual(['horizon.1', 'reflectors.0.reflectance']);
   });
 });
 
 describe('landscape view', () => {
   const l: SiteLandscape = {
-    siteId: 1, at: '2026-06-21T07:00:00Z', sun: { azimuthDeg: 90, elevationDeg: 30 }, magnitudeSource: 'clear sky', stepDeg: 45, detectorTiltDeg: 4,
-    grid: { tiltsDeg: [0, 45, 90], azimuthsDeg: [0, 90, 180, 270], values: [1, 2, 3, 4, 5, 600, 7, 8, 9, 10, 11, 300], blurred: [1, 1, 1, 1, 2, 2, 2, 2, 3, 3, 3, 3] },
+    siteId: 1,
+    at: '2026-06-21T07:00:00Z',
+    sun: { azimuthDeg: 90, elevationDeg: 30 },
+    magnitudeSource: 'clear sky',
+    stepDeg: 45,
+    detectorTiltDeg: 4,
+    grid: {
+      tiltsDeg: [0, 45, 90],
+      azimuthsDeg: [0, 90, 180, 270],
+      values: [1, 2, 3, 4, 5, 600, 7, 8, 9, 10, 11, 300],
+      blurred: [1, 1, 1, 1, 2, 2, 2, 2, 3, 3, 3, 3],
+    },
     globalMax: { tiltDeg: 45, azimuthDeg: 90, wm2: 600 },
     localMaxima: [
       { tiltDeg: 45, azimuthDeg: 90, wm2: 600, prominenceWm2: 590, basinShare: 0.7 },
       { tiltDeg: 90, azimuthDeg: 270, wm2: 300, prominenceWm2: 289, basinShare: 0.3 },
     ],
-    minSinglePeakDetectorTiltDeg: 12, minProminenceWm2: 3,
+    minSinglePeakDetectorTiltDeg: 12,
+    minProminenceWm2: 3,
   };
 
   it('marks the global peak and the lesser ones differently, with their basins', () => {
     const m = maximaMarks(l);
-    expect(m.map((x) => [x.best, x.name])).toEqual([[true, 'Modelled best (global peak)'], [false, 'Lesser peak 1']]);
+    expect(m.map((x) => [x.best, x.name])).toEqual([
+      [true, 'Modelled best (global peak)'],
+      [false, 'Lesser peak 1'],
+    ]);
   });
 
   it('draws the grid as a heat map over azimuth × tilt with the peaks and the sun on their cells', () => {
-    const o = heatmapOptions(l, 'values', readPalette()) as { series: { type: string; name: string; data: unknown[] }[]; visualMap: { max: number } };
+    const o = heatmapOptions(l, 'values', readPalette()) as {
+      series: { type: string; name: string; data: unknown[] }[];
+      visualMap: { max: number };
+    };
     const heat = o.series[0]!;
     expect(heat.type).toBe('heatmap');
     expect(heat.data).toHaveLength(12);

@@ -28,18 +28,37 @@ export function surveyProblems(s: SiteSurvey): Record<string, string> {
   s.reflectors.forEach((r, i) => {
     const bad = (v: number, lo: number, hi: number) => !Number.isFinite(v) || v < lo || v > hi;
     if (bad(r.reflectance, 0, 1)) p[`reflectors.${i}.reflectance`] = 'Reflectance must be from 0 to 1.';
-    if (bad(r.normalAzimuthDeg, 0, 360) || bad(r.azimuthFromDeg, 0, 360) || bad(r.azimuthToDeg, 0, 360)) p[`reflectors.${i}`] = 'Azimuths must be from 0 to 360°.';
-    if (bad(r.elevationFromDeg, -90, 90) || bad(r.elevationToDeg, -90, 90) || bad(r.normalElevationDeg, -90, 90)) p[`reflectors.${i}`] = 'Elevations must be from −90 to 90°.';
+    if (bad(r.normalAzimuthDeg, 0, 360) || bad(r.azimuthFromDeg, 0, 360) || bad(r.azimuthToDeg, 0, 360))
+      p[`reflectors.${i}`] = 'Azimuths must be from 0 to 360°.';
+    if (bad(r.elevationFromDeg, -90, 90) || bad(r.elevationToDeg, -90, 90) || bad(r.normalElevationDeg, -90, 90))
+      p[`reflectors.${i}`] = 'Elevations must be from −90 to 90°.';
   });
   return p;
 }
 
-const NEW_REFLECTOR: SurveyReflector = { normalAzimuthDeg: 90, normalElevationDeg: 0, azimuthFromDeg: 240, azimuthToDeg: 300, elevationFromDeg: 0, elevationToDeg: 30, reflectance: 0.3 };
+const NEW_REFLECTOR: SurveyReflector = {
+  normalAzimuthDeg: 90,
+  normalElevationDeg: 0,
+  azimuthFromDeg: 240,
+  azimuthToDeg: 300,
+  elevationFromDeg: 0,
+  elevationToDeg: 30,
+  reflectance: 0.3,
+};
 
 /** The site survey: horizon profile and reflecting facades, with a sky-dome preview and a CSV import of the horizon. */
 @Component({
   selector: 'bw-survey-editor',
-  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatSelectModule, NgxEchartsDirective],
+  imports: [
+    FormsModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    NgxEchartsDirective,
+  ],
   templateUrl: './survey-editor.html',
   styleUrl: './survey-editor.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

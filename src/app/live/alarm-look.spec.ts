@@ -1,16 +1,49 @@
 import type { AlarmView } from '../../../shared/contracts/alarms';
-import { alarmKindLabel, evidenceSummary, filterAlarms, severityLook, sortAlarms, traceQuery, trapFinding, upsertAlarm, worstOpen } from './alarm-look';
+import {
+  alarmKindLabel,
+  evidenceSummary,
+  filterAlarms,
+  severityLook,
+  sortAlarms,
+  traceQuery,
+  trapFinding,
+  upsertAlarm,
+  worstOpen,
+} from './alarm-look';
 
 const makeAlarm = (over: Partial<AlarmView> = {}): AlarmView => ({
-  id: 1, kind: 'stall', severity: 'P3', state: 'active', unitId: 7, serial: 'QHL-2407', siteId: 1, siteName: 'Harbour Roof', message: 'm', advice: 'a',
-  evidence: {}, firstSeenAt: '2026-06-21T09:00:00Z', raisedAt: '2026-06-21T09:10:00Z', lastSeenAt: '2026-06-21T10:00:00Z', clearedAt: null, clearReason: null,
-  acknowledgedAt: null, acknowledgedBy: null, ...over,
+  id: 1,
+  kind: 'stall',
+  severity: 'P3',
+  state: 'active',
+  unitId: 7,
+  serial: 'QHL-2407',
+  siteId: 1,
+  siteName: 'Harbour Roof',
+  message: 'm',
+  advice: 'a',
+  evidence: {},
+  firstSeenAt: '2026-06-21T09:00:00Z',
+  raisedAt: '2026-06-21T09:10:00Z',
+  lastSeenAt: '2026-06-21T10:00:00Z',
+  clearedAt: null,
+  clearReason: null,
+  acknowledgedAt: null,
+  acknowledgedBy: null,
+  ...over,
 });
 
 const trapEvidence = {
   readings: { poaWm2: 512.4, tiltDeg: 41.2, azimuthDeg: 250.5 },
-  model: { globalMax: { tiltDeg: 30, azimuthDeg: 180, wm2: 880 }, modelledHereWm2: 520, localMaxima: [{}, {}, {}], minSinglePeakDetectorTiltDeg: 14 },
-  lossWm2: 367.6, lossPct: 41.8, detectorTiltDeg: 6,
+  model: {
+    globalMax: { tiltDeg: 30, azimuthDeg: 180, wm2: 880 },
+    modelledHereWm2: 520,
+    localMaxima: [{}, {}, {}],
+    minSinglePeakDetectorTiltDeg: 14,
+  },
+  lossWm2: 367.6,
+  lossPct: 41.8,
+  detectorTiltDeg: 6,
 };
 
 describe('alarm severity and kind', () => {
@@ -43,7 +76,10 @@ describe('alarm order and filters', () => {
   });
 
   it('filters by site, kind and state (open, not acknowledged, cleared, all)', () => {
-    const ids = (f: Parameters<typeof filterAlarms>[1]) => filterAlarms(list, f).map((a) => a.id).sort();
+    const ids = (f: Parameters<typeof filterAlarms>[1]) =>
+      filterAlarms(list, f)
+        .map((a) => a.id)
+        .sort();
     expect(ids({ siteId: null, kind: null, state: 'open' })).toEqual([1, 2, 3, 5, 6]);
     expect(ids({ siteId: null, kind: null, state: 'unacknowledged' })).toEqual([1, 2, 3, 6]);
     expect(ids({ siteId: null, kind: null, state: 'cleared' })).toEqual([4]);
@@ -62,17 +98,36 @@ describe('alarm order and filters', () => {
 describe('alarm evidence', () => {
   it('reads a trap: where the modelled best is, what is lost, how many peaks and the single-peak detector tilt', () => {
     const a = makeAlarm({ kind: 'trap', evidence: trapEvidence });
-    expect(trapFinding(a)).toEqual({ best: { tiltDeg: 30, azimuthDeg: 180, wm2: 880 }, modelledHereWm2: 520, lossWm2: 367.6, lossPct: 41.8, peaks: 3, singlePeakDetectorTiltDeg: 14, detectorTiltDeg: 6 });
+    expect(trapFinding(a)).toEqual({
+      best: { tiltDeg: 30, azimuthDeg: 180, wm2: 880 },
+      modelledHereWm2: 520,
+      lossWm2: 367.6,
+      lossPct: 41.8,
+      peaks: 3,
+      singlePeakDetectorTiltDeg: 14,
+      detectorTiltDeg: 6,
+    });
     const facts = Object.fromEntries(evidenceSummary(a).map((f) => [f.label, f.value]));
-    expect(facts).toMatchObject({ Pointing: 'tilt 41.2°, azimuth 250.5°', 'In-plane': '512 W/m²', 'Modelled brightest': '880 W/m² at tilt 30°, azimuth 180°', Lost: '368 W/m² (41.8 %)', 'Peaks in the model': '3' });
+    expect(facts).toMatchObject({
+      Pointing: 'tilt 41.2°, azimuth 250.5°',
+      'In-plane': '512 W/m²',
+      'Modelled brightest': '880 W/m² at tilt 30°, azimuth 180°',
+      Lost: '368 W/m² (41.8 %)',
+      'Peaks in the model': '3',
+    });
   });
 
   it('gives no trap finding for other kinds or a trap without a model, and summarises other evidence it knows', () => {
     expect(trapFinding(makeAlarm({ kind: 'stall', evidence: trapEvidence }))).toBeNull();
     expect(trapFinding(makeAlarm({ kind: 'trap', evidence: {} }))).toBeNull();
     const facts = evidenceSummary(makeAlarm({ kind: 'stall', evidence: { axes: ['tilt'], readings: { poaWm2: 10 } } }));
-    expect(facts).toEqual([{ label: 'In-plane', value: '10 W/m²' }, { label: 'Axes', value: 'tilt' }]);
-    expect(evidenceSummary(makeAlarm({ kind: 'site-comms', evidence: { silentUnits: [{}, {}], units: 3 } }))).toEqual([{ label: 'Silent units', value: '2 of 3' }]);
+    expect(facts).toEqual([
+      { label: 'In-plane', value: '10 W/m²' },
+      { label: 'Axes', value: 'tilt' },
+    ]);
+    expect(evidenceSummary(makeAlarm({ kind: 'site-comms', evidence: { silentUnits: [{}, {}], units: 3 } }))).toEqual([
+      { label: 'Silent units', value: '2 of 3' },
+    ]);
   });
 
   it('opens traces 30 min around the alarm, up to now while it is open; none for a site alarm', () => {

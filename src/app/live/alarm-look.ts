@@ -42,7 +42,8 @@ export function alarmKindLabel(kind: string): string {
 }
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
-const obj = (v: unknown): Record<string, unknown> | null => (v && typeof v === 'object' && !Array.isArray(v) ? (v as Record<string, unknown>) : null);
+const obj = (v: unknown): Record<string, unknown> | null =>
+  v && typeof v === 'object' && !Array.isArray(v) ? (v as Record<string, unknown>) : null;
 
 /** In-plane irradiance the alarm says is lost [W/m²], when the evidence has it (traps). */
 export function atRiskWm2(a: AlarmView): number | null {
@@ -108,8 +109,12 @@ export function evidenceSummary(a: AlarmView): { label: string; value: string }[
   if (poa !== null) out.push({ label: 'In-plane', value: `${Math.round(poa)} W/m²` });
   const trap = trapFinding(a);
   if (trap) {
-    out.push({ label: 'Modelled brightest', value: `${Math.round(trap.best.wm2)} W/m² at tilt ${r1(trap.best.tiltDeg)}°, azimuth ${r1(trap.best.azimuthDeg)}°` });
-    if (trap.lossWm2 !== null) out.push({ label: 'Lost', value: `${Math.round(trap.lossWm2)} W/m²${trap.lossPct !== null ? ` (${r1(trap.lossPct)} %)` : ''}` });
+    out.push({
+      label: 'Modelled brightest',
+      value: `${Math.round(trap.best.wm2)} W/m² at tilt ${r1(trap.best.tiltDeg)}°, azimuth ${r1(trap.best.azimuthDeg)}°`,
+    });
+    if (trap.lossWm2 !== null)
+      out.push({ label: 'Lost', value: `${Math.round(trap.lossWm2)} W/m²${trap.lossPct !== null ? ` (${r1(trap.lossPct)} %)` : ''}` });
     if (trap.peaks !== null) out.push({ label: 'Peaks in the model', value: String(trap.peaks) });
   } else {
     const lossPct = num(e['lossPct']);
@@ -117,7 +122,8 @@ export function evidenceSummary(a: AlarmView): { label: string; value: string }[
   }
   const axes = e['axes'];
   if (Array.isArray(axes) && axes.length) out.push({ label: 'Axes', value: axes.map(String).join(', ') });
-  if (typeof e['detector'] === 'string') out.push({ label: 'Detector', value: `${e['detector']}${typeof e['finding'] === 'string' ? ` (${e['finding']})` : ''}` });
+  if (typeof e['detector'] === 'string')
+    out.push({ label: 'Detector', value: `${e['detector']}${typeof e['finding'] === 'string' ? ` (${e['finding']})` : ''}` });
   const rev = num(e['reversalsPerHour']);
   if (rev !== null) out.push({ label: 'Reversals', value: `${Math.round(rev)} per hour` });
   const gust = num(e['peakGustMs']);

@@ -16,12 +16,37 @@ import { LiveConnection } from './live-connection';
     }
   `,
   styles: `
-    :host { display: inline-flex; align-items: center; gap: 8px; flex-wrap: wrap; }
-    .link { display: inline-flex; align-items: center; gap: 6px; padding: 4px 12px; border-radius: 16px; font: var(--mat-sys-label-large); }
-    .link mat-icon { font-size: 18px; width: 18px; height: 18px; }
-    .good { background: var(--bw-good-container); color: var(--bw-good); }
-    .caution { background: var(--bw-caution-container); color: var(--bw-caution); }
-    .stopped { background: var(--mat-sys-surface-container-high); color: var(--mat-sys-on-surface-variant); }
+    :host {
+      display: inline-flex;
+      align-items: center;
+      gap: 8px;
+      flex-wrap: wrap;
+    }
+    .link {
+      display: inline-flex;
+      align-items: center;
+      gap: 6px;
+      padding: 4px 12px;
+      border-radius: 16px;
+      font: var(--mat-sys-label-large);
+    }
+    .link mat-icon {
+      font-size: 18px;
+      width: 18px;
+      height: 18px;
+    }
+    .good {
+      background: var(--bw-good-container);
+      color: var(--bw-good);
+    }
+    .caution {
+      background: var(--bw-caution-container);
+      color: var(--bw-caution);
+    }
+    .stopped {
+      background: var(--mat-sys-surface-container-high);
+      color: var(--mat-sys-on-surface-variant);
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })

@@ -108,7 +108,10 @@ describe('live connection', () => {
     live.watch({ unitId: 7 }, b);
     live.watch({ siteId: 2 }, b);
     expect(FakeSocket.all).toHaveLength(1);
-    expect(s.sent).toEqual([{ type: 'subscribe', unitId: 7 }, { type: 'subscribe', siteId: 2 }]);
+    expect(s.sent).toEqual([
+      { type: 'subscribe', unitId: 7 },
+      { type: 'subscribe', siteId: 2 },
+    ]);
     b.destroy();
     expect(s.sent.at(-1)).toEqual({ type: 'unsubscribe', siteId: 2 });
     a.destroy();
@@ -122,7 +125,9 @@ describe('live connection', () => {
     const live = TestBed.inject(LiveConnection);
     const session = TestBed.inject(Session);
     session.signIn({ email: 'tech1@saltmarsh.example', password: 'x' }).subscribe();
-    TestBed.inject(HttpTestingController).expectOne('/api/auth/sign-in').flush({ id: 3, email: 'tech1@saltmarsh.example', name: 'Mara Okonjo', role: 'technician', ownerId: null });
+    TestBed.inject(HttpTestingController)
+      .expectOne('/api/auth/sign-in')
+      .flush({ id: 3, email: 'tech1@saltmarsh.example', name: 'Mara Okonjo', role: 'technician', ownerId: null });
     const forget = vi.spyOn(session, 'forget');
     const navigate = vi.spyOn(TestBed.inject(Router), 'navigate').mockResolvedValue(true);
     live.watch({ fleet: true }, new Lifetime());

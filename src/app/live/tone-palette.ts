@@ -1,11 +1,27 @@
 import type { Tone } from './unit-status';
 
 /** Canvas colours of the tones (charts cannot read CSS variables), taken from the page so both schemes fit. */
-export type TonePalette = Record<Tone, string> & { text: string; muted: string; grid: string; surface: string; primary: string; accent: string };
+export type TonePalette = Record<Tone, string> & {
+  text: string;
+  muted: string;
+  grid: string;
+  surface: string;
+  primary: string;
+  accent: string;
+};
 
 const FALLBACK: TonePalette = {
-  good: '#1d6b3b', busy: '#036a65', caution: '#8a4b00', problem: '#b3261e', stopped: '#5d5f5f',
-  text: '#191c1c', muted: '#3f4948', grid: '#bec9c7', surface: '#ffffff', primary: '#036a65', accent: '#c9861a',
+  good: '#1d6b3b',
+  busy: '#036a65',
+  caution: '#8a4b00',
+  problem: '#b3261e',
+  stopped: '#5d5f5f',
+  text: '#191c1c',
+  muted: '#3f4948',
+  grid: '#bec9c7',
+  surface: '#ffffff',
+  primary: '#036a65',
+  accent: '#c9861a',
 };
 
 /** Marker shape per tone, so state never depends on colour alone. */

@@ -25,8 +25,15 @@ const MODE_LOOK: Record<UnitMode, StatusLook> = {
 
 /** How a unit's live state is shown: offline and hold win over the reported mode. */
 export function statusLook(s: Pick<UnitLiveState, 'online' | 'mode' | 'onHold' | 'lastReportAt'> | null | undefined): StatusLook {
-  if (!s || (!s.lastReportAt && !s.online)) return { label: 'No reports yet', icon: 'hourglass_empty', tone: 'stopped', hint: 'The unit has not reported since the server started.' };
-  if (!s.online) return { label: 'Offline', icon: 'cloud_off', tone: 'problem', hint: 'No connection to the unit; values are its last report.' };
+  if (!s || (!s.lastReportAt && !s.online))
+    return {
+      label: 'No reports yet',
+      icon: 'hourglass_empty',
+      tone: 'stopped',
+      hint: 'The unit has not reported since the server started.',
+    };
+  if (!s.online)
+    return { label: 'Offline', icon: 'cloud_off', tone: 'problem', hint: 'No connection to the unit; values are its last report.' };
   if (s.onHold && s.mode !== 'held') return MODE_LOOK.held;
   return s.mode ? MODE_LOOK[s.mode] : { label: 'Online', icon: 'cloud_done', tone: 'good', hint: 'Connected; no mode reported yet.' };
 }

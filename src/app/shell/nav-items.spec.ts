@@ -2,7 +2,18 @@ import { ROLES, type Role } from '../../../shared/contracts/api';
 import { NAV_ITEMS, navItemsFor, rolesFor } from './nav-items';
 
 const EXPECTED: Record<Role, string[]> = {
-  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials', 'Audit log'],
+  admin: [
+    'Fleet board',
+    'Alarms',
+    'Sites',
+    'Trace explorer',
+    'Landscape',
+    'People',
+    'Owners',
+    'Site setup',
+    'Units and credentials',
+    'Audit log',
+  ],
   engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
   technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
   crew: ['Fleet board', 'Alarms', 'Sites'],

@@ -14,7 +14,12 @@ import { RouterLink } from '@angular/router';
       <a mat-flat-button routerLink="/"><mat-icon>home</mat-icon>Go to your start page</a>
     </section>
   `,
-  styles: `h1 { font: var(--mat-sys-headline-small); color: var(--mat-sys-on-surface); }`,
+  styles: `
+    h1 {
+      font: var(--mat-sys-headline-small);
+      color: var(--mat-sys-on-surface);
+    }
+  `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class NotFound {}

@@ -35,7 +35,18 @@ describe('Shell', () => {
     const headings = [...element.querySelectorAll('.nav-heading')].map((h) => h.textContent!.trim());
     expect(headings).toEqual(['Fleet', 'Administration']);
     const hrefs = [...element.querySelectorAll('[data-testid="main-nav"] a')].map((a) => a.getAttribute('href'));
-    expect(hrefs).toEqual(['/fleet', '/alarms', '/sites', '/traces', '/landscape', '/admin/people', '/admin/owners', '/admin/sites', '/admin/units', '/admin/audit']);
+    expect(hrefs).toEqual([
+      '/fleet',
+      '/alarms',
+      '/sites',
+      '/traces',
+      '/landscape',
+      '/admin/people',
+      '/admin/owners',
+      '/admin/sites',
+      '/admin/units',
+      '/admin/audit',
+    ]);
   });
 
   it('signs out through the server and goes to sign-in', async () => {

@@ -32,9 +32,7 @@ export class SiteList implements OnInit {
   protected readonly shown = computed(() => {
     const query = this.query().trim().toLowerCase();
     const sites = [...this.sites()].sort((a, b) => a.name.localeCompare(b.name));
-    return query
-      ? sites.filter((site) => `${site.name} ${site.ownerName} ${site.timeZone}`.toLowerCase().includes(query))
-      : sites;
+    return query ? sites.filter((site) => `${site.name} ${site.ownerName} ${site.timeZone}`.toLowerCase().includes(query)) : sites;
   });
 
   ngOnInit(): void {

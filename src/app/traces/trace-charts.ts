@@ -7,7 +7,12 @@ import { siteTime, utcTime } from '../live/unit-status';
  * Min/max envelope as one polyline: each bucket contributes its minimum and its maximum (in the order that keeps the
  * line short), so spikes that a mean would hide stay visible. Gaps (missing buckets) break the line.
  */
-export function envelope(t: readonly number[], min: readonly (number | null)[], max: readonly (number | null)[], bucketMs: number): [number, number | null][] {
+export function envelope(
+  t: readonly number[],
+  min: readonly (number | null)[],
+  max: readonly (number | null)[],
+  bucketMs: number,
+): [number, number | null][] {
   const out: [number, number | null][] = [];
   let last: number | null = null;
   for (let i = 0; i < t.length; i++) {
@@ -46,7 +51,12 @@ export interface TraceWindow {
 }
 
 /** One ECharts option with a grid per panel, every x axis linked and zoomed together. */
-export function traceChartOptions(all: readonly UnitTraces[], palette: TonePalette, timeZone: string, window: TraceWindow): EChartsCoreOption {
+export function traceChartOptions(
+  all: readonly UnitTraces[],
+  palette: TonePalette,
+  timeZone: string,
+  window: TraceWindow,
+): EChartsCoreOption {
   const n = PANELS.length;
   const colours = [palette.primary, palette.accent, palette.good, palette.caution, palette.problem, palette.muted];
   const unitColour = new Map(all.map((u, i) => [u.unitId, i]));
@@ -58,7 +68,12 @@ export function traceChartOptions(all: readonly UnitTraces[], palette: TonePalet
     gridIndex: i,
     min: window.fromMs,
     max: window.toMs,
-    axisLabel: { show: i === n - 1, color: palette.muted, hideOverlap: true, formatter: (v: number) => shortLocal(v, timeZone, window.toMs - window.fromMs) },
+    axisLabel: {
+      show: i === n - 1,
+      color: palette.muted,
+      hideOverlap: true,
+      formatter: (v: number) => shortLocal(v, timeZone, window.toMs - window.fromMs),
+    },
     axisTick: { show: i === n - 1 },
     splitLine: { show: false },
     name: i === n - 1 ? `site time (${timeZone})` : '',
@@ -90,7 +105,11 @@ export function traceChartOptions(all: readonly UnitTraces[], palette: TonePalet
           showSymbol: false,
           connectNulls: false,
           sampling: undefined,
-          lineStyle: { width: 1.2, color: p.quantities.length > 1 && all.length === 1 ? colours[qi % colours.length] : colour, type: DASHED.has(q) ? 'dashed' : 'solid' },
+          lineStyle: {
+            width: 1.2,
+            color: p.quantities.length > 1 && all.length === 1 ? colours[qi % colours.length] : colour,
+            type: DASHED.has(q) ? 'dashed' : 'solid',
+          },
           itemStyle: { color: p.quantities.length > 1 && all.length === 1 ? colours[qi % colours.length] : colour },
           data: envelope(u.t, u.series[q].min, u.series[q].max, u.bucketMs),
           ...(qi === 0 ? { markLine: marks(u, palette, gi === 0) } : {}),
@@ -118,10 +137,17 @@ export function traceChartOptions(all: readonly UnitTraces[], palette: TonePalet
     tooltip: {
       trigger: 'axis',
       axisPointer: { type: 'line' },
-      formatter: (items: { axisValue: number; seriesName: string; value: [number, number | null]; marker: string; seriesIndex: number }[]) => {
+      formatter: (
+        items: { axisValue: number; seriesName: string; value: [number, number | null]; marker: string; seriesIndex: number }[],
+      ) => {
         const t = items[0]?.axisValue;
-        return `${siteTime(t, timeZone, true)}<br><span style="opacity:.7">${utcTime(t)}</span><br>` +
-          items.filter((i) => i.value[1] !== null).map((i) => `${i.marker}${i.seriesName}: ${round(i.value[1]!)} ${unitOfSeries(i.seriesName)}`).join('<br>');
+        return (
+          `${siteTime(t, timeZone, true)}<br><span style="opacity:.7">${utcTime(t)}</span><br>` +
+          items
+            .filter((i) => i.value[1] !== null)
+            .map((i) => `${i.marker}${i.seriesName}: ${round(i.value[1]!)} ${unitOfSeries(i.seriesName)}`)
+            .join('<br>')
+        );
       },
     },
     axisPointer: { link: [{ xAxisIndex: 'all' }] },
@@ -130,7 +156,16 @@ export function traceChartOptions(all: readonly UnitTraces[], palette: TonePalet
     yAxis,
     dataZoom: [
       { type: 'inside', xAxisIndex: PANELS.map((_, i) => i), filterMode: 'none', start: 0, end: 100 },
-      { type: 'slider', xAxisIndex: PANELS.map((_, i) => i), bottom: 8, height: 22, filterMode: 'none', start: 0, end: 100, labelFormatter: (v: number) => shortLocal(v, timeZone, window.toMs - window.fromMs) },
+      {
+        type: 'slider',
+        xAxisIndex: PANELS.map((_, i) => i),
+        bottom: 8,
+        height: 22,
+        filterMode: 'none',
+        start: 0,
+        end: 100,
+        labelFormatter: (v: number) => shortLocal(v, timeZone, window.toMs - window.fromMs),
+      },
     ],
     series,
   };
@@ -146,7 +181,11 @@ const round = (x: number) => Math.round(x * 10) / 10;
 function marks(u: UnitTraces, palette: TonePalette, withLabels: boolean) {
   const data = [
     ...u.events.map((e) => ({ xAxis: Date.parse(e.at), name: e.text, lineStyle: { color: palette.primary, type: 'dashed' } })),
-    ...(u.alarms ?? []).map((a) => ({ xAxis: Date.parse(a.at), name: `Alarm: ${a.text}`, lineStyle: { color: palette.problem, type: 'solid', width: 2 } })),
+    ...(u.alarms ?? []).map((a) => ({
+      xAxis: Date.parse(a.at),
+      name: `Alarm: ${a.text}`,
+      lineStyle: { color: palette.problem, type: 'solid', width: 2 },
+    })),
   ];
   return {
     symbol: ['none', 'none'],
@@ -176,7 +215,16 @@ export function zonedMidnightUtc(date: string, timeZone: string): number {
 }
 
 function offsetMs(atMs: number, timeZone: string): number {
-  const parts = new Intl.DateTimeFormat('en-US', { timeZone, hourCycle: 'h23', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit' })
+  const parts = new Intl.DateTimeFormat('en-US', {
+    timeZone,
+    hourCycle: 'h23',
+    year: 'numeric',
+    month: '2-digit',
+    day: '2-digit',
+    hour: '2-digit',
+    minute: '2-digit',
+    second: '2-digit',
+  })
     .formatToParts(atMs)
     .reduce<Record<string, number>>((acc, p) => (p.type === 'literal' ? acc : { ...acc, [p.type]: Number(p.value) }), {});
   const asUtc = Date.UTC(parts['year']!, parts['month']! - 1, parts['day']!, parts['hour']!, parts['minute']!, parts['second']!);

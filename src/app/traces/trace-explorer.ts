@@ -54,7 +54,17 @@ export function needsDetail(loaded: { bucketMs: number }, window: TraceWindow, p
 /** Engineers' traces: units and a time range, five synchronised zoomable panels, events and alarms overlaid, CSV export. */
 @Component({
   selector: 'bw-trace-explorer',
-  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, MatSelectModule, MatTooltipModule, NgxEchartsDirective],
+  imports: [
+    FormsModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MatTooltipModule,
+    NgxEchartsDirective,
+  ],
   templateUrl: './trace-explorer.html',
   styleUrl: './trace-explorer.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -86,7 +96,9 @@ export class TraceExplorer {
     return this.sites().find((s) => s.id === u?.siteId)?.timeZone ?? 'UTC';
   });
   protected readonly groups = computed(() =>
-    this.sites().map((s) => ({ site: s, units: this.units().filter((u) => u.siteId === s.id) })).filter((g) => g.units.length),
+    this.sites()
+      .map((s) => ({ site: s, units: this.units().filter((u) => u.siteId === s.id) }))
+      .filter((g) => g.units.length),
   );
   protected readonly options = computed(() => {
     void this.scheme.current();
@@ -114,7 +126,10 @@ export class TraceExplorer {
         this.sites.set(sites);
         this.units.set(units);
         const q = this.route.snapshot.queryParamMap;
-        const ids = (q.get('units') ?? '').split(',').map(Number).filter((id) => units.some((u) => u.id === id));
+        const ids = (q.get('units') ?? '')
+          .split(',')
+          .map(Number)
+          .filter((id) => units.some((u) => u.id === id));
         const from = Date.parse(q.get('from') ?? '');
         const to = Date.parse(q.get('to') ?? '');
         if (ids.length) this.selected.set(ids.slice(0, 4));
@@ -122,8 +137,7 @@ export class TraceExplorer {
         if (ids.length && from < to) {
           this.preset.set('custom');
           this.load({ fromMs: from, toMs: to });
-        }
-        else if (ids.length) this.apply();
+        } else if (ids.length) this.apply();
       },
       error: (e: unknown) => this.listProblem.set(toApiProblem(e).message),
     });

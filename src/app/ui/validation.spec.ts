@@ -57,6 +57,8 @@ describe('form validation', () => {
     expect(password.errors).toBeNull();
     password.setValue(`${'é'.repeat(36)}a`);
     expect(password.errors).toEqual({ maxBytes: { max: 72, actual: 73 } });
-    expect(errorText(password.errors, 'Password')).toBe('Password may have at most 72 bytes: fewer characters when they are accented or not Latin.');
+    expect(errorText(password.errors, 'Password')).toBe(
+      'Password may have at most 72 bytes: fewer characters when they are accented or not Latin.',
+    );
   });
 });

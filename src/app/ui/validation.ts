@@ -47,8 +47,7 @@ export function matches(otherName: string): ValidatorFn {
 /** The value must be one of `allowed` (e.g. an IANA time zone name). */
 export function oneOf(allowed: readonly string[]): ValidatorFn {
   const set = new Set(allowed);
-  return (control: AbstractControl): ValidationErrors | null =>
-    !control.value || set.has(control.value) ? null : { oneOf: true };
+  return (control: AbstractControl): ValidationErrors | null => (!control.value || set.has(control.value) ? null : { oneOf: true });
 }
 
 export function serial(control: AbstractControl): ValidationErrors | null {

@@ -6,11 +6,21 @@ import { RELEASE_CAUTION } from './commands';
 async function render(over: Partial<CommandConfirmData>) {
   const closed: (CommandConfirmResult | undefined)[] = [];
   const data: CommandConfirmData = {
-    serial: 'QHL-2401', siteName: 'Harbourside Library Roof', title: 'Release the hold of Kwame Ruiz — QHL-2401?', description: 'It is the last hold.',
-    caution: RELEASE_CAUTION, askClear: true, confirmLabel: 'Release this hold', confirmIcon: 'play_circle', ...over,
+    serial: 'QHL-2401',
+    siteName: 'Harbourside Library Roof',
+    title: 'Release the hold of Kwame Ruiz — QHL-2401?',
+    description: 'It is the last hold.',
+    caution: RELEASE_CAUTION,
+    askClear: true,
+    confirmLabel: 'Release this hold',
+    confirmIcon: 'play_circle',
+    ...over,
   };
   TestBed.configureTestingModule({
-    providers: [{ provide: MAT_DIALOG_DATA, useValue: data }, { provide: MatDialogRef, useValue: { close: (r?: CommandConfirmResult) => closed.push(r) } }],
+    providers: [
+      { provide: MAT_DIALOG_DATA, useValue: data },
+      { provide: MatDialogRef, useValue: { close: (r?: CommandConfirmResult) => closed.push(r) } },
+    ],
   });
   const fixture = TestBed.createComponent(CommandConfirm);
   await fixture.whenStable();
@@ -21,7 +31,9 @@ async function render(over: Partial<CommandConfirmData>) {
 
 describe('CommandConfirm', () => {
   it('keeps a release disabled until nobody is within reach and a reason is written, then closes with the reason', async () => {
-    const { fixture, el, confirm, closed } = await render({ text: { label: 'Reason (required)', hint: 'Why.', required: true, maxLength: 500 } });
+    const { fixture, el, confirm, closed } = await render({
+      text: { label: 'Reason (required)', hint: 'Why.', required: true, maxLength: 500 },
+    });
     expect(el.querySelector('[data-testid="command-caution"]')!.textContent).toContain('not a lockout');
     expect(confirm().disabled).toBe(true);
     (el.querySelector('[data-testid="people-clear"] input') as HTMLInputElement).click();
@@ -37,7 +49,10 @@ describe('CommandConfirm', () => {
   });
 
   it('places a hold without the people-clear check; the note is optional', async () => {
-    const { el, confirm, closed } = await render({ askClear: false, text: { label: 'Note (optional)', hint: 'What the work is.', required: false, maxLength: 500 } });
+    const { el, confirm, closed } = await render({
+      askClear: false,
+      text: { label: 'Note (optional)', hint: 'What the work is.', required: false, maxLength: 500 },
+    });
     expect(el.querySelector('[data-testid="people-clear"]')).toBeNull();
     expect(confirm().disabled).toBe(false);
     confirm().click();

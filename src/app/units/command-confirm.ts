@@ -37,7 +37,9 @@ export interface CommandConfirmResult {
   template: `
     <h2 mat-dialog-title>{{ data.title }}</h2>
     <mat-dialog-content>
-      <p class="target"><mat-icon aria-hidden="true">solar_power</mat-icon><strong>{{ data.serial }}</strong> at {{ data.siteName }}</p>
+      <p class="target">
+        <mat-icon aria-hidden="true">solar_power</mat-icon><strong>{{ data.serial }}</strong> at {{ data.siteName }}
+      </p>
       <p data-testid="command-description">{{ data.description }}</p>
       <div class="notice caution" role="note" data-testid="command-caution">
         <mat-icon aria-hidden="true">warning</mat-icon>
@@ -46,8 +48,15 @@ export interface CommandConfirmResult {
       @if (data.text; as t) {
         <mat-form-field class="text" subscriptSizing="dynamic">
           <mat-label>{{ t.label }}</mat-label>
-          <textarea matInput rows="2" [attr.maxlength]="t.maxLength" [required]="t.required" [value]="text()" (input)="text.set($any($event.target).value)"
-                    data-testid="command-text"></textarea>
+          <textarea
+            matInput
+            rows="2"
+            [attr.maxlength]="t.maxLength"
+            [required]="t.required"
+            [value]="text()"
+            (input)="text.set($any($event.target).value)"
+            data-testid="command-text"
+          ></textarea>
           <mat-hint>{{ t.hint }}</mat-hint>
         </mat-form-field>
       }
@@ -65,9 +74,21 @@ export interface CommandConfirmResult {
     </mat-dialog-actions>
   `,
   styles: `
-    .target { display: flex; align-items: center; gap: 8px; font: var(--mat-sys-title-medium); }
-    mat-checkbox { display: block; margin-top: 8px; }
-    .text { display: block; width: 100%; margin-top: 8px; }
+    .target {
+      display: flex;
+      align-items: center;
+      gap: 8px;
+      font: var(--mat-sys-title-medium);
+    }
+    mat-checkbox {
+      display: block;
+      margin-top: 8px;
+    }
+    .text {
+      display: block;
+      width: 100%;
+      margin-top: 8px;
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
@@ -76,7 +97,9 @@ export class CommandConfirm {
   private readonly ref = inject<MatDialogRef<CommandConfirm, CommandConfirmResult>>(MatDialogRef);
   protected readonly clear = signal(false);
   protected readonly text = signal('');
-  protected readonly ready = computed(() => (!this.data.askClear || this.clear()) && (!this.data.text?.required || this.text().trim().length > 0));
+  protected readonly ready = computed(
+    () => (!this.data.askClear || this.clear()) && (!this.data.text?.required || this.text().trim().length > 0),
+  );
 
   protected confirm(): void {
     if (this.ready()) this.ref.close({ text: this.text().trim() });

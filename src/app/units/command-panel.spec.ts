@@ -4,19 +4,52 @@ import type { HoldView } from '../../../shared/contracts/holds';
 import type { UnitConfig } from '../../../shared/contracts/wire';
 import { CommandPanel, settingsFromForm } from './command-panel';
 import {
-  commandChoices, CONFIGURE_CAUTION, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, MOTION_CAUTION, queuedNote, RELEASE_CAUTION, upsertCommand,
+  commandChoices,
+  CONFIGURE_CAUTION,
+  describeCommand,
+  describeConfigure,
+  describeRelease,
+  HOLD_CAUTION,
+  MOTION_CAUTION,
+  queuedNote,
+  RELEASE_CAUTION,
+  upsertCommand,
   type CommandChoice,
 } from './commands';
 
 const state = (over: Partial<UnitLiveState> = {}): UnitLiveState => ({
-  unitId: 1, serial: 'QHL-2401', siteId: 1, online: true, lastReportAt: '2026-06-21T10:00:00Z', mode: 'settled', poaWm2: 800, dcPowerW: 300,
-  tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 30, cmdAzimuthDeg: 180, tiltDiffWm2: 0, azimuthDiffWm2: 0, moduleTempC: 30, onHold: false, holds: [], ...over,
+  unitId: 1,
+  serial: 'QHL-2401',
+  siteId: 1,
+  online: true,
+  lastReportAt: '2026-06-21T10:00:00Z',
+  mode: 'settled',
+  poaWm2: 800,
+  dcPowerW: 300,
+  tiltDeg: 30,
+  azimuthDeg: 180,
+  cmdTiltDeg: 30,
+  cmdAzimuthDeg: 180,
+  tiltDiffWm2: 0,
+  azimuthDiffWm2: 0,
+  moduleTempC: 30,
+  onHold: false,
+  holds: [],
+  ...over,
 });
 const reasons = (role: Parameters<typeof commandChoices>[0], s: UnitLiveState | null, meId: number | null = null) =>
   Object.fromEntries(commandChoices(role, s, meId).map((c) => [c.kind, c.disabledReason]));
 const hold = (id: number, holderId: number, name: string, over: Partial<HoldView> = {}): HoldView => ({
-  id, unitId: 1, holder: { kind: 'person', id: holderId, name }, note: null, placedAt: '2026-06-21T09:00:00Z', placedBy: { id: holderId, name },
-  releasedAt: null, releasedBy: null, releaseReason: null, ...over,
+  id,
+  unitId: 1,
+  holder: { kind: 'person', id: holderId, name },
+  note: null,
+  placedAt: '2026-06-21T09:00:00Z',
+  placedBy: { id: holderId, name },
+  releasedAt: null,
+  releasedBy: null,
+  releaseReason: null,
+  ...over,
 });
 const INES = 5;
 const KWAME = 6;
@@ -39,7 +72,10 @@ describe('command panel', () => {
     expect(ines['release-hold']).toBeNull();
     expect(ines['hold']).toMatch(/You hold this unit already/);
     const engineer = reasons('engineer', s, 9);
-    for (const k of ['scan', 'goto', 'stow', 'release-stow']) expect(engineer[k]).toBe('The unit is on maintenance hold: motion is refused until every hold is released (held by Ines Calder and Kwame Ruiz).');
+    for (const k of ['scan', 'goto', 'stow', 'release-stow'])
+      expect(engineer[k]).toBe(
+        'The unit is on maintenance hold: motion is refused until every hold is released (held by Ines Calder and Kwame Ruiz).',
+      );
     expect(engineer['hold']).toBeNull();
     expect(engineer['release-hold']).toMatch(/no hold on this unit.*or by an admin giving a reason/);
     expect(reasons('admin', s, 1)['release-hold']).toMatch(/release others from the hold list/);
@@ -61,8 +97,12 @@ describe('command panel', () => {
   it('tells a releaser whether the unit stays held or may move at once', () => {
     const a = hold(1, INES, 'Ines Calder');
     const b = hold(2, KWAME, 'Kwame Ruiz');
-    expect(describeRelease('QHL-2401', a, [a, b], INES)).toBe('Your hold on QHL-2401 ends. QHL-2401 stays held by Kwame Ruiz and does not move until every hold is released.');
-    expect(describeRelease('QHL-2401', b, [b], 1)).toBe('The hold of Kwame Ruiz on QHL-2401 ends. It is the last hold: QHL-2401 will resume tracking and may start to move at once.');
+    expect(describeRelease('QHL-2401', a, [a, b], INES)).toBe(
+      'Your hold on QHL-2401 ends. QHL-2401 stays held by Kwame Ruiz and does not move until every hold is released.',
+    );
+    expect(describeRelease('QHL-2401', b, [b], 1)).toBe(
+      'The hold of Kwame Ruiz on QHL-2401 ends. It is the last hold: QHL-2401 will resume tracking and may start to move at once.',
+    );
     expect(describeConfigure('QHL-2401', { gain: 0.5, detectorTiltDeg: 12 })).toContain('(gain 0.5, detector tilt 12°)');
   });
 
@@ -74,7 +114,9 @@ describe('command panel', () => {
   });
 
   it('names the unit and the motion, and the caution covers the hazards and the rule that software is not lockout', () => {
-    expect(describeCommand('QHL-2401', 'goto', { tiltDeg: 35, azimuthDeg: 170 })).toContain('QHL-2401 will turn its panel to tilt 35° and azimuth 170°');
+    expect(describeCommand('QHL-2401', 'goto', { tiltDeg: 35, azimuthDeg: 170 })).toContain(
+      'QHL-2401 will turn its panel to tilt 35° and azimuth 170°',
+    );
     expect(describeCommand('QHL-2401', 'stow')).toContain('QHL-2401');
     for (const words of [/pinch/, /stored mechanical energy/, /DC voltage/, /wind/, /not a lockout/, /Local codes and licensed practice/]) {
       expect(MOTION_CAUTION).toMatch(words);
@@ -92,15 +134,26 @@ describe('command panel', () => {
   });
 
   it('keeps the history newest first, replacing a command when its status changes', () => {
-    const c = (id: string, at: string, status: CommandView['status']): CommandView =>
-      ({ id, unitId: 1, kind: 'scan', params: null, status, reason: null, issuedBy: { id: 1, name: 'A' }, issuedAt: at, sentAt: null, ackedAt: null, finishedAt: null, expiresAt: null });
+    const c = (id: string, at: string, status: CommandView['status']): CommandView => ({
+      id,
+      unitId: 1,
+      kind: 'scan',
+      params: null,
+      status,
+      reason: null,
+      issuedBy: { id: 1, name: 'A' },
+      issuedAt: at,
+      sentAt: null,
+      ackedAt: null,
+      finishedAt: null,
+      expiresAt: null,
+    });
     let h = upsertCommand([], c('a', '2026-01-01T10:00:00Z', 'queued'));
     h = upsertCommand(h, c('b', '2026-01-01T11:00:00Z', 'sent'));
     h = upsertCommand(h, c('a', '2026-01-01T10:00:00Z', 'completed'));
     expect(h.map((x) => `${x.id}:${x.status}`)).toEqual(['b:sent', 'a:completed']);
   });
 });
-
 
 describe('CommandPanel', () => {
   const choice = (kind: CommandChoice['kind'], disabledReason: string | null = null, motion = true): CommandChoice =>
@@ -132,7 +185,9 @@ describe('CommandPanel', () => {
     const scan = el.querySelector<HTMLButtonElement>('[data-testid="cmd-scan"]')!;
     expect(scan.disabled).toBe(true);
     expect(el.querySelector('#why-scan')!.textContent).toBe('The unit is on maintenance hold.');
-    expect(el.querySelector('[data-testid="cmd-stow"]')!.parentElement!.textContent).toContain('Moves the unit; you will be asked to confirm.');
+    expect(el.querySelector('[data-testid="cmd-stow"]')!.parentElement!.textContent).toContain(
+      'Moves the unit; you will be asked to confirm.',
+    );
     el.querySelector<HTMLButtonElement>('[data-testid="cmd-stow"]')!.click();
     expect(sent).toEqual(['stow']);
   });
@@ -150,7 +205,9 @@ describe('CommandPanel', () => {
     await type('gain', '0.5');
     await type('detectorTiltDeg', '60');
     expect(submit().disabled).toBe(true);
-    expect(el.querySelector('#why-configure')!.textContent).toBe('Detector tilt 0.5–45°, gain 0.001–100, deadband 0–500 W/m², report interval 1–3600 s.');
+    expect(el.querySelector('#why-configure')!.textContent).toBe(
+      'Detector tilt 0.5–45°, gain 0.001–100, deadband 0–500 W/m², report interval 1–3600 s.',
+    );
     await type('detectorTiltDeg', '12');
     expect(submit().disabled).toBe(false);
     submit().click();
@@ -159,8 +216,17 @@ describe('CommandPanel', () => {
 
   it('reads empty and half-typed fields as unchanged, and every range end as allowed', () => {
     expect(settingsFromForm({ detectorTiltDeg: null, gain: null, deadbandWm2: null, reportIntervalS: null })).toBeNull();
-    expect(settingsFromForm({ detectorTiltDeg: '' as unknown as number, gain: 100, deadbandWm2: 0, reportIntervalS: 3600 })).toEqual({ gain: 100, deadbandWm2: 0, reportIntervalS: 3600 });
-    expect(settingsFromForm({ detectorTiltDeg: 0.5, gain: 0.001, deadbandWm2: 500, reportIntervalS: 1 })).toEqual({ detectorTiltDeg: 0.5, gain: 0.001, deadbandWm2: 500, reportIntervalS: 1 });
+    expect(settingsFromForm({ detectorTiltDeg: '' as unknown as number, gain: 100, deadbandWm2: 0, reportIntervalS: 3600 })).toEqual({
+      gain: 100,
+      deadbandWm2: 0,
+      reportIntervalS: 3600,
+    });
+    expect(settingsFromForm({ detectorTiltDeg: 0.5, gain: 0.001, deadbandWm2: 500, reportIntervalS: 1 })).toEqual({
+      detectorTiltDeg: 0.5,
+      gain: 0.001,
+      deadbandWm2: 500,
+      reportIntervalS: 1,
+    });
     expect(settingsFromForm({ detectorTiltDeg: null, gain: null, deadbandWm2: null, reportIntervalS: 0.5 })).toBeNull();
     expect(settingsFromForm({ detectorTiltDeg: null, gain: Number.NaN, deadbandWm2: null, reportIntervalS: null })).toBeNull();
   });

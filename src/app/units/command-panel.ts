@@ -44,7 +44,10 @@ export function settingsFromForm(fields: Record<keyof UnitConfig, number | null>
       @if (offline()) {
         <div class="notice caution" role="status" data-testid="offline-notice">
           <mat-icon aria-hidden="true">cloud_off</mat-icon>
-          <p>{{ serial() }} is offline. Commands wait in the queue; motion and settings expire if the unit does not reconnect in time. A hold is in force as soon as it is placed.</p>
+          <p>
+            {{ serial() }} is offline. Commands wait in the queue; motion and settings expire if the unit does not reconnect in time. A hold
+            is in force as soon as it is placed.
+          </p>
         </div>
       }
       <div class="goto" role="group" aria-label="Go to target">
@@ -63,8 +66,14 @@ export function settingsFromForm(fields: Record<keyof UnitConfig, number | null>
       <ul class="commands">
         @for (c of choices(); track c.kind) {
           <li>
-            <button mat-stroked-button type="button" [disabled]="!!c.disabledReason || busy()" (click)="send.emit(c)" [attr.data-testid]="'cmd-' + c.kind"
-                    [attr.aria-describedby]="c.disabledReason ? 'why-' + c.kind : null">
+            <button
+              mat-stroked-button
+              type="button"
+              [disabled]="!!c.disabledReason || busy()"
+              (click)="send.emit(c)"
+              [attr.data-testid]="'cmd-' + c.kind"
+              [attr.aria-describedby]="c.disabledReason ? 'why-' + c.kind : null"
+            >
               <mat-icon>{{ c.icon }}</mat-icon>{{ c.label }}
             </button>
             @if (c.disabledReason) {
@@ -78,35 +87,86 @@ export function settingsFromForm(fields: Record<keyof UnitConfig, number | null>
         }
       </ul>
       @if (canConfigure()) {
-        <form class="settings" (submit)="$event.preventDefault(); sendSettings()" aria-labelledby="settings-title" data-testid="settings-form">
+        <form
+          class="settings"
+          (submit)="$event.preventDefault(); sendSettings()"
+          aria-labelledby="settings-title"
+          data-testid="settings-form"
+        >
           <h3 id="settings-title">Unit settings</h3>
           <p class="hint">Fill in only what should change; the unit keeps the rest.</p>
           <div class="setting-fields">
             <mat-form-field subscriptSizing="dynamic">
               <mat-label>Detector tilt</mat-label>
-              <input matInput type="number" min="0.5" max="45" step="0.5" name="detectorTiltDeg" [ngModel]="cfgDetectorTilt()" (ngModelChange)="cfgDetectorTilt.set($event)" />
+              <input
+                matInput
+                type="number"
+                min="0.5"
+                max="45"
+                step="0.5"
+                name="detectorTiltDeg"
+                [ngModel]="cfgDetectorTilt()"
+                (ngModelChange)="cfgDetectorTilt.set($event)"
+              />
               <span matTextSuffix>°</span>
             </mat-form-field>
             <mat-form-field subscriptSizing="dynamic">
               <mat-label>Gain</mat-label>
-              <input matInput type="number" min="0.001" max="100" step="0.1" name="gain" [ngModel]="cfgGain()" (ngModelChange)="cfgGain.set($event)" />
+              <input
+                matInput
+                type="number"
+                min="0.001"
+                max="100"
+                step="0.1"
+                name="gain"
+                [ngModel]="cfgGain()"
+                (ngModelChange)="cfgGain.set($event)"
+              />
             </mat-form-field>
             <mat-form-field subscriptSizing="dynamic">
               <mat-label>Deadband</mat-label>
-              <input matInput type="number" min="0" max="500" step="1" name="deadbandWm2" [ngModel]="cfgDeadband()" (ngModelChange)="cfgDeadband.set($event)" />
+              <input
+                matInput
+                type="number"
+                min="0"
+                max="500"
+                step="1"
+                name="deadbandWm2"
+                [ngModel]="cfgDeadband()"
+                (ngModelChange)="cfgDeadband.set($event)"
+              />
               <span matTextSuffix>W/m²</span>
             </mat-form-field>
             <mat-form-field subscriptSizing="dynamic">
               <mat-label>Report interval</mat-label>
-              <input matInput type="number" min="1" max="3600" step="1" name="reportIntervalS" [ngModel]="cfgReportInterval()" (ngModelChange)="cfgReportInterval.set($event)" />
+              <input
+                matInput
+                type="number"
+                min="1"
+                max="3600"
+                step="1"
+                name="reportIntervalS"
+                [ngModel]="cfgReportInterval()"
+                (ngModelChange)="cfgReportInterval.set($event)"
+              />
               <span matTextSuffix>s</span>
             </mat-form-field>
           </div>
           <div class="step-actions">
-            <button mat-stroked-button type="submit" [disabled]="!settings() || busy()" data-testid="cmd-configure" aria-describedby="why-configure">
+            <button
+              mat-stroked-button
+              type="submit"
+              [disabled]="!settings() || busy()"
+              data-testid="cmd-configure"
+              aria-describedby="why-configure"
+            >
               <mat-icon>tune</mat-icon>Send settings
             </button>
-            <span class="why" id="why-configure">{{ settings() ? 'Changes how the unit moves; you will be asked to confirm.' : 'Detector tilt 0.5–45°, gain 0.001–100, deadband 0–500 W/m², report interval 1–3600 s.' }}</span>
+            <span class="why" id="why-configure">{{
+              settings()
+                ? 'Changes how the unit moves; you will be asked to confirm.'
+                : 'Detector tilt 0.5–45°, gain 0.001–100, deadband 0–500 W/m², report interval 1–3600 s.'
+            }}</span>
           </div>
         </form>
       }
@@ -114,14 +174,55 @@ export function settingsFromForm(fields: Record<keyof UnitConfig, number | null>
   `,
   styleUrl: './unit-panel.scss',
   styles: `
-    .goto { display: flex; gap: 12px; flex-wrap: wrap; mat-form-field { width: 130px; } }
-    .commands { list-style: none; padding: 0; margin: 8px 0 0; display: grid; gap: 8px;
-      li { display: flex; flex-wrap: wrap; align-items: center; gap: 4px 12px; }
-      button { min-width: 240px; justify-content: flex-start; } }
-    .step-actions { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 12px; margin-top: 8px; }
-    .settings { margin-top: 16px; padding-top: 8px; border-top: 1px solid var(--mat-sys-outline-variant);
-      h3 { font: var(--mat-sys-title-small); margin: 0 0 4px; } }
-    .setting-fields { display: flex; flex-wrap: wrap; gap: 8px 12px; mat-form-field { width: 150px; } }
+    .goto {
+      display: flex;
+      gap: 12px;
+      flex-wrap: wrap;
+      mat-form-field {
+        width: 130px;
+      }
+    }
+    .commands {
+      list-style: none;
+      padding: 0;
+      margin: 8px 0 0;
+      display: grid;
+      gap: 8px;
+      li {
+        display: flex;
+        flex-wrap: wrap;
+        align-items: center;
+        gap: 4px 12px;
+      }
+      button {
+        min-width: 240px;
+        justify-content: flex-start;
+      }
+    }
+    .step-actions {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px 12px;
+      margin-top: 8px;
+    }
+    .settings {
+      margin-top: 16px;
+      padding-top: 8px;
+      border-top: 1px solid var(--mat-sys-outline-variant);
+      h3 {
+        font: var(--mat-sys-title-small);
+        margin: 0 0 4px;
+      }
+    }
+    .setting-fields {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px 12px;
+      mat-form-field {
+        width: 150px;
+      }
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
@@ -149,7 +250,12 @@ export class CommandPanel {
   protected readonly cfgDeadband = signal<number | null>(null);
   protected readonly cfgReportInterval = signal<number | null>(null);
   protected readonly settings = computed(() =>
-    settingsFromForm({ detectorTiltDeg: this.cfgDetectorTilt(), gain: this.cfgGain(), deadbandWm2: this.cfgDeadband(), reportIntervalS: this.cfgReportInterval() }),
+    settingsFromForm({
+      detectorTiltDeg: this.cfgDetectorTilt(),
+      gain: this.cfgGain(),
+      deadbandWm2: this.cfgDeadband(),
+      reportIntervalS: this.cfgReportInterval(),
+    }),
   );
 
   protected sendSettings(): void {

@@ -16,14 +16,16 @@ export interface CommandChoice {
   disabledReason: string | null;
 }
 
-const CHOICES: Omit<CommandChoice, 'disabledReason'>[] = ([
-  { kind: 'scan', label: 'Scan the sky', icon: 'radar' },
-  { kind: 'goto', label: 'Go to orientation', icon: 'my_location' },
-  { kind: 'stow', label: 'Stow', icon: 'shield' },
-  { kind: 'release-stow', label: 'Release stow', icon: 'shield_with_heart' },
-  { kind: 'hold', label: 'Put on maintenance hold', icon: 'front_hand' },
-  { kind: 'release-hold', label: 'Release my hold', icon: 'play_circle' },
-] satisfies Omit<CommandChoice, 'disabledReason' | 'motion'>[]).map((c) => ({ ...c, motion: MOTION_COMMANDS.includes(c.kind) }));
+const CHOICES: Omit<CommandChoice, 'disabledReason'>[] = (
+  [
+    { kind: 'scan', label: 'Scan the sky', icon: 'radar' },
+    { kind: 'goto', label: 'Go to orientation', icon: 'my_location' },
+    { kind: 'stow', label: 'Stow', icon: 'shield' },
+    { kind: 'release-stow', label: 'Release stow', icon: 'shield_with_heart' },
+    { kind: 'hold', label: 'Put on maintenance hold', icon: 'front_hand' },
+    { kind: 'release-hold', label: 'Release my hold', icon: 'play_circle' },
+  ] satisfies Omit<CommandChoice, 'disabledReason' | 'motion'>[]
+).map((c) => ({ ...c, motion: MOTION_COMMANDS.includes(c.kind) }));
 
 /** The caller's own hold in force on the unit, if any. */
 export function ownHold(holds: readonly HoldView[] | null | undefined, meId: number | null | undefined): HoldView | undefined {
@@ -43,13 +45,20 @@ export function holderNames(holds: readonly HoldView[]): string {
 
 /** The commands a role may send to a unit in its current state, each with the reason it is unavailable, if any. */
 export function commandChoices(
-  role: Role | null, live: UnitLiveState | null | undefined, meId: number | null = null, holds: readonly HoldView[] = live?.holds ?? [],
+  role: Role | null,
+  live: UnitLiveState | null | undefined,
+  meId: number | null = null,
+  holds: readonly HoldView[] = live?.holds ?? [],
 ): CommandChoice[] {
   return CHOICES.map((c) => ({ ...c, disabledReason: reasonUnavailable(c, role, live, meId, holds) }));
 }
 
 function reasonUnavailable(
-  c: Omit<CommandChoice, 'disabledReason'>, role: Role | null, live: UnitLiveState | null | undefined, meId: number | null, holds: readonly HoldView[],
+  c: Omit<CommandChoice, 'disabledReason'>,
+  role: Role | null,
+  live: UnitLiveState | null | undefined,
+  meId: number | null,
+  holds: readonly HoldView[],
 ): string | null {
   if (!role || role === 'owner') return 'Owners cannot command units.';
   if (role === 'crew' && c.motion) return 'Field crews may put a unit on hold or release it; motion commands come from the control room.';
@@ -93,7 +102,8 @@ export function describeCommand(serial: string, kind: CommandChoice['kind'], tar
 export function describeRelease(serial: string, hold: HoldView, holds: readonly HoldView[], meId: number | null): string {
   const others = holds.filter((h) => h.id !== hold.id);
   const whose = hold.holder.kind === 'person' && hold.holder.id === meId ? 'Your hold' : `The hold of ${hold.holder.name}`;
-  if (others.length) return `${whose} on ${serial} ends. ${serial} stays held by ${holderNames(others)} and does not move until every hold is released.`;
+  if (others.length)
+    return `${whose} on ${serial} ends. ${serial} stays held by ${holderNames(others)} and does not move until every hold is released.`;
   return `${whose} on ${serial} ends. It is the last hold: ${serial} will resume tracking and may start to move at once.`;
 }
 
@@ -137,14 +147,14 @@ export const HOLD_CAUTION =
 export const RELEASE_CAUTION =
   'Releasing the last hold lets the unit move at once: its frame and drives have pinch and crush points and may carry stored mechanical energy. ' +
   'Make sure everyone is clear of the unit. A hold is a software lock, not a lockout: remove locks and tags, restore energy and hand the unit back ' +
-  'only as your site\'s lockout/tagout procedure and the manufacturer\'s instructions say. The modules stay live while lit. ' +
+  "only as your site's lockout/tagout procedure and the manufacturer's instructions say. The modules stay live while lit. " +
   'Local codes and licensed practice govern all work on site.';
 
 /** Caution shown with new unit settings. */
 export const CONFIGURE_CAUTION =
   'New settings change how the tracker seeks and moves, and it may start to move at once to act on them. Make sure nobody is within reach of the unit: ' +
   'its frame and drives have pinch and crush points. This software is not a lockout: before any work, stow the unit and isolate and lock out every ' +
-  'energy source, batteries included, as your site\'s lockout/tagout procedure says. Local codes and licensed practice govern all work on site.';
+  "energy source, batteries included, as your site's lockout/tagout procedure says. Local codes and licensed practice govern all work on site.";
 
 export const STATUS_LOOK: Record<CommandStatus, { label: string; icon: string }> = {
   queued: { label: 'Waiting for the unit', icon: 'schedule' },
@@ -159,7 +169,8 @@ export const STATUS_LOOK: Record<CommandStatus, { label: string; icon: string }>
 /** What a queued command is waiting for, in words: the unit is offline; motion and settings expire, holds wait. */
 export function queuedNote(c: Pick<CommandView, 'kind' | 'status' | 'expiresAt'>, timeZone: string): string | null {
   if (c.status !== 'queued') return null;
-  if (c.kind === 'hold') return 'Queued: the unit is offline. The hold is in force already (motion commands are refused); the unit gets it when it reconnects.';
+  if (c.kind === 'hold')
+    return 'Queued: the unit is offline. The hold is in force already (motion commands are refused); the unit gets it when it reconnects.';
   if (c.kind === 'release-hold') return 'Queued: the unit is offline. It gets the release when it reconnects and may move at once then.';
   if (c.expiresAt) return `Queued: the unit is offline. It expires at ${siteTime(c.expiresAt, timeZone)} if the unit does not reconnect.`;
   return 'Queued: the unit is offline.';

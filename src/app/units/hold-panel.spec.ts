@@ -4,8 +4,16 @@ import type { HoldView } from '../../../shared/contracts/holds';
 import { HoldPanel } from './hold-panel';
 
 const hold = (id: number, holderId: number, name: string, over: Partial<HoldView> = {}): HoldView => ({
-  id, unitId: 1, holder: { kind: 'person', id: holderId, name }, note: null, placedAt: '2026-06-21T09:00:00Z', placedBy: { id: holderId, name },
-  releasedAt: null, releasedBy: null, releaseReason: null, ...over,
+  id,
+  unitId: 1,
+  holder: { kind: 'person', id: holderId, name },
+  note: null,
+  placedAt: '2026-06-21T09:00:00Z',
+  placedBy: { id: holderId, name },
+  releasedAt: null,
+  releasedBy: null,
+  releaseReason: null,
+  ...over,
 });
 
 async function render(inputs: { holds: HoldView[] | null; meId?: number; role?: Role; problem?: string | null; reportedHeld?: boolean }) {
@@ -29,7 +37,7 @@ describe('HoldPanel', () => {
   const ines = hold(1, 5, 'Ines Calder', { note: 'Replacing the azimuth drive' });
   const kwame = hold(2, 6, 'Kwame Ruiz');
 
-  it('lists who holds the unit, since when and why, and offers a release only on the viewer\'s own hold', async () => {
+  it("lists who holds the unit, since when and why, and offers a release only on the viewer's own hold", async () => {
     const { el, text, released } = await render({ holds: [ines, kwame], meId: 5, role: 'crew' });
     expect(text('[data-testid="hold-1"] .who')).toBe('Ines Calder (you)');
     expect(text('[data-testid="hold-1"] .since')).toMatch(/^Since 21 Jun 2026.*10:00:00 BST · 30 min ago$/);
@@ -42,24 +50,34 @@ describe('HoldPanel', () => {
     expect(released.map((h) => h.id)).toEqual([1]);
   });
 
-  it('lets an admin release anyone\'s hold', async () => {
+  it("lets an admin release anyone's hold", async () => {
     const { el, released } = await render({ holds: [ines, kwame], meId: 1, role: 'admin' });
     expect(el.querySelector('[data-testid="release-other-2"]')!.textContent).toContain('Release for Kwame Ruiz');
     (el.querySelector('[data-testid="release-other-1"]') as HTMLButtonElement).click();
     expect(released.map((h) => h.id)).toEqual([1]);
   });
 
-  it('names a ticket\'s hold and who may end it', async () => {
-    const { text } = await render({ holds: [hold(3, 41, 'x', { holder: { kind: 'ticket', id: 41, name: 'Ticket 41' }, placedBy: { id: 5, name: 'Ines Calder' } })], meId: 5, role: 'crew' });
+  it("names a ticket's hold and who may end it", async () => {
+    const { text } = await render({
+      holds: [hold(3, 41, 'x', { holder: { kind: 'ticket', id: 41, name: 'Ticket 41' }, placedBy: { id: 5, name: 'Ines Calder' } })],
+      meId: 5,
+      role: 'crew',
+    });
     expect(text('[data-testid="hold-3"] .who')).toBe('Ticket 41');
     expect(text('[data-testid="hold-3"] .since')).toMatch(/placed by Ines Calder$/);
-    expect(text('[data-testid="hold-3"]')).toContain("Released by the ticket's check-out, cancel or close, or by an admin giving a reason.");
+    expect(text('[data-testid="hold-3"]')).toContain(
+      "Released by the ticket's check-out, cancel or close, or by an admin giving a reason.",
+    );
   });
 
   it('shows loading, empty, unit-reported and error states', async () => {
     expect((await render({ holds: null })).el.querySelector('mat-progress-bar')).not.toBeNull();
     expect((await render({ holds: [] })).text('[data-testid="holds-empty"]')).toContain('No holds in force.');
-    expect((await render({ holds: [], reportedHeld: true })).text('[data-testid="holds-empty"]')).toContain('the unit reports that it is held');
-    expect((await render({ holds: null, problem: 'Server unreachable.' })).text('[data-testid="holds-problem"]')).toContain('The holds could not be loaded. Server unreachable.');
+    expect((await render({ holds: [], reportedHeld: true })).text('[data-testid="holds-empty"]')).toContain(
+      'the unit reports that it is held',
+    );
+    expect((await render({ holds: null, problem: 'Server unreachable.' })).text('[data-testid="holds-problem"]')).toContain(
+      'The holds could not be loaded. Server unreachable.',
+    );
   });
 });

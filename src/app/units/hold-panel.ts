@@ -38,23 +38,39 @@ interface HoldRow {
         <div class="empty-state small" data-testid="holds-empty">
           <mat-icon aria-hidden="true">lock_open</mat-icon>
           @if (reportedHeld()) {
-            <p>No hold is in force here, but the unit reports that it is held (a hold set on the unit itself, or a release not carried out yet). Motion stays refused until it reports otherwise.</p>
+            <p>
+              No hold is in force here, but the unit reports that it is held (a hold set on the unit itself, or a release not carried out
+              yet). Motion stays refused until it reports otherwise.
+            </p>
           } @else {
             <p>No holds in force. Anyone who works on the unit puts their own hold on it first.</p>
           }
         </div>
       } @else {
-        <p class="hint">Motion is refused while any hold is in force and resumes only when the last one is released. A hold is a software lock, not a lockout.</p>
+        <p class="hint">
+          Motion is refused while any hold is in force and resumes only when the last one is released. A hold is a software lock, not a
+          lockout.
+        </p>
         <ul class="holds" aria-label="Holds in force, oldest first">
           @for (r of rows(); track r.hold.id) {
             <li [attr.data-testid]="'hold-' + r.hold.id">
               <mat-icon aria-hidden="true">{{ r.hold.holder.kind === 'ticket' ? 'confirmation_number' : 'front_hand' }}</mat-icon>
               <div class="what">
-                <p class="who"><strong>{{ r.hold.holder.name }}</strong>@if (r.mine) {<span class="you"> (you)</span>}</p>
-                <p class="quiet since" [matTooltip]="utcTime(r.hold.placedAt)">Since {{ siteTime(r.hold.placedAt, timeZone(), true) }} · {{ ago(r.hold.placedAt, now()) }}
-                  @if (r.hold.placedBy.id !== r.hold.holder.id || r.hold.holder.kind !== 'person') { · placed by {{ r.hold.placedBy.name }} }
+                <p class="who">
+                  <strong>{{ r.hold.holder.name }}</strong>
+                  @if (r.mine) {
+                    <span class="you"> (you)</span>
+                  }
                 </p>
-                @if (r.hold.note) { <p class="note" data-testid="hold-note">{{ r.hold.note }}</p> }
+                <p class="quiet since" [matTooltip]="utcTime(r.hold.placedAt)">
+                  Since {{ siteTime(r.hold.placedAt, timeZone(), true) }} · {{ ago(r.hold.placedAt, now()) }}
+                  @if (r.hold.placedBy.id !== r.hold.holder.id || r.hold.holder.kind !== 'person') {
+                    · placed by {{ r.hold.placedBy.name }}
+                  }
+                </p>
+                @if (r.hold.note) {
+                  <p class="note" data-testid="hold-note">{{ r.hold.note }}</p>
+                }
               </div>
               <div class="act">
                 @if (r.action === 'own') {
@@ -62,7 +78,13 @@ interface HoldRow {
                     <mat-icon>play_circle</mat-icon>Release my hold
                   </button>
                 } @else if (r.action === 'admin') {
-                  <button mat-stroked-button type="button" [disabled]="busy()" (click)="release.emit(r.hold)" [attr.data-testid]="'release-other-' + r.hold.id">
+                  <button
+                    mat-stroked-button
+                    type="button"
+                    [disabled]="busy()"
+                    (click)="release.emit(r.hold)"
+                    [attr.data-testid]="'release-other-' + r.hold.id"
+                  >
                     <mat-icon>admin_panel_settings</mat-icon>Release for {{ r.hold.holder.name }}…
                   </button>
                 } @else {
@@ -76,20 +98,73 @@ interface HoldRow {
     </section>
   `,
   styles: `
-    :host { display: block; min-width: 0; }
-    .panel { border: 1px solid var(--mat-sys-outline-variant); border-radius: 12px; padding: 12px 16px; background: var(--mat-sys-surface-container-lowest);
-      h2 { font: var(--mat-sys-title-medium); margin: 0 0 8px; } }
-    .holds { list-style: none; padding: 0; margin: 8px 0 0; display: grid; gap: 8px; }
-    .holds li { display: flex; flex-wrap: wrap; align-items: flex-start; gap: 8px 12px; padding: 8px 12px; border-radius: 12px;
-      background: var(--bw-caution-container); color: var(--mat-sys-on-surface); border-left: 4px solid var(--bw-caution); }
-    .holds li > mat-icon { color: var(--bw-caution); flex: none; }
-    .what { flex: 1 1 200px; min-width: 0; p { margin: 0 0 2px; overflow-wrap: anywhere; } }
-    .you { font: var(--mat-sys-body-small); }
-    .note { font: var(--mat-sys-body-medium); }
-    .act { flex: 0 1 auto; display: flex; align-items: center; }
-    .quiet { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-small); }
-    .hint { font: var(--mat-sys-body-small); color: var(--mat-sys-on-surface-variant); margin: 4px 0; }
-    .empty-state.small { padding: 16px; }
+    :host {
+      display: block;
+      min-width: 0;
+    }
+    .panel {
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: 12px;
+      padding: 12px 16px;
+      background: var(--mat-sys-surface-container-lowest);
+      h2 {
+        font: var(--mat-sys-title-medium);
+        margin: 0 0 8px;
+      }
+    }
+    .holds {
+      list-style: none;
+      padding: 0;
+      margin: 8px 0 0;
+      display: grid;
+      gap: 8px;
+    }
+    .holds li {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: flex-start;
+      gap: 8px 12px;
+      padding: 8px 12px;
+      border-radius: 12px;
+      background: var(--bw-caution-container);
+      color: var(--mat-sys-on-surface);
+      border-left: 4px solid var(--bw-caution);
+    }
+    .holds li > mat-icon {
+      color: var(--bw-caution);
+      flex: none;
+    }
+    .what {
+      flex: 1 1 200px;
+      min-width: 0;
+      p {
+        margin: 0 0 2px;
+        overflow-wrap: anywhere;
+      }
+    }
+    .you {
+      font: var(--mat-sys-body-small);
+    }
+    .note {
+      font: var(--mat-sys-body-medium);
+    }
+    .act {
+      flex: 0 1 auto;
+      display: flex;
+      align-items: center;
+    }
+    .quiet {
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-body-small);
+    }
+    .hint {
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+      margin: 4px 0;
+    }
+    .empty-state.small {
+      padding: 16px;
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
@@ -114,9 +189,10 @@ export class HoldPanel {
     (this.holds() ?? []).map((hold) => {
       const mine = hold.holder.kind === 'person' && hold.holder.id === this.meId();
       const action = mine ? 'own' : this.role() === 'admin' ? 'admin' : null;
-      const whoMay = hold.holder.kind === 'ticket'
-        ? "Released by the ticket's check-out, cancel or close, or by an admin giving a reason."
-        : `Only ${hold.holder.name} or an admin giving a reason can release this hold.`;
+      const whoMay =
+        hold.holder.kind === 'ticket'
+          ? "Released by the ticket's check-out, cancel or close, or by an admin giving a reason."
+          : `Only ${hold.holder.name} or an admin giving a reason can release this hold.`;
       return { hold, mine, action, whoMay };
     }),
   );

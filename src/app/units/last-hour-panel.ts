@@ -17,14 +17,27 @@ import { lastHourOptions, type HourPoint } from './last-hour';
         <mat-progress-bar mode="indeterminate" aria-label="Loading the last hour" />
       }
       @if (!loading() && points().length === 0) {
-        <div class="empty-state small"><mat-icon aria-hidden="true">show_chart</mat-icon><p>No reports in the last hour.</p></div>
+        <div class="empty-state small">
+          <mat-icon aria-hidden="true">show_chart</mat-icon>
+          <p>No reports in the last hour.</p>
+        </div>
       } @else {
-        <div class="hour-chart" echarts [options]="options()" role="img" aria-label="In-plane irradiance, output and angles over the last hour"></div>
+        <div
+          class="hour-chart"
+          echarts
+          [options]="options()"
+          role="img"
+          aria-label="In-plane irradiance, output and angles over the last hour"
+        ></div>
       }
     </section>
   `,
   styleUrl: './unit-panel.scss',
-  styles: `.hour-chart { height: 420px; }`,
+  styles: `
+    .hour-chart {
+      height: 420px;
+    }
+  `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class LastHourPanel {

@@ -17,7 +17,15 @@ export interface HourPoint {
 const HOUR_MS = 3_600_000;
 
 export function pointFromRow(r: TelemetryRowView): HourPoint {
-  return { t: Date.parse(r.ts), poa: r.poa_wm2, power: r.dc_power_w, tilt: r.tilt_deg, cmdTilt: r.cmd_tilt_deg, azimuth: r.azimuth_deg, cmdAzimuth: r.cmd_azimuth_deg };
+  return {
+    t: Date.parse(r.ts),
+    poa: r.poa_wm2,
+    power: r.dc_power_w,
+    tilt: r.tilt_deg,
+    cmdTilt: r.cmd_tilt_deg,
+    azimuth: r.azimuth_deg,
+    cmdAzimuth: r.cmd_azimuth_deg,
+  };
 }
 
 /** Adds a live state as a point when it is a newer report, and drops points older than an hour before it. */
@@ -26,12 +34,20 @@ export function appendLive(points: readonly HourPoint[], s: UnitLiveState): Hour
   const t = Date.parse(s.lastReportAt);
   const last = points.at(-1);
   if (last && t <= last.t) return [...points];
-  const next = [...points, { t, poa: s.poaWm2, power: s.dcPowerW, tilt: s.tiltDeg, cmdTilt: s.cmdTiltDeg, azimuth: s.azimuthDeg, cmdAzimuth: s.cmdAzimuthDeg }];
+  const next = [
+    ...points,
+    { t, poa: s.poaWm2, power: s.dcPowerW, tilt: s.tiltDeg, cmdTilt: s.cmdTiltDeg, azimuth: s.azimuthDeg, cmdAzimuth: s.cmdAzimuthDeg },
+  ];
   return next.filter((p) => p.t > t - HOUR_MS);
 }
 
 /** Two stacked charts over the last hour: in-plane irradiance with output, and measured vs commanded angles. */
-export function lastHourOptions(points: readonly HourPoint[], palette: TonePalette, timeZone: string, nowMs = Date.now()): EChartsCoreOption {
+export function lastHourOptions(
+  points: readonly HourPoint[],
+  palette: TonePalette,
+  timeZone: string,
+  nowMs = Date.now(),
+): EChartsCoreOption {
   const axisTime = (i: number) => ({
     type: 'time',
     gridIndex: i,
@@ -71,8 +87,15 @@ export function lastHourOptions(points: readonly HourPoint[], palette: TonePalet
       formatter: (items: { axisValue: number; seriesName: string; value: [number, number | null]; marker: string }[]) => {
         const t = items[0]?.axisValue;
         const unitOf = (n: string) => (n.includes('irradiance') ? 'W/m²' : n.includes('Output') ? 'W' : '°');
-        return `${siteTime(t, timeZone)}<br><span style="opacity:.7">${utcTime(t)}</span><br>` +
-          items.map((i) => `${i.marker}${i.seriesName}: ${i.value[1] === null ? '—' : `${Math.round(i.value[1] * 10) / 10} ${unitOf(i.seriesName)}`}`).join('<br>');
+        return (
+          `${siteTime(t, timeZone)}<br><span style="opacity:.7">${utcTime(t)}</span><br>` +
+          items
+            .map(
+              (i) =>
+                `${i.marker}${i.seriesName}: ${i.value[1] === null ? '—' : `${Math.round(i.value[1] * 10) / 10} ${unitOf(i.seriesName)}`}`,
+            )
+            .join('<br>')
+        );
       },
     },
     axisPointer: { link: [{ xAxisIndex: 'all' }] },

@@ -3,7 +3,19 @@ import type { UnitLiveState } from '../../../shared/contracts/live';
 import { domePoints } from './pointing-panel';
 import { domeRadius, horizonLine, normalToDome } from './sky-dome';
 
-const palette = { good: 'g', busy: 'b', caution: 'c', problem: 'p', stopped: 's', text: 't', muted: 'm', grid: 'x', surface: 'w', primary: 'pr', accent: 'a' };
+const palette = {
+  good: 'g',
+  busy: 'b',
+  caution: 'c',
+  problem: 'p',
+  stopped: 's',
+  text: 't',
+  muted: 'm',
+  grid: 'x',
+  surface: 'w',
+  primary: 'pr',
+  accent: 'a',
+};
 
 describe('where it points', () => {
   it('puts the panel normal on the sky dome (tilt 30° looks at elevation 60°) with the zenith in the centre', () => {
@@ -12,16 +24,21 @@ describe('where it points', () => {
     expect(domeRadius(90)).toBe(0);
     expect(domeRadius(0)).toBe(90);
     expect(domeRadius(-5)).toBe(90);
-    const h = horizonLine([[0, 10], [90, 30]]);
+    const h = horizonLine([
+      [0, 10],
+      [90, 30],
+    ]);
     expect(h.find(([az]) => az === 44)![1]).toBeCloseTo(19.78, 1);
     expect(h.find(([az]) => az === 226)![1]).toBeCloseTo(20, 0);
   });
 
-
   it('marks the lesser peaks, the modelled best with its basin, the sun and the panel, hollow when the unit is not reporting', () => {
     const l = {
       globalMax: { tiltDeg: 30, azimuthDeg: 178, wm2: 860.4 },
-      localMaxima: [{ tiltDeg: 30, azimuthDeg: 178, wm2: 860.4, basinShare: 0.71 }, { tiltDeg: 52, azimuthDeg: 250, wm2: 410.2, basinShare: 0.29 }],
+      localMaxima: [
+        { tiltDeg: 30, azimuthDeg: 178, wm2: 860.4, basinShare: 0.71 },
+        { tiltDeg: 52, azimuthDeg: 250, wm2: 410.2, basinShare: 0.29 },
+      ],
       sun: { azimuthDeg: 120, elevationDeg: 40 },
     } as unknown as SiteLandscape;
     const s = { serial: 'QHL-2401', tiltDeg: 52, azimuthDeg: 250 } as UnitLiveState;
@@ -33,7 +50,9 @@ describe('where it points', () => {
       ['Panel points here', 'QHL-2401', 'triangle'],
     ]);
     expect(pts[1]).toMatchObject({ azimuthDeg: 178, elevationDeg: 60 });
-    expect(domePoints(null, s, 'stopped', palette)).toEqual([expect.objectContaining({ name: 'Panel points here', symbol: 'emptyCircle' })]);
+    expect(domePoints(null, s, 'stopped', palette)).toEqual([
+      expect.objectContaining({ name: 'Panel points here', symbol: 'emptyCircle' }),
+    ]);
     expect(domePoints(null, { ...s, tiltDeg: null } as unknown as UnitLiveState, 'good', palette)).toEqual([]);
   });
 });

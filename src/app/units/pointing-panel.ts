@@ -15,16 +15,28 @@ import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
   template: `
     <section class="panel" aria-labelledby="dome-title">
       <h2 id="dome-title">Where it points</h2>
-      <p class="hint">Sky dome seen from the site: north up, azimuth clockwise, horizon at the rim, straight up in the centre.
-        The panel marker shows the direction its face points.</p>
+      <p class="hint">
+        Sky dome seen from the site: north up, azimuth clockwise, horizon at the rim, straight up in the centre. The panel marker shows the
+        direction its face points.
+      </p>
       @if (problem(); as message) {
-        <div class="notice problem" role="alert"><mat-icon aria-hidden="true">error</mat-icon><p>The modelled sky could not be loaded. {{ message }}</p></div>
+        <div class="notice problem" role="alert">
+          <mat-icon aria-hidden="true">error</mat-icon>
+          <p>The modelled sky could not be loaded. {{ message }}</p>
+        </div>
       }
-      <div class="dome-chart" echarts [options]="options()" role="img"
-           [attr.aria-label]="'Sky dome: panel, sun, modelled best and ' + ((landscape()?.localMaxima?.length ?? 1) - 1) + ' lesser peaks'"></div>
+      <div
+        class="dome-chart"
+        echarts
+        [options]="options()"
+        role="img"
+        [attr.aria-label]="'Sky dome: panel, sun, modelled best and ' + ((landscape()?.localMaxima?.length ?? 1) - 1) + ' lesser peaks'"
+      ></div>
       @if (landscape(); as l) {
         <p class="hint">
-          {{ l.localMaxima.length === 1 ? 'One peak in the modelled landscape.' : l.localMaxima.length + ' peaks in the modelled landscape.' }}
+          {{
+            l.localMaxima.length === 1 ? 'One peak in the modelled landscape.' : l.localMaxima.length + ' peaks in the modelled landscape.'
+          }}
           @if (l.minSinglePeakDetectorTiltDeg !== null && l.localMaxima.length > 1) {
             A detector tilt of {{ l.minSinglePeakDetectorTiltDeg }}° or more would leave only one.
           }
@@ -34,7 +46,11 @@ import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
     </section>
   `,
   styleUrl: './unit-panel.scss',
-  styles: `.dome-chart { height: 380px; }`,
+  styles: `
+    .dome-chart {
+      height: 380px;
+    }
+  `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class PointingPanel {
@@ -60,14 +76,44 @@ export function domePoints(l: SiteLandscape | null, s: UnitLiveState | null, ton
   if (l) {
     const others = l.localMaxima.filter((m) => m.tiltDeg !== l.globalMax.tiltDeg || m.azimuthDeg !== l.globalMax.azimuthDeg);
     for (const [i, m] of others.entries()) {
-      pts.push({ name: i === 0 ? 'Lesser peak' : `Lesser peak ${i + 1}`, ...normalToDome(m.tiltDeg, m.azimuthDeg), symbol: 'diamond', size: 14, colour: p.caution, label: `${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %` });
+      pts.push({
+        name: i === 0 ? 'Lesser peak' : `Lesser peak ${i + 1}`,
+        ...normalToDome(m.tiltDeg, m.azimuthDeg),
+        symbol: 'diamond',
+        size: 14,
+        colour: p.caution,
+        label: `${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
+      });
     }
     const g = l.localMaxima.find((m) => m.tiltDeg === l.globalMax.tiltDeg && m.azimuthDeg === l.globalMax.azimuthDeg);
-    pts.push({ name: 'Modelled best', ...normalToDome(l.globalMax.tiltDeg, l.globalMax.azimuthDeg), symbol: 'pin', size: 24, colour: p.good, label: `best ${Math.round(l.globalMax.wm2)} W/m²${g ? ` · basin ${Math.round(g.basinShare * 100)} %` : ''}` });
-    if (l.sun) pts.push({ name: 'Sun', azimuthDeg: l.sun.azimuthDeg, elevationDeg: l.sun.elevationDeg, symbol: 'circle', size: 20, colour: p.accent, label: 'sun' });
+    pts.push({
+      name: 'Modelled best',
+      ...normalToDome(l.globalMax.tiltDeg, l.globalMax.azimuthDeg),
+      symbol: 'pin',
+      size: 24,
+      colour: p.good,
+      label: `best ${Math.round(l.globalMax.wm2)} W/m²${g ? ` · basin ${Math.round(g.basinShare * 100)} %` : ''}`,
+    });
+    if (l.sun)
+      pts.push({
+        name: 'Sun',
+        azimuthDeg: l.sun.azimuthDeg,
+        elevationDeg: l.sun.elevationDeg,
+        symbol: 'circle',
+        size: 20,
+        colour: p.accent,
+        label: 'sun',
+      });
   }
   if (s?.tiltDeg !== null && s?.tiltDeg !== undefined && s.azimuthDeg !== null) {
-    pts.push({ name: 'Panel points here', ...normalToDome(s.tiltDeg, s.azimuthDeg), symbol: TONE_SYMBOL[tone] === 'emptyCircle' ? 'emptyCircle' : 'triangle', size: 18, colour: p.primary, label: s.serial });
+    pts.push({
+      name: 'Panel points here',
+      ...normalToDome(s.tiltDeg, s.azimuthDeg),
+      symbol: TONE_SYMBOL[tone] === 'emptyCircle' ? 'emptyCircle' : 'triangle',
+      size: 18,
+      colour: p.primary,
+      label: s.serial,
+    });
   }
   return pts;
 }

@@ -2,22 +2,47 @@ import type { ScanResult } from '../../../shared/contracts/alarms';
 import { scanCells, scanFindings, scanHeatmapOptions } from './scan-chart';
 
 const scan = (over: Partial<ScanResult> = {}): ScanResult => ({
-  commandId: 'c1', startedAt: '2026-06-21T10:00:00Z', completedAt: '2026-06-21T10:04:00Z', complete: true,
+  commandId: 'c1',
+  startedAt: '2026-06-21T10:00:00Z',
+  completedAt: '2026-06-21T10:04:00Z',
+  complete: true,
   landscape: {
-    tiltsDeg: [0, 30, 60], azimuthsDeg: [90, 180, 270],
-    values: [[300, 320, null], [400, 850, 500], [200, 610, 180]],
+    tiltsDeg: [0, 30, 60],
+    azimuthsDeg: [90, 180, 270],
+    values: [
+      [300, 320, null],
+      [400, 850, 500],
+      [200, 610, 180],
+    ],
     samples: 8,
     sampleMax: { tiltDeg: 30, azimuthDeg: 180, wm2: 850 },
     globalMax: { tiltDeg: 31.2, azimuthDeg: 178.4, wm2: 861.3 },
-    localMaxima: [{ tiltDeg: 30, azimuthDeg: 180, wm2: 850 }, { tiltDeg: 60, azimuthDeg: 180, wm2: 610 }],
+    localMaxima: [
+      { tiltDeg: 30, azimuthDeg: 180, wm2: 850 },
+      { tiltDeg: 60, azimuthDeg: 180, wm2: 610 },
+    ],
   },
-  beforeWm2: 512, expectedGainWm2: 349.3, expectedGainPct: 68.2,
+  beforeWm2: 512,
+  expectedGainWm2: 349.3,
+  expectedGainPct: 68.2,
   model: { globalMax: { tiltDeg: 28, azimuthDeg: 182, wm2: 880 }, angleApartDeg: 3.46, measuredVsModelPct: 97.9 },
   goto: { kind: 'goto', tiltDeg: 31.2, azimuthDeg: 178.4 },
   ...over,
 });
 
-const palette = { good: 'g', busy: 'b', caution: 'c', problem: 'p', stopped: 's', text: 't', muted: 'm', grid: 'x', surface: 'w', primary: 'pr', accent: 'a' };
+const palette = {
+  good: 'g',
+  busy: 'b',
+  caution: 'c',
+  problem: 'p',
+  stopped: 's',
+  text: 't',
+  muted: 'm',
+  grid: 'x',
+  surface: 'w',
+  primary: 'pr',
+  accent: 'a',
+};
 
 describe('scan result', () => {
   it('turns the raster into heat map cells, leaving out orientations without a sample', () => {
@@ -36,7 +61,10 @@ describe('scan result', () => {
   });
 
   it('says when there is nothing to gain, or no reading before, or no model', () => {
-    expect(scanFindings(scan({ expectedGainWm2: -5, expectedGainPct: -1 }))).toMatchObject({ gain: 'No gain expected: it already had 512 W/m² before the scan.', worthMoving: false });
+    expect(scanFindings(scan({ expectedGainWm2: -5, expectedGainPct: -1 }))).toMatchObject({
+      gain: 'No gain expected: it already had 512 W/m² before the scan.',
+      worthMoving: false,
+    });
     expect(scanFindings(scan({ beforeWm2: null, expectedGainWm2: null, expectedGainPct: null })).gain).toMatch(/unknown/);
     expect(scanFindings(scan({ model: null })).comparison).toBeNull();
     const night = scan({ model: { globalMax: { tiltDeg: 0, azimuthDeg: 0, wm2: 0 }, angleApartDeg: 30, measuredVsModelPct: 0 } });
@@ -46,7 +74,12 @@ describe('scan result', () => {
 
   it('marks the measured best, the lesser peak and the modelled best by different shapes', () => {
     const o = scanHeatmapOptions(scan(), palette) as { series: { name: string; symbol?: string; data: unknown[] }[] };
-    expect(o.series.map((s) => `${s.name}:${s.symbol ?? 'cells'}`)).toEqual(['Measured:cells', 'Brightest measured:pin', 'Lesser peak:diamond', 'Modelled best:circle']);
+    expect(o.series.map((s) => `${s.name}:${s.symbol ?? 'cells'}`)).toEqual([
+      'Measured:cells',
+      'Brightest measured:pin',
+      'Lesser peak:diamond',
+      'Modelled best:circle',
+    ]);
     expect((o.series[1]!.data[0] as { value: number[] }).value).toEqual([1, 1]);
     expect(o.series[2]!.data).toHaveLength(1);
   });

@@ -31,11 +31,12 @@ export function scanFindings(scan: ScanResult): { measuredBest: string; comparis
   const peaks = scan.landscape.localMaxima.length;
   const measuredBest = `Brightest measured: ${Math.round(g.wm2)} W/m² at tilt ${r1(g.tiltDeg)}°, azimuth ${r1(g.azimuthDeg)}° (${scan.landscape.samples} samples, ${peaks} ${peaks === 1 ? 'peak' : 'peaks'}).`;
   const m = usableModel(scan);
-  const comparison = scan.model && !m
-    ? 'The model expects almost no light at this time (night, or lamps off), so there is nothing to compare with.'
-    : m
-    ? `The model's brightest orientation (${Math.round(m.globalMax.wm2)} W/m² at tilt ${r1(m.globalMax.tiltDeg)}°, azimuth ${r1(m.globalMax.azimuthDeg)}°) is ${r1(m.angleApartDeg)}° from the measured one; measured is ${r1(m.measuredVsModelPct)} % of modelled.`
-    : null;
+  const comparison =
+    scan.model && !m
+      ? 'The model expects almost no light at this time (night, or lamps off), so there is nothing to compare with.'
+      : m
+        ? `The model's brightest orientation (${Math.round(m.globalMax.wm2)} W/m² at tilt ${r1(m.globalMax.tiltDeg)}°, azimuth ${r1(m.globalMax.azimuthDeg)}°) is ${r1(m.angleApartDeg)}° from the measured one; measured is ${r1(m.measuredVsModelPct)} % of modelled.`
+        : null;
   const gainWm2 = scan.expectedGainWm2;
   const gain =
     gainWm2 === null
@@ -51,16 +52,48 @@ export function scanHeatmapOptions(scan: ScanResult, palette: TonePalette): ECha
   const l = scan.landscape;
   const cells = scanCells(scan);
   const max = Math.max(1, ...cells.map((c) => c[2]));
-  const mark = (name: string, symbol: string, size: number, colour: string, pts: { tiltDeg: number; azimuthDeg: number; label: string }[]) => ({
-    name, type: 'scatter', symbol, symbolSize: size, z: 5,
+  const mark = (
+    name: string,
+    symbol: string,
+    size: number,
+    colour: string,
+    pts: { tiltDeg: number; azimuthDeg: number; label: string }[],
+  ) => ({
+    name,
+    type: 'scatter',
+    symbol,
+    symbolSize: size,
+    z: 5,
     itemStyle: { color: colour, borderColor: '#000', borderWidth: 1 },
-    label: { show: true, position: 'right', color: '#000', backgroundColor: 'rgba(255,255,255,0.85)', padding: [2, 4], borderRadius: 3, fontSize: 11, formatter: (p: { data: { label: string } }) => p.data.label },
+    label: {
+      show: true,
+      position: 'right',
+      color: '#000',
+      backgroundColor: 'rgba(255,255,255,0.85)',
+      padding: [2, 4],
+      borderRadius: 3,
+      fontSize: 11,
+      formatter: (p: { data: { label: string } }) => p.data.label,
+    },
     data: pts.map((p) => ({ value: [nearest(l.azimuthsDeg, p.azimuthDeg), nearest(l.tiltsDeg, p.tiltDeg)], label: p.label })),
   });
   const series: unknown[] = [{ name: 'Measured', type: 'heatmap', data: cells, progressive: 0, emphasis: { disabled: true } }];
   series.push(mark('Brightest measured', 'pin', 26, palette.good, [{ ...l.globalMax, label: `best ${Math.round(l.globalMax.wm2)} W/m²` }]));
-  const lesser = l.localMaxima.filter((m) => nearest(l.tiltsDeg, m.tiltDeg) !== nearest(l.tiltsDeg, l.globalMax.tiltDeg) || nearest(l.azimuthsDeg, m.azimuthDeg) !== nearest(l.azimuthsDeg, l.globalMax.azimuthDeg));
-  if (lesser.length) series.push(mark('Lesser peak', 'diamond', 16, palette.caution, lesser.map((m) => ({ ...m, label: `${Math.round(m.wm2)} W/m²` }))));
+  const lesser = l.localMaxima.filter(
+    (m) =>
+      nearest(l.tiltsDeg, m.tiltDeg) !== nearest(l.tiltsDeg, l.globalMax.tiltDeg) ||
+      nearest(l.azimuthsDeg, m.azimuthDeg) !== nearest(l.azimuthsDeg, l.globalMax.azimuthDeg),
+  );
+  if (lesser.length)
+    series.push(
+      mark(
+        'Lesser peak',
+        'diamond',
+        16,
+        palette.caution,
+        lesser.map((m) => ({ ...m, label: `${Math.round(m.wm2)} W/m²` })),
+      ),
+    );
   const model = usableModel(scan);
   if (model) series.push(mark('Modelled best', 'circle', 14, palette.accent, [{ ...model.globalMax, label: 'model' }]));
   return {
@@ -77,11 +110,33 @@ export function scanHeatmapOptions(scan: ScanResult, palette: TonePalette): ECha
       },
     },
     grid: { left: 56, right: 16, top: 36, bottom: 90 },
-    xAxis: { type: 'category', data: l.azimuthsDeg.map(String), name: 'Azimuth [°, clockwise from north]', nameLocation: 'middle', nameGap: 28, nameTextStyle: { color: palette.muted }, axisLabel: { color: palette.muted, formatter: '{value}°' } },
-    yAxis: { type: 'category', data: l.tiltsDeg.map(String), name: 'Tilt [°]', nameTextStyle: { color: palette.muted }, axisLabel: { color: palette.muted, formatter: '{value}°' } },
+    xAxis: {
+      type: 'category',
+      data: l.azimuthsDeg.map(String),
+      name: 'Azimuth [°, clockwise from north]',
+      nameLocation: 'middle',
+      nameGap: 28,
+      nameTextStyle: { color: palette.muted },
+      axisLabel: { color: palette.muted, formatter: '{value}°' },
+    },
+    yAxis: {
+      type: 'category',
+      data: l.tiltsDeg.map(String),
+      name: 'Tilt [°]',
+      nameTextStyle: { color: palette.muted },
+      axisLabel: { color: palette.muted, formatter: '{value}°' },
+    },
     visualMap: {
-      type: 'continuous', min: 0, max, calculable: false, orient: 'horizontal', left: 'center', bottom: 4, itemHeight: 200,
-      text: [`${max} W/m²`, '0 W/m²'], textStyle: { color: palette.text },
+      type: 'continuous',
+      min: 0,
+      max,
+      calculable: false,
+      orient: 'horizontal',
+      left: 'center',
+      bottom: 4,
+      itemHeight: 200,
+      text: [`${max} W/m²`, '0 W/m²'],
+      textStyle: { color: palette.text },
       inRange: { color: ['#0b1d3a', '#1f4e79', '#2f8f83', '#a7c957', '#f2e85c', '#fff7d6'] },
     },
     series,

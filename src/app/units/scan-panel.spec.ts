@@ -6,25 +6,56 @@ import type { CommandChoice } from './commands';
 import { ScanPanel } from './scan-panel';
 
 const scan: ScanResult = {
-  commandId: 'c1', startedAt: '2026-06-21T10:00:00Z', completedAt: '2026-06-21T10:04:00Z', complete: true,
+  commandId: 'c1',
+  startedAt: '2026-06-21T10:00:00Z',
+  completedAt: '2026-06-21T10:04:00Z',
+  complete: true,
   landscape: {
-    tiltsDeg: [0, 30, 60], azimuthsDeg: [90, 180, 270],
-    values: [[300, 320, null], [400, 850, 500], [200, 610, 180]],
+    tiltsDeg: [0, 30, 60],
+    azimuthsDeg: [90, 180, 270],
+    values: [
+      [300, 320, null],
+      [400, 850, 500],
+      [200, 610, 180],
+    ],
     samples: 8,
     sampleMax: { tiltDeg: 30, azimuthDeg: 180, wm2: 850 },
     globalMax: { tiltDeg: 31.2, azimuthDeg: 178.4, wm2: 861.3 },
-    localMaxima: [{ tiltDeg: 30, azimuthDeg: 180, wm2: 850 }, { tiltDeg: 60, azimuthDeg: 180, wm2: 610 }],
+    localMaxima: [
+      { tiltDeg: 30, azimuthDeg: 180, wm2: 850 },
+      { tiltDeg: 60, azimuthDeg: 180, wm2: 610 },
+    ],
   },
-  beforeWm2: 512, expectedGainWm2: 349.3, expectedGainPct: 68.2,
+  beforeWm2: 512,
+  expectedGainWm2: 349.3,
+  expectedGainPct: 68.2,
   model: { globalMax: { tiltDeg: 28, azimuthDeg: 182, wm2: 880 }, angleApartDeg: 3.46, measuredVsModelPct: 97.9 },
   goto: { kind: 'goto', tiltDeg: 31.2, azimuthDeg: 178.4 },
 };
 const choice = (kind: CommandChoice['kind'], disabledReason: string | null = null): CommandChoice =>
   ({ kind, label: kind, icon: 'x', motion: true, disabledReason }) as CommandChoice;
-const command = (status: CommandView['status']): CommandView =>
-  ({ id: 'c1', unitId: 1, kind: 'scan', params: null, status, reason: null, issuedBy: { id: 1, name: 'A' }, issuedAt: '2026-06-21T10:00:00Z', sentAt: null, ackedAt: null, finishedAt: null, expiresAt: null });
+const command = (status: CommandView['status']): CommandView => ({
+  id: 'c1',
+  unitId: 1,
+  kind: 'scan',
+  params: null,
+  status,
+  reason: null,
+  issuedBy: { id: 1, name: 'A' },
+  issuedAt: '2026-06-21T10:00:00Z',
+  sentAt: null,
+  ackedAt: null,
+  finishedAt: null,
+  expiresAt: null,
+});
 
-async function render(inputs: { scan?: ScanResult | null; command?: CommandView | null; problem?: string | null; scanWhyNot?: string | null; gotoWhyNot?: string | null }) {
+async function render(inputs: {
+  scan?: ScanResult | null;
+  command?: CommandView | null;
+  problem?: string | null;
+  scanWhyNot?: string | null;
+  gotoWhyNot?: string | null;
+}) {
   // The chart library is not under test here: it never loads, so the chart stays an empty element.
   TestBed.resetTestingModule();
   TestBed.configureTestingModule({ providers: [provideEchartsCore({ echarts: () => new Promise<never>(() => undefined) })] });
@@ -67,7 +98,9 @@ describe('ScanPanel', () => {
     const { el, text, click, events } = await render({ scan });
     expect(text('[data-testid="scan-facts"]')).toContain('Brightest measured');
     expect(el.textContent).toContain('Send the unit to tilt 31.2°, azimuth 178.4°');
-    expect(el.querySelector('.scan-chart')!.getAttribute('aria-label')).toBe('Measured irradiance over tilt and azimuth; brightest 861 W/m² at tilt 31.2°, azimuth 178.4°');
+    expect(el.querySelector('.scan-chart')!.getAttribute('aria-label')).toBe(
+      'Measured irradiance over tilt and azimuth; brightest 861 W/m² at tilt 31.2°, azimuth 178.4°',
+    );
     click('goto-brightest');
     expect(events).toEqual(['goto']);
     const held = await render({ scan, gotoWhyNot: 'The unit is on maintenance hold.', scanWhyNot: 'The unit is on maintenance hold.' });

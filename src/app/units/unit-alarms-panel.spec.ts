@@ -25,13 +25,35 @@ class FakeSocket {
 }
 
 const alarm = (over: Partial<AlarmView>): AlarmView => ({
-  id: 1, kind: 'stall', severity: 'P3', state: 'active', unitId: 3, serial: 'QHL-2401', siteId: 1, siteName: 'Harbour Roof', message: 'Tilt drive stalled.',
-  advice: 'Check the drive.', evidence: {}, firstSeenAt: '2026-06-21T09:00:00Z', raisedAt: '2026-06-21T09:10:00Z', lastSeenAt: '2026-06-21T10:00:00Z',
-  clearedAt: null, clearReason: null, acknowledgedAt: null, acknowledgedBy: null, ...over,
+  id: 1,
+  kind: 'stall',
+  severity: 'P3',
+  state: 'active',
+  unitId: 3,
+  serial: 'QHL-2401',
+  siteId: 1,
+  siteName: 'Harbour Roof',
+  message: 'Tilt drive stalled.',
+  advice: 'Check the drive.',
+  evidence: {},
+  firstSeenAt: '2026-06-21T09:00:00Z',
+  raisedAt: '2026-06-21T09:10:00Z',
+  lastSeenAt: '2026-06-21T10:00:00Z',
+  clearedAt: null,
+  clearReason: null,
+  acknowledgedAt: null,
+  acknowledgedBy: null,
+  ...over,
 });
 const trap = alarm({
-  id: 2, kind: 'trap', severity: 'P2',
-  evidence: { model: { globalMax: { tiltDeg: 30, azimuthDeg: 178, wm2: 860 }, localMaxima: [{}, {}], minSinglePeakDetectorTiltDeg: 14 }, lossWm2: 450, lossPct: 52.3 },
+  id: 2,
+  kind: 'trap',
+  severity: 'P2',
+  evidence: {
+    model: { globalMax: { tiltDeg: 30, azimuthDeg: 178, wm2: 860 }, localMaxima: [{}, {}], minSinglePeakDetectorTiltDeg: 14 },
+    lossWm2: 450,
+    lossPct: 52.3,
+  },
 });
 
 let current: HttpTestingController | null = null;
@@ -39,7 +61,9 @@ let current: HttpTestingController | null = null;
 async function render(alarms: AlarmView[] | 'failing', over: { canUseTarget?: boolean; canAcknowledge?: boolean } = {}) {
   TestBed.configureTestingModule({
     providers: [
-      provideHttpClient(), provideHttpClientTesting(), provideRouter([]),
+      provideHttpClient(),
+      provideHttpClientTesting(),
+      provideRouter([]),
       { provide: LIVE_SOCKET_FACTORY, useValue: () => new FakeSocket() as unknown as WebSocket },
     ],
   });
@@ -70,10 +94,38 @@ describe('UnitAlarmsPanel', () => {
   });
 
   it('takes alarms from live messages and leaves wind-stow events out', () => {
-    const a = { id: 5, kind: 'trap', severity: 'P2', state: 'active', unitId: 3, serial: 'S', siteId: 1, message: 'x', advice: '', evidence: {},
-      firstSeenAt: '2026-01-01T00:00:00Z', raisedAt: '2026-01-01T00:10:00Z', lastSeenAt: '2026-01-01T00:20:00Z', clearedAt: null, clearReason: null, acknowledgedAt: null, acknowledgedBy: null };
+    const a = {
+      id: 5,
+      kind: 'trap',
+      severity: 'P2',
+      state: 'active',
+      unitId: 3,
+      serial: 'S',
+      siteId: 1,
+      message: 'x',
+      advice: '',
+      evidence: {},
+      firstSeenAt: '2026-01-01T00:00:00Z',
+      raisedAt: '2026-01-01T00:10:00Z',
+      lastSeenAt: '2026-01-01T00:20:00Z',
+      clearedAt: null,
+      clearReason: null,
+      acknowledgedAt: null,
+      acknowledgedBy: null,
+    };
     expect(toAlarmView(a)).toBe(a);
-    expect(toAlarmView({ kind: 'wind-stow', severity: 'P4', state: 'event', serial: 'S', siteId: 1, at: '2026-01-01T00:00:00Z', event: 'stowed', message: 'm' })).toBeNull();
+    expect(
+      toAlarmView({
+        kind: 'wind-stow',
+        severity: 'P4',
+        state: 'event',
+        serial: 'S',
+        siteId: 1,
+        at: '2026-01-01T00:00:00Z',
+        event: 'stowed',
+        message: 'm',
+      }),
+    ).toBeNull();
     expect(toAlarmView(null)).toBeNull();
   });
 
@@ -83,7 +135,10 @@ describe('UnitAlarmsPanel', () => {
     expect(text('[data-testid="trap-finding"] p')).toBe(
       'Stuck on a lesser peak. The modelled brightest orientation is tilt 30°, azimuth 178° with 860 W/m². Where it points it loses 450 W/m² (52.3 %). The model shows 2 peaks. A detector tilt of 14° or more would leave one.',
     );
-    expect([...el.querySelectorAll('bw-alarm-card h3')].map((h) => h.textContent!.trim())).toEqual(['Stuck on a lesser peak', 'Actuator stall']);
+    expect([...el.querySelectorAll('bw-alarm-card h3')].map((h) => h.textContent!.trim())).toEqual([
+      'Stuck on a lesser peak',
+      'Actuator stall',
+    ]);
     el.querySelector<HTMLButtonElement>('[data-testid="use-trap-target"]')!.click();
     expect(targets).toEqual([{ tiltDeg: 30, azimuthDeg: 178 }]);
   });
@@ -110,7 +165,9 @@ describe('UnitAlarmsPanel', () => {
   it('acknowledges an alarm and shows who did', async () => {
     const { fixture, http, el } = await render([alarm({ id: 4 })]);
     el.querySelector<HTMLButtonElement>('[data-testid="ack-4"]')!.click();
-    http.expectOne({ method: 'POST', url: '/api/alarms/4/acknowledge' }).flush(alarm({ id: 4, acknowledgedAt: '2026-06-21T10:05:00Z', acknowledgedBy: 'Mara Okonjo' }));
+    http
+      .expectOne({ method: 'POST', url: '/api/alarms/4/acknowledge' })
+      .flush(alarm({ id: 4, acknowledgedAt: '2026-06-21T10:05:00Z', acknowledgedBy: 'Mara Okonjo' }));
     await fixture.whenStable();
     expect(el.querySelector('[data-testid="alarm-status-4"]')!.textContent).toContain('Acknowledged by Mara Okonjo');
     expect(el.querySelector('[data-testid="ack-4"]')).toBeNull();

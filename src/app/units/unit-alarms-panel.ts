@@ -19,21 +19,37 @@ import { Notify } from '../ui/notify';
   imports: [DecimalPipe, MatButtonModule, MatIconModule, AlarmCard],
   template: `
     <section class="panel" aria-labelledby="alarms-title">
-      <h2 id="alarms-title">Alarms <span class="quiet">({{ openCount() }} open)</span></h2>
+      <h2 id="alarms-title">
+        Alarms <span class="quiet">({{ openCount() }} open)</span>
+      </h2>
       @if (trap(); as t) {
         <div class="trap" role="note" data-testid="trap-finding">
           <mat-icon aria-hidden="true">landscape</mat-icon>
           <div>
-            <p><strong>Stuck on a lesser peak.</strong>
-              The modelled brightest orientation is tilt {{ t.finding.best.tiltDeg }}°, azimuth {{ t.finding.best.azimuthDeg }}° with {{ t.finding.best.wm2 | number: '1.0-0' }} W/m².
+            <p>
+              <strong>Stuck on a lesser peak.</strong> The modelled brightest orientation is tilt {{ t.finding.best.tiltDeg }}°, azimuth
+              {{ t.finding.best.azimuthDeg }}° with {{ t.finding.best.wm2 | number: '1.0-0' }} W/m².
               @if (t.finding.lossWm2 !== null) {
-                Where it points it loses <strong>{{ t.finding.lossWm2 | number: '1.0-0' }} W/m²</strong>@if (t.finding.lossPct !== null) { ({{ t.finding.lossPct | number: '1.0-1' }} %)}.
+                Where it points it loses <strong>{{ t.finding.lossWm2 | number: '1.0-0' }} W/m²</strong>
+                @if (t.finding.lossPct !== null) {
+                  ({{ t.finding.lossPct | number: '1.0-1' }} %)
+                }
+                .
               }
-              @if (t.finding.peaks !== null) { The model shows {{ t.finding.peaks }} peaks. }
-              @if (t.finding.singlePeakDetectorTiltDeg !== null) { A detector tilt of {{ t.finding.singlePeakDetectorTiltDeg }}° or more would leave one. }
+              @if (t.finding.peaks !== null) {
+                The model shows {{ t.finding.peaks }} peaks.
+              }
+              @if (t.finding.singlePeakDetectorTiltDeg !== null) {
+                A detector tilt of {{ t.finding.singlePeakDetectorTiltDeg }}° or more would leave one.
+              }
             </p>
             @if (canUseTarget()) {
-              <button mat-button type="button" (click)="useTarget.emit({ tiltDeg: t.finding.best.tiltDeg, azimuthDeg: t.finding.best.azimuthDeg })" data-testid="use-trap-target">
+              <button
+                mat-button
+                type="button"
+                (click)="useTarget.emit({ tiltDeg: t.finding.best.tiltDeg, azimuthDeg: t.finding.best.azimuthDeg })"
+                data-testid="use-trap-target"
+              >
                 <mat-icon>my_location</mat-icon>Use as go-to target
               </button>
             }
@@ -41,14 +57,29 @@ import { Notify } from '../ui/notify';
         </div>
       }
       @if (unavailable(); as reason) {
-        <div class="notice problem" role="alert" data-testid="unit-alarms-unavailable"><mat-icon aria-hidden="true">error</mat-icon><p>{{ reason }}</p></div>
+        <div class="notice problem" role="alert" data-testid="unit-alarms-unavailable">
+          <mat-icon aria-hidden="true">error</mat-icon>
+          <p>{{ reason }}</p>
+        </div>
       } @else if (alarms().length === 0) {
-        <div class="empty-state small"><mat-icon aria-hidden="true">notifications_none</mat-icon><p>No alarms for this unit.</p></div>
+        <div class="empty-state small">
+          <mat-icon aria-hidden="true">notifications_none</mat-icon>
+          <p>No alarms for this unit.</p>
+        </div>
       } @else {
         <ul class="alarm-list" aria-label="Alarms of this unit, open and most urgent first">
           @for (a of sorted(); track a.id) {
-            <li><bw-alarm-card [alarm]="a" [timeZone]="timeZone()" [showSubject]="false" [canAcknowledge]="canAcknowledge()" [busy]="acking() === a.id"
-                               [traceLinks]="traceLinks()" (acknowledge)="acknowledge($event)" /></li>
+            <li>
+              <bw-alarm-card
+                [alarm]="a"
+                [timeZone]="timeZone()"
+                [showSubject]="false"
+                [canAcknowledge]="canAcknowledge()"
+                [busy]="acking() === a.id"
+                [traceLinks]="traceLinks()"
+                (acknowledge)="acknowledge($event)"
+              />
+            </li>
           }
         </ul>
       }
@@ -56,10 +87,29 @@ import { Notify } from '../ui/notify';
   `,
   styleUrl: './unit-panel.scss',
   styles: `
-    .alarm-list { list-style: none; padding: 0; margin: 0; display: grid; gap: 8px; }
-    .trap { display: flex; gap: 12px; align-items: flex-start; padding: 12px 16px; margin-bottom: 12px; border-radius: 12px;
-      background: var(--bw-caution-container); color: var(--bw-caution);
-      p { margin: 0 0 4px; } mat-icon { flex: none; } }
+    .alarm-list {
+      list-style: none;
+      padding: 0;
+      margin: 0;
+      display: grid;
+      gap: 8px;
+    }
+    .trap {
+      display: flex;
+      gap: 12px;
+      align-items: flex-start;
+      padding: 12px 16px;
+      margin-bottom: 12px;
+      border-radius: 12px;
+      background: var(--bw-caution-container);
+      color: var(--bw-caution);
+      p {
+        margin: 0 0 4px;
+      }
+      mat-icon {
+        flex: none;
+      }
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })

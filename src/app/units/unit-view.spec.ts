@@ -3,8 +3,24 @@ import { shortfallPercent, siteTime, statusLook, utcTime } from '../live/unit-st
 import { appendLive } from './last-hour';
 
 const state = (over: Partial<UnitLiveState> = {}): UnitLiveState => ({
-  unitId: 1, serial: 'QHL-2401', siteId: 1, online: true, lastReportAt: '2026-06-21T10:00:00Z', mode: 'settled', poaWm2: 800, dcPowerW: 300,
-  tiltDeg: 30, azimuthDeg: 180, cmdTiltDeg: 30, cmdAzimuthDeg: 180, tiltDiffWm2: 0, azimuthDiffWm2: 0, moduleTempC: 30, onHold: false, holds: [], ...over,
+  unitId: 1,
+  serial: 'QHL-2401',
+  siteId: 1,
+  online: true,
+  lastReportAt: '2026-06-21T10:00:00Z',
+  mode: 'settled',
+  poaWm2: 800,
+  dcPowerW: 300,
+  tiltDeg: 30,
+  azimuthDeg: 180,
+  cmdTiltDeg: 30,
+  cmdAzimuthDeg: 180,
+  tiltDiffWm2: 0,
+  azimuthDiffWm2: 0,
+  moduleTempC: 30,
+  onHold: false,
+  holds: [],
+  ...over,
 });
 
 describe('unit view values', () => {

@@ -30,8 +30,20 @@ import { CommandConfirm, type CommandConfirmData, type CommandConfirmResult } fr
 import { CommandHistory } from './command-history';
 import { CommandPanel } from './command-panel';
 import {
-  CONFIGURE_CAUTION, commandChoices, describeCommand, describeConfigure, describeRelease, HOLD_CAUTION, holderNames, isHeld,
-  MOTION_CAUTION, ownHold, queuedNote, RELEASE_CAUTION, upsertCommand, type CommandChoice,
+  CONFIGURE_CAUTION,
+  commandChoices,
+  describeCommand,
+  describeConfigure,
+  describeRelease,
+  HOLD_CAUTION,
+  holderNames,
+  isHeld,
+  MOTION_CAUTION,
+  ownHold,
+  queuedNote,
+  RELEASE_CAUTION,
+  upsertCommand,
+  type CommandChoice,
 } from './commands';
 import { HoldPanel } from './hold-panel';
 import { appendLive, pointFromRow, type HourPoint } from './last-hour';
@@ -48,8 +60,19 @@ import { UnitAlarmsPanel } from './unit-alarms-panel';
 @Component({
   selector: 'bw-unit-view',
   imports: [
-    MatButtonModule, MatIconModule, MatProgressBarModule, MatTooltipModule, RouterLink, LinkBadge,
-    LastHourPanel, PointingPanel, HoldPanel, CommandPanel, UnitAlarmsPanel, ScanPanel, CommandHistory,
+    MatButtonModule,
+    MatIconModule,
+    MatProgressBarModule,
+    MatTooltipModule,
+    RouterLink,
+    LinkBadge,
+    LastHourPanel,
+    PointingPanel,
+    HoldPanel,
+    CommandPanel,
+    UnitAlarmsPanel,
+    ScanPanel,
+    CommandHistory,
   ],
   templateUrl: './unit-view.html',
   styleUrl: './unit-view.scss',
@@ -150,8 +173,12 @@ export class UnitView {
         }
       }
     });
-    interval(5000).pipe(takeUntilDestroyed()).subscribe(() => this.now.set(Date.now()));
-    interval(300_000).pipe(takeUntilDestroyed()).subscribe(() => this.loadLandscape());
+    interval(5000)
+      .pipe(takeUntilDestroyed())
+      .subscribe(() => this.now.set(Date.now()));
+    interval(300_000)
+      .pipe(takeUntilDestroyed())
+      .subscribe(() => this.loadLandscape());
   }
 
   protected load(id: number): void {
@@ -190,7 +217,9 @@ export class UnitView {
     this.hourLoading.set(true);
     this.telemetryApi.telemetry(unitId, new Date(to.getTime() - 3_660_000), to).subscribe({
       next: (rows) => {
-        const merged = [...rows.map(pointFromRow), ...this.hour()].sort((a, b) => a.t - b.t).filter((p, i, a) => i === 0 || p.t !== a[i - 1]!.t);
+        const merged = [...rows.map(pointFromRow), ...this.hour()]
+          .sort((a, b) => a.t - b.t)
+          .filter((p, i, a) => i === 0 || p.t !== a[i - 1]!.t);
         this.hour.set(merged);
         this.hourLoading.set(false);
       },
@@ -253,7 +282,13 @@ export class UnitView {
       error: (e: unknown) => {
         const p = toApiProblem(e);
         this.scanLoading.set(false);
-        this.scanProblem.set(p.status === 404 ? (commandId ? 'The unit has not reported samples for this scan yet.' : 'This unit has no scan yet. Send one first.') : `The scan could not be loaded. ${p.message}`);
+        this.scanProblem.set(
+          p.status === 404
+            ? commandId
+              ? 'The unit has not reported samples for this scan yet.'
+              : 'This unit has no scan yet. Send one first.'
+            : `The scan could not be loaded. ${p.message}`,
+        );
       },
     });
   }
@@ -295,10 +330,22 @@ export class UnitView {
         confirmLabel: label,
         confirmIcon: choice.icon,
         ...(choice.kind === 'hold'
-          ? { text: { label: 'Note (optional)', hint: 'What the work is. Everyone who sees the unit reads it.', required: false, maxLength: HOLD_TEXT_MAX } }
+          ? {
+              text: {
+                label: 'Note (optional)',
+                hint: 'What the work is. Everyone who sees the unit reads it.',
+                required: false,
+                maxLength: HOLD_TEXT_MAX,
+              },
+            }
           : {}),
       },
-      (r) => ({ kind: choice.kind, ...target, ...(choice.motion ? { confirm: true } : {}), ...(choice.kind === 'hold' && r.text ? { note: r.text } : {}) }),
+      (r) => ({
+        kind: choice.kind,
+        ...target,
+        ...(choice.motion ? { confirm: true } : {}),
+        ...(choice.kind === 'hold' && r.text ? { note: r.text } : {}),
+      }),
       label,
     );
   }
@@ -317,7 +364,16 @@ export class UnitView {
         askClear: true,
         confirmLabel: own ? 'Release my hold' : 'Release this hold',
         confirmIcon: 'play_circle',
-        ...(own ? {} : { text: { label: 'Reason (required)', hint: `Why you release a hold that is not yours. ${hold.holder.name} and the audit log see it.`, required: true, maxLength: HOLD_TEXT_MAX } }),
+        ...(own
+          ? {}
+          : {
+              text: {
+                label: 'Reason (required)',
+                hint: `Why you release a hold that is not yours. ${hold.holder.name} and the audit log see it.`,
+                required: true,
+                maxLength: HOLD_TEXT_MAX,
+              },
+            }),
       },
       (r) => ({ kind: 'release-hold', confirm: true, ...(own ? {} : { holdId: hold.id, reason: r.text }) }),
       label,
@@ -342,12 +398,21 @@ export class UnitView {
     );
   }
 
-  private confirmThen(d: Omit<CommandConfirmData, 'serial' | 'siteName'>, request: (r: CommandConfirmResult) => IssueCommandRequest, label: string): void {
+  private confirmThen(
+    d: Omit<CommandConfirmData, 'serial' | 'siteName'>,
+    request: (r: CommandConfirmResult) => IssueCommandRequest,
+    label: string,
+  ): void {
     const u = this.unit();
     if (!u) return;
     const data: CommandConfirmData = { serial: u.serial, siteName: this.site()?.name ?? u.siteName, ...d };
     this.dialog
-      .open<CommandConfirm, CommandConfirmData, CommandConfirmResult>(CommandConfirm, { data, width: '560px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
+      .open<CommandConfirm, CommandConfirmData, CommandConfirmResult>(CommandConfirm, {
+        data,
+        width: '560px',
+        maxWidth: '95vw',
+        autoFocus: 'first-tabbable',
+      })
       .afterClosed()
       .subscribe((r) => {
         if (!r) return;
@@ -363,7 +428,13 @@ export class UnitView {
             }
             if (c.kind === 'hold' || c.kind === 'release-hold') this.loadHolds();
             const waiting = queuedNote(c, this.zone());
-            this.notify.done(waiting ? `${label} for ${u.serial}. ${waiting}` : c.status === 'completed' && !c.sentAt ? `${label}: done. ${c.reason ?? ''}` : `${label}: sent to ${u.serial}.`);
+            this.notify.done(
+              waiting
+                ? `${label} for ${u.serial}. ${waiting}`
+                : c.status === 'completed' && !c.sentAt
+                  ? `${label}: done. ${c.reason ?? ''}`
+                  : `${label}: sent to ${u.serial}.`,
+            );
           },
           error: (e: unknown) => {
             this.sending.set(null);

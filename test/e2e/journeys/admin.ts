@@ -74,6 +74,5 @@ export const adminJourney: Journey = {
       await secretDialog.waitFor({ state: 'detached' });
       await page.getByRole('table', { name: 'Tracker units' }).getByText(serial).waitFor();
     });
-
   },
 };

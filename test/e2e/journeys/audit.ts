@@ -14,7 +14,13 @@ export const auditJourney: Journey = {
     const owner = owners.find((o) => o.name === 'Fenwick Lane Schools Trust') ?? owners[0];
     if (!owner) throw new Error('the demo world has no owners');
     await apiAsPage<Site>(page, base, 'POST', '/api/sites', {
-      ownerId: owner.id, name: newSite, latitudeDeg: 51.4521, longitudeDeg: -2.591, elevationM: 31, timeZone: 'Europe/London', albedo: 0.22,
+      ownerId: owner.id,
+      name: newSite,
+      latitudeDeg: 51.4521,
+      longitudeDeg: -2.591,
+      elevationM: 31,
+      timeZone: 'Europe/London',
+      albedo: 0.22,
     });
 
     await check('admin finds the site they added in the audit log, filtered by action', async () => {
@@ -27,9 +33,9 @@ export const auditJourney: Journey = {
       await row.waitFor();
       expectTrue(((await row.textContent()) ?? '').includes('Ada Kestrel'), 'the row names who added it');
       expectTrue((await table.locator('tr.mat-mdc-row').count()) >= 1, 'only "Added a site" rows are listed');
-      for (const text of await table.locator('tr.mat-mdc-row').allTextContents()) expectTrue(text.includes('Added a site'), `row is an "Added a site" entry: ${text}`);
+      for (const text of await table.locator('tr.mat-mdc-row').allTextContents())
+        expectTrue(text.includes('Added a site'), `row is an "Added a site" entry: ${text}`);
       await page.screenshot({ path: join(output, 'admin-audit-log.png'), animations: 'disabled' });
     });
-
   },
 };

@@ -22,17 +22,21 @@ export const landscapeJourney: Journey = {
 
     await check('a horizon CSV with bad rows is refused line by line and nothing changes', async () => {
       await page.getByTestId('horizon-csv').setInputFiles({
-        name: 'horizon.csv', mimeType: 'text/csv', buffer: Buffer.from('azimuth,elevation\r\n0,5\r\n400,3\r\n90,x\r\n'),
+        name: 'horizon.csv',
+        mimeType: 'text/csv',
+        buffer: Buffer.from('azimuth,elevation\r\n0,5\r\n400,3\r\n90,x\r\n'),
       });
       const problems = page.getByTestId('csv-problems');
       await problems.waitFor();
       const text = (await problems.textContent()) ?? '';
       expectTrue(text.includes('Line 3') && text.includes('Line 4'), `bad lines named (${text.slice(0, 120)})`);
       expectTrue(await page.getByTestId('survey-save').isDisabled(), 'nothing to save');
-      await page.getByTestId('survey-problems').waitFor({ state: 'detached' }).catch(() => undefined);
+      await page
+        .getByTestId('survey-problems')
+        .waitFor({ state: 'detached' })
+        .catch(() => undefined);
       await page.getByTestId('csv-problems').scrollIntoViewIfNeeded();
       await page.screenshot({ path: join(output, 'survey-editor-bad-csv.png'), animations: 'disabled' });
     });
-
   },
 };

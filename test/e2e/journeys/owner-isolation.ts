@@ -16,7 +16,11 @@ export const ownerIsolationJourney: Journey = {
     });
 
     // An open alarm on a unit of the first owner's site; removed again so that no other journey sees it.
-    const alarmId = await insertTrapAlarm(stack.db, await unitIdBySerial(stack, 'QHL-2402'), await siteIdByName(stack, 'Harbourside Library Roof'));
+    const alarmId = await insertTrapAlarm(
+      stack.db,
+      await unitIdBySerial(stack, 'QHL-2402'),
+      await siteIdByName(stack, 'Harbourside Library Roof'),
+    );
     try {
       await check('owners see their own sites’ alarms read-only, and not other owners’', async () => {
         await signIn(page, base, 'owner@quillmoor.example');

@@ -3,7 +3,18 @@ import { ALL_SITES, DEMO_USERS, expectEqual, expectTrue, signIn, signOut, type J
 
 /** The navigation each role gets (the pages it may open), in order. */
 const NAV: Record<RoleName, string[]> = {
-  admin: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape', 'People', 'Owners', 'Site setup', 'Units and credentials', 'Audit log'],
+  admin: [
+    'Fleet board',
+    'Alarms',
+    'Sites',
+    'Trace explorer',
+    'Landscape',
+    'People',
+    'Owners',
+    'Site setup',
+    'Units and credentials',
+    'Audit log',
+  ],
   engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
   technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
   crew: ['Fleet board', 'Alarms', 'Sites'],
@@ -31,7 +42,11 @@ export const rolesJourney: Journey = {
         const sites = (await page.locator('ul.cards li.card h2').allTextContents()).map((t) => t.trim()).sort();
         if (user.sites) {
           // Exactly this owner's sites: the demo world's, and any another journey added for the same owner.
-          const owned = (await stack.db('sites').join('users', 'users.owner_id', 'sites.owner_id').where('users.email', user.email).pluck('sites.name')) as string[];
+          const owned = (await stack
+            .db('sites')
+            .join('users', 'users.owner_id', 'sites.owner_id')
+            .where('users.email', user.email)
+            .pluck('sites.name')) as string[];
           expectEqual(sites, [...owned].sort(), 'sites of this owner');
           for (const name of user.sites) expectTrue(sites.includes(name), `site "${name}" listed`);
         } else {

@@ -37,6 +37,5 @@ export const shellJourney: Journey = {
       await page.emulateMedia({ colorScheme: 'light' });
       await signOut(page, base);
     });
-
   },
 };

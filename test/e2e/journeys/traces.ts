@@ -23,7 +23,10 @@ export const tracesJourney: Journey = {
       await chart.waitFor();
       await page.waitForTimeout(500);
       const before = (await page.getByTestId('visible-range').textContent()) ?? '';
-      const finer = page.waitForResponse((r) => r.url().includes(`/api/units/${roofUnit}/traces?`) && !r.url().includes(encodeURIComponent(from)) && r.status() === 200, { timeout: 10_000 });
+      const finer = page.waitForResponse(
+        (r) => r.url().includes(`/api/units/${roofUnit}/traces?`) && !r.url().includes(encodeURIComponent(from)) && r.status() === 200,
+        { timeout: 10_000 },
+      );
       const box = (await chart.boundingBox())!;
       await page.mouse.move(box.x + box.width * 0.45, box.y + box.height * 0.3);
       for (let i = 0; i < 8; i++) {
@@ -39,6 +42,5 @@ export const tracesJourney: Journey = {
       expectTrue(Boolean(csv?.includes('/traces.csv?')), 'CSV link for the visible range');
       await page.screenshot({ path: join(output, 'trace-explorer.png'), fullPage: true, animations: 'disabled' });
     });
-
   },
 };

@@ -32,12 +32,22 @@ export const unitCommandsJourney: Journey = {
         const dialog = await openedDialog(page);
         await dialog.getByText(`${unitSerial} will drive to its stow position`).waitFor();
         const caution = (await dialog.getByTestId('command-caution').textContent()) ?? '';
-        for (const words of ['pinch', 'stored mechanical energy', 'DC voltage', 'wind', 'not a lockout', 'Local codes and licensed practice']) {
+        for (const words of [
+          'pinch',
+          'stored mechanical energy',
+          'DC voltage',
+          'wind',
+          'not a lockout',
+          'Local codes and licensed practice',
+        ]) {
           expectTrue(caution.includes(words), `caution mentions "${words}"`);
         }
         expectTrue(await dialog.getByTestId('confirm').isDisabled(), 'confirm disabled until the sender states nobody is within reach');
         await dialog.getByTestId('people-clear').click();
-        await dialog.locator('[data-testid="confirm"]:enabled').waitFor({ timeout: 2000 }).catch(() => undefined);
+        await dialog
+          .locator('[data-testid="confirm"]:enabled')
+          .waitFor({ timeout: 2000 })
+          .catch(() => undefined);
         expectTrue(await dialog.getByTestId('confirm').isEnabled(), 'confirm enabled after the check');
         await page.screenshot({ path: join(output, 'unit-command-confirm.png'), animations: 'disabled' });
         await dialog.getByTestId('confirm').click();
@@ -55,42 +65,48 @@ export const unitCommandsJourney: Journey = {
         await signOut(page, base);
       });
 
-      await check('a crew member puts their own hold on a unit with a note, sees it listed, and releases it after confirming nobody is within reach', async () => {
-        await signIn(page, base, 'crew1@saltmarsh.example');
-        await page.waitForURL(`${base}/fleet`);
-        await page.goto(`${base}/units/${unitId}`);
-        await page.getByTestId('holds-empty').waitFor();
-        await page.getByTestId('cmd-hold').click();
-        let dialog = await openedDialog(page);
-        expectTrue(((await dialog.getByTestId('command-caution').textContent()) ?? '').includes('not a lockout'), 'hold caution says a hold is not a lockout');
-        await dialog.getByTestId('command-text').fill('Replacing the tilt drive');
-        await dialog.getByTestId('confirm').click();
-        const mine = page.getByTestId('hold-panel').locator('li', { hasText: 'Ines Calder' });
-        await mine.getByText('Replacing the tilt drive').waitFor({ timeout: 3000 });
-        await page.getByTestId('hold-banner').filter({ hasText: 'by Ines Calder' }).waitFor();
-        expectTrue(await page.getByTestId('cmd-hold').isDisabled(), 'a second hold of the same person is not offered');
-        await page.setViewportSize({ width: 360, height: 740 });
-        await page.getByTestId('hold-panel').scrollIntoViewIfNeeded();
-        await page.screenshot({ path: join(output, 'unit-view-hold-panel-phone.png'), animations: 'disabled' });
-        await page.setViewportSize({ width: 1280, height: 800 });
-        await page.emulateMedia({ colorScheme: 'dark' });
-        await page.getByTestId('hold-panel').screenshot({ path: join(output, 'unit-view-hold-panel-dark.png'), animations: 'disabled' });
-        await page.emulateMedia({ colorScheme: 'light' });
+      await check(
+        'a crew member puts their own hold on a unit with a note, sees it listed, and releases it after confirming nobody is within reach',
+        async () => {
+          await signIn(page, base, 'crew1@saltmarsh.example');
+          await page.waitForURL(`${base}/fleet`);
+          await page.goto(`${base}/units/${unitId}`);
+          await page.getByTestId('holds-empty').waitFor();
+          await page.getByTestId('cmd-hold').click();
+          let dialog = await openedDialog(page);
+          expectTrue(
+            ((await dialog.getByTestId('command-caution').textContent()) ?? '').includes('not a lockout'),
+            'hold caution says a hold is not a lockout',
+          );
+          await dialog.getByTestId('command-text').fill('Replacing the tilt drive');
+          await dialog.getByTestId('confirm').click();
+          const mine = page.getByTestId('hold-panel').locator('li', { hasText: 'Ines Calder' });
+          await mine.getByText('Replacing the tilt drive').waitFor({ timeout: 3000 });
+          await page.getByTestId('hold-banner').filter({ hasText: 'by Ines Calder' }).waitFor();
+          expectTrue(await page.getByTestId('cmd-hold').isDisabled(), 'a second hold of the same person is not offered');
+          await page.setViewportSize({ width: 360, height: 740 });
+          await page.getByTestId('hold-panel').scrollIntoViewIfNeeded();
+          await page.screenshot({ path: join(output, 'unit-view-hold-panel-phone.png'), animations: 'disabled' });
+          await page.setViewportSize({ width: 1280, height: 800 });
+          await page.emulateMedia({ colorScheme: 'dark' });
+          await page.getByTestId('hold-panel').screenshot({ path: join(output, 'unit-view-hold-panel-dark.png'), animations: 'disabled' });
+          await page.emulateMedia({ colorScheme: 'light' });
 
-        await page.getByTestId('release-own').click();
-        dialog = await openedDialog(page);
-        const caution = (await dialog.getByTestId('command-caution').textContent()) ?? '';
-        for (const words of ['move at once', 'not a lockout', 'lockout/tagout procedure', 'Local codes and licensed practice']) expectTrue(caution.includes(words), `release caution mentions "${words}"`);
-        expectTrue(await dialog.getByTestId('confirm').isDisabled(), 'release disabled until the sender states nobody is within reach');
-        await page.screenshot({ path: join(output, 'unit-release-hold-confirm.png'), animations: 'disabled' });
-        await dialog.getByTestId('people-clear').click();
-        await dialog.locator('[data-testid="confirm"]:enabled').waitFor({ timeout: 2000 });
-        await dialog.getByTestId('confirm').click();
-        await page.getByTestId('holds-empty').waitFor({ timeout: 3000 });
-        await page.getByTestId('hold-banner').waitFor({ state: 'detached', timeout: 3000 });
-        await signOut(page, base);
-      });
-
+          await page.getByTestId('release-own').click();
+          dialog = await openedDialog(page);
+          const caution = (await dialog.getByTestId('command-caution').textContent()) ?? '';
+          for (const words of ['move at once', 'not a lockout', 'lockout/tagout procedure', 'Local codes and licensed practice'])
+            expectTrue(caution.includes(words), `release caution mentions "${words}"`);
+          expectTrue(await dialog.getByTestId('confirm').isDisabled(), 'release disabled until the sender states nobody is within reach');
+          await page.screenshot({ path: join(output, 'unit-release-hold-confirm.png'), animations: 'disabled' });
+          await dialog.getByTestId('people-clear').click();
+          await dialog.locator('[data-testid="confirm"]:enabled').waitFor({ timeout: 2000 });
+          await dialog.getByTestId('confirm').click();
+          await page.getByTestId('holds-empty').waitFor({ timeout: 3000 });
+          await page.getByTestId('hold-banner').waitFor({ state: 'detached', timeout: 3000 });
+          await signOut(page, base);
+        },
+      );
     } finally {
       await fake.endAsync().catch(() => undefined);
     }

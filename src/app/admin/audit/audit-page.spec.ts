@@ -8,8 +8,14 @@ import { AuditPage, VIEWER_TIME_ZONE } from './audit-page';
 import { actionLook, detailText } from './audit-words';
 
 const entry = (over: Partial<AuditLogEntry>): AuditLogEntry => ({
-  id: 1, at: '2026-06-21T09:00:00.000Z', user: { id: 3, name: 'Mara Okonjo', email: 'tech1@saltmarsh.example' }, action: 'alarm-acknowledge',
-  target: 'alarm:40', targetLabel: 'Alarm on QHL-2401 (stall)', detail: { kind: 'stall', severity: 'P2', serial: 'QHL-2401' }, ...over,
+  id: 1,
+  at: '2026-06-21T09:00:00.000Z',
+  user: { id: 3, name: 'Mara Okonjo', email: 'tech1@saltmarsh.example' },
+  action: 'alarm-acknowledge',
+  target: 'alarm:40',
+  targetLabel: 'Alarm on QHL-2401 (stall)',
+  detail: { kind: 'stall', severity: 'P2', serial: 'QHL-2401' },
+  ...over,
 });
 const page = (entries: AuditLogEntry[], total = entries.length, offset = 0): Page => ({ total, limit: 50, offset, entries });
 
@@ -24,7 +30,15 @@ async function render(first: Page) {
   fixture.detectChanges();
   expectAudit({ limit: '50', offset: '0' }).flush(first);
   http.expectOne('/api/users').flush([
-    { id: 3, email: 'tech1@saltmarsh.example', name: 'Mara Okonjo', role: 'technician', ownerId: null, disabled: false, createdAt: '2026-01-01T00:00:00Z' },
+    {
+      id: 3,
+      email: 'tech1@saltmarsh.example',
+      name: 'Mara Okonjo',
+      role: 'technician',
+      ownerId: null,
+      disabled: false,
+      createdAt: '2026-01-01T00:00:00Z',
+    },
   ]);
   await fixture.whenStable();
   const el = fixture.nativeElement as HTMLElement;
@@ -43,7 +57,7 @@ function expectAudit(params: Record<string, string>): TestRequest {
 describe('AuditPage', () => {
   afterEach(() => http.verify());
 
-  it('shows each entry with the time in the reader\'s zone, who, the action in words, the target and the detail', async () => {
+  it("shows each entry with the time in the reader's zone, who, the action in words, the target and the detail", async () => {
     const { el, text } = await render(page([entry({})]));
     // 09:00 UTC is 10:00 in London in June.
     expect(text('at-1')).toContain('10:00:00');
@@ -56,7 +70,9 @@ describe('AuditPage', () => {
 
   it('shows the UTC instant when the time is hovered', async () => {
     const { fixture } = await render(page([entry({})]));
-    const tooltip = await TestbedHarnessEnvironment.loader(fixture).getHarness(MatTooltipHarness.with({ selector: '[data-testid="at-1"]' }));
+    const tooltip = await TestbedHarnessEnvironment.loader(fixture).getHarness(
+      MatTooltipHarness.with({ selector: '[data-testid="at-1"]' }),
+    );
     await tooltip.show();
     expect(await tooltip.getTooltipText()).toBe('2026-06-21 09:00:00 UTC');
   }, 20_000);
@@ -77,7 +93,7 @@ describe('AuditPage', () => {
     expectAudit({ limit: '50', offset: '0' }).flush(page([]));
   });
 
-  it('sends the time range as UTC instants read in the reader\'s zone', async () => {
+  it("sends the time range as UTC instants read in the reader's zone", async () => {
     const { fixture, el } = await render(page([entry({})]));
     const from = el.querySelector('[data-testid="filter-from"]') as HTMLInputElement;
     from.value = '2026-06-21T10:00';
@@ -97,11 +113,17 @@ describe('AuditPage', () => {
     expect(text('audit-empty')).toBe('No entries match these filters.');
   });
 
-  it('shows an error with a retry, and the server\'s message under the filter it names', async () => {
+  it("shows an error with a retry, and the server's message under the filter it names", async () => {
     const { fixture, el, text } = await render(page([entry({})]));
     fixture.componentInstance['setFilter']('target', 'x'.repeat(200));
     expectAudit({ target: 'x'.repeat(200), limit: '50', offset: '0' }).flush(
-      { error: { code: 'validation_failed', message: 'The request has 1 invalid field(s): target.', fields: { target: 'Must be at most 128 characters.' } } },
+      {
+        error: {
+          code: 'validation_failed',
+          message: 'The request has 1 invalid field(s): target.',
+          fields: { target: 'Must be at most 128 characters.' },
+        },
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await fixture.whenStable();
@@ -109,7 +131,10 @@ describe('AuditPage', () => {
     expect(el.querySelector('.field-problem')!.textContent).toContain('Must be at most 128 characters.');
     expect(text('audit-empty')).toBe('Nothing to show until the log can be read.');
     fixture.componentInstance['setFilter']('target', '');
-    expectAudit({ limit: '50', offset: '0' }).flush({ error: { code: 'db', message: 'Database unavailable.' } }, { status: 503, statusText: 'x' });
+    expectAudit({ limit: '50', offset: '0' }).flush(
+      { error: { code: 'db', message: 'Database unavailable.' } },
+      { status: 503, statusText: 'x' },
+    );
     await fixture.whenStable();
     (el.querySelector('[data-testid="retry"]') as HTMLButtonElement).click();
     expectAudit({ limit: '50', offset: '0' }).flush(page([entry({ id: 9 })]));
@@ -129,11 +154,22 @@ describe('audit words', () => {
 
   it('shows a settings change as before → after, an export as its range, a command by kind and parameters', () => {
     const time = (iso: string) => `<${iso.slice(11, 16)}>`;
-    expect(detailText(entry({ action: 'health-settings-update', detail: { before: { stowGustMs: 16 }, after: { stowGustMs: 15, trapRatio: 0.8 } } }), time))
-      .toBe('stowGustMs 16 → 15 · trapRatio default → 0.8');
+    expect(
+      detailText(
+        entry({ action: 'health-settings-update', detail: { before: { stowGustMs: 16 }, after: { stowGustMs: 15, trapRatio: 0.8 } } }),
+        time,
+      ),
+    ).toBe('stowGustMs 16 → 15 · trapRatio default → 0.8');
     expect(detailText(entry({ action: 'health-settings-update', detail: { before: { a: 1 }, after: { a: 1 } } }), time)).toBe('No change');
-    expect(detailText(entry({ action: 'trace-export', detail: { serial: 'QHL-2401', from: '2026-06-10T08:00:00.000Z', to: '2026-06-10T09:00:00.000Z' } }), time)).toBe('<08:00> to <09:00>');
-    expect(detailText(entry({ action: 'command', detail: { commandId: 'c1', kind: 'goto', tiltDeg: 30, azimuthDeg: 180 } }), time)).toBe('goto (tiltDeg 30, azimuthDeg 180)');
+    expect(
+      detailText(
+        entry({ action: 'trace-export', detail: { serial: 'QHL-2401', from: '2026-06-10T08:00:00.000Z', to: '2026-06-10T09:00:00.000Z' } }),
+        time,
+      ),
+    ).toBe('<08:00> to <09:00>');
+    expect(detailText(entry({ action: 'command', detail: { commandId: 'c1', kind: 'goto', tiltDeg: 30, azimuthDeg: 180 } }), time)).toBe(
+      'goto (tiltDeg 30, azimuthDeg 180)',
+    );
     expect(detailText(entry({ action: 'sign-in', detail: { address: '127.0.0.1' } }), time)).toBe('from 127.0.0.1');
     expect(detailText(entry({ action: 'user-update', detail: { role: 'crew', disabled: true } }), time)).toBe('role crew · disabled true');
     expect(detailText(entry({ action: 'user-password-reset', detail: null }), time)).toBe('');

@@ -61,7 +61,9 @@ export class AuditPage implements OnInit {
 
   protected readonly zone = inject(VIEWER_TIME_ZONE);
   protected readonly columns = ['at', 'user', 'action', 'target', 'detail'];
-  protected readonly actions = Object.entries(ACTION_LOOKS).map(([value, look]) => ({ value, ...look })).sort((a, b) => a.label.localeCompare(b.label));
+  protected readonly actions = Object.entries(ACTION_LOOKS)
+    .map(([value, look]) => ({ value, ...look }))
+    .sort((a, b) => a.label.localeCompare(b.label));
 
   protected readonly filters = signal<Filters>({ ...NO_FILTERS });
   protected readonly pageIndex = signal(0);

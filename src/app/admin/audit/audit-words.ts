@@ -49,7 +49,9 @@ function show(v: unknown): string {
   if (typeof v === 'string') return v;
   if (typeof v === 'number' || typeof v === 'boolean') return String(v);
   if (Array.isArray(v)) return v.map(show).join(', ');
-  return Object.entries(v as Detail).map(([k, x]) => `${k} ${show(x)}`).join(', ');
+  return Object.entries(v as Detail)
+    .map(([k, x]) => `${k} ${show(x)}`)
+    .join(', ');
 }
 
 /** `{ before: {a: 1}, after: {a: 2, b: 3} }` → "a 1 → 2 · b default → 3". */
@@ -80,5 +82,7 @@ export function detailText(entry: AuditLogEntry, time: (iso: string) => string):
     return Object.keys(rest).length ? `${show(d['kind'])} (${show(rest)})` : show(d['kind']);
   }
   if (typeof d['address'] === 'string' && Object.keys(d).length === 1) return `from ${d['address']}`;
-  return Object.entries(d).map(([k, v]) => `${k} ${show(v)}`).join(' · ');
+  return Object.entries(d)
+    .map(([k, v]) => `${k} ${show(v)}`)
+    .join(' · ');
 }

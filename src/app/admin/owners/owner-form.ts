@@ -14,15 +14,7 @@ import { OwnerApi } from '../../core/owner-api';
 /** Add or edit an owner; closes with the saved owner. */
 @Component({
   selector: 'bw-owner-form',
-  imports: [
-    ReactiveFormsModule,
-    MatButtonModule,
-    MatDialogModule,
-    MatFormFieldModule,
-    MatIconModule,
-    MatInputModule,
-    MatProgressBarModule,
-  ],
+  imports: [ReactiveFormsModule, MatButtonModule, MatDialogModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule],
   template: `
     <h2 mat-dialog-title>{{ owner ? 'Edit owner' : 'Add an owner' }}</h2>
     <form [formGroup]="form" (ngSubmit)="save()" novalidate>

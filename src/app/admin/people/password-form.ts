@@ -14,15 +14,7 @@ import { UserApi } from '../../core/user-api';
 /** Sets a new password for someone; closes with `true` once the server has taken it. */
 @Component({
   selector: 'bw-password-form',
-  imports: [
-    ReactiveFormsModule,
-    MatButtonModule,
-    MatDialogModule,
-    MatFormFieldModule,
-    MatIconModule,
-    MatInputModule,
-    MatProgressBarModule,
-  ],
+  imports: [ReactiveFormsModule, MatButtonModule, MatDialogModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule],
   template: `
     <h2 mat-dialog-title>New password for {{ user.name }}</h2>
     <form [formGroup]="form" (ngSubmit)="save()" novalidate>
@@ -40,7 +32,13 @@ import { UserApi } from '../../core/user-api';
         <mat-form-field class="full">
           <mat-label>New password</mat-label>
           <input matInput [type]="show() ? 'text' : 'password'" formControlName="password" autocomplete="new-password" required />
-          <button mat-icon-button matSuffix type="button" (click)="show.set(!show())" [attr.aria-label]="show() ? 'Hide password' : 'Show password'">
+          <button
+            mat-icon-button
+            matSuffix
+            type="button"
+            (click)="show.set(!show())"
+            [attr.aria-label]="show() ? 'Hide password' : 'Show password'"
+          >
             <mat-icon>{{ show() ? 'visibility_off' : 'visibility' }}</mat-icon>
           </button>
           <mat-hint>At least {{ min }} characters</mat-hint>
@@ -53,7 +51,11 @@ import { UserApi } from '../../core/user-api';
       </mat-dialog-actions>
     </form>
   `,
-  styles: `.full { width: 100%; }`,
+  styles: `
+    .full {
+      width: 100%;
+    }
+  `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class PasswordForm {

@@ -68,9 +68,7 @@ export class UserForm {
   constructor() {
     if (this.data.user) this.form.controls.email.disable();
     this.requireOwnerFor(this.form.controls.role.value);
-    this.form.controls.role.valueChanges
-      .pipe(takeUntilDestroyed(inject(DestroyRef)))
-      .subscribe((role) => this.requireOwnerFor(role));
+    this.form.controls.role.valueChanges.pipe(takeUntilDestroyed(inject(DestroyRef))).subscribe((role) => this.requireOwnerFor(role));
   }
 
   /** Owner accounts must belong to an owner; other roles never do. */

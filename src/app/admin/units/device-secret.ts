@@ -43,14 +43,26 @@ export interface DeviceSecretData {
     </mat-dialog-actions>
   `,
   styles: `
-    .label { font: var(--mat-sys-label-large); margin: 16px 0 6px; }
-    .secret { display: flex; gap: 12px; align-items: center; flex-wrap: wrap; margin-bottom: 12px; }
+    .label {
+      font: var(--mat-sys-label-large);
+      margin: 16px 0 6px;
+    }
+    .secret {
+      display: flex;
+      gap: 12px;
+      align-items: center;
+      flex-wrap: wrap;
+      margin-bottom: 12px;
+    }
     code {
       flex: 1 1 240px;
       padding: 10px 12px;
       border-radius: 8px;
       background: var(--mat-sys-surface-container-highest);
-      font: 500 15px/1.4 ui-monospace, 'DejaVu Sans Mono', monospace;
+      font:
+        500 15px/1.4 ui-monospace,
+        'DejaVu Sans Mono',
+        monospace;
       word-break: break-all;
       user-select: all;
     }
