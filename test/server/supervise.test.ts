@@ -31,7 +31,8 @@ describe('npm start supervises the server', () => {
   it('passes SIGTERM to the server and does not start it again', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'bw-sup-'));
     const log = join(dir, 'runs');
-    const s = supervise(`echo run >> ${log}; trap 'echo stopped >> ${log}; exit 0' TERM; while :; do sleep 0.05; done`);
+    // The trap is set before "run" is written: a SIGTERM sent as soon as the test sees "run" cannot beat it.
+    const s = supervise(`trap 'echo stopped >> ${log}; exit 0' TERM; echo run >> ${log}; while :; do sleep 0.05; done`);
     await waitFor(
       () => {
         try {

@@ -43,16 +43,10 @@ import { scanFindings, scanHeatmapOptions } from './scan-chart';
             }
           </div>
           @if (command(); as c) {
-            <p class="quiet" data-testid="scan-status">
-              <mat-icon aria-hidden="true" class="inline">{{ statusLabel[c.status].icon }}</mat-icon>Scan
-              {{ statusLabel[c.status].label | lowercase }}
-              @if (c.reason) {
-                — {{ c.reason }}
-              }
-              .
-              @if (c.status !== 'completed' && c.status !== 'rejected' && c.status !== 'timed-out') {
-                The result appears here when the unit reports the end of the scan.
-              }
+            <!-- The full stop follows the block with no space: kept as written. -->
+            <!-- prettier-ignore -->
+            <p class="quiet" data-testid="scan-status"><mat-icon aria-hidden="true" class="inline">{{ statusLabel[c.status].icon }}</mat-icon>Scan {{ statusLabel[c.status].label | lowercase }}@if (c.reason) { — {{ c.reason }} }.
+              @if (c.status !== 'completed' && c.status !== 'rejected' && c.status !== 'timed-out') { The result appears here when the unit reports the end of the scan. }
             </p>
           }
         </li>

@@ -26,22 +26,15 @@ import { Notify } from '../ui/notify';
         <div class="trap" role="note" data-testid="trap-finding">
           <mat-icon aria-hidden="true">landscape</mat-icon>
           <div>
-            <p>
-              <strong>Stuck on a lesser peak.</strong> The modelled brightest orientation is tilt {{ t.finding.best.tiltDeg }}°, azimuth
-              {{ t.finding.best.azimuthDeg }}° with {{ t.finding.best.wm2 | number: '1.0-0' }} W/m².
+            <!-- The full stops follow the blocks with no space: kept as written. -->
+            <!-- prettier-ignore -->
+            <p><strong>Stuck on a lesser peak.</strong>
+              The modelled brightest orientation is tilt {{ t.finding.best.tiltDeg }}°, azimuth {{ t.finding.best.azimuthDeg }}° with {{ t.finding.best.wm2 | number: '1.0-0' }} W/m².
               @if (t.finding.lossWm2 !== null) {
-                Where it points it loses <strong>{{ t.finding.lossWm2 | number: '1.0-0' }} W/m²</strong>
-                @if (t.finding.lossPct !== null) {
-                  ({{ t.finding.lossPct | number: '1.0-1' }} %)
-                }
-                .
+                Where it points it loses <strong>{{ t.finding.lossWm2 | number: '1.0-0' }} W/m²</strong>@if (t.finding.lossPct !== null) { ({{ t.finding.lossPct | number: '1.0-1' }} %)}.
               }
-              @if (t.finding.peaks !== null) {
-                The model shows {{ t.finding.peaks }} peaks.
-              }
-              @if (t.finding.singlePeakDetectorTiltDeg !== null) {
-                A detector tilt of {{ t.finding.singlePeakDetectorTiltDeg }}° or more would leave one.
-              }
+              @if (t.finding.peaks !== null) { The model shows {{ t.finding.peaks }} peaks. }
+              @if (t.finding.singlePeakDetectorTiltDeg !== null) { A detector tilt of {{ t.finding.singlePeakDetectorTiltDeg }}° or more would leave one. }
             </p>
             @if (canUseTarget()) {
               <button
