@@ -1,5 +1,4 @@
 import type { Db } from './db';
-import type { TelemetryRow } from './telemetry-repository';
 import type { TraceQuantity } from '../../shared/contracts/traces';
 import { traceColumn, traceSql } from './trace-columns';
 
@@ -7,7 +6,41 @@ import { traceColumn, traceSql } from './trace-columns';
 export type BucketRow = { b: number; n: number } & Record<string, number | null>;
 
 /** A raw report as exported: the stored row without its keys and bookkeeping. */
-export type RawTraceRow = Omit<TelemetryRow, 'unit_id' | 'seq' | 'received_at'>;
+/** One stored reading as the CSV export writes it, in the product's names. */
+export interface RawTraceRecord {
+  ts: Date;
+  mode: string;
+  tiltPlusWm2: number;
+  tiltMinusWm2: number;
+  azimuthPlusWm2: number;
+  azimuthMinusWm2: number;
+  poaWm2: number;
+  tiltDeg: number;
+  azimuthDeg: number;
+  cmdTiltDeg: number;
+  cmdAzimuthDeg: number;
+  tiltMotorA: number;
+  azimuthMotorA: number;
+  dcPowerW: number;
+  moduleTempC: number;
+}
+
+/** RawTraceRecord field ← telemetry column. */
+const RAW_COLUMNS: Record<Exclude<keyof RawTraceRecord, 'ts' | 'mode'>, string> = {
+  tiltPlusWm2: 'tilt_plus_wm2',
+  tiltMinusWm2: 'tilt_minus_wm2',
+  azimuthPlusWm2: 'azimuth_plus_wm2',
+  azimuthMinusWm2: 'azimuth_minus_wm2',
+  poaWm2: 'poa_wm2',
+  tiltDeg: 'tilt_deg',
+  azimuthDeg: 'azimuth_deg',
+  cmdTiltDeg: 'cmd_tilt_deg',
+  cmdAzimuthDeg: 'cmd_azimuth_deg',
+  tiltMotorA: 'tilt_motor_a',
+  azimuthMotorA: 'azimuth_motor_a',
+  dcPowerW: 'dc_power_w',
+  moduleTempC: 'module_temp_c',
+};
 
 export interface EventMarkRow {
   ts: Date;
@@ -79,30 +112,14 @@ export class TraceRepository {
   }
 
   /** Raw rows in time order, `limit` at a time after `after` (exclusive), for streaming exports. */
-  rawPage(unitId: number, after: Date, to: Date, limit: number, inclusive = false): Promise<RawTraceRow[]> {
+  rawPage(unitId: number, after: Date, to: Date, limit: number, inclusive = false): Promise<RawTraceRecord[]> {
     return this.db('telemetry')
       .where('unit_id', unitId)
       .andWhere('ts', inclusive ? '>=' : '>', after)
       .andWhere('ts', '<', to)
       .orderBy('ts')
       .limit(limit)
-      .select(
-        'ts',
-        'mode',
-        'tilt_plus_wm2',
-        'tilt_minus_wm2',
-        'azimuth_plus_wm2',
-        'azimuth_minus_wm2',
-        'poa_wm2',
-        'tilt_deg',
-        'azimuth_deg',
-        'cmd_tilt_deg',
-        'cmd_azimuth_deg',
-        'tilt_motor_a',
-        'azimuth_motor_a',
-        'dc_power_w',
-        'module_temp_c',
-      );
+      .select('ts', 'mode', RAW_COLUMNS);
   }
 
   /** Events the unit reported in the range, without the bulky scan sample chunks. */
@@ -123,13 +140,13 @@ export class TraceRepository {
     from: Date,
     to: Date,
     limit = 500,
-  ): Promise<{ raised_at: Date; kind: string; severity: string; message: string }[]> {
+  ): Promise<{ raisedAt: Date; kind: string; severity: string; message: string }[]> {
     return this.db('alarms')
       .where('unit_id', unitId)
       .andWhere('raised_at', '>=', from)
       .andWhere('raised_at', '<', to)
       .orderBy('raised_at')
       .limit(limit)
-      .select('raised_at', 'kind', 'severity', 'message');
+      .select({ raisedAt: 'raised_at' }, 'kind', 'severity', 'message');
   }
 }

@@ -8,7 +8,7 @@ import {
   type TraceSeries,
   type UnitTraces,
 } from '../../shared/contracts/traces';
-import type { BucketRow, TraceRepository, RawTraceRow } from '../data/trace-repository';
+import type { BucketRow, TraceRepository, RawTraceRecord } from '../data/trace-repository';
 import { badRequest } from '../errors/app-error';
 import { csvLine } from '../../shared/csv/csv-field';
 
@@ -27,23 +27,23 @@ const round2 = (x: number | null) => (x === null ? null : Math.round(x * 100) / 
 export type ModelledBest = (siteId: number, atMs: number) => Promise<number>;
 
 /** Quantities and columns of the CSV export, in column order after `timestamp_utc`. */
-const CSV_COLUMNS: { name: string; value: (r: RawTraceRow) => string | number }[] = [
+const CSV_COLUMNS: { name: string; value: (r: RawTraceRecord) => string | number }[] = [
   { name: 'mode', value: (r) => r.mode },
-  { name: TRACE_QUANTITY_INFO.tiltPlusWm2.csv, value: (r) => r.tilt_plus_wm2 },
-  { name: TRACE_QUANTITY_INFO.tiltMinusWm2.csv, value: (r) => r.tilt_minus_wm2 },
-  { name: TRACE_QUANTITY_INFO.azimuthPlusWm2.csv, value: (r) => r.azimuth_plus_wm2 },
-  { name: TRACE_QUANTITY_INFO.azimuthMinusWm2.csv, value: (r) => r.azimuth_minus_wm2 },
-  { name: TRACE_QUANTITY_INFO.tiltDiffWm2.csv, value: (r) => round(r.tilt_plus_wm2 - r.tilt_minus_wm2) },
-  { name: TRACE_QUANTITY_INFO.azimuthDiffWm2.csv, value: (r) => round(r.azimuth_plus_wm2 - r.azimuth_minus_wm2) },
-  { name: TRACE_QUANTITY_INFO.poaWm2.csv, value: (r) => r.poa_wm2 },
-  { name: TRACE_QUANTITY_INFO.tiltDeg.csv, value: (r) => r.tilt_deg },
-  { name: TRACE_QUANTITY_INFO.cmdTiltDeg.csv, value: (r) => r.cmd_tilt_deg },
-  { name: TRACE_QUANTITY_INFO.azimuthDeg.csv, value: (r) => r.azimuth_deg },
-  { name: TRACE_QUANTITY_INFO.cmdAzimuthDeg.csv, value: (r) => r.cmd_azimuth_deg },
-  { name: 'tilt_motor_current_A', value: (r) => r.tilt_motor_a },
-  { name: 'azimuth_motor_current_A', value: (r) => r.azimuth_motor_a },
-  { name: TRACE_QUANTITY_INFO.dcPowerW.csv, value: (r) => r.dc_power_w },
-  { name: 'module_temperature_C', value: (r) => r.module_temp_c },
+  { name: TRACE_QUANTITY_INFO.tiltPlusWm2.csv, value: (r) => r.tiltPlusWm2 },
+  { name: TRACE_QUANTITY_INFO.tiltMinusWm2.csv, value: (r) => r.tiltMinusWm2 },
+  { name: TRACE_QUANTITY_INFO.azimuthPlusWm2.csv, value: (r) => r.azimuthPlusWm2 },
+  { name: TRACE_QUANTITY_INFO.azimuthMinusWm2.csv, value: (r) => r.azimuthMinusWm2 },
+  { name: TRACE_QUANTITY_INFO.tiltDiffWm2.csv, value: (r) => round(r.tiltPlusWm2 - r.tiltMinusWm2) },
+  { name: TRACE_QUANTITY_INFO.azimuthDiffWm2.csv, value: (r) => round(r.azimuthPlusWm2 - r.azimuthMinusWm2) },
+  { name: TRACE_QUANTITY_INFO.poaWm2.csv, value: (r) => r.poaWm2 },
+  { name: TRACE_QUANTITY_INFO.tiltDeg.csv, value: (r) => r.tiltDeg },
+  { name: TRACE_QUANTITY_INFO.cmdTiltDeg.csv, value: (r) => r.cmdTiltDeg },
+  { name: TRACE_QUANTITY_INFO.azimuthDeg.csv, value: (r) => r.azimuthDeg },
+  { name: TRACE_QUANTITY_INFO.cmdAzimuthDeg.csv, value: (r) => r.cmdAzimuthDeg },
+  { name: 'tilt_motor_current_A', value: (r) => r.tiltMotorA },
+  { name: 'azimuth_motor_current_A', value: (r) => r.azimuthMotorA },
+  { name: TRACE_QUANTITY_INFO.dcPowerW.csv, value: (r) => r.dcPowerW },
+  { name: 'module_temperature_C', value: (r) => r.moduleTempC },
 ];
 
 function round(x: number): number {
@@ -54,7 +54,7 @@ export function csvHeader(): string {
   return csvLine(['timestamp_utc', ...CSV_COLUMNS.map((c) => c.name)]);
 }
 
-export function csvRow(r: RawTraceRow): string {
+export function csvRow(r: RawTraceRecord): string {
   return csvLine([r.ts.toISOString(), ...CSV_COLUMNS.map((c) => c.value(r))]);
 }
 
@@ -196,8 +196,8 @@ function eventText(kind: string, b: Record<string, unknown>): string {
   return parts.join(' · ');
 }
 
-function alarmMark(a: { raised_at: Date; kind: string; severity: string; message: string }): TraceMark {
-  return { at: a.raised_at.toISOString(), kind: a.kind, text: `${a.message} (${a.severity})` };
+function alarmMark(a: { raisedAt: Date; kind: string; severity: string; message: string }): TraceMark {
+  return { at: a.raisedAt.toISOString(), kind: a.kind, text: `${a.message} (${a.severity})` };
 }
 
 /** Merges bucket rows of the same index from two sources: smallest minimum, largest maximum, samples added. */
