@@ -12,17 +12,50 @@ function cellIndex(values: readonly number[], v: number): number {
 }
 
 /** Which maxima to mark and how: the global one as a pin, lesser ones as diamonds (shape differs, not only colour). */
-export function maximaMarks(
-  l: SiteLandscape,
-): { name: string; tiltDeg: number; azimuthDeg: number; wm2: number; basinShare: number; best: boolean }[] {
-  return l.localMaxima.map((m, i) => ({
-    name: i === 0 ? 'Modelled best (global peak)' : `Lesser peak ${i}`,
+export interface MaximaMark {
+  name: string;
+  tiltDeg: number;
+  azimuthDeg: number;
+  wm2: number;
+  /** How far the peak stands out [W/m²]; null for a best that is not a peak (it lies on the unit's travel limit). */
+  prominenceWm2: number | null;
+  /** Share of orientations that climb to it; null for a best on the travel limit. */
+  basinShare: number | null;
+  best: boolean;
+}
+
+/**
+ * The table and chart marks of a landscape: its peaks, the one holding the modelled best flagged. The best is searched
+ * more finely than the grid the peaks lie on, so the peak within one grid step of it is the best's peak; when none is
+ * (the best lies on the tilt limit, on a slope), the best gets its own row first.
+ */
+export function maximaMarks(l: SiteLandscape): MaximaMark[] {
+  const g = l.globalMax;
+  const near = (m: { tiltDeg: number; azimuthDeg: number }) =>
+    Math.abs(m.tiltDeg - g.tiltDeg) <= l.stepDeg + 1e-9 && Math.abs(((m.azimuthDeg - g.azimuthDeg + 540) % 360) - 180) <= l.stepDeg + 1e-9;
+  const bestIndex = l.localMaxima.findIndex(near);
+  const peaks: MaximaMark[] = l.localMaxima.map((m, i) => ({
+    name: i === bestIndex ? 'Modelled best (global peak)' : `Lesser peak ${i + (bestIndex >= 0 && i > bestIndex ? 0 : 1)}`,
     tiltDeg: m.tiltDeg,
     azimuthDeg: m.azimuthDeg,
     wm2: m.wm2,
+    prominenceWm2: m.prominenceWm2,
     basinShare: m.basinShare,
-    best: m.tiltDeg === l.globalMax.tiltDeg && m.azimuthDeg === l.globalMax.azimuthDeg,
+    best: i === bestIndex,
   }));
+  if (bestIndex >= 0) return peaks;
+  return [
+    {
+      name: 'Modelled best (at the travel limit)',
+      tiltDeg: g.tiltDeg,
+      azimuthDeg: g.azimuthDeg,
+      wm2: g.wm2,
+      prominenceWm2: null,
+      basinShare: null,
+      best: true,
+    },
+    ...peaks,
+  ];
 }
 
 /**
@@ -81,7 +114,10 @@ export function heatmapOptions(l: SiteLandscape, which: 'values' | 'blurred', pa
           .map((m) => ({
             x: cellIndex(g.azimuthsDeg, m.azimuthDeg),
             y: cellIndex(g.tiltsDeg, m.tiltDeg),
-            label: `best ${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
+            label:
+              m.basinShare === null
+                ? `best ${Math.round(m.wm2)} W/m² · at the travel limit`
+                : `best ${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
           })),
       ),
     );
@@ -96,7 +132,7 @@ export function heatmapOptions(l: SiteLandscape, which: 'values' | 'blurred', pa
           .map((m) => ({
             x: cellIndex(g.azimuthsDeg, m.azimuthDeg),
             y: cellIndex(g.tiltsDeg, m.tiltDeg),
-            label: `${Math.round(m.wm2)} W/m² · basin ${Math.round(m.basinShare * 100)} %`,
+            label: `${Math.round(m.wm2)} W/m² · basin ${Math.round((m.basinShare ?? 0) * 100)} %`,
           })),
       ),
     );

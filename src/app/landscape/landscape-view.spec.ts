@@ -114,6 +114,23 @@ describe('landscape view', () => {
     ]);
   });
 
+  it('flags the peak within one grid step of the best, which is searched more finely than the grid', () => {
+    const m = maximaMarks({ ...l, globalMax: { tiltDeg: 46, azimuthDeg: 89, wm2: 601 } });
+    expect(m.map((x) => [x.best, x.name])).toEqual([
+      [true, 'Modelled best (global peak)'],
+      [false, 'Lesser peak 1'],
+    ]);
+  });
+
+  it('gives a best on the travel limit its own row, with no basin or prominence, when no peak holds it', () => {
+    const m = maximaMarks({ ...l, globalMax: { tiltDeg: 85, azimuthDeg: 180, wm2: 640 } });
+    expect(m.map((x) => [x.best, x.name, x.tiltDeg, x.basinShare, x.prominenceWm2])).toEqual([
+      [true, 'Modelled best (at the travel limit)', 85, null, null],
+      [false, 'Lesser peak 1', 45, 0.7, 590],
+      [false, 'Lesser peak 2', 90, 0.3, 289],
+    ]);
+  });
+
   it('draws the grid as a heat map over azimuth × tilt with the peaks and the sun on their cells', () => {
     const o = heatmapOptions(l, 'values', readPalette()) as {
       series: { type: string; name: string; data: unknown[] }[];
