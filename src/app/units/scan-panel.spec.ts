@@ -4,34 +4,9 @@ import type { ScanResult } from '../../../shared/contracts/alarms';
 import type { CommandView } from '../../../shared/contracts/live';
 import type { CommandChoice } from './commands';
 import { ScanPanel } from './scan-panel';
+import { scanResult } from '../testing/spec-fixtures';
 
-const scan: ScanResult = {
-  commandId: 'c1',
-  startedAt: '2026-06-21T10:00:00Z',
-  completedAt: '2026-06-21T10:04:00Z',
-  complete: true,
-  landscape: {
-    tiltsDeg: [0, 30, 60],
-    azimuthsDeg: [90, 180, 270],
-    values: [
-      [300, 320, null],
-      [400, 850, 500],
-      [200, 610, 180],
-    ],
-    samples: 8,
-    sampleMax: { tiltDeg: 30, azimuthDeg: 180, wm2: 850 },
-    globalMax: { tiltDeg: 31.2, azimuthDeg: 178.4, wm2: 861.3 },
-    localMaxima: [
-      { tiltDeg: 30, azimuthDeg: 180, wm2: 850 },
-      { tiltDeg: 60, azimuthDeg: 180, wm2: 610 },
-    ],
-  },
-  beforeWm2: 512,
-  expectedGainWm2: 349.3,
-  expectedGainPct: 68.2,
-  model: { globalMax: { tiltDeg: 28, azimuthDeg: 182, wm2: 880 }, angleApartDeg: 3.46, measuredVsModelPct: 97.9 },
-  goto: { kind: 'goto', tiltDeg: 31.2, azimuthDeg: 178.4 },
-};
+const scan: ScanResult = scanResult();
 const choice = (kind: CommandChoice['kind'], disabledReason: string | null = null): CommandChoice =>
   ({ kind, label: kind, icon: 'x', motion: true, disabledReason }) as CommandChoice;
 const command = (status: CommandView['status']): CommandView => ({

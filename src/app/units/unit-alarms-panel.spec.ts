@@ -7,44 +7,9 @@ import type { AlarmView } from '../../../shared/contracts/alarms';
 import { toAlarmView } from '../core/alarm-api';
 import { LIVE_SOCKET_FACTORY, LiveConnection } from '../live/live-connection';
 import { UnitAlarmsPanel } from './unit-alarms-panel';
+import { FakeSocket, alarmView } from '../testing/spec-fixtures';
 
-class FakeSocket {
-  static last: FakeSocket | null = null;
-  readyState = 0;
-  onopen: (() => void) | null = null;
-  onmessage: ((e: { data: string }) => void) | null = null;
-  onclose: (() => void) | null = null;
-  constructor() {
-    FakeSocket.last = this;
-  }
-  send(): void {}
-  close(): void {}
-  push(msg: unknown): void {
-    this.onmessage?.({ data: JSON.stringify(msg) });
-  }
-}
-
-const alarm = (over: Partial<AlarmView>): AlarmView => ({
-  id: 1,
-  kind: 'stall',
-  severity: 'P3',
-  state: 'active',
-  unitId: 3,
-  serial: 'QHL-2401',
-  siteId: 1,
-  siteName: 'Harbour Roof',
-  message: 'Tilt drive stalled.',
-  advice: 'Check the drive.',
-  evidence: {},
-  firstSeenAt: '2026-06-21T09:00:00Z',
-  raisedAt: '2026-06-21T09:10:00Z',
-  lastSeenAt: '2026-06-21T10:00:00Z',
-  clearedAt: null,
-  clearReason: null,
-  acknowledgedAt: null,
-  acknowledgedBy: null,
-  ...over,
-});
+const alarm = (over: Partial<AlarmView>): AlarmView => alarmView(over);
 const trap = alarm({
   id: 2,
   kind: 'trap',
