@@ -83,6 +83,11 @@ export class StartupError extends Error {}
 
 /** Wires database, broker and HTTP server in one process (the ingest subscribes to the broker in-process). */
 export interface StackOptions {
+  /**
+   * Fill the modelled-best cache for every site's last day in the background at start (default true). Short-lived
+   * test stacks turn it off: they would spend seconds of CPU on it and use little of it.
+   */
+  warmLandscapes?: boolean;
   ingest?: Partial<IngestOptions>;
   commands?: Partial<CommandOptions>;
   /** Extra listeners on the ingest (benchmarks). */
@@ -137,7 +142,10 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
 
   const siteModel = new SiteModelService(new SiteModelRepository(db), auditLog);
   const landscapes = new LandscapeService(siteModel);
-  const landscapesWarm = landscapes.startWarming(() => [...new Set(directory.all().map((u) => u.siteId))], log);
+  const landscapesWarm =
+    opts.warmLandscapes === false
+      ? Promise.resolve()
+      : landscapes.startWarming(() => [...new Set(directory.all().map((u) => u.siteId))], log);
   const telemetry = new TelemetryRepository(db);
   const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
   const healthOpts: HealthServiceOptions = { ...DEFAULT_HEALTH_SERVICE_OPTIONS, ...opts.health };

@@ -52,7 +52,6 @@ export function siteSky(site: SkySite, survey: SiteSurvey, atMs: number, weather
  */
 export function siteModelOf(resolved: ResolvedSky, indoor: boolean, atMs: number, maxTiltDeg: number): SiteModel {
   const sky = resolved.sky;
-  const maxTilt = maxTiltDeg;
   let analysis: ReturnType<NonNullable<SiteModel['analyse']>> | undefined;
   return {
     atMs,
@@ -63,7 +62,7 @@ export function siteModelOf(resolved: ResolvedSky, indoor: boolean, atMs: number
       detectorReadings(sky, tiltDeg, azimuthDeg, Math.min(45, Math.max(0, detectorTiltDeg))),
     analyse: () => {
       if (!analysis) {
-        const r = analyseLandscape(sky, { stepDeg: 2, tiltRangeDeg: [0, maxTilt] });
+        const r = analyseLandscape(sky, { stepDeg: 2, tiltRangeDeg: [0, maxTiltDeg] });
         analysis = { localMaxima: r.localMaxima, minSinglePeakDetectorTiltDeg: r.minSinglePeakDetectorTiltDeg };
       }
       return analysis;
@@ -71,7 +70,7 @@ export function siteModelOf(resolved: ResolvedSky, indoor: boolean, atMs: number
   };
 }
 
-/** The brightest orientation of a sky with tilt up to `maxTiltDeg` (2° grid). */
+/** The brightest reachable orientation of a sky with tilt up to `maxTiltDeg`, any azimuth (shared/landscape/best-orientation.ts). */
 export function globalMaxOf(sky: Sky, maxTiltDeg: number) {
   return bestReachableOrientation(sky, { tiltRangeDeg: [0, maxTiltDeg], azimuthRangeDeg: [0, 360] });
 }

@@ -155,11 +155,7 @@ export class LandscapeService {
       // A turn for other requests first: callers ask for many slots in a row (a day of traces), each tens of ms of CPU.
       p = new Promise<void>((r) => setImmediate(r))
         .then(() => this.model.skyAt(siteId, slot))
-        .then(({ sky }) => {
-          // A dark sky (night, no lamps) lights no orientation: skip the grid.
-          if (!sky.ghiWm2 && !sky.dhiWm2 && !sky.dniWm2 && !sky.pointSources.length) return 0;
-          return round1(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS).wm2);
-        });
+        .then(({ sky }) => round1(bestReachableOrientation(sky, STANDARD_UNIT_LIMITS).wm2));
       p.catch(() => this.bests.delete(key));
       this.bests.set(key, p);
     }

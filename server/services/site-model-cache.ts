@@ -42,9 +42,8 @@ export class SiteModelCache {
 
   /** The model of a site at an instant, built now (throws 404 for an unknown site). */
   async build(siteId: number, atMs: number): Promise<SiteModel> {
-    const resolved = await this.siteModel.skyAt(siteId, atMs);
-    const { indoor } = await this.siteModel.inputs(siteId);
-    return siteModelOf(resolved, indoor, atMs, this.opts.maxTiltDeg);
+    const { resolved, inputs } = await this.siteModel.skyAndInputsAt(siteId, atMs);
+    return siteModelOf(resolved, inputs.indoor, atMs, this.opts.maxTiltDeg);
   }
 
   /** The modelled brightest reachable orientation of a site at an instant (throws 404 for an unknown site). */

@@ -49,8 +49,17 @@ export class SiteModelService {
 
   /** The resolved sky of a site at an instant (throws 404 for an unknown site). */
   async skyAt(siteId: number, atMs: number, weather?: SiteWeather | null): Promise<ResolvedSky> {
-    const { site, survey } = await this.inputs(siteId);
+    return (await this.skyAndInputsAt(siteId, atMs, weather)).resolved;
+  }
+
+  /** The resolved sky with the inputs it was built from, for callers that need both (one read of the site). */
+  async skyAndInputsAt(
+    siteId: number,
+    atMs: number,
+    weather?: SiteWeather | null,
+  ): Promise<{ resolved: ResolvedSky; inputs: SiteModelInputs }> {
+    const inputs = await this.inputs(siteId);
     const w = weather === undefined ? await this.repo.weatherNear(siteId, atMs) : weather;
-    return siteSky(site, survey, atMs, w);
+    return { resolved: siteSky(inputs.site, inputs.survey, atMs, w), inputs };
   }
 }

@@ -83,7 +83,9 @@ export function irradianceAt(sky: Sky, tiltDeg: number, azimuthDeg: number, meth
 
 /** The best orientation a unit with these limits can reach under a sky, at a stated resolution (fast irradiance). */
 export function bestReachableOrientation(sky: Sky, limits: UnitLimits, options: BestOrientationOptions = {}): BestOrientation {
-  return bestReachableOrientationWith((n) => irradianceFastAtNormal(sky, n), limits, options);
+  // A dark sky (night, no lamps) lights no orientation: the same search over zeros, without building the fast model.
+  const dark = !sky.ghiWm2 && !sky.dhiWm2 && !sky.dniWm2 && !sky.pointSources.length;
+  return bestReachableOrientationWith(dark ? () => 0 : (n) => irradianceFastAtNormal(sky, n), limits, options);
 }
 
 /** Readings of the tilt and azimuth detector pairs (±δ) and the two photodifferentials at a panel orientation. */

@@ -22,7 +22,11 @@ export async function startTestStack(opts: TestStackOptions = {}): Promise<Stack
     db: { ...testDb.config.db, port: opts.dbPort ?? testDb.config.db.port },
     sessionSecret: 'test-secret-test-secret-test-secret-0',
   };
-  const stack = await startStack(config, pino({ level: process.env['BW_TEST_LOG_LEVEL'] ?? 'silent' }), opts.stack);
+  // No background warming of the modelled best: a test stack lives seconds (landscape-warm.test.ts covers the warmer).
+  const stack = await startStack(config, pino({ level: process.env['BW_TEST_LOG_LEVEL'] ?? 'silent' }), {
+    warmLandscapes: false,
+    ...opts.stack,
+  });
   return {
     ...stack,
     testDb,

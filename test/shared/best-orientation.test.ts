@@ -53,6 +53,15 @@ describe('best reachable orientation', () => {
     expect(b.wm2).toBeCloseTo(irradianceAt(sky, b.tiltDeg, b.azimuthDeg), 9);
   });
 
+  it('a dark sky (no sun, no sky light, no lamps) is 0 W/m² at the first reachable orientation, without building the fast model', () => {
+    const sky = buildSky({ dhiWm2: 0, ghiWm2: 0, skyType: 'isotropic', albedo: RHO });
+    const b = bestReachableOrientation(sky, { tiltRangeDeg: [5, 80], azimuthRangeDeg: [90, 270] });
+    expect(b).toEqual({ tiltDeg: 5, azimuthDeg: 90, wm2: 0 });
+    expect([...sky.cache.keys()].filter((k) => k.startsWith('fast'))).toEqual([]);
+    // The sky really is dark: its irradiance is 0 where the search would have looked.
+    expect(irradianceAt(sky, 40, 180)).toBe(0);
+  });
+
   it('a tilt limit below the optimum stops at the limit, facing the sun: tilt 0…15° → tilt 15°, azimuth 180°', () => {
     const b = bestReachableOrientationWith(closedForm, { tiltRangeDeg: [0, 15], azimuthRangeDeg: [0, 360] }, { resolutionDeg: 0.5 });
     expect(b.tiltDeg).toBe(15);
