@@ -54,7 +54,7 @@ describe('best reachable orientation', () => {
   });
 
   it('a dark sky (no sun, no sky light, no lamps) is 0 W/m² at the first reachable orientation, without building the fast model', () => {
-    const sky = buildSky({ dhiWm2: 0, ghiWm2: 0, skyType: 'isotropic', albedo: RHO });
+    const sky = buildSky({ sun: null, dhiWm2: 0, ghiWm2: 0, skyType: 'isotropic', albedo: RHO });
     const b = bestReachableOrientation(sky, { tiltRangeDeg: [5, 80], azimuthRangeDeg: [90, 270] });
     expect(b).toEqual({ tiltDeg: 5, azimuthDeg: 90, wm2: 0 });
     expect([...sky.cache.keys()].filter((k) => k.startsWith('fast'))).toEqual([]);
