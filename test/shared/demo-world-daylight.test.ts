@@ -14,7 +14,10 @@ const outdoor = DEMO_SITES.filter((s) => !s.indoor);
 function highestSun(unixMs: number): { elevationDeg: number; code: string } {
   let best = { elevationDeg: -90, code: '' };
   for (const s of outdoor) {
-    const { elevationDeg } = solarPosition({ latitudeDeg: s.latitude_deg, longitudeDeg: s.longitude_deg, elevationM: s.elevation_m }, unixMs);
+    const { elevationDeg } = solarPosition(
+      { latitudeDeg: s.latitude_deg, longitudeDeg: s.longitude_deg, elevationM: s.elevation_m },
+      unixMs,
+    );
     if (elevationDeg > best.elevationDeg) best = { elevationDeg, code: s.code };
   }
   return best;
