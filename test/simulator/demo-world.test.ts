@@ -108,7 +108,7 @@ describe('demo world scenarios, surveys, owners and users', () => {
     expect(DETECTOR_TILTS_DEG[TRAP_PRONE_UNIT_INDEX]).toBe(Math.min(...DETECTOR_TILTS_DEG));
     for (const site of demoFleetSites()) {
       if (!CLUTTERED.has(site.scenario)) continue;
-      expect(site.units[TRAP_PRONE_UNIT_INDEX]?.controller.detectorTiltDeg, site.site.code).toBe(8);
+      expect(site.units[TRAP_PRONE_UNIT_INDEX]?.controller?.detectorTiltDeg, site.site.code).toBe(8);
     }
   });
 
