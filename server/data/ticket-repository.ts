@@ -253,6 +253,29 @@ export class TicketRepository {
     }));
   }
 
+  /**
+   * A site's tickets opened in [from, to), with their check-in count and whether their fault came back within 90 days
+   * of the resolution (a later ticket of the same fault, or a reopening), for the KPIs.
+   */
+  async forKpis(siteId: number, from: Date, to: Date): Promise<(StoredTicket & { visits: number; repeated: boolean })[]> {
+    const rows = await this.base({ ownerId: null })
+      .where('t.site_id', siteId)
+      .where('t.opened_at', '>=', from)
+      .where('t.opened_at', '<', to)
+      .select(
+        this.db.raw("(SELECT COUNT(*) FROM ticket_transitions v WHERE v.ticket_id = t.id AND v.to_state = 'on-site') AS visits"),
+        this.db.raw(
+          `(t.resolved_at IS NOT NULL AND (
+              EXISTS (SELECT 1 FROM ticket_transitions r WHERE r.ticket_id = t.id AND r.to_state = 'reopened'
+                      AND r.at <= t.resolved_at + INTERVAL 90 DAY)
+              OR EXISTS (SELECT 1 FROM tickets n WHERE n.fault_key = t.fault_key AND n.id <> t.id
+                      AND n.opened_at >= t.resolved_at AND n.opened_at < t.resolved_at + INTERVAL 90 DAY))) AS repeated`,
+        ),
+      )
+      .orderBy('t.id');
+    return rows.map((r) => ({ ...toTicket(r), visits: Number(r.visits), repeated: Boolean(Number(r.repeated)) }));
+  }
+
   /** Whether a user is an enabled field crew member (the only people a ticket is assigned to). */
   async isActiveCrew(userId: number): Promise<boolean> {
     const r = await this.db('users').where({ id: userId, role: 'crew', disabled: false }).first('id');

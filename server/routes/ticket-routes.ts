@@ -25,6 +25,10 @@ const listQuery = z.strictObject({
   limit: z.coerce.number().int().min(1, 'Must be between 1 and 1000.').max(1000, 'Must be between 1 and 1000.').optional(),
 });
 
+const kpiQuery = z.strictObject({
+  month: z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, 'Must be a calendar month such as 2026-11.'),
+});
+
 const createBody = z.strictObject({
   unitId: z.number().int().positive().optional(),
   siteId: z.number().int().positive().optional(),
@@ -62,6 +66,7 @@ const transitionBody = z.strictObject({
  *   GET  /tickets.csv                                     the ticket log with every state time (RFC 4180, UTC)
  *   POST /tickets { unitId | siteId, title, severity, description? }       technician, engineer, admin → 201
  *   GET  /tickets/:id                                     with transitions, linked alarms, SLA clocks, next moves
+ *   GET  /sites/:id/ticket-kpis?month=YYYY-MM             acknowledgement … repeat repairs, in the site's calendar
  *   POST /tickets/:id/transition { to, version?, note?, reason?, assigneeId?, confirm?, closure?, … }
  */
 export function ticketRoutes(tickets: TicketService, audit: AuditService): Router {
@@ -93,6 +98,11 @@ export function ticketRoutes(tickets: TicketService, audit: AuditService): Route
 
   r.get('/tickets/:id', async (req, res) => {
     res.json(await tickets.get(callerOf(req), parse(idParam, req.params).id));
+  });
+
+  r.get('/sites/:id/ticket-kpis', async (req, res) => {
+    const { month } = parse(kpiQuery, req.query);
+    res.json(await tickets.kpis(callerOf(req), parse(idParam, req.params).id, month));
   });
 
   r.post('/tickets/:id/transition', requireRole('moveTickets'), async (req, res) => {

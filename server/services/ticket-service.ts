@@ -19,6 +19,22 @@ import { AppError, badRequest, conflict, forbidden, notFound } from '../errors/a
 import type { AlarmToLink, StoredTicket, TicketFilter, TicketPatch, TicketRepository, TransitionRecord } from '../data/ticket-repository';
 import type { AdminService } from './admin-service';
 import { scopeOf, type Caller } from './caller';
+import { localDate, utcWindowOfLocalDate } from './local-time';
+import { KPI_HELP, ticketKpis, type TicketKpis } from '../../shared/tickets/ticket-kpis';
+
+/** `GET /api/sites/:id/ticket-kpis?month=YYYY-MM`. */
+export interface SiteTicketKpis extends TicketKpis {
+  siteId: number;
+  siteName: string;
+  month: string;
+  timeZone: string;
+  help: typeof KPI_HELP;
+}
+
+function nextMonth(month: string): string {
+  const [y, m] = month.split('-').map(Number) as [number, number];
+  return m === 12 ? `${y + 1}-01` : `${y}-${String(m + 1).padStart(2, '0')}`;
+}
 
 /** What holds a ticket's units while its crew is on site (the command service). */
 export interface TicketHolds {
@@ -119,6 +135,42 @@ export class TicketService {
     const t = await this.stored(c, id);
     const [transitions, alarms] = await Promise.all([this.repo.transitions(id), this.repo.alarms(id)]);
     return { ...this.view(c, t), transitions, alarms };
+  }
+
+  /** Work-order KPIs of a site for a calendar month in the site's time zone (tickets opened in that month). */
+  async kpis(c: Caller, siteId: number, month: string): Promise<SiteTicketKpis> {
+    const site = await this.admin.getSite(c, siteId);
+    const first = `${month}-01`;
+    const { from } = utcWindowOfLocalDate(first);
+    const next = nextMonth(month);
+    const { to } = utcWindowOfLocalDate(`${next}-01`);
+    const rows = (await this.repo.forKpis(site.id, from, to)).filter((t) =>
+      localDate(t.openedAt.getTime(), site.timeZone).startsWith(month),
+    );
+    const ms = (d: Date | null) => (d ? d.getTime() : null);
+    const kpis = ticketKpis(
+      rows.map((t) => ({
+        id: t.id,
+        faultKey: t.faultKey,
+        openedAtMs: t.openedAt.getTime(),
+        acknowledgedAtMs: ms(t.acknowledgedAt),
+        onSiteAtMs: ms(t.onSiteAt),
+        resolvedAtMs: ms(t.resolvedAt),
+        state: t.state,
+        clocks:
+          t.state === 'cancelled'
+            ? []
+            : [
+                { dueAtMs: t.acknowledgeDueAt.getTime(), metAtMs: ms(t.acknowledgedAt) },
+                { dueAtMs: t.onSiteDueAt.getTime(), metAtMs: ms(t.onSiteAt) },
+                { dueAtMs: t.fixDueAt.getTime(), metAtMs: ms(t.resolvedAt) },
+              ],
+        visits: t.visits,
+        repeated: t.repeated,
+      })),
+      this.opts.now(),
+    );
+    return { siteId: site.id, siteName: site.name, month, timeZone: site.timeZone, ...kpis, help: KPI_HELP };
   }
 
   // ---- opening

@@ -397,3 +397,45 @@ describe('owners and the ticket log', () => {
     expect(row).toContain(',running,running,running,');
   });
 });
+
+describe('work-order KPIs of a site and month', () => {
+  it('measures acknowledgement, intervention, response, resolution, MTTR, SLA compliance, first-time fix and repeats', async () => {
+    const site = await stack.db('sites').where({ name: 'Kerio Ridge Clinic Roof' }).first('id');
+    const crew = await as(CREW);
+    const min = 60_000;
+    clockOffsetMs = 0;
+    const a = await open('NKR-2401', 'P2', 'KPI ticket A');
+    const b = await open('NKR-2402', 'P1', 'KPI ticket B');
+    const c = await open('NKR-2403', 'P3', 'KPI ticket C, cancelled');
+    for (const t of [a, b]) expect((await move(TECH, t.id, { to: 'dispatched', assigneeId: crew.userId })).status).toBe(200);
+    await move(TECH, c.id, { to: 'cancelled', reason: 'duplicate' });
+    clockOffsetMs = 20 * min;
+    await move(CREW, a.id, { to: 'acknowledged' });
+    clockOffsetMs = 45 * min; // B's acknowledge clock (P1: 30 min) is breached
+    await move(CREW, b.id, { to: 'acknowledged' });
+    clockOffsetMs = 80 * min;
+    await move(CREW, a.id, { to: 'on-site', confirm: true });
+    clockOffsetMs = 200 * min;
+    const r = await move(CREW, a.id, { to: 'resolved', confirm: true, note: 'Re-seated the connector.', closure: CLOSURE });
+    expect(r.status).toBe(200);
+    const month = new Intl.DateTimeFormat('en-CA', { timeZone: 'Africa/Nairobi', year: 'numeric', month: '2-digit' })
+      .format(Date.parse(a.openedAt))
+      .slice(0, 7);
+    const k = (await (await as(ENGINEER)).agent.get(`/api/sites/${site.id}/ticket-kpis?month=${month}`).expect(200)).body;
+    clockOffsetMs = 0;
+    // Times are measured by the service's clock to the millisecond; requests take a few ms, so compare in whole minutes.
+    const mins = (s: { n: number; meanMin: number | null }) => [s.n, s.meanMin === null ? null : Math.round(s.meanMin)];
+    expect(k).toMatchObject({ siteId: site.id, month, timeZone: 'Africa/Nairobi', opened: 3, resolved: 1, cancelled: 1 });
+    expect(mins(k.acknowledgement)).toEqual([2, 33]); // (20 + 45) / 2 = 32.5
+    expect(mins(k.intervention)).toEqual([1, 60]);
+    expect(mins(k.response)).toEqual([1, 80]);
+    expect(mins(k.resolution)).toEqual([1, 120]);
+    expect(k.mttrH).toBeCloseTo(200 / 60, 1);
+    // Clocks that came due or were met: A's three (met), B's acknowledge (breached); B's others are not due yet.
+    expect([k.slaClocksCounted, k.slaCompliancePct]).toEqual([4, 75]);
+    expect([k.firstTimeFixPct, k.repeatRepairPct]).toEqual([100, 0]);
+    expect(k.help.acknowledgement).toMatch(/opening to the assigned crew member's acknowledgement/);
+    await (await as(ENGINEER)).agent.get(`/api/sites/${site.id}/ticket-kpis?month=2026-13`).expect(400);
+    await (await as(OTHER_OWNER)).agent.get(`/api/sites/${site.id}/ticket-kpis?month=${month}`).expect(404);
+  });
+});
