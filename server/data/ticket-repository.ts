@@ -2,6 +2,7 @@ import type { Knex } from 'knex';
 import type { AlarmSeverity } from '../../shared/contracts/alarms';
 import type {
   AvailabilityCategory,
+  SlaTargets,
   TicketAlarmLink,
   TicketClosure,
   TicketPart,
@@ -274,6 +275,36 @@ export class TicketRepository {
       )
       .orderBy('t.id');
     return rows.map((r) => ({ ...toTicket(r), visits: Number(r.visits), repeated: Boolean(Number(r.repeated)) }));
+  }
+
+  /** An owner's SLA targets by severity (only the severities it has set). */
+  async ownerSla(ownerId: number): Promise<Partial<Record<AlarmSeverity, SlaTargets>>> {
+    const rows = await this.db('owner_sla').where({ owner_id: ownerId });
+    return Object.fromEntries(
+      rows.map((r) => [r.severity, { acknowledgeMin: r.acknowledge_min, onSiteMin: r.on_site_min, fixMin: r.fix_min }]),
+    );
+  }
+
+  /** Replaces an owner's SLA targets (severities left out go back to the defaults), audited, in one transaction. */
+  async replaceOwnerSla(ownerId: number, sla: Partial<Record<AlarmSeverity, SlaTargets>>, audit: AuditEntry): Promise<void> {
+    await this.db.transaction(async (trx) => {
+      await trx('owner_sla').where({ owner_id: ownerId }).delete();
+      const rows = Object.entries(sla).map(([severity, t]) => ({
+        owner_id: ownerId,
+        severity,
+        acknowledge_min: t.acknowledgeMin,
+        on_site_min: t.onSiteMin,
+        fix_min: t.fixMin,
+      }));
+      if (rows.length) await trx('owner_sla').insert(rows);
+      await appendAudit(trx, audit);
+    });
+  }
+
+  /** The owner of a site. */
+  async ownerOfSite(siteId: number): Promise<number | undefined> {
+    const r = await this.db('sites').where({ id: siteId }).first('owner_id');
+    return r?.owner_id;
   }
 
   /** Whether a user is an enabled field crew member (the only people a ticket is assigned to). */

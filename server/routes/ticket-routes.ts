@@ -29,6 +29,19 @@ const kpiQuery = z.strictObject({
   month: z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, 'Must be a calendar month such as 2026-11.'),
 });
 
+const minutes = z
+  .number()
+  .int('Whole minutes.')
+  .min(1, 'At least 1 minute.')
+  .max(365 * 24 * 60, 'At most a year.');
+const slaTargets = z.strictObject({ acknowledgeMin: minutes, onSiteMin: minutes, fixMin: minutes });
+const slaBody = z.strictObject({
+  P1: slaTargets.optional(),
+  P2: slaTargets.optional(),
+  P3: slaTargets.optional(),
+  P4: slaTargets.optional(),
+});
+
 const createBody = z.strictObject({
   unitId: z.number().int().positive().optional(),
   siteId: z.number().int().positive().optional(),
@@ -67,6 +80,8 @@ const transitionBody = z.strictObject({
  *   POST /tickets { unitId | siteId, title, severity, description? }       technician, engineer, admin → 201
  *   GET  /tickets/:id                                     with transitions, linked alarms, SLA clocks, next moves
  *   GET  /sites/:id/ticket-kpis?month=YYYY-MM             acknowledgement … repeat repairs, in the site's calendar
+ *   GET  /owners/:id/sla                                  targets per severity (the contract's, else the defaults)
+ *   PUT  /owners/:id/sla { P1?: { acknowledgeMin, onSiteMin, fixMin }, … }   admin: severities left out use the defaults
  *   POST /tickets/:id/transition { to, version?, note?, reason?, assigneeId?, confirm?, closure?, … }
  */
 export function ticketRoutes(tickets: TicketService, audit: AuditService): Router {
@@ -103,6 +118,14 @@ export function ticketRoutes(tickets: TicketService, audit: AuditService): Route
   r.get('/sites/:id/ticket-kpis', async (req, res) => {
     const { month } = parse(kpiQuery, req.query);
     res.json(await tickets.kpis(callerOf(req), parse(idParam, req.params).id, month));
+  });
+
+  r.get('/owners/:id/sla', async (req, res) => {
+    res.json(await tickets.slaOf(callerOf(req), parse(idParam, req.params).id));
+  });
+
+  r.put('/owners/:id/sla', requireRole('administer'), async (req, res) => {
+    res.json(await tickets.setSla(callerOf(req), parse(idParam, req.params).id, parse(slaBody, req.body, 'The SLA targets')));
   });
 
   r.post('/tickets/:id/transition', requireRole('moveTickets'), async (req, res) => {

@@ -8,6 +8,7 @@ import {
   transitionsFor,
   type AvailabilityCategory,
   type SlaClockView,
+  type SlaTargets,
   type TicketClosure,
   type TicketPart,
   type TicketState,
@@ -21,6 +22,13 @@ import type { AdminService } from './admin-service';
 import { scopeOf, type Caller } from './caller';
 import { localDate, utcWindowOfLocalDate } from './local-time';
 import { KPI_HELP, ticketKpis, type TicketKpis } from '../../shared/tickets/ticket-kpis';
+
+/** `GET /api/owners/:id/sla`: the targets in force per severity, and which of them the owner's contract sets. */
+export interface OwnerSla {
+  ownerId: number;
+  targets: Record<AlarmSeverity, SlaTargets>;
+  contracted: AlarmSeverity[];
+}
 
 /** `GET /api/sites/:id/ticket-kpis?month=YYYY-MM`. */
 export interface SiteTicketKpis extends TicketKpis {
@@ -197,7 +205,7 @@ export class TicketService {
         faultKey: null,
         openedAt: now,
         openedBy: c.id,
-        ...this.dueTimes(req.severity, now),
+        ...(await this.dueTimes(siteId, req.severity, now)),
         availabilityCategory: 'forced-outage',
       },
       { from: null, to: 'new', at: now, by: c.id, note: null, reason: null, assigneeId: null },
@@ -280,7 +288,7 @@ export class TicketService {
         faultKey: key,
         openedAt: now,
         openedBy: null,
-        ...this.dueTimes(severity, now),
+        ...(await this.dueTimes(a.siteId, severity, now)),
         availabilityCategory: defaultCategory(a.kind),
       },
       { from: null, to: 'new', at: now, by: null, note: null, reason: `Opened for alarm ${a.id}`, assigneeId: null },
@@ -422,8 +430,33 @@ export class TicketService {
     return t;
   }
 
-  private dueTimes(severity: AlarmSeverity, openedAt: Date) {
-    const sla = DEFAULT_SLA[severity];
+  /** The SLA targets of a site's owner: its contracted ones where set, else the defaults. */
+  async slaOf(c: Caller, ownerId: number): Promise<OwnerSla> {
+    await this.admin.getOwner(c, ownerId);
+    const own = await this.repo.ownerSla(ownerId);
+    return {
+      ownerId,
+      targets: Object.fromEntries(ALARM_SEVERITIES.map((s) => [s, own[s] ?? DEFAULT_SLA[s]])) as Record<AlarmSeverity, SlaTargets>,
+      contracted: ALARM_SEVERITIES.filter((s) => own[s] !== undefined),
+    };
+  }
+
+  /** Admins set an owner's contracted targets; tickets opened from now on use them (open tickets keep their due times). */
+  async setSla(c: Caller, ownerId: number, targets: Partial<Record<AlarmSeverity, SlaTargets>>): Promise<OwnerSla> {
+    await this.admin.getOwner(c, ownerId);
+    for (const [sev, t] of Object.entries(targets)) {
+      if (!(t.acknowledgeMin <= t.onSiteMin && t.onSiteMin <= t.fixMin))
+        throw badRequest(`The ${sev} targets must not shrink along the way: acknowledge ≤ on site ≤ fixed.`, {
+          [sev]: 'acknowledgeMin ≤ onSiteMin ≤ fixMin',
+        });
+    }
+    await this.repo.replaceOwnerSla(ownerId, targets, { userId: c.id, action: 'sla-update', target: `owner:${ownerId}`, detail: targets });
+    return this.slaOf(c, ownerId);
+  }
+
+  private async dueTimes(siteId: number, severity: AlarmSeverity, openedAt: Date) {
+    const ownerId = await this.repo.ownerOfSite(siteId);
+    const sla = (ownerId !== undefined ? (await this.repo.ownerSla(ownerId))[severity] : undefined) ?? DEFAULT_SLA[severity];
     const at = (min: number) => new Date(openedAt.getTime() + min * 60_000);
     return { acknowledgeDueAt: at(sla.acknowledgeMin), onSiteDueAt: at(sla.onSiteMin), fixDueAt: at(sla.fixMin) };
   }

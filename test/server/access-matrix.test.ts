@@ -139,6 +139,8 @@ const ROUTES: Row[] = [
                                                                                                                                           401, 201, 201, 201, 403, 403),
   row('GET /api/tickets/:id',                      (w, s) => `/api/tickets/${w[s].ticketId}`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/ticket-kpis',            (w, s) => `/api/sites/${w[s].siteId}/ticket-kpis?month=2026-06`,                      401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/owners/:id/sla',                   (w, s) => `/api/owners/${w[s].ownerId}/sla`,                                          401, 200, 200, 200, 200, mine(200)),
+  row('PUT /api/owners/:id/sla',                   (w, s) => ({ path: `/api/owners/${w[s].ownerId}/sla`, body: {} }),                     401, 200, 403, 403, 403, 403),
   // A stale version: the control room reaches the lock (409) and changes nothing; crews may not cancel, owners move nothing.
   row('POST /api/tickets/:id/transition',          (w, s) => ({ path: `/api/tickets/${w[s].ticketId}/transition`, body: { to: 'cancelled', reason: 'matrix', version: 999 } }),
                                                                                                                                           401, 409, 409, 409, 403, 403),

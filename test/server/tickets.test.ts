@@ -439,3 +439,25 @@ describe('work-order KPIs of a site and month', () => {
     await (await as(OTHER_OWNER)).agent.get(`/api/sites/${site.id}/ticket-kpis?month=${month}`).expect(404);
   });
 });
+
+describe("an owner's contracted SLA", () => {
+  it('is set by admins, validated, used by tickets opened after it, and read by the owner', async () => {
+    const owner = await stack.db('owners').where({ name: 'Nyasoro Clinics Trust' }).first('id');
+    const admin = await as(ADMIN);
+    const bad = await admin.agent.put(`/api/owners/${owner.id}/sla`).send({ P2: { acknowledgeMin: 600, onSiteMin: 60, fixMin: 120 } });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.fields.P2).toMatch(/acknowledgeMin ≤ onSiteMin ≤ fixMin/);
+    const ok = await admin.agent.put(`/api/owners/${owner.id}/sla`).send({ P2: { acknowledgeMin: 15, onSiteMin: 120, fixMin: 480 } });
+    expect(ok.status).toBe(200);
+    expect(ok.body.contracted).toEqual(['P2']);
+    expect(ok.body.targets.P2).toEqual({ acknowledgeMin: 15, onSiteMin: 120, fixMin: 480 });
+    expect(ok.body.targets.P1).toEqual({ acknowledgeMin: 30, onSiteMin: 240, fixMin: 1440 }); // default
+    const t = await open('NKR-2404', 'P2', 'Under contract');
+    expect(t.clocks.map((c) => (Date.parse(c.dueAt) - Date.parse(t.openedAt)) / 60_000)).toEqual([15, 120, 480]);
+    const elsewhere = await open('QHL-2401', 'P2', 'Default SLA');
+    expect(elsewhere.clocks.map((c) => (Date.parse(c.dueAt) - Date.parse(elsewhere.openedAt)) / 60_000)).toEqual([60, 1440, 4320]);
+    await (await as(OWNER)).agent.get(`/api/owners/${owner.id}/sla`).expect(404);
+    await (await as(TECH)).agent.put(`/api/owners/${owner.id}/sla`).send({}).expect(403);
+    await admin.agent.put(`/api/owners/${owner.id}/sla`).send({}).expect(200);
+  });
+});
