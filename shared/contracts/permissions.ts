@@ -10,12 +10,14 @@ export const PERMISSIONS = {
   administer: ['admin'],
   /** Send commands at all (field crews only hold and release: the command service checks the kind). */
   command: ['admin', 'engineer', 'technician', 'crew'],
+  /** A unit's command history (who sent what, and what became of it): the people who operate units. */
+  readCommandHistory: ['admin', 'engineer', 'technician', 'crew'],
   /** Send motion commands and settings (what the dashboard offers beyond hold and release). */
   commandMotion: ['admin', 'engineer', 'technician'],
   acknowledgeAlarms: ['technician', 'engineer', 'admin'],
   editHealthSettings: ['engineer', 'admin'],
   /** Run the detectors on demand over stored data. */
-  runHealth: ['engineer', 'technician', 'admin'],
+  runDetectors: ['engineer', 'technician', 'admin'],
   editSurvey: ['admin', 'engineer'],
   /** Ingest, broker and rollup counters. */
   readMetrics: ['admin', 'engineer', 'technician'],
@@ -23,6 +25,8 @@ export const PERMISSIONS = {
   readTraces: ['admin', 'engineer', 'technician'],
   /** A site's modelled landscape and its day of hours (the API). */
   readLandscape: ['admin', 'engineer', 'technician', 'crew'],
+  /** How the model got its numbers (clear-sky model, turbidity, measured or modelled magnitudes): engineers' detail. */
+  readModelDetails: ['admin', 'engineer'],
   /** The landscape screen. */
   openLandscape: ['admin', 'engineer'],
   /** The fleet board (live units). */
@@ -35,6 +39,11 @@ export const PERMISSIONS = {
   readTickets: ROLES,
   readAlarms: ROLES,
   readSites: ROLES,
+  /**
+   * The unit page. Owners get it read-only for units of their own sites (live state, the last hour, alarms): the API
+   * scopes every unit read to the caller's owner, and the page shows no commands, settings or survey to them.
+   */
+  openUnitPage: ROLES,
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;

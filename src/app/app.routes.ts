@@ -3,6 +3,7 @@ import { Router, Routes } from '@angular/router';
 import { Session } from './auth/session';
 import { authGuard } from './auth/auth-guard';
 import { roleGuard } from './auth/role-guard';
+import { rolesWith } from '../../shared/contracts/permissions';
 import { rolesFor } from './shell/nav-items';
 
 export const routes: Routes = [
@@ -44,10 +45,11 @@ export const routes: Routes = [
         loadComponent: () => import('./alarms/alarm-board').then((m) => m.AlarmBoard),
       },
       {
+        // Every role; owners get it read-only for their own sites' units (the API scopes the unit to them).
         path: 'units/:id',
         title: 'Unit · Brightward',
         canActivate: [roleGuard],
-        data: { roles: rolesFor('/fleet') },
+        data: { roles: rolesWith('openUnitPage') },
         loadComponent: () => import('./units/unit-view').then((m) => m.UnitView),
       },
       {

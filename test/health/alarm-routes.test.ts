@@ -111,17 +111,17 @@ describe('alarms over HTTP', () => {
     const eng = await as('engineer@saltmarsh.example');
     const r = (
       await eng
-        .post('/api/health/run')
+        .post('/api/detectors/run')
         .send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z', unitIds: [unit('QED-2401').id] })
         .expect(200)
     ).body;
     expect(r).toMatchObject({ units: 1, reports: 0, alarms: [] });
-    await eng.post('/api/health/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
-    await eng.post('/api/health/run').send({ from: '2026-06-01T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
+    await eng.post('/api/detectors/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
+    await eng.post('/api/detectors/run').send({ from: '2026-06-01T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
     await (
       await as('owner@quillmoor.example')
     )
-      .post('/api/health/run')
+      .post('/api/detectors/run')
       .send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z' })
       .expect(403);
   });

@@ -112,7 +112,8 @@ const ROUTES: Row[] = [
   row('GET /api/units/:id/state',                  (w, s) => `/api/units/${unit(w, s)}/state`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/telemetry',              (w, s) => `/api/units/${unit(w, s)}/telemetry?${range}`,                               401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/holds',                  (w, s) => `/api/units/${unit(w, s)}/holds`,                                            401, 200, 200, 200, 200, mine(200)),
-  row('GET /api/units/:id/commands',               (w, s) => `/api/units/${unit(w, s)}/commands`,                                         401, 200, 200, 200, 200, mine(200)),
+  // Owners read the unit page of their own sites' units (state, last hour, holds in force); the command history is the operators'.
+  row('GET /api/units/:id/commands',               (w, s) => `/api/units/${unit(w, s)}/commands`,                                         401, 200, 200, 200, 200, 403),
   row('POST /api/units/:id/commands',              (w, s) => ({ path: `/api/units/${unit(w, s, 1)}/commands`, body: { kind: 'configure', config: { reportIntervalS: 5 }, confirm: true } }),
                                                                                                                                           401, 201, 201, 201, 403, 403, { label: 'configure' }),
   row('POST /api/units/:id/commands',              (w, s) => ({ path: `/api/units/${unit(w, s, 2)}/commands`, body: { kind: 'hold' } }),  401, 201, 201, 201, 201, 403, { label: 'hold' }),
@@ -151,8 +152,11 @@ const ROUTES: Row[] = [
   row('GET /api/sites/:id/health-settings',        (w, s) => `/api/sites/${w[s].siteId}/health-settings`,                                401, 200, 200, 200, 200, mine(200)),
   row('PUT /api/sites/:id/health-settings',        (w, s) => ({ path: `/api/sites/${w[s].siteId}/health-settings`, body: { stowGustMs: 17 } }),
                                                                                                                                           401, 200, 200, 403, 403, 403),
-  row('POST /api/health/run',                      (w, s) => ({ path: '/api/health/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z', unitIds: [unit(w, s)] } }),
+  row('POST /api/detectors/run',                   (w, s) => ({ path: '/api/detectors/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z', unitIds: [unit(w, s)] } }),
                                                                                                                                           401, 200, 200, 200, 403, 403),
+  // The detectors' run under its old name: a permanent redirect for everyone signed in (the new path checks the role).
+  row('POST /api/health/run',                      () => ({ path: '/api/health/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z' } }),
+                                                                                                                                          401, 308, 308, 308, 308, 308),
 
   // The audit log: admins only.
   row('GET /api/audit',                            () => '/api/audit?limit=5',                                                            401, 200, 403, 403, 403, 403),

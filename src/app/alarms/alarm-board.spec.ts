@@ -50,7 +50,7 @@ describe('AlarmBoard', () => {
       alarm({ id: 3, severity: 'P2', kind: 'trap', evidence: { lossWm2: 300 } }),
     ]);
     expect(titles()).toEqual(['Did not stow', 'Stuck on a lesser peak', 'Actuator stall']);
-    expect(sevs()).toEqual(['e911_emergencyP1 Urgent', 'warningP2 High', 'reportP3 Medium']);
+    expect(sevs()).toEqual(['release_alertP1 Urgent', 'warningP2 High', 'reportP3 Medium']);
     expect(el.querySelector('[data-testid="count-P1"]')!.textContent).toContain('1');
     // 09:00 UTC is 10:00 in London in June.
     expect(el.querySelector('[data-testid="alarm-1"] .facts dd')!.textContent).toContain('10:00');

@@ -28,7 +28,7 @@ describe('unit view values', () => {
     expect(statusLook(state())).toMatchObject({ label: 'Settled', icon: 'check_circle' });
     expect(statusLook(state({ online: false }))).toMatchObject({ label: 'Offline', icon: 'cloud_off' });
     expect(statusLook(state({ onHold: true, mode: 'seeking' }))).toMatchObject({ label: 'Maintenance hold' });
-    expect(statusLook(null).label).toBe('No reports yet');
+    expect(statusLook(null).label).toBe('Never reported');
   });
 
   it('compares with the modelled best only in daylight', () => {
