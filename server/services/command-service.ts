@@ -202,7 +202,10 @@ export class CommandService {
     if (req.holdId !== undefined && req.kind !== 'release-hold') misplaced['holdId'] = 'Only for release-hold.';
     if (req.reason !== undefined && req.kind !== 'release-hold') misplaced['reason'] = 'Only for release-hold.';
     if (Object.keys(misplaced).length)
-      throw badRequest(`Field(s) ${Object.keys(misplaced).join(', ')} do not belong to the command “${commandWords(req.kind)}”.`, misplaced);
+      throw badRequest(
+        `Field(s) ${Object.keys(misplaced).join(', ')} do not belong to the command “${commandWords(req.kind)}”.`,
+        misplaced,
+      );
     if (req.kind === 'goto' && (req.tiltDeg === undefined || req.azimuthDeg === undefined)) {
       throw badRequest('Go to needs a tilt and an azimuth.', {
         ...(req.tiltDeg === undefined ? { tiltDeg: 'Required for go to.' } : {}),

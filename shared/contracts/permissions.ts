@@ -10,8 +10,6 @@ export const PERMISSIONS = {
   administer: ['admin'],
   /** Send commands at all (field crews only hold and release: the command service checks the kind). */
   command: ['admin', 'engineer', 'technician', 'crew'],
-  /** A unit's command history (who sent what, and what became of it): the people who operate units. */
-  readCommandHistory: ['admin', 'engineer', 'technician', 'crew'],
   /** Send motion commands and settings (what the dashboard offers beyond hold and release). */
   commandMotion: ['admin', 'engineer', 'technician'],
   acknowledgeAlarms: ['technician', 'engineer', 'admin'],

@@ -51,8 +51,14 @@ export const surveySchema = z.strictObject({
     .array(
       z.tuple(
         [
-          z.number({ error: 'azimuth must be a number' }).min(0, 'azimuth must be from 0 to under 360°').max(359.999999, 'azimuth must be from 0 to under 360°'),
-          z.number({ error: 'elevation must be a number' }).min(0, 'elevation must be from 0 to 90°').max(90, 'elevation must be from 0 to 90°'),
+          z
+            .number({ error: 'azimuth must be a number' })
+            .min(0, 'azimuth must be from 0 to under 360°')
+            .max(359.999999, 'azimuth must be from 0 to under 360°'),
+          z
+            .number({ error: 'elevation must be a number' })
+            .min(0, 'elevation must be from 0 to 90°')
+            .max(90, 'elevation must be from 0 to 90°'),
         ],
         { error: 'must be a pair [azimuth 0…360°, elevation 0…90°]' },
       ),

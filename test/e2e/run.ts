@@ -21,6 +21,7 @@ import { fleetBoardJourney } from './journeys/fleet-board';
 import { landscapeJourney } from './journeys/landscape';
 import { ownerIsolationJourney } from './journeys/owner-isolation';
 import { pagePolicyChecks, type RunRecord } from './journeys/page-policy';
+import { plainWordsJourney } from './journeys/plain-words';
 import { rolesJourney } from './journeys/roles';
 import { shellJourney } from './journeys/shell';
 import { signInJourney } from './journeys/sign-in';
@@ -44,6 +45,7 @@ const JOURNEYS: readonly Journey[] = [
   alarmsJourney,
   tracesJourney,
   landscapeJourney,
+  plainWordsJourney,
 ];
 
 async function main(only: readonly string[]): Promise<number> {

@@ -125,4 +125,15 @@ describe('alarms over HTTP', () => {
       .send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z' })
       .expect(403);
   });
+
+  it('answers the old path of the detectors run, beside the liveness check /api/health, with a 308 to the new one', async () => {
+    const eng = await as('engineer@saltmarsh.example');
+    const res = await eng.post('/api/health/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z' });
+    expect(res.status).toBe(308);
+    expect(res.headers['location']).toBe('/api/detectors/run');
+    // The liveness check is untouched: no session needed, database and broker only.
+    const health = await request(stack.http).get('/api/health');
+    expect(health.status).toBe(200);
+    expect(Object.keys(health.body).sort()).toEqual(['broker', 'database', 'status']);
+  });
 });

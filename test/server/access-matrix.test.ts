@@ -108,12 +108,12 @@ const ROUTES: Row[] = [
   row('PATCH /api/units/:id',                      (w, s) => ({ path: `/api/units/${unit(w, s, 4)}`, body: {} }),                         401, 200, 403, 403, 403, 403),
   row('POST /api/units/:id/secret',                (w, s) => ({ path: `/api/units/${unit(w, s, 3)}/secret`, body: {} }),                  401, 200, 403, 403, 403, 403),
 
-  // Live state, telemetry, commands.
+  // Live state, telemetry, commands. The unit page reads these: owners too, read-only, for their own sites' units
+  // (the last hour is `telemetry`); another owner's unit is 404 to them.
   row('GET /api/units/:id/state',                  (w, s) => `/api/units/${unit(w, s)}/state`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/telemetry',              (w, s) => `/api/units/${unit(w, s)}/telemetry?${range}`,                               401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/holds',                  (w, s) => `/api/units/${unit(w, s)}/holds`,                                            401, 200, 200, 200, 200, mine(200)),
-  // Owners read the unit page of their own sites' units (state, last hour, holds in force); the command history is the operators'.
-  row('GET /api/units/:id/commands',               (w, s) => `/api/units/${unit(w, s)}/commands`,                                         401, 200, 200, 200, 200, 403),
+  row('GET /api/units/:id/commands',               (w, s) => `/api/units/${unit(w, s)}/commands`,                                         401, 200, 200, 200, 200, mine(200)),
   row('POST /api/units/:id/commands',              (w, s) => ({ path: `/api/units/${unit(w, s, 1)}/commands`, body: { kind: 'configure', config: { reportIntervalS: 5 }, confirm: true } }),
                                                                                                                                           401, 201, 201, 201, 403, 403, { label: 'configure' }),
   row('POST /api/units/:id/commands',              (w, s) => ({ path: `/api/units/${unit(w, s, 2)}/commands`, body: { kind: 'hold' } }),  401, 201, 201, 201, 201, 403, { label: 'hold' }),
@@ -146,6 +146,7 @@ const ROUTES: Row[] = [
   row('POST /api/tickets/:id/transition',          (w, s) => ({ path: `/api/tickets/${w[s].ticketId}/transition`, body: { to: 'cancelled', reason: 'matrix', version: 999 } }),
                                                                                                                                           401, 409, 409, 409, 403, 403),
   row('GET /api/alarms',                           (w, s) => `/api/alarms?siteId=${w[s].siteId}`,                                         401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/alarms',                           (w, s) => `/api/alarms?unitId=${unit(w, s)}`,                                          401, 200, 200, 200, 200, mine(200), { label: 'one unit (the unit page)' }),
   row('GET /api/alarms/:id',                       (w, s) => `/api/alarms/${w[s].alarmId}`,                                               401, 200, 200, 200, 200, mine(200)),
   row('POST /api/alarms/:id/acknowledge',          (w, s) => ({ path: `/api/alarms/${w[s].alarmId}/acknowledge`, body: {} }),             401, 200, 200, 200, 403, 403),
   row('GET /api/units/:id/scans/latest',           (w, s) => `/api/units/${unit(w, s)}/scans/latest`,                                     401, 200, 200, 200, 200, mine(200)),

@@ -91,7 +91,10 @@ export class SurveyEditor {
   protected readonly problems = computed(() => (this.survey() ? surveyProblems(this.survey()!) : {}));
   /** Every problem, named as the form names the field ("Horizon point 4", "Facade 1, reflectance"), counted from 1. */
   protected readonly problemList = computed(() =>
-    Object.entries({ ...this.problems(), ...this.serverFields() }).map(([path, message]) => ({ path, text: surveyProblemText(path, message) })),
+    Object.entries({ ...this.problems(), ...this.serverFields() }).map(([path, message]) => ({
+      path,
+      text: surveyProblemText(path, message),
+    })),
   );
   protected readonly preview = computed(() => {
     void this.scheme.current();

@@ -87,7 +87,11 @@ export function worstOpen(list: readonly AlarmView[]): AlarmView | null {
 const r1 = (x: number) => Math.round(x * 10) / 10;
 
 /** What the drift detector found about one detector, in words. */
-const FINDING_WORDS: Partial<Record<string, string>> = { drifting: 'drifting', dead: 'dead or disconnected', saturated: 'reads at full scale' };
+const FINDING_WORDS: Partial<Record<string, string>> = {
+  drifting: 'drifting',
+  dead: 'dead or disconnected',
+  saturated: 'reads at full scale',
+};
 
 /** A few labelled facts from the evidence, worded for people; unknown shapes give what they can. */
 export function evidenceSummary(a: AlarmView): { label: string; value: string }[] {

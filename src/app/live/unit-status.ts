@@ -26,11 +26,21 @@ export const TONE_WORDS: Record<Tone, string> = {
 
 /** Each mode's look; its label is the mode's one name (shared/contracts/plain-words.ts). */
 const MODE_LOOK: Record<UnitMode, StatusLook> = {
-  seeking: { label: UNIT_MODE_WORDS.seeking.label, icon: 'trending_up', tone: 'busy', hint: 'Moving toward brighter light along its detector pairs.' },
+  seeking: {
+    label: UNIT_MODE_WORDS.seeking.label,
+    icon: 'trending_up',
+    tone: 'busy',
+    hint: 'Moving toward brighter light along its detector pairs.',
+  },
   settled: { label: UNIT_MODE_WORDS.settled.label, icon: 'check_circle', tone: 'good', hint: 'Detector pairs balanced; holding position.' },
   scanning: { label: UNIT_MODE_WORDS.scanning.label, icon: 'radar', tone: 'busy', hint: 'Sweeping its range to map the sky.' },
   stowed: { label: UNIT_MODE_WORDS.stowed.label, icon: 'shield', tone: 'caution', hint: 'In its safe position (wind or command).' },
-  held: { label: UNIT_MODE_WORDS.held.label, icon: 'front_hand', tone: 'caution', hint: 'Held for work on site: motion commands are refused.' },
+  held: {
+    label: UNIT_MODE_WORDS.held.label,
+    icon: 'front_hand',
+    tone: 'caution',
+    hint: 'Held for work on site: motion commands are refused.',
+  },
   fault: { label: UNIT_MODE_WORDS.fault.label, icon: 'error', tone: 'problem', hint: 'The unit reports a fault.' },
 };
 

@@ -134,7 +134,8 @@ describe('command panel', () => {
   });
 
   it('says that automatic wind stow can still move a unit that is not on hold, wherever motion can follow', () => {
-    for (const text of [MOTION_CAUTION, CONFIGURE_CAUTION]) expect(text).toMatch(/automatic wind stow can still move any unit that is not on hold/i);
+    for (const text of [MOTION_CAUTION, CONFIGURE_CAUTION])
+      expect(text).toMatch(/automatic wind stow can still move any unit that is not on hold/i);
     for (const text of [HOLD_CAUTION, RELEASE_CAUTION]) expect(text).toMatch(/automatic wind stow/);
   });
 

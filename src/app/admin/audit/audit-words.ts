@@ -60,7 +60,9 @@ function changes(before: Detail, after: Detail): string {
   const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])].sort();
   const changed = keys.filter((k) => JSON.stringify(before[k]) !== JSON.stringify(after[k]));
   if (!changed.length) return 'No change';
-  return changed.map((k) => `${fieldWords(k)} ${k in before ? show(before[k]) : 'default'} → ${k in after ? show(after[k]) : 'default'}`).join(' · ');
+  return changed
+    .map((k) => `${fieldWords(k)} ${k in before ? show(before[k]) : 'default'} → ${k in after ? show(after[k]) : 'default'}`)
+    .join(' · ');
 }
 
 /**
