@@ -21,6 +21,21 @@ export function modePhrase(mode: string | null | undefined): string {
   return (UNIT_MODE_WORDS as Partial<Record<string, { phrase: string }>>)[mode ?? '']?.phrase ?? 'in an unknown mode';
 }
 
+/** What a unit's own events are called on the trace explorer's time line. */
+export const EVENT_WORDS: Record<string, string> = {
+  'mode-change': 'Mode changed',
+  fault: 'Fault',
+  'fault-cleared': 'Fault cleared',
+  'scan-samples': 'Scan samples',
+  'scan-complete': 'Scan finished',
+  boot: 'Unit started',
+};
+
+/** The name of a unit event; one newer than this map is "Unit event". */
+export function eventWords(kind: string): string {
+  return EVENT_WORDS[kind] ?? 'Unit event';
+}
+
 /** What each command is called in lists and the history (the buttons say the same). */
 export const COMMAND_WORDS: Record<CommandKind, string> = {
   scan: 'Scan the sky',

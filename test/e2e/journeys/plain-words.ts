@@ -220,6 +220,7 @@ export const plainWordsJourney: Journey = {
         await signIn(page, base, 'tech1@saltmarsh.example');
         await page.waitForURL(`${base}/fleet`);
         await page.goto(`${base}/alarms`);
+        await page.getByTestId('count-P1').waitFor();
         for (const scheme of ['light', 'dark'] as const) {
           await page.emulateMedia({ colorScheme: scheme });
           const looks = await page.evaluate(() =>
@@ -238,6 +239,11 @@ export const plainWordsJourney: Journey = {
           );
           expectEqual(new Set(looks.map((l) => l.colour)).size, 4, `${scheme}: four colours (${looks.map((l) => l.colour).join(', ')})`);
           expectEqual(new Set(looks.map((l) => l.outline)).size, 4, `${scheme}: four outlines (${looks.map((l) => l.outline).join(', ')})`);
+          // A close-up of the four badges (the count per severity), enlarged so the shapes can be told apart by eye.
+          const summary = page.locator('ul.summary');
+          await summary.evaluate((el) => ((el as HTMLElement).style.zoom = '3'));
+          await summary.screenshot({ path: join(output, `severities-${scheme}.png`), animations: 'disabled' });
+          await summary.evaluate((el) => ((el as HTMLElement).style.zoom = ''));
         }
         const badges = (await page.locator('.sev').allTextContents()).map((t) => t.trim());
         expectTrue(

@@ -171,6 +171,18 @@ describe('audit words', () => {
       'Go to orientation (tilt [°] 30, azimuth [°] 180)',
     );
     expect(detailText(entry({ action: 'sign-in', detail: { address: '127.0.0.1' } }), time)).toBe('from 127.0.0.1');
+    expect(
+      detailText(
+        entry({
+          action: 'command-refused',
+          detail: { kind: 'release-stow', status: 409, code: 'on_hold', message: 'The unit is on hold.' },
+        }),
+        time,
+      ),
+    ).toBe('Release stow: The unit is on hold.');
+    expect(detailText(entry({ action: 'unit-update', detail: { detectorTiltDeg: 12, planXM: 3 } }), time)).toBe(
+      'detector tilt [°] 12 · plan x [m] 3',
+    );
     expect(detailText(entry({ action: 'user-update', detail: { role: 'crew', disabled: true } }), time)).toBe('role crew · disabled true');
     expect(detailText(entry({ action: 'user-password-reset', detail: null }), time)).toBe('');
   });

@@ -85,6 +85,9 @@ export function detailText(entry: AuditLogEntry, time: (iso: string) => string):
     const kind = typeof d['kind'] === 'string' ? commandWords(d['kind']) : show(d['kind']);
     return Object.keys(rest).length ? `${kind} (${show(rest)})` : kind;
   }
+  if (entry.action === 'command-refused' && typeof d['message'] === 'string') {
+    return typeof d['kind'] === 'string' ? `${commandWords(d['kind'])}: ${d['message']}` : d['message'];
+  }
   if (typeof d['address'] === 'string' && Object.keys(d).length === 1) return `from ${d['address']}`;
   return Object.entries(d)
     .map(([k, v]) => `${fieldWords(k)} ${show(v)}`)
