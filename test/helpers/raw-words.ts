@@ -1,7 +1,7 @@
 /**
  * The product's machine names, gathered from the contracts so the list grows with them: alarm kinds, unit modes, command
  * kinds and statuses, unit event kinds, the wire's field names (reports, events, commands, settings, weather), trace
- * quantities, detectors, survey fields and health settings. `rawWordsIn(text)` names those that show in a text meant for
+ * quantities, detectors, survey fields, health settings and the ticket vocabulary. `rawWordsIn(text)` names those that show in a text meant for
  * people, plus survey field paths counted from 0 (`reflectors.0`, `horizon.3`) and a mode given by its key
  * (`mode seeking`). Used by the browser check that visits every screen and by the tests of server-written messages.
  */
@@ -9,6 +9,13 @@ import { ALARM_KINDS } from '../../shared/contracts/alarms';
 import { COMMAND_STATUSES } from '../../shared/contracts/live';
 import { DETECTOR_WORDS } from '../../shared/contracts/plain-words';
 import { lampSchema, reflectorSchema } from '../../shared/contracts/survey';
+import {
+  AVAILABILITY_CATEGORIES,
+  CLOSURE_ACTIONS,
+  ROOT_CAUSE_CLASSES,
+  TICKET_STATES,
+  WAITING_REASONS,
+} from '../../shared/contracts/tickets';
 import { TRACE_QUANTITIES } from '../../shared/contracts/traces';
 import { ackSchema, commandSchema, eventSchema, telemetrySchema, unitConfigSchema, weatherSchema } from '../../shared/contracts/wire';
 import { COMMAND_KINDS, EVENT_KINDS, HOLD_COMMANDS, MOTION_COMMANDS, UNIT_MODES } from '../../shared/contracts/wire-format';
@@ -59,6 +66,32 @@ export const PLAIN_ENGLISH: Readonly<Record<string, string>> = {
   horizon: 'an ordinary word ("Horizon profile")',
   reflectors: 'an ordinary word',
   lamps: 'an ordinary word',
+  // Ticket vocabulary: states, waiting reasons, closure actions and root-cause classes that are everyday words.
+  new: 'an ordinary word (ticket state)',
+  dispatched: 'an ordinary word (ticket state)',
+  waiting: 'an ordinary word (ticket state)',
+  resolved: 'an ordinary word (ticket state)',
+  closed: 'an ordinary word (ticket state)',
+  reopened: 'an ordinary word (ticket state)',
+  'on-site': 'an ordinary English compound ("on-site work"), though the ticket state it names is hyphenated',
+  suspended: 'an ordinary word (availability category)',
+  parts: 'an ordinary word (waiting reason)',
+  access: 'an ordinary word (waiting reason)',
+  weather: 'an ordinary word (waiting reason)',
+  warranty: 'an ordinary word (waiting reason)',
+  owner: 'an ordinary word (waiting reason)',
+  replace: 'an ordinary word (closure action)',
+  repair: 'an ordinary word (closure action)',
+  adjust: 'an ordinary word (closure action)',
+  reset: 'an ordinary word (closure action)',
+  clean: 'an ordinary word (closure action)',
+  design: 'an ordinary word (root cause)',
+  manufacturing: 'an ordinary word (root cause)',
+  installation: 'an ordinary word (root cause)',
+  environment: 'an ordinary word (root cause)',
+  wildlife: 'an ordinary word (root cause)',
+  vandalism: 'an ordinary word (root cause)',
+  grid: 'an ordinary word (root cause)',
   ts: 'two letters, too short to look for as a word',
   v: 'one letter',
 };
@@ -88,6 +121,11 @@ export const MACHINE_NAMES: ReadonlyMap<string, string> = (() => {
   add('lamp field', keysOf(lampSchema));
   add('survey field', ['skyType', 'horizon', 'reflectors', 'lamps']);
   add('health setting', Object.keys(DEFAULT_HEALTH_SETTINGS));
+  add('ticket state', TICKET_STATES);
+  add('ticket waiting reason', WAITING_REASONS);
+  add('ticket closure action', CLOSURE_ACTIONS);
+  add('ticket root cause', ROOT_CAUSE_CLASSES);
+  add('availability category', AVAILABILITY_CATEGORIES);
   return names;
 })();
 
