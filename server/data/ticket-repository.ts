@@ -307,6 +307,11 @@ export class TicketRepository {
     return r?.owner_id;
   }
 
+  /** Enabled field crew members, by name (whom a ticket can be assigned to). */
+  async activeCrew(): Promise<{ id: number; name: string }[]> {
+    return this.db('users').where({ role: 'crew', disabled: false }).orderBy('name').select('id', 'name');
+  }
+
   /** Whether a user is an enabled field crew member (the only people a ticket is assigned to). */
   async isActiveCrew(userId: number): Promise<boolean> {
     const r = await this.db('users').where({ id: userId, role: 'crew', disabled: false }).first('id');

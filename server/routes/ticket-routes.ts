@@ -78,6 +78,7 @@ const transitionBody = z.strictObject({
  *   GET  /tickets?state&siteId&unitId&assignee=me&limit   open first by fix due time
  *   GET  /tickets.csv                                     the ticket log with every state time (RFC 4180, UTC)
  *   POST /tickets { unitId | siteId, title, severity, description? }       technician, engineer, admin → 201
+ *   GET  /tickets/assignees                               technician, engineer, admin: the crew members to dispatch to
  *   GET  /tickets/:id                                     with transitions, linked alarms, SLA clocks, next moves
  *   GET  /sites/:id/ticket-kpis?month=YYYY-MM             acknowledgement … repeat repairs, in the site's calendar
  *   GET  /owners/:id/sla                                  targets per severity (the contract's, else the defaults)
@@ -105,6 +106,10 @@ export function ticketRoutes(tickets: TicketService, audit: AuditService): Route
     res.setHeader('Content-Type', 'text/csv; charset=utf-8; header=present');
     res.setHeader('Content-Disposition', 'attachment; filename="tickets.csv"');
     res.send(ticketLogCsv(list));
+  });
+
+  r.get('/tickets/assignees', requireRole('openTickets'), async (_req, res) => {
+    res.json(await tickets.assignees());
   });
 
   r.post('/tickets', requireRole('openTickets'), async (req, res) => {

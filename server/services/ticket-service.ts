@@ -181,6 +181,11 @@ export class TicketService {
     return { siteId: site.id, siteName: site.name, month, timeZone: site.timeZone, ...kpis, help: KPI_HELP };
   }
 
+  /** The crew members a ticket can be dispatched to. */
+  assignees(): Promise<{ id: number; name: string }[]> {
+    return this.repo.activeCrew();
+  }
+
   // ---- opening
 
   /** A ticket by hand, for a unit or a whole site. */

@@ -33,6 +33,8 @@ export const PERMISSIONS = {
   openTickets: ['technician', 'engineer', 'admin'],
   /** Move tickets through their lifecycle (the ticket service checks who may make which move). */
   moveTickets: ['technician', 'engineer', 'admin', 'crew'],
+  /** A crew member's own list of assigned tickets (their landing page). */
+  openMyWork: ['crew'],
   /** Owners read their own sites' tickets only. */
   readTickets: ROLES,
   readAlarms: ROLES,

@@ -27,6 +27,7 @@ import { shellJourney } from './journeys/shell';
 import { signInJourney } from './journeys/sign-in';
 import { tracesJourney } from './journeys/traces';
 import { unitCommandsJourney } from './journeys/unit-commands';
+import { ticketsJourney } from './journeys/tickets';
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const OUTPUT = join(ROOT, 'test/.output/e2e');
@@ -45,6 +46,7 @@ const JOURNEYS: readonly Journey[] = [
   alarmsJourney,
   tracesJourney,
   landscapeJourney,
+  ticketsJourney,
   plainWordsJourney,
 ];
 

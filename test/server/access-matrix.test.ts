@@ -138,6 +138,7 @@ const ROUTES: Row[] = [
   row('GET /api/tickets.csv',                      () => '/api/tickets.csv',                                                              401, 200, 200, 200, 200, 200),
   row('POST /api/tickets',                         (w, s) => ({ path: '/api/tickets', body: { unitId: unit(w, s, 5), title: 'Matrix', severity: 'P3' } }),
                                                                                                                                           401, 201, 201, 201, 403, 403),
+  row('GET /api/tickets/assignees',                () => '/api/tickets/assignees',                                                        401, 200, 200, 200, 403, 403),
   row('GET /api/tickets/:id',                      (w, s) => `/api/tickets/${w[s].ticketId}`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/ticket-kpis',            (w, s) => `/api/sites/${w[s].siteId}/ticket-kpis?month=2026-06`,                      401, 200, 200, 200, 200, mine(200)),
   row('GET /api/owners/:id/sla',                   (w, s) => `/api/owners/${w[s].ownerId}/sla`,                                          401, 200, 200, 200, 200, mine(200)),
