@@ -213,4 +213,17 @@ export interface TicketView {
   next: TicketState[];
   transitions?: TicketTransitionView[];
   alarms?: TicketAlarmLink[];
+  /** The ticket's holds in force (from check-in to check-out) and whether each unit has confirmed it. */
+  holds?: TicketHoldView[];
+  /** Whether the fault looks fixed: open alarms of the unit (or site) and when the ticket's alarms last cleared. */
+  health?: { activeAlarms: number; clearSince: string | null };
+}
+
+/** `confirmed`: the unit reported it holds; `joined`: added to a hold already in force; `waiting`: not answered yet. */
+export type TicketHoldStatus = 'confirmed' | 'joined' | 'waiting' | 'not-confirmed';
+
+export interface TicketHoldView {
+  unitId: number;
+  serial: string;
+  status: TicketHoldStatus;
 }

@@ -38,6 +38,7 @@ describe('Shell', () => {
     expect(hrefs).toEqual([
       '/fleet',
       '/alarms',
+      '/tickets',
       '/sites',
       '/traces',
       '/landscape',
