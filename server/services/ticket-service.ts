@@ -3,6 +3,8 @@ import { ALARM_SEVERITIES, type AlarmSeverity, type AlarmView } from '../../shar
 import {
   DEFAULT_SLA,
   OPEN_TICKET_STATES,
+  defaultCategoryOf,
+  faultKeyOf,
   TICKET_TRANSITIONS,
   ruleFor,
   transitionsFor,
@@ -80,16 +82,6 @@ export interface TransitionRequest {
   availabilityCategory?: AvailabilityCategory;
   parts?: TicketPart[];
 }
-
-/** The availability category a fault's downtime gets until someone says otherwise (IEC TS 63019 categories). */
-function defaultCategory(kind: string): AvailabilityCategory {
-  if (kind === 'comms' || kind === 'site-comms') return 'information-unavailable';
-  if (kind === 'trap' || kind === 'drift' || kind === 'hunting' || kind === 'soiling') return 'partial-performance';
-  return 'forced-outage';
-}
-
-const faultKeyOf = (unitId: number | null, siteId: number, kind: string) =>
-  unitId !== null ? `unit:${unitId}:${kind}` : `site:${siteId}:${kind}`;
 
 /** Severities whose alarms open a ticket at once; P3 opens one after `p3DelayMs`; P4 goes to the daily digest. */
 const AT_ONCE: readonly string[] = ['P1', 'P2'];
@@ -321,7 +313,7 @@ export class TicketService {
         openedAt: now,
         openedBy: by,
         ...(await this.dueTimes(a.siteId, severity, now)),
-        availabilityCategory: defaultCategory(a.kind),
+        availabilityCategory: defaultCategoryOf(a.kind),
       },
       { from: null, to: 'new', at: now, by, note: null, reason: `Opened for alarm ${a.id}`, assigneeId: null },
       link,

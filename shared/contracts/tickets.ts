@@ -67,6 +67,17 @@ export const AVAILABILITY_CATEGORIES = [
 ] as const;
 export type AvailabilityCategory = (typeof AVAILABILITY_CATEGORIES)[number];
 
+/** The category a fault's downtime gets until someone says otherwise at resolution. */
+export function defaultCategoryOf(kind: string): AvailabilityCategory {
+  if (kind === 'comms' || kind === 'site-comms') return 'information-unavailable';
+  if (kind === 'trap' || kind === 'drift' || kind === 'hunting' || kind === 'soiling') return 'partial-performance';
+  return 'forced-outage';
+}
+
+/** One fault, one ticket: the key of a unit's (or a whole site's) fault of one kind. */
+export const faultKeyOf = (unitId: number | null, siteId: number, kind: string): string =>
+  unitId !== null ? `unit:${unitId}:${kind}` : `site:${siteId}:${kind}`;
+
 /** SLA targets of one severity [minutes from the ticket's opening]. */
 export interface SlaTargets {
   acknowledgeMin: number;
