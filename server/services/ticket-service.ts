@@ -12,6 +12,7 @@ import {
   type TicketClosure,
   type TicketPart,
   type TicketState,
+  type TicketFileView,
   type TicketView,
   type WaitingReason,
 } from '../../shared/contracts/tickets';
@@ -113,6 +114,8 @@ export class TicketService {
     private readonly holds: TicketHolds,
     private readonly log: Logger,
     opts: Partial<TicketOptions> = {},
+    /** The ticket's photos and documents for its view (ticket-file-service.ts); none when omitted. */
+    private readonly files?: { forTicket(ticketId: number): Promise<TicketFileView[]> },
   ) {
     this.opts = { ...DEFAULT_TICKET_OPTIONS, ...opts };
   }
@@ -141,8 +144,12 @@ export class TicketService {
 
   async get(c: Caller, id: number): Promise<TicketView> {
     const t = await this.stored(c, id);
-    const [transitions, alarms] = await Promise.all([this.repo.transitions(id), this.repo.alarms(id)]);
-    return { ...this.view(c, t), transitions, alarms };
+    const [transitions, alarms, files] = await Promise.all([
+      this.repo.transitions(id),
+      this.repo.alarms(id),
+      this.files?.forTicket(id) ?? Promise.resolve([]),
+    ]);
+    return { ...this.view(c, t), transitions, alarms, files };
   }
 
   /** Work-order KPIs of a site for a calendar month in the site's time zone (tickets opened in that month). */
