@@ -67,7 +67,7 @@ export class FileStore {
       const e = err as Error & { $metadata?: { httpStatusCode?: number } };
       const status = e.$metadata?.httpStatusCode;
       throw new Error(
-        `the file store's ${where} does not answer (${status === 404 ? 'no such bucket' : status === 403 ? 'access denied' : e.name || e.message}); check BW_S3_ENDPOINT, BW_S3_BUCKET, BW_S3_REGION and the credentials`,
+        `the file store's ${where} does not answer (${status === 404 ? 'no such bucket' : status === 403 ? 'access denied' : status ? `HTTP ${status}` : e.message || e.name}); check BW_S3_ENDPOINT, BW_S3_BUCKET, BW_S3_REGION and the credentials`,
       );
     }
     return new FileStore(s3, cfg.bucket, where, null);
