@@ -56,7 +56,10 @@ const damaged = (kind: string, why: string) =>
 export async function checkUpload(original: Buffer, siteTimeZone: string, now: number): Promise<CheckedFile> {
   const detected = await fileTypeFromBuffer(original);
   const type = TICKET_FILE_TYPES.find((t) => t === detected?.mime);
-  if (!type) throw notAccepted(detected ? `A ${detected.ext.toUpperCase()} file (${detected.mime})` : 'This file');
+  if (!type) {
+    const name = detected?.ext.toUpperCase();
+    throw notAccepted(name ? `${/^[AEFHILMNORSX]/.test(name) ? 'An' : 'A'} ${name} file (${detected!.mime})` : 'This file');
+  }
   if (type === 'application/pdf') {
     const tail = original.subarray(Math.max(0, original.length - 1024)).toString('latin1');
     if (!tail.includes('%%EOF')) throw damaged('PDF', 'no %%EOF marker at its end');

@@ -44,6 +44,7 @@ interface Fixtures {
   truncatedPng: Buffer;
   truncatedJpeg: Buffer;
   svg: Buffer;
+  gif: Buffer;
 }
 let fx: Fixtures;
 
@@ -90,7 +91,7 @@ beforeAll(async () => {
   const raw = { raw: { width: 1600, height: 1200, channels: 3 as const } };
   const scene = pixels(1600, 1200);
   const noisy = randomBytes(1900 * 1900 * 3);
-  const [jpeg, png, webp, bigPng] = await Promise.all([
+  const [jpeg, png, webp, bigPng, gif] = await Promise.all([
     sharp(scene, raw)
       .withExif({
         IFD0: { Make: 'Invented Optics', Model: 'Fieldcam 7' },
@@ -110,6 +111,9 @@ beforeAll(async () => {
     sharp(noisy, { raw: { width: 1900, height: 1900, channels: 3 } })
       .png({ compressionLevel: 0 })
       .toBuffer(),
+    sharp(pixels(64, 48), { raw: { width: 64, height: 48, channels: 3 } })
+      .gif()
+      .toBuffer(),
   ]);
   fx = {
     jpeg,
@@ -121,6 +125,7 @@ beforeAll(async () => {
     bigPng: Buffer.concat([bigPng, Buffer.alloc(Math.max(0, 12 * 1024 * 1024 - bigPng.length))]),
     truncatedPng: png.subarray(0, Math.floor(png.length * 0.6)),
     truncatedJpeg: jpeg.subarray(0, Math.floor(jpeg.length * 0.7)),
+    gif,
     svg: Buffer.from(
       '<svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"><script>alert(1)</script><rect width="10" height="10"/></svg>',
     ),
@@ -161,6 +166,7 @@ describe('uploads checked by content store nothing when refused', () => {
     ['a JPEG cut short', () => fx.truncatedJpeg, 'cut.jpg', 'image/jpeg', 400, 'file_damaged'],
     ['an SVG drawing', () => fx.svg, 'drawing.svg', 'image/svg+xml', 400, 'file_type_not_accepted'],
     ['an SVG sent as a JPEG', () => fx.svg, 'drawing.jpg', 'image/jpeg', 400, 'file_type_not_accepted'],
+    ['a GIF (an image, but not one of the four)', () => fx.gif, 'site.gif', 'image/gif', 400, 'file_type_not_accepted'],
     ['a PDF without its end', () => fx.pdf.subarray(0, fx.pdf.length - 40), 'report.pdf', 'application/pdf', 400, 'file_damaged'],
   ];
   for (const [what, bytes, name, type, status, code] of refusals) {
@@ -175,9 +181,11 @@ describe('uploads checked by content store nothing when refused', () => {
     });
   }
 
-  it('names the executable for what it is, not what it was called', async () => {
-    const res = await upload(TECH, ticket.id, fx.elf, 'photo.jpg', 'image/jpeg');
-    expect(res.body.error.message).toMatch(/^A ELF file \(application\/x-elf\) is not a file a ticket accepts/);
+  it('names what a refused file is, not what it was called', async () => {
+    const elf = await upload(TECH, ticket.id, fx.elf, 'photo.jpg', 'image/jpeg');
+    expect(elf.body.error.message).toMatch(/^An ELF file \(application\/x-elf\) is not a file a ticket accepts/);
+    const gif = await upload(TECH, ticket.id, fx.gif, 'photo.jpg', 'image/jpeg');
+    expect(gif.body.error.message).toMatch(/^A GIF file \(image\/gif\) is not a file a ticket accepts/);
   });
 
   it('refuses an upload without a file, and one with a field too many', async () => {
