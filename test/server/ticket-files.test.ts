@@ -317,6 +317,9 @@ describe('who adds and who reads', () => {
     expect(notAssigned.body.error.message).toBe(
       `Only the crew member assigned to ticket ${ticket.id} and the control room add files to it.`,
     );
+    // Refused before the body is read, and answered as such even when the body is large.
+    const large = await upload(OTHER_CREW, ticket.id, fx.bigPng, 'big.png', 'image/png');
+    expect([large.status, large.body.error.code]).toEqual([403, 'forbidden']);
     // Nobody is assigned to the other ticket yet: no crew member may add to it.
     expect((await upload(CREW, otherTicket.id, fx.png, 'a.png', 'image/png')).status).toBe(403);
     expect((await upload(OWNER, ticket.id, fx.png, 'a.png', 'image/png')).status).toBe(403);
