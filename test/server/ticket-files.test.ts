@@ -8,6 +8,11 @@ import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import type { TicketFileView, TicketView } from '../../shared/contracts/tickets';
 import { whenAndWhere } from '../../server/services/upload-check';
 import { instantOfWallTime } from '../../server/services/local-time';
+import { pino } from 'pino';
+import { TicketFileService } from '../../server/services/ticket-file-service';
+import type { TicketFileRepository } from '../../server/data/ticket-file-repository';
+import type { TicketRepository } from '../../server/data/ticket-repository';
+import type { AdminService } from '../../server/services/admin-service';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
 type Agent = ReturnType<typeof request.agent>;
@@ -396,5 +401,26 @@ describe('when and where a photo was taken', () => {
       NOW,
     );
     expect(noFix).toEqual({ takenAt: null, latitudeDeg: null, longitudeDeg: null });
+  });
+});
+
+describe('a failure after the objects are written', () => {
+  it('takes the objects back when the row cannot be stored', async () => {
+    const puts: string[] = [];
+    const deleted: string[][] = [];
+    const store = {
+      put: async (key: string) => void puts.push(key),
+      get: async () => undefined,
+      delete: async (keys: string[]) => void deleted.push(keys),
+    };
+    const failingRows = { insert: async () => Promise.reject(new Error('database went away')) } as unknown as TicketFileRepository;
+    const oneTicket = { get: async () => ({ id: 7, siteId: 1, state: 'on-site', assignee: null }) } as unknown as TicketRepository;
+    const sites = { getSite: async () => ({ timeZone: 'UTC' }) } as unknown as AdminService;
+    const service = new TicketFileService(failingRows, oneTicket, sites, store, pino({ level: 'silent' }));
+    await expect(
+      service.add({ id: 1, role: 'technician', ownerId: null }, 7, { bytes: fx.png, originalName: 'a.png', caption: undefined }),
+    ).rejects.toThrow('database went away');
+    expect(puts).toHaveLength(2);
+    expect(deleted).toEqual([puts]);
   });
 });
