@@ -95,7 +95,35 @@ const envSchema = z.object({
   BW_BCRYPT_COST: z.coerce.number().int().min(4).max(15).default(10),
   BW_TRUST_PROXY: trustProxy,
   BW_ALLOWED_ORIGINS: allowedOrigins,
+  // Ticket files through the S3 API: a bucket (BW_S3_BUCKET, endpoint optional for AWS itself), else the local store.
+  BW_S3_ENDPOINT: z.url({ protocol: /^https?$/, error: 'an http(s) URL such as https://s3.example.org' }).optional(),
+  BW_S3_BUCKET: z
+    .string()
+    .regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, '3 to 63 lower-case letters, digits, dots and hyphens (an S3 bucket name)')
+    .optional(),
+  BW_S3_REGION: z.string().min(1).default('us-east-1'),
+  BW_S3_ACCESS_KEY_ID: z.string().min(1).optional(),
+  BW_S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
+  BW_S3_FORCE_PATH_STYLE: z.enum(['true', 'false'], 'true or false').default('true'),
+  BW_S3_LOCAL_DIR: z.string().min(1).default('.data/s3'),
 });
+
+/**
+ * Where ticket files go: a bucket reached through the S3 API, or (no BW_S3_BUCKET) the local S3-compatible store the
+ * server starts itself on loopback with its data in `directory` (development, `npm start`, tests).
+ */
+export type FileStoreConfig =
+  | { kind: 'local'; directory: string }
+  | {
+      kind: 's3';
+      /** Omitted for AWS itself (the endpoint follows from the region). */
+      endpoint?: string;
+      bucket: string;
+      region: string;
+      forcePathStyle: boolean;
+      /** Omitted: the SDK's own chain (environment, instance role). */
+      credentials?: { accessKeyId: string; secretAccessKey: string };
+    };
 
 export interface Config {
   host: string;
@@ -115,6 +143,7 @@ export interface Config {
   /** Origins besides the server's own that may send state-changing requests and open the live socket. */
   allowedOrigins: string[];
   ingest: { retentionDays: number; batchRows: number; flushMs: number; maxBufferRows: number; flushConcurrency: number };
+  files: FileStoreConfig;
 }
 
 export class ConfigError extends Error {}
@@ -133,6 +162,13 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
         ? 'BW_BROKER_TLS_PORT: required when BW_BROKER_TLS_CERT/BW_BROKER_TLS_KEY are set'
         : null;
   if (tlsProblem) throw new ConfigError(`Invalid configuration:\n  ${tlsProblem}`);
+  const s3Problem =
+    (e.BW_S3_ACCESS_KEY_ID === undefined) !== (e.BW_S3_SECRET_ACCESS_KEY === undefined)
+      ? 'BW_S3_ACCESS_KEY_ID and BW_S3_SECRET_ACCESS_KEY: give both or neither'
+      : e.BW_S3_BUCKET === undefined && (e.BW_S3_ENDPOINT !== undefined || e.BW_S3_ACCESS_KEY_ID !== undefined)
+        ? 'BW_S3_BUCKET: required with BW_S3_ENDPOINT or S3 credentials (without all three, files go to the local store)'
+        : null;
+  if (s3Problem) throw new ConfigError(`Invalid configuration:\n  ${s3Problem}`);
   return {
     host: e.BW_HOST,
     port: e.BW_PORT,
@@ -167,5 +203,18 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
       maxBufferRows: e.BW_INGEST_MAX_BUFFER_ROWS,
       flushConcurrency: e.BW_INGEST_CONCURRENCY,
     },
+    files:
+      e.BW_S3_BUCKET === undefined
+        ? { kind: 'local', directory: e.BW_S3_LOCAL_DIR }
+        : {
+            kind: 's3',
+            ...(e.BW_S3_ENDPOINT ? { endpoint: e.BW_S3_ENDPOINT } : {}),
+            bucket: e.BW_S3_BUCKET,
+            region: e.BW_S3_REGION,
+            forcePathStyle: e.BW_S3_FORCE_PATH_STYLE === 'true',
+            ...(e.BW_S3_ACCESS_KEY_ID && e.BW_S3_SECRET_ACCESS_KEY
+              ? { credentials: { accessKeyId: e.BW_S3_ACCESS_KEY_ID, secretAccessKey: e.BW_S3_SECRET_ACCESS_KEY } }
+              : {}),
+          },
   };
 }

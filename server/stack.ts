@@ -17,6 +17,10 @@ import { auditRoutes } from './routes/audit-routes';
 import { TicketRepository } from './data/ticket-repository';
 import { TicketService, type TicketOptions } from './services/ticket-service';
 import { ticketRoutes } from './routes/ticket-routes';
+import { FileStore } from './data/file-store';
+import { TicketFileRepository } from './data/ticket-file-repository';
+import { TicketFileService } from './services/ticket-file-service';
+import { ticketFileRoutes } from './routes/ticket-file-routes';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -76,6 +80,8 @@ export interface Stack {
   retention: RetentionJob;
   health: HealthService;
   tickets: TicketService;
+  /** Where ticket files' bytes are (the S3 API: a bucket, or the local store this process started). */
+  files: FileStore;
   /** Resolves when the modelled best of every site's last day is cached (the first day of traces opens without waiting). */
   landscapesWarm: Promise<void>;
   http: Server;
@@ -114,6 +120,18 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     await db.destroy();
     throw new StartupError(describeDbError(err, config.db));
   }
+  let fileStore: FileStore;
+  try {
+    fileStore = await FileStore.open(config.files);
+  } catch (err) {
+    await db.destroy();
+    throw new StartupError(`Cannot open the file store: ${(err as Error).message}`);
+  }
+  if (config.files.kind === 'local')
+    log.warn(
+      { store: fileStore.where },
+      'ticket files go to the local store; set BW_S3_BUCKET (and BW_S3_ENDPOINT, credentials) in production',
+    );
   const users = new UserRepository(db);
   const units = new UnitRepository(db);
   const audit = new AuditRepository(db);
@@ -214,6 +232,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
           'MQTT over TLS uses the self-signed development certificate; set BW_BROKER_TLS_CERT and BW_BROKER_TLS_KEY in production',
         );
     } catch (err) {
+      await fileStore.close();
       await db.destroy();
       throw new StartupError(`Cannot offer MQTT over TLS: ${(err as Error).message}`);
     }
@@ -232,6 +251,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       return { kind: 'unit', serial: u.serial };
     },
   }).catch(async (err) => {
+    await fileStore.close();
     await db.destroy();
     throw new StartupError(
       `Cannot start the MQTT broker on ${config.broker.host}:${config.broker.port}${tls ? ` (TLS ${tls.port})` : ''}: ${(err as Error).message}. Set BW_BROKER_PORT${tls ? ' / BW_BROKER_TLS_PORT' : ''} to a free port.`,
@@ -258,7 +278,16 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     log,
     opts.commands,
   );
-  const tickets = new TicketService(new TicketRepository(db), admin, commands, log, { now: healthOpts.now, ...opts.tickets });
+  const ticketRepo = new TicketRepository(db);
+  const ticketFiles = new TicketFileService(
+    new TicketFileRepository(db),
+    ticketRepo,
+    admin,
+    fileStore,
+    log,
+    opts.tickets?.now ?? healthOpts.now,
+  );
+  const tickets = new TicketService(ticketRepo, admin, commands, log, { now: healthOpts.now, ...opts.tickets }, ticketFiles);
   health.onAlarmRaised((a) => void tickets.onAlarmRaised(a));
   const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
@@ -311,6 +340,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       }),
       auditRoutes(auditLog),
       ticketRoutes(tickets, alarmService, auditLog),
+      ticketFileRoutes(ticketFiles),
     ],
   });
   const http = createServer(app);
@@ -345,6 +375,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       rollups.stop();
       retention.stop();
       await rollups.runOnce({ includeOpenMinutes: true }).catch(() => undefined);
+      await fileStore.close().catch((err) => log.error({ err }, 'file store did not close'));
       await db.destroy();
     })());
   return {
@@ -363,6 +394,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     retention,
     health,
     tickets,
+    files: fileStore,
     landscapesWarm,
   };
 }

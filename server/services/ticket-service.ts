@@ -15,6 +15,7 @@ import {
   type TicketClosure,
   type TicketPart,
   type TicketState,
+  type TicketFileView,
   type TicketView,
   type WaitingReason,
 } from '../../shared/contracts/tickets';
@@ -106,6 +107,8 @@ export class TicketService {
     private readonly holds: TicketHolds,
     private readonly log: Logger,
     opts: Partial<TicketOptions> = {},
+    /** The ticket's photos and documents for its view (ticket-file-service.ts); none when omitted. */
+    private readonly files?: { forTicket(ticketId: number): Promise<TicketFileView[]> },
   ) {
     this.opts = { ...DEFAULT_TICKET_OPTIONS, ...opts };
   }
@@ -134,16 +137,18 @@ export class TicketService {
 
   async get(c: Caller, id: number): Promise<TicketView> {
     const t = await this.stored(c, id);
-    const [transitions, alarms, holds, health] = await Promise.all([
+    const [transitions, alarms, holds, health, files] = await Promise.all([
       this.repo.transitions(id),
       this.repo.alarms(id),
       this.repo.holdsInForce(id),
       this.repo.faultHealth(t),
+      this.files?.forTicket(id) ?? Promise.resolve([]),
     ]);
     return {
       ...this.view(c, t),
       transitions,
       alarms,
+      files,
       holds: holds.map((h) => ({ unitId: h.unitId, serial: h.serial, status: holdStatus(h.commandStatus, h.commandReason) })),
       health: {
         activeAlarms: health.activeAlarms,

@@ -33,6 +33,11 @@ export const PERMISSIONS = {
   openTickets: ['technician', 'engineer', 'admin'],
   /** Move tickets through their lifecycle (the ticket service checks who may make which move). */
   moveTickets: ['technician', 'engineer', 'admin', 'crew'],
+  /**
+   * Add photos and documents to a ticket: the control room on any ticket, a crew member on tickets assigned to them
+   * (the file service checks that). Owners read their own sites' tickets' files and add none.
+   */
+  addTicketFiles: ['technician', 'engineer', 'admin', 'crew'],
   /** A crew member's own list of assigned tickets (their landing page). */
   openMyWork: ['crew'],
   /** Owners read their own sites' tickets only. */

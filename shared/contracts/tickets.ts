@@ -228,6 +228,8 @@ export interface TicketView {
   holds?: TicketHoldView[];
   /** Whether the fault looks fixed: open alarms of the unit (or site) and when the ticket's alarms last cleared. */
   health?: { activeAlarms: number; clearSince: string | null };
+  /** Photos and documents, oldest first (`GET /api/tickets/:id` only). */
+  files?: TicketFileView[];
 }
 
 /** `confirmed`: the unit reported it holds; `joined`: added to a hold already in force; `waiting`: not answered yet. */
@@ -237,4 +239,43 @@ export interface TicketHoldView {
   unitId: number;
   serial: string;
   status: TicketHoldStatus;
+}
+
+/** What a ticket accepts as a file, by content (never by name or the browser's type): photos and PDF documents. */
+export const TICKET_FILE_TYPES = ['image/jpeg', 'image/png', 'image/webp', 'application/pdf'] as const;
+export type TicketFileType = (typeof TICKET_FILE_TYPES)[number];
+
+/** The largest file a ticket accepts [bytes] (10 MiB). */
+export const TICKET_FILE_MAX_BYTES = 10 * 1024 * 1024;
+
+/** Longest caption [characters]. */
+export const TICKET_FILE_CAPTION_MAX = 500;
+
+/**
+ * One file of a ticket (`GET /api/tickets/:id/files`). Photos are stored without their metadata; the time and place the
+ * camera recorded are kept here instead (evidence: job.md §3). `url` serves the bytes, `thumbUrl` a 320 px WebP.
+ */
+export interface TicketFileView {
+  id: number;
+  ticketId: number;
+  contentType: TicketFileType;
+  /** A name to save it under (the uploaded name, cleaned; or one made from the ticket and file ids). */
+  fileName: string;
+  /** Bytes as stored (photos re-encoded without metadata). */
+  sizeBytes: number;
+  /** SHA-256 of the stored bytes, lower-case hex. */
+  sha256: string;
+  caption: string | null;
+  /** Pixel size as stored (upright); null for documents. */
+  widthPx: number | null;
+  heightPx: number | null;
+  uploadedBy: { id: number; name: string } | null;
+  uploadedAt: string;
+  /** When the camera says the photo was taken (ISO 8601 UTC); null when it does not say. */
+  takenAt: string | null;
+  /** Where the camera says it was taken [° WGS 84]; null when it does not say. */
+  latitudeDeg: number | null;
+  longitudeDeg: number | null;
+  url: string;
+  thumbUrl: string | null;
 }

@@ -1,5 +1,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { createInterface } from 'node:readline';
 import { fileURLToPath } from 'node:url';
 
@@ -19,7 +21,15 @@ export interface ServerProcess {
 /** The real server (server/main.ts) as its own process on free ports, against the given database; resolves once it says it is ready. */
 export async function startServerProcess(database: string, env: Record<string, string> = {}): Promise<ServerProcess> {
   const proc = spawn(process.execPath, ['--import', 'tsx', main], {
-    env: { ...process.env, BW_DB_NAME: database, BW_PORT: '0', BW_BROKER_PORT: '0', BW_LOG_LEVEL: 'info', ...env },
+    env: {
+      ...process.env,
+      BW_DB_NAME: database,
+      BW_PORT: '0',
+      BW_BROKER_PORT: '0',
+      BW_LOG_LEVEL: 'info',
+      BW_S3_LOCAL_DIR: join(tmpdir(), `${database}-s3`),
+      ...env,
+    },
     stdio: ['ignore', 'pipe', 'inherit'],
   });
   let exited = false;

@@ -1,4 +1,7 @@
 import { randomBytes } from 'node:crypto';
+import { rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import knexFactory from 'knex';
 import { loadConfig, type Config } from '../../server/config';
 import { createDb, migrateLatest, type Db } from '../../server/data/db';
@@ -28,7 +31,13 @@ export async function createTestDatabase(opts: { seed?: boolean; env?: Record<st
   } finally {
     await admin.destroy();
   }
-  const config: Config = { ...base, db: { ...base.db, database: name } };
+  // Ticket files go to a local store of this database's own (the default .data/s3 is the demo's).
+  const filesDir = join(tmpdir(), `${name}-s3`);
+  const config: Config = {
+    ...base,
+    db: { ...base.db, database: name },
+    files: base.files.kind === 'local' ? { kind: 'local', directory: filesDir } : base.files,
+  };
   const db = createDb(config.db);
   await migrateLatest(db);
   if (opts.seed) await seedDemoWorld(db, { newDeviceSecret, hashDeviceSecret }, { bcryptCost: 4, deviceSecretOf: testDeviceSecret });
@@ -38,6 +47,7 @@ export async function createTestDatabase(opts: { seed?: boolean; env?: Record<st
     drop: async () => {
       await db.raw(`DROP DATABASE IF EXISTS \`${name}\``);
       await db.destroy();
+      rmSync(filesDir, { recursive: true, force: true });
     },
   };
 }

@@ -6,7 +6,7 @@
  *
  * To add a route: add a row to ROUTES (the first failure prints a row to start from):
  *   row('METHOD /path/as/:registered', request, anonymous, admin, engineer, technician, crew, owner, options?)
- * - `request` is `(w) => path` or `(w) => ({ path, body })` when the request is the same for both sides, or
+ * - `request` is `(w) => path`, `(w) => ({ path, body })` or `(w) => ({ path, attach })` (a multipart upload) when the request is the same for both sides, or
  *   `(w, s) => …` to ask about `w[s]`, where `s` is 'own' or 'other'. `w.own` and `w.other` hold each owner's ownerId,
  *   siteId, unitIds (six units of that site), alarmId (an open alarm on unitIds[0]) and survey; a row that changes a
  *   unit takes an index of its own (`unit(w, s, 6)` needs a seventh unit, so reuse 1–5 with care).
@@ -22,6 +22,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import type { Express } from 'express';
 import WebSocket from 'ws';
+import sharp from 'sharp';
 import { startTestStack } from '../helpers/test-stack';
 import { DEMO_PASSWORD, DEMO_USERS } from '../../seeds/demo-world';
 import type { LiveServerMessage } from '../../shared/contracts/live';
@@ -41,10 +42,14 @@ interface OwnerWorld {
   unitIds: number[];
   alarmId: number;
   ticketId: number;
+  /** A photo of that ticket. */
+  fileId: number;
   survey: unknown;
 }
 type World = Record<Side, OwnerWorld>;
-type Req = string | { path: string; body: unknown };
+/** A file sent as multipart/form-data in the field `file`. */
+interface Attachment { bytes: Buffer; filename: string; contentType: string }
+type Req = string | { path: string; body: unknown } | { path: string; attach: Attachment };
 
 interface Row {
   /** Method and path exactly as registered, e.g. `GET /api/sites/:id`. */
@@ -61,6 +66,8 @@ interface Row {
 }
 
 const mine = (status: number): Cell => [status, 404];
+let photoBytes: Buffer;
+const photo = (): Attachment => ({ bytes: photoBytes, filename: 'matrix.png', contentType: 'image/png' });
 let serial = 0;
 const unique = () => `${process.pid}-${++serial}`;
 
@@ -146,6 +153,10 @@ const ROUTES: Row[] = [
   // A stale version: the control room reaches the lock (409) and changes nothing; crews may not cancel, owners move nothing.
   row('POST /api/tickets/:id/transition',          (w, s) => ({ path: `/api/tickets/${w[s].ticketId}/transition`, body: { to: 'cancelled', reason: 'matrix', version: 999 } }),
                                                                                                                                           401, 409, 409, 409, 403, 403),
+  // Ticket files: read with the ticket; added by the control room, and by the crew member assigned (nobody is, here).
+  row('POST /api/tickets/:id/files',               (w, s) => ({ path: `/api/tickets/${w[s].ticketId}/files`, attach: photo() }),         401, 201, 201, 201, 403, 403),
+  row('GET /api/tickets/:id/files',                (w, s) => `/api/tickets/${w[s].ticketId}/files`,                                      401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/tickets/:id/files/:fileId',        (w, s) => `/api/tickets/${w[s].ticketId}/files/${w[s].fileId}?thumb=1`,               401, 200, 200, 200, 200, mine(200)),
   row('GET /api/alarms',                           (w, s) => `/api/alarms?siteId=${w[s].siteId}`,                                         401, 200, 200, 200, 200, mine(200)),
   row('GET /api/alarms',                           (w, s) => `/api/alarms?unitId=${unit(w, s)}`,                                          401, 200, 200, 200, 200, mine(200), { label: 'one unit (the unit page)' }),
   row('GET /api/alarms/:id',                       (w, s) => `/api/alarms/${w[s].alarmId}`,                                               401, 200, 200, 200, 200, mine(200)),
@@ -194,7 +205,7 @@ async function ownerWorld(ownerName: string): Promise<OwnerWorld> {
   const survey = typeof row.survey === 'string' ? JSON.parse(row.survey) : row.survey;
   const due = new Date(at.getTime() + 3600_000);
   const [ticketId] = await stack.db('tickets').insert({ site_id: site.id, unit_id: unitIds[0], kind: 'stall', severity: 'P3', title: 'Matrix ticket', state: 'new', opened_at: at, acknowledge_due_at: due, on_site_due_at: due, fix_due_at: due, availability_category: 'forced-outage', parts: '[]' });
-  return { ownerId: owner.id, siteId: site.id, unitIds, alarmId: alarmId as number, ticketId: ticketId as number, survey };
+  return { ownerId: owner.id, siteId: site.id, unitIds, alarmId: alarmId as number, ticketId: ticketId as number, fileId: 0, survey };
 }
 
 beforeAll(async () => {
@@ -204,6 +215,12 @@ beforeAll(async () => {
   const own = await stack.db('users').where({ email: emailOf('owner') }).first('owner_id');
   if (own.owner_id !== world.own.ownerId) throw new Error('The owner user is expected to belong to Quillmoor Energy Cooperative.');
   for (const role of WHO) if (role !== 'anonymous') tokens.set(role, await signIn(role));
+  photoBytes = await sharp({ create: { width: 40, height: 30, channels: 3, background: '#4a7' } }).png().toBuffer();
+  for (const side of SIDES) {
+    const res = await request(stack.http).post(`/api/tickets/${world[side].ticketId}/files`).set('Origin', stack.url)
+      .set('Cookie', `bw_session=${encodeURIComponent(tokens.get('admin')!)}`).attach('file', photoBytes, { filename: 'matrix.png', contentType: 'image/png' }).expect(201);
+    world[side].fileId = res.body.id;
+  }
 });
 afterAll(async () => { await stack?.stop(); });
 
@@ -244,14 +261,14 @@ const gridOf = (r: Row): Grid => Object.fromEntries(WHO.map((w) => {
 async function ask(r: Row, who: Who, side: Side): Promise<{ status: number; body: unknown }> {
   const method = r.route.split(' ')[0]!;
   const sent = r.send(world, side);
-  const { path, body } = typeof sent === 'string' ? { path: sent, body: undefined } : sent;
+  const { path, body, attach } = typeof sent === 'string' ? { path: sent, body: undefined, attach: undefined } : { body: undefined, attach: undefined, ...sent };
   let token: string | undefined;
   if (who !== 'anonymous') token = r.fresh ? await signIn(who) : tokens.get(who);
   const agent = request(stack.http);
   const m = method.toLowerCase() as 'get' | 'post' | 'put' | 'patch' | 'delete';
   let req = agent[m](path).set('Origin', stack.url);
   if (token) req = req.set('Cookie', `bw_session=${encodeURIComponent(token)}`);
-  const res = body === undefined ? await req : await req.send(body as object);
+  const res = attach ? await req.attach('file', attach.bytes, { filename: attach.filename, contentType: attach.contentType }) : body === undefined ? await req : await req.send(body as object);
   return { status: res.status, body: res.body };
 }
 

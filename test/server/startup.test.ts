@@ -19,6 +19,25 @@ describe('start-up', () => {
     expect(lines[0]).toMatch(/MariaDB at 127\.0\.0\.1:9 .*connection refused.*npm run db -- start/);
   });
 
+  it('stops with one line naming the file store when its bucket does not answer', () => {
+    const db = Object.fromEntries(Object.entries(process.env).filter(([k]) => k.startsWith('BW_DB_'))) as Record<string, string>;
+    const r = run({
+      ...db,
+      BW_PORT: '0',
+      BW_BROKER_PORT: '0',
+      BW_S3_BUCKET: 'bw-ticket-files',
+      BW_S3_ENDPOINT: 'http://127.0.0.1:9',
+      BW_S3_ACCESS_KEY_ID: 'AKIDEXAMPLE',
+      BW_S3_SECRET_ACCESS_KEY: 'not-a-real-secret',
+    });
+    expect(r.status).toBe(1);
+    const lines = r.stderr.trim().split('\n');
+    expect(lines).toHaveLength(1);
+    expect(lines[0]).toMatch(
+      /^Brightward cannot start: Cannot open the file store: the file store's bucket bw-ticket-files at http:\/\/127\.0\.0\.1:9 does not answer \(.*ECONNREFUSED.*\); check BW_S3_ENDPOINT, BW_S3_BUCKET, BW_S3_REGION and the credentials$/,
+    );
+  });
+
   it('refuses invalid configuration, naming each bad variable', () => {
     const r = run({ BW_PORT: 'eighty', BW_LOG_LEVEL: 'loud' });
     expect(r.status).toBe(2);

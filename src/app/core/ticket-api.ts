@@ -2,9 +2,16 @@ import { HttpClient, HttpParams } from '@angular/common/http';
 import { inject, Injectable } from '@angular/core';
 import type { Observable } from 'rxjs';
 import type { AlarmSeverity } from '../../../shared/contracts/alarms';
-import type { AvailabilityCategory, TicketClosure, TicketPart, TicketState, TicketView } from '../../../shared/contracts/tickets';
+import type {
+  AvailabilityCategory,
+  TicketClosure,
+  TicketFileView,
+  TicketPart,
+  TicketState,
+  TicketView,
+} from '../../../shared/contracts/tickets';
 
-export type { TicketView } from '../../../shared/contracts/tickets';
+export type { TicketFileView, TicketView } from '../../../shared/contracts/tickets';
 
 export interface TicketListFilter {
   state?: TicketState;
@@ -59,6 +66,14 @@ export class TicketApi {
 
   move(id: number, m: TicketMove): Observable<TicketView> {
     return this.http.post<TicketView>(`/api/tickets/${id}/transition`, m);
+  }
+
+  /** Adds a photo or document (multipart, field `file`); the server checks it by content. */
+  addFile(id: number, file: Blob, fileName: string, caption?: string): Observable<TicketFileView> {
+    const form = new FormData();
+    form.append('file', file, fileName);
+    if (caption) form.append('caption', caption);
+    return this.http.post<TicketFileView>(`/api/tickets/${id}/files`, form);
   }
 
   assignees(): Observable<{ id: number; name: string }[]> {

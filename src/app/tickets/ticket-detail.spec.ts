@@ -96,5 +96,59 @@ describe('TicketDetail', () => {
     const { el } = await render('owner', ticket({ next: [] }));
     expect(el.querySelectorAll('[data-testid^="move-"]')).toHaveLength(0);
     expect(el.textContent).toContain('You can read this ticket');
+    expect(el.querySelector('[data-testid="add-file"]')).toBeNull();
+  });
+
+  const photo = {
+    id: 3,
+    ticketId: 12,
+    contentType: 'image/jpeg' as const,
+    fileName: 'gearbox.jpg',
+    sizeBytes: 2_516_582, // 2.4 MiB
+    sha256: 'ab'.repeat(32),
+    caption: 'Gearbox before the swap',
+    widthPx: 1200,
+    heightPx: 1600,
+    uploadedBy: { id: 5, name: 'Ines Calder' },
+    uploadedAt: '2026-06-21T10:05:00Z',
+    takenAt: '2026-06-21T10:01:00Z',
+    latitudeDeg: 51.505,
+    longitudeDeg: -0.125,
+    url: '/api/tickets/12/files/3',
+    thumbUrl: '/api/tickets/12/files/3?thumb=1',
+  };
+
+  it("shows the ticket's photos with their thumbnail, and lets the assigned crew member add one from the camera", async () => {
+    const { fixture, http, el, q } = await render('crew', ticket({ files: [photo] }));
+    const img = q('ticket-files')!.querySelector('img')!;
+    expect(img.getAttribute('src')).toBe('/api/tickets/12/files/3?thumb=1');
+    expect(img.getAttribute('alt')).toBe('Gearbox before the swap');
+    expect(q('ticket-files')!.textContent).toContain('2.4 MB');
+    // 10:01 UTC is 11:01 in London in June.
+    expect(q('ticket-files')!.textContent).toContain('Taken 21 Jun 2026, 11:01:00 BST at 51.50500, -0.12500');
+    const input = q('file-input') as HTMLInputElement;
+    expect(input.getAttribute('capture')).toBe('environment');
+    expect(input.getAttribute('accept')).toBe('image/jpeg,image/png,image/webp,application/pdf');
+    const file = new File([new Uint8Array([0xff, 0xd8, 0xff])], 'after.jpg', { type: 'image/jpeg' });
+    Object.defineProperty(input, 'files', { value: [file] });
+    input.dispatchEvent(new Event('change'));
+    const req = http.expectOne('/api/tickets/12/files');
+    expect(req.request.method).toBe('POST');
+    const form = req.request.body as FormData;
+    expect((form.get('file') as File).name).toBe('after.jpg');
+    req.flush({ ...photo, id: 4 });
+    http.expectOne('/api/tickets/12').flush(ticket({ files: [photo, { ...photo, id: 4 }] }));
+    await fixture.whenStable();
+    expect(el.querySelectorAll('[data-testid="ticket-files"] li')).toHaveLength(2);
+  });
+
+  it('offers no upload to a crew member the ticket is not assigned to, nor on a closed ticket', async () => {
+    const other = await render('crew', ticket({ assignee: { id: 9, name: 'Kwame Ruiz' } }));
+    expect(other.q('add-file')).toBeNull();
+    expect(other.el.textContent).toContain('No photos or documents yet.');
+    TestBed.resetTestingModule();
+    current = null;
+    const closed = await render('technician', ticket({ state: 'closed', next: ['reopened'] }));
+    expect(closed.q('add-file')).toBeNull();
   });
 });

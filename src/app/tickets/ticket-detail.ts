@@ -20,6 +20,9 @@ import {
   type RootCauseClass,
   type TicketState,
 } from '../../../shared/contracts/tickets';
+import { TICKET_FILE_MAX_BYTES, TICKET_FILE_TYPES } from '../../../shared/contracts/tickets';
+import { may } from '../../../shared/contracts/permissions';
+import { Session } from '../auth/session';
 import { SiteApi } from '../core/site-api';
 import { TicketApi, type TicketMove, type TicketView } from '../core/ticket-api';
 import { alarmKindLabel, severityLook } from '../live/alarm-look';
@@ -52,6 +55,7 @@ export class TicketDetail {
   private readonly api = inject(TicketApi);
   private readonly siteApi = inject(SiteApi);
   private readonly notify = inject(Notify);
+  private readonly session = inject(Session);
 
   /** Route parameter. */
   readonly id = input.required<string>();
@@ -93,6 +97,18 @@ export class TicketDetail {
     if (n.has('closure') && (!this.component().trim() || !this.failureMode().trim() || !this.cause().trim() || !this.action()))
       return false;
     return true;
+  });
+
+  /** The photo or document being sent, and its caption. */
+  protected readonly caption = signal('');
+  protected readonly uploading = signal(false);
+  protected readonly fileTypes = TICKET_FILE_TYPES.join(',');
+  /** Whether the signed-in person may add files now: the control room, or the crew member assigned; not once final. */
+  protected readonly mayAddFiles = computed(() => {
+    const t = this.ticket();
+    const me = this.session.me();
+    if (!t || !me || t.state === 'closed' || t.state === 'cancelled' || !may(me.role, 'addTicketFiles')) return false;
+    return me.role !== 'crew' || t.assignee?.id === me.id;
   });
 
   protected readonly cautions = CHECK_IN_CAUTIONS;
@@ -158,6 +174,34 @@ export class TicketDetail {
 
   protected addPart(): string | null {
     return this.partName().trim() ? this.partName().trim() : null;
+  }
+
+  protected addFile(input: HTMLInputElement): void {
+    const t = this.ticket();
+    const file = input.files?.[0];
+    input.value = '';
+    if (!t || !file) return;
+    if (file.size > TICKET_FILE_MAX_BYTES) {
+      this.notify.problem(`Not sent: ${file.name} is larger than 10 MB.`);
+      return;
+    }
+    this.uploading.set(true);
+    this.api.addFile(t.id, file, file.name, this.caption().trim() || undefined).subscribe({
+      next: () => {
+        this.uploading.set(false);
+        this.caption.set('');
+        this.notify.done(`Added ${file.name} to ticket ${t.id}.`);
+        this.load();
+      },
+      error: (e: unknown) => {
+        this.uploading.set(false);
+        this.notify.problem(`Not added. ${toApiProblem(e).message}`);
+      },
+    });
+  }
+
+  protected size(bytes: number): string {
+    return bytes >= 1024 * 1024 ? `${(bytes / (1024 * 1024)).toFixed(1)} MB` : `${Math.max(1, Math.round(bytes / 1024))} KB`;
   }
 
   protected submit(): void {

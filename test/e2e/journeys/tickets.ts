@@ -1,11 +1,12 @@
 import { join } from 'node:path';
-import type { TicketView } from '../../../shared/contracts/tickets';
+import sharp from 'sharp';
+import type { TicketFileView, TicketView } from '../../../shared/contracts/tickets';
 import { apiAsPage, expectTrue, signIn, signOut, unitIdBySerial, type Journey } from '../harness';
 
 /**
  * A work order on a phone: the control room opens and dispatches a ticket; the crew member finds it in "My work",
- * acknowledges it, checks in on site (the cautions are shown and must be confirmed; the unit is then held) and resolves
- * it with a closure, which lets go of the unit.
+ * acknowledges it, checks in on site (the cautions are shown and must be confirmed; the unit is then held), adds a
+ * photo through the camera's file picker and resolves it with a closure, which lets go of the unit.
  */
 export const ticketsJourney: Journey = {
   name: 'tickets',
@@ -28,59 +29,79 @@ export const ticketsJourney: Journey = {
     await page.screenshot({ path: join(output, 'ticket-board.png'), animations: 'disabled' });
     await signOut(page, base);
 
-    await check('a crew member acknowledges, checks in with the cautions confirmed and resolves a ticket on a phone', async () => {
-      await page.setViewportSize({ width: 360, height: 740 });
-      try {
-        await signIn(page, base, 'crew1@saltmarsh.example');
-        await page.waitForURL(`${base}/my-work`);
-        await page.getByTestId(`ticket-${opened.id}`).click();
-        await page.waitForURL(`${base}/tickets/${opened.id}`);
-        await page.getByTestId('ticket-state').filter({ hasText: 'Dispatched' }).waitFor();
+    const photo = await sharp({ create: { width: 1200, height: 900, channels: 3, background: '#6d8f7a' } })
+      .jpeg()
+      .toBuffer();
+    await check(
+      'a crew member acknowledges, checks in with the cautions confirmed, adds a photo and resolves a ticket on a phone',
+      async () => {
+        await page.setViewportSize({ width: 360, height: 740 });
+        try {
+          await signIn(page, base, 'crew1@saltmarsh.example');
+          await page.waitForURL(`${base}/my-work`);
+          await page.getByTestId(`ticket-${opened.id}`).click();
+          await page.waitForURL(`${base}/tickets/${opened.id}`);
+          await page.getByTestId('ticket-state').filter({ hasText: 'Dispatched' }).waitFor();
 
-        await page.getByTestId('move-acknowledged').click();
-        await page.getByTestId('move-submit').click();
-        await page.getByTestId('ticket-state').filter({ hasText: 'Acknowledged by crew' }).waitFor();
+          await page.getByTestId('move-acknowledged').click();
+          await page.getByTestId('move-submit').click();
+          await page.getByTestId('ticket-state').filter({ hasText: 'Acknowledged by crew' }).waitFor();
 
-        await page.getByTestId('move-on-site').click();
-        const cautions = (await page.getByTestId('check-in-cautions').textContent()) ?? '';
-        for (const words of ['Moving parts', 'not lockout/tagout', 'live whenever light', 'wind limit', 'Local electrical codes'])
-          expectTrue(cautions.includes(words), `check-in cautions mention "${words}"`);
-        expectTrue(await page.getByTestId('move-submit').isDisabled(), 'check-in waits for the cautions to be confirmed');
-        await page.screenshot({ path: join(output, 'ticket-check-in-phone.png'), animations: 'disabled', fullPage: true });
-        await page.getByTestId('move-confirm').click();
-        await page.getByTestId('move-submit').click();
-        await page.getByTestId('ticket-state').filter({ hasText: 'Crew on site' }).waitFor();
-        const holds = await apiAsPage<{ active: { holder: { kind: string; id: number } }[] }>(
-          page,
-          base,
-          'GET',
-          `/api/units/${unitId}/holds`,
-        );
-        expectTrue(
-          holds.active.some((h) => h.holder.kind === 'ticket' && h.holder.id === opened.id),
-          'the unit is held by the ticket after check-in',
-        );
+          await page.getByTestId('move-on-site').click();
+          const cautions = (await page.getByTestId('check-in-cautions').textContent()) ?? '';
+          for (const words of ['Moving parts', 'not lockout/tagout', 'live whenever light', 'wind limit', 'Local electrical codes'])
+            expectTrue(cautions.includes(words), `check-in cautions mention "${words}"`);
+          expectTrue(await page.getByTestId('move-submit').isDisabled(), 'check-in waits for the cautions to be confirmed');
+          await page.screenshot({ path: join(output, 'ticket-check-in-phone.png'), animations: 'disabled', fullPage: true });
+          await page.getByTestId('move-confirm').click();
+          await page.getByTestId('move-submit').click();
+          await page.getByTestId('ticket-state').filter({ hasText: 'Crew on site' }).waitFor();
+          const holds = await apiAsPage<{ active: { holder: { kind: string; id: number } }[] }>(
+            page,
+            base,
+            'GET',
+            `/api/units/${unitId}/holds`,
+          );
+          expectTrue(
+            holds.active.some((h) => h.holder.kind === 'ticket' && h.holder.id === opened.id),
+            'the unit is held by the ticket after check-in',
+          );
 
-        await page.getByTestId('move-resolved').click();
-        await page.getByTestId('closure-component').fill('tilt drive');
-        await page.getByTestId('closure-mode').fill('grinding gearbox');
-        await page.getByTestId('closure-cause').fill('worn bearing');
-        await page.getByTestId('closure-action').click();
-        await page.getByRole('option', { name: 'replace' }).click();
-        await page.getByTestId('move-note').fill('Bearing replaced, drive runs quietly.');
-        await page.getByTestId('move-confirm').click();
-        await page.screenshot({ path: join(output, 'ticket-resolve-phone.png'), animations: 'disabled', fullPage: true });
-        await page.getByTestId('move-submit').click();
-        await page.getByTestId('ticket-state').filter({ hasText: 'Resolved' }).waitFor();
-        const after = await apiAsPage<{ held: boolean }>(page, base, 'GET', `/api/units/${unitId}/holds`);
-        expectTrue(!after.held, 'the unit is released at check-out');
-        await page.emulateMedia({ colorScheme: 'dark' });
-        await page.screenshot({ path: join(output, 'ticket-resolved-phone-dark.png'), animations: 'disabled', fullPage: true });
-        await page.emulateMedia({ colorScheme: 'light' });
-        await signOut(page, base);
-      } finally {
-        await page.setViewportSize({ width: 1280, height: 800 });
-      }
-    });
+          expectTrue((await page.getByTestId('file-input').getAttribute('capture')) === 'environment', 'the file picker opens the camera');
+          await page.getByLabel('Caption (optional)').fill('Gearbox before the swap');
+          await page.getByTestId('file-input').setInputFiles({ name: 'gearbox.jpg', mimeType: 'image/jpeg', buffer: photo });
+          const thumb = page.getByTestId('ticket-files').getByRole('img', { name: 'Gearbox before the swap' });
+          await thumb.waitFor();
+          await page.waitForFunction(
+            (el) => (el as HTMLImageElement).complete && (el as HTMLImageElement).naturalWidth > 0,
+            await thumb.elementHandle(),
+          );
+          expectTrue((await thumb.evaluate((el) => (el as HTMLImageElement).naturalWidth)) === 320, 'the thumbnail is 320 px wide');
+          const files = await apiAsPage<TicketFileView[]>(page, base, 'GET', `/api/tickets/${opened.id}/files`);
+          expectTrue(files.length === 1 && files[0]!.contentType === 'image/jpeg', 'the photo is stored with the ticket');
+          await page.screenshot({ path: join(output, 'ticket-photo-phone.png'), animations: 'disabled', fullPage: true });
+
+          await page.getByTestId('move-resolved').click();
+          await page.getByTestId('closure-component').fill('tilt drive');
+          await page.getByTestId('closure-mode').fill('grinding gearbox');
+          await page.getByTestId('closure-cause').fill('worn bearing');
+          await page.getByTestId('closure-action').click();
+          await page.getByRole('option', { name: 'replace' }).click();
+          await page.getByTestId('move-note').fill('Bearing replaced, drive runs quietly.');
+          await page.getByTestId('move-confirm').click();
+          await page.screenshot({ path: join(output, 'ticket-resolve-phone.png'), animations: 'disabled', fullPage: true });
+          await page.getByTestId('move-submit').click();
+          await page.getByTestId('ticket-state').filter({ hasText: 'Resolved' }).waitFor();
+          const after = await apiAsPage<{ held: boolean }>(page, base, 'GET', `/api/units/${unitId}/holds`);
+          expectTrue(!after.held, 'the unit is released at check-out');
+          await page.emulateMedia({ colorScheme: 'dark' });
+          await page.screenshot({ path: join(output, 'ticket-resolved-phone-dark.png'), animations: 'disabled', fullPage: true });
+          await page.emulateMedia({ colorScheme: 'light' });
+          await signOut(page, base);
+        } finally {
+          await page.setViewportSize({ width: 1280, height: 800 });
+        }
+      },
+    );
   },
 };
