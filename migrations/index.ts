@@ -26,6 +26,7 @@ import * as m20261203120000 from './20261203120000_add_audit_log_action_index';
 import * as m20261203120100 from './20261203120100_add_audit_log_user_index';
 import * as m20261203120200 from './20261203120200_add_audit_log_target_index';
 import * as m20261203140000 from './20261203140000_add_units_weather_station';
+import * as m20261203150000 from './20261203150000_create_demo_history';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -59,6 +60,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203120100_add_audit_log_user_index': m20261203120100,
   '20261203120200_add_audit_log_target_index': m20261203120200,
   '20261203140000_add_units_weather_station': m20261203140000,
+  '20261203150000_create_demo_history': m20261203150000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {
