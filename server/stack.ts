@@ -14,6 +14,9 @@ import { AuditRepository } from './data/audit-repository';
 import { SessionRepository } from './data/session-repository';
 import { AuditService } from './services/audit-service';
 import { auditRoutes } from './routes/audit-routes';
+import { demoHistoryRoutes } from './routes/demo-history-routes';
+import { DemoHistoryStatus } from './services/demo-history-status';
+import { HistoryRepository } from './data/history-repository';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -300,6 +303,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
         replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings),
       }),
       auditRoutes(auditLog),
+      demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),
     ],
   });
   const http = createServer(app);

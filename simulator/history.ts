@@ -52,7 +52,7 @@ export interface FullRateWindow {
   toMs: number;
   seed: string;
   faults?: FaultPlan;
-  /** Simulated before `fromMs` and thrown away, so units start the window settled [s]; default 1800. */
+  /** Simulated before `fromMs` and thrown away, so units start the window settled [s]; default 1800 (300 for windows under an hour). */
   warmupS?: number;
   /** Messages are handed over in batches of this much simulated time [s]; default 900. */
   batchS?: number;
@@ -72,7 +72,7 @@ const tsOf = (m: OutboundMessage): number => Date.parse(m.payload.ts);
  */
 export function fullRateHistory(sites: FleetSiteSpec[], w: FullRateWindow, onBatch: (batch: TimedMessage[]) => void): TruthRecord[] {
   if (!(w.fromMs < w.toMs)) throw new RangeError(`empty history window ${isoUtc(w.fromMs)} … ${isoUtc(w.toMs)}`);
-  const warmupMs = (w.warmupS ?? 1800) * 1000;
+  const warmupMs = (w.warmupS ?? (w.toMs - w.fromMs < 3_600_000 ? 300 : 1800)) * 1000;
   // Started on a whole minute, so every window's reports fall on the same grid and adjoining windows join without a
   // doubled report interval at the seam.
   const fleet = createFleet(

@@ -72,6 +72,8 @@ try {
       console.log(
         `[history] live: ${counts.rawRows} reports, ${counts.rollupRows} rollup rows, ${counts.weather} weather readings, ${counts.events} events, ${counts.alarms} cleared alarms in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
       );
+    // The fill itself took time: top up the few seconds since, so the live fleet starts where the past ends.
+    for (let i = 0; plan && !values.now && i < 3; i++) if (!(await history.fill(Math.floor(Date.now() / 1000) * 1000)).plan) break;
   } else {
     const counts = await history.background();
     console.log(

@@ -27,6 +27,8 @@ export const PERMISSIONS = {
   openLandscape: ['admin', 'engineer'],
   /** The fleet board (live units). */
   openFleetBoard: ['admin', 'engineer', 'technician', 'crew'],
+  /** Progress of the demo's generated past (the admin page's line). */
+  readDemoHistory: ['admin'],
   readAlarms: ROLES,
   readSites: ROLES,
 } as const satisfies Record<string, readonly Role[]>;
