@@ -2,7 +2,9 @@
  * The demo fleet's past as a stream (no broker): what its units stored and forward, for the server's history loader
  * (server/scripts/demo-history.ts) to bulk-load. One JSON object per line on stdout:
  *   { "k": "m", "serial", "leaf", "payload", "sentMs" }   a message a unit sent (full rate)
- *   { "k": "q", …ModelQuarter }                             a unit's 15-minute interval (rollup level)
+ *   { "k": "q", "r": [serial, bucketMs, minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh] }
+ *                                                           a unit's 15-minute interval (rollup level; W/m² to 0.1, W to
+ *                                                           0.01, Wh to 0.001)
  *   { "k": "w", …ModelWeather }                             a weather station reading (rollup level)
  *   { "k": "truth", "serial", "fault", "start", "end" }     a fault or observed condition of the window
  *   { "k": "end", "messages", "quarters", "seconds" }       last line
@@ -57,6 +59,7 @@ const line = (o: object) => {
   if (bufLen > 1 << 20) flush();
 };
 
+const round = (x: number, per: number) => Math.round(x * per) / per;
 const t0 = performance.now();
 let messages = 0;
 let quarters = 0;
@@ -73,7 +76,21 @@ const truth =
         messages += batch.length;
       })
     : rollupModelHistory(sites, { fromMs, toMs, seed, faults }, (qs, ws) => {
-        for (const q of qs) line({ k: 'q', ...q });
+        // Quarters are most of the stream: one compact row each, rounded to what a rollup needs.
+        for (const q of qs)
+          line({
+            k: 'q',
+            r: [
+              q.serial,
+              q.bucketMs,
+              q.minutes,
+              q.samples,
+              round(q.poaAvgWm2, 10),
+              round(q.poaMaxWm2, 10),
+              round(q.dcPowerAvgW, 100),
+              round(q.energyWh, 1000),
+            ],
+          });
         for (const w of ws) line({ k: 'w', ...w });
         quarters += qs.length;
       });

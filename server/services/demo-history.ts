@@ -42,14 +42,8 @@ export type HistoryLine =
   | { k: 'm'; serial: string; leaf: 'telemetry' | 'events' | 'weather'; payload: unknown; sentMs: number }
   | {
       k: 'q';
-      serial: string;
-      bucketMs: number;
-      minutes: number;
-      samples: number;
-      poaAvgWm2: number;
-      poaMaxWm2: number;
-      dcPowerAvgW: number;
-      energyWh: number;
+      /** serial, bucket start [ms], minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh */
+      r: [string, number, number, number, number, number, number, number];
     }
   | { k: 'w'; serial: string; tsMs: number; ghiWm2: number; dhiWm2: number; airTempC: number; windMs: number; gustMs: number }
   | { k: 'truth'; serial: string; fault: string; start: string; end: string | null }
@@ -410,9 +404,11 @@ export class DemoHistory {
         const t = line.payload as Telemetry;
         const tsMs = Date.parse(t.ts);
         raw.push(telemetryRowOf(u.id, t, tsMs, Math.max(tsMs, line.sentMs)));
+        // One report a minute is kept for the evidence of the window's alarms.
         let list = readings.get(u.id);
         if (!list) readings.set(u.id, (list = []));
-        list.push(t);
+        const prev = list.at(-1);
+        if (!prev || Math.floor(Date.parse(prev.ts) / MINUTE_MS) !== Math.floor(tsMs / MINUTE_MS)) list.push(t);
       } else if (line.leaf === 'events') {
         const e = line.payload as UnitEvent;
         events.push(eventRowOf(u.id, e, Date.parse(e.ts)));
@@ -482,10 +478,10 @@ export class DemoHistory {
     })) {
       if (line.k === 'truth') truth.push(line);
       else if (line.k === 'q') {
-        const u = bySerial.get(line.serial);
+        const [serial, bucketMs, minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh] = line.r;
+        const u = bySerial.get(serial);
         if (!u) continue;
-        const { serial: _s, k: _k, bucketMs, ...q } = line;
-        quarters.push({ unitId: u.id, bucket: new Date(bucketMs), ...q });
+        quarters.push({ unitId: u.id, bucket: new Date(bucketMs), minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh });
       } else if (line.k === 'w') {
         const u = bySerial.get(line.serial);
         if (!u?.weatherStation) continue;

@@ -79,11 +79,19 @@ export class RollupWorker {
 
   /** Sums the quarters of each touched local day into the daily energy (one query per date for all its units). */
   private async rollupDays(quarters: Map<number, Set<number>>): Promise<void> {
+    // Units share zones and quarters: each (zone, instant) is formatted once.
+    const memo = new Map<string, string>();
+    const dateOf = (ms: number, unitId: number) => {
+      const tz = this.units.byUnitId(unitId)?.timeZone ?? 'UTC';
+      const key = `${tz}|${ms}`;
+      let d = memo.get(key);
+      if (d === undefined) memo.set(key, (d = localDate(ms, tz)));
+      return d;
+    };
     const days = new Map<string, Set<number>>(); // "date" → unit ids
     for (const [q, ids] of quarters) {
       for (const id of ids) {
-        const tz = this.units.byUnitId(id)?.timeZone ?? 'UTC';
-        const d = localDate(q, tz);
+        const d = dateOf(q, id);
         let set = days.get(d);
         if (!set) days.set(d, (set = new Set()));
         set.add(id);
@@ -95,7 +103,7 @@ export class RollupWorker {
       const { from, to } = utcWindowOfLocalDate(d);
       const sums = new Map<number, { energyWh: number; minutes: number }>([...ids].map((id) => [id, { energyWh: 0, minutes: 0 }]));
       for (const r of await this.repo.quartersBetween([...ids], from, to)) {
-        if (localDate(r.bucket.getTime(), this.units.byUnitId(r.unitId)?.timeZone ?? 'UTC') !== d) continue;
+        if (dateOf(r.bucket.getTime(), r.unitId) !== d) continue;
         const sum = sums.get(r.unitId)!;
         sum.energyWh += r.energyWh;
         sum.minutes += r.minutes;
