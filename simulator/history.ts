@@ -75,11 +75,10 @@ export function fullRateHistory(sites: FleetSiteSpec[], w: FullRateWindow, onBat
   const warmupMs = (w.warmupS ?? (w.toMs - w.fromMs < 3_600_000 ? 300 : 1800)) * 1000;
   // Started on a whole minute, so every window's reports fall on the same grid and adjoining windows join without a
   // doubled report interval at the seam.
-  const fleet = createFleet(
-    { sites, startUnixMs: Math.floor((w.fromMs - warmupMs) / MINUTE_MS) * MINUTE_MS, faults: w.faults ?? {} },
-    { rng: createRng(`${w.seed}|full|${w.fromMs}`) },
-  );
-  fleet.advanceTo(w.fromMs);
+  const startMs = Math.floor((w.fromMs - warmupMs) / MINUTE_MS) * MINUTE_MS;
+  const fleet = createFleet({ sites, startUnixMs: startMs, faults: w.faults ?? {} }, { rng: createRng(`${w.seed}|full|${w.fromMs}`) });
+  // Whole seconds only, so the grid stays on whole seconds when the window starts between two.
+  fleet.advanceTo(startMs + Math.ceil((w.fromMs - startMs) / 1000) * 1000);
   const batchMs = (w.batchS ?? 900) * 1000;
   const keep = (m: OutboundMessage) => m.leaf !== 'acks' && tsOf(m) >= w.fromMs && tsOf(m) < w.toMs;
   while (fleet.now() < w.toMs) {

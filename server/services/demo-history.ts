@@ -291,14 +291,36 @@ export class DemoHistory {
       message: `loading the past ${lastMs === null ? 'of the demo' : `since ${new Date(lastMs).toISOString()}`}`,
     });
     try {
+      // The two run side by side (each its own simulator process); the rollup-level days are summed as soon as they are in.
+      const t0 = Date.now();
+      const secs = () => `${((Date.now() - t0) / 1000).toFixed(1)} s`;
       const jobs: Promise<LoadCounts>[] = [];
-      if (plan.rollupFromMs < plan.rollupToMs) jobs.push(this.loadRollups(plan.rollupFromMs, plan.rollupToMs, nowMs));
+      const rollupLevel = plan.rollupFromMs < plan.rollupToMs;
+      if (rollupLevel)
+        jobs.push(
+          this.loadRollups(plan.rollupFromMs, plan.rollupToMs, nowMs).then(async (c) => {
+            await this.rollups.rebuildDays(this.unitIds(), new Date(plan.rollupFromMs), new Date(plan.rollupToMs));
+            this.o.log(`history: ${c.rollupRows} rollup-level rows since ${new Date(plan.rollupFromMs).toISOString()} in ${secs()}`);
+            return c;
+          }),
+        );
       if (plan.firstFromMs < nowMs) {
-        this.o.log(`history: day 1 of ${plan.daysTotal} (full rate)`);
-        jobs.push(this.loadFullRate(plan.firstFromMs, nowMs, nowMs, false));
+        this.o.log(
+          plan.daysTotal > 1 || nowMs - plan.firstFromMs > 3_600_000
+            ? `history: day 1 of ${plan.daysTotal} (full rate)`
+            : `history: the last ${Math.round((nowMs - plan.firstFromMs) / 1000)} s at full rate`,
+        );
+        jobs.push(
+          this.loadFullRate(plan.firstFromMs, nowMs, nowMs, false).then((c) => {
+            this.o.log(`history: ${c.rawRows} reports at full rate in ${secs()}`);
+            return c;
+          }),
+        );
       }
       for (const c of await Promise.all(jobs)) addCounts(counts, c);
-      if (plan.rollupFromMs < plan.rollupToMs) await this.rollups.rebuildDays(this.unitIds(), new Date(plan.rollupFromMs), new Date(nowMs));
+      // The day where the two meet may have been summed before the other side's quarters were in.
+      if (rollupLevel && plan.firstFromMs < nowMs)
+        await this.rollups.rebuildDays(this.unitIds(), new Date(plan.firstFromMs - QUARTER_MS), new Date(plan.firstFromMs + QUARTER_MS));
       const done = plan.firstFromMs < nowMs ? 1 : 0;
       await this.repo.updateProgress(progressId, {
         state: bg ? 'background' : 'done',
