@@ -26,7 +26,11 @@ import * as m20261203120000 from './20261203120000_add_audit_log_action_index';
 import * as m20261203120100 from './20261203120100_add_audit_log_user_index';
 import * as m20261203120200 from './20261203120200_add_audit_log_target_index';
 import * as m20261203140000 from './20261203140000_add_units_weather_station';
-import * as m20261203150000 from './20261203150000_create_demo_history';
+import * as m20261204100000 from './20261204100000_create_tickets';
+import * as m20261204100100 from './20261204100100_create_ticket_transitions';
+import * as m20261204100200 from './20261204100200_create_ticket_alarms';
+import * as m20261204100300 from './20261204100300_create_owner_sla';
+import * as m20261204110000 from './20261204110000_create_demo_history';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -60,7 +64,11 @@ const migrations: Record<string, Knex.Migration> = {
   '20261203120100_add_audit_log_user_index': m20261203120100,
   '20261203120200_add_audit_log_target_index': m20261203120200,
   '20261203140000_add_units_weather_station': m20261203140000,
-  '20261203150000_create_demo_history': m20261203150000,
+  '20261204100000_create_tickets': m20261204100000,
+  '20261204100100_create_ticket_transitions': m20261204100100,
+  '20261204100200_create_ticket_alarms': m20261204100200,
+  '20261204100300_create_owner_sla': m20261204100300,
+  '20261204110000_create_demo_history': m20261204110000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

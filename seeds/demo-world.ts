@@ -10,13 +10,13 @@ import {
   DEMO_UNIT,
   DETECTOR_TILTS_DEG,
   FACADES,
-  UNITS_PER_SITE,
   demoSerial,
   demoSerials,
 } from '../shared/demo-world';
 
 /**
- * The invented demo world: an O&M operator ("Saltmarsh Field Services"), two owners, four sites and 24 units.
+ * The invented demo world: an O&M operator ("Saltmarsh Field Services"), six owners on four continents, ten sites and
+ * 48 units.
  * Names, people and serials are made up; sites, units and their geometry come from shared/demo-world, which the simulator
  * runs too. Demo only — never used by tests of the computation.
  */
@@ -31,12 +31,23 @@ export const DEMO_USERS = [
   { email: 'crew2@saltmarsh.example', name: 'Kwame Ruiz', role: 'crew', owner: null },
   { email: 'owner@quillmoor.example', name: 'Priya Halvorsen', role: 'owner', owner: 'Quillmoor Energy Cooperative' },
   { email: 'owner@fenwicklane.example', name: 'Jonah Whitcombe', role: 'owner', owner: 'Fenwick Lane Schools Trust' },
+  { email: 'owner@tindara.example', name: 'Camila Arroyo', role: 'owner', owner: 'Tindara Water Cooperative' },
+  { email: 'owner@nyasoro.example', name: 'Wanjiru Otieno', role: 'owner', owner: 'Nyasoro Clinics Trust' },
+  { email: 'owner@wattlebank.example', name: 'Isla Brennan', role: 'owner', owner: 'Wattlebank Islands Energy Co-op' },
+  { email: 'owner@cedarflats.example', name: 'Dale Marchetti', role: 'owner', owner: 'Cedar Flats Irrigation District' },
 ] as const;
 
 export const DEMO_OWNERS = [
   { name: 'Quillmoor Energy Cooperative', contact_email: 'accounts@quillmoor.example' },
   { name: 'Fenwick Lane Schools Trust', contact_email: 'estates@fenwicklane.example' },
+  { name: 'Tindara Water Cooperative', contact_email: 'accounts@tindara.example' },
+  { name: 'Nyasoro Clinics Trust', contact_email: 'facilities@nyasoro.example' },
+  { name: 'Wattlebank Islands Energy Co-op', contact_email: 'office@wattlebank.example' },
+  { name: 'Cedar Flats Irrigation District', contact_email: 'billing@cedarflats.example' },
 ];
+
+/** An open site: flat horizon, nothing that mirrors the sun, the usual sky of its scenario. */
+const openSurvey = (skyType: SiteSurvey['skyType']): SiteSurvey => ({ skyType, horizon: [], reflectors: [], lamps: [] });
 
 /** Site surveys of the demo world: the same geometry the simulator's scenarios use, so model and demo fleet agree. */
 export const DEMO_SURVEYS: Record<string, SiteSurvey> = {
@@ -54,6 +65,14 @@ export const DEMO_SURVEYS: Record<string, SiteSurvey> = {
     reflectors: [],
     lamps: ATRIUM_LAMPS.map(({ azimuthDeg, elevationDeg, irradianceWm2 }) => ({ azimuthDeg, elevationDeg, irradianceWm2 })),
   },
+  // The open daylight sites: CIE clear sky (type 12) under clear, gusty and broken-cloud scenarios; the overcast one's
+  // dome is the traditional overcast sky (Moon & Spencer) its scenario uses.
+  TPS: openSurvey('moon-spencer'),
+  TMS: openSurvey(12),
+  NKR: openSurvey(12),
+  WRF: openSurvey(12),
+  WKM: openSurvey(12),
+  CPY: openSurvey(12),
 };
 
 export interface DemoSeedOptions {
@@ -91,9 +110,11 @@ export async function seedDemoWorld(db: Knex, tools: DeviceSecretTools, opts: De
     const ownerIds = new Map<string, number>();
     for (const o of DEMO_OWNERS) ownerIds.set(o.name, (await trx('owners').insert(o))[0] as number);
     for (const s of DEMO_SITES) {
-      const { owner, code, ...site } = s;
-      const [siteId] = await trx('sites').insert({ ...site, owner_id: ownerIds.get(owner), survey: JSON.stringify(DEMO_SURVEYS[code]) });
-      const rows = Array.from({ length: UNITS_PER_SITE }, (_, i) => {
+      const { owner, code, units, ...site } = s;
+      const survey = DEMO_SURVEYS[code];
+      if (!survey) throw new Error(`demo site ${code} has no survey in DEMO_SURVEYS`);
+      const [siteId] = await trx('sites').insert({ ...site, owner_id: ownerIds.get(owner), survey: JSON.stringify(survey) });
+      const rows = Array.from({ length: units }, (_, i) => {
         const serial = demoSerial(code, i);
         deviceSecrets[serial] = secretOf(serial);
         return {

@@ -14,6 +14,9 @@ import { AuditRepository } from './data/audit-repository';
 import { SessionRepository } from './data/session-repository';
 import { AuditService } from './services/audit-service';
 import { auditRoutes } from './routes/audit-routes';
+import { TicketRepository } from './data/ticket-repository';
+import { TicketService, type TicketOptions } from './services/ticket-service';
+import { ticketRoutes } from './routes/ticket-routes';
 import { demoHistoryRoutes } from './routes/demo-history-routes';
 import { DemoHistoryStatus } from './services/demo-history-status';
 import { HistoryRepository } from './data/history-repository';
@@ -75,6 +78,7 @@ export interface Stack {
   siteModel: SiteModelService;
   retention: RetentionJob;
   health: HealthService;
+  tickets: TicketService;
   /** Resolves when the modelled best of every site's last day is cached (the first day of traces opens without waiting). */
   landscapesWarm: Promise<void>;
   http: Server;
@@ -97,6 +101,8 @@ export interface StackOptions {
   listeners?: IngestListeners;
   rollupIntervalMs?: number;
   health?: Partial<HealthServiceOptions>;
+  /** Ticket rules' delays and clock (tests). */
+  tickets?: Partial<TicketOptions>;
   /** How often open live sockets have their session checked again [ms]; default 30 s. */
   sessionRecheckMs?: number;
   /** Broker limits other than the defaults (tests). */
@@ -255,6 +261,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     log,
     opts.commands,
   );
+  const tickets = new TicketService(new TicketRepository(db), admin, commands, log, { now: healthOpts.now, ...opts.tickets });
+  health.onAlarmRaised((a) => void tickets.onAlarmRaised(a));
   const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];
@@ -269,6 +277,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   rollups.start();
   retention.start();
   commands.start();
+  tickets.start();
   await health.start();
   brokerRef = broker;
 
@@ -303,6 +312,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
         replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings),
       }),
       auditRoutes(auditLog),
+      ticketRoutes(tickets, auditLog),
       demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),
     ],
   });
@@ -333,6 +343,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await ingest.drain(5000);
       ingest.stop();
       await health.stop();
+      tickets.stop();
+      await tickets.settle();
       rollups.stop();
       retention.stop();
       await rollups.runOnce({ includeOpenMinutes: true }).catch(() => undefined);
@@ -353,6 +365,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     siteModel,
     retention,
     health,
+    tickets,
     landscapesWarm,
   };
 }

@@ -1,8 +1,9 @@
 /**
- * The demo fleet: the 24 units of the invented demo world, each site under a fitting scenario. Unit index 4 of each site
- * has the narrow detector tilt (8°) and is the one prone to traps.
+ * The demo fleet: the units of the invented demo world, each site under a fitting scenario. Sites with a cluttered sky
+ * (facades, broken cloud, courtyard, lamps) have a unit with index 4, whose narrow detector tilt (8°) makes it the one
+ * prone to traps; the open clear, gusty and overcast sites have fewer units and no such unit.
  */
-import { DEMO_SITES, DEMO_UNIT, DETECTOR_TILTS_DEG, UNITS_PER_SITE, demoSerial } from '../shared/demo-world';
+import { DEMO_SITES, DEMO_UNIT, DETECTOR_TILTS_DEG, demoSiteSerials } from '../shared/demo-world';
 import type { FleetSiteSpec } from './fleet';
 import type { SiteInfo } from './scenarios';
 
@@ -11,7 +12,24 @@ export const DEMO_SCENARIO_BY_SITE: Record<string, string> = {
   QED: 'broken-cloud',
   FSC: 'urban-canyon',
   FGA: 'atrium-lamps',
+  // Coastal desert under its dry-season cloud deck.
+  TPS: 'overcast',
+  TMS: 'clear-day',
+  // Highland equatorial afternoons: cumulus building and breaking.
+  NKR: 'broken-cloud',
+  WRF: 'clear-day',
+  // Tropical island: showers and clear spells.
+  WKM: 'broken-cloud',
+  // High plains below the mountains: downslope wind storms.
+  CPY: 'gusty',
 };
+
+/** The scenario a demo site runs under. */
+export function demoScenarioOf(code: string): string {
+  const scenario = DEMO_SCENARIO_BY_SITE[code];
+  if (!scenario) throw new RangeError(`demo site ${code} has no scenario in DEMO_SCENARIO_BY_SITE`);
+  return scenario;
+}
 
 export function demoSiteInfo(code: string): SiteInfo {
   const s = DEMO_SITES.find((x) => x.code === code);
@@ -30,9 +48,9 @@ export function demoSiteInfo(code: string): SiteInfo {
 export function demoFleetSites(reportIntervalS = 5): FleetSiteSpec[] {
   return DEMO_SITES.map((s) => ({
     site: demoSiteInfo(s.code),
-    scenario: DEMO_SCENARIO_BY_SITE[s.code]!,
-    units: Array.from({ length: UNITS_PER_SITE }, (_, i) => ({
-      serial: demoSerial(s.code, i),
+    scenario: demoScenarioOf(s.code),
+    units: demoSiteSerials(s).map((serial, i) => ({
+      serial,
       siteCode: s.code,
       firmware: DEMO_UNIT.firmware,
       ratedPowerWp: DEMO_UNIT.ratedPowerWp,

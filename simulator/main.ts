@@ -1,12 +1,13 @@
 /**
  * Fleet simulator CLI.
- *   npm start                       (runs `--demo`: the 24 demo units on 127.0.0.1:1884, real time, report every 5 s)
+ *   npm start                       (runs `--demo`: every demo unit on 127.0.0.1:1884, real time, report every 5 s)
  *   npm run simulate -- [options]   any fleet against any broker; see --help
  * Runs until SIGINT/SIGTERM (or --duration), then publishes an offline status for every unit and disconnects cleanly.
  */
 import { createWriteStream, readFileSync, type WriteStream } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { WIRE_RANGES } from '../shared/contracts/wire-format';
+import { DEMO_SITES, demoSerials } from '../shared/demo-world';
 import { parseInstant } from '../shared/solar-position';
 import { acceleratedClock, isoUtc, wallClock } from './clock';
 import { DEMO_SCENARIO_BY_SITE, demoFleetSites, demoSiteInfo } from './demo-fleet';
@@ -19,7 +20,7 @@ import { baselineSummary } from './baseline-report';
 
 const HELP = `Brightward fleet simulator
 
-  --demo                  the demo fleet (24 units, 4 sites, each with its own scenario) on 127.0.0.1:1884
+  --demo                  the demo fleet (${demoSerials().length} units, ${DEMO_SITES.length} sites, each with its own scenario) on 127.0.0.1:1884
   --broker <url>          broker URL (default mqtt://$BW_BROKER_HOST:$BW_BROKER_PORT, i.e. mqtt://127.0.0.1:1884)
   --offline               no broker: step the fleet as fast as possible (needs --duration) and write the files
   --scenario <name>       sky scenario for a custom fleet (default clear-day); one of: ${SCENARIO_NAMES.join(', ')}

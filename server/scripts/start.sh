@@ -68,6 +68,10 @@ cat <<MSG
     tech1@saltmarsh.example      technician       crew1@saltmarsh.example      field crew
     owner@quillmoor.example      owner (Quillmoor Energy Cooperative)
     owner@fenwicklane.example    owner (Fenwick Lane Schools Trust)
+    owner@tindara.example        owner (Tindara Water Cooperative)
+    owner@nyasoro.example        owner (Nyasoro Clinics Trust)
+    owner@wattlebank.example     owner (Wattlebank Islands Energy Co-op)
+    owner@cedarflats.example     owner (Cedar Flats Irrigation District)
   MQTT broker on ${BW_BROKER_HOST:-127.0.0.1}:${BW_BROKER_PORT:-1884}${BW_BROKER_TLS_PORT:+, MQTT over TLS on port $BW_BROKER_TLS_PORT (${BW_BROKER_TLS_CERT:-development certificate .data/tls/broker-cert.pem})}.
   Press Ctrl-C to stop everything.
 

@@ -8,7 +8,11 @@ child=0
 stopping=0
 stop() {
   stopping=1
-  [ "$child" != 0 ] && kill -TERM "$child" 2>/dev/null && wait "$child" 2>/dev/null
+  # The job table, not $child: a signal can arrive between the fork and `child=$!`.
+  local pids
+  pids=$(jobs -p)
+  [ -n "$pids" ] && kill -TERM $pids 2>/dev/null
+  wait
   exit 0
 }
 trap stop TERM INT

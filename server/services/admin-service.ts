@@ -137,6 +137,13 @@ export class AdminService {
     return this.repo.owners.list();
   }
 
+  /** One owner: staff see every owner, an owner user only its own (404 otherwise). */
+  async getOwner(c: Caller, id: number): Promise<Owner> {
+    const o = c.role === 'owner' && c.ownerId !== id ? undefined : await this.repo.owners.findById(id);
+    if (!o) throw notFound('Owner');
+    return o;
+  }
+
   async createOwner(by: Caller, input: OwnerInput): Promise<Owner> {
     if (await this.repo.owners.findByName(input.name)) throw conflict('An owner with that name exists.', { name: 'Already in use.' });
     const id = await this.repo.owners.insert({ name: input.name, contactEmail: input.contactEmail ?? null });

@@ -1,7 +1,7 @@
 import { randomUUID } from 'node:crypto';
 import type { Logger } from 'pino';
 import type { CommandView, IssueCommandRequest } from '../../shared/contracts/live';
-import type { HoldView, UnitHolds } from '../../shared/contracts/holds';
+import type { HolderKind, HoldView, UnitHolds } from '../../shared/contracts/holds';
 import type { Command, CommandAck } from '../../shared/contracts/wire';
 import { HOLD_COMMANDS as HOLD_KINDS, MOTION_COMMANDS, WIRE_VERSION, type CommandKind } from '../../shared/contracts/wire-format';
 import { may } from '../../shared/contracts/permissions';
@@ -120,6 +120,29 @@ export class CommandService {
     return { unitId: unit.id, held: active.length > 0, active, released };
   }
 
+  /**
+   * A ticket's check-in: the ticket holds the unit, in force at once and cancelling queued motion, like a person's hold.
+   * Nothing happens when the ticket already holds it (a retried check-in).
+   */
+  async holdForTicket(by: Caller, unitId: number, ticketId: number, note: string): Promise<void> {
+    const unit = this.visibleUnit(by, unitId);
+    await this.inOrder(unit.id, async () => {
+      const u = this.units.byUnitId(unit.id) ?? unit;
+      if (u.holds.some((h) => h.holder.kind === 'ticket' && h.holder.id === ticketId)) return;
+      await this.placeHold(by, u, note, { kind: 'ticket', id: ticketId });
+    });
+  }
+
+  /** A ticket's check-out, cancel or close: its hold on the unit is released (nothing when it holds none). */
+  async releaseForTicket(by: Caller, unitId: number, ticketId: number, reason: string): Promise<void> {
+    const unit = this.visibleUnit(by, unitId);
+    await this.inOrder(unit.id, async () => {
+      const u = this.units.byUnitId(unit.id) ?? unit;
+      const hold = u.holds.find((h) => h.holder.kind === 'ticket' && h.holder.id === ticketId);
+      if (hold) await this.releaseHold(by, u, hold.id, reason, ticketId);
+    });
+  }
+
   /** The unit answered a command. Answers to one command are applied in arrival order. */
   onAck(unit: UnitInfo, ack: CommandAck): Promise<void> {
     const prev = this.ackChains.get(ack.commandId) ?? Promise.resolve();
@@ -234,12 +257,23 @@ export class CommandService {
     return this.dispatch(unit, row);
   }
 
-  private async placeHold(by: Caller, unit: UnitInfo, note: string | undefined): Promise<CommandView> {
+  private async placeHold(
+    by: Caller,
+    unit: UnitInfo,
+    note: string | undefined,
+    holder: { kind: HolderKind; id: number } = { kind: 'person', id: by.id },
+  ): Promise<CommandView> {
     const now = new Date(this.opts.now());
     const { row, holds, cancelled } = await this.store.locked(unit.id, async (tx) => {
       const before = await tx.holds.active(unit.id);
-      if (before.some((h) => h.holder.kind === 'person' && h.holder.id === by.id)) {
-        throw new AppError(409, 'already_holding', `You already hold ${unit.serial}: your hold stays in force until you release it.`);
+      if (before.some((h) => h.holder.kind === holder.kind && h.holder.id === holder.id)) {
+        throw new AppError(
+          409,
+          'already_holding',
+          holder.kind === 'person'
+            ? `You already hold ${unit.serial}: your hold stays in force until you release it.`
+            : `Ticket ${holder.id} already holds ${unit.serial}.`,
+        );
       }
       const first = before.length === 0;
       const row = this.newRow(
@@ -253,8 +287,8 @@ export class CommandService {
       await tx.commands.insert(row);
       const holdId = await tx.holds.insert({
         unitId: unit.id,
-        holderKind: 'person',
-        holderId: by.id,
+        holderKind: holder.kind,
+        holderId: holder.id,
         note: note?.trim() || null,
         placedAt: now,
         placedBy: by.id,
@@ -273,7 +307,7 @@ export class CommandService {
         userId: by.id,
         action: 'hold-place',
         target: `unit:${unit.id}`,
-        detail: { holdId, commandId: row.id, note: note?.trim() || null, firstHold: first, cancelledCommands: cancelled },
+        detail: { holdId, holder, commandId: row.id, note: note?.trim() || null, firstHold: first, cancelledCommands: cancelled },
       });
       return { row, holds, cancelled };
     });
@@ -282,7 +316,14 @@ export class CommandService {
     return this.dispatch(unit, row);
   }
 
-  private async releaseHold(by: Caller, unit: UnitInfo, holdId: number | undefined, reason: string | undefined): Promise<CommandView> {
+  /** `forTicket`: the release is the check-out, cancel or close of that ticket, which holds the hold. */
+  private async releaseHold(
+    by: Caller,
+    unit: UnitInfo,
+    holdId: number | undefined,
+    reason: string | undefined,
+    forTicket?: number,
+  ): Promise<CommandView> {
     const now = new Date(this.opts.now());
     const why = reason?.trim() || null;
     const { row, holds } = await this.store.locked(unit.id, async (tx) => {
@@ -307,7 +348,8 @@ export class CommandService {
         if (old && old.unitId === unit.id) throw new AppError(409, 'hold_released', `That hold was already released (${old.releasedAt}).`);
         throw notFound('Hold');
       }
-      const own = hold.holder.kind === 'person' && hold.holder.id === by.id;
+      const own =
+        (hold.holder.kind === 'person' && hold.holder.id === by.id) || (hold.holder.kind === 'ticket' && hold.holder.id === forTicket);
       if (!own && by.role !== 'admin') {
         throw forbidden(
           hold.holder.kind === 'ticket'

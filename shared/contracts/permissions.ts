@@ -27,6 +27,12 @@ export const PERMISSIONS = {
   openLandscape: ['admin', 'engineer'],
   /** The fleet board (live units). */
   openFleetBoard: ['admin', 'engineer', 'technician', 'crew'],
+  /** Open a ticket by hand (alarms open theirs automatically). */
+  openTickets: ['technician', 'engineer', 'admin'],
+  /** Move tickets through their lifecycle (the ticket service checks who may make which move). */
+  moveTickets: ['technician', 'engineer', 'admin', 'crew'],
+  /** Owners read their own sites' tickets only. */
+  readTickets: ROLES,
   /** Progress of the demo's generated past (the admin page's line). */
   readDemoHistory: ['admin'],
   readAlarms: ROLES,

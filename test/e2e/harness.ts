@@ -38,7 +38,18 @@ export interface DemoUser {
   sites: string[] | null;
 }
 
-export const ALL_SITES = ['Eastfield Depot Yard', 'Fenwick Lane School Courtyard', 'Glasshouse Atrium', 'Harbourside Library Roof'];
+export const ALL_SITES = [
+  'Cedar Flats Pump Yard',
+  'Eastfield Depot Yard',
+  'Fenwick Lane School Courtyard',
+  'Glasshouse Atrium',
+  'Harbourside Library Roof',
+  'Kerio Ridge Clinic Roof',
+  'Kolova Harbour Market Roof',
+  'Mesa Seca Reservoir',
+  'Punta Salinas Pumping Station',
+  'Redgum Flat Depot',
+];
 export const DEMO_USERS: DemoUser[] = [
   { email: 'admin@saltmarsh.example', name: 'Ada Kestrel', role: 'admin', roleLabel: 'Administrator', sites: null },
   { email: 'engineer@saltmarsh.example', name: 'Ravi Lindqvist', role: 'engineer', roleLabel: 'Engineer', sites: null },
@@ -60,6 +71,22 @@ export const DEMO_USERS: DemoUser[] = [
     roleLabel: 'Owner',
     sites: ['Fenwick Lane School Courtyard', 'Glasshouse Atrium'],
   },
+  {
+    email: 'owner@tindara.example',
+    name: 'Camila Arroyo',
+    role: 'owner',
+    roleLabel: 'Owner',
+    sites: ['Mesa Seca Reservoir', 'Punta Salinas Pumping Station'],
+  },
+  { email: 'owner@nyasoro.example', name: 'Wanjiru Otieno', role: 'owner', roleLabel: 'Owner', sites: ['Kerio Ridge Clinic Roof'] },
+  {
+    email: 'owner@wattlebank.example',
+    name: 'Isla Brennan',
+    role: 'owner',
+    roleLabel: 'Owner',
+    sites: ['Kolova Harbour Market Roof', 'Redgum Flat Depot'],
+  },
+  { email: 'owner@cedarflats.example', name: 'Dale Marchetti', role: 'owner', roleLabel: 'Owner', sites: ['Cedar Flats Pump Yard'] },
 ];
 
 export class CheckFailed extends Error {}

@@ -40,6 +40,7 @@ interface OwnerWorld {
   /** Units of that site, by id; rows that change a unit use their own index so they never meet. */
   unitIds: number[];
   alarmId: number;
+  ticketId: number;
   survey: unknown;
 }
 type World = Record<Side, OwnerWorld>;
@@ -131,6 +132,18 @@ const ROUTES: Row[] = [
   row('GET /api/sites/:id/landscape/day',          (w, s) => `/api/sites/${w[s].siteId}/landscape/day?date=2026-12-21`,                  401, 200, 200, 200, 200, 403),
 
   // Alarms and health: read in scope; acknowledged by the control room; settings by engineers and admins.
+  // Tickets: read in scope; opened by the control room; moved by whoever the lifecycle names (tickets.test.ts has the table).
+  row('GET /api/tickets',                          () => '/api/tickets',                                                                  401, 200, 200, 200, 200, 200),
+  row('GET /api/tickets.csv',                      () => '/api/tickets.csv',                                                              401, 200, 200, 200, 200, 200),
+  row('POST /api/tickets',                         (w, s) => ({ path: '/api/tickets', body: { unitId: unit(w, s, 5), title: 'Matrix', severity: 'P3' } }),
+                                                                                                                                          401, 201, 201, 201, 403, 403),
+  row('GET /api/tickets/:id',                      (w, s) => `/api/tickets/${w[s].ticketId}`,                                            401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/sites/:id/ticket-kpis',            (w, s) => `/api/sites/${w[s].siteId}/ticket-kpis?month=2026-06`,                      401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/owners/:id/sla',                   (w, s) => `/api/owners/${w[s].ownerId}/sla`,                                          401, 200, 200, 200, 200, mine(200)),
+  row('PUT /api/owners/:id/sla',                   (w, s) => ({ path: `/api/owners/${w[s].ownerId}/sla`, body: {} }),                     401, 200, 403, 403, 403, 403),
+  // A stale version: the control room reaches the lock (409) and changes nothing; crews may not cancel, owners move nothing.
+  row('POST /api/tickets/:id/transition',          (w, s) => ({ path: `/api/tickets/${w[s].ticketId}/transition`, body: { to: 'cancelled', reason: 'matrix', version: 999 } }),
+                                                                                                                                          401, 409, 409, 409, 403, 403),
   row('GET /api/alarms',                           (w, s) => `/api/alarms?siteId=${w[s].siteId}`,                                         401, 200, 200, 200, 200, mine(200)),
   row('GET /api/alarms/:id',                       (w, s) => `/api/alarms/${w[s].alarmId}`,                                               401, 200, 200, 200, 200, mine(200)),
   row('POST /api/alarms/:id/acknowledge',          (w, s) => ({ path: `/api/alarms/${w[s].alarmId}/acknowledge`, body: {} }),             401, 200, 200, 200, 403, 403),
@@ -176,7 +189,9 @@ async function ownerWorld(ownerName: string): Promise<OwnerWorld> {
   await stack.db('unit_events').insert([scan('scan-samples', [[30, 180, 700], [40, 180, 750], [50, 180, 720]]), { ...scan('scan-complete'), ts: new Date(at.getTime() + 1000) }]);
   const row = await stack.db('sites').where({ id: site.id }).first('survey');
   const survey = typeof row.survey === 'string' ? JSON.parse(row.survey) : row.survey;
-  return { ownerId: owner.id, siteId: site.id, unitIds, alarmId: alarmId as number, survey };
+  const due = new Date(at.getTime() + 3600_000);
+  const [ticketId] = await stack.db('tickets').insert({ site_id: site.id, unit_id: unitIds[0], kind: 'stall', severity: 'P3', title: 'Matrix ticket', state: 'new', opened_at: at, acknowledge_due_at: due, on_site_due_at: due, fix_due_at: due, availability_category: 'forced-outage', parts: '[]' });
+  return { ownerId: owner.id, siteId: site.id, unitIds, alarmId: alarmId as number, ticketId: ticketId as number, survey };
 }
 
 beforeAll(async () => {

@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 import { hashDeviceSecret } from '../../server/services/device-secret';
-import { demoSerials } from '../../shared/demo-world';
+import { DEMO_SITES, demoSerials } from '../../shared/demo-world';
 
 const script = (name: string) => fileURLToPath(new URL(`../../server/scripts/${name}`, import.meta.url));
 let t: TestDatabase;
@@ -69,6 +69,33 @@ describe('demo seeding is an explicit choice', () => {
     const serial = demoSerials()[0]!;
     const row = await t.db('units').where({ serial }).first();
     expect(row.device_secret_hash).toBe(hashDeviceSecret(secrets[serial]!));
+    // Ten sites of six owners, each owner with an owner account, every site with its zone and units.
+    const sites = await t
+      .db('sites')
+      .join('owners', 'owners.id', 'sites.owner_id')
+      .select('sites.id', 'sites.name', 'sites.time_zone', 'owners.name as owner');
+    expect(sites.map((x) => [x.name, x.owner, x.time_zone]).sort()).toEqual(DEMO_SITES.map((x) => [x.name, x.owner, x.time_zone]).sort());
+    expect(Number((await t.db('units').count({ n: '*' }))[0]!['n'])).toBe(48);
+    const wattlebank = sites.filter((x) => x.owner === 'Wattlebank Islands Energy Co-op').map((x) => x.id);
+    expect(await t.db('units').whereIn('site_id', wattlebank).orderBy('serial').pluck('serial')).toEqual([
+      'WKM-2401',
+      'WKM-2402',
+      'WKM-2403',
+      'WKM-2404',
+      'WKM-2405',
+      'WRF-2401',
+      'WRF-2402',
+      'WRF-2403',
+      'WRF-2404',
+    ]);
+    const stations = await t.db('units').where({ weather_station: true }).orderBy('serial').pluck('serial');
+    expect(stations).toEqual(
+      DEMO_SITES.filter((x) => !x.indoor)
+        .map((x) => `${x.code}-2401`)
+        .sort(),
+    );
+    const owners = await t.db('users').join('owners', 'owners.id', 'users.owner_id').where('users.role', 'owner').pluck('owners.name');
+    expect(owners.sort()).toEqual([...new Set(DEMO_SITES.map((x) => x.owner))].sort());
     // Seeding again leaves the data and the secrets alone.
     expect(run('migrate.ts', ['demo']).stdout).toMatch(/demo seed skipped/);
     expect(JSON.parse(readFileSync(file, 'utf8'))).toEqual(secrets);
