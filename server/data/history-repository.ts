@@ -1,5 +1,6 @@
+import { Readable } from 'node:stream';
 import type { Db } from './db';
-import { TELEMETRY_COLUMNS, type TelemetryRow } from './telemetry-repository';
+import { TELEMETRY_COLUMNS, type TelemetryRow, type WeatherRow } from './telemetry-repository';
 
 /** One unit's 15-minute rollup row as the history loader writes it (before the server has raw rows for that time). */
 export interface QuarterRow {
@@ -39,20 +40,35 @@ interface ProgressRow {
 }
 
 interface RawConnection {
-  query(sql: string, cb: (err: Error | null, res: unknown) => void): void;
-  escape(v: unknown): string;
+  query(q: { sql: string; infileStreamFactory?: () => Readable }, cb: (err: Error | null, res: unknown) => void): void;
 }
 
-const sqlTime = (d: Date) => `'${d.toISOString().slice(0, 23).replace('T', ' ')}'`;
-const sqlNumber = (x: number) => {
+const WEATHER_COLUMNS: (keyof WeatherRow)[] = ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'];
+const QUARTER_COLUMNS = ['unit_id', 'bucket', 'minutes', 'samples', 'poa_avg_wm2', 'poa_max_wm2', 'dc_power_avg_w', 'energy_wh'];
+const TIME_COLUMNS = new Set(['ts', 'received_at', 'bucket']);
+
+/** A finite number (JSON turns NaN into null, so a bad value must stop here, not become a zero). */
+function num(x: number): number {
   if (!Number.isFinite(x)) throw new RangeError(`not a finite number: ${x}`);
-  return String(x);
-};
+  return x;
+}
 
 /**
- * Bulk writes of the generated past. Rows go in as multi-row `INSERT IGNORE` statements with the values written into the
- * SQL text (numbers checked finite, strings escaped by the driver), several thousand rows per statement: the keys make a
- * re-run harmless. Reading the live tables stays with TelemetryRepository and the rollup code.
+ * One CSV field as LOAD DATA reads it (below): `\N` for NULL, times as epoch milliseconds (converted by the statement),
+ * finite numbers, quoted and escaped text.
+ */
+function csvField(v: unknown): string | number {
+  if (v === null || v === undefined) return '\\N';
+  if (v instanceof Date) return v.getTime();
+  if (typeof v === 'number') return num(v);
+  if (typeof v === 'boolean') return v ? 1 : 0;
+  return `"${String(v).replace(/[\\"]/g, (c) => `\\${c}`)}"`;
+}
+
+/**
+ * Bulk writes of the generated past: `LOAD DATA LOCAL INFILE … IGNORE` from CSV built in memory (streamed to the driver,
+ * no file), tens of thousands of rows per statement; IGNORE on the primary keys makes a re-run harmless. Reading the live
+ * tables stays with TelemetryRepository and the rollup code.
  */
 export class HistoryRepository {
   constructor(private readonly db: Db) {}
@@ -64,61 +80,64 @@ export class HistoryRepository {
     return row?.ts ? new Date(row.ts).getTime() : null;
   }
 
-  private async run(sql: string): Promise<number> {
+  /**
+   * Loads CSV lines (fields in `cols` order, times as epoch ms) into a table; returns how many rows were added (rows whose
+   * key exists are skipped).
+   */
+  private async load(table: string, cols: readonly string[], lines: string[]): Promise<number> {
+    if (!lines.length) return 0;
+    // The driver sends each chunk as one packet: chunks of a few thousand rows stay well under the packet limit.
+    const chunks: Buffer[] = [];
+    for (let i = 0; i < lines.length; i += 2000) chunks.push(Buffer.from(lines.slice(i, i + 2000).join('')));
+    const fields = cols.map((c) => (TIME_COLUMNS.has(c) ? `@${c}` : c)).join(',');
+    const times = cols.filter((c) => TIME_COLUMNS.has(c)).map((c) => `${c} = FROM_UNIXTIME(CAST(@${c} AS DECIMAL(16, 0)) / 1000)`);
     const conn = (await this.db.client.acquireConnection()) as RawConnection;
     try {
       return await new Promise<number>((resolve, reject) =>
-        conn.query(sql, (err, res) => (err ? reject(err) : resolve((res as { affectedRows?: number }).affectedRows ?? 0))),
+        conn.query(
+          {
+            // The session time zone is UTC (db.ts), so FROM_UNIXTIME gives UTC times.
+            sql: `LOAD DATA LOCAL INFILE 'history.csv' IGNORE INTO TABLE \`${table}\` CHARACTER SET utf8mb4
+                  FIELDS TERMINATED BY ',' OPTIONALLY ENCLOSED BY '"' ESCAPED BY '\\\\' LINES TERMINATED BY '\\n' (${fields})
+                  ${times.length ? `SET ${times.join(', ')}` : ''}`,
+            infileStreamFactory: () => Readable.from(chunks),
+          },
+          (err, res) => (err ? reject(err) : resolve((res as { affectedRows?: number }).affectedRows ?? 0)),
+        ),
       );
     } finally {
       await this.db.client.releaseConnection(conn);
     }
   }
 
-  private async escape(): Promise<(v: unknown) => string> {
-    const conn = (await this.db.client.acquireConnection()) as RawConnection;
-    const esc = conn.escape.bind(conn);
-    await this.db.client.releaseConnection(conn);
-    return esc;
+  /** Raw reports (key: unit, ts); returns the rows actually added. */
+  async insertTelemetry(rows: TelemetryRow[]): Promise<number> {
+    return this.load(
+      'telemetry',
+      TELEMETRY_COLUMNS,
+      rows.map((r) => `${TELEMETRY_COLUMNS.map((c) => csvField(r[c])).join(',')}\n`),
+    );
   }
 
-  /** Raw reports, `INSERT IGNORE` on (unit, ts); returns the rows actually added. */
-  async insertTelemetry(rows: TelemetryRow[], chunk = 4000): Promise<number> {
-    if (!rows.length) return 0;
-    const esc = await this.escape();
-    let added = 0;
-    for (let i = 0; i < rows.length; i += chunk) {
-      const values = rows
-        .slice(i, i + chunk)
-        .map(
-          (r) =>
-            `(${TELEMETRY_COLUMNS.map((c) => {
-              const v = r[c];
-              return v instanceof Date ? sqlTime(v) : typeof v === 'number' ? sqlNumber(v) : esc(v);
-            }).join(',')})`,
-        )
-        .join(',');
-      added += await this.run(`INSERT IGNORE INTO telemetry (${TELEMETRY_COLUMNS.join(',')}) VALUES ${values}`);
-    }
-    return added;
+  /** Weather station readings (key: site, ts); returns the rows actually added. */
+  async insertWeather(rows: WeatherRow[]): Promise<number> {
+    return this.load(
+      'weather',
+      WEATHER_COLUMNS,
+      rows.map((r) => `${WEATHER_COLUMNS.map((c) => csvField(r[c])).join(',')}\n`),
+    );
   }
 
-  /** 15-minute rollup rows of the rollup-level past, `INSERT IGNORE` on (unit, bucket): rows the server rolled up stay. */
-  async insertQuarters(rows: QuarterRow[], chunk = 5000): Promise<number> {
-    let added = 0;
-    for (let i = 0; i < rows.length; i += chunk) {
-      const values = rows
-        .slice(i, i + chunk)
-        .map(
-          (r) =>
-            `(${r.unitId},${sqlTime(r.bucket)},${[r.minutes, r.samples, r.poaAvgWm2, r.poaMaxWm2, r.dcPowerAvgW, r.energyWh].map(sqlNumber).join(',')})`,
-        )
-        .join(',');
-      added += await this.run(
-        `INSERT IGNORE INTO telemetry_15m (unit_id, bucket, minutes, samples, poa_avg_wm2, poa_max_wm2, dc_power_avg_w, energy_wh) VALUES ${values}`,
-      );
-    }
-    return added;
+  /** 15-minute rollup rows of the rollup-level past (key: unit, bucket): rows the server rolled up stay. */
+  async insertQuarters(rows: QuarterRow[]): Promise<number> {
+    return this.load(
+      'telemetry_15m',
+      QUARTER_COLUMNS,
+      rows.map(
+        (r) =>
+          `${num(r.unitId)},${r.bucket.getTime()},${num(r.minutes)},${num(r.samples)},${num(r.poaAvgWm2)},${num(r.poaMaxWm2)},${num(r.dcPowerAvgW)},${num(r.energyWh)}\n`,
+      ),
+    );
   }
 
   /** Removes rollup-level quarters of some units in [from, to) before their raw rows are rolled up there. */

@@ -385,7 +385,7 @@ export class DemoHistory {
     let weather: WeatherRow[] = [];
     const writer = new BoundedWriter(2);
     const flush = async (final: boolean) => {
-      if (raw.length >= 8000 || (final && raw.length)) {
+      if (raw.length >= 25_000 || (final && raw.length)) {
         const rows = raw;
         raw = [];
         await writer.add(async () => {
@@ -401,11 +401,11 @@ export class DemoHistory {
           counts.events += n;
         });
       }
-      if (weather.length >= 1000 || (final && weather.length)) {
+      if (weather.length >= 10_000 || (final && weather.length)) {
         const rows = weather;
         weather = [];
         await writer.add(async () => {
-          const n = (await this.telemetry.insertWeather(rows)).length;
+          const n = await this.repo.insertWeather(rows);
           counts.weather += n;
         });
       }
@@ -473,7 +473,7 @@ export class DemoHistory {
     let weather: WeatherRow[] = [];
     const writer = new BoundedWriter(2);
     const flush = async (final: boolean) => {
-      if (quarters.length >= 10_000 || (final && quarters.length)) {
+      if (quarters.length >= 50_000 || (final && quarters.length)) {
         const rows = quarters;
         quarters = [];
         await writer.add(async () => {
@@ -481,11 +481,11 @@ export class DemoHistory {
           counts.rollupRows += n;
         });
       }
-      if (weather.length >= 2000 || (final && weather.length)) {
+      if (weather.length >= 10_000 || (final && weather.length)) {
         const rows = weather;
         weather = [];
         await writer.add(async () => {
-          const n = (await this.telemetry.insertWeather(rows)).length;
+          const n = await this.repo.insertWeather(rows);
           counts.weather += n;
         });
       }

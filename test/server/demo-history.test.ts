@@ -140,6 +140,29 @@ describe('the demo history: first seeding', () => {
   });
 });
 
+describe('the history repository', () => {
+  it('bulk-loads times to the millisecond in UTC, NULLs as NULL, and skips rows whose key exists', async () => {
+    const repo = new HistoryRepository(b.db);
+    const siteId = ((await b.db('sites').first('id')) as { id: number }).id;
+    const row = {
+      site_id: siteId,
+      ts: new Date('2020-02-29T23:59:59.123Z'),
+      ghi_wm2: 1.5,
+      dhi_wm2: null,
+      air_temp_c: -2,
+      wind_ms: 3,
+      gust_ms: 4,
+    };
+    expect(await repo.insertWeather([row])).toBe(1);
+    expect(await repo.insertWeather([row, { ...row, ts: new Date('2020-02-29T23:59:59.124Z') }])).toBe(1);
+    const back = await b.db('weather').where('ts', '<', new Date('2021-01-01')).orderBy('ts');
+    expect(back.map((r: { ts: Date }) => new Date(r.ts).toISOString())).toEqual(['2020-02-29T23:59:59.123Z', '2020-02-29T23:59:59.124Z']);
+    expect(back[0]).toMatchObject({ dhi_wm2: null, air_temp_c: -2, ghi_wm2: 1.5 });
+    await expect(repo.insertWeather([{ ...row, ghi_wm2: Number.NaN }])).rejects.toThrow(/not a finite number/);
+    await b.db('weather').where('ts', '<', new Date('2021-01-01')).delete();
+  });
+});
+
 describe('the demo history: re-runs and restarts', () => {
   it('adds nothing when run again for the same now, nor when a window is loaded twice', async () => {
     const { history } = historyOn(a);
