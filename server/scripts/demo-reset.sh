@@ -11,6 +11,6 @@ started=0
 bash server/scripts/db.sh status >/dev/null 2>&1 || started=1
 bash server/scripts/db.sh start || exit 1
 rc=0
-node --import tsx server/scripts/migrate.ts reset && node --import tsx server/scripts/demo-history.ts fill || rc=1
+node --import tsx server/scripts/migrate.ts reset && node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts fill || rc=1
 [ "$started" = 1 ] && bash server/scripts/db.sh stop
 exit $rc

@@ -43,7 +43,7 @@ fi
 # The demo's past: the rollups of 13 months, the last day at full rate and the alarms of that past (first start), or the
 # gap since the last run; bulk-loaded, so it raises no current alarm. BW_DEMO_HISTORY_DAYS (default 7; 0 = none) sets
 # the full-rate days; the days after the first fill in the background, with progress on the admin page.
-node --import tsx server/scripts/demo-history.ts fill || exit 1
+node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts fill || exit 1
 
 # Own sessions: Ctrl-C reaches this script only, which then stops the children in order. The server runs under a
 # supervisor that starts it again if it ever dies (units store and forward meanwhile, and unacknowledged readings are resent).
@@ -52,7 +52,7 @@ children+=($!)
 for _ in $(seq 1 100); do curl -sf "http://$HOST:$PORT/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
 if ! kill -0 "${children[0]}" 2>/dev/null; then echo "[start] the server did not start (see above)"; exit 1; fi
 
-setsid node --import tsx server/scripts/demo-history.ts background &
+setsid node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts background &
 helpers+=($!)
 
 if [ -f simulator/main.ts ] && [ "${BW_SIMULATOR:-on}" != off ]; then
