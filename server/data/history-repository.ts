@@ -18,6 +18,8 @@ export interface QuarterRow {
 export interface HistoryProgress {
   id: number;
   plannedAt: Date;
+  /** Newest stored report when the fill was planned (null: first seeding). */
+  lastReportAt: Date | null;
   state: 'loading' | 'background' | 'done' | 'failed';
   daysTotal: number;
   daysDone: number;
@@ -30,6 +32,7 @@ export interface HistoryProgress {
 interface ProgressRow {
   id: number;
   planned_at: Date;
+  last_report_at: Date | null;
   state: HistoryProgress['state'];
   days_total: number;
   days_done: number;
@@ -170,15 +173,15 @@ export class HistoryRepository {
     return id!;
   }
 
-  async updateProgress(id: number, p: Partial<Omit<HistoryProgress, 'id' | 'updatedAt' | 'plannedAt'>>): Promise<void> {
+  async updateProgress(id: number, p: Partial<Omit<HistoryProgress, 'id' | 'updatedAt' | 'plannedAt' | 'lastReportAt'>>): Promise<void> {
     await this.db('demo_history')
       .where({ id })
       .update({ ...progressRow(p), updated_at: new Date() });
   }
 
-  /** Fills with full-rate days still to do (interrupted background work), oldest plan first. */
+  /** Fills not complete (a first phase stopped or failed, full-rate days still to do), oldest plan first. */
   async unfinished(): Promise<HistoryProgress[]> {
-    const rows: ProgressRow[] = await this.db('demo_history').whereIn('state', ['background', 'loading']).orderBy('id');
+    const rows: ProgressRow[] = await this.db('demo_history').whereIn('state', ['background', 'loading', 'failed']).orderBy('id');
     return rows.map(progressOf);
   }
 
@@ -192,6 +195,7 @@ export class HistoryRepository {
 function progressRow(p: Partial<Omit<HistoryProgress, 'id' | 'updatedAt'>>): Partial<ProgressRow> {
   const out: Partial<ProgressRow> = {};
   if (p.plannedAt !== undefined) out.planned_at = p.plannedAt;
+  if (p.lastReportAt !== undefined) out.last_report_at = p.lastReportAt;
   if (p.state !== undefined) out.state = p.state;
   if (p.daysTotal !== undefined) out.days_total = p.daysTotal;
   if (p.daysDone !== undefined) out.days_done = p.daysDone;
@@ -205,6 +209,7 @@ function progressOf(r: ProgressRow): HistoryProgress {
   return {
     id: r.id,
     plannedAt: new Date(r.planned_at),
+    lastReportAt: r.last_report_at ? new Date(r.last_report_at) : null,
     state: r.state,
     daysTotal: r.days_total,
     daysDone: r.days_done,

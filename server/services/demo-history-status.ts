@@ -6,7 +6,7 @@ export class DemoHistoryStatus {
   constructor(private readonly repo: HistoryRepository) {}
 
   async current(): Promise<DemoHistoryView> {
-    const p = (await this.repo.unfinished()).at(-1) ?? (await this.repo.latest());
+    const p = (await this.repo.unfinished()).filter((x) => x.state !== 'failed').at(-1) ?? (await this.repo.latest());
     if (!p) return { state: 'none', daysTotal: 0, daysDone: 0, message: 'no generated past', plannedAt: null, updatedAt: null };
     return {
       state: p.state,

@@ -274,6 +274,15 @@ export class DemoHistory {
   async fill(nowMs: number): Promise<{ plan: HistoryPlan | null; counts: LoadCounts; progressId?: number }> {
     await this.units.load();
     const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0 };
+    // A first phase that did not finish (stopped or failed) is done again first: its plan gives the same rows again, and
+    // the keys make what is already there harmless. Only then is the gap since its end measured.
+    for (const p of await this.repo.unfinished()) {
+      if (p.state !== 'loading' && p.state !== 'failed') continue;
+      const again = planHistory(p.plannedAt.getTime(), p.lastReportAt?.getTime() ?? null, this.o);
+      this.o.log(`history: resuming the fill planned for ${p.plannedAt.toISOString()}`);
+      if (again) await this.firstPhase(p.id, again, counts);
+      else await this.repo.updateProgress(p.id, { state: 'done', message: 'complete' });
+    }
     const lastMs = await this.repo.latestReportMs(this.unitIds());
     const plan = planHistory(nowMs, lastMs, this.o);
     if (!plan) {
@@ -283,6 +292,7 @@ export class DemoHistory {
     const bg = plan.backgroundFromMs < plan.backgroundToMs;
     const progressId = await this.repo.startProgress({
       plannedAt: new Date(nowMs),
+      lastReportAt: lastMs === null ? null : new Date(lastMs),
       state: 'loading',
       daysTotal: plan.daysTotal,
       daysDone: 0,
@@ -290,6 +300,14 @@ export class DemoHistory {
       backgroundTo: bg ? new Date(plan.backgroundToMs) : null,
       message: `loading the past ${lastMs === null ? 'of the demo' : `since ${new Date(lastMs).toISOString()}`}`,
     });
+    await this.firstPhase(progressId, plan, counts);
+    return { plan, counts, progressId };
+  }
+
+  /** The rollup-level past and the newest full-rate day of a plan, side by side, then the progress row says what is left. */
+  private async firstPhase(progressId: number, plan: HistoryPlan, counts: LoadCounts): Promise<void> {
+    const nowMs = plan.nowMs;
+    const bg = plan.backgroundFromMs < plan.backgroundToMs;
     try {
       // The two run side by side (each its own simulator process); the rollup-level days are summed as soon as they are in.
       const t0 = Date.now();
@@ -331,7 +349,6 @@ export class DemoHistory {
       await this.repo.updateProgress(progressId, { state: 'failed', message: `failed: ${(err as Error).message}` });
       throw err;
     }
-    return { plan, counts, progressId };
   }
 
   /** Fills the full-rate days left by earlier fills (interrupted ones too), newest day first; returns what was stored. */

@@ -244,4 +244,30 @@ describe('the demo history: determinism', () => {
     for (const serial of SERIALS) expect(await unitChecksum(b, serial)).toBe(firstChecksums[serial]);
     expect(await counts(b)).toEqual(firstCounts);
   }, 120_000);
+
+  it('does a first phase again that was stopped before it finished, then measures the gap after it', async () => {
+    const repo = new HistoryRepository(b.db);
+    const ids: number[] = await b.db('units').whereIn('serial', SERIALS).pluck('id');
+    const lastMs = (await repo.latestReportMs(ids))!;
+    // As a fill stopped half-way leaves it: planned, loading, nothing stored yet.
+    const id = await repo.startProgress({
+      plannedAt: new Date(T + HOUR),
+      lastReportAt: new Date(lastMs),
+      state: 'loading',
+      daysTotal: 1,
+      daysDone: 0,
+      backgroundFrom: null,
+      backgroundTo: null,
+      message: 'loading',
+    });
+    const lines: string[] = [];
+    expect((await historyOn(b, lines).history.fill(T + HOUR + 2000)).plan).toBeNull();
+    expect(lines[0]).toBe(`history: resuming the fill planned for ${new Date(T + HOUR).toISOString()}`);
+    expect(lines.at(-1)).toBe('history: no gap to fill');
+    expect(((await b.db('demo_history').where({ id }).first()) as { state: string }).state).toBe('done');
+    for (const unitId of ids) {
+      const r = (await b.db('telemetry').where({ unit_id: unitId }).max({ ts: 'ts' }).first()) as { ts: Date };
+      expect(new Date(r.ts).getTime()).toBeGreaterThan(T + HOUR - 10_000);
+    }
+  });
 });
