@@ -151,30 +151,41 @@ function unitLimits(u: FleetSiteSpec['units'][number]): UnitLimits {
 }
 
 /**
- * The sky of a site at each 15-minute slot of its template days: the scenario world stepped slot by slot (its processes
- * advanced one minute per slot, so cloud and wind states are drawn from the same processes), the best reachable
- * irradiance per distinct unit travel. Night slots outdoors need no sky: zero irradiance, the scenario's air temperature
- * cycle and mean wind.
+ * The sky of a site at each 15-minute slot of its template days: the scenario world sampled at every other slot's
+ * midpoint (its processes advanced one minute per sample, so cloud and wind states are drawn from the same processes),
+ * the slot between two samples their mean; the best reachable irradiance per distinct unit travel. Night samples outdoors
+ * need no sky: zero irradiance, the scenario's air temperature cycle and mean wind.
  */
 function templateSkies(site: FleetSiteSpec, days: number[], rng: Rng): SlotSky[][] {
   const world = createScenarioWorld(site.scenario, site.site, rng);
   const parts = SCENARIOS[site.scenario]!.parts(site.site);
   const limits = new Map(site.units.map((u) => [limitsKey(unitLimits(u)), unitLimits(u)]));
   const loc = { latitudeDeg: site.site.latitudeDeg, longitudeDeg: site.site.longitudeDeg, elevationM: site.site.elevationM };
-  return days.map((dayMs) =>
-    Array.from({ length: 96 }, (_, j) => {
-      const t = dayMs + j * QUARTER_MS + QUARTER_MS / 2;
-      const best = new Map<string, number>();
-      if (!site.site.indoor && solarPosition(loc, t).elevationDeg <= -1) {
-        for (const key of limits.keys()) best.set(key, 0);
-        const airTempC = airTemperatureC(parts.airTemp.meanC, parts.airTemp.amplitudeC, site.site.longitudeDeg, t);
-        return { best, ghiWm2: 0, dhiWm2: 0, airTempC, windMs: parts.wind.meanMs, gustMs: parts.wind.meanMs * 1.4 };
-      }
-      const c = world.at(t, 60);
-      for (const [key, l] of limits) best.set(key, bestReachableOrientationWith((n) => c.field.irradiance(n), l).wm2);
-      return { best, ...c.weather };
-    }),
-  );
+  const sample = (t: number): SlotSky => {
+    const best = new Map<string, number>();
+    if (!site.site.indoor && solarPosition(loc, t).elevationDeg <= -1) {
+      for (const key of limits.keys()) best.set(key, 0);
+      const airTempC = airTemperatureC(parts.airTemp.meanC, parts.airTemp.amplitudeC, site.site.longitudeDeg, t);
+      return { best, ghiWm2: 0, dhiWm2: 0, airTempC, windMs: parts.wind.meanMs, gustMs: parts.wind.meanMs * 1.4 };
+    }
+    const c = world.at(t, 60);
+    for (const [key, l] of limits) best.set(key, bestReachableOrientationWith((n) => c.field.irradiance(n), l).wm2);
+    return { best, ...c.weather };
+  };
+  const mean = (a: SlotSky, b: SlotSky): SlotSky => ({
+    best: new Map([...a.best].map(([k, v]) => [k, (v + b.best.get(k)!) / 2])),
+    ghiWm2: (a.ghiWm2 + b.ghiWm2) / 2,
+    dhiWm2: (a.dhiWm2 + b.dhiWm2) / 2,
+    airTempC: (a.airTempC + b.airTempC) / 2,
+    windMs: (a.windMs + b.windMs) / 2,
+    gustMs: (a.gustMs + b.gustMs) / 2,
+  });
+  return days.map((dayMs) => {
+    const samples = Array.from({ length: 48 }, (_, i) => sample(dayMs + 2 * i * QUARTER_MS + QUARTER_MS / 2));
+    return Array.from({ length: 96 }, (_, j) =>
+      j % 2 === 0 ? samples[j / 2]! : mean(samples[(j - 1) / 2]!, samples[(j + 1) / 2] ?? samples[(j - 1) / 2]!),
+    );
+  });
 }
 
 /** Fault windows of one unit over a time range: each kind a Poisson process at its rate, durations as the fleet draws them. */
@@ -221,6 +232,7 @@ export function rollupModelHistory(
         site: s,
         key: limitsKey(unitLimits(u)),
         ratedWp: u.ratedPowerWp ?? 420,
+        stowGustMs: u.stowGustMs ?? 18,
         perMinute: 60 / (u.controller?.reportIntervalS ?? 5),
         faults: faultWindows(unitPlan, fromMs, toMs, rng.fork(`faults:${u.serial}`)),
       };
@@ -267,7 +279,9 @@ export function rollupModelHistory(
       }
       const minutes = Math.max(0, 15 - Math.round(Math.min(QUARTER_MS, downMs) / MINUTE_MS));
       if (minutes === 0) continue;
-      const poa = Math.max(0, lerp(a.best.get(u.key)!, b.best.get(u.key)!, x) * factor);
+      // A unit in wind stow lies flat (tilt 0): it gets what a horizontal sensor on site reads.
+      const onPlane = (t: SlotSky) => (t.gustMs > u.stowGustMs ? t.ghiWm2 : t.best.get(u.key)!);
+      const poa = Math.max(0, lerp(onPlane(a), onPlane(b), x) * factor);
       const moduleC = lerp(a.airTempC, b.airTempC, x) + poa * NOCT_RISE_K_PER_WM2;
       const dc = Math.max(0, ((u.ratedWp * poa) / 1000) * (1 + TEMP_COEFF_PER_K * (moduleC - 25)));
       quarters.push({
