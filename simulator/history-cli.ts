@@ -1,7 +1,8 @@
 /**
  * The demo fleet's past as a stream (no broker): what its units stored and forward, for the server's history loader
- * (server/scripts/demo-history.ts) to bulk-load. One JSON object per line on stdout:
- *   { "k": "m", "serial", "leaf", "payload", "sentMs" }   a message a unit sent (full rate)
+ * (server/scripts/demo-history.ts) to bulk-load. One JSON object per line on stdout (shared/contracts/history-stream.ts):
+ *   { "k": "t", "serial", "sentMs", "r": [seq, ts, …] }    a report a unit sent (full rate; TELEMETRY_ROW_FIELDS order)
+ *   { "k": "m", "serial", "leaf", "payload", "sentMs" }   another message a unit sent (events, weather; full rate)
  *   { "k": "q", "r": [serial, bucketMs, minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh] }
  *                                                           a unit's 15-minute interval (rollup level; W/m² to 0.1, W to
  *                                                           0.01, Wh to 0.001)
@@ -13,6 +14,7 @@
  *     [--serials A,B,…]   (only these units; default the whole demo fleet)
  */
 import { parseArgs } from 'node:util';
+import { TELEMETRY_ROW_FIELDS } from '../shared/contracts/history-stream';
 import { parseInstant } from '../shared/solar-position';
 import { demoFleetSites } from './demo-fleet';
 import { fullRateHistory, HISTORY_FAULTS, rollupModelHistory } from './history';
@@ -71,8 +73,12 @@ const sites = demoFleetSites()
 const truth =
   values.mode === 'full'
     ? fullRateHistory(sites, { fromMs, toMs, seed, faults }, (batch) => {
-        for (const { message, sentMs } of batch)
-          line({ k: 'm', serial: message.serial, leaf: message.leaf, payload: message.payload, sentMs });
+        for (const { message, sentMs } of batch) {
+          if (message.leaf === 'telemetry') {
+            const t = message.payload;
+            line({ k: 't', serial: message.serial, sentMs, r: TELEMETRY_ROW_FIELDS.map((f) => t[f]) });
+          } else line({ k: 'm', serial: message.serial, leaf: message.leaf, payload: message.payload, sentMs });
+        }
         messages += batch.length;
       })
     : rollupModelHistory(sites, { fromMs, toMs, seed, faults }, (qs, ws) => {

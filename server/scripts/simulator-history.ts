@@ -2,7 +2,8 @@ import { spawn } from 'node:child_process';
 import { dirname, resolve } from 'node:path';
 import { createInterface } from 'node:readline';
 import { fileURLToPath } from 'node:url';
-import type { HistoryLine, HistoryRequest, HistorySource } from '../services/demo-history';
+import type { HistoryLine } from '../../shared/contracts/history-stream';
+import type { HistoryRequest, HistorySource } from '../services/demo-history';
 
 const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 

@@ -13,6 +13,7 @@
  *    clear delay, at the latest at `nowMs`).
  */
 import type { AlarmKind } from '../../shared/contracts/alarms';
+import { telemetryOfRow, type HistoryLine } from '../../shared/contracts/history-stream';
 import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
 import type { AlarmRepository } from '../data/alarm-repository';
 import type { HistoryProgress, HistoryRepository, QuarterRow } from '../data/history-repository';
@@ -36,18 +37,6 @@ const QUARTER_MS = 15 * MINUTE_MS;
 const DAY_MS = 86_400_000;
 /** A gap shorter than this is no gap: units report every few seconds [ms]. */
 const MIN_GAP_MS = 10_000;
-
-/** One line of the simulator's history stream (simulator/history-cli.ts). */
-export type HistoryLine =
-  | { k: 'm'; serial: string; leaf: 'telemetry' | 'events' | 'weather'; payload: unknown; sentMs: number }
-  | {
-      k: 'q';
-      /** serial, bucket start [ms], minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh */
-      r: [string, number, number, number, number, number, number, number];
-    }
-  | { k: 'w'; serial: string; tsMs: number; ghiWm2: number; dhiWm2: number; airTempC: number; windMs: number; gustMs: number }
-  | { k: 'truth'; serial: string; fault: string; start: string; end: string | null }
-  | { k: 'end'; messages: number; quarters: number; seconds: number };
 
 export interface HistoryRequest {
   mode: 'full' | 'rollups';
@@ -436,11 +425,11 @@ export class DemoHistory {
       faults: this.o.faults,
     })) {
       if (line.k === 'truth') truth.push(line);
-      if (line.k !== 'm') continue;
+      if (line.k !== 'm' && line.k !== 't') continue;
       const u = bySerial.get(line.serial);
       if (!u) continue;
-      if (line.leaf === 'telemetry') {
-        const t = line.payload as Telemetry;
+      if (line.k === 't') {
+        const t = telemetryOfRow(line.r);
         const tsMs = Date.parse(t.ts);
         raw.push(telemetryRowOf(u.id, t, tsMs, Math.max(tsMs, line.sentMs)));
         // One report a minute is kept for the evidence of the window's alarms.
