@@ -5,6 +5,11 @@ import { localDate, utcWindowOfLocalDate } from './local-time';
 
 const MINUTE = 60_000;
 const QUARTER = 15 * MINUTE;
+/** Longest run of consecutive local dates summed from one read of the quarter-hour rows. */
+const DAYS_PER_READ = 14;
+
+/** The calendar date after `date` (YYYY-MM-DD). */
+const nextDate = (date: string) => new Date(Date.parse(`${date}T00:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
 
 /**
  * Keeps the 1-minute, 15-minute and daily rollups current. Stored rows mark their buckets dirty; a pass recomputes
@@ -97,20 +102,30 @@ export class RollupWorker {
         set.add(id);
       }
     }
-    const daily: { unitId: number; localDate: string; energyWh: number; minutes: number }[] = [];
-    for (const [d, ids] of days) {
-      // Each unit's quarters are cut to its own zone's day.
-      const { from, to } = utcWindowOfLocalDate(d);
-      const sums = new Map<number, { energyWh: number; minutes: number }>([...ids].map((id) => [id, { energyWh: 0, minutes: 0 }]));
-      for (const r of await this.repo.quartersBetween([...ids], from, to)) {
-        if (dateOf(r.bucket.getTime(), r.unitId) !== d) continue;
-        const sum = sums.get(r.unitId)!;
+    // Runs of consecutive dates (up to DAYS_PER_READ) share one read of their quarters; each unit's quarters are cut to
+    // its own zone's days.
+    const dates = [...days.keys()].sort();
+    for (let i = 0; i < dates.length;) {
+      let j = i;
+      while (j + 1 < dates.length && j + 1 - i < DAYS_PER_READ && nextDate(dates[j]!) === dates[j + 1]) j++;
+      const run = dates.slice(i, j + 1);
+      i = j + 1;
+      const sums = new Map<string, { unitId: number; localDate: string; energyWh: number; minutes: number }>();
+      const ids = new Set<number>();
+      for (const d of run)
+        for (const id of days.get(d)!) {
+          ids.add(id);
+          sums.set(`${id}|${d}`, { unitId: id, localDate: d, energyWh: 0, minutes: 0 });
+        }
+      const rows = await this.repo.quartersBetween([...ids], utcWindowOfLocalDate(run[0]!).from, utcWindowOfLocalDate(run.at(-1)!).to);
+      for (const r of rows) {
+        const sum = sums.get(`${r.unitId}|${dateOf(r.bucket.getTime(), r.unitId)}`);
+        if (!sum) continue;
         sum.energyWh += r.energyWh;
         sum.minutes += r.minutes;
       }
-      for (const [id, sum] of sums) daily.push({ unitId: id, localDate: d, ...sum });
+      await this.repo.upsertDaily([...sums.values()]);
     }
-    await this.repo.upsertDaily(daily);
   }
 
   private async pass(includeOpen: boolean): Promise<void> {
