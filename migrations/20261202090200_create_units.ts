@@ -15,7 +15,8 @@ export async function up(knex: Knex): Promise<void> {
     t.double('plan_y_m').notNullable().defaultTo(0);
     t.string('firmware', 32).notNullable();
     t.boolean('disabled').notNullable().defaultTo(false);
-    // bcrypt hash of the MQTT device secret; the secret itself is shown once and never stored.
+    // SHA-256 of the MQTT device secret, stored as `sha256:<hex>` (server/services/device-secret.ts: the secret is 32 random
+    // bytes, so a fast hash suffices); the secret itself is shown once and never stored.
     t.string('device_secret_hash', 100).notNullable();
     t.timestamp('created_at', { precision: 3 }).notNullable().defaultTo(knex.fn.now(3));
     t.index(['site_id']);

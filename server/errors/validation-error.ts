@@ -1,8 +1,12 @@
 import type { z } from 'zod';
 import { badRequest, type AppError } from './app-error';
 
-/** Turns zod issues into a 400 naming every bad field (unknown fields included). */
-export function validationError(error: z.ZodError, what = 'The request'): AppError {
+/**
+ * Turns zod issues into a 400 naming every bad field (unknown fields included). `fields` stays keyed by path for
+ * programs; the message names the fields for people, by `fieldName` when given (e.g. "Facade 1, reflectance" for
+ * `reflectors.0.reflectance`), else by path.
+ */
+export function validationError(error: z.ZodError, what = 'The request', fieldName: (path: string) => string = (p) => p): AppError {
   const fields: Record<string, string> = {};
   for (const issue of error.issues) {
     if (issue.code === 'unrecognized_keys') {
@@ -11,5 +15,7 @@ export function validationError(error: z.ZodError, what = 'The request'): AppErr
     }
     fields[issue.path.join('.') || '(body)'] ??= issue.message;
   }
-  return badRequest(`${what} has ${Object.keys(fields).length} invalid field(s): ${Object.keys(fields).join(', ')}.`, fields);
+  const paths = Object.keys(fields);
+  const names = paths.map((p) => (p === '(body)' ? p : fieldName(p)));
+  return badRequest(`${what} has ${paths.length} invalid field(s): ${names.join('; ')}.`, fields);
 }

@@ -7,6 +7,7 @@
  * are used: daylight, enough light on the detector, and model and reference cell agreeing (so clouds passing between
  * report and model, or an unsurveyed obstruction, are left out). The median over a window smooths what remains.
  */
+import { detectorWords } from '../../shared/contracts/plain-words';
 import type { Telemetry } from '../../shared/contracts/wire';
 import type { HealthSettings } from './health-settings';
 import type { SiteModel } from './site-model';
@@ -82,17 +83,18 @@ export class DriftDetector {
     );
     if (worst.dev > s.driftTolerance) {
       const name = DETECTORS[worst.i]!;
+      const words = detectorWords(name);
       const v = medians[worst.i]!;
       const kind = v === Infinity ? 'saturated' : v < s.deadFraction ? 'dead' : 'drifting';
       return judged(true, () => ({
         severity: kind === 'drifting' ? 'P4' : 'P3',
         message:
           kind === 'saturated'
-            ? `Detector ${name} reads at full scale (${round1(reading(name))} W/m²).`
+            ? `The ${words} reads at full scale (${round1(reading(name))} W/m²).`
             : kind === 'dead'
-              ? `Detector ${name} reads ${round1(v * 100)} % of what it should (dead or disconnected).`
-              : `Detector ${name} reads ${round1(v * 100)} % of what it should where the unit points (gain drift ${round1((v - 1) * 100)} %); the unit balances on a skewed pair and points off its peak.`,
-        advice: `Clean and inspect the ${name} detector and its connector; recalibrate the pair or replace the detector. Until then the unit tracks with an offset.`,
+              ? `The ${words} reads ${round1(v * 100)} % of what it should (dead or disconnected).`
+              : `The ${words} reads ${round1(v * 100)} % of what it should where the unit points (gain drift ${round1((v - 1) * 100)} %); the unit balances on a skewed pair and points off its peak.`,
+        advice: `Clean and inspect the ${words} and its connector; recalibrate the pair or replace the detector. Until then the unit tracks with an offset.`,
         evidence: {
           readings: readingsSnapshot(t),
           modelled: Object.fromEntries(DETECTORS.map((d) => [d, round1(modelled(d))])),

@@ -95,7 +95,7 @@ export class HuntingDetector {
         severity: 'P3',
         message: `${round1(st.reversalsPerHour)} reversals per hour over the last ${round1(st.spanMin)} min: ${round1(st.pathDeg)}° travelled for ${round1(st.netDeg)}° of net motion.`,
         advice:
-          'Lower the gain or widen the deadband (configure), and check the detectors for a loose mount or intermittent reading; hunting wears the drive.',
+          'Lower the gain or widen the deadband (New settings on the unit page), and check the detectors for a loose mount or intermittent reading; hunting wears the drive.',
         evidence: { readings: readingsSnapshot(t), ...Object.fromEntries(Object.entries(st).map(([k, v]) => [k, round1(v)])) },
       }));
     }

@@ -65,7 +65,7 @@ export class SoilingDetector {
     if (loss > s.soilingLossThreshold) {
       return judged(true, () => ({
         severity: 'P4',
-        message: `Output per in-plane irradiance is ${round1(loss * 100)} % below this unit's clean reference (temperature-corrected ${round1(current)} vs ${round1(reference)} W per kW/m²).`,
+        message: `DC power for the light it gets is ${round1(loss * 100)} % below this unit's clean reference: corrected for temperature, it makes ${round1(current)} W for every 1000 W/m² in the plane of its modules, against ${round1(reference)} W when clean.`,
         advice:
           'Inspect and clean the modules (and the reference cell); if cleaning does not restore it, check strings, connectors and the inverter for degradation or a fault.',
         evidence: {

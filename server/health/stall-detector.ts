@@ -84,8 +84,8 @@ export class StallDetector {
     if (unitFault || stalledAxes.length) {
       return judged(true, () => ({
         severity: duringStow ? 'P1' : 'P2',
-        message: `${stalledAxes.length ? stalledAxes.map((x) => `${x} axis: ${u.axes[x].lastWhy}`).join('; ') : 'drive fault'}${unitFault ? ` (unit reports ${u.faultCode})` : ''}.`,
-        advice: `${duringStow ? 'The site is in a wind stow: keep people away. ' : ''}Check the drive, gearbox and limit switches for obstruction or wear; a remote goto can confirm, but put the unit on hold before anyone touches it.`,
+        message: `${stalledAxes.length ? stalledAxes.map((x) => `${x} axis: ${u.axes[x].lastWhy}`).join('; ') : 'drive fault'}${unitFault ? ` (the unit reports fault code ${u.faultCode})` : ''}.`,
+        advice: `${duringStow ? 'The site is in a wind stow: keep people away. ' : ''}Check the drive, gearbox and limit switches for obstruction or wear; a remote “Go to orientation” command can confirm, but put the unit on hold before anyone touches it.`,
         evidence: { readings: readingsSnapshot(t), axes: stalledAxes, unitFaultCode: u.faultCode, duringStow },
       }));
     }

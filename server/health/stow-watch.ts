@@ -5,6 +5,7 @@
  * limit and ends once gusts have stayed below it for `stowReleaseMin`. Units on maintenance hold are exempt (the crew
  * holds them; the alarm evidence of the site says so).
  */
+import { modePhrase } from '../../shared/contracts/plain-words';
 import type { Telemetry, Weather } from '../../shared/contracts/wire';
 import type { HealthSettings } from './health-settings';
 import { judged, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
@@ -45,7 +46,7 @@ export class StowWatch {
     const since = st.demandSinceMs;
     return judged(true, () => ({
       severity: 'P1',
-      message: `Not stowed ${round1((atMs - since) / 60_000)} min after gusts of ${round1(st.peakGustMs)} m/s (limit ${s.stowGustMs} m/s): tilt ${round1(t.tiltDeg)}°, mode ${t.mode}.`,
+      message: `Not stowed ${round1((atMs - since) / 60_000)} min after gusts of ${round1(st.peakGustMs)} m/s (limit ${s.stowGustMs} m/s): tilt ${round1(t.tiltDeg)}°, ${modePhrase(t.mode)}.`,
       advice:
         'Keep everyone clear of the unit. Check its drive and power; send a stow if the unit answers, else make it safe on site once the wind allows.',
       evidence: {

@@ -41,7 +41,8 @@ export interface AlarmRouteDeps {
  *   GET  /units/:id/scans/latest[?commandId]   the unit's scan rebuilt: measured maximum, local maxima, model, goto offer
  *   GET  /sites/:id/health-settings            defaults, the site's overrides, effective values
  *   PUT  /sites/:id/health-settings            engineer, admin: replaces the site's overrides
- *   POST /health/run { from, to, unitIds? }    engineer, technician, admin: the alarms the detectors raise over stored data
+ *   POST /detectors/run { from, to, unitIds? } engineer, technician, admin: the alarms the detectors raise over stored data
+ *   POST /health/run                           the old name of /detectors/run: 308 there (`/api/health` is the liveness check)
  */
 export function alarmRoutes(d: AlarmRouteDeps): Router {
   const r = Router();
@@ -75,8 +76,14 @@ export function alarmRoutes(d: AlarmRouteDeps): Router {
     );
   });
 
-  r.post('/health/run', requireRole('runHealth'), async (req, res) => {
+  r.post('/detectors/run', requireRole('runDetectors'), async (req, res) => {
     res.json(await d.replay.runRange(callerOf(req), parse(runBody, req.body)));
+  });
+
+  // The route's old name, beside the liveness check `/api/health` it had nothing to do with: a permanent redirect that
+  // keeps the method and body, so older scripts go on working (the new route checks the role).
+  r.post('/health/run', (_req, res) => {
+    res.redirect(308, '/api/detectors/run');
   });
   return r;
 }

@@ -5,6 +5,7 @@ import type { SiteModelService } from '../services/site-model-service';
 import { validationError } from '../errors/validation-error';
 import { callerOf, requireRole } from './access';
 import { surveySchema } from '../../shared/contracts/survey';
+import { surveyFieldWords } from '../../shared/contracts/plain-words';
 import { idParam, parse } from './validation';
 
 /** The site survey (what a site sees) — read by every role in scope, edited by admins and engineers. */
@@ -19,7 +20,7 @@ export function siteModelRoutes(admin: AdminService, model: SiteModelService): R
     const site = await admin.getSite(callerOf(req), id(req.params));
     // The body as sent (no empty-object default): a missing survey is named as such.
     const body = surveySchema.safeParse(req.body);
-    if (!body.success) throw validationError(body.error, 'The survey');
+    if (!body.success) throw validationError(body.error, 'The survey', surveyFieldWords);
     res.json(await model.saveSurvey(callerOf(req), site.id, body.data as SiteSurvey));
   });
   return r;

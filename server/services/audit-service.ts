@@ -1,4 +1,5 @@
 import type { AuditLogEntry, AuditPage } from '../../shared/contracts/audit';
+import { alarmKindWords } from '../../shared/contracts/plain-words';
 import type { AuditRepository, StoredAuditEntry, TargetNames } from '../data/audit-repository';
 import { badRequest } from '../errors/app-error';
 import type { Caller } from './caller';
@@ -40,7 +41,8 @@ function labelOf(target: string | null, names: TargetNames): string | null {
     case 'alarm': {
       const a = names.alarms.get(t.id);
       if (!a) return missing;
-      return a.serial ? `Alarm on ${a.serial} (${a.kind})` : `Alarm at ${a.siteName} (${a.kind})`;
+      const kind = alarmKindWords(a.kind).toLowerCase();
+      return a.serial ? `Alarm on ${a.serial} (${kind})` : `Alarm at ${a.siteName} (${kind})`;
     }
   }
 }

@@ -5,6 +5,7 @@ import type { HolderKind, HoldView, UnitHolds } from '../../shared/contracts/hol
 import type { Command, CommandAck } from '../../shared/contracts/wire';
 import { HOLD_COMMANDS as HOLD_KINDS, MOTION_COMMANDS, WIRE_VERSION, type CommandKind } from '../../shared/contracts/wire-format';
 import { may } from '../../shared/contracts/permissions';
+import { commandWords } from '../../shared/contracts/plain-words';
 import { AppError, badRequest, forbidden, notFound } from '../errors/app-error';
 import type { CommandStore, CommandTx, StoredCommand } from '../data/command-repository';
 import type { Caller } from './caller';
@@ -201,7 +202,10 @@ export class CommandService {
     if (req.holdId !== undefined && req.kind !== 'release-hold') misplaced['holdId'] = 'Only for release-hold.';
     if (req.reason !== undefined && req.kind !== 'release-hold') misplaced['reason'] = 'Only for release-hold.';
     if (Object.keys(misplaced).length)
-      throw badRequest(`Field(s) ${Object.keys(misplaced).join(', ')} do not belong to ${req.kind}.`, misplaced);
+      throw badRequest(
+        `Field(s) ${Object.keys(misplaced).join(', ')} do not belong to the command “${commandWords(req.kind)}”.`,
+        misplaced,
+      );
     if (req.kind === 'goto' && (req.tiltDeg === undefined || req.azimuthDeg === undefined)) {
       throw badRequest('Go to needs a tilt and an azimuth.', {
         ...(req.tiltDeg === undefined ? { tiltDeg: 'Required for go to.' } : {}),

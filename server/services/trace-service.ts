@@ -1,4 +1,5 @@
 import type { Unit } from '../../shared/contracts/api';
+import { eventWords, UNIT_MODE_WORDS } from '../../shared/contracts/plain-words';
 import {
   MAX_CSV_DAYS,
   TRACE_QUANTITIES,
@@ -188,9 +189,11 @@ function parseBody(body: unknown): Record<string, unknown> {
   return (body ?? {}) as Record<string, unknown>;
 }
 
+/** An event in words: "Mode changed → Scanning", "Fault · TILT_DRIVE · …" (a fault code stays the unit's own). */
 function eventText(kind: string, b: Record<string, unknown>): string {
-  const parts = [kind.replace(/-/g, ' ')];
-  if (typeof b['mode'] === 'string') parts.push(`→ ${b['mode']}`);
+  const parts = [eventWords(kind)];
+  if (typeof b['mode'] === 'string')
+    parts[0] += ` → ${(UNIT_MODE_WORDS as Partial<Record<string, { label: string }>>)[b['mode']]?.label ?? 'another mode'}`;
   if (typeof b['code'] === 'string') parts.push(String(b['code']));
   if (typeof b['message'] === 'string') parts.push(String(b['message']));
   return parts.join(' · ');

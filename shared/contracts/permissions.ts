@@ -15,7 +15,7 @@ export const PERMISSIONS = {
   acknowledgeAlarms: ['technician', 'engineer', 'admin'],
   editHealthSettings: ['engineer', 'admin'],
   /** Run the detectors on demand over stored data. */
-  runHealth: ['engineer', 'technician', 'admin'],
+  runDetectors: ['engineer', 'technician', 'admin'],
   editSurvey: ['admin', 'engineer'],
   /** Ingest, broker and rollup counters. */
   readMetrics: ['admin', 'engineer', 'technician'],
@@ -23,6 +23,8 @@ export const PERMISSIONS = {
   readTraces: ['admin', 'engineer', 'technician'],
   /** A site's modelled landscape and its day of hours (the API). */
   readLandscape: ['admin', 'engineer', 'technician', 'crew'],
+  /** How the model got its numbers (clear-sky model, turbidity, measured or modelled magnitudes): engineers' detail. */
+  readModelDetails: ['admin', 'engineer'],
   /** The landscape screen. */
   openLandscape: ['admin', 'engineer'],
   /** The fleet board (live units). */
@@ -31,12 +33,19 @@ export const PERMISSIONS = {
   openTickets: ['technician', 'engineer', 'admin'],
   /** Move tickets through their lifecycle (the ticket service checks who may make which move). */
   moveTickets: ['technician', 'engineer', 'admin', 'crew'],
+  /** A crew member's own list of assigned tickets (their landing page). */
+  openMyWork: ['crew'],
   /** Owners read their own sites' tickets only. */
   readTickets: ROLES,
   /** Progress of the demo's generated past (the admin page's line). */
   readDemoHistory: ['admin'],
   readAlarms: ROLES,
   readSites: ROLES,
+  /**
+   * The unit page. Owners get it read-only for units of their own sites (live state, the last hour, alarms): the API
+   * scopes every unit read to the caller's owner, and the page shows no commands, settings or survey to them.
+   */
+  openUnitPage: ROLES,
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;

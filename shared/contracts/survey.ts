@@ -49,13 +49,23 @@ export const surveySchema = z.strictObject({
   skyType: skyTypeSchema,
   horizon: z
     .array(
-      z.tuple([z.number().min(0).max(359.999999), z.number().min(0).max(90)], {
-        error: 'must be a pair [azimuthDeg 0…360, elevationDeg 0…90]',
-      }),
+      z.tuple(
+        [
+          z
+            .number({ error: 'azimuth must be a number' })
+            .min(0, 'azimuth must be from 0 to under 360°')
+            .max(359.999999, 'azimuth must be from 0 to under 360°'),
+          z
+            .number({ error: 'elevation must be a number' })
+            .min(0, 'elevation must be from 0 to 90°')
+            .max(90, 'elevation must be from 0 to 90°'),
+        ],
+        { error: 'must be a pair [azimuth 0…360°, elevation 0…90°]' },
+      ),
     )
-    .max(720)
+    .max(720, 'may have at most 720 points')
     .refine((h) => h.every((p, i) => i === 0 || p[0] >= h[i - 1]![0]), 'must be sorted by azimuth'),
-  reflectors: z.array(reflectorSchema).max(20),
-  lamps: z.array(lampSchema).max(50),
+  reflectors: z.array(reflectorSchema).max(20, 'may have at most 20 facades'),
+  lamps: z.array(lampSchema).max(50, 'may have at most 50 lamps'),
 });
 export type SiteSurvey = z.infer<typeof surveySchema>;

@@ -3,6 +3,7 @@ import { Router, Routes } from '@angular/router';
 import { Session } from './auth/session';
 import { authGuard } from './auth/auth-guard';
 import { roleGuard } from './auth/role-guard';
+import { rolesWith } from '../../shared/contracts/permissions';
 import { rolesFor } from './shell/nav-items';
 
 export const routes: Routes = [
@@ -16,7 +17,7 @@ export const routes: Routes = [
     canActivate: [authGuard],
     loadComponent: () => import('./shell/shell').then((m) => m.Shell),
     children: [
-      // Staff land on the fleet board; owners on their sites.
+      // Crews land on their work, the control room on the fleet board, owners on their sites.
       {
         path: '',
         pathMatch: 'full',
@@ -25,6 +26,7 @@ export const routes: Routes = [
           async () => {
             const router = inject(Router);
             const me = await inject(Session).restore();
+            if (me && rolesFor('/my-work').includes(me.role)) return router.createUrlTree(['/my-work']);
             return router.createUrlTree([me && rolesFor('/fleet').includes(me.role) ? '/fleet' : '/sites']);
           },
         ],
@@ -44,10 +46,32 @@ export const routes: Routes = [
         loadComponent: () => import('./alarms/alarm-board').then((m) => m.AlarmBoard),
       },
       {
+        path: 'my-work',
+        title: 'My work · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/my-work'), mine: true },
+        loadComponent: () => import('./tickets/ticket-board').then((m) => m.TicketBoard),
+      },
+      {
+        path: 'tickets',
+        title: 'Tickets · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/tickets') },
+        loadComponent: () => import('./tickets/ticket-board').then((m) => m.TicketBoard),
+      },
+      {
+        path: 'tickets/:id',
+        title: 'Ticket · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/tickets') },
+        loadComponent: () => import('./tickets/ticket-detail').then((m) => m.TicketDetail),
+      },
+      {
+        // Every role; owners get it read-only for their own sites' units (the API scopes the unit to them).
         path: 'units/:id',
         title: 'Unit · Brightward',
         canActivate: [roleGuard],
-        data: { roles: rolesFor('/fleet') },
+        data: { roles: rolesWith('openUnitPage') },
         loadComponent: () => import('./units/unit-view').then((m) => m.UnitView),
       },
       {

@@ -21,11 +21,13 @@ import { fleetBoardJourney } from './journeys/fleet-board';
 import { landscapeJourney } from './journeys/landscape';
 import { ownerIsolationJourney } from './journeys/owner-isolation';
 import { pagePolicyChecks, type RunRecord } from './journeys/page-policy';
+import { plainWordsJourney } from './journeys/plain-words';
 import { rolesJourney } from './journeys/roles';
 import { shellJourney } from './journeys/shell';
 import { signInJourney } from './journeys/sign-in';
 import { tracesJourney } from './journeys/traces';
 import { unitCommandsJourney } from './journeys/unit-commands';
+import { ticketsJourney } from './journeys/tickets';
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const OUTPUT = join(ROOT, 'test/.output/e2e');
@@ -44,6 +46,8 @@ const JOURNEYS: readonly Journey[] = [
   alarmsJourney,
   tracesJourney,
   landscapeJourney,
+  ticketsJourney,
+  plainWordsJourney,
 ];
 
 async function main(only: readonly string[]): Promise<number> {

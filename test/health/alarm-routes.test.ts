@@ -111,18 +111,29 @@ describe('alarms over HTTP', () => {
     const eng = await as('engineer@saltmarsh.example');
     const r = (
       await eng
-        .post('/api/health/run')
+        .post('/api/detectors/run')
         .send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z', unitIds: [unit('QED-2401').id] })
         .expect(200)
     ).body;
     expect(r).toMatchObject({ units: 1, reports: 0, alarms: [] });
-    await eng.post('/api/health/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
-    await eng.post('/api/health/run').send({ from: '2026-06-01T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
+    await eng.post('/api/detectors/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
+    await eng.post('/api/detectors/run').send({ from: '2026-06-01T10:00:00Z', to: '2026-06-21T09:00:00Z' }).expect(400);
     await (
       await as('owner@quillmoor.example')
     )
-      .post('/api/health/run')
+      .post('/api/detectors/run')
       .send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z' })
       .expect(403);
+  });
+
+  it('answers the old path of the detectors run, beside the liveness check /api/health, with a 308 to the new one', async () => {
+    const eng = await as('engineer@saltmarsh.example');
+    const res = await eng.post('/api/health/run').send({ from: '2026-06-21T10:00:00Z', to: '2026-06-21T10:30:00Z' });
+    expect(res.status).toBe(308);
+    expect(res.headers['location']).toBe('/api/detectors/run');
+    // The liveness check is untouched: no session needed, database and broker only.
+    const health = await request(stack.http).get('/api/health');
+    expect(health.status).toBe(200);
+    expect(Object.keys(health.body).sort()).toEqual(['broker', 'database', 'status']);
   });
 });

@@ -1,5 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { T0, UNIT, feed, modelOf, peer, report, sunLandscape, testEngine } from './synthetic';
+import { rawWordsIn } from '../helpers/raw-words';
+
+/** The text people read of an alarm: its message and its advice. */
+const words = (a: { message: string; advice: string }) => `${a.message} ${a.advice}`;
 
 // Sun at azimuth 180°, elevation 50°: the global maximum is the panel facing it, tilt 40°, azimuth 180°.
 const irr = sunLandscape(180, 50);
@@ -29,6 +33,7 @@ describe('trap detector', () => {
     expect(a.advice).toMatch(/detector tilt/);
     expect((a.evidence as { lossWm2: number }).lossWm2).toBeGreaterThan(0.16 * best.wm2);
     expect(a.severity).toBe('P3');
+    expect(rawWordsIn(words(a))).toEqual([]);
   });
 
   it('stays quiet for a unit on the peak, at night, on hold, or seeking', () => {
@@ -101,6 +106,7 @@ describe('stall detector', () => {
     expect(s).toHaveLength(1);
     expect(s[0]!.message).toMatch(/tilt axis/);
     expect(s[0]!.severity).toBe('P2');
+    expect(rawWordsIn(words(s[0]!))).toEqual([]);
   });
 
   it('stays quiet for a drive that moves at normal current, and clears once the stalled axis moves again', () => {
@@ -139,6 +145,9 @@ describe('drift detector', () => {
       expect(d).toHaveLength(1);
       expect((d[0]!.evidence as { detector: string; finding: string }).detector).toBe(finding === 'dead' ? 'azimuthPlus' : 'tiltMinus');
       expect((d[0]!.evidence as { finding: string }).finding).toBe(finding);
+      // The evidence keeps the key; the text names the detector as the trace explorer does.
+      expect(d[0]!.message).toMatch(finding === 'dead' ? /^The azimuth detector \+ reads / : /^The tilt detector − reads /);
+      expect(rawWordsIn(words(d[0]!))).toEqual([]);
     }
   });
 
@@ -158,6 +167,7 @@ describe('hunting detector', () => {
     const h = e.raised.filter((a) => a.kind === 'hunting');
     expect(h).toHaveLength(1);
     expect(h[0]!.message).toMatch(/reversals per hour/);
+    expect(rawWordsIn(words(h[0]!))).toEqual([]);
   });
 
   it('is not raised on top of a drifting detector, which explains the back-and-forth', () => {
@@ -205,6 +215,11 @@ describe('soiling detector', () => {
     const s = e.raised.filter((a) => a.kind === 'soiling');
     expect(s).toHaveLength(1);
     expect((s[0]!.evidence as { lossPct: number }).lossPct).toBeCloseTo(7, 0);
+    // DC power per 1000 W/m² of in-plane irradiance, in words (not "W per kW/m²").
+    expect(s[0]!.message).toMatch(
+      /^DC power for the light it gets is 7(\.\d)? % below this unit's clean reference: .* W for every 1000 W\/m² in the plane of its modules, against .* W when clean\.$/,
+    );
+    expect(rawWordsIn(words(s[0]!))).toEqual([]);
     feed(e, end, 3 * 60, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
     expect(e.cleared.map((a) => a.kind)).toEqual(['soiling']); // cleaned
   });
@@ -235,6 +250,8 @@ describe('comms detector and stow watch', () => {
     const n = e.raised.filter((a) => a.kind === 'not-stowed');
     expect(n.map((a) => a.serial)).toEqual([UNIT.serial]);
     expect(n[0]!.severity).toBe('P1');
+    expect(n[0]!.message).toMatch(/tilt 40°, reporting a fault\.$/);
+    expect(rawWordsIn(words(n[0]!))).toEqual([]);
     expect(n[0]!.raisedMs - T0).toBe(3 * MIN);
   });
 });

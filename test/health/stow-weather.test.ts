@@ -33,6 +33,6 @@ describe('wind stow from the ingest', () => {
     const alarms = await stack.db('alarms').where({ unit_id: station.id, kind: 'not-stowed', state: 'active' });
     expect(alarms).toHaveLength(1);
     expect(alarms[0]).toMatchObject({ severity: 'P1', site_id: station.siteId });
-    expect(alarms[0].message).toMatch(/^Not stowed 4 min after gusts of 26 m\/s \(limit 18 m\/s\): tilt 40°, mode settled\.$/);
+    expect(alarms[0].message).toMatch(/^Not stowed 4 min after gusts of 26 m\/s \(limit 18 m\/s\): tilt 40°, settled\.$/);
   });
 });

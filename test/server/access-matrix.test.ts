@@ -108,7 +108,8 @@ const ROUTES: Row[] = [
   row('PATCH /api/units/:id',                      (w, s) => ({ path: `/api/units/${unit(w, s, 4)}`, body: {} }),                         401, 200, 403, 403, 403, 403),
   row('POST /api/units/:id/secret',                (w, s) => ({ path: `/api/units/${unit(w, s, 3)}/secret`, body: {} }),                  401, 200, 403, 403, 403, 403),
 
-  // Live state, telemetry, commands.
+  // Live state, telemetry, commands. The unit page reads these: owners too, read-only, for their own sites' units
+  // (the last hour is `telemetry`); another owner's unit is 404 to them.
   row('GET /api/units/:id/state',                  (w, s) => `/api/units/${unit(w, s)}/state`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/telemetry',              (w, s) => `/api/units/${unit(w, s)}/telemetry?${range}`,                               401, 200, 200, 200, 200, mine(200)),
   row('GET /api/units/:id/holds',                  (w, s) => `/api/units/${unit(w, s)}/holds`,                                            401, 200, 200, 200, 200, mine(200)),
@@ -137,6 +138,7 @@ const ROUTES: Row[] = [
   row('GET /api/tickets.csv',                      () => '/api/tickets.csv',                                                              401, 200, 200, 200, 200, 200),
   row('POST /api/tickets',                         (w, s) => ({ path: '/api/tickets', body: { unitId: unit(w, s, 5), title: 'Matrix', severity: 'P3' } }),
                                                                                                                                           401, 201, 201, 201, 403, 403),
+  row('GET /api/tickets/assignees',                () => '/api/tickets/assignees',                                                        401, 200, 200, 200, 403, 403),
   row('GET /api/tickets/:id',                      (w, s) => `/api/tickets/${w[s].ticketId}`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/ticket-kpis',            (w, s) => `/api/sites/${w[s].siteId}/ticket-kpis?month=2026-06`,                      401, 200, 200, 200, 200, mine(200)),
   row('GET /api/owners/:id/sla',                   (w, s) => `/api/owners/${w[s].ownerId}/sla`,                                          401, 200, 200, 200, 200, mine(200)),
@@ -145,14 +147,18 @@ const ROUTES: Row[] = [
   row('POST /api/tickets/:id/transition',          (w, s) => ({ path: `/api/tickets/${w[s].ticketId}/transition`, body: { to: 'cancelled', reason: 'matrix', version: 999 } }),
                                                                                                                                           401, 409, 409, 409, 403, 403),
   row('GET /api/alarms',                           (w, s) => `/api/alarms?siteId=${w[s].siteId}`,                                         401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/alarms',                           (w, s) => `/api/alarms?unitId=${unit(w, s)}`,                                          401, 200, 200, 200, 200, mine(200), { label: 'one unit (the unit page)' }),
   row('GET /api/alarms/:id',                       (w, s) => `/api/alarms/${w[s].alarmId}`,                                               401, 200, 200, 200, 200, mine(200)),
   row('POST /api/alarms/:id/acknowledge',          (w, s) => ({ path: `/api/alarms/${w[s].alarmId}/acknowledge`, body: {} }),             401, 200, 200, 200, 403, 403),
   row('GET /api/units/:id/scans/latest',           (w, s) => `/api/units/${unit(w, s)}/scans/latest`,                                     401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/health-settings',        (w, s) => `/api/sites/${w[s].siteId}/health-settings`,                                401, 200, 200, 200, 200, mine(200)),
   row('PUT /api/sites/:id/health-settings',        (w, s) => ({ path: `/api/sites/${w[s].siteId}/health-settings`, body: { stowGustMs: 17 } }),
                                                                                                                                           401, 200, 200, 403, 403, 403),
-  row('POST /api/health/run',                      (w, s) => ({ path: '/api/health/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z', unitIds: [unit(w, s)] } }),
+  row('POST /api/detectors/run',                   (w, s) => ({ path: '/api/detectors/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z', unitIds: [unit(w, s)] } }),
                                                                                                                                           401, 200, 200, 200, 403, 403),
+  // The detectors' run under its old name: a permanent redirect for everyone signed in (the new path checks the role).
+  row('POST /api/health/run',                      () => ({ path: '/api/health/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z' } }),
+                                                                                                                                          401, 308, 308, 308, 308, 308),
 
   // The audit log: admins only.
   row('GET /api/audit',                            () => '/api/audit?limit=5',                                                            401, 200, 403, 403, 403, 403),

@@ -174,7 +174,7 @@ describe('GET /api/audit', () => {
     const page = (await admin.get('/api/audit?action=sign-in&limit=1').expect(200)).body as AuditPage;
     expect(page.entries[0]!.user).not.toBeNull();
     const acks = (await admin.get('/api/audit?action=alarm-acknowledge').expect(200)).body as AuditPage;
-    expect(acks.entries[0]!.targetLabel).toBe(`Alarm on ${ids.serial} (stall)`);
+    expect(acks.entries[0]!.targetLabel).toBe(`Alarm on ${ids.serial} (actuator stall)`);
     const settings = (await admin.get(`/api/audit?action=health-settings-update&target=site:${ids.site}`).expect(200)).body as AuditPage;
     expect(settings.entries[0]!.targetLabel).toBe('Site Harbourside Library Roof');
   });

@@ -61,6 +61,37 @@ describe('site survey', () => {
     expect((await eng.get(`/api/sites/${id}/survey`)).body).toEqual(before);
   });
 
+  it('names bad survey fields for people as the form does, counted from 1, and keys them by path for programs', async () => {
+    const eng = await agent('engineer@saltmarsh.example');
+    const id = ((await eng.get('/api/sites')).body as { id: number; name: string }[]).find((s) => s.name === 'Eastfield Depot Yard')!.id;
+    const good = {
+      normalAzimuthDeg: 90,
+      normalElevationDeg: 0,
+      azimuthFromDeg: 60,
+      azimuthToDeg: 120,
+      elevationFromDeg: 0,
+      elevationToDeg: 30,
+      reflectance: 0.3,
+    };
+    const res = await eng.put(`/api/sites/${id}/survey`).send({
+      skyType: 'isotropic',
+      horizon: [
+        [0, 5],
+        [30, 5],
+        [60, 5],
+        [400, 5],
+      ],
+      reflectors: [{ ...good, reflectance: 2 }],
+      lamps: [],
+    });
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields).toEqual({
+      'horizon.3.0': 'azimuth must be from 0 to under 360°',
+      'reflectors.0.reflectance': 'must be in [0, 1]',
+    });
+    expect(res.body.error.message).toBe('The survey has 2 invalid field(s): Horizon point 4, azimuth; Facade 1, reflectance.');
+  });
+
   it("models a site's sky from its survey, at noon brighter than at dawn, with weather when recent", async () => {
     const id = (await stack.db('sites').where({ name: 'Eastfield Depot Yard' }).first()).id;
     const noon = Date.parse('2026-06-21T11:00:00Z');

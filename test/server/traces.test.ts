@@ -108,7 +108,7 @@ describe('downsampled traces', () => {
     expect(body.series.azimuthDiffWm2.max[3]).toBe(-5);
     expect(body.series.cmdAzimuthDeg.min[7]).toBe(181);
     expect(body.events.map((e) => e.kind)).toEqual(['mode-change']);
-    expect(body.events[0]!.text).toContain('scanning');
+    expect(body.events[0]!.text).toBe('Mode changed → Scanning');
     expect(body.alarms).toEqual([{ at: new Date(T0 + 1_200_000).toISOString(), kind: 'trap', text: 'Settled on a lesser peak (P3)' }]);
     expect(body.modelledBest.t.length).toBeGreaterThan(0);
     expect(body.modelledBest.wm2.every((w) => w > 100)).toBe(true);

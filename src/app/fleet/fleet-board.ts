@@ -25,7 +25,7 @@ import { LandscapeApi } from '../core/landscape-api';
 import { LinkBadge } from '../live/link-badge';
 import { LiveConnection } from '../live/live-connection';
 import { readPalette } from '../live/tone-palette';
-import { ago, siteTime, utcTime, withUnit, type Tone } from '../live/unit-status';
+import { ago, siteTime, TONE_WORDS, utcTime, withUnit, type Tone } from '../live/unit-status';
 import { ColourScheme } from '../shell/colour-scheme';
 import { filterRows, fleetRows, mergeStates, sortRows, toneCounts, type FleetRow, type FleetSortKey } from './fleet-rows';
 import { sitePlanOptions } from './site-plan';
@@ -104,12 +104,12 @@ export class FleetBoard {
   });
 
   protected readonly toneChips: { tone: Tone | 'alarm'; label: string; icon: string }[] = [
-    { tone: 'problem', label: 'Needs attention', icon: 'error' },
+    { tone: 'problem', label: TONE_WORDS.problem, icon: 'error' },
     { tone: 'alarm', label: 'With open alarms', icon: 'notifications_active' },
-    { tone: 'caution', label: 'Held or stowed', icon: 'front_hand' },
-    { tone: 'busy', label: 'Moving', icon: 'trending_up' },
-    { tone: 'good', label: 'Settled', icon: 'check_circle' },
-    { tone: 'stopped', label: 'No reports', icon: 'hourglass_empty' },
+    { tone: 'caution', label: TONE_WORDS.caution, icon: 'front_hand' },
+    { tone: 'busy', label: TONE_WORDS.busy, icon: 'trending_up' },
+    { tone: 'good', label: TONE_WORDS.good, icon: 'check_circle' },
+    { tone: 'stopped', label: TONE_WORDS.stopped, icon: 'hourglass_empty' },
   ];
 
   protected readonly siteTime = siteTime;

@@ -105,7 +105,7 @@ describe('fleet board rows', () => {
     const b1 = rows.find((r) => r.unit.serial === 'B-1')!;
     expect(b1.look.label).toBe('Maintenance hold');
     expect(b1.alarms).toEqual([]);
-    expect(rows.find((r) => r.unit.serial === 'B-2')!.look.label).toBe('No reports yet');
+    expect(rows.find((r) => r.unit.serial === 'B-2')!.look.label).toBe('Never reported');
   });
 
   it('claims no shortfall indoors, where the building switches the lamps', () => {

@@ -1,21 +1,14 @@
 import type { EChartsCoreOption } from 'echarts/core';
-import type { Tone } from '../live/unit-status';
+import { TONE_WORDS, type Tone } from '../live/unit-status';
 import { TONE_SYMBOL, type TonePalette } from '../live/tone-palette';
 import type { FleetRow } from './fleet-rows';
 
 const TONE_ORDER: Tone[] = ['problem', 'caution', 'busy', 'good', 'stopped'];
-const TONE_NAME: Record<Tone, string> = {
-  problem: 'Needs attention',
-  caution: 'Held or stowed',
-  busy: 'Moving',
-  good: 'Settled',
-  stopped: 'No reports',
-};
 
 /** Scatter plot of a site's units at their plan positions [m], one series per tone (shape + colour + legend word). */
 export function sitePlanOptions(rows: readonly FleetRow[], palette: TonePalette): EChartsCoreOption {
   const series = TONE_ORDER.map((tone) => ({
-    name: TONE_NAME[tone],
+    name: TONE_WORDS[tone],
     type: 'scatter',
     symbol: TONE_SYMBOL[tone],
     symbolSize: 18,
@@ -56,12 +49,12 @@ export function sitePlanOptions(rows: readonly FleetRow[], palette: TonePalette)
   return {
     animation: false,
     grid: { left: 56, right: 24, top: 40, bottom: 48 },
-    legend: { top: 0, textStyle: { color: palette.text }, data: TONE_ORDER.map((t) => ({ name: TONE_NAME[t], icon: TONE_SYMBOL[t] })) },
+    legend: { top: 0, textStyle: { color: palette.text }, data: TONE_ORDER.map((t) => ({ name: TONE_WORDS[t], icon: TONE_SYMBOL[t] })) },
     tooltip: {
       trigger: 'item',
       formatter: (p: { data: { serial: string; stateLabel: string; poa: number | null; power: number | null; value: number[] } }) =>
         `<b>${p.data.serial}</b><br>${p.data.stateLabel}<br>In-plane ${p.data.poa === null ? '—' : Math.round(p.data.poa) + ' W/m²'}` +
-        `<br>Output ${p.data.power === null ? '—' : Math.round(p.data.power) + ' W'}<br>Position ${p.data.value[0]} m E, ${p.data.value[1]} m N`,
+        `<br>DC power ${p.data.power === null ? '—' : Math.round(p.data.power) + ' W'}<br>Position ${p.data.value[0]} m E, ${p.data.value[1]} m N`,
     },
     xAxis: axis('East of site origin [m]', xs),
     yAxis: axis('North of site origin [m]', ys),

@@ -1,10 +1,17 @@
+import { TestBed } from '@angular/core/testing';
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { provideRouter } from '@angular/router';
+import { provideEchartsCore } from 'ngx-echarts';
+import type { Me } from '../../../shared/contracts/api';
 import type { SiteSurvey } from '../../../shared/contracts/survey';
+import { Session } from '../auth/session';
 import type { SiteLandscape } from '../../../shared/contracts/landscape';
 import { readPalette } from '../live/tone-palette';
 import { parseHorizonCsv } from './horizon-csv';
 import { heatmapOptions, maximaMarks } from './landscape-charts';
-import { minutesLabel } from './landscape-view';
-import { surveyProblems } from './survey-editor';
+import { LandscapeView, minutesLabel } from './landscape-view';
+import { surveyProblems, surveyProblemText } from './survey-editor';
 
 describe('horizon CSV import', () => {
   it('reads azimuth,elevation rows with a header, CRLF and quotes, sorted by azimuth', () => {
@@ -80,6 +87,66 @@ describe('survey editor checks', () => {
       ],
     });
     expect(Object.keys(bad).sort()).toEqual(['horizon.1', 'reflectors.0.reflectance']);
+    // Shown as the form names them, counted from 1 like its "Facade 1" and the horizon's rows.
+    expect(Object.entries(bad).map(([path, m]) => surveyProblemText(path, m))).toEqual([
+      'Horizon point 2: Elevation must be from 0 to 90°.',
+      'Facade 1, reflectance: Reflectance must be from 0 to 1.',
+    ]);
+    expect(surveyProblemText('horizon.3.0', 'azimuth must be from 0 to under 360°')).toBe(
+      'Horizon point 4, azimuth: azimuth must be from 0 to under 360°',
+    );
+    expect(surveyProblemText('lamps.0.irradianceWm2', 'must be in [0, 10000] W/m²')).toBe('Lamp 1, irradiance: must be in [0, 10000] W/m²');
+  });
+});
+
+describe('landscape view without sites', () => {
+  let http: HttpTestingController;
+
+  async function render(role: Me['role']) {
+    TestBed.configureTestingModule({
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        provideRouter([]),
+        provideEchartsCore({ echarts: () => new Promise<never>(() => undefined) }),
+      ],
+    });
+    http = TestBed.inject(HttpTestingController);
+    TestBed.inject(Session).signIn({ email: 'a@example.org', password: 'x' }).subscribe();
+    http.expectOne('/api/auth/sign-in').flush({ id: 1, email: 'a@example.org', name: 'Ada Kestrel', role, ownerId: null });
+    const fixture = TestBed.createComponent(LandscapeView);
+    await fixture.whenStable();
+    return fixture;
+  }
+
+  afterEach(() => http.verify());
+
+  it('says there are no sites yet, and offers admins the way to add one', async () => {
+    const fixture = await render('admin');
+    http.expectOne('/api/sites').flush([]);
+    await fixture.whenStable();
+    const el = fixture.nativeElement as HTMLElement;
+    expect(el.querySelector('[data-testid="landscape-no-sites"] h2')!.textContent).toBe('No sites yet');
+    expect(el.querySelector('[data-testid="landscape-no-sites"] a')!.getAttribute('href')).toBe('/admin/sites');
+    expect(el.querySelector('[data-testid="landscape-site"]')).toBeNull();
+  });
+
+  it('tells an engineer the same without the admin link, and offers a retry when the sites cannot be loaded', async () => {
+    const fixture = await render('engineer');
+    http
+      .expectOne('/api/sites')
+      .flush({ error: { code: 'unavailable', message: 'Down for a moment.' } }, { status: 503, statusText: 'Unavailable' });
+    await fixture.whenStable();
+    const el = fixture.nativeElement as HTMLElement;
+    expect(el.querySelector('[data-testid="landscape-sites-problem"]')!.textContent).toContain(
+      'The sites could not be loaded. Down for a moment.',
+    );
+    (el.querySelector('[data-testid="landscape-sites-problem"] button') as HTMLButtonElement).click();
+    http.expectOne('/api/sites').flush([]);
+    await fixture.whenStable();
+    expect(el.querySelector('[data-testid="landscape-sites-problem"]')).toBeNull();
+    expect(el.querySelector('[data-testid="landscape-no-sites"]')).not.toBeNull();
+    expect(el.querySelector('[data-testid="landscape-no-sites"] a')).toBeNull();
   });
 });
 

@@ -9,11 +9,13 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatSliderModule } from '@angular/material/slider';
 import { MatTabsModule } from '@angular/material/tabs';
 import { MatTooltipModule } from '@angular/material/tooltip';
-import { ActivatedRoute, Router } from '@angular/router';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { Subject, Subscription, debounceTime } from 'rxjs';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import type { Site } from '../../../shared/contracts/api';
+import { may } from '../../../shared/contracts/permissions';
+import { Session } from '../auth/session';
 import type { LandscapeDay, SiteLandscape } from '../../../shared/contracts/landscape';
 import { LandscapeApi } from '../core/landscape-api';
 import { readPalette } from '../live/tone-palette';
@@ -45,6 +47,7 @@ export function minutesLabel(m: number): string {
     MatTabsModule,
     MatTooltipModule,
     NgxEchartsDirective,
+    RouterLink,
     SurveyEditor,
   ],
   templateUrl: './landscape-view.html',
@@ -58,7 +61,12 @@ export class LandscapeView {
   private readonly router = inject(Router);
   private readonly scheme = inject(ColourScheme);
 
+  private readonly session = inject(Session);
   protected readonly sites = signal<Site[]>([]);
+  /** Whether the site list has arrived (an empty list then means there are no sites). */
+  protected readonly sitesLoaded = signal(false);
+  protected readonly sitesProblem = signal<string | null>(null);
+  protected readonly canAddSites = computed(() => may(this.session.role(), 'administer'));
   protected readonly siteId = signal<number | null>(null);
   protected readonly date = signal(localDateOf(Date.now(), 'UTC'));
   /** Minutes after local midnight, 15-minute steps. */
@@ -102,14 +110,20 @@ export class LandscapeView {
 
   constructor() {
     this.changes.pipe(debounceTime(350), takeUntilDestroyed()).subscribe(() => this.loadLandscape());
+    this.loadSites();
+  }
+
+  protected loadSites(): void {
+    this.sitesProblem.set(null);
     this.siteApi.list().subscribe({
       next: (sites) => {
         this.sites.set(sites);
+        this.sitesLoaded.set(true);
         const wanted = Number(this.route.snapshot.queryParamMap.get('site'));
         const first = sites.find((s) => s.id === wanted) ?? sites.find((s) => !s.indoor) ?? sites[0];
         if (first) this.chooseSite(first.id);
       },
-      error: (e: unknown) => this.problem.set(toApiProblem(e).message),
+      error: (e: unknown) => this.sitesProblem.set(toApiProblem(e).message),
     });
   }
 

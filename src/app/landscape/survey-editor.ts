@@ -8,6 +8,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import type { Site } from '../../../shared/contracts/api';
+import { surveyFieldWords } from '../../../shared/contracts/plain-words';
 import type { SiteSurvey, SurveyReflector } from '../../../shared/contracts/survey';
 import { LandscapeApi } from '../core/landscape-api';
 import { readPalette } from '../live/tone-palette';
@@ -16,6 +17,11 @@ import { toApiProblem } from '../ui/api-error';
 import { Notify } from '../ui/notify';
 import { skyDomeOptions } from '../units/sky-dome';
 import { parseHorizonCsv, type CsvProblem } from './horizon-csv';
+
+/** One survey problem for people: the field as the form names it, then what is wrong ("Facade 1, reflectance: must be …"). */
+export function surveyProblemText(path: string, message: string): string {
+  return `${surveyFieldWords(path)}: ${message}`;
+}
 
 /** Problems a survey has before it is sent (the server checks again and names fields the same way). */
 export function surveyProblems(s: SiteSurvey): Record<string, string> {
@@ -83,7 +89,13 @@ export class SurveyEditor {
 
   protected readonly dirty = computed(() => this.survey() !== null && JSON.stringify(this.survey()) !== this.original());
   protected readonly problems = computed(() => (this.survey() ? surveyProblems(this.survey()!) : {}));
-  protected readonly problemList = computed(() => Object.entries({ ...this.problems(), ...this.serverFields() }));
+  /** Every problem, named as the form names the field ("Horizon point 4", "Facade 1, reflectance"), counted from 1. */
+  protected readonly problemList = computed(() =>
+    Object.entries({ ...this.problems(), ...this.serverFields() }).map(([path, message]) => ({
+      path,
+      text: surveyProblemText(path, message),
+    })),
+  );
   protected readonly preview = computed(() => {
     void this.scheme.current();
     const s = this.survey();

@@ -123,7 +123,7 @@ describe('alarm evidence', () => {
     const facts = evidenceSummary(makeAlarm({ kind: 'stall', evidence: { axes: ['tilt'], readings: { poaWm2: 10 } } }));
     expect(facts).toEqual([
       { label: 'In-plane', value: '10 W/m²' },
-      { label: 'Axes', value: 'tilt' },
+      { label: 'Stalled axes', value: 'tilt' },
     ]);
     expect(evidenceSummary(makeAlarm({ kind: 'site-comms', evidence: { silentUnits: [{}, {}], units: 3 } }))).toEqual([
       { label: 'Silent units', value: '2 of 3' },

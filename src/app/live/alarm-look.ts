@@ -1,6 +1,10 @@
-import type { AlarmKind, AlarmSeverity, AlarmView, OrientationPeak } from '../../../shared/contracts/alarms';
+import type { AlarmSeverity, AlarmView, OrientationPeak } from '../../../shared/contracts/alarms';
+import { alarmKindWords, detectorWords } from '../../../shared/contracts/plain-words';
 
-/** How a severity is shown: always the code, a word and an icon; the colour (class `sev-p1` …) only repeats them. */
+/**
+ * How a severity is shown: always the code, a word and an icon; the class (`sev-p1` …) repeats them in colour and
+ * outline. Every severity has its own icon, colour and outline (styles.scss), so none depends on colour alone.
+ */
 export interface SeverityLook {
   code: string;
   label: string;
@@ -12,7 +16,7 @@ export interface SeverityLook {
 }
 
 const SEVERITY: Record<AlarmSeverity, Omit<SeverityLook, 'code'>> = {
-  P1: { label: 'Urgent', icon: 'e911_emergency', cssClass: 'sev-p1', rank: 0 },
+  P1: { label: 'Urgent', icon: 'release_alert', cssClass: 'sev-p1', rank: 0 },
   P2: { label: 'High', icon: 'warning', cssClass: 'sev-p2', rank: 1 },
   P3: { label: 'Medium', icon: 'report', cssClass: 'sev-p3', rank: 2 },
   P4: { label: 'Low', icon: 'info', cssClass: 'sev-p4', rank: 3 },
@@ -23,23 +27,8 @@ export function severityLook(severity: string | null | undefined): SeverityLook 
   return s ? { code: severity!, ...s } : { code: severity ?? '?', label: 'Unknown', icon: 'help', cssClass: 'sev-p4', rank: 4 };
 }
 
-/** Every alarm kind, and the wind-stow event shown beside them. */
-const KIND_LABEL: Record<AlarmKind | 'wind-stow', string> = {
-  trap: 'Stuck on a lesser peak',
-  stall: 'Actuator stall',
-  drift: 'Detector drift',
-  hunting: 'Hunting',
-  comms: 'No reports',
-  'site-comms': 'Site silent',
-  soiling: 'Soiling',
-  'not-stowed': 'Did not stow',
-  'wind-stow': 'Wind stow',
-};
-
-/** Plain names of alarm kinds; unknown kinds are shown as sent, with dashes as spaces. */
-export function alarmKindLabel(kind: string): string {
-  return (KIND_LABEL as Partial<Record<string, string>>)[kind] ?? kind.replace(/-/g, ' ');
-}
+/** Plain names of alarm kinds (the one map in shared/contracts/plain-words.ts); unknown kinds are shown as sent, with dashes as spaces. */
+export const alarmKindLabel = alarmKindWords;
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 const obj = (v: unknown): Record<string, unknown> | null =>
@@ -97,6 +86,13 @@ export function worstOpen(list: readonly AlarmView[]): AlarmView | null {
 
 const r1 = (x: number) => Math.round(x * 10) / 10;
 
+/** What the drift detector found about one detector, in words. */
+const FINDING_WORDS: Partial<Record<string, string>> = {
+  drifting: 'drifting',
+  dead: 'dead or disconnected',
+  saturated: 'reads at full scale',
+};
+
 /** A few labelled facts from the evidence, worded for people; unknown shapes give what they can. */
 export function evidenceSummary(a: AlarmView): { label: string; value: string }[] {
   const e = a.evidence ?? {};
@@ -121,9 +117,12 @@ export function evidenceSummary(a: AlarmView): { label: string; value: string }[
     if (lossPct !== null) out.push({ label: 'Loss', value: `${r1(lossPct)} %` });
   }
   const axes = e['axes'];
-  if (Array.isArray(axes) && axes.length) out.push({ label: 'Axes', value: axes.map(String).join(', ') });
+  if (Array.isArray(axes) && axes.length) out.push({ label: 'Stalled axes', value: axes.map(String).join(', ') });
   if (typeof e['detector'] === 'string')
-    out.push({ label: 'Detector', value: `${e['detector']}${typeof e['finding'] === 'string' ? ` (${e['finding']})` : ''}` });
+    out.push({
+      label: 'Detector',
+      value: `${detectorWords(e['detector'])}${typeof e['finding'] === 'string' ? ` (${FINDING_WORDS[e['finding']] ?? 'suspect'})` : ''}`,
+    });
   const rev = num(e['reversalsPerHour']);
   if (rev !== null) out.push({ label: 'Reversals', value: `${Math.round(rev)} per hour` });
   const gust = num(e['peakGustMs']);

@@ -1,4 +1,5 @@
 import type { UnitLiveState } from '../../../shared/contracts/live';
+import { UNIT_MODE_WORDS } from '../../../shared/contracts/plain-words';
 import type { UnitMode } from '../../../shared/contracts/wire-format';
 
 /** Tone of a state; each tone has a colour, but the word and icon always say the same thing. */
@@ -14,20 +15,40 @@ export interface StatusLook {
   hint: string;
 }
 
+/** The words of each tone when it groups units (fleet board chips, site plan legend): one name per group everywhere. */
+export const TONE_WORDS: Record<Tone, string> = {
+  problem: 'Needs attention',
+  caution: 'Held or stowed',
+  busy: 'Tracking or scanning',
+  good: 'Settled',
+  stopped: 'Never reported',
+};
+
+/** Each mode's look; its label is the mode's one name (shared/contracts/plain-words.ts). */
 const MODE_LOOK: Record<UnitMode, StatusLook> = {
-  seeking: { label: 'Climbing', icon: 'trending_up', tone: 'busy', hint: 'Moving toward brighter light along its detector pairs.' },
-  settled: { label: 'Settled', icon: 'check_circle', tone: 'good', hint: 'Detector pairs balanced; holding position.' },
-  scanning: { label: 'Scanning', icon: 'radar', tone: 'busy', hint: 'Sweeping its range to map the sky.' },
-  stowed: { label: 'Stowed', icon: 'shield', tone: 'caution', hint: 'In its safe position (wind or command).' },
-  held: { label: 'Maintenance hold', icon: 'front_hand', tone: 'caution', hint: 'Held for work on site: motion commands are refused.' },
-  fault: { label: 'Fault', icon: 'error', tone: 'problem', hint: 'The unit reports a fault.' },
+  seeking: {
+    label: UNIT_MODE_WORDS.seeking.label,
+    icon: 'trending_up',
+    tone: 'busy',
+    hint: 'Moving toward brighter light along its detector pairs.',
+  },
+  settled: { label: UNIT_MODE_WORDS.settled.label, icon: 'check_circle', tone: 'good', hint: 'Detector pairs balanced; holding position.' },
+  scanning: { label: UNIT_MODE_WORDS.scanning.label, icon: 'radar', tone: 'busy', hint: 'Sweeping its range to map the sky.' },
+  stowed: { label: UNIT_MODE_WORDS.stowed.label, icon: 'shield', tone: 'caution', hint: 'In its safe position (wind or command).' },
+  held: {
+    label: UNIT_MODE_WORDS.held.label,
+    icon: 'front_hand',
+    tone: 'caution',
+    hint: 'Held for work on site: motion commands are refused.',
+  },
+  fault: { label: UNIT_MODE_WORDS.fault.label, icon: 'error', tone: 'problem', hint: 'The unit reports a fault.' },
 };
 
 /** How a unit's live state is shown: offline and hold win over the reported mode. */
 export function statusLook(s: Pick<UnitLiveState, 'online' | 'mode' | 'onHold' | 'lastReportAt'> | null | undefined): StatusLook {
   if (!s || (!s.lastReportAt && !s.online))
     return {
-      label: 'No reports yet',
+      label: TONE_WORDS.stopped,
       icon: 'hourglass_empty',
       tone: 'stopped',
       hint: 'The unit has not reported since the server started.',

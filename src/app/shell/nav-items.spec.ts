@@ -5,6 +5,7 @@ const EXPECTED: Record<Role, string[]> = {
   admin: [
     'Fleet board',
     'Alarms',
+    'Tickets',
     'Sites',
     'Trace explorer',
     'Landscape',
@@ -14,10 +15,10 @@ const EXPECTED: Record<Role, string[]> = {
     'Units and credentials',
     'Audit log',
   ],
-  engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
-  technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
-  crew: ['Fleet board', 'Alarms', 'Sites'],
-  owner: ['Alarms', 'Sites'],
+  engineer: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Landscape'],
+  technician: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer'],
+  crew: ['My work', 'Fleet board', 'Alarms', 'Tickets', 'Sites'],
+  owner: ['Alarms', 'Tickets', 'Sites'],
 };
 
 describe('navigation per role', () => {

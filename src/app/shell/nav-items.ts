@@ -14,8 +14,10 @@ export interface NavItem {
 
 /** The one table of pages in the navigation and who may use each. */
 export const NAV_ITEMS: readonly NavItem[] = [
+  { path: '/my-work', label: 'My work', icon: 'assignment_ind', group: 'Fleet', roles: rolesWith('openMyWork') },
   { path: '/fleet', label: 'Fleet board', icon: 'dashboard', group: 'Fleet', roles: rolesWith('openFleetBoard') },
   { path: '/alarms', label: 'Alarms', icon: 'notifications_active', group: 'Fleet', roles: rolesWith('readAlarms') },
+  { path: '/tickets', label: 'Tickets', icon: 'assignment', group: 'Fleet', roles: rolesWith('readTickets') },
   { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: rolesWith('readSites') },
   { path: '/traces', label: 'Trace explorer', icon: 'query_stats', group: 'Fleet', roles: rolesWith('readTraces') },
   { path: '/landscape', label: 'Landscape', icon: 'landscape', group: 'Fleet', roles: rolesWith('openLandscape') },

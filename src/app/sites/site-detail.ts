@@ -72,4 +72,10 @@ export class SiteDetail {
   protected retry(): void {
     this.load(Number(this.id()));
   }
+
+  /** Loads the unit list again after it failed (the site itself is already shown). */
+  protected retryUnits(): void {
+    const site = this.site();
+    if (site) this.units.load(this.unitApi.list(site.id));
+  }
 }

@@ -15,7 +15,7 @@ const traces = (over: Partial<UnitTraces> = {}): UnitTraces => ({
   series: Object.fromEntries(TRACE_QUANTITIES.map((q) => [q, { min: [1, 2], max: [5, 2] }])) as UnitTraces['series'],
   rows: 24,
   source: 'raw',
-  events: [{ at: '1970-01-01T00:00:30Z', kind: 'mode-change', text: 'mode change → scanning' }],
+  events: [{ at: '1970-01-01T00:00:30Z', kind: 'mode-change', text: 'Mode changed → Scanning' }],
   alarms: null,
   modelledBest: { t: [0], wm2: [900] },
   ...over,

@@ -3,7 +3,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import type { CommandView } from '../../../shared/contracts/live';
 import { siteTime, utcTime } from '../live/unit-status';
-import { commandParams, queuedNote, STATUS_LOOK } from './commands';
+import { commandText, queuedNote, STATUS_LOOK } from './commands';
 
 /** The commands sent to a unit, newest first, with their outcome and what a queued one waits for. */
 @Component({
@@ -32,7 +32,7 @@ import { commandParams, queuedNote, STATUS_LOOK } from './commands';
             @for (c of commands(); track c.id) {
               <tr>
                 <td [matTooltip]="utcTime(c.issuedAt)">{{ siteTime(c.issuedAt, timeZone(), true) }}</td>
-                <td>{{ c.kind }} {{ commandParams(c) }}</td>
+                <td>{{ commandText(c) }}</td>
                 <td>{{ c.issuedBy.name }}</td>
                 <td>
                   <span class="outcome"
@@ -100,6 +100,6 @@ export class CommandHistory {
   protected readonly siteTime = siteTime;
   protected readonly utcTime = utcTime;
   protected readonly statusLabel = STATUS_LOOK;
-  protected readonly commandParams = commandParams;
+  protected readonly commandText = commandText;
   protected readonly queuedNote = queuedNote;
 }

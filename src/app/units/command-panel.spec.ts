@@ -133,6 +133,12 @@ describe('command panel', () => {
     expect(CONFIGURE_CAUTION).toMatch(/nobody is within reach/);
   });
 
+  it('says that automatic wind stow can still move a unit that is not on hold, wherever motion can follow', () => {
+    for (const text of [MOTION_CAUTION, CONFIGURE_CAUTION])
+      expect(text).toMatch(/automatic wind stow can still move any unit that is not on hold/i);
+    for (const text of [HOLD_CAUTION, RELEASE_CAUTION]) expect(text).toMatch(/automatic wind stow/);
+  });
+
   it('keeps the history newest first, replacing a command when its status changes', () => {
     const c = (id: string, at: string, status: CommandView['status']): CommandView => ({
       id,

@@ -3,6 +3,7 @@ import type { HoldView } from '../../../shared/contracts/holds';
 import type { CommandStatus, CommandView, UnitLiveState } from '../../../shared/contracts/live';
 import type { UnitConfig } from '../../../shared/contracts/wire';
 import { MOTION_COMMANDS, type CommandKind } from '../../../shared/contracts/wire-format';
+import { COMMAND_WORDS, commandWords, SETTING_WORDS } from '../../../shared/contracts/plain-words';
 import { siteTime } from '../live/unit-status';
 
 /** What the command panel offers. `goto` carries its target; settings (`configure`) have their own form. */
@@ -18,11 +19,11 @@ export interface CommandChoice {
 
 const CHOICES: Omit<CommandChoice, 'disabledReason'>[] = (
   [
-    { kind: 'scan', label: 'Scan the sky', icon: 'radar' },
-    { kind: 'goto', label: 'Go to orientation', icon: 'my_location' },
-    { kind: 'stow', label: 'Stow', icon: 'shield' },
-    { kind: 'release-stow', label: 'Release stow', icon: 'shield_with_heart' },
-    { kind: 'hold', label: 'Put on maintenance hold', icon: 'front_hand' },
+    { kind: 'scan', label: COMMAND_WORDS.scan, icon: 'radar' },
+    { kind: 'goto', label: COMMAND_WORDS.goto, icon: 'my_location' },
+    { kind: 'stow', label: COMMAND_WORDS.stow, icon: 'shield' },
+    { kind: 'release-stow', label: COMMAND_WORDS['release-stow'], icon: 'shield_with_heart' },
+    { kind: 'hold', label: COMMAND_WORDS.hold, icon: 'front_hand' },
     { kind: 'release-hold', label: 'Release my hold', icon: 'play_circle' },
   ] satisfies Omit<CommandChoice, 'disabledReason' | 'motion'>[]
 ).map((c) => ({ ...c, motion: MOTION_COMMANDS.includes(c.kind) }));
@@ -86,7 +87,7 @@ export function describeCommand(serial: string, kind: CommandChoice['kind'], tar
     case 'scan':
       return `${serial} will sweep its whole tilt and azimuth range to map the sky, then return to tracking.`;
     case 'goto':
-      return `${serial} will turn its panel to tilt ${target?.tiltDeg ?? '?'}° and azimuth ${target?.azimuthDeg ?? '?'}° (clockwise from north) and resume climbing from there.`;
+      return `${serial} will turn its panel to tilt ${target?.tiltDeg ?? '?'}° and azimuth ${target?.azimuthDeg ?? '?'}° (clockwise from north) and resume tracking from there.`;
     case 'stow':
       return `${serial} will drive to its stow position and stay there until stow is released.`;
     case 'release-stow':
@@ -108,18 +109,13 @@ export function describeRelease(serial: string, hold: HoldView, holds: readonly 
 }
 
 /** Plain names of the unit settings, for the confirmation and the history. */
-export const SETTING_LABELS: Record<keyof UnitConfig, { label: string; unit: string }> = {
-  detectorTiltDeg: { label: 'detector tilt', unit: '°' },
-  gain: { label: 'gain', unit: '' },
-  deadbandWm2: { label: 'deadband', unit: 'W/m²' },
-  reportIntervalS: { label: 'report interval', unit: 's' },
-};
+export const SETTING_LABELS: Record<keyof UnitConfig, { label: string; unit: string }> = SETTING_WORDS;
 
 export function describeSettings(config: UnitConfig): string {
   return Object.entries(config)
     .filter(([, v]) => v !== undefined && v !== null)
     .map(([k, v]) => {
-      const l = SETTING_LABELS[k as keyof UnitConfig];
+      const l = (SETTING_LABELS as Partial<Record<string, { label: string; unit: string }>>)[k] ?? { label: 'another setting', unit: '' };
       return `${l.label} ${v}${l.unit ? (l.unit === '°' ? '°' : ` ${l.unit}`) : ''}`;
     })
     .join(', ');
@@ -129,32 +125,38 @@ export function describeConfigure(serial: string, config: UnitConfig): string {
   return `${serial} will take the new settings (${describeSettings(config)}) at once; how it seeks and moves changes from then on.`;
 }
 
+/** Automatic wind stow moves units without anyone sending a command; only a hold keeps a unit still. */
+export const WIND_STOW_CAUTION = 'Automatic wind stow can still move any unit that is not on hold, without a command.';
+
 /** Caution shown with every command that moves a unit. */
 export const MOTION_CAUTION =
   'This command moves the tracker. Make sure nobody is within reach of the unit: its frame and drives have pinch and crush points. ' +
   'The structure can hold stored mechanical energy (its own weight, wind load, springs) and may move unexpectedly. ' +
   'The modules produce DC voltage whenever light falls on them and cannot be switched off. Do not move units when the wind is above ' +
-  "the manufacturer's limit. This software is not a lockout: before any work, stow the unit and isolate and lock out every energy source, " +
-  'batteries included. Local codes and licensed practice govern all work on site.';
+  `the manufacturer's limit. ${WIND_STOW_CAUTION} This software is not a lockout: before any work, stow the unit and isolate and lock out ` +
+  'every energy source, batteries included. Local codes and licensed practice govern all work on site.';
 
 /** Caution shown when a hold is placed. */
 export const HOLD_CAUTION =
   'A maintenance hold is a software lock, not a lockout. Before touching the unit, isolate and lock out its drive supply and batteries and ' +
-  'check that nothing can move; the modules stay live while lit. Releasing the hold lets the unit move at once: make sure everyone is clear. ' +
+  'check that nothing can move; the modules stay live while lit. Releasing the hold lets the unit move at once, by command or by automatic ' +
+  'wind stow: make sure everyone is clear. ' +
   'Local codes and licensed practice govern all work on site.';
 
 /** Caution shown when a hold is released. */
 export const RELEASE_CAUTION =
   'Releasing the last hold lets the unit move at once: its frame and drives have pinch and crush points and may carry stored mechanical energy. ' +
-  'Make sure everyone is clear of the unit. A hold is a software lock, not a lockout: remove locks and tags, restore energy and hand the unit back ' +
+  'Make sure everyone is clear of the unit. Once no hold is left, automatic wind stow can move it too, without a command. ' +
+  'A hold is a software lock, not a lockout: remove locks and tags, restore energy and hand the unit back ' +
   "only as your site's lockout/tagout procedure and the manufacturer's instructions say. The modules stay live while lit. " +
   'Local codes and licensed practice govern all work on site.';
 
 /** Caution shown with new unit settings. */
 export const CONFIGURE_CAUTION =
   'New settings change how the tracker seeks and moves, and it may start to move at once to act on them. Make sure nobody is within reach of the unit: ' +
-  'its frame and drives have pinch and crush points. This software is not a lockout: before any work, stow the unit and isolate and lock out every ' +
-  "energy source, batteries included, as your site's lockout/tagout procedure says. Local codes and licensed practice govern all work on site.";
+  `its frame and drives have pinch and crush points. ${WIND_STOW_CAUTION} This software is not a lockout: before any work, stow the unit and ` +
+  "isolate and lock out every energy source, batteries included, as your site's lockout/tagout procedure says. " +
+  'Local codes and licensed practice govern all work on site.';
 
 export const STATUS_LOOK: Record<CommandStatus, { label: string; icon: string }> = {
   queued: { label: 'Waiting for the unit', icon: 'schedule' },
@@ -179,6 +181,12 @@ export function queuedNote(c: Pick<CommandView, 'kind' | 'status' | 'expiresAt'>
 /** Adds or replaces a command in a newest-first history. */
 export function upsertCommand(history: readonly CommandView[], c: CommandView, limit = 50): CommandView[] {
   return [c, ...history.filter((x) => x.id !== c.id)].sort((a, b) => Date.parse(b.issuedAt) - Date.parse(a.issuedAt)).slice(0, limit);
+}
+
+/** A command as the history names it: its plain name and what it carries ("Go to orientation: tilt 30°, azimuth 180°"). */
+export function commandText(c: CommandView): string {
+  const params = commandParams(c);
+  return params ? `${commandWords(c.kind)}: ${params}` : commandWords(c.kind);
 }
 
 export function commandParams(c: CommandView): string {

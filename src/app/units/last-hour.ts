@@ -86,7 +86,7 @@ export function lastHourOptions(
       trigger: 'axis',
       formatter: (items: { axisValue: number; seriesName: string; value: [number, number | null]; marker: string }[]) => {
         const t = items[0]?.axisValue;
-        const unitOf = (n: string) => (n.includes('irradiance') ? 'W/m²' : n.includes('Output') ? 'W' : '°');
+        const unitOf = (n: string) => (n.includes('irradiance') ? 'W/m²' : n.includes('DC power') ? 'W' : '°');
         return (
           `${siteTime(t, timeZone)}<br><span style="opacity:.7">${utcTime(t)}</span><br>` +
           items
@@ -106,12 +106,12 @@ export function lastHourOptions(
     xAxis: [axisTime(0), axisTime(1)],
     yAxis: [
       axisValue(0, 'In-plane irradiance [W/m²]', 'W/m²', { min: 0 }),
-      axisValue(0, 'Output [W]', 'W', { min: 0, splitLine: { show: false }, nameTextStyle: { color: palette.muted, align: 'right' } }),
+      axisValue(0, 'DC power [W]', 'W', { min: 0, splitLine: { show: false }, nameTextStyle: { color: palette.muted, align: 'right' } }),
       axisValue(1, 'Angle [°]', '°'),
     ],
     series: [
       line('In-plane irradiance', 'poa', 0, 0, palette.accent),
-      line('Output', 'power', 0, 1, palette.good),
+      line('DC power', 'power', 0, 1, palette.good),
       line('Tilt measured', 'tilt', 1, 2, palette.primary),
       line('Tilt commanded', 'cmdTilt', 1, 2, palette.primary, true),
       line('Azimuth measured', 'azimuth', 1, 2, palette.caution),

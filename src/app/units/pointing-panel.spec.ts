@@ -1,6 +1,8 @@
+import { TestBed } from '@angular/core/testing';
+import { provideEchartsCore } from 'ngx-echarts';
 import type { SiteLandscape } from '../../../shared/contracts/landscape';
 import type { UnitLiveState } from '../../../shared/contracts/live';
-import { domePoints } from './pointing-panel';
+import { domePoints, PointingPanel } from './pointing-panel';
 import { domeRadius, horizonLine, normalToDome } from './sky-dome';
 
 const palette = {
@@ -54,5 +56,33 @@ describe('where it points', () => {
       expect.objectContaining({ name: 'Panel points here', symbol: 'emptyCircle' }),
     ]);
     expect(domePoints(null, { ...s, tiltDeg: null } as unknown as UnitLiveState, 'good', palette)).toEqual([]);
+  });
+});
+
+describe('PointingPanel model details', () => {
+  const landscape = {
+    globalMax: { tiltDeg: 30, azimuthDeg: 178, wm2: 860 },
+    localMaxima: [{ tiltDeg: 30, azimuthDeg: 178, wm2: 860, basinShare: 1 }],
+    sun: null,
+    minSinglePeakDetectorTiltDeg: null,
+    magnitudeSource: 'Ineichen–Perez clear sky (TL 3)',
+  } as unknown as SiteLandscape;
+
+  beforeEach(() => {
+    TestBed.configureTestingModule({ providers: [provideEchartsCore({ echarts: () => new Promise<never>(() => undefined) })] });
+  });
+
+  async function hint(showModelSource: boolean): Promise<string> {
+    const fixture = TestBed.createComponent(PointingPanel);
+    fixture.componentRef.setInput('landscape', landscape);
+    fixture.componentRef.setInput('showModelSource', showModelSource);
+    await fixture.whenStable();
+    return (fixture.nativeElement as HTMLElement).textContent!.replace(/\s+/g, ' ');
+  }
+
+  it('names the model behind the magnitudes only where asked (engineers and admins), never to technicians or crews', async () => {
+    expect(await hint(false)).not.toContain('Magnitudes');
+    expect(await hint(false)).toContain('One peak in the modelled landscape.');
+    expect(await hint(true)).toContain('Magnitudes: Ineichen–Perez clear sky (TL 3).');
   });
 });

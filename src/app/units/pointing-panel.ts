@@ -40,7 +40,9 @@ import { normalToDome, skyDomeOptions, type DomePoint } from './sky-dome';
           @if (l.minSinglePeakDetectorTiltDeg !== null && l.localMaxima.length > 1) {
             A detector tilt of {{ l.minSinglePeakDetectorTiltDeg }}° or more would leave only one.
           }
-          Magnitudes: {{ l.magnitudeSource }}.
+          @if (showModelSource()) {
+            Magnitudes: {{ l.magnitudeSource }}.
+          }
         </p>
       }
     </section>
@@ -62,6 +64,8 @@ export class PointingPanel {
   readonly state = input<UnitLiveState | null>(null);
   /** The unit's status tone: the panel marker is hollow when the unit is not reporting. */
   readonly tone = input<Tone>('stopped');
+  /** Whether to name the model behind the magnitudes (engineers and admins: permission `readModelDetails`). */
+  readonly showModelSource = input(false);
 
   protected readonly options = computed(() => {
     void this.scheme.current();

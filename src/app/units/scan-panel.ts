@@ -98,7 +98,7 @@ import { scanFindings, scanHeatmapOptions } from './scan-chart';
         <li>
           <strong>Relocate.</strong>
           @if (scan(); as s) {
-            Send the unit to tilt {{ s.goto.tiltDeg }}°, azimuth {{ s.goto.azimuthDeg }}°; it resumes climbing from there. You will see the
+            Send the unit to tilt {{ s.goto.tiltDeg }}°, azimuth {{ s.goto.azimuthDeg }}°; it resumes tracking from there. You will see the
             cautions and confirm nobody is within reach.
             <div class="step-actions">
               <button

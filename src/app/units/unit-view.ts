@@ -55,7 +55,8 @@ import { UnitAlarmsPanel } from './unit-alarms-panel';
 /**
  * One unit, live: values, last hour, where it points against the modelled sky, holds, commands, alarms, scan and
  * history. The view loads the unit and follows it live; each panel shows its part, and every command goes through the
- * confirmation here.
+ * confirmation here. Owners get it read-only (`readOnly`): live values, the last hour and the unit's alarms, with no
+ * commands, settings, scans, holds list or command history, and nothing loaded that only staff may read.
  */
 @Component({
   selector: 'bw-unit-view',
@@ -119,6 +120,10 @@ export class UnitView {
   protected readonly holds = signal<HoldView[] | null>(null);
   protected readonly holdsProblem = signal<string | null>(null);
 
+  /** Owners: the page shows the unit and does nothing to it. */
+  protected readonly readOnly = computed(() => !may(this.session.role(), 'command'));
+  /** The modelled best in-plane irradiance now [W/m²]: from the landscape for staff, the one number for owners. */
+  protected readonly bestNowWm2 = signal<number | null>(null);
   protected readonly canAcknowledge = computed(() => may(this.session.role(), 'acknowledgeAlarms'));
   protected readonly scanChoice = computed(() => this.choices().find((c) => c.kind === 'scan')!);
   protected readonly gotoChoice = computed(() => this.choices().find((c) => c.kind === 'goto')!);
@@ -134,6 +139,7 @@ export class UnitView {
     return commandChoices(this.session.role(), s ? { ...s, holds, onHold: s.onHold || holds.length > 0 } : null, this.meId(), holds);
   });
   protected readonly canSeeTraces = computed(() => may(this.session.role(), 'readTraces'));
+  protected readonly canSeeModel = computed(() => may(this.session.role(), 'readModelDetails'));
   protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
   protected readonly siteTime = siteTime;
   protected readonly utcTime = utcTime;
@@ -199,6 +205,7 @@ export class UnitView {
         this.unitApi.state(unit.id).subscribe({ next: (s) => s && this.state.set(s), error: () => undefined });
         this.loadHour(unit.id);
         this.loadLandscape();
+        if (this.readOnly()) return;
         this.loadCommands();
         this.loadHolds();
         this.loadScan();
@@ -231,9 +238,14 @@ export class UnitView {
     const u = this.unit();
     if (!u) return;
     this.landscapeProblem.set(null);
+    if (this.readOnly()) {
+      this.landscapeApi.bestNow(u.siteId).subscribe({ next: (b) => this.bestNowWm2.set(b.wm2), error: () => undefined });
+      return;
+    }
     this.landscapeApi.landscape(u.siteId, new Date(), u.detectorTiltDeg, false, 3).subscribe({
       next: (l) => {
         this.landscape.set(l);
+        this.bestNowWm2.set(l.globalMax.wm2);
         if (this.gotoTilt() === null) {
           this.gotoTilt.set(l.globalMax.tiltDeg);
           this.gotoAzimuth.set(l.globalMax.azimuthDeg);

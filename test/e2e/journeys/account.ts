@@ -19,7 +19,7 @@ export const accountJourney: Journey = {
         await page.setViewportSize({ width: 360, height: 740 });
         try {
           await signIn(page, base, email);
-          await page.waitForURL(`${base}/fleet`);
+          await page.waitForURL(`${base}/my-work`);
           await page.getByTestId('user-menu').click();
           await page.getByTestId('change-password').click();
           await page.waitForURL(`${base}/account/password`);
@@ -37,7 +37,7 @@ export const accountJourney: Journey = {
           await page.getByTestId('sign-in-problem').waitFor();
           await page.getByLabel('Password', { exact: true }).fill(newPassword);
           await page.getByRole('button', { name: 'Sign in' }).click();
-          await page.waitForURL(`${base}/fleet`);
+          await page.waitForURL(`${base}/my-work`);
           await signOut(page, base);
         } finally {
           await page.setViewportSize({ width: 1280, height: 800 });

@@ -6,6 +6,7 @@ const NAV: Record<RoleName, string[]> = {
   admin: [
     'Fleet board',
     'Alarms',
+    'Tickets',
     'Sites',
     'Trace explorer',
     'Landscape',
@@ -15,10 +16,10 @@ const NAV: Record<RoleName, string[]> = {
     'Units and credentials',
     'Audit log',
   ],
-  engineer: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer', 'Landscape'],
-  technician: ['Fleet board', 'Alarms', 'Sites', 'Trace explorer'],
-  crew: ['Fleet board', 'Alarms', 'Sites'],
-  owner: ['Alarms', 'Sites'],
+  engineer: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Landscape'],
+  technician: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer'],
+  crew: ['My work', 'Fleet board', 'Alarms', 'Tickets', 'Sites'],
+  owner: ['Alarms', 'Tickets', 'Sites'],
 };
 
 /** Every demo person signs in and sees only their pages and sites; everyone but admins is refused the admin pages. */
@@ -29,8 +30,8 @@ export const rolesJourney: Journey = {
     for (const user of DEMO_USERS) {
       await check(`${user.role} ${user.email} signs in and sees only their pages and sites`, async () => {
         await signIn(page, base, user.email);
-        // Staff land on the fleet board, owners on their sites.
-        await page.waitForURL(`${base}/${user.role === 'owner' ? 'sites' : 'fleet'}`);
+        // Crews land on their work, the control room on the fleet board, owners on their sites.
+        await page.waitForURL(`${base}/${user.role === 'owner' ? 'sites' : user.role === 'crew' ? 'my-work' : 'fleet'}`);
         if (user.role !== 'owner') await page.goto(`${base}/sites`);
         await page.getByTestId('main-nav').locator('a').first().waitFor();
         const nav = (await page.getByTestId('main-nav').locator('a [matlistitemtitle]').allTextContents()).map((t) => t.trim());

@@ -69,7 +69,7 @@ export const unitCommandsJourney: Journey = {
         'a crew member puts their own hold on a unit with a note, sees it listed, and releases it after confirming nobody is within reach',
         async () => {
           await signIn(page, base, 'crew1@saltmarsh.example');
-          await page.waitForURL(`${base}/fleet`);
+          await page.waitForURL(`${base}/my-work`);
           await page.goto(`${base}/units/${unitId}`);
           await page.getByTestId('holds-empty').waitFor();
           await page.getByTestId('cmd-hold').click();

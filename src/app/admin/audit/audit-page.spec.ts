@@ -13,7 +13,7 @@ const entry = (over: Partial<AuditLogEntry>): AuditLogEntry => ({
   user: { id: 3, name: 'Mara Okonjo', email: 'tech1@saltmarsh.example' },
   action: 'alarm-acknowledge',
   target: 'alarm:40',
-  targetLabel: 'Alarm on QHL-2401 (stall)',
+  targetLabel: 'Alarm on QHL-2401 (actuator stall)',
   detail: { kind: 'stall', severity: 'P2', serial: 'QHL-2401' },
   ...over,
 });
@@ -62,8 +62,8 @@ describe('AuditPage', () => {
     // 09:00 UTC is 10:00 in London in June.
     expect(text('at-1')).toContain('10:00:00');
     expect(text('action-1')).toBe('done_allAcknowledged an alarm');
-    expect(text('target-1')).toBe('Alarm on QHL-2401 (stall)');
-    expect(text('detail-1')).toBe('P2 stall');
+    expect(text('target-1')).toBe('Alarm on QHL-2401 (actuator stall)');
+    expect(text('detail-1')).toBe('P2 Actuator stall');
     expect(el.textContent).toContain('Mara Okonjo');
     expect(el.textContent).toContain('Europe/London');
   }, 20_000); // the first test of the file also pays for compiling the page
@@ -159,7 +159,7 @@ describe('audit words', () => {
         entry({ action: 'health-settings-update', detail: { before: { stowGustMs: 16 }, after: { stowGustMs: 15, trapRatio: 0.8 } } }),
         time,
       ),
-    ).toBe('stowGustMs 16 → 15 · trapRatio default → 0.8');
+    ).toBe('stow gust [m/s] 16 → 15 · trap ratio default → 0.8');
     expect(detailText(entry({ action: 'health-settings-update', detail: { before: { a: 1 }, after: { a: 1 } } }), time)).toBe('No change');
     expect(
       detailText(
@@ -168,9 +168,21 @@ describe('audit words', () => {
       ),
     ).toBe('<08:00> to <09:00>');
     expect(detailText(entry({ action: 'command', detail: { commandId: 'c1', kind: 'goto', tiltDeg: 30, azimuthDeg: 180 } }), time)).toBe(
-      'goto (tiltDeg 30, azimuthDeg 180)',
+      'Go to orientation (tilt [°] 30, azimuth [°] 180)',
     );
     expect(detailText(entry({ action: 'sign-in', detail: { address: '127.0.0.1' } }), time)).toBe('from 127.0.0.1');
+    expect(
+      detailText(
+        entry({
+          action: 'command-refused',
+          detail: { kind: 'release-stow', status: 409, code: 'on_hold', message: 'The unit is on hold.' },
+        }),
+        time,
+      ),
+    ).toBe('Release stow: The unit is on hold.');
+    expect(detailText(entry({ action: 'unit-update', detail: { detectorTiltDeg: 12, planXM: 3 } }), time)).toBe(
+      'detector tilt [°] 12 · plan x [m] 3',
+    );
     expect(detailText(entry({ action: 'user-update', detail: { role: 'crew', disabled: true } }), time)).toBe('role crew · disabled true');
     expect(detailText(entry({ action: 'user-password-reset', detail: null }), time)).toBe('');
   });

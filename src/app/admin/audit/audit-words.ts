@@ -1,4 +1,5 @@
 import type { AuditLogEntry } from '../../../../shared/contracts/audit';
+import { alarmKindWords, commandWords, fieldWords } from '../../../../shared/contracts/plain-words';
 
 /** An action in plain words, with an icon that repeats it. */
 export interface ActionLook {
@@ -50,7 +51,7 @@ function show(v: unknown): string {
   if (typeof v === 'number' || typeof v === 'boolean') return String(v);
   if (Array.isArray(v)) return v.map(show).join(', ');
   return Object.entries(v as Detail)
-    .map(([k, x]) => `${k} ${show(x)}`)
+    .map(([k, x]) => `${fieldWords(k)} ${show(x)}`)
     .join(', ');
 }
 
@@ -59,7 +60,9 @@ function changes(before: Detail, after: Detail): string {
   const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])].sort();
   const changed = keys.filter((k) => JSON.stringify(before[k]) !== JSON.stringify(after[k]));
   if (!changed.length) return 'No change';
-  return changed.map((k) => `${k} ${k in before ? show(before[k]) : 'default'} → ${k in after ? show(after[k]) : 'default'}`).join(' · ');
+  return changed
+    .map((k) => `${fieldWords(k)} ${k in before ? show(before[k]) : 'default'} → ${k in after ? show(after[k]) : 'default'}`)
+    .join(' · ');
 }
 
 /**
@@ -75,14 +78,18 @@ export function detailText(entry: AuditLogEntry, time: (iso: string) => string):
     return `${time(d['from'])} to ${time(d['to'])}`;
   }
   if (entry.action === 'alarm-acknowledge') {
-    return [d['severity'], d['kind']].filter((x) => typeof x === 'string').join(' ');
+    return [d['severity'], typeof d['kind'] === 'string' ? alarmKindWords(d['kind']) : null].filter((x) => typeof x === 'string').join(' ');
   }
   if (entry.action === 'command') {
     const rest = Object.fromEntries(Object.entries(d).filter(([k]) => k !== 'kind' && k !== 'commandId'));
-    return Object.keys(rest).length ? `${show(d['kind'])} (${show(rest)})` : show(d['kind']);
+    const kind = typeof d['kind'] === 'string' ? commandWords(d['kind']) : show(d['kind']);
+    return Object.keys(rest).length ? `${kind} (${show(rest)})` : kind;
+  }
+  if (entry.action === 'command-refused' && typeof d['message'] === 'string') {
+    return typeof d['kind'] === 'string' ? `${commandWords(d['kind'])}: ${d['message']}` : d['message'];
   }
   if (typeof d['address'] === 'string' && Object.keys(d).length === 1) return `from ${d['address']}`;
   return Object.entries(d)
-    .map(([k, v]) => `${k} ${show(v)}`)
+    .map(([k, v]) => `${fieldWords(k)} ${show(v)}`)
     .join(' · ');
 }
