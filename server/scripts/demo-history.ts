@@ -3,6 +3,7 @@
  *   fill         before the server starts: the rollup-level past, the newest day at full rate and their alarms (first
  *                seeding), or the gap since the last stored report (restart)
  *   background   while the product runs: the remaining full-rate days, newest first, with progress in the database
+ * Both then give the past alarms the tickets the rules would have opened, worked and closed (seeds/demo-tickets.ts).
  * Environment: BW_DEMO_HISTORY_DAYS (full-rate days, default 7; 0 = none), BW_DEMO_HISTORY_SEED (default 1),
  * BW_DEMO_HISTORY_ROLLUP_DAYS (rollup-level days on first seeding, default 396 ≈ 13 months).
  */
@@ -18,6 +19,7 @@ import { UnitRepository } from '../data/unit-repository';
 import { DemoHistory } from '../services/demo-history';
 import { RollupWorker } from '../services/rollup-worker';
 import { UnitDirectory } from '../services/unit-directory';
+import { seedDemoTickets } from '../../seeds/demo-tickets';
 import { simulatorHistorySource } from './simulator-history';
 
 const { values, positionals } = parseArgs({ args: process.argv.slice(2), allowPositionals: true, options: { now: { type: 'string' } } });
@@ -64,6 +66,12 @@ const history = new DemoHistory(
     log: (l) => console.log(`[${l.replace(': ', '] ')}`),
   },
 );
+/** The work orders the past alarms would have caused (seeds/demo-tickets.ts: bulk, idempotent, pages nobody). */
+async function ticketsOfThePast(atMs: number): Promise<void> {
+  const n = await seedDemoTickets(db, { now: new Date(atMs) });
+  if (n) console.log(`[history] ${n} tickets of the past`);
+}
+
 const t0 = performance.now();
 try {
   if (cmd === 'fill') {
@@ -74,11 +82,13 @@ try {
       );
     // The fill itself took time: top up the few seconds since, so the live fleet starts where the past ends.
     for (let i = 0; plan && !values.now && i < 3; i++) if (!(await history.fill(Math.floor(Date.now() / 1000) * 1000)).plan) break;
+    await ticketsOfThePast(nowMs);
   } else {
     const counts = await history.background();
     console.log(
       `[history] background: ${counts.rawRows} reports, ${counts.alarms} alarms in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
     );
+    if (counts.alarms) await ticketsOfThePast(Date.now());
   }
 } catch (err) {
   console.error(`[history] ${describeDbError(err, config.db)}`);
