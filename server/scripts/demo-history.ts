@@ -69,7 +69,7 @@ const history = new DemoHistory(
 /** The work orders the past alarms would have caused (seeds/demo-tickets.ts: bulk, idempotent, pages nobody). */
 async function ticketsOfThePast(atMs: number): Promise<void> {
   const n = await seedDemoTickets(db, { now: new Date(atMs) });
-  if (n) console.log(`[history] ${n} tickets of the past`);
+  if (n) console.log(`[history] ${n} ticket${n === 1 ? '' : 's'} of the past`);
 }
 
 const t0 = performance.now();
