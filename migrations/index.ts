@@ -31,6 +31,7 @@ import * as m20261204100100 from './20261204100100_create_ticket_transitions';
 import * as m20261204100200 from './20261204100200_create_ticket_alarms';
 import * as m20261204100300 from './20261204100300_create_owner_sla';
 import * as m20261204110000 from './20261204110000_create_ticket_files';
+import * as m20261204110100 from './20261204110100_create_demo_history';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -69,6 +70,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204100200_create_ticket_alarms': m20261204100200,
   '20261204100300_create_owner_sla': m20261204100300,
   '20261204110000_create_ticket_files': m20261204110000,
+  '20261204110100_create_demo_history': m20261204110100,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -21,6 +21,9 @@ import { FileStore } from './data/file-store';
 import { TicketFileRepository } from './data/ticket-file-repository';
 import { TicketFileService } from './services/ticket-file-service';
 import { ticketFileRoutes } from './routes/ticket-file-routes';
+import { demoHistoryRoutes } from './routes/demo-history-routes';
+import { DemoHistoryStatus } from './services/demo-history-status';
+import { HistoryRepository } from './data/history-repository';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -341,6 +344,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       auditRoutes(auditLog),
       ticketRoutes(tickets, alarmService, auditLog),
       ticketFileRoutes(ticketFiles),
+      demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),
     ],
   });
   const http = createServer(app);

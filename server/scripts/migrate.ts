@@ -3,11 +3,13 @@ import { dirname } from 'node:path';
 import { loadConfig } from '../config';
 import { createDb, describeDbError, migrateLatest, type Db } from '../data/db';
 import { demoSerials } from '../../shared/demo-world';
-import { rekeyDemoUnits, seedDemoWorld } from '../../seeds/demo-world';
+import { DEMO_OWNERS, rekeyDemoUnits, seedDemoWorld } from '../../seeds/demo-world';
 import { hashDeviceSecret, newDeviceSecret } from '../services/device-secret';
 
 /**
- * `migrate.ts latest [--demo]` | `rollback` | `demo`: schema changes, and — only when asked — the invented demo world.
+ * `migrate.ts latest [--demo]` | `rollback` | `demo` | `reset`: schema changes, and — only when asked — the invented demo
+ * world. `reset` (npm run demo:reset) drops every table and builds the demo from scratch, with new device secrets; it
+ * refuses a database that holds an owner of its own (not the demo's).
  * The demo has well-known passwords, so it is never the silent default of a server pointed at a new database: `npm start`
  * asks for it by name and says so. Demo device secrets are random and kept in a file only the simulator reads.
  */
@@ -46,6 +48,19 @@ function writeSecrets(secrets: Record<string, string>): void {
   chmodSync(DEMO_SECRETS_FILE, 0o600);
 }
 
+/** Rolls every migration back and applies them again: an empty schema, then the demo world. */
+async function resetDemo(db: Db, bcryptCost: number): Promise<void> {
+  const hasOwners = await db.schema.hasTable('owners');
+  const owners: string[] = hasOwners ? await db('owners').pluck('name') : [];
+  const demo = new Set(DEMO_OWNERS.map((o) => o.name));
+  const foreign = owners.filter((o) => !demo.has(o));
+  if (foreign.length) throw new Error(`demo reset refused: the database holds owners that are not the demo's (${foreign.join(', ')})`);
+  await db.migrate.rollback(undefined, true);
+  const applied = await migrateLatest(db);
+  console.log(`[db] demo data dropped; schema rebuilt (${applied.length} migrations)`);
+  await seedDemo(db, bcryptCost);
+}
+
 const cmd = process.argv[2];
 const config = loadConfig();
 const db = createDb(config.db);
@@ -59,8 +74,10 @@ try {
     console.log(`[db] rolled back: ${names.join(', ') || 'nothing'}`);
   } else if (cmd === 'demo') {
     await seedDemo(db, config.bcryptCost);
+  } else if (cmd === 'reset') {
+    await resetDemo(db, config.bcryptCost);
   } else {
-    console.error('usage: migrate.ts latest [--demo] | rollback | demo');
+    console.error('usage: migrate.ts latest [--demo] | rollback | demo | reset');
     process.exitCode = 2;
   }
 } catch (err) {

@@ -1,6 +1,8 @@
 #!/usr/bin/env bash
 # `npm start`: private MariaDB (installed from Debian's packages if missing) → migrations and demo seed (empty database only)
-# → dashboard build (when sources changed) → server with embedded broker → simulator. Ctrl-C stops all of it, MariaDB included.
+# → dashboard build (when sources changed) → the demo's past (first start) or the gap since the last run (restart), before
+# the comms watch can see it → server with embedded broker → simulator, and the rest of the full-rate past in the
+# background. Ctrl-C stops all of it, MariaDB included.
 set -uo pipefail
 cd "$(dirname "$0")/../.."
 export NG_CLI_ANALYTICS=false
@@ -9,10 +11,13 @@ export BW_BROKER_TLS_PORT=${BW_BROKER_TLS_PORT-8883}
 PORT=${BW_PORT:-4300}
 HOST=${BW_HOST:-127.0.0.1}
 children=()
+# Helpers that may finish on their own (the background history fill): stopped with the rest, never waited for.
+helpers=()
 
 stop_all() {
   trap - INT TERM EXIT
   echo; echo "[start] stopping…"
+  for pid in "${helpers[@]}"; do kill -TERM "$pid" 2>/dev/null; wait "$pid" 2>/dev/null; done
   # Newest first: the simulator disconnects before the broker goes, the server drains before MariaDB stops.
   for ((i = ${#children[@]} - 1; i >= 0; i--)); do
     kill -TERM "${children[$i]}" 2>/dev/null
@@ -35,12 +40,23 @@ if [ ! -f "$index" ] || [ -n "$(find src shared angular.json -newer "$index" -ty
   npx ng build >/tmp/brightward-build.log 2>&1 || { tail -40 /tmp/brightward-build.log; exit 1; }
 fi
 
+# The demo's past: the rollups of 13 months, the last day at full rate and the alarms of that past (first start), or the
+# gap since the last run; bulk-loaded, so it raises no current alarm. BW_DEMO_HISTORY_DAYS (default 7; 0 = none) sets
+# the full-rate days; the days after the first fill in the background, with progress on the admin page.
+# A fill that fails does not keep the product from starting: it says so here and on the admin page, and the next start
+# does it again.
+node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts fill ||
+  echo "[start] the demo's past could not be generated (see above); starting without it, the next start tries again"
+
 # Own sessions: Ctrl-C reaches this script only, which then stops the children in order. The server runs under a
 # supervisor that starts it again if it ever dies (units store and forward meanwhile, and unacknowledged readings are resent).
 setsid bash server/scripts/supervise.sh server node --import tsx server/main.ts &
 children+=($!)
 for _ in $(seq 1 100); do curl -sf "http://$HOST:$PORT/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
 if ! kill -0 "${children[0]}" 2>/dev/null; then echo "[start] the server did not start (see above)"; exit 1; fi
+
+setsid node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts background &
+helpers+=($!)
 
 if [ -f simulator/main.ts ] && [ "${BW_SIMULATOR:-on}" != off ]; then
   setsid node --import tsx simulator/main.ts --demo &

@@ -5,6 +5,11 @@ import { localDate, utcWindowOfLocalDate } from './local-time';
 
 const MINUTE = 60_000;
 const QUARTER = 15 * MINUTE;
+/** Longest run of consecutive local dates summed from one read of the quarter-hour rows. */
+const DAYS_PER_READ = 14;
+
+/** The calendar date after `date` (YYYY-MM-DD). */
+const nextDate = (date: string) => new Date(Date.parse(`${date}T00:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
 
 /**
  * Keeps the 1-minute, 15-minute and daily rollups current. Stored rows mark their buckets dirty; a pass recomputes
@@ -52,6 +57,77 @@ export class RollupWorker {
     return this.running;
   }
 
+  /**
+   * Rebuilds every rollup of some units over [from, to) from their raw rows: the minutes in one statement, then each
+   * quarter and local day touched, exactly as a pass does (bulk-loaded history uses it instead of marking each row).
+   */
+  async rebuildRange(unitIds: number[], from: Date, to: Date): Promise<void> {
+    if (!unitIds.length || !(from < to)) return;
+    const m0 = Math.floor(from.getTime() / MINUTE) * MINUTE;
+    await this.repo.rollupMinuteRange(unitIds, new Date(m0), to);
+    const quarters = new Map<number, Set<number>>();
+    for (let q = Math.floor(m0 / QUARTER) * QUARTER; q < to.getTime(); q += QUARTER) {
+      await this.repo.rollupQuarter(q, unitIds);
+      quarters.set(q, new Set(unitIds));
+    }
+    await this.rollupDays(quarters);
+  }
+
+  /** Recomputes the daily energy of some units for every local day that has a quarter in [from, to) (quarters stored directly). */
+  async rebuildDays(unitIds: number[], from: Date, to: Date): Promise<void> {
+    if (!unitIds.length || !(from < to)) return;
+    const quarters = new Map<number, Set<number>>();
+    // One quarter per hour is enough to name every local day (zones are whole or half hours off UTC).
+    for (let q = Math.floor(from.getTime() / QUARTER) * QUARTER; q < to.getTime(); q += 2 * QUARTER) quarters.set(q, new Set(unitIds));
+    await this.rollupDays(quarters);
+  }
+
+  /** Sums the quarters of each touched local day into the daily energy (one query per date for all its units). */
+  private async rollupDays(quarters: Map<number, Set<number>>): Promise<void> {
+    // Units share zones and quarters: each (zone, instant) is formatted once.
+    const memo = new Map<string, string>();
+    const dateOf = (ms: number, unitId: number) => {
+      const tz = this.units.byUnitId(unitId)?.timeZone ?? 'UTC';
+      const key = `${tz}|${ms}`;
+      let d = memo.get(key);
+      if (d === undefined) memo.set(key, (d = localDate(ms, tz)));
+      return d;
+    };
+    const days = new Map<string, Set<number>>(); // "date" → unit ids
+    for (const [q, ids] of quarters) {
+      for (const id of ids) {
+        const d = dateOf(q, id);
+        let set = days.get(d);
+        if (!set) days.set(d, (set = new Set()));
+        set.add(id);
+      }
+    }
+    // Runs of consecutive dates (up to DAYS_PER_READ) share one read of their quarters; each unit's quarters are cut to
+    // its own zone's days.
+    const dates = [...days.keys()].sort();
+    for (let i = 0; i < dates.length;) {
+      let j = i;
+      while (j + 1 < dates.length && j + 1 - i < DAYS_PER_READ && nextDate(dates[j]!) === dates[j + 1]) j++;
+      const run = dates.slice(i, j + 1);
+      i = j + 1;
+      const sums = new Map<string, { unitId: number; localDate: string; energyWh: number; minutes: number }>();
+      const ids = new Set<number>();
+      for (const d of run)
+        for (const id of days.get(d)!) {
+          ids.add(id);
+          sums.set(`${id}|${d}`, { unitId: id, localDate: d, energyWh: 0, minutes: 0 });
+        }
+      const rows = await this.repo.quartersBetween([...ids], utcWindowOfLocalDate(run[0]!).from, utcWindowOfLocalDate(run.at(-1)!).to);
+      for (const r of rows) {
+        const sum = sums.get(`${r.unitId}|${dateOf(r.bucket.getTime(), r.unitId)}`);
+        if (!sum) continue;
+        sum.energyWh += r.energyWh;
+        sum.minutes += r.minutes;
+      }
+      await this.repo.upsertDaily([...sums.values()]);
+    }
+  }
+
   private async pass(includeOpen: boolean): Promise<void> {
     if (!this.dirtyMinutes.size) return;
     // Take the closed minutes; the open ones wait for a later pass (or are taken too at shutdown).
@@ -72,31 +148,8 @@ export class RollupWorker {
         if (!set) quarters.set(q, (set = new Set()));
         for (const id of ids) set.add(id);
       }
-      const days = new Map<string, Set<number>>(); // "date" → unit ids
-      for (const [q, ids] of quarters) {
-        await this.repo.rollupQuarter(q, [...ids]);
-        for (const id of ids) {
-          const tz = this.units.byUnitId(id)?.timeZone ?? 'UTC';
-          const d = localDate(q, tz);
-          let set = days.get(d);
-          if (!set) days.set(d, (set = new Set()));
-          set.add(id);
-        }
-      }
-      const daily: { unitId: number; localDate: string; energyWh: number; minutes: number }[] = [];
-      for (const [d, ids] of days) {
-        // One query per local date for all its units; each unit's quarters are then cut to its own zone's day.
-        const { from, to } = utcWindowOfLocalDate(d);
-        const sums = new Map<number, { energyWh: number; minutes: number }>([...ids].map((id) => [id, { energyWh: 0, minutes: 0 }]));
-        for (const r of await this.repo.quartersBetween([...ids], from, to)) {
-          if (localDate(r.bucket.getTime(), this.units.byUnitId(r.unitId)?.timeZone ?? 'UTC') !== d) continue;
-          const sum = sums.get(r.unitId)!;
-          sum.energyWh += r.energyWh;
-          sum.minutes += r.minutes;
-        }
-        for (const [id, sum] of sums) daily.push({ unitId: id, localDate: d, ...sum });
-      }
-      await this.repo.upsertDaily(daily);
+      for (const [q, ids] of quarters) await this.repo.rollupQuarter(q, [...ids]);
+      await this.rollupDays(quarters);
       this.passes++;
     } catch (err) {
       // Put the work back; the next pass retries it.

@@ -42,6 +42,8 @@ export const PERMISSIONS = {
   openMyWork: ['crew'],
   /** Owners read their own sites' tickets only. */
   readTickets: ROLES,
+  /** Progress of the demo's generated past (the admin page's line). */
+  readDemoHistory: ['admin'],
   readAlarms: ROLES,
   readSites: ROLES,
   /**

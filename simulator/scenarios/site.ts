@@ -93,6 +93,7 @@ export function createSiteWorld(scenario: string, site: SiteInfo, parts: SkyPart
   let cached: SiteConditions | null = null;
   let cachedState = '';
   let builtAt = -Infinity;
+  let cachedDark = false;
   return {
     site,
     scenario,
@@ -103,6 +104,14 @@ export function createSiteWorld(scenario: string, site: SiteInfo, parts: SkyPart
       // A process state change (cloud edge, lamp switch) rebuilds the sky even between refreshes.
       if (cached === null || unixMs - builtAt >= refreshMs || unixMs < builtAt || state !== cachedState) {
         const sp = solarPosition({ latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM }, unixMs);
+        // Night outdoors: the clear-sky magnitudes are zero, so the sky is the dark one already built; only the sun moves.
+        const darkNow = !site.indoor && sp.zenithDeg >= 90;
+        if (darkNow && cachedDark && cached !== null && state === cachedState && unixMs >= builtAt) {
+          builtAt = unixMs;
+          cached = { ...cached, unixMs, sunElevationDeg: sp.elevationDeg, sunAzimuthDeg: sp.azimuthDeg };
+          return withWeather(cached, unixMs);
+        }
+        cachedDark = darkNow;
         const clear = clearSky(site, sp.zenithDeg, sp.pressureHpa, unixMs, parts.linkeTurbidity);
         const sun = { azimuthDeg: sp.azimuthDeg, elevationDeg: sp.elevationDeg };
         const shaped = parts.shape(clear, sun, unixMs);
@@ -118,23 +127,26 @@ export function createSiteWorld(scenario: string, site: SiteInfo, parts: SkyPart
           weather: { ghiWm2: 0, dhiWm2: 0, airTempC: 0, windMs: 0, gustMs: 0 },
         };
       }
-      const c = cached!;
-      const airTempC =
-        airTemperatureC(parts.airTemp.meanC, parts.airTemp.amplitudeC, site.longitudeDeg, unixMs) +
-        (site.indoor ? 0 : c.field.ghiWm2 * 0.002);
-      return {
-        ...c,
-        unixMs,
-        weather: {
-          ghiWm2: c.field.ghiWm2,
-          dhiWm2: c.field.dhiWm2,
-          airTempC,
-          windMs: site.indoor ? 0 : wind.windMs,
-          gustMs: site.indoor ? 0 : wind.gustMs,
-        },
-      };
+      return withWeather(cached!, unixMs);
     },
   };
+
+  function withWeather(c: SiteConditions, unixMs: number): SiteConditions {
+    const airTempC =
+      airTemperatureC(parts.airTemp.meanC, parts.airTemp.amplitudeC, site.longitudeDeg, unixMs) +
+      (site.indoor ? 0 : c.field.ghiWm2 * 0.002);
+    return {
+      ...c,
+      unixMs,
+      weather: {
+        ghiWm2: c.field.ghiWm2,
+        dhiWm2: c.field.dhiWm2,
+        airTempC,
+        windMs: site.indoor ? 0 : wind.windMs,
+        gustMs: site.indoor ? 0 : wind.gustMs,
+      },
+    };
+  }
 }
 
 /** A site whose sky and weather stay as they were at `skyUnixMs` while time goes on (checks at one instant of a scenario). */

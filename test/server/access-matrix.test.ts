@@ -174,6 +174,9 @@ const ROUTES: Row[] = [
   // The audit log: admins only.
   row('GET /api/audit',                            () => '/api/audit?limit=5',                                                            401, 200, 403, 403, 403, 403),
 
+  // Progress of the demo's generated past: admins only.
+  row('GET /api/demo-history',                     () => '/api/demo-history',                                                             401, 200, 403, 403, 403, 403),
+
   // The built dashboard (when present): the page shell for any path; the API behind it decides.
   row('GET /{*splat}',                             () => '/fleet',                                                                        200, 200, 200, 200, 200, 200, { optional: true }),
 ];

@@ -18,12 +18,14 @@ import { Notify } from '../../ui/notify';
 import { TableData } from '../../ui/table-data';
 import { OwnerApi } from '../../core/owner-api';
 import { UserApi } from '../../core/user-api';
+import { DemoHistoryLine } from '../demo-history-line';
 import { PasswordForm } from './password-form';
 import { UserForm, UserFormData } from './user-form';
 
 @Component({
   selector: 'bw-people-page',
   imports: [
+    DemoHistoryLine,
     MatButtonModule,
     MatFormFieldModule,
     MatIconModule,
