@@ -153,6 +153,11 @@ export class NotificationRepository {
     });
   }
 
+  /** Enabled people of the given roles, by name (who may be put on the rota). */
+  async peopleWithRoles(roles: readonly string[]): Promise<{ id: number; name: string; role: string }[]> {
+    return this.db('users').where({ disabled: false }).whereIn('role', roles).orderBy('name').select('id', 'name', 'role');
+  }
+
   /** Enabled people on call at `at` for the site or the whole fleet. */
   async onCallAt(siteId: number, at: Date): Promise<number[]> {
     const ids: number[] = await this.db('on_call as oc')

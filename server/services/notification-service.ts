@@ -152,9 +152,9 @@ export class NotificationService {
   // ---- the rota
 
   async rota(): Promise<OnCallRota> {
-    const entries = await this.repo.rota();
+    const [entries, candidates] = await Promise.all([this.repo.rota(), this.repo.peopleWithRoles(ON_CALL_ROLES)]);
     const now = this.opts.now();
-    return { entries, now: entries.filter((e) => Date.parse(e.from) <= now && now < Date.parse(e.to)) };
+    return { entries, now: entries.filter((e) => Date.parse(e.from) <= now && now < Date.parse(e.to)), candidates };
   }
 
   async setRota(c: Caller, entries: OnCallEntry[]): Promise<OnCallRota> {

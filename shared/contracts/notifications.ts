@@ -61,10 +61,11 @@ export interface OnCallEntryView extends OnCallEntry {
   siteName: string | null;
 }
 
-/** `GET /api/on-call`: the whole rota, and who is on call now. */
+/** `GET /api/on-call`: the whole rota, who is on call now, and who may be put on it. */
 export interface OnCallRota {
   entries: OnCallEntryView[];
   now: OnCallEntryView[];
+  candidates: { id: number; name: string; role: string }[];
 }
 
 /** Roles that may be on call (people who can go out or send someone). */

@@ -220,6 +220,17 @@ describe('a P1 alarm', () => {
       })
       .expect(200);
     expect(rota.body.now.map((e: { userName: string }) => e.userName)).toEqual(['Mara Okonjo']);
+    expect(rota.body.entries).toHaveLength(2);
+    // Who may be put on call: staff, never owners.
+    expect(rota.body.candidates.map((p: { role: string }) => p.role).sort()).toEqual([
+      'admin',
+      'crew',
+      'crew',
+      'engineer',
+      'technician',
+      'technician',
+      'technician',
+    ]);
 
     await raise('FSC-2401', 'stall', 'P1');
     const [t] = (await tech.agent.get(`/api/tickets?unitId=${unitId('FSC-2401')}`).expect(200)).body as TicketView[];
