@@ -144,6 +144,8 @@ export const plainWordsJourney: Journey = {
       { path: '/admin/sites', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
       { path: '/admin/units', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
       { path: '/admin/audit', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
+      { path: '/admin/outbox', ready: heading('Outbox'), roles: ['admin'] },
+      { path: '/notifications', ready: (p) => p.getByTestId('settings-form').waitFor(), roles: [...STAFF, 'owner'] },
       { path: '/account/password', ready: heading(/password/i), roles: [...STAFF, 'owner'] },
     ];
 
@@ -151,7 +153,7 @@ export const plainWordsJourney: Journey = {
       for (const person of PEOPLE) {
         await check(`${person.role}: every screen they may open says things in words`, async () => {
           await signIn(page, base, person.email);
-          await page.waitForURL(new RegExp(`${base}/(fleet|sites)$`));
+          await page.waitForURL(new RegExp(`${base}/(fleet|sites|my-work)$`));
           const found: string[] = [];
           for (const screen of screens.filter((s) => s.roles.includes(person.role))) {
             await page.goto(`${base}${screen.path}`);
