@@ -47,7 +47,12 @@ function bodyText(raw: string): { subject: string; text: string } {
   const subject = header(head, 'Subject');
   const encoding = header(head, 'Content-Transfer-Encoding').toLowerCase();
   const single = !/^multipart\//i.test(header(head, 'Content-Type'));
-  const text = single && encoding === 'base64' ? Buffer.from(body.replace(/\s+/g, ''), 'base64').toString('utf8') : body;
+  // The mail module's text goes base64, or as plain 7-bit lines when it is short ASCII (the SMTP framing adds a last CRLF).
+  const text = !single
+    ? body
+    : encoding === 'base64'
+      ? Buffer.from(body.replace(/\s+/g, ''), 'base64').toString('utf8')
+      : body.replace(/\r\n/g, '\n').replace(/\n$/, '');
   return { subject, text };
 }
 

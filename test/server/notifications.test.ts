@@ -10,6 +10,10 @@ import type { AlarmView } from '../../shared/contracts/alarms';
 import type { OutboxMessage } from '../../shared/contracts/mail';
 import type { NotificationList } from '../../shared/contracts/notifications';
 import type { LiveServerMessage } from '../../shared/contracts/live';
+import { MailOutboxRepository } from '../../server/data/mail-outbox-repository';
+import { MailService } from '../../server/services/mail-service';
+import { smtpTransport } from '../../server/mail/smtp-transport';
+import { pino } from 'pino';
 
 /** Added to the clocks of tickets, notifications and mail: the 15-minute escalation and SLA breaches without waiting. */
 let clockOffsetMs = 0;
@@ -320,6 +324,41 @@ describe('a failing mail server', () => {
     });
     expect(sent.attempts).toBe(2);
     expect(mailsAbout(t2.id, /assigned to you/)).toHaveLength(1);
+  });
+});
+
+describe('mail left queued by a restart', () => {
+  it('goes out when the mail service starts again; one with attachments is marked failed, saying why', async () => {
+    const at = new Date();
+    const row = (subject: string, attachments: string[]) => ({
+      kind: 'statement',
+      to_addresses: 'accounts@quillmoor.example',
+      subject,
+      body: 'Your statement.',
+      attachments: JSON.stringify(attachments),
+      status: 'queued',
+      attempts: 1,
+      last_error: 'Connection refused',
+      created_at: at,
+    });
+    const [plain] = await stack.db('mail_outbox').insert(row('Left queued, plain', []));
+    const [withFile] = await stack.db('mail_outbox').insert(row('Left queued, with a file', ['statement-2026-11.pdf']));
+    const cfg = loadConfig({ BW_SMTP_PORT: String(sink.port) }).mail;
+    const restarted = new MailService(new MailOutboxRepository(stack.db), smtpTransport(cfg), pino({ level: 'silent' }), { attempts: 3 });
+    await restarted.resume();
+    await restarted.settle();
+    restarted.stop();
+    const after = await stack
+      .db('mail_outbox')
+      .whereIn('id', [plain!, withFile!] as number[])
+      .orderBy('id')
+      .select('status', 'attempts', 'last_error');
+    expect(after[0]).toMatchObject({ status: 'sent', attempts: 2 });
+    expect(after[1]).toMatchObject({ status: 'failed', attempts: 2 });
+    expect(after[1].last_error).toMatch(/restarted before this message went out; its attachments were not kept/);
+    expect(sink.messages.filter((m) => m.subject.startsWith('Left queued')).map((m) => [m.to, m.subject, m.text])).toEqual([
+      [['accounts@quillmoor.example'], 'Left queued, plain', 'Your statement.'],
+    ]);
   });
 });
 
