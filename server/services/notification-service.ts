@@ -275,16 +275,17 @@ export class NotificationService {
     let escalated = 0;
     let breaches = 0;
     for (const u of await this.repo.unacknowledgedP1(new Date(now - this.opts.escalateAfterMs))) {
-      if (u.openedAt.getTime() < now - this.opts.lookbackMs) continue;
+      // Claimed either way: a stale one is marked as dealt with, so later sweeps do not look at it again.
       if (!(await this.repo.claimNotice(u.id, 'escalation', new Date(now)))) continue;
+      if (u.openedAt.getTime() < now - this.opts.lookbackMs) continue;
       await this.escalate(await this.readTicket(u.id)).catch((err) => this.log.error({ err, ticketId: u.id }, 'escalation not sent'));
       escalated++;
     }
     for (const b of await this.repo.breachedClocks(new Date(now))) {
       const t = await this.readTicket(b.ticketId);
       const clock = t.clocks.find((c) => c.name === b.clock)!;
-      if (Date.parse(clock.dueAt) < now - this.opts.lookbackMs) continue;
       if (!(await this.repo.claimNotice(t.id, `breach-${b.clock}`, new Date(now)))) continue;
+      if (Date.parse(clock.dueAt) < now - this.opts.lookbackMs) continue;
       await this.tellBreach(t, b.clock).catch((err) => this.log.error({ err, ticketId: t.id }, 'breach notice not sent'));
       breaches++;
     }

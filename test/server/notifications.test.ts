@@ -294,6 +294,37 @@ describe('SLA breaches', () => {
   });
 });
 
+describe('the past', () => {
+  it('is never paged: a P1 ticket and a breach more than a day old are marked dealt with, and nobody is told', async () => {
+    const u = stack.units.get('QED-2404')!;
+    const long = new Date(now() - 3 * 86_400_000);
+    const [id] = await stack.db('tickets').insert({
+      site_id: u.siteId,
+      unit_id: u.id,
+      kind: 'stall',
+      severity: 'P1',
+      title: 'Restored from long ago',
+      state: 'new',
+      opened_at: long,
+      acknowledge_due_at: new Date(long.getTime() + 30 * 60_000),
+      on_site_due_at: new Date(long.getTime() + 4 * 3600_000),
+      fix_due_at: new Date(long.getTime() + 24 * 3600_000),
+      availability_category: 'forced-outage',
+      parts: '[]',
+    });
+    const before = sink.messages.length;
+    await stack.notifications.sweep();
+    await settled();
+    expect(sink.messages.slice(before).filter((m) => m.text.includes(`Ticket ${id} `))).toEqual([]);
+    expect(await stack.db('ticket_notices').where({ ticket_id: id }).orderBy('notice').pluck('notice')).toEqual([
+      'breach-acknowledge',
+      'breach-fix',
+      'breach-onSite',
+      'escalation',
+    ]);
+  });
+});
+
 describe('a failing mail server', () => {
   it('keeps the request that caused a mail successful, tries again and records failed with the error', async () => {
     const crew = await as(CREW);
