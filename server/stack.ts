@@ -307,6 +307,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   await health.start();
   brokerRef = broker;
 
+  const alarmService = new AlarmService(alarmRepo, admin, live, healthOpts.now);
   const allowedOrigins = new Set(config.allowedOrigins);
   const app = createApp({
     log,
@@ -333,12 +334,12 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       alarmRoutes({
         admin,
         settings: healthSettings,
-        alarms: new AlarmService(alarmRepo, admin, live, healthOpts.now),
+        alarms: alarmService,
         scans: new ScanService(healthReads, admin, directory, siteModels),
         replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings),
       }),
       auditRoutes(auditLog),
-      ticketRoutes(tickets, auditLog),
+      ticketRoutes(tickets, alarmService, auditLog),
       notificationRoutes(notifications, mail),
     ],
   });

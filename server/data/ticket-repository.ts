@@ -307,6 +307,38 @@ export class TicketRepository {
     return r?.owner_id;
   }
 
+  /** The ticket's holds in force, with the state of the hold command each carried (whether the unit confirmed it). */
+  async holdsInForce(
+    ticketId: number,
+  ): Promise<{ unitId: number; serial: string; commandStatus: string | null; commandReason: string | null }[]> {
+    const rows = await this.db('unit_holds as h')
+      .join('units as u', 'u.id', 'h.unit_id')
+      .leftJoin('commands as c', 'c.id', 'h.command_id')
+      .where({ 'h.holder_kind': 'ticket', 'h.holder_id': ticketId })
+      .whereNull('h.released_at')
+      .orderBy('u.serial')
+      .select('h.unit_id', 'u.serial', 'c.status', 'c.reason');
+    return rows.map((r) => ({ unitId: r.unit_id, serial: r.serial, commandStatus: r.status ?? null, commandReason: r.reason ?? null }));
+  }
+
+  /** Open alarms of the ticket's unit (or of every unit of its site), and when its linked alarms last cleared. */
+  async faultHealth(t: {
+    id: number;
+    unitId: number | null;
+    siteId: number;
+  }): Promise<{ activeAlarms: number; lastClearedAt: Date | null }> {
+    const q = this.db('alarms').where({ state: 'active' });
+    if (t.unitId !== null) q.where({ unit_id: t.unitId });
+    else q.where({ site_id: t.siteId });
+    const [{ n }] = (await q.count({ n: '*' })) as [{ n: number | string }];
+    const last = await this.db('ticket_alarms as ta')
+      .join('alarms as a', 'a.id', 'ta.alarm_id')
+      .where('ta.ticket_id', t.id)
+      .max({ at: 'a.cleared_at' })
+      .first();
+    return { activeAlarms: Number(n), lastClearedAt: (last?.at as Date | null) ?? null };
+  }
+
   /** Enabled field crew members, by name (whom a ticket can be assigned to). */
   async activeCrew(): Promise<{ id: number; name: string }[]> {
     return this.db('users').where({ role: 'crew', disabled: false }).orderBy('name').select('id', 'name');

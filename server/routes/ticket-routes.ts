@@ -8,6 +8,7 @@ import {
   TICKET_STATES,
   type TicketState,
 } from '../../shared/contracts/tickets';
+import type { AlarmService } from '../services/alarm-service';
 import type { AuditService } from '../services/audit-service';
 import type { TicketService } from '../services/ticket-service';
 import { ticketLogCsv } from '../services/ticket-csv';
@@ -41,6 +42,8 @@ const slaBody = z.strictObject({
   P3: slaTargets.optional(),
   P4: slaTargets.optional(),
 });
+
+const fromAlarmBody = z.strictObject({ alarmId: z.number().int().positive('Must be a positive whole number.') });
 
 const createBody = z.strictObject({
   unitId: z.number().int().positive().optional(),
@@ -78,6 +81,7 @@ const transitionBody = z.strictObject({
  *   GET  /tickets?state&siteId&unitId&assignee=me&limit   open first by fix due time
  *   GET  /tickets.csv                                     the ticket log with every state time (RFC 4180, UTC)
  *   POST /tickets { unitId | siteId, title, severity, description? }       technician, engineer, admin → 201
+ *   POST /tickets { alarmId }                             the ticket of the alarm's fault: found, reopened or opened → 201
  *   GET  /tickets/assignees                               technician, engineer, admin: the crew members to dispatch to
  *   GET  /tickets/:id                                     with transitions, linked alarms, SLA clocks, next moves
  *   GET  /sites/:id/ticket-kpis?month=YYYY-MM             acknowledgement … repeat repairs, in the site's calendar
@@ -85,7 +89,7 @@ const transitionBody = z.strictObject({
  *   PUT  /owners/:id/sla { P1?: { acknowledgeMin, onSiteMin, fixMin }, … }   admin: severities left out use the defaults
  *   POST /tickets/:id/transition { to, version?, note?, reason?, assigneeId?, confirm?, closure?, … }
  */
-export function ticketRoutes(tickets: TicketService, audit: AuditService): Router {
+export function ticketRoutes(tickets: TicketService, alarms: AlarmService, audit: AuditService): Router {
   const r = Router();
 
   r.get('/tickets', async (req, res) => {
@@ -113,7 +117,13 @@ export function ticketRoutes(tickets: TicketService, audit: AuditService): Route
   });
 
   r.post('/tickets', requireRole('openTickets'), async (req, res) => {
-    res.status(201).json(await tickets.create(callerOf(req), parse(createBody, req.body, 'The ticket')));
+    const c = callerOf(req);
+    if (req.body && typeof req.body === 'object' && 'alarmId' in req.body) {
+      const alarm = await alarms.get(c, parse(fromAlarmBody, req.body, 'The ticket').alarmId);
+      res.status(201).json(await tickets.forAlarm(c, alarm));
+      return;
+    }
+    res.status(201).json(await tickets.create(c, parse(createBody, req.body, 'The ticket')));
   });
 
   r.get('/tickets/:id', async (req, res) => {

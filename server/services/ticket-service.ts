@@ -3,12 +3,15 @@ import { ALARM_SEVERITIES, type AlarmSeverity, type AlarmView } from '../../shar
 import {
   DEFAULT_SLA,
   OPEN_TICKET_STATES,
+  defaultCategoryOf,
+  faultKeyOf,
   TICKET_TRANSITIONS,
   ruleFor,
   transitionsFor,
   type AvailabilityCategory,
   type SlaClockView,
   type SlaTargets,
+  type TicketHoldStatus,
   type TicketClosure,
   type TicketPart,
   type TicketState,
@@ -98,16 +101,6 @@ export interface TransitionRequest {
   parts?: TicketPart[];
 }
 
-/** The availability category a fault's downtime gets until someone says otherwise (IEC TS 63019 categories). */
-function defaultCategory(kind: string): AvailabilityCategory {
-  if (kind === 'comms' || kind === 'site-comms') return 'information-unavailable';
-  if (kind === 'trap' || kind === 'drift' || kind === 'hunting' || kind === 'soiling') return 'partial-performance';
-  return 'forced-outage';
-}
-
-const faultKeyOf = (unitId: number | null, siteId: number, kind: string) =>
-  unitId !== null ? `unit:${unitId}:${kind}` : `site:${siteId}:${kind}`;
-
 /** Severities whose alarms open a ticket at once; P3 opens one after `p3DelayMs`; P4 goes to the daily digest. */
 const AT_ONCE: readonly string[] = ['P1', 'P2'];
 
@@ -180,8 +173,22 @@ export class TicketService {
 
   async get(c: Caller, id: number): Promise<TicketView> {
     const t = await this.stored(c, id);
-    const [transitions, alarms] = await Promise.all([this.repo.transitions(id), this.repo.alarms(id)]);
-    return { ...this.view(c, t), transitions, alarms };
+    const [transitions, alarms, holds, health] = await Promise.all([
+      this.repo.transitions(id),
+      this.repo.alarms(id),
+      this.repo.holdsInForce(id),
+      this.repo.faultHealth(t),
+    ]);
+    return {
+      ...this.view(c, t),
+      transitions,
+      alarms,
+      holds: holds.map((h) => ({ unitId: h.unitId, serial: h.serial, status: holdStatus(h.commandStatus, h.commandReason) })),
+      health: {
+        activeAlarms: health.activeAlarms,
+        clearSince: health.activeAlarms ? null : ((health.lastClearedAt ?? t.resolvedAt)?.toISOString() ?? null),
+      },
+    };
   }
 
   /** Work-order KPIs of a site for a calendar month in the site's time zone (tickets opened in that month). */
@@ -286,22 +293,34 @@ export class TicketService {
     return due.length;
   }
 
-  private serialize(fn: () => Promise<void>): Promise<void> {
+  /** One fault's alarms one at a time; `rethrow` for a person's request (the rules' failures are only logged). */
+  private serialize(fn: () => Promise<unknown>, rethrow = false): Promise<void> {
     const next = this.chain.catch(() => undefined).then(fn);
     this.chain = next;
-    return next.catch((err) => this.log.error({ err }, 'ticket for an alarm failed'));
+    return next.then(
+      () => undefined,
+      (err: unknown) => {
+        if (rethrow) throw err;
+        this.log.error({ err }, 'ticket for an alarm failed');
+      },
+    );
   }
 
+  /**
+   * The ticket of an alarm's fault: the open one (the alarm is linked to it), the one resolved or closed within the
+   * reopen window (reopened), or a new one. `by` is the person who asked; null when an alarm rule did. Returns its id.
+   */
   private async ticketForAlarm(
     a: Pick<AlarmView, 'id' | 'unitId' | 'siteId' | 'kind' | 'severity' | 'message' | 'evidence' | 'raisedAt'>,
-  ): Promise<void> {
+    by: number | null = null,
+  ): Promise<number> {
     const now = new Date(this.opts.now());
     const key = faultKeyOf(a.unitId, a.siteId, a.kind);
     const link: AlarmToLink = { alarmId: a.id, evidence: a.evidence, linkedAt: now };
     const last = await this.repo.latestForFault(key);
     if (last && OPEN_TICKET_STATES.includes(last.state)) {
       await this.repo.linkAlarm(last.id, link);
-      return;
+      return last.id;
     }
     const doneAt = last && (last.closedAt ?? last.resolvedAt);
     if (
@@ -314,13 +333,13 @@ export class TicketService {
         last.id,
         last.version,
         { state: 'reopened' },
-        { from: last.state, to: 'reopened', at: now, by: null, note: null, reason: `The fault came back: ${a.message}`, assigneeId: null },
-        { userId: null, action: 'ticket-reopen', target: `ticket:${last.id}`, detail: { alarmId: a.id, automatic: true } },
+        { from: last.state, to: 'reopened', at: now, by, note: null, reason: `The fault came back: ${a.message}`, assigneeId: null },
+        { userId: by, action: 'ticket-reopen', target: `ticket:${last.id}`, detail: { alarmId: a.id, automatic: by === null } },
         link,
       );
       if (ok) {
-        this.emit(last.id, last.state, 'reopened', null, { id: a.id, severity: a.severity });
-        return;
+        this.emit(last.id, last.state, 'reopened', by, { id: a.id, severity: a.severity });
+        return last.id;
       }
     }
     const severity = (ALARM_SEVERITIES as readonly string[]).includes(a.severity) ? (a.severity as AlarmSeverity) : 'P3';
@@ -335,15 +354,26 @@ export class TicketService {
         description: null,
         faultKey: key,
         openedAt: now,
-        openedBy: null,
+        openedBy: by,
         ...(await this.dueTimes(a.siteId, severity, now)),
-        availabilityCategory: defaultCategory(a.kind),
+        availabilityCategory: defaultCategoryOf(a.kind),
       },
-      { from: null, to: 'new', at: now, by: null, note: null, reason: `Opened for alarm ${a.id}`, assigneeId: null },
+      { from: null, to: 'new', at: now, by, note: null, reason: `Opened for alarm ${a.id}`, assigneeId: null },
       link,
-      { userId: null, action: 'ticket-open', detail: { alarmId: a.id, automatic: true, severity } },
+      { userId: by, action: 'ticket-open', detail: { alarmId: a.id, automatic: by === null, severity } },
     );
-    this.emit(id, null, 'new', null, { id: a.id, severity });
+    this.emit(id, null, 'new', by, { id: a.id, severity });
+    return id;
+  }
+
+  /** A technician's one step from an alarm card: the ticket of the alarm's fault (found, reopened or opened). */
+  async forAlarm(c: Caller, alarm: AlarmView): Promise<TicketView> {
+    if (!may(c.role, 'openTickets')) throw forbidden('Only technicians, engineers and admins open tickets.');
+    let id = 0;
+    await this.serialize(async () => {
+      id = await this.ticketForAlarm(alarm, c.id);
+    }, true);
+    return this.get(c, id);
   }
 
   // ---- the lifecycle
@@ -562,6 +592,12 @@ export class TicketService {
       next: [...new Set(transitionsFor(t.state, c.role, t.assignee?.id === c.id).map((r) => r.to))],
     };
   }
+}
+
+function holdStatus(status: string | null, reason: string | null): TicketHoldStatus {
+  if (status === 'completed') return reason?.startsWith('Added to the hold') ? 'joined' : 'confirmed';
+  if (status === 'rejected' || status === 'timed-out' || status === 'cancelled') return 'not-confirmed';
+  return 'waiting';
 }
 
 const isWaitingReason = (r: string | undefined): r is WaitingReason =>

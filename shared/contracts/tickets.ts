@@ -67,6 +67,17 @@ export const AVAILABILITY_CATEGORIES = [
 ] as const;
 export type AvailabilityCategory = (typeof AVAILABILITY_CATEGORIES)[number];
 
+/** The category a fault's downtime gets until someone says otherwise at resolution. */
+export function defaultCategoryOf(kind: string): AvailabilityCategory {
+  if (kind === 'comms' || kind === 'site-comms') return 'information-unavailable';
+  if (kind === 'trap' || kind === 'drift' || kind === 'hunting' || kind === 'soiling') return 'partial-performance';
+  return 'forced-outage';
+}
+
+/** One fault, one ticket: the key of a unit's (or a whole site's) fault of one kind. */
+export const faultKeyOf = (unitId: number | null, siteId: number, kind: string): string =>
+  unitId !== null ? `unit:${unitId}:${kind}` : `site:${siteId}:${kind}`;
+
 /** SLA targets of one severity [minutes from the ticket's opening]. */
 export interface SlaTargets {
   acknowledgeMin: number;
@@ -213,4 +224,17 @@ export interface TicketView {
   next: TicketState[];
   transitions?: TicketTransitionView[];
   alarms?: TicketAlarmLink[];
+  /** The ticket's holds in force (from check-in to check-out) and whether each unit has confirmed it. */
+  holds?: TicketHoldView[];
+  /** Whether the fault looks fixed: open alarms of the unit (or site) and when the ticket's alarms last cleared. */
+  health?: { activeAlarms: number; clearSince: string | null };
+}
+
+/** `confirmed`: the unit reported it holds; `joined`: added to a hold already in force; `waiting`: not answered yet. */
+export type TicketHoldStatus = 'confirmed' | 'joined' | 'waiting' | 'not-confirmed';
+
+export interface TicketHoldView {
+  unitId: number;
+  serial: string;
+  status: TicketHoldStatus;
 }

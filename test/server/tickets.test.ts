@@ -98,6 +98,9 @@ describe('a ticket through its whole life', () => {
     expect(onSite.body.onSiteAt).not.toBeNull();
     const held = await holdsOf(unitId(serial));
     expect(held.active.map((h) => h.holder)).toEqual([{ kind: 'ticket', id: t.id, name: `Ticket ${t.id}` }]);
+    // The unit is offline: the hold is in force on the server, and the ticket says the unit has not confirmed it yet.
+    const onSiteView = (await (await as(TECH)).agent.get(`/api/tickets/${t.id}`)).body as TicketView;
+    expect(onSiteView.holds).toEqual([{ unitId: unitId(serial), serial, status: 'waiting' }]);
     // The crew is on site: nobody moves the unit, an engineer included.
     const goto = await (
       await as(ENGINEER)
@@ -127,6 +130,9 @@ describe('a ticket through its whole life', () => {
     expect(resolved.body).toMatchObject({ state: 'resolved', closure: CLOSURE, parts: [{ description: 'tilt gearbox', quantity: 1 }] });
     expect((await holdsOf(unitId(serial))).held).toBe(false);
 
+    const resolvedView = (await (await as(TECH)).agent.get(`/api/tickets/${t.id}`)).body as TicketView;
+    expect(resolvedView.holds).toEqual([]);
+    expect(resolvedView.health).toEqual({ activeAlarms: 0, clearSince: resolvedView.resolvedAt });
     const closed = await move(TECH, t.id, { to: 'closed' });
     expect(closed.body.state).toBe('closed');
     expect(closed.body.next).toEqual(['reopened']);
@@ -346,6 +352,22 @@ describe('tickets from alarms', () => {
     list = await ticketsOf('FSC-2402');
     expect(list.map((x) => x.state).sort()).toEqual(['cancelled', 'new']);
     clockOffsetMs = 0;
+  });
+
+  it('opens the ticket of an alarm in one step for the control room, and finds the same one the second time', async () => {
+    const a = await raise('FSC-2406', 'hunting', 'P3');
+    expect(await ticketsOf('FSC-2406')).toHaveLength(0);
+    const first = await (await as(TECH)).agent.post('/api/tickets').send({ alarmId: a.id });
+    expect(first.status).toBe(201);
+    expect(first.body).toMatchObject({ state: 'new', kind: 'hunting', severity: 'P3', openedBy: { name: 'Mara Okonjo' } });
+    expect(first.body.alarms.map((x: { alarmId: number }) => x.alarmId)).toEqual([a.id]);
+    const again = await (await as(ENGINEER)).agent.post('/api/tickets').send({ alarmId: a.id });
+    expect(again.body.id).toBe(first.body.id);
+    expect(await ticketsOf('FSC-2406')).toHaveLength(1);
+    await (await as(CREW)).agent.post('/api/tickets').send({ alarmId: a.id }).expect(403);
+    await (await as(TECH)).agent.post('/api/tickets').send({ alarmId: 999_999 }).expect(404);
+    const mixed = await (await as(TECH)).agent.post('/api/tickets').send({ alarmId: a.id, title: 'x' });
+    expect(mixed.status).toBe(400);
   });
 
   it('opens a P3 ticket only after the alarm has stayed open 4 h, and none for P4', async () => {

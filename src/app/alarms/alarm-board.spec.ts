@@ -1,7 +1,7 @@
 import { TestBed } from '@angular/core/testing';
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
-import { provideRouter } from '@angular/router';
+import { provideRouter, Router } from '@angular/router';
 import type { Me, Role } from '../../../shared/contracts/api';
 import type { AlarmView } from '../../../shared/contracts/alarms';
 import { Session } from '../auth/session';
@@ -72,6 +72,17 @@ describe('AlarmBoard', () => {
     expect(el.querySelector('[data-testid="alarm-status-4"]')!.textContent).toContain('Acknowledged by Mara Okonjo');
   });
 
+  it("opens the alarm's ticket in one step for a technician and goes to it", async () => {
+    const { fixture, http, el } = await render('technician', [alarm({ id: 6, state: 'active' })]);
+    const navigate = vi.spyOn(TestBed.inject(Router), 'navigate').mockResolvedValue(true);
+    el.querySelector<HTMLButtonElement>('[data-testid="ticket-for-6"]')!.click();
+    const req = http.expectOne('/api/tickets');
+    expect(req.request.body).toEqual({ alarmId: 6 });
+    req.flush({ id: 41 });
+    await fixture.whenStable();
+    expect(navigate).toHaveBeenCalledWith(['/tickets', 41]);
+  });
+
   it('shows crews and owners alarms read-only (no acknowledge, no trace links)', async () => {
     for (const role of ['crew', 'owner'] as const) {
       current?.verify();
@@ -79,6 +90,7 @@ describe('AlarmBoard', () => {
       const { el } = await render(role, [alarm({ id: 5 })]);
       expect(el.querySelector('[data-testid="alarm-5"]')).not.toBeNull();
       expect(el.querySelector('[data-testid="ack-5"]')).toBeNull();
+      expect(el.querySelector('[data-testid="ticket-for-5"]')).toBeNull();
       expect(el.querySelector('[data-testid="alarm-traces-5"]')).toBeNull();
       expect(el.textContent).toContain('the control room acknowledges them');
     }

@@ -18,6 +18,8 @@ import { SiteApi } from '../core/site-api';
 import { toApiProblem } from '../ui/api-error';
 import { Notify } from '../ui/notify';
 import { AlarmCard } from './alarm-card';
+import { TicketApi } from '../core/ticket-api';
+import { Router } from '@angular/router';
 
 /** Alarms of every site the user may see, most urgent first, live; technicians acknowledge here. */
 @Component({
@@ -33,6 +35,8 @@ export class AlarmBoard {
   private readonly session = inject(Session);
   private readonly notify = inject(Notify);
   private readonly live = inject(LiveConnection);
+  private readonly tickets = inject(TicketApi);
+  private readonly router = inject(Router);
 
   protected readonly loading = signal(true);
   protected readonly problem = signal<string | null>(null);
@@ -45,6 +49,7 @@ export class AlarmBoard {
   protected readonly stateFilter = signal<AlarmListFilter['state']>('open');
 
   protected readonly canAcknowledge = computed(() => may(this.session.role(), 'acknowledgeAlarms'));
+  protected readonly canOpenTicket = computed(() => may(this.session.role(), 'openTickets'));
   protected readonly traceLinks = computed(() => may(this.session.role(), 'readTraces'));
   protected readonly siteMap = computed(() => new Map(this.sites().map((s) => [s.id, s])));
   protected readonly shown = computed(() =>
@@ -123,6 +128,13 @@ export class AlarmBoard {
         done();
         this.notify.problem(`The alarm was not acknowledged. ${toApiProblem(e).message}`);
       },
+    });
+  }
+
+  protected openTicket(a: AlarmView): void {
+    this.tickets.forAlarm(a.id).subscribe({
+      next: (t) => void this.router.navigate(['/tickets', t.id]),
+      error: (e: unknown) => this.notify.problem(`No ticket was opened. ${toApiProblem(e).message}`),
     });
   }
 }

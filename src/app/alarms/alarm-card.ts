@@ -84,6 +84,17 @@ import { siteTime, utcTime } from '../live/unit-status';
             <mat-icon>done_all</mat-icon>Acknowledge
           </button>
         }
+        @if (canOpenTicket() && a.state === 'active') {
+          <button
+            mat-stroked-button
+            type="button"
+            (click)="openTicket.emit(a)"
+            [disabled]="busy()"
+            [attr.data-testid]="'ticket-for-' + a.id"
+          >
+            <mat-icon>assignment_add</mat-icon>Ticket
+          </button>
+        }
         @if (showSubject() && a.unitId !== null) {
           <a mat-button [routerLink]="['/units', a.unitId]"><mat-icon>solar_power</mat-icon>Open unit</a>
         }
@@ -179,6 +190,9 @@ export class AlarmCard {
   /** Whether to link to the trace explorer (roles that may open it). */
   readonly traceLinks = input(false);
   readonly acknowledge = output<AlarmView>();
+  /** Whether to offer the fault's ticket (the control room): found, reopened or opened in one step. */
+  readonly canOpenTicket = input(false);
+  readonly openTicket = output<AlarmView>();
 
   protected readonly look = computed(() => severityLook(this.alarm().severity));
   protected readonly kindLabel = computed(() => alarmKindLabel(this.alarm().kind));

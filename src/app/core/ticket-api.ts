@@ -52,6 +52,11 @@ export class TicketApi {
     return this.http.post<TicketView>('/api/tickets', t);
   }
 
+  /** The ticket of an alarm's fault: the open one, the recently resolved one reopened, or a new one. */
+  forAlarm(alarmId: number): Observable<TicketView> {
+    return this.http.post<TicketView>('/api/tickets', { alarmId });
+  }
+
   move(id: number, m: TicketMove): Observable<TicketView> {
     return this.http.post<TicketView>(`/api/tickets/${id}/transition`, m);
   }

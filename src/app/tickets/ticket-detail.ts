@@ -109,6 +109,16 @@ export class TicketDetail {
   protected readonly kindLabel = alarmKindLabel;
   protected readonly words = words;
   protected readonly utc = utcTime;
+  protected readonly holdLabel: Record<string, string> = {
+    confirmed: 'confirmed by the unit',
+    joined: 'added to a hold already in force',
+    waiting: 'waiting for the unit to confirm',
+    'not-confirmed': 'not confirmed by the unit: check it on site',
+  };
+
+  protected sinceHours(iso: string): number {
+    return Math.max(0, Math.round((Date.now() - Date.parse(iso)) / 360_000) / 10);
+  }
 
   constructor() {
     queueMicrotask(() => this.load());

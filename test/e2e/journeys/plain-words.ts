@@ -38,7 +38,11 @@ const heading = (name: string | RegExp) => (page: Page) => page.getByRole('headi
  * Stored things that carry machine names (an alarm whose evidence names a detector by its key, commands of every
  * kind with settings, audit entries of them), so that every screen has something to word.
  */
-async function insertWordyHistory(stack: TestStack, unitId: number, siteId: number): Promise<{ alarmIds: number[]; commandIds: string[] }> {
+async function insertWordyHistory(
+  stack: TestStack,
+  unitId: number,
+  siteId: number,
+): Promise<{ alarmIds: number[]; commandIds: string[]; ticketId: number }> {
   const admin = (await stack.db('users').where({ email: 'admin@saltmarsh.example' }).first('id')) as { id: number };
   const now = Date.now();
   const trap = await insertTrapAlarm(stack.db, unitId, siteId);
@@ -95,7 +99,37 @@ async function insertWordyHistory(stack: TestStack, unitId: number, siteId: numb
     target: `alarm:${drift}`,
     detail: JSON.stringify({ severity: 'P3', kind: 'drift' }),
   });
-  return { alarmIds: [trap, drift as number], commandIds };
+  // A ticket of the drift, waiting for parts, with its history: states, reasons and categories have machine names too.
+  const crew = (await stack.db('users').where({ email: 'crew1@saltmarsh.example' }).first('id')) as { id: number };
+  const opened = new Date(now - 3 * 3600_000);
+  const due = (h: number) => new Date(opened.getTime() + h * 3600_000);
+  const [ticketId] = await stack.db('tickets').insert({
+    site_id: siteId,
+    unit_id: unitId,
+    kind: 'drift',
+    severity: 'P3',
+    title: 'Detector drift on the tilt pair',
+    state: 'waiting',
+    version: 3,
+    assignee_id: crew.id,
+    fault_key: `unit:${unitId}:drift`,
+    opened_at: opened,
+    acknowledge_due_at: due(4),
+    on_site_due_at: due(120),
+    fix_due_at: due(240),
+    acknowledged_at: due(1),
+    waiting_reason: 'parts',
+    availability_category: 'partial-performance',
+    parts: JSON.stringify([{ description: 'detector pair', quantity: 1 }]),
+  });
+  await stack.db('ticket_transitions').insert([
+    { ticket_id: ticketId, from_state: null, to_state: 'new', at: opened, by_user: null, reason: `Opened for alarm ${drift}` },
+    { ticket_id: ticketId, from_state: 'new', to_state: 'dispatched', at: opened, by_user: admin.id, assignee_id: crew.id },
+    { ticket_id: ticketId, from_state: 'dispatched', to_state: 'acknowledged', at: due(1), by_user: crew.id },
+    { ticket_id: ticketId, from_state: 'acknowledged', to_state: 'waiting', at: due(2), by_user: crew.id, reason: 'parts' },
+  ]);
+  await stack.db('ticket_alarms').insert({ ticket_id: ticketId, alarm_id: drift, evidence: '{}', linked_at: opened });
+  return { alarmIds: [trap, drift as number], commandIds, ticketId: ticketId as number };
 }
 
 /**
@@ -120,6 +154,9 @@ export const plainWordsJourney: Journey = {
       { path: '/fleet', ready: (p) => p.locator('tr[data-unit]').first().waitFor(), roles: STAFF },
       { path: '/alarms', ready: (p) => p.getByTestId(`alarm-${inserted.alarmIds[1]}`).waitFor(), roles: [...STAFF, 'owner'] },
       { path: '/sites', ready: (p) => p.locator('ul.cards li.card').first().waitFor(), roles: [...STAFF, 'owner'] },
+      { path: '/tickets', ready: (p) => p.getByTestId(`ticket-${inserted.ticketId}`).waitFor(), roles: [...STAFF, 'owner'] },
+      { path: '/my-work', ready: (p) => p.getByTestId(`ticket-${inserted.ticketId}`).waitFor(), roles: ['crew'] },
+      { path: `/tickets/${inserted.ticketId}`, ready: (p) => p.getByTestId('ticket-state').waitFor(), roles: [...STAFF, 'owner'] },
       {
         path: `/sites/${siteId}`,
         ready: (p) => p.getByRole('table', { name: 'Tracker units of this site' }).locator('tr.mat-mdc-row').first().waitFor(),
@@ -260,6 +297,9 @@ export const plainWordsJourney: Journey = {
         await signOut(page, base);
       });
     } finally {
+      await stack.db('ticket_transitions').where({ ticket_id: inserted.ticketId }).delete();
+      await stack.db('ticket_alarms').where({ ticket_id: inserted.ticketId }).delete();
+      await stack.db('tickets').where({ id: inserted.ticketId }).delete();
       await stack.db('alarms').whereIn('id', inserted.alarmIds).delete();
       await stack.db('commands').whereIn('id', inserted.commandIds).delete();
     }
