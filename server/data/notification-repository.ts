@@ -257,13 +257,13 @@ export class NotificationRepository {
     return r?.by_user ?? null;
   }
 
-  /** P1 tickets opened from alarms at or before `before`, still open and not acknowledged, not yet escalated. */
+  /** Paged P1 tickets opened at or before `before`, still open and not acknowledged, not yet escalated. */
   async unacknowledgedP1(before: Date): Promise<UnacknowledgedTicket[]> {
     const rows = await this.db('tickets as t')
+      .join('ticket_notices as p', (j) => j.on('p.ticket_id', 't.id').andOnVal('p.notice', 'p1-page'))
       .leftJoin('ticket_notices as n', (j) => j.on('n.ticket_id', 't.id').andOnVal('n.notice', 'escalation'))
       .whereNull('n.ticket_id')
       .where({ 't.severity': 'P1' })
-      .whereNull('t.opened_by')
       .whereNull('t.acknowledged_at')
       .whereIn('t.state', ['new', 'dispatched', 'reopened', 'waiting'])
       .where('t.opened_at', '<=', before)

@@ -185,7 +185,8 @@ export class NotificationService {
   /** The ticket service's listener. */
   async onTicketEvent(e: TicketEvent): Promise<void> {
     const t = e.ticket;
-    if (e.from === null && e.byUserId === null && t.severity === 'P1') await this.pageOnCall(t);
+    // A ticket opened for a P1 alarm (by the alarm rule, or by a technician from the alarm card).
+    if (e.from === null && e.alarm && t.severity === 'P1') await this.pageOnCall(t);
     if (e.to === 'dispatched' && t.assignee) await this.tellAssignee(t, e.byUserId);
     if (e.to === 'resolved') await this.tellDispatcher(t);
   }

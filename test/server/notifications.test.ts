@@ -312,6 +312,8 @@ describe('the past', () => {
       availability_category: 'forced-outage',
       parts: '[]',
     });
+    // It was paged back then.
+    await stack.db('ticket_notices').insert({ ticket_id: id, notice: 'p1-page', at: long });
     const before = sink.messages.length;
     await stack.notifications.sweep();
     await settled();
@@ -321,6 +323,7 @@ describe('the past', () => {
       'breach-fix',
       'breach-onSite',
       'escalation',
+      'p1-page',
     ]);
   });
 });
