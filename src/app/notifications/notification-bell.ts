@@ -38,7 +38,6 @@ const KIND_ICONS: Record<string, string> = {
       [matBadge]="badge()"
       [matBadgeHidden]="!unread()"
       matBadgeColor="warn"
-      matBadgeSize="small"
       matBadgeOverlap
       data-testid="notification-bell"
     >

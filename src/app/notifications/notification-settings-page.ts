@@ -36,6 +36,7 @@ const fromLocalInput = (v: string) => new Date(v).toISOString();
     MatSlideToggleModule,
   ],
   templateUrl: './notification-settings-page.html',
+  styleUrl: './notification-settings-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class NotificationSettingsPage implements OnInit {
