@@ -32,6 +32,12 @@ import * as m20261204100200 from './20261204100200_create_ticket_alarms';
 import * as m20261204100300 from './20261204100300_create_owner_sla';
 import * as m20261204110000 from './20261204110000_create_ticket_files';
 import * as m20261204110100 from './20261204110100_create_demo_history';
+import * as m20261207100000 from './20261207100000_create_mail_outbox';
+import * as m20261207100100 from './20261207100100_create_notification_settings';
+import * as m20261207100200 from './20261207100200_create_on_call';
+import * as m20261207100300 from './20261207100300_create_notifications';
+import * as m20261207100400 from './20261207100400_create_ticket_notices';
+import * as m20261207100500 from './20261207100500_create_digest_runs';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -71,6 +77,12 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204100300_create_owner_sla': m20261204100300,
   '20261204110000_create_ticket_files': m20261204110000,
   '20261204110100_create_demo_history': m20261204110100,
+  '20261207100000_create_mail_outbox': m20261207100000,
+  '20261207100100_create_notification_settings': m20261207100100,
+  '20261207100200_create_on_call': m20261207100200,
+  '20261207100300_create_notifications': m20261207100300,
+  '20261207100400_create_ticket_notices': m20261207100400,
+  '20261207100500_create_digest_runs': m20261207100500,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

@@ -57,6 +57,22 @@ const allowedOrigins = z
     return out;
   });
 
+const tcpPort = z.coerce
+  .number({ error: 'a TCP port, a whole number from 1 to 65535' })
+  .int('a TCP port, a whole number from 1 to 65535')
+  .min(1, 'a TCP port, a whole number from 1 to 65535')
+  .max(65535, 'a TCP port, a whole number from 1 to 65535');
+
+const onOff = z.enum(['true', 'false', 'on', 'off', '1', '0'], 'true or false').transform((v) => v === 'true' || v === 'on' || v === '1');
+
+/** `name@host` or `Display Name <name@host>`. */
+const mailFrom = z
+  .string()
+  .trim()
+  .regex(/^(?:[^<>@]*<[^<>@\s]+@[^<>@\s]+>|[^<>@\s]+@[^<>@\s]+)$/, 'an address such as Brightward <ops@example.org>');
+
+const zones = new Set([...Intl.supportedValuesOf('timeZone'), 'UTC']);
+
 /** Runtime settings, read once from the environment and validated at start-up. Defaults are documented in README. */
 const envSchema = z.object({
   BW_HOST: z.string().default('127.0.0.1'),
@@ -106,6 +122,20 @@ const envSchema = z.object({
   BW_S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
   BW_S3_FORCE_PATH_STYLE: z.enum(['true', 'false'], 'true or false').default('true'),
   BW_S3_LOCAL_DIR: z.string().min(1).default('.data/s3'),
+  // Outgoing mail. The defaults reach the local mail service `npm start` runs (server/scripts/mail-sink.ts).
+  BW_SMTP_HOST: z.string().trim().min(1, 'a host name or address').default('127.0.0.1'),
+  BW_SMTP_PORT: tcpPort.default(2525),
+  BW_SMTP_SECURE: onOff.default(false),
+  BW_SMTP_USER: z.string().min(1).optional(),
+  BW_SMTP_PASSWORD: z.string().min(1).optional(),
+  BW_SMTP_FROM: mailFrom.default('Brightward <brightward@localhost>'),
+  BW_MAIL_ATTEMPTS: z.coerce.number().int().min(1, 'at least 1').max(10, 'at most 10').default(4),
+  BW_DIGEST_HOUR: z.coerce.number().int().min(0, 'an hour from 0 to 23').max(23, 'an hour from 0 to 23').default(7),
+  BW_DIGEST_TIME_ZONE: z
+    .string()
+    .refine((v) => zones.has(v), 'an IANA time zone such as Europe/Berlin')
+    .default('UTC'),
+  BW_PUBLIC_URL: z.url({ protocol: /^https?$/, error: 'the dashboard address, such as https://ops.example.org' }).optional(),
 });
 
 /**
@@ -144,6 +174,20 @@ export interface Config {
   allowedOrigins: string[];
   ingest: { retentionDays: number; batchRows: number; flushMs: number; maxBufferRows: number; flushConcurrency: number };
   files: FileStoreConfig;
+  /** The SMTP server mail goes to, the sender, and how many times a message is tried before it counts as failed. */
+  mail: MailConfig;
+  /** The daily digest's local hour and zone; the dashboard address links in mails point to (when known). */
+  notifications: { digestHour: number; digestTimeZone: string; publicUrl?: string };
+}
+
+export interface MailConfig {
+  host: string;
+  port: number;
+  /** TLS from the first byte (port 465 style); otherwise STARTTLS when the server offers it. */
+  secure: boolean;
+  auth?: { user: string; pass: string };
+  from: string;
+  attempts: number;
 }
 
 export class ConfigError extends Error {}
@@ -161,6 +205,8 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
       : e.BW_BROKER_TLS_CERT !== undefined && e.BW_BROKER_TLS_PORT === undefined
         ? 'BW_BROKER_TLS_PORT: required when BW_BROKER_TLS_CERT/BW_BROKER_TLS_KEY are set'
         : null;
+  if (!tlsProblem && (e.BW_SMTP_USER === undefined) !== (e.BW_SMTP_PASSWORD === undefined))
+    throw new ConfigError('Invalid configuration:\n  BW_SMTP_USER and BW_SMTP_PASSWORD: give both or neither');
   if (tlsProblem) throw new ConfigError(`Invalid configuration:\n  ${tlsProblem}`);
   const s3Problem =
     (e.BW_S3_ACCESS_KEY_ID === undefined) !== (e.BW_S3_SECRET_ACCESS_KEY === undefined)
@@ -216,5 +262,20 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
               ? { credentials: { accessKeyId: e.BW_S3_ACCESS_KEY_ID, secretAccessKey: e.BW_S3_SECRET_ACCESS_KEY } }
               : {}),
           },
+    mail: {
+      host: e.BW_SMTP_HOST,
+      port: e.BW_SMTP_PORT,
+      secure: e.BW_SMTP_SECURE,
+      ...(e.BW_SMTP_USER !== undefined && e.BW_SMTP_PASSWORD !== undefined
+        ? { auth: { user: e.BW_SMTP_USER, pass: e.BW_SMTP_PASSWORD } }
+        : {}),
+      from: e.BW_SMTP_FROM,
+      attempts: e.BW_MAIL_ATTEMPTS,
+    },
+    notifications: {
+      digestHour: e.BW_DIGEST_HOUR,
+      digestTimeZone: e.BW_DIGEST_TIME_ZONE,
+      ...(e.BW_PUBLIC_URL ? { publicUrl: e.BW_PUBLIC_URL.replace(/\/$/, '') } : {}),
+    },
   };
 }

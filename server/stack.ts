@@ -24,6 +24,12 @@ import { ticketFileRoutes } from './routes/ticket-file-routes';
 import { demoHistoryRoutes } from './routes/demo-history-routes';
 import { DemoHistoryStatus } from './services/demo-history-status';
 import { HistoryRepository } from './data/history-repository';
+import { MailOutboxRepository } from './data/mail-outbox-repository';
+import { NotificationRepository } from './data/notification-repository';
+import { MailService, type MailOptions } from './services/mail-service';
+import { NotificationService, type NotificationOptions } from './services/notification-service';
+import { notificationRoutes } from './routes/notification-routes';
+import { smtpTransport, type MailTransport } from './mail/smtp-transport';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -85,6 +91,8 @@ export interface Stack {
   tickets: TicketService;
   /** Where ticket files' bytes are (the S3 API: a bucket, or the local store this process started). */
   files: FileStore;
+  mail: MailService;
+  notifications: NotificationService;
   /** Resolves when the modelled best of every site's last day is cached (the first day of traces opens without waiting). */
   landscapesWarm: Promise<void>;
   http: Server;
@@ -109,6 +117,10 @@ export interface StackOptions {
   health?: Partial<HealthServiceOptions>;
   /** Ticket rules' delays and clock (tests). */
   tickets?: Partial<TicketOptions>;
+  /** Mail tries and waits, and where mail goes instead of the configured SMTP server (tests). */
+  mail?: Partial<MailOptions> & { transport?: MailTransport };
+  /** Escalation delay, digest hour and clock (tests). */
+  notifications?: Partial<NotificationOptions>;
   /** How often open live sockets have their session checked again [ms]; default 30 s. */
   sessionRecheckMs?: number;
   /** Broker limits other than the defaults (tests). */
@@ -292,6 +304,21 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   );
   const tickets = new TicketService(ticketRepo, admin, commands, log, { now: healthOpts.now, ...opts.tickets }, ticketFiles);
   health.onAlarmRaised((a) => void tickets.onAlarmRaised(a));
+  const { transport: mailTransport, ...mailOpts } = opts.mail ?? {};
+  const mail = new MailService(new MailOutboxRepository(db), mailTransport ?? smtpTransport(config.mail), log, {
+    attempts: config.mail.attempts,
+    now: healthOpts.now,
+    ...mailOpts,
+  });
+  const notifications = new NotificationService(
+    new NotificationRepository(db),
+    mail,
+    live,
+    (id) => tickets.get({ id: 0, role: 'admin', ownerId: null }, id),
+    log,
+    { ...config.notifications, now: healthOpts.now, ...opts.notifications },
+  );
+  tickets.onEvent((e) => notifications.onTicketEvent(e));
   const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];
@@ -307,6 +334,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   retention.start();
   commands.start();
   tickets.start();
+  notifications.start();
+  void mail.resume().catch((err) => log.error({ err }, 'queued mail not resumed'));
   await health.start();
   brokerRef = broker;
 
@@ -345,6 +374,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       ticketRoutes(tickets, alarmService, auditLog),
       ticketFileRoutes(ticketFiles),
       demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),
+      notificationRoutes(notifications, mail),
     ],
   });
   const http = createServer(app);
@@ -375,7 +405,11 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       ingest.stop();
       await health.stop();
       tickets.stop();
+      notifications.stop();
       await tickets.settle();
+      await notifications.settle();
+      await mail.settle();
+      mail.stop();
       rollups.stop();
       retention.stop();
       await rollups.runOnce({ includeOpenMinutes: true }).catch(() => undefined);
@@ -399,6 +433,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     health,
     tickets,
     files: fileStore,
+    mail,
+    notifications,
     landscapesWarm,
   };
 }

@@ -47,13 +47,18 @@ fi
 # does it again.
 node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts fill ||
   echo "[start] the demo's past could not be generated (see above); starting without it, the next start tries again"
+# The local mail service: every message the server sends lands in .data/mail/ (nothing leaves the machine).
+export BW_SMTP_HOST=127.0.0.1 BW_SMTP_PORT=${BW_SMTP_PORT:-2525}
+setsid node --import tsx server/scripts/mail-sink.ts &
+children+=($!)
 
 # Own sessions: Ctrl-C reaches this script only, which then stops the children in order. The server runs under a
 # supervisor that starts it again if it ever dies (units store and forward meanwhile, and unacknowledged readings are resent).
 setsid bash server/scripts/supervise.sh server node --import tsx server/main.ts &
-children+=($!)
+server_pid=$!
+children+=($server_pid)
 for _ in $(seq 1 100); do curl -sf "http://$HOST:$PORT/api/health" >/dev/null 2>&1 && break; sleep 0.2; done
-if ! kill -0 "${children[0]}" 2>/dev/null; then echo "[start] the server did not start (see above)"; exit 1; fi
+if ! kill -0 "$server_pid" 2>/dev/null; then echo "[start] the server did not start (see above)"; exit 1; fi
 
 setsid node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts background &
 helpers+=($!)
@@ -75,6 +80,7 @@ cat <<MSG
     owner@nyasoro.example        owner (Nyasoro Clinics Trust)
     owner@wattlebank.example     owner (Wattlebank Islands Energy Co-op)
     owner@cedarflats.example     owner (Cedar Flats Irrigation District)
+  Mail goes to the local mail service on 127.0.0.1:$BW_SMTP_PORT and is kept in .data/mail/ (admins: Outbox).
   MQTT broker on ${BW_BROKER_HOST:-127.0.0.1}:${BW_BROKER_PORT:-1884}${BW_BROKER_TLS_PORT:+, MQTT over TLS on port $BW_BROKER_TLS_PORT (${BW_BROKER_TLS_CERT:-development certificate .data/tls/broker-cert.pem})}.
   Press Ctrl-C to stop everything.
 

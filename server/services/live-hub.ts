@@ -146,6 +146,11 @@ export class LiveHub {
     for (const sub of this.subscribers) if (this.watches(sub, unit)) sub.send(msg);
   }
 
+  /** A message for one person only (their notifications), to each of their open dashboards. */
+  publishToUser(userId: number, msg: LiveServerMessage): void {
+    for (const sub of this.subscribers) if (sub.caller.id === userId) sub.send(msg);
+  }
+
   connect(caller: Caller, send: (msg: LiveServerMessage) => void): LiveSession {
     const sub: Subscriber = { caller, send, sites: new Set(), units: new Set(), fleet: false };
     this.subscribers.add(sub);

@@ -62,6 +62,24 @@ export interface TicketOptions {
   now: () => number;
 }
 
+/** What happened to a ticket, told to listeners once it is stored (notifications). */
+export interface TicketEvent {
+  /** The ticket after the change, as the fleet sees it. */
+  ticket: TicketView;
+  /** null: the ticket was just opened. */
+  from: TicketState | null;
+  to: TicketState;
+  /** Who made the change; null when an alarm did. */
+  byUserId: number | null;
+  /** The alarm that opened or reopened the ticket, if one did. */
+  alarm?: { id: number; severity: string };
+}
+
+export type TicketListener = (e: TicketEvent) => void | Promise<void>;
+
+/** The fleet-wide reader of tickets for listeners (they decide themselves who may hear what). */
+const SYSTEM: Caller = { id: 0, role: 'admin', ownerId: null };
+
 export const DEFAULT_TICKET_OPTIONS: TicketOptions = { p3DelayMs: 4 * 3600_000, reopenWithinMs: 7 * 86_400_000, now: Date.now };
 
 export interface NewTicketRequest {
@@ -100,6 +118,8 @@ export class TicketService {
   private readonly opts: TicketOptions;
   /** Alarms being turned into tickets: one fault's alarms are handled one at a time. */
   private chain: Promise<unknown> = Promise.resolve();
+  private readonly listeners = new Set<TicketListener>();
+  private readonly told = new Set<Promise<void>>();
 
   constructor(
     private readonly repo: TicketRepository,
@@ -125,6 +145,25 @@ export class TicketService {
 
   async settle(): Promise<void> {
     await this.chain.catch(() => undefined);
+    while (this.told.size) await Promise.all([...this.told]);
+  }
+
+  /** Tells `listener` of every ticket opened or moved, after the change is stored; returns the way to stop. */
+  onEvent(listener: TicketListener): () => void {
+    this.listeners.add(listener);
+    return () => this.listeners.delete(listener);
+  }
+
+  /** Listeners run after the change and apart from it: their failures are logged and never reach the caller. */
+  private emit(id: number, from: TicketState | null, to: TicketState, byUserId: number | null, alarm?: TicketEvent['alarm']): void {
+    if (!this.listeners.size) return;
+    const run = (async () => {
+      const ticket = await this.get(SYSTEM, id);
+      for (const l of this.listeners) await l({ ticket, from, to, byUserId, ...(alarm ? { alarm } : {}) });
+    })()
+      .catch((err) => this.log.error({ err, ticketId: id }, 'ticket listener failed'))
+      .finally(() => this.told.delete(run));
+    this.told.add(run);
   }
 
   // ---- reads
@@ -229,6 +268,7 @@ export class TicketService {
       null,
       { userId: c.id, action: 'ticket-open', detail: { unitId: unit?.id ?? null, siteId, severity: req.severity } },
     );
+    this.emit(id, null, 'new', c.id);
     return this.get(c, id);
   }
 
@@ -302,11 +342,14 @@ export class TicketService {
         { userId: by, action: 'ticket-reopen', target: `ticket:${last.id}`, detail: { alarmId: a.id, automatic: by === null } },
         link,
       );
-      if (ok) return last.id;
+      if (ok) {
+        this.emit(last.id, last.state, 'reopened', by, { id: a.id, severity: a.severity });
+        return last.id;
+      }
     }
     const severity = (ALARM_SEVERITIES as readonly string[]).includes(a.severity) ? (a.severity as AlarmSeverity) : 'P3';
     const unit = a.unitId !== null ? await this.admin.getUnit({ id: 0, role: 'admin', ownerId: null }, a.unitId).catch(() => null) : null;
-    return this.repo.insert(
+    const id = await this.repo.insert(
       {
         siteId: a.siteId,
         unitId: a.unitId,
@@ -324,6 +367,8 @@ export class TicketService {
       link,
       { userId: by, action: 'ticket-open', detail: { alarmId: a.id, automatic: by === null, severity } },
     );
+    this.emit(id, null, 'new', by, { id: a.id, severity });
+    return id;
   }
 
   /** A technician's one step from an alarm card: the ticket of the alarm's fault (found, reopened or opened). */
@@ -446,6 +491,7 @@ export class TicketService {
     }
     if (rule.hold === 'release')
       await this.releaseHolds(c, t.id, unitIds, `Ticket ${t.id} ${req.to === 'waiting' ? 'checked out (waiting)' : req.to}.`);
+    this.emit(t.id, t.state, req.to, c.id);
     return this.get(c, t.id);
   }
 

@@ -2,6 +2,7 @@ import type { AlarmLiveItem } from './alarms';
 import type { HoldView } from './holds';
 import type { UnitConfig } from './wire';
 import type { CommandKind, UnitMode } from './wire-format';
+import type { NotificationView } from './notifications';
 
 /** The latest known state of a unit, as pushed to dashboards (at most once a second per unit). */
 export interface UnitLiveState {
@@ -80,4 +81,6 @@ export type LiveServerMessage =
   | { type: 'command'; command: CommandView }
   /** An alarm raised, updated, cleared or acknowledged, or a wind-stow event. */
   | { type: 'alarm'; alarm: AlarmLiveItem }
+  /** For this person only: a new notification (or null when some were read), and how many are unread now. */
+  | { type: 'notification'; notification: NotificationView | null; unread: number }
   | { type: 'error'; code: string; message: string };

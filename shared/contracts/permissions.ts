@@ -40,6 +40,12 @@ export const PERMISSIONS = {
   addTicketFiles: ['technician', 'engineer', 'admin', 'crew'],
   /** A crew member's own list of assigned tickets (their landing page). */
   openMyWork: ['crew'],
+  /** The mail outbox: every message sent, with its delivery. */
+  readOutbox: ['admin'],
+  /** Read and change the on-call rota. */
+  manageOnCall: ['technician', 'engineer', 'admin'],
+  /** One's own notifications and notification settings (owners hear about their own sites only). */
+  receiveNotifications: ROLES,
   /** Owners read their own sites' tickets only. */
   readTickets: ROLES,
   /** Progress of the demo's generated past (the admin page's line). */

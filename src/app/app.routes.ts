@@ -60,6 +60,13 @@ export const routes: Routes = [
         loadComponent: () => import('./tickets/ticket-board').then((m) => m.TicketBoard),
       },
       {
+        path: 'notifications',
+        title: 'Notifications · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/notifications') },
+        loadComponent: () => import('./notifications/notification-settings-page').then((m) => m.NotificationSettingsPage),
+      },
+      {
         path: 'tickets/:id',
         title: 'Ticket · Brightward',
         canActivate: [roleGuard],

@@ -28,6 +28,7 @@ import { signInJourney } from './journeys/sign-in';
 import { tracesJourney } from './journeys/traces';
 import { unitCommandsJourney } from './journeys/unit-commands';
 import { ticketsJourney } from './journeys/tickets';
+import { notificationsJourney } from './journeys/notifications';
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const OUTPUT = join(ROOT, 'test/.output/e2e');
@@ -47,6 +48,7 @@ const JOURNEYS: readonly Journey[] = [
   tracesJourney,
   landscapeJourney,
   ticketsJourney,
+  notificationsJourney,
   plainWordsJourney,
 ];
 

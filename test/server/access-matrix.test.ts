@@ -171,6 +171,17 @@ const ROUTES: Row[] = [
   row('POST /api/health/run',                      () => ({ path: '/api/health/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z' } }),
                                                                                                                                           401, 308, 308, 308, 308, 308),
 
+  // Mail and notifications: the outbox is admins'; everyone has their own notifications and settings (owners choose among
+  // their own sites only: another owner's site is refused as unknown); the on-call rota is the control room's.
+  row('GET /api/mail/outbox',                      () => '/api/mail/outbox?limit=5',                                                      401, 200, 403, 403, 403, 403),
+  row('GET /api/me/notification-settings',         () => '/api/me/notification-settings',                                                 401, 200, 200, 200, 200, 200),
+  row('PUT /api/me/notification-settings',         (w, s) => ({ path: '/api/me/notification-settings', body: { siteIds: [w[s].siteId], severities: ['P1'], email: true, dashboard: true } }),
+                                                                                                                                          401, 200, 200, 200, 200, [200, 400]),
+  row('GET /api/notifications',                    () => '/api/notifications',                                                            401, 200, 200, 200, 200, 200),
+  row('POST /api/notifications/:id/read',          () => ({ path: '/api/notifications/999999/read', body: {} }),                          401, 404, 404, 404, 404, 404),
+  row('GET /api/on-call',                          () => '/api/on-call',                                                                  401, 200, 200, 200, 403, 403),
+  row('PUT /api/on-call',                          () => ({ path: '/api/on-call', body: { entries: [] } }),                               401, 200, 200, 200, 403, 403),
+
   // The audit log: admins only.
   row('GET /api/audit',                            () => '/api/audit?limit=5',                                                            401, 200, 403, 403, 403, 403),
 

@@ -44,4 +44,10 @@ describe('start-up', () => {
     expect(r.stderr).toMatch(/BW_PORT/);
     expect(r.stderr).toMatch(/BW_LOG_LEVEL/);
   });
+
+  it('refuses a mail server port that is no port, naming it, before anything starts', () => {
+    const r = run({ BW_SMTP_PORT: '0' });
+    expect(r.status).toBe(2);
+    expect(r.stderr.trim()).toBe('Invalid configuration:\n  BW_SMTP_PORT: a TCP port, a whole number from 1 to 65535');
+  });
 });

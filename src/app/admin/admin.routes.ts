@@ -33,6 +33,13 @@ export const adminRoutes: Routes = [
     loadComponent: () => import('./units/units-page').then((m) => m.UnitsPage),
   },
   {
+    path: 'outbox',
+    title: 'Outbox · Brightward',
+    canActivate: [roleGuard],
+    data: { roles: rolesFor('/admin/outbox') },
+    loadComponent: () => import('./outbox/outbox-page').then((m) => m.OutboxPage),
+  },
+  {
     path: 'audit',
     title: 'Audit log · Brightward',
     canActivate: [roleGuard],

@@ -36,6 +36,8 @@ export class LiveConnection {
   private attempt = 0;
   private timer: ReturnType<typeof setTimeout> | null = null;
   private readonly topics = new Map<string, { topic: Topic; count: number }>();
+  /** Holders of the socket that subscribe to no topic (they want the messages meant for this person only). */
+  private holders = 0;
   private readonly incoming = new Subject<LiveServerMessage>();
   private readonly stateSignal = signal<LinkState>('offline');
   private readonly nextRetry = signal<number | null>(null);
@@ -60,6 +62,19 @@ export class LiveConnection {
     destroyRef.onDestroy(() => this.unwatch(topic));
   }
 
+  /**
+   * Keeps the socket open for as long as `destroyRef` lives without subscribing to anything: the server's messages for
+   * this person alone (notifications) arrive on any open socket.
+   */
+  hold(destroyRef: DestroyRef = inject(DestroyRef)): void {
+    this.holders++;
+    this.ensureOpen();
+    destroyRef.onDestroy(() => {
+      this.holders--;
+      if (!this.topics.size && !this.holders) this.close();
+    });
+  }
+
   /** Reconnects at once (the "try now" button). */
   reconnectNow(): void {
     if (this.state() === 'live' || this.state() === 'connecting') return;
@@ -74,7 +89,7 @@ export class LiveConnection {
     if (--entry.count > 0) return;
     this.topics.delete(key);
     this.send({ type: 'unsubscribe', ...topic });
-    if (!this.topics.size) this.close();
+    if (!this.topics.size && !this.holders) this.close();
   }
 
   private ensureOpen(): void {
@@ -110,7 +125,7 @@ export class LiveConnection {
       if (this.socket !== socket) return;
       this.socket = null;
       if (event?.code === SESSION_ENDED_CLOSE) this.sessionEnded();
-      else if (this.topics.size) this.scheduleReconnect();
+      else if (this.topics.size || this.holders) this.scheduleReconnect();
       else this.stateSignal.set('offline');
     };
   }

@@ -9,16 +9,18 @@ const EXPECTED: Record<Role, string[]> = {
     'Sites',
     'Trace explorer',
     'Landscape',
+    'Notifications',
     'People',
     'Owners',
     'Site setup',
     'Units and credentials',
+    'Outbox',
     'Audit log',
   ],
-  engineer: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Landscape'],
-  technician: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer'],
-  crew: ['My work', 'Fleet board', 'Alarms', 'Tickets', 'Sites'],
-  owner: ['Alarms', 'Tickets', 'Sites'],
+  engineer: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Landscape', 'Notifications'],
+  technician: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Notifications'],
+  crew: ['My work', 'Fleet board', 'Alarms', 'Tickets', 'Sites', 'Notifications'],
+  owner: ['Alarms', 'Tickets', 'Sites', 'Notifications'],
 };
 
 describe('navigation per role', () => {

@@ -21,10 +21,12 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: rolesWith('readSites') },
   { path: '/traces', label: 'Trace explorer', icon: 'query_stats', group: 'Fleet', roles: rolesWith('readTraces') },
   { path: '/landscape', label: 'Landscape', icon: 'landscape', group: 'Fleet', roles: rolesWith('openLandscape') },
+  { path: '/notifications', label: 'Notifications', icon: 'notifications', group: 'Fleet', roles: rolesWith('receiveNotifications') },
   { path: '/admin/people', label: 'People', icon: 'group', group: 'Administration', roles: rolesWith('administer') },
   { path: '/admin/owners', label: 'Owners', icon: 'handshake', group: 'Administration', roles: rolesWith('administer') },
   { path: '/admin/sites', label: 'Site setup', icon: 'edit_location_alt', group: 'Administration', roles: rolesWith('administer') },
   { path: '/admin/units', label: 'Units and credentials', icon: 'solar_power', group: 'Administration', roles: rolesWith('administer') },
+  { path: '/admin/outbox', label: 'Outbox', icon: 'outbox', group: 'Administration', roles: rolesWith('readOutbox') },
   { path: '/admin/audit', label: 'Audit log', icon: 'history', group: 'Administration', roles: rolesWith('administer') },
 ];
 

@@ -24,7 +24,7 @@ describe('Shell', () => {
   it('lists only the pages a technician may use, with the name and role', async () => {
     const { element } = await renderAs('technician');
     const labels = [...element.querySelectorAll('[data-testid="main-nav"] a [matListItemTitle]')].map((s) => s.textContent!.trim());
-    expect(labels).toEqual(['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer']);
+    expect(labels).toEqual(['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Notifications']);
     expect(element.querySelector('[data-testid="role-chip"]')!.textContent).toContain('O&M technician');
     expect(element.querySelector('[data-testid="user-menu"]')!.textContent).toContain('Mara Okonjo');
     expect(element.textContent).not.toContain('Administration');
@@ -42,10 +42,12 @@ describe('Shell', () => {
       '/sites',
       '/traces',
       '/landscape',
+      '/notifications',
       '/admin/people',
       '/admin/owners',
       '/admin/sites',
       '/admin/units',
+      '/admin/outbox',
       '/admin/audit',
     ]);
   });

@@ -12,6 +12,7 @@ import { MatTooltipModule } from '@angular/material/tooltip';
 import { Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
 import { map } from 'rxjs';
 import { ROLE_LABELS } from '../auth/roles';
+import { NotificationBell } from '../notifications/notification-bell';
 import { Session } from '../auth/session';
 import { Notify } from '../ui/notify';
 import { toApiProblem } from '../ui/api-error';
@@ -32,6 +33,7 @@ const NARROW = '(max-width: 899.98px)';
     MatSidenavModule,
     MatToolbarModule,
     MatTooltipModule,
+    NotificationBell,
     RouterLink,
     RouterLinkActive,
     RouterOutlet,

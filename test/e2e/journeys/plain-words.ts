@@ -181,6 +181,8 @@ export const plainWordsJourney: Journey = {
       { path: '/admin/sites', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
       { path: '/admin/units', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
       { path: '/admin/audit', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
+      { path: '/admin/outbox', ready: heading('Outbox'), roles: ['admin'] },
+      { path: '/notifications', ready: (p) => p.getByTestId('settings-form').waitFor(), roles: [...STAFF, 'owner'] },
       { path: '/account/password', ready: heading(/password/i), roles: [...STAFF, 'owner'] },
     ];
 
