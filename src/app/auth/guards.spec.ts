@@ -118,7 +118,7 @@ describe('application routes', () => {
     const admin = appRoutes.find((route) => route.path === '')!.children!.find((route) => route.path === 'admin')!;
     expect(admin.data?.['roles']).toEqual(['admin']);
     const pages = adminRoutes.filter((route) => route.loadComponent);
-    expect(pages.map((route) => route.path)).toEqual(['people', 'owners', 'sites', 'units', 'audit']);
+    expect(pages.map((route) => route.path)).toEqual(['people', 'owners', 'sites', 'units', 'outbox', 'audit']);
     for (const page of pages) {
       expect(page.canActivate).toContain(roleGuard);
       expect(page.data?.['roles']).toEqual(['admin']);
