@@ -30,6 +30,7 @@ import * as m20261204100000 from './20261204100000_create_tickets';
 import * as m20261204100100 from './20261204100100_create_ticket_transitions';
 import * as m20261204100200 from './20261204100200_create_ticket_alarms';
 import * as m20261204100300 from './20261204100300_create_owner_sla';
+import * as m20261205140000 from './20261205140000_add_telemetry_15m_statement_columns';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -67,6 +68,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261204100100_create_ticket_transitions': m20261204100100,
   '20261204100200_create_ticket_alarms': m20261204100200,
   '20261204100300_create_owner_sla': m20261204100300,
+  '20261205140000_add_telemetry_15m_statement_columns': m20261205140000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

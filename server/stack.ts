@@ -17,6 +17,9 @@ import { auditRoutes } from './routes/audit-routes';
 import { TicketRepository } from './data/ticket-repository';
 import { TicketService, type TicketOptions } from './services/ticket-service';
 import { ticketRoutes } from './routes/ticket-routes';
+import { statementRoutes } from './routes/statement-routes';
+import { StatementService } from './services/statement-service';
+import { StatementRepository } from './data/statement-repository';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -28,6 +31,7 @@ import { CommandStore } from './data/command-repository';
 import { UnitDirectory, type UnitInfo } from './services/unit-directory';
 import { IngestService, type IngestListeners, type IngestOptions } from './services/ingest-service';
 import { RollupWorker } from './services/rollup-worker';
+import { QuarterModelService } from './services/quarter-model-service';
 import { RetentionJob } from './services/retention-job';
 import { LiveHub } from './services/live-hub';
 import { CommandService, type CommandOptions } from './services/command-service';
@@ -153,7 +157,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       ? Promise.resolve()
       : landscapes.startWarming(() => [...new Set(directory.all().map((u) => u.siteId))], log);
   const telemetry = new TelemetryRepository(db);
-  const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
+  const quarterModel = new QuarterModelService(telemetry, siteModel, log);
+  const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000, undefined, undefined, quarterModel);
   const healthOpts: HealthServiceOptions = { ...DEFAULT_HEALTH_SERVICE_OPTIONS, ...opts.health };
   const alarmRepo = new AlarmRepository(db);
   const healthReads = new HealthReadRepository(db);
@@ -311,6 +316,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       }),
       auditRoutes(auditLog),
       ticketRoutes(tickets, alarmService, auditLog),
+      statementRoutes(new StatementService(new StatementRepository(db), admin, tickets, healthOpts.now), auditLog),
     ],
   });
   const http = createServer(app);

@@ -3,3 +3,4 @@ export * from './yields-iec-61724-1';
 export * from './energy-integration';
 export * from './availability';
 export * from './calendar-month';
+export * from './mount-twins';
