@@ -16,6 +16,7 @@ const siteParam = z.strictObject({ id: z.coerce.number().int().positive('Must be
  *   GET /sites/:id/statements                 months with data, newest first
  *   GET /sites/:id/statements/:month          the statement (JSON); :month = YYYY-MM
  *   GET /sites/:id/statements/:month.csv      the same as CSV (RFC 4180; audited as an export)
+ *   GET /sites/:id/statement-trend            this month so far and the twelve before it (headline figures)
  * Owners see their own sites only (404 elsewhere); staff see every site.
  */
 export function statementRoutes(statements: StatementService, audit: AuditService): Router {
@@ -23,6 +24,10 @@ export function statementRoutes(statements: StatementService, audit: AuditServic
 
   r.get('/sites/:id/statements', requireRole('readStatements'), async (req, res) => {
     res.json(await statements.months(callerOf(req), parse(siteParam, req.params).id));
+  });
+
+  r.get('/sites/:id/statement-trend', requireRole('readStatements'), async (req, res) => {
+    res.json(await statements.trend(callerOf(req), parse(siteParam, req.params).id));
   });
 
   r.get('/sites/:id/statements/:month.csv', requireRole('readStatements'), async (req, res) => {

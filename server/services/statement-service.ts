@@ -1,7 +1,15 @@
-import type { MonthlyStatement, StatementMonthList } from '../../shared/contracts/statements';
+import type { MonthlyStatement, StatementMonthList, StatementTrend } from '../../shared/contracts/statements';
 import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module';
 import { csvLine } from '../../shared/csv/csv-field';
-import { isoWithOffset, localMonth, monthOfInstant, nextMonthOf, parseMonth, type LocalMonth } from '../../shared/pv-performance';
+import {
+  isoWithOffset,
+  localMonth,
+  monthOfInstant,
+  nextMonthOf,
+  parseMonth,
+  previousMonthOf,
+  type LocalMonth,
+} from '../../shared/pv-performance';
 import type { StatementRepository } from '../data/statement-repository';
 import { badRequest } from '../errors/app-error';
 import type { AdminService } from './admin-service';
@@ -40,6 +48,31 @@ export class StatementService {
         months.push({ month: m, partial: m >= current });
     }
     return { siteId: site.id, siteName: site.name, timeZone: site.timeZone, months: months.reverse() };
+  }
+
+  /** The current month so far and the twelve before it (oldest first), from each month's statement. */
+  async trend(c: Caller, siteId: number): Promise<StatementTrend> {
+    const site = await this.admin.getSite(c, siteId);
+    let m = monthOfInstant(this.now(), site.timeZone);
+    const wanted: string[] = [];
+    for (let i = 0; i < 13; i++, m = previousMonthOf(m)) wanted.unshift(m);
+    const months: StatementTrend['months'] = [];
+    for (const month of wanted) {
+      const s = await this.statement(c, site.id, month);
+      months.push({
+        month,
+        partial: s.partial,
+        energyKwh: s.site.energyKwh,
+        yfH: s.site.yfH,
+        pr: s.site.pr,
+        availabilityTimeContractual: s.site.availability.timeContractual,
+        availabilityEnergyContractual: s.site.availability.energyContractual,
+        gainOverFixedPct: s.site.gains.gainOverFixedPct,
+        gainOverSunPct: s.site.gains.gainOverSunPct,
+        completeness: s.site.completeness,
+      });
+    }
+    return { siteId: site.id, siteName: site.name, timeZone: site.timeZone, months };
   }
 
   async statement(c: Caller, siteId: number, month: string): Promise<MonthlyStatement> {

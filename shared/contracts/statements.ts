@@ -145,3 +145,25 @@ export interface MonthlyStatement {
     notes: string[];
   };
 }
+
+/** One month of a site's trend (`GET /api/sites/:id/statement-trend`): the headline figures of its statement. */
+export interface StatementTrendMonth {
+  month: string;
+  partial: boolean;
+  energyKwh: number;
+  yfH: number | null;
+  pr: number | null;
+  availabilityTimeContractual: number | null;
+  availabilityEnergyContractual: number | null;
+  gainOverFixedPct: number | null;
+  gainOverSunPct: number | null;
+  completeness: number;
+}
+
+/** The current month so far and the twelve before it, oldest first. */
+export interface StatementTrend {
+  siteId: number;
+  siteName: string;
+  timeZone: string;
+  months: StatementTrendMonth[];
+}

@@ -10,7 +10,7 @@ import request from 'supertest';
 import { startTestStack } from '../helpers/test-stack';
 import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import { localMonth } from '../../shared/pv-performance';
-import type { MonthlyStatement, StatementMonthList } from '../../shared/contracts/statements';
+import type { MonthlyStatement, StatementMonthList, StatementTrend } from '../../shared/contracts/statements';
 import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
@@ -328,6 +328,16 @@ describe('statement API', () => {
     await other.get(`/api/sites/${siteId}/statements/2026-06.csv`).expect(404);
     await (await as(OWNER)).get(`/api/sites/${otherSiteId}/statements/2026-06`).expect(404);
     await request(stack.http).get(`/api/sites/${siteId}/statements/2026-06`).expect(401);
+  });
+
+  it('gives the trend: this month so far and the twelve before it, oldest first, June with its statement figures', async () => {
+    const t = (await (await as(OWNER)).get(`/api/sites/${siteId}/statement-trend`).expect(200)).body as StatementTrend;
+    expect(t.months).toHaveLength(13);
+    expect(t.months[12]!.partial).toBe(true);
+    const june = t.months.find((m) => m.month === '2026-06')!;
+    expect(june.energyKwh).toBeCloseTo(statement.site.energyKwh, 6);
+    expect(june.pr).toBe(statement.site.pr);
+    await (await as(OTHER_OWNER)).get(`/api/sites/${siteId}/statement-trend`).expect(404);
   });
 
   it('names a bad month', async () => {
