@@ -57,11 +57,30 @@ export class StatementService {
     const wanted: string[] = [];
     for (let i = 0; i < 13; i++, m = previousMonthOf(m)) wanted.unshift(m);
     const months: StatementTrend['months'] = [];
+    const span = await this.repo.span(site.id);
+    const first = span ? monthOfInstant(span.firstMs, site.timeZone) : null;
     for (const month of wanted) {
+      if (first === null || month < first) {
+        months.push({
+          month,
+          partial: month === wanted[wanted.length - 1],
+          hasData: false,
+          energyKwh: 0,
+          yfH: null,
+          pr: null,
+          availabilityTimeContractual: null,
+          availabilityEnergyContractual: null,
+          gainOverFixedPct: null,
+          gainOverSunPct: null,
+          completeness: 0,
+        });
+        continue;
+      }
       const s = await this.statement(c, site.id, month);
       months.push({
         month,
         partial: s.partial,
+        hasData: true,
         energyKwh: s.site.energyKwh,
         yfH: s.site.yfH,
         pr: s.site.pr,

@@ -150,6 +150,8 @@ export interface MonthlyStatement {
 export interface StatementTrendMonth {
   month: string;
   partial: boolean;
+  /** Whether the site had reported by the end of this month (months before its first report carry no figures). */
+  hasData: boolean;
   energyKwh: number;
   yfH: number | null;
   pr: number | null;

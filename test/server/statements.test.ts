@@ -337,6 +337,8 @@ describe('statement API', () => {
     const june = t.months.find((m) => m.month === '2026-06')!;
     expect(june.energyKwh).toBeCloseTo(statement.site.energyKwh, 6);
     expect(june.pr).toBe(statement.site.pr);
+    expect(june.hasData).toBe(true);
+    expect(t.months.filter((m) => m.month < '2026-06').every((m) => !m.hasData && m.energyKwh === 0 && m.pr === null)).toBe(true);
     await (await as(OTHER_OWNER)).get(`/api/sites/${siteId}/statement-trend`).expect(404);
   });
 

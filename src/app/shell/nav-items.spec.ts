@@ -18,7 +18,7 @@ const EXPECTED: Record<Role, string[]> = {
   engineer: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Landscape'],
   technician: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer'],
   crew: ['My work', 'Fleet board', 'Alarms', 'Tickets', 'Sites'],
-  owner: ['Alarms', 'Tickets', 'Sites'],
+  owner: ['Portfolio', 'Alarms', 'Tickets', 'Sites'],
 };
 
 describe('navigation per role', () => {
