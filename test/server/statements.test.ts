@@ -16,7 +16,7 @@ import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module'
 let stack: Awaited<ReturnType<typeof startTestStack>>;
 let siteId = 0;
 let otherSiteId = 0;
-const ids: Record<'A' | 'B', number> = { A: 0, B: 0 };
+const ids: Record<'A' | 'B' | 'C', number> = { A: 0, B: 0, C: 0 };
 const P0_WP = 420;
 const E0_WH = (P0_WP / 1000) * 0.8 * 800 * 0.25; // a normal daylight bucket: P0 × PR 0.8 × 800 W/m² × 0.25 h = 67.2 Wh
 const Q = 15 * 60_000;
@@ -57,7 +57,7 @@ beforeAll(async () => {
   otherSiteId = (
     await db('sites as s').join('owners as o', 'o.id', 's.owner_id').where('o.name', 'Fenwick Lane Schools Trust').first('s.id')
   ).id;
-  for (const k of ['A', 'B'] as const) {
+  for (const k of ['A', 'B', 'C'] as const) {
     ids[k] = (
       await db('units').insert({
         serial: `STM-TEST-${k}`,
@@ -109,6 +109,21 @@ beforeAll(async () => {
       rows.push(row);
     }
   }
+  // Unit C: older rows without the statement columns (no modes, temperature or model), daylight of 1–5 June only.
+  for (let b = month.fromMs; b < month.toMs; b += Q) {
+    const h = localHour(b);
+    if (localDay(b) > 5 || h < 6 || h >= 18) continue;
+    rows.push({
+      unit_id: ids.C,
+      bucket: new Date(b),
+      minutes: 15,
+      samples: 180,
+      poa_avg_wm2: 800,
+      poa_max_wm2: 800,
+      dc_power_avg_w: E0_WH * 4,
+      energy_wh: E0_WH,
+    });
+  }
   for (let i = 0; i < rows.length; i += 2000) await db('telemetry_15m').insert(rows.slice(i, i + 2000));
   const opened = new Date(Date.parse('2026-06-12T07:55:00Z'));
   await db('tickets').insert({
@@ -133,7 +148,7 @@ afterAll(async () => {
 });
 
 let statement: MonthlyStatement;
-const unit = (k: 'A' | 'B') => statement.units.find((u) => u.unitId === ids[k])!;
+const unit = (k: 'A' | 'B' | 'C') => statement.units.find((u) => u.unitId === ids[k])!;
 
 describe('monthly statement of a hand-built month', () => {
   beforeAll(async () => {
@@ -167,7 +182,7 @@ describe('monthly statement of a hand-built month', () => {
     expect(a.completeness).toBeCloseTo((2880 - 4 - 96) / 2880, 4);
     const day20 = statement.days.find((d) => d.date === '2026-06-20')!;
     expect(day20.energyKwh).toBeCloseTo((48 * E0_WH) / 1000, 3); // unit B only
-    expect(day20.completeness).toBeCloseTo(0.5, 4);
+    expect(day20.completeness).toBeCloseTo(1 / 3, 4); // of three units only B reported that day
     const normal = 1440 - 4 - 4 - 4 - 48 - 8;
     expect(a.energyKwh).toBeCloseTo((normal * E0_WH + (8 * E0_WH) / 2) / 1000, 3);
   });
@@ -244,6 +259,17 @@ describe('monthly statement of a hand-built month', () => {
     expect(unit('A').gains.fixedTwinKwh).toBeCloseTo(((1440 - 8) * E0_WH * 600) / 800 / 1000 + (8 * (E0_WH / 2) * 600) / 400 / 1000, 2);
   });
 
+  it('takes rows without the statement columns: energy and PR count, PR_STC has none, and the share modelled is stated', () => {
+    const c = unit('C');
+    expect(c.energyKwh).toBeCloseTo((5 * 48 * E0_WH) / 1000, 3);
+    expect(c.pr).toBeCloseTo(0.8, 4);
+    expect(c.prStc).toBeNull();
+    // Its own rows carry no model; the 25 days without rows borrow the site's modelled values.
+    expect(c.modelledShare).toBeCloseTo((1440 - 5 * 48) / 1440, 4);
+    expect(c.completeness).toBeCloseTo((5 * 48) / 2880, 4);
+    expect(statement.assumptions.notes.join(' ')).toMatch(/Modelled values cover \d+(\.\d)? % of the daylight buckets/);
+  });
+
   it('reports the tickets of the month', () => {
     expect(statement.tickets.opened).toBe(1);
     expect(statement.tickets.closed).toBe(1);
@@ -314,9 +340,9 @@ describe('statement API', () => {
       'rated_power_kWp',
       'final_yield_kWh_kWp',
     ]);
-    expect(lines).toHaveLength(1 + 1 + 2 + 30 + 1); // header, site, units, days, the empty line after the last CRLF
+    expect(lines).toHaveLength(1 + 1 + 3 + 30 + 1); // header, site, units, days, the empty line after the last CRLF
     expect(lines[3]!.startsWith(`${siteId},unit,STM-TEST-B,2026-06-01T00:00:00+02:00,2026-07-01T00:00:00+02:00,`)).toBe(true);
-    const day = lines[4]!.split(',');
+    const day = lines[5]!.split(',');
     expect(day[1]).toBe('day');
     expect(day[2]).toBe(''); // no serial on a site day: empty = missing
   });
@@ -340,6 +366,16 @@ describe('statement API', () => {
     expect(june.hasData).toBe(true);
     expect(t.months.filter((m) => m.month < '2026-06').every((m) => !m.hasData && m.energyKwh === 0 && m.pr === null)).toBe(true);
     await (await as(OTHER_OWNER)).get(`/api/sites/${siteId}/statement-trend`).expect(404);
+  });
+
+  it('states a daylight-saving month in the site calendar: October 2026 in Europe/Berlin has 745 hours, its 25th 25', async () => {
+    const oct = (await (await as(ADMIN)).get(`/api/sites/${siteId}/statements/2026-10`).expect(200)).body as MonthlyStatement;
+    expect(oct.hours).toBe(745);
+    expect(oct.from).toBe('2026-10-01T00:00:00+02:00');
+    expect(oct.to).toBe('2026-11-01T00:00:00+01:00');
+    expect(oct.days.find((d) => d.date === '2026-10-25')!.hours).toBe(25);
+    expect(oct.site.energyKwh).toBe(0);
+    expect(oct.site.completeness).toBe(0);
   });
 
   it('names a bad month', async () => {
