@@ -74,7 +74,8 @@ interface Sums {
   prStcDen: number;
   daylightBuckets: number;
   modelledDaylightBuckets: number;
-  periods: AvailabilityPeriod[];
+  /** Daylight availability periods summed per downtime category ('up' = available): availability only sums them. */
+  periods: Map<AvailabilityCategory | 'up', AvailabilityPeriod>;
   modelledBest: number;
   measuredModelled: number;
   trapped: number;
@@ -96,7 +97,7 @@ const emptySums = (): Sums => ({
   prStcDen: 0,
   daylightBuckets: 0,
   modelledDaylightBuckets: 0,
-  periods: [],
+  periods: new Map(),
   modelledBest: 0,
   measuredModelled: 0,
   trapped: 0,
@@ -108,11 +109,42 @@ const emptySums = (): Sums => ({
   sunTwin: 0,
 });
 
+function addPeriod(s: Sums, category: AvailabilityCategory | null, durationMs: number, actualKwh: number, lostKwh: number): void {
+  const key = category ?? 'up';
+  const p = s.periods.get(key);
+  if (p) {
+    p.durationMs += durationMs;
+    p.actualKwh += actualKwh;
+    p.lostKwh += lostKwh;
+  } else s.periods.set(key, { durationMs, daylight: true, downCategory: category, actualKwh, lostKwh });
+}
+
+/** Adds b's sums into a (written out field by field: this runs for every unit and bucket of a month). */
 function addInto(a: Sums, b: Sums): void {
-  for (const k of Object.keys(a) as (keyof Sums)[]) {
-    if (k === 'periods') a.periods.push(...b.periods);
-    else if (k !== 'p0Kwp') a[k] += b[k];
-  }
+  a.energyKwh += b.energyKwh;
+  a.p0HiKwh += b.p0HiKwh;
+  a.minutes += b.minutes;
+  a.expectedMinutes += b.expectedMinutes;
+  a.prStcNum += b.prStcNum;
+  a.prStcDen += b.prStcDen;
+  a.daylightBuckets += b.daylightBuckets;
+  a.modelledDaylightBuckets += b.modelledDaylightBuckets;
+  a.modelledBest += b.modelledBest;
+  a.measuredModelled += b.measuredModelled;
+  a.trapped += b.trapped;
+  a.downtime += b.downtime;
+  a.held += b.held;
+  a.stowed += b.stowed;
+  a.soiling += b.soiling;
+  a.fixedTwin += b.fixedTwin;
+  a.sunTwin += b.sunTwin;
+  for (const p of b.periods.values()) addPeriod(a, p.downCategory, p.durationMs, p.actualKwh, p.lostKwh);
+}
+
+function clearSums(s: Sums): void {
+  s.energyKwh = s.p0HiKwh = s.minutes = s.expectedMinutes = s.prStcNum = s.prStcDen = 0;
+  s.daylightBuckets = s.modelledDaylightBuckets = s.modelledBest = s.measuredModelled = 0;
+  s.trapped = s.downtime = s.held = s.stowed = s.soiling = s.fixedTwin = s.sunTwin = 0;
 }
 
 const round = (x: number, d: number) => Math.round(x * 10 ** d) / 10 ** d;
@@ -125,8 +157,8 @@ const median = (xs: number[]) => {
 };
 const covers = (fromMs: number, toMs: number | null, atMs: number) => fromMs <= atMs && (toMs === null || atMs < toMs);
 
-function availabilityView(periods: AvailabilityPeriod[]): StatementAvailability {
-  const a = availabilityOf(periods);
+function availabilityView(periods: Map<AvailabilityCategory | 'up', AvailabilityPeriod>): StatementAvailability {
+  const a = availabilityOf([...periods.values()]);
   const r4 = (x: number | null) => (x === null ? null : round(x, 4));
   return {
     timeRaw: r4(a.timeRaw),
@@ -178,6 +210,8 @@ function figuresOf(s: Sums, p0Kwp: number): StatementFigures {
   };
 }
 
+const NO_PIECES: DownPiece[] = [];
+
 interface DownPiece {
   minutes: number;
   category: AvailabilityCategory;
@@ -208,8 +242,13 @@ export function computeStatement(input: StatementInput): StatementResult {
   const from = month.fromMs;
   const until = Math.min(month.toMs, Math.floor(input.untilMs / QUARTER_MS) * QUARTER_MS);
   const nB = Math.max(0, Math.ceil((until - from) / QUARTER_MS));
-  const byUnit = new Map<number, Map<number, StatementQuarter>>(units.map((u) => [u.id, new Map()]));
-  for (const q of input.quarters) byUnit.get(q.unitId)?.set(q.bucketMs, q);
+  const nAll = Math.round((month.toMs - from) / QUARTER_MS);
+  const byUnit = new Map<number, (StatementQuarter | undefined)[]>(units.map((u) => [u.id, new Array(nAll)]));
+  for (const q of input.quarters) {
+    const k = (q.bucketMs - from) / QUARTER_MS;
+    const list = byUnit.get(q.unitId);
+    if (list && Number.isInteger(k) && k >= 0 && k < nAll) list[k] = q;
+  }
 
   // Site-level per bucket: daylight, and a reference irradiance for units without a model.
   const daylight = new Uint8Array(nB);
@@ -224,7 +263,7 @@ export function computeStatement(input: StatementInput): StatementResult {
     let best = -1;
     let poa = -1;
     for (const m of byUnit.values()) {
-      const q = m.get(b);
+      const q = m[i];
       if (!q) continue;
       if (q.modelBestWm2 !== null) best = Math.max(best, q.modelBestWm2);
       if (q.modelFixedWm2 !== null && q.modelSunWm2 !== null && q.modelBestWm2 !== null) {
@@ -254,8 +293,10 @@ export function computeStatement(input: StatementInput): StatementResult {
   for (const u of units) {
     let e = 0;
     let h = 0;
-    for (const q of byUnit.get(u.id)!.values()) {
-      if (q.bucketMs < from || q.bucketMs >= until) continue;
+    const list = byUnit.get(u.id)!;
+    for (let i = 0; i < nB; i++) {
+      const q = list[i];
+      if (!q) continue;
       e += q.energyWh / 1000;
       h += (q.poaAvgWm2 * q.minutes) / 60 / 1000;
     }
@@ -286,15 +327,18 @@ export function computeStatement(input: StatementInput): StatementResult {
       open = null;
     };
 
+    const bucket = emptySums();
+    /** kWh per (W/m² · minute) at the site's median PR. */
+    const kPr = (prMed * p0) / 60 / 1000;
     for (let i = 0; i < nB; i++) {
       const b = from + i * QUARTER_MS;
       const mid = b + QUARTER_MS / 2;
-      const q = rows.get(b);
+      const q = rows[i];
       const ds = daySums[dayOf[i]!]!;
       const minutes = Math.min(15, q?.minutes ?? 0);
       const e = q ? q.energyWh / 1000 : 0;
       const hi = q ? (q.poaAvgWm2 * minutes) / 60 / 1000 : 0;
-      const bucket = emptySums();
+      clearSums(bucket);
       bucket.energyKwh = e;
       bucket.p0HiKwh = p0 * hi;
       bucket.minutes = minutes;
@@ -312,9 +356,9 @@ export function computeStatement(input: StatementInput): StatementResult {
       const held = q?.heldMin ?? 0;
       const fault = q?.faultMin ?? 0;
       const producing = Math.max(0, minutes - stowed - held - fault);
-      const stalled = producing > 0 && stalls.some((a) => covers(a.fromMs, a.toMs, mid));
+      const stalled = producing > 0 && stalls.length > 0 && stalls.some((a) => covers(a.fromMs, a.toMs, mid));
       const gBest = rowModelled ? q.modelBestWm2! : borrowed ? siteBest[i]! : refWm2[i]!;
-      const atBest = (mins: number, g = gBest) => (prMed * p0 * g * mins) / 60 / 1000;
+      const atBest = (mins: number, g = gBest) => kPr * g * mins;
 
       if (borrowed) {
         bucket.modelledBest = atBest(15);
@@ -343,36 +387,28 @@ export function computeStatement(input: StatementInput): StatementResult {
       if (isDay) {
         bucket.daylightBuckets = 1;
         bucket.modelledDaylightBuckets = modelled ? 1 : 0;
-        const ticket = unitTickets.find((t) => covers(t.fromMs, t.toMs, mid));
+        const ticket = unitTickets.length ? unitTickets.find((t) => covers(t.fromMs, t.toMs, mid)) : undefined;
         const piece = (mins: number, category: AvailabilityCategory, source: ExclusionSource): DownPiece | null =>
           mins > 0
             ? ticket
               ? { minutes: mins, category: ticket.category, source: 'ticket', ticketId: ticket.id, lostKwh: atBest(mins) }
               : { minutes: mins, category, source, ticketId: null, lostKwh: atBest(mins) }
             : null;
-        const pieces = [
-          piece(15 - minutes, 'forced-outage', 'comms'),
-          piece(stowed, 'out-of-environmental-specification', 'wind-stow'),
-          piece(held, 'scheduled-maintenance', 'hold'),
-          piece(fault, 'forced-outage', 'fault'),
-          stalled ? piece(producing, 'forced-outage', 'stall') : null,
-        ].filter((p): p is DownPiece => p !== null);
+        const anyDown = minutes < 15 || stowed > 0 || held > 0 || fault > 0 || stalled;
+        const pieces = anyDown
+          ? [
+              piece(15 - minutes, 'forced-outage', 'comms'),
+              piece(stowed, 'out-of-environmental-specification', 'wind-stow'),
+              piece(held, 'scheduled-maintenance', 'hold'),
+              piece(fault, 'forced-outage', 'fault'),
+              stalled ? piece(producing, 'forced-outage', 'stall') : null,
+            ].filter((p): p is DownPiece => p !== null)
+          : NO_PIECES;
         if (stalled) pieces[pieces.length - 1]!.lostKwh = Math.max(0, atBest(producing) - e);
-        for (const p of pieces)
-          bucket.periods.push({
-            durationMs: p.minutes * 60_000,
-            daylight: true,
-            downCategory: p.category,
-            actualKwh: 0,
-            lostKwh: p.lostKwh,
-          });
-        bucket.periods.push({
-          durationMs: (stalled ? 0 : producing) * 60_000,
-          daylight: true,
-          downCategory: null,
-          actualKwh: e,
-          lostKwh: 0,
-        });
+        for (const target of [sums, ds]) {
+          for (const p of pieces) addPeriod(target, p.category, p.minutes * 60_000, 0, p.lostKwh);
+          addPeriod(target, null, (stalled ? 0 : producing) * 60_000, e, 0);
+        }
         // The exclusion list: one interval per run of buckets with the same category, source and ticket.
         const main = pieces.sort((a, c) => c.minutes - a.minutes)[0];
         if (!main) flush();
