@@ -30,6 +30,9 @@ import { MailService, type MailOptions } from './services/mail-service';
 import { NotificationService, type NotificationOptions } from './services/notification-service';
 import { notificationRoutes } from './routes/notification-routes';
 import { smtpTransport, type MailTransport } from './mail/smtp-transport';
+import { statementRoutes } from './routes/statement-routes';
+import { StatementService } from './services/statement-service';
+import { StatementRepository } from './data/statement-repository';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -41,6 +44,7 @@ import { CommandStore } from './data/command-repository';
 import { UnitDirectory, type UnitInfo } from './services/unit-directory';
 import { IngestService, type IngestListeners, type IngestOptions } from './services/ingest-service';
 import { RollupWorker } from './services/rollup-worker';
+import { QuarterModelService } from './services/quarter-model-service';
 import { RetentionJob } from './services/retention-job';
 import { LiveHub } from './services/live-hub';
 import { CommandService, type CommandOptions } from './services/command-service';
@@ -186,7 +190,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       ? Promise.resolve()
       : landscapes.startWarming(() => [...new Set(directory.all().map((u) => u.siteId))], log);
   const telemetry = new TelemetryRepository(db);
-  const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000);
+  const quarterModel = new QuarterModelService(telemetry, siteModel, log);
+  const rollups = new RollupWorker(telemetry, directory, log, opts.rollupIntervalMs ?? 2000, undefined, undefined, quarterModel);
   const healthOpts: HealthServiceOptions = { ...DEFAULT_HEALTH_SERVICE_OPTIONS, ...opts.health };
   const alarmRepo = new AlarmRepository(db);
   const healthReads = new HealthReadRepository(db);
@@ -375,6 +380,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       ticketFileRoutes(ticketFiles),
       demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),
       notificationRoutes(notifications, mail),
+      statementRoutes(new StatementService(new StatementRepository(db), admin, tickets, healthOpts.now), auditLog),
     ],
   });
   const http = createServer(app);

@@ -50,6 +50,11 @@ export class SiteModelRepository {
     return Boolean(r?.indoor);
   }
 
+  /** Mean station weather of a site over a window (a 15-minute bucket). */
+  weatherMean(siteId: number, from: Date, to: Date): Promise<SiteWeather | null> {
+    return weatherMeanOf(this.db, siteId, from, to);
+  }
+
   /** Weather measured at a site near an instant: the latest station reading within 15 minutes before it. */
   async weatherNear(siteId: number, atMs: number): Promise<SiteWeather | null> {
     const row = await this.db('weather')
@@ -60,6 +65,17 @@ export class SiteModelRepository {
       .first('ghi_wm2', 'dhi_wm2');
     return row ? { ghiWm2: row.ghi_wm2, dhiWm2: row.dhi_wm2 } : null;
   }
+}
+
+/** Mean of the station readings of a site in [from, to) (DHI only when every reading has one); null without readings. */
+export async function weatherMeanOf(db: Db, siteId: number, from: Date, to: Date): Promise<SiteWeather | null> {
+  const row = await db('weather')
+    .where('site_id', siteId)
+    .andWhere('ts', '>=', from)
+    .andWhere('ts', '<', to)
+    .first(db.raw('COUNT(*) AS n'), db.raw('AVG(ghi_wm2) AS ghi'), db.raw('AVG(dhi_wm2) AS dhi'), db.raw('COUNT(dhi_wm2) AS ndhi'));
+  if (!row || !Number(row.n)) return null;
+  return { ghiWm2: Number(row.ghi), dhiWm2: Number(row.ndhi) === Number(row.n) ? Number(row.dhi) : null };
 }
 
 /** The stored survey column (JSON text, or parsed by the driver; null before a survey was saved). */

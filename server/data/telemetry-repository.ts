@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
+import { UNIT_MODES } from '../../shared/contracts/wire-format';
 import type { Db } from './db';
 import { TRACE_EXTREMES } from './trace-columns';
 
@@ -125,6 +126,27 @@ export const weatherRowOf = (siteId: number, w: Weather, tsMs: number): WeatherR
 });
 
 const MINUTE_MS = 60_000;
+
+/** Reported modes that get a minutes column in the 15-minute rollup (`<mode>_min`; wire-format UNIT_MODES). */
+const UNIT_MODE_NAMES = UNIT_MODES.filter((m) => /^[a-z]+$/.test(m));
+
+/** A unit's mean orientation in a 15-minute bucket, its site and its travel [°]. */
+export interface QuarterOrientation {
+  unitId: number;
+  siteId: number;
+  tiltDeg: number;
+  azimuthDeg: number;
+  limits: { tiltRangeDeg: [number, number]; azimuthRangeDeg: [number, number] };
+}
+
+/** Modelled in-plane irradiance of one unit's 15-minute bucket [W/m²]. */
+export interface QuarterModelValues {
+  unitId: number;
+  unitWm2: number;
+  bestWm2: number;
+  fixedWm2: number;
+  sunWm2: number;
+}
 
 const QUARTER_MS = 15 * MINUTE_MS;
 
@@ -269,18 +291,89 @@ export class TelemetryRepository {
     );
   }
 
-  /** Recomputes the 15-minute rollup of one bucket from the 1-minute rows. */
+  /**
+   * Recomputes the 15-minute rollup of one bucket from the 1-minute rows (energy, means, orientation, module temperature)
+   * and, while the raw reports are kept, the minutes spent in each reported mode (a minute split between modes counts
+   * its share of reports for each).
+   */
   async rollupQuarter(quarterStartMs: number, unitIds: number[]): Promise<void> {
     if (!unitIds.length) return;
     const from = new Date(quarterStartMs);
     const to = new Date(quarterStartMs + QUARTER_MS);
+    const ids = unitIds.map(() => '?').join(',');
+    const sets = [
+      'minutes',
+      'samples',
+      'poa_avg_wm2',
+      'poa_max_wm2',
+      'dc_power_avg_w',
+      'energy_wh',
+      'module_temp_avg_c',
+      'tilt_avg_deg',
+      'azimuth_avg_deg',
+    ];
     await this.db.raw(
-      `INSERT INTO telemetry_15m (unit_id, bucket, minutes, samples, poa_avg_wm2, poa_max_wm2, dc_power_avg_w, energy_wh)
-       SELECT unit_id, ?, COUNT(*), SUM(samples), AVG(poa_avg_wm2), MAX(poa_max_wm2), AVG(dc_power_avg_w), SUM(energy_wh)
-       FROM telemetry_1m WHERE unit_id IN (${unitIds.map(() => '?').join(',')}) AND bucket >= ? AND bucket < ? GROUP BY unit_id
-       ON DUPLICATE KEY UPDATE minutes = VALUES(minutes), samples = VALUES(samples), poa_avg_wm2 = VALUES(poa_avg_wm2),
-         poa_max_wm2 = VALUES(poa_max_wm2), dc_power_avg_w = VALUES(dc_power_avg_w), energy_wh = VALUES(energy_wh)`,
+      `INSERT INTO telemetry_15m (unit_id, bucket, ${sets.join(', ')})
+       SELECT unit_id, ?, COUNT(*), SUM(samples), AVG(poa_avg_wm2), MAX(poa_max_wm2), AVG(dc_power_avg_w), SUM(energy_wh),
+              AVG(module_temp_avg_c), AVG(tilt_avg_deg),
+              MOD(DEGREES(ATAN2(AVG(SIN(RADIANS(azimuth_avg_deg))), AVG(COS(RADIANS(azimuth_avg_deg))))) + 360, 360)
+       FROM telemetry_1m WHERE unit_id IN (${ids}) AND bucket >= ? AND bucket < ? GROUP BY unit_id
+       ON DUPLICATE KEY UPDATE ${sets.map((c) => `${c} = VALUES(${c})`).join(', ')}`,
       [from, ...unitIds, from, to],
+    );
+    const share = UNIT_MODE_NAMES.map((m) => `SUM(mode = '${m}') / COUNT(*) AS ${m}`).join(', ');
+    await this.db.raw(
+      `UPDATE telemetry_15m q JOIN (
+         SELECT unit_id, ${UNIT_MODE_NAMES.map((m) => `SUM(${m}) AS ${m}`).join(', ')} FROM (
+           SELECT unit_id, FLOOR(UNIX_TIMESTAMP(ts) / 60) AS minute, ${share}
+           FROM telemetry WHERE unit_id IN (${ids}) AND ts >= ? AND ts < ? GROUP BY unit_id, minute) per_minute
+         GROUP BY unit_id) m ON m.unit_id = q.unit_id
+       SET ${UNIT_MODE_NAMES.map((m) => `q.${m}_min = m.${m}`).join(', ')}
+       WHERE q.bucket = ? AND q.unit_id IN (${ids})`,
+      [...unitIds, from, to, from, ...unitIds],
+    );
+  }
+
+  /**
+   * Mean orientation of units in one 15-minute bucket with their site and travel (units without a row, or without an
+   * orientation, are left out).
+   */
+  async quarterOrientations(quarterStartMs: number, unitIds: number[]): Promise<QuarterOrientation[]> {
+    if (!unitIds.length) return [];
+    const rows = await this.db('telemetry_15m as q')
+      .join('units as u', 'u.id', 'q.unit_id')
+      .whereIn('q.unit_id', unitIds)
+      .andWhere('q.bucket', new Date(quarterStartMs))
+      .whereNotNull('q.tilt_avg_deg')
+      .whereNotNull('q.azimuth_avg_deg')
+      .select(
+        'q.unit_id',
+        'u.site_id',
+        'q.tilt_avg_deg',
+        'q.azimuth_avg_deg',
+        'u.tilt_min_deg',
+        'u.tilt_max_deg',
+        'u.azimuth_min_deg',
+        'u.azimuth_max_deg',
+      );
+    return rows.map((r) => ({
+      unitId: r.unit_id,
+      siteId: r.site_id,
+      tiltDeg: r.tilt_avg_deg,
+      azimuthDeg: r.azimuth_avg_deg,
+      limits: { tiltRangeDeg: [r.tilt_min_deg, r.tilt_max_deg], azimuthRangeDeg: [r.azimuth_min_deg, r.azimuth_max_deg] },
+    }));
+  }
+
+  /** Stores the modelled in-plane irradiances of units' 15-minute bucket [W/m²]. */
+  async setQuarterModel(quarterStartMs: number, rows: readonly QuarterModelValues[]): Promise<void> {
+    if (!rows.length) return;
+    const derived = rows.map(() => 'SELECT ? AS unit_id, ? AS u, ? AS b, ? AS f, ? AS s').join(' UNION ALL ');
+    await this.db.raw(
+      `UPDATE telemetry_15m q JOIN (${derived}) v ON v.unit_id = q.unit_id
+       SET q.model_unit_wm2 = v.u, q.model_best_wm2 = v.b, q.model_fixed_wm2 = v.f, q.model_sun_wm2 = v.s
+       WHERE q.bucket = ?`,
+      [...rows.flatMap((r) => [r.unitId, r.unitWm2, r.bestWm2, r.fixedWm2, r.sunWm2]), new Date(quarterStartMs)],
     );
   }
 

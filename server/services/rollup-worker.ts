@@ -3,6 +3,11 @@ import type { TelemetryRepository } from '../data/telemetry-repository';
 import type { UnitDirectory } from './unit-directory';
 import { localDate, utcWindowOfLocalDate } from './local-time';
 
+/** Fills the modelled columns of a closed 15-minute bucket (QuarterModelService). */
+export interface QuarterModeller {
+  modelQuarter(bucketMs: number, unitIds: number[]): Promise<void>;
+}
+
 const MINUTE = 60_000;
 const QUARTER = 15 * MINUTE;
 /** Longest run of consecutive local dates summed from one read of the quarter-hour rows. */
@@ -17,6 +22,8 @@ const nextDate = (date: string) => new Date(Date.parse(`${date}T00:00:00Z`) + 86
  */
 export class RollupWorker {
   private dirtyMinutes = new Map<number, Set<number>>();
+  /** Buckets rolled up but not yet modelled: modelled once closed (their weather is then complete). */
+  private unmodelled = new Map<number, Set<number>>();
   private running: Promise<void> | undefined;
   private timer: NodeJS.Timeout | undefined;
   passes = 0;
@@ -29,6 +36,7 @@ export class RollupWorker {
     /** A minute is rolled up once it has been closed this long, so a live minute is scanned once, not every pass [ms]. */
     private readonly graceMs = 5000,
     private readonly now: () => number = Date.now,
+    private readonly modeller?: QuarterModeller,
   ) {}
 
   /** Readings just stored (unit, timestamp [ms]): their minutes are rolled up again. */
@@ -129,7 +137,7 @@ export class RollupWorker {
   }
 
   private async pass(includeOpen: boolean): Promise<void> {
-    if (!this.dirtyMinutes.size) return;
+    if (!this.dirtyMinutes.size) return this.modelClosedQuarters();
     // Take the closed minutes; the open ones wait for a later pass (or are taken too at shutdown).
     const ripeBefore = includeOpen ? Infinity : this.now() - MINUTE - this.graceMs;
     const minutes = new Map<number, Set<number>>();
@@ -138,7 +146,7 @@ export class RollupWorker {
       minutes.set(m, ids);
       this.dirtyMinutes.delete(m);
     }
-    if (!minutes.size) return;
+    if (!minutes.size) return this.modelClosedQuarters();
     const quarters = new Map<number, Set<number>>();
     try {
       for (const [m, ids] of minutes) {
@@ -150,6 +158,7 @@ export class RollupWorker {
       }
       for (const [q, ids] of quarters) await this.repo.rollupQuarter(q, [...ids]);
       await this.rollupDays(quarters);
+      if (this.modeller) for (const [q, ids] of quarters) addAll(this.unmodelled, q, ids);
       this.passes++;
     } catch (err) {
       // Put the work back; the next pass retries it.
@@ -160,5 +169,27 @@ export class RollupWorker {
       }
       throw err;
     }
+    await this.modelClosedQuarters();
   }
+
+  /** Models each rolled-up bucket once it has closed; a failure is logged and the bucket keeps empty model columns. */
+  private async modelClosedQuarters(): Promise<void> {
+    if (!this.modeller) return;
+    const closedBefore = this.now() - this.graceMs;
+    for (const [q, ids] of [...this.unmodelled]) {
+      if (q + QUARTER > closedBefore) continue;
+      this.unmodelled.delete(q);
+      try {
+        await this.modeller.modelQuarter(q, [...ids]);
+      } catch (err) {
+        this.log.warn({ err, bucket: new Date(q).toISOString() }, 'modelling a 15-minute bucket failed');
+      }
+    }
+  }
+}
+
+function addAll(map: Map<number, Set<number>>, key: number, ids: Iterable<number>): void {
+  let set = map.get(key);
+  if (!set) map.set(key, (set = new Set()));
+  for (const id of ids) set.add(id);
 }

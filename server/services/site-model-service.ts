@@ -36,6 +36,11 @@ export class SiteModelService {
     return survey;
   }
 
+  /** Mean station weather of a site over [fromMs, toMs), or null without readings. */
+  weatherMean(siteId: number, fromMs: number, toMs: number): Promise<SiteWeather | null> {
+    return this.repo.weatherMean(siteId, new Date(fromMs), new Date(toMs));
+  }
+
   weatherNear(siteId: number, atMs: number): Promise<SiteWeather | null> {
     return this.repo.weatherNear(siteId, atMs);
   }

@@ -4,6 +4,7 @@
  *   brightward sun --lat <deg> --lon <deg> --time <ISO 8601 with offset> [--elev <m>] [--pressure <hPa>]
  *                  [--temp <°C>] [--delta-t <s>] [--slope <deg> --surface-azimuth <deg clockwise from north>]
  *   brightward landscape --sky <file.json> [--step <deg>] [--detector-tilt <deg>]
+ *   brightward kpi --p0-kwp <kWp> --hi-kwh-m2 <kWh/m²> --eout-kwh <kWh> [--gamma-pct-per-k <%/K> --tmod-c <°C>]
  *
  * JSON on stdout; errors on stderr (one line naming the field and the allowed range) with exit code 2 for bad
  * input and 1 for anything else. No output ever contains NaN or Infinity.
@@ -11,6 +12,7 @@
 import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { analyseLandscape } from '../landscape/index';
+import { yieldsOf } from '../pv-performance/yields-iec-61724-1';
 import { skyFromFile } from '../sky-file/index';
 import {
   formatInstant,
@@ -25,7 +27,8 @@ class InputError extends Error {}
 
 const USAGE = `usage:
   brightward sun --lat <deg> --lon <deg> --time <ISO 8601 with offset> [--elev <m>] [--pressure <hPa>] [--temp <°C>] [--delta-t <s>] [--slope <deg> --surface-azimuth <deg>]
-  brightward landscape --sky <file.json> [--step <deg>] [--detector-tilt <deg>]`;
+  brightward landscape --sky <file.json> [--step <deg>] [--detector-tilt <deg>]
+  brightward kpi --p0-kwp <kWp> --hi-kwh-m2 <kWh/m²> --eout-kwh <kWh> [--gamma-pct-per-k <%/K> --tmod-c <°C>]`;
 
 function numberOption(
   values: Record<string, unknown>,
@@ -200,6 +203,35 @@ function runLandscape(args: string[]): unknown {
   };
 }
 
+/** IEC 61724-1 yields and PR of one period, by the same functions the monthly statements use. */
+function runKpi(args: string[]): unknown {
+  const { values } = parseArgs({
+    args,
+    options: {
+      'p0-kwp': { type: 'string' },
+      'hi-kwh-m2': { type: 'string' },
+      'eout-kwh': { type: 'string' },
+      'gamma-pct-per-k': { type: 'string' },
+      'tmod-c': { type: 'string' },
+    },
+    strict: true,
+    allowPositionals: false,
+  });
+  const p0Kwp = numberOption(values, 'p0-kwp', 0, 1e9, undefined, true);
+  const hiKwhM2 = numberOption(values, 'hi-kwh-m2', 0, 1e6);
+  const eoutKwh = numberOption(values, 'eout-kwh', 0, 1e12);
+  const hasGamma = values['gamma-pct-per-k'] !== undefined;
+  const hasT = values['tmod-c'] !== undefined;
+  if (hasGamma !== hasT)
+    throw new InputError(
+      `${hasGamma ? '--tmod-c' : '--gamma-pct-per-k'}: required together with ${hasGamma ? '--gamma-pct-per-k' : '--tmod-c'}`,
+    );
+  const gammaPctPerK = hasGamma ? numberOption(values, 'gamma-pct-per-k', -5, 5) : undefined;
+  const tmodC = hasT ? numberOption(values, 'tmod-c', -60, 120) : undefined;
+  const y = yieldsOf({ p0Kwp, hiKwhM2, eoutKwh, ...(gammaPctPerK !== undefined ? { gammaPerK: gammaPctPerK / 100, tmodC } : {}) });
+  return { yrH: y.yrH, yfH: y.yfH, pr: y.pr, prTempCorrected: y.prTempCorrected };
+}
+
 /** Let option values be negative numbers written as a separate word (`--lon -105.18`), which parseArgs would refuse. */
 function joinNegativeValues(args: string[]): string[] {
   const out: string[] = [];
@@ -221,10 +253,11 @@ export function main(argv: string[]): number {
     let result: unknown;
     if (command === 'sun') result = runSun(rest);
     else if (command === 'landscape') result = runLandscape(rest);
+    else if (command === 'kpi') result = runKpi(rest);
     else if (command === undefined || command === 'help' || command === '--help') {
       process.stdout.write(USAGE + '\n');
       return command === undefined ? 2 : 0;
-    } else throw new InputError(`command: unknown command ${JSON.stringify(command)}; expected "sun" or "landscape"\n${USAGE}`);
+    } else throw new InputError(`command: unknown command ${JSON.stringify(command)}; expected "sun", "landscape" or "kpi"\n${USAGE}`);
     process.stdout.write(toJson(result) + '\n');
     return 0;
   } catch (e) {

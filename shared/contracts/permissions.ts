@@ -52,6 +52,10 @@ export const PERMISSIONS = {
   readDemoHistory: ['admin'],
   readAlarms: ROLES,
   readSites: ROLES,
+  /** Monthly statements of a site and their CSV: owners for their own sites, staff for every site. */
+  readStatements: ROLES,
+  /** The owners' portfolio home (this month and the last twelve of each of their sites). */
+  openPortfolio: ['owner'],
   /**
    * The unit page. Owners get it read-only for units of their own sites (live state, the last hour, alarms): the API
    * scopes every unit read to the caller's owner, and the page shows no commands, settings or survey to them.

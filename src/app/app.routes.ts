@@ -27,9 +27,17 @@ export const routes: Routes = [
             const router = inject(Router);
             const me = await inject(Session).restore();
             if (me && rolesFor('/my-work').includes(me.role)) return router.createUrlTree(['/my-work']);
+            if (me && rolesFor('/portfolio').includes(me.role)) return router.createUrlTree(['/portfolio']);
             return router.createUrlTree([me && rolesFor('/fleet').includes(me.role) ? '/fleet' : '/sites']);
           },
         ],
+      },
+      {
+        path: 'portfolio',
+        title: 'Portfolio · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/portfolio') },
+        loadComponent: () => import('./statements/portfolio').then((m) => m.Portfolio),
       },
       {
         path: 'fleet',

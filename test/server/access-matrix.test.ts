@@ -148,6 +148,10 @@ const ROUTES: Row[] = [
   row('GET /api/tickets/assignees',                () => '/api/tickets/assignees',                                                        401, 200, 200, 200, 403, 403),
   row('GET /api/tickets/:id',                      (w, s) => `/api/tickets/${w[s].ticketId}`,                                            401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/ticket-kpis',            (w, s) => `/api/sites/${w[s].siteId}/ticket-kpis?month=2026-06`,                      401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/sites/:id/statements',             (w, s) => `/api/sites/${w[s].siteId}/statements`,                                     401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/sites/:id/statements/:month',      (w, s) => `/api/sites/${w[s].siteId}/statements/2026-06`,                             401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/sites/:id/statements/:month.csv',  (w, s) => `/api/sites/${w[s].siteId}/statements/2026-06.csv`,                         401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/sites/:id/statement-trend',        (w, s) => `/api/sites/${w[s].siteId}/statement-trend`,                                401, 200, 200, 200, 200, mine(200)),
   row('GET /api/owners/:id/sla',                   (w, s) => `/api/owners/${w[s].ownerId}/sla`,                                          401, 200, 200, 200, 200, mine(200)),
   row('PUT /api/owners/:id/sla',                   (w, s) => ({ path: `/api/owners/${w[s].ownerId}/sla`, body: {} }),                     401, 200, 403, 403, 403, 403),
   // A stale version: the control room reaches the lock (409) and changes nothing; crews may not cancel, owners move nothing.

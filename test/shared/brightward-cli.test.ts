@@ -156,6 +156,31 @@ describe('brightward landscape', () => {
   });
 });
 
+describe('brightward kpi', () => {
+  it('prints the worked example of physics.md §7 (IEC 61724-1 yields; γ −0.40 %/K at 45 °C → PR_STC 0.8696)', () => {
+    const r = cli('kpi', '--p0-kwp', '100', '--hi-kwh-m2', '6.5', '--eout-kwh', '520', '--gamma-pct-per-k', '-0.40', '--tmod-c', '45');
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(Object.keys(out)).toEqual(['yrH', 'yfH', 'pr', 'prTempCorrected']);
+    expect(out.yrH).toBe(6.5);
+    expect(out.yfH).toBe(5.2);
+    expect(out.pr).toBe(0.8);
+    expect(out.prTempCorrected).toBeCloseTo(0.8696, 4);
+  });
+
+  it('leaves the temperature-corrected PR null without γ and Tmod, and names bad options', () => {
+    const plain = JSON.parse(cli('kpi', '--p0-kwp', '100', '--hi-kwh-m2', '6.5', '--eout-kwh', '520').stdout);
+    expect(plain).toEqual({ yrH: 6.5, yfH: 5.2, pr: 0.8, prTempCorrected: null });
+    const zero = cli('kpi', '--p0-kwp', '0', '--hi-kwh-m2', '6.5', '--eout-kwh', '520');
+    expect(zero.code).toBe(2);
+    expect(zero.stderr).toMatch(/--p0-kwp: must be in \(0, 1000000000\]; got 0/);
+    const half = cli('kpi', '--p0-kwp', '100', '--hi-kwh-m2', '6.5', '--eout-kwh', '520', '--tmod-c', '45');
+    expect(half.code).toBe(2);
+    expect(half.stderr).toMatch(/--gamma-pct-per-k: required together with --tmod-c/);
+    expect(cli('kpi', '--p0-kwp', '100', '--eout-kwh', '520').stderr).toMatch(/--hi-kwh-m2: required/);
+  });
+});
+
 describe('the installed bin shim', () => {
   it('shared/cli/brightward.mjs runs the same command line through tsx', () => {
     const r = spawnSync(

@@ -20,7 +20,7 @@ const EXPECTED: Record<Role, string[]> = {
   engineer: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Landscape', 'Notifications'],
   technician: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Notifications'],
   crew: ['My work', 'Fleet board', 'Alarms', 'Tickets', 'Sites', 'Notifications'],
-  owner: ['Alarms', 'Tickets', 'Sites', 'Notifications'],
+  owner: ['Portfolio', 'Alarms', 'Tickets', 'Sites', 'Notifications'],
 };
 
 describe('navigation per role', () => {

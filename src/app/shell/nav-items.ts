@@ -14,6 +14,7 @@ export interface NavItem {
 
 /** The one table of pages in the navigation and who may use each. */
 export const NAV_ITEMS: readonly NavItem[] = [
+  { path: '/portfolio', label: 'Portfolio', icon: 'insights', group: 'Fleet', roles: rolesWith('openPortfolio') },
   { path: '/my-work', label: 'My work', icon: 'assignment_ind', group: 'Fleet', roles: rolesWith('openMyWork') },
   { path: '/fleet', label: 'Fleet board', icon: 'dashboard', group: 'Fleet', roles: rolesWith('openFleetBoard') },
   { path: '/alarms', label: 'Alarms', icon: 'notifications_active', group: 'Fleet', roles: rolesWith('readAlarms') },

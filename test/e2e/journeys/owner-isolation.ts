@@ -8,10 +8,30 @@ export const ownerIsolationJourney: Journey = {
   async run({ page, base, stack, check, output }) {
     await check('an owner opening another owner’s site sees "not found"', async () => {
       await signIn(page, base, 'owner@quillmoor.example');
-      await page.waitForURL(`${base}/sites`);
+      await page.waitForURL(`${base}/portfolio`);
       const fenwickId = await siteIdByName(stack, 'Glasshouse Atrium');
       await page.goto(`${base}/sites/${fenwickId}`);
       await page.getByRole('heading', { name: 'Site not found' }).waitFor();
+      await page.goto(`${base}/sites/${fenwickId}/statements`);
+      await page.getByRole('heading', { name: 'Statement not found' }).waitFor();
+      await signOut(page, base);
+    });
+
+    await check('an owner lands on their portfolio and reaches a site’s monthly statements, on a phone in the dark too', async () => {
+      await signIn(page, base, 'owner@quillmoor.example');
+      await page.waitForURL(`${base}/portfolio`);
+      await page.getByRole('heading', { name: 'Your portfolio' }).waitFor();
+      await page.getByRole('heading', { name: 'Harbourside Library Roof' }).waitFor();
+      await page.getByRole('link', { name: 'Monthly statements' }).first().click();
+      await page.getByRole('heading', { name: /^Monthly statement · / }).waitFor();
+      await page.setViewportSize({ width: 360, height: 740 });
+      await page.emulateMedia({ colorScheme: 'dark' });
+      await page.screenshot({ path: join(output, 'statement-phone-dark.png'), animations: 'disabled' });
+      await page.goto(`${base}/portfolio`);
+      await page.getByRole('link', { name: 'Monthly statements' }).first().waitFor();
+      await page.screenshot({ path: join(output, 'portfolio-phone-dark.png'), animations: 'disabled', fullPage: true });
+      await page.setViewportSize({ width: 1280, height: 800 });
+      await page.emulateMedia({ colorScheme: 'light' });
       await signOut(page, base);
     });
 
@@ -25,14 +45,14 @@ export const ownerIsolationJourney: Journey = {
       await check('owners see their own sites’ alarms read-only, and not other owners’', async () => {
         await signIn(page, base, 'owner@quillmoor.example');
         // Wait for the sign-in to land: navigating away at once can cancel it before the cookie is set.
-        await page.waitForURL(`${base}/sites`);
+        await page.waitForURL(`${base}/portfolio`);
         await page.goto(`${base}/alarms`);
         await page.getByTestId(`alarm-${alarmId}`).waitFor();
         expectEqual(await page.getByTestId(`ack-${alarmId}`).count(), 0, 'no acknowledge button for owners');
         await signOut(page, base);
         await signIn(page, base, 'owner@fenwicklane.example');
         // Wait for the sign-in to land: navigating away at once can cancel it before the cookie is set.
-        await page.waitForURL(`${base}/sites`);
+        await page.waitForURL(`${base}/portfolio`);
         await page.goto(`${base}/alarms`);
         await page.getByTestId('alarms-empty').waitFor();
         expectEqual(await page.getByTestId(`alarm-${alarmId}`).count(), 0, 'another owner does not see it');

@@ -176,6 +176,8 @@ export const plainWordsJourney: Journey = {
         ready: (p) => p.getByTestId('landscape-summary').waitFor({ timeout: 15_000 }),
         roles: ['admin', 'engineer'],
       },
+      { path: '/portfolio', ready: heading('Your portfolio'), roles: ['owner'] },
+      { path: `/sites/${siteId}/statements`, ready: heading(/^Monthly statement · /), roles: [...STAFF, 'owner'] },
       { path: '/admin/people', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
       { path: '/admin/owners', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
       { path: '/admin/sites', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },
@@ -190,7 +192,7 @@ export const plainWordsJourney: Journey = {
       for (const person of PEOPLE) {
         await check(`${person.role}: every screen they may open says things in words`, async () => {
           await signIn(page, base, person.email);
-          await page.waitForURL(new RegExp(`${base}/(fleet|sites|my-work)$`));
+          await page.waitForURL(new RegExp(`${base}/(fleet|portfolio|my-work)$`));
           const found: string[] = [];
           for (const screen of screens.filter((s) => s.roles.includes(person.role))) {
             await page.goto(`${base}${screen.path}`);
@@ -225,7 +227,7 @@ export const plainWordsJourney: Journey = {
       await check('an owner opens a unit of their own site read-only: live values, the last hour and its alarms, no controls', async () => {
         const owner = DEMO_USERS.find((u) => u.email === 'owner@quillmoor.example')!;
         await signIn(page, base, owner.email);
-        await page.waitForURL(`${base}/sites`);
+        await page.waitForURL(`${base}/portfolio`);
         await page.goto(`${base}/alarms`);
         const card = page.getByTestId(`alarm-${inserted.alarmIds[1]}`);
         await card.getByRole('link', { name: 'Open unit' }).click();

@@ -21,7 +21,7 @@ const NAV: Record<RoleName, string[]> = {
   engineer: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Landscape', 'Notifications'],
   technician: ['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Notifications'],
   crew: ['My work', 'Fleet board', 'Alarms', 'Tickets', 'Sites', 'Notifications'],
-  owner: ['Alarms', 'Tickets', 'Sites', 'Notifications'],
+  owner: ['Portfolio', 'Alarms', 'Tickets', 'Sites', 'Notifications'],
 };
 
 /** Every demo person signs in and sees only their pages and sites; everyone but admins is refused the admin pages. */
@@ -32,9 +32,9 @@ export const rolesJourney: Journey = {
     for (const user of DEMO_USERS) {
       await check(`${user.role} ${user.email} signs in and sees only their pages and sites`, async () => {
         await signIn(page, base, user.email);
-        // Crews land on their work, the control room on the fleet board, owners on their sites.
-        await page.waitForURL(`${base}/${user.role === 'owner' ? 'sites' : user.role === 'crew' ? 'my-work' : 'fleet'}`);
-        if (user.role !== 'owner') await page.goto(`${base}/sites`);
+        // Crews land on their work, the control room on the fleet board, owners on their portfolio.
+        await page.waitForURL(`${base}/${user.role === 'owner' ? 'portfolio' : user.role === 'crew' ? 'my-work' : 'fleet'}`);
+        await page.goto(`${base}/sites`);
         await page.getByTestId('main-nav').locator('a').first().waitFor();
         const nav = (await page.getByTestId('main-nav').locator('a [matlistitemtitle]').allTextContents()).map((t) => t.trim());
         expectEqual(nav, NAV[user.role], 'navigation items');

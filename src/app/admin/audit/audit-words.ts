@@ -32,6 +32,7 @@ export const ACTION_LOOKS: Readonly<Record<string, ActionLook>> = {
   'alarm-acknowledge': { label: 'Acknowledged an alarm', icon: 'done_all' },
   'health-settings-update': { label: 'Changed health settings', icon: 'tune' },
   'trace-export': { label: 'Exported traces as CSV', icon: 'download' },
+  'statement-export': { label: 'Exported a monthly statement as CSV', icon: 'download' },
 };
 
 /** `ticket-reopen` → "Ticket reopen". */
