@@ -339,6 +339,39 @@ export class TicketRepository {
     return { activeAlarms: Number(n), lastClearedAt: (last?.at as Date | null) ?? null };
   }
 
+  /**
+   * Energy a unit did not make while its ticket's alarms were open [kWh]: per 15-minute interval, the mean energy of the
+   * site's other units minus the unit's own (never below zero), summed over the alarms' open intervals. null when the
+   * unit has no peers or no interval has peer data.
+   */
+  async peerShortfallKwh(ticketId: number, unitId: number, siteId: number, nowMs: number): Promise<number | null> {
+    const spans: { raised_at: Date; cleared_at: Date | null }[] = await this.db('ticket_alarms as ta')
+      .join('alarms as a', 'a.id', 'ta.alarm_id')
+      .where('ta.ticket_id', ticketId)
+      .select('a.raised_at', 'a.cleared_at');
+    const peers: number[] = await this.db('units').where({ site_id: siteId }).whereNot({ id: unitId }).pluck('id');
+    if (!spans.length || !peers.length) return null;
+    let total = 0;
+    let seen = false;
+    for (const span of spans) {
+      const [rows] = (await this.db.raw(
+        `SELECT COUNT(*) AS n, SUM(GREATEST(0, p.peer_wh - COALESCE(u.energy_wh, 0))) AS wh
+           FROM (SELECT bucket, AVG(energy_wh) AS peer_wh FROM telemetry_15m
+                  WHERE unit_id IN (?) AND bucket >= ? AND bucket < ? GROUP BY bucket) p
+           LEFT JOIN telemetry_15m u ON u.unit_id = ? AND u.bucket = p.bucket`,
+        [peers, span.raised_at, span.cleared_at ?? new Date(nowMs), unitId],
+      )) as [{ n: number | string; wh: number | string | null }[]];
+      const r = rows[0]!;
+      if (Number(r.n) > 0) seen = true;
+      total += Number(r.wh ?? 0);
+    }
+    return seen ? Math.round(total) / 1000 : null;
+  }
+
+  async setLostEnergy(ticketId: number, kwh: number | null): Promise<void> {
+    await this.db('tickets').where({ id: ticketId }).update({ lost_energy_kwh: kwh });
+  }
+
   /** Enabled field crew members, by name (whom a ticket can be assigned to). */
   async activeCrew(): Promise<{ id: number; name: string }[]> {
     return this.db('users').where({ role: 'crew', disabled: false }).orderBy('name').select('id', 'name');

@@ -21,6 +21,8 @@ import { RollupWorker } from '../services/rollup-worker';
 import { UnitDirectory } from '../services/unit-directory';
 import { seedDemoTickets } from '../../seeds/demo-tickets';
 import { simulatorHistorySource } from './simulator-history';
+import { attachDemoPhotos } from './demo-photos';
+import { FileStore } from '../data/file-store';
 
 const { values, positionals } = parseArgs({ args: process.argv.slice(2), allowPositionals: true, options: { now: { type: 'string' } } });
 const cmd = positionals[0];
@@ -72,6 +74,20 @@ async function ticketsOfThePast(atMs: number): Promise<void> {
   if (n) console.log(`[history] ${n} ticket${n === 1 ? '' : 's'} of the past`);
 }
 
+/** Invented photos on the latest past tickets, through the same checks as an upload (before the server opens the store). */
+async function photosOfThePast(): Promise<void> {
+  let store: FileStore | undefined;
+  try {
+    store = await FileStore.open(config.files);
+    const n = await attachDemoPhotos(db, store, log);
+    if (n) console.log(`[history] ${n} photos of the past`);
+  } catch (err) {
+    console.log(`[history] no photos of the past: ${(err as Error).message}`);
+  } finally {
+    await store?.close();
+  }
+}
+
 const t0 = performance.now();
 try {
   if (cmd === 'fill') {
@@ -83,6 +99,7 @@ try {
     // The fill itself took time: top up the few seconds since, so the live fleet starts where the past ends.
     for (let i = 0; plan && !values.now && i < 3; i++) if (!(await history.fill(Math.floor(Date.now() / 1000) * 1000)).plan) break;
     await ticketsOfThePast(nowMs);
+    await photosOfThePast();
   } else {
     const counts = await history.background();
     console.log(

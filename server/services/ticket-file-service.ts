@@ -78,50 +78,7 @@ export class TicketFileService {
   async add(c: Caller, ticketId: number, upload: TicketUpload): Promise<TicketFileView> {
     const t = await this.uploadable(c, ticketId);
     const site = await this.admin.getSite(c, t.siteId);
-    const now = this.now();
-    const checked = await checkUpload(upload.bytes, site.timeZone, now);
-    const objectKey = `files/${randomUUID()}`;
-    const thumbKey = checked.thumb ? `thumbs/${randomUUID()}` : null;
-    const stored: string[] = [];
-    try {
-      await this.store.put(objectKey, checked.bytes, checked.contentType);
-      stored.push(objectKey);
-      if (thumbKey) {
-        await this.store.put(thumbKey, checked.thumb!, 'image/webp');
-        stored.push(thumbKey);
-      }
-      const sha256 = createHash('sha256').update(checked.bytes).digest('hex');
-      const fileName = cleanFileName(upload.originalName, checked.extension, t.id);
-      const id = await this.repo.insert(
-        {
-          ticketId: t.id,
-          objectKey,
-          thumbKey,
-          contentType: checked.contentType,
-          fileName,
-          sizeBytes: checked.bytes.length,
-          sha256,
-          caption: upload.caption?.trim() || null,
-          widthPx: checked.widthPx,
-          heightPx: checked.heightPx,
-          uploadedBy: c.id,
-          uploadedAt: new Date(now),
-          takenAt: checked.takenAt,
-          latitudeDeg: checked.latitudeDeg,
-          longitudeDeg: checked.longitudeDeg,
-        },
-        {
-          userId: c.id,
-          action: 'ticket-file-add',
-          target: `ticket:${t.id}`,
-          detail: { fileName, contentType: checked.contentType, sizeBytes: checked.bytes.length, sha256 },
-        },
-      );
-      return view((await this.repo.get(t.id, id))!);
-    } catch (err) {
-      await this.store.delete(stored).catch((e) => this.log.error({ err: e, keys: stored }, 'orphaned ticket file objects not removed'));
-      throw err;
-    }
+    return storeTicketFile({ repo: this.repo, store: this.store, log: this.log }, t.id, site.timeZone, upload, c.id, this.now());
   }
 
   async list(c: Caller, ticketId: number): Promise<TicketFileView[]> {
@@ -181,4 +138,62 @@ function view(f: StoredTicketFile): TicketFileView {
     url,
     thumbUrl: f.thumbKey ? `${url}?thumb=1` : null,
   };
+}
+
+/**
+ * Checks a file by its content, stores its object (and thumbnail) and then its row with the audit entry; removes the
+ * objects again when the row fails, so nothing is half-written. The one path every ticket file takes: uploads through
+ * `TicketFileService.add` (after its access checks) and the demo's past photos.
+ */
+export async function storeTicketFile(
+  deps: { repo: TicketFileRepository; store: ObjectStore; log: Logger },
+  ticketId: number,
+  siteTimeZone: string,
+  upload: TicketUpload,
+  byUserId: number,
+  atMs: number,
+): Promise<TicketFileView> {
+  const checked = await checkUpload(upload.bytes, siteTimeZone, atMs);
+  const objectKey = `files/${randomUUID()}`;
+  const thumbKey = checked.thumb ? `thumbs/${randomUUID()}` : null;
+  const stored: string[] = [];
+  try {
+    await deps.store.put(objectKey, checked.bytes, checked.contentType);
+    stored.push(objectKey);
+    if (thumbKey) {
+      await deps.store.put(thumbKey, checked.thumb!, 'image/webp');
+      stored.push(thumbKey);
+    }
+    const sha256 = createHash('sha256').update(checked.bytes).digest('hex');
+    const fileName = cleanFileName(upload.originalName, checked.extension, ticketId);
+    const id = await deps.repo.insert(
+      {
+        ticketId,
+        objectKey,
+        thumbKey,
+        contentType: checked.contentType,
+        fileName,
+        sizeBytes: checked.bytes.length,
+        sha256,
+        caption: upload.caption?.trim() || null,
+        widthPx: checked.widthPx,
+        heightPx: checked.heightPx,
+        uploadedBy: byUserId,
+        uploadedAt: new Date(atMs),
+        takenAt: checked.takenAt,
+        latitudeDeg: checked.latitudeDeg,
+        longitudeDeg: checked.longitudeDeg,
+      },
+      {
+        userId: byUserId,
+        action: 'ticket-file-add',
+        target: `ticket:${ticketId}`,
+        detail: { fileName, contentType: checked.contentType, sizeBytes: checked.bytes.length, sha256 },
+      },
+    );
+    return view((await deps.repo.get(ticketId, id))!);
+  } catch (err) {
+    await deps.store.delete(stored).catch((e) => deps.log.error({ err: e, keys: stored }, 'orphaned ticket file objects not removed'));
+    throw err;
+  }
 }

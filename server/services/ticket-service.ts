@@ -176,6 +176,7 @@ export class TicketService {
 
   async get(c: Caller, id: number): Promise<TicketView> {
     const t = await this.stored(c, id);
+    await this.estimateLostEnergy(t);
     const [transitions, alarms, holds, health, files] = await Promise.all([
       this.repo.transitions(id),
       this.repo.alarms(id),
@@ -235,6 +236,19 @@ export class TicketService {
   /** The crew members a ticket can be dispatched to. */
   assignees(): Promise<{ id: number; name: string }[]> {
     return this.repo.activeCrew();
+  }
+
+  /**
+   * The ticket's lost-energy estimate: while it is open, from its alarms' open intervals so far; once resolved, stored
+   * (a finished ticket's figure no longer changes).
+   */
+  private async estimateLostEnergy(t: StoredTicket): Promise<void> {
+    if (t.unitId === null) return;
+    const done = t.state === 'resolved' || t.state === 'closed' || t.state === 'cancelled';
+    if (done && t.lostEnergyKwh !== null) return;
+    const kwh = await this.repo.peerShortfallKwh(t.id, t.unitId, t.siteId, this.opts.now());
+    t.lostEnergyKwh = kwh;
+    if (done && kwh !== null) await this.repo.setLostEnergy(t.id, kwh);
   }
 
   // ---- opening

@@ -1,6 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
 import { seedDemoTickets } from '../../seeds/demo-tickets';
+import { attachDemoPhotos } from '../../server/scripts/demo-photos';
+import { FileStore } from '../../server/data/file-store';
+import { pino } from 'pino';
 
 let t: TestDatabase;
 beforeAll(async () => {
@@ -95,5 +98,31 @@ describe('the demo past gets the tickets its faults would have raised, worked an
     const before = await t.db('ticket_transitions').count({ n: '*' });
     expect(await seedDemoTickets(t.db, { now: new Date(NOW) })).toBe(0);
     expect(await t.db('ticket_transitions').count({ n: '*' })).toEqual(before);
+  });
+
+  it('gives the latest past tickets invented before and after photos through the upload checks, once', async () => {
+    const store = await FileStore.open(t.config.files);
+    try {
+      const log = pino({ level: 'silent' });
+      const n = await attachDemoPhotos(t.db, store, log);
+      const tickets = await t.db('tickets').whereNotNull('unit_id').whereNotNull('resolved_at').count({ n: '*' });
+      expect(n).toBe(Math.min(6, Number(tickets[0]!.n)) * 2);
+      const files = await t
+        .db('ticket_files as f')
+        .join('tickets as k', 'k.id', 'f.ticket_id')
+        .select('f.*', 'k.on_site_at', 'k.resolved_at');
+      expect(files).toHaveLength(n);
+      for (const f of files) {
+        expect(f.content_type).toBe('image/jpeg');
+        expect(f.thumb_key).not.toBeNull();
+        expect(f.caption).toMatch(/demo drawing/);
+        expect(f.uploaded_at.getTime()).toBeGreaterThanOrEqual(f.on_site_at.getTime());
+        expect(f.uploaded_at.getTime()).toBeLessThanOrEqual(f.resolved_at.getTime());
+        expect((await store.get(f.object_key))?.length).toBe(f.size_bytes);
+      }
+      expect(await attachDemoPhotos(t.db, store, log)).toBe(0);
+    } finally {
+      await store.close();
+    }
   });
 });

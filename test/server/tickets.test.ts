@@ -370,6 +370,56 @@ describe('tickets from alarms', () => {
     expect(mixed.status).toBe(400);
   });
 
+  it("estimates the energy lost while a unit's alarm was open from its site peers, and keeps it once resolved", async () => {
+    const u = stack.units.get('QED-2405')!;
+    const peers: number[] = await stack.db('units').where({ site_id: u.siteId }).whereNot({ id: u.id }).pluck('id');
+    const start = Date.parse('2026-06-01T10:00:00Z');
+    const q = (i: number) => new Date(start + i * 15 * 60_000);
+    const row = (unitId: number, i: number, wh: number) => ({
+      unit_id: unitId,
+      bucket: q(i),
+      minutes: 15,
+      samples: 180,
+      poa_avg_wm2: 500,
+      poa_max_wm2: 520,
+      dc_power_avg_w: wh * 4,
+      energy_wh: wh,
+    });
+    // Peers make 100 Wh a quarter; the unit 20 Wh during its four quarters of alarm, 100 Wh after it cleared.
+    await stack
+      .db('telemetry_15m')
+      .insert([
+        ...peers.flatMap((p) => [0, 1, 2, 3, 4, 5].map((i) => row(p, i, 100))),
+        ...[0, 1, 2, 3].map((i) => row(u.id, i, 20)),
+        ...[4, 5].map((i) => row(u.id, i, 100)),
+      ]);
+    const [id] = await stack.db('alarms').insert({
+      unit_id: u.id,
+      site_id: u.siteId,
+      kind: 'comms',
+      severity: 'P2',
+      state: 'cleared',
+      message: 'Unit silent',
+      advice: 'Check the modem.',
+      evidence: '{}',
+      first_seen_at: q(0),
+      raised_at: q(0),
+      last_seen_at: q(4),
+      cleared_at: q(4),
+    });
+    await stack.tickets.onAlarmRaised((await (await as(ADMIN)).agent.get(`/api/alarms/${id}`)).body as AlarmView);
+    const [t] = await ticketsOf('QED-2405');
+    const view = (await (await as(TECH)).agent.get(`/api/tickets/${t!.id}`)).body as TicketView;
+    expect(view.lostEnergyKwh).toBeCloseTo(0.32, 6); // 4 quarters × (100 − 20) Wh
+    const crewId = (await as(CREW)).userId;
+    for (const step of PATH['resolved']!) {
+      const { assignee, ...body } = step as { assignee?: boolean };
+      await move(ADMIN, t!.id, { ...body, ...(assignee ? { assigneeId: crewId } : {}) });
+    }
+    const stored = await stack.db('tickets').where({ id: t!.id }).first('lost_energy_kwh');
+    expect(stored.lost_energy_kwh).toBeCloseTo(0.32, 6);
+  });
+
   it('opens a P3 ticket only after the alarm has stayed open 4 h, and none for P4', async () => {
     await raise('FSC-2403', 'soiling', 'P3');
     await raise('FSC-2404', 'soiling', 'P4');

@@ -6,6 +6,8 @@ import type { Me, Role } from '../../../shared/contracts/api';
 import type { TicketView } from '../../../shared/contracts/tickets';
 import { Session } from '../auth/session';
 import { TicketDetail } from './ticket-detail';
+import { LIVE_SOCKET_FACTORY } from '../live/live-connection';
+import { FakeSocket } from '../testing/spec-fixtures';
 
 const ticket = (over: Partial<TicketView> = {}): TicketView => ({
   id: 12,
@@ -46,7 +48,14 @@ const ticket = (over: Partial<TicketView> = {}): TicketView => ({
 let current: HttpTestingController | null = null;
 
 async function render(role: Role, t: TicketView) {
-  TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([])] });
+  TestBed.configureTestingModule({
+    providers: [
+      provideHttpClient(),
+      provideHttpClientTesting(),
+      provideRouter([]),
+      { provide: LIVE_SOCKET_FACTORY, useValue: () => new FakeSocket() as unknown as WebSocket },
+    ],
+  });
   const http = TestBed.inject(HttpTestingController);
   current = http;
   const me: Me = { id: 5, email: 'p@example.org', name: 'Ines Calder', role, ownerId: role === 'owner' ? 1 : null };
@@ -57,6 +66,19 @@ async function render(role: Role, t: TicketView) {
   await fixture.whenStable();
   http.expectOne('/api/tickets/12').flush(t);
   http.expectOne('/api/sites/1').flush({ id: 1, name: 'Harbour Roof', timeZone: 'Europe/London' });
+  http.expectOne('/api/units/7').flush({ id: 7, serial: 'QHL-2407', planXM: 6, planYM: 5 });
+  http.expectOne('/api/units/7/state').flush({
+    unitId: 7,
+    serial: 'QHL-2407',
+    online: true,
+    lastReportAt: '2026-06-21T09:30:00Z',
+    mode: 'held',
+    poaWm2: 640,
+    dcPowerW: 251,
+    tiltDeg: 30,
+    azimuthDeg: 180,
+    onHold: true,
+  });
   await fixture.whenStable();
   const el = fixture.nativeElement as HTMLElement;
   const q = (id: string) => el.querySelector(`[data-testid="${id}"]`) as HTMLElement | null;
@@ -72,6 +94,9 @@ describe('TicketDetail', () => {
   it('shows the clocks in words and site time, and checks in only after the cautions are confirmed', async () => {
     const { fixture, http, q } = await render('crew', ticket());
     expect(q('ticket-state')!.textContent).toContain('Acknowledged by crew');
+    // The unit as it is now, and where it stands.
+    expect(q('ticket-unit-now')!.textContent).toContain('DC power 251 W');
+    expect(q('ticket-unit-place')!.textContent).toContain('6 m east and 5 m north');
     // 09:20 UTC is 10:20 in London in June.
     expect(q('clock-acknowledge')!.textContent).toContain('Met');
     expect(q('clock-acknowledge')!.textContent).toContain('10:20');

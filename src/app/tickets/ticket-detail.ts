@@ -1,4 +1,5 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, DestroyRef, inject, input, signal } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
@@ -8,7 +9,11 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { RouterLink } from '@angular/router';
-import type { Site } from '../../../shared/contracts/api';
+import type { Site, Unit } from '../../../shared/contracts/api';
+import type { UnitLiveState } from '../../../shared/contracts/live';
+import { UnitApi } from '../core/unit-api';
+import { LiveConnection } from '../live/live-connection';
+import { statusLook, withUnit } from '../live/unit-status';
 import {
   AVAILABILITY_CATEGORIES,
   CLOSURE_ACTIONS,
@@ -55,6 +60,16 @@ export class TicketDetail {
   private readonly api = inject(TicketApi);
   private readonly siteApi = inject(SiteApi);
   private readonly notify = inject(Notify);
+  private readonly unitApi = inject(UnitApi);
+  private readonly live = inject(LiveConnection);
+  private readonly destroyRef = inject(DestroyRef);
+  private watching: number | null = null;
+
+  /** The ticket's unit as it is now (live), and where it stands on the site plan. */
+  protected readonly unit = signal<Unit | null>(null);
+  protected readonly unitNow = signal<UnitLiveState | null>(null);
+  protected readonly unitLook = computed(() => statusLook(this.unitNow()));
+  protected readonly withUnit = withUnit;
   private readonly session = inject(Session);
 
   /** Route parameter. */
@@ -137,7 +152,22 @@ export class TicketDetail {
   }
 
   constructor() {
+    this.live.messages.pipe(takeUntilDestroyed()).subscribe((msg) => {
+      const id = this.watching;
+      if (id === null || (msg.type !== 'units' && msg.type !== 'snapshot')) return;
+      const mine = msg.units.find((u) => u.unitId === id);
+      if (mine) this.unitNow.set(mine);
+    });
     queueMicrotask(() => this.load());
+  }
+
+  /** Follows the ticket's unit live (once per page). */
+  private followUnit(unitId: number): void {
+    if (this.watching === unitId) return;
+    this.watching = unitId;
+    this.unitApi.get(unitId).subscribe({ next: (u) => this.unit.set(u), error: () => undefined });
+    this.unitApi.state(unitId).subscribe({ next: (s) => this.unitNow.set(s), error: () => undefined });
+    this.live.watch({ unitId }, this.destroyRef);
   }
 
   protected load(): void {
@@ -147,6 +177,7 @@ export class TicketDetail {
       next: (t) => {
         this.loading.set(false);
         this.ticket.set(t);
+        if (t.unitId !== null) this.followUnit(t.unitId);
         if (this.site()?.id !== t.siteId) this.siteApi.get(t.siteId).subscribe({ next: (s) => this.site.set(s), error: () => undefined });
       },
       error: (e: unknown) => {
