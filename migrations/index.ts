@@ -39,6 +39,7 @@ import * as m20261207100300 from './20261207100300_create_notifications';
 import * as m20261207100400 from './20261207100400_create_ticket_notices';
 import * as m20261207100500 from './20261207100500_create_digest_runs';
 import * as m20261205140000 from './20261205140000_add_telemetry_15m_statement_columns';
+import * as m20261208100000 from './20261208100000_create_statements';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -85,6 +86,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261207100400_create_ticket_notices': m20261207100400,
   '20261207100500_create_digest_runs': m20261207100500,
   '20261205140000_add_telemetry_15m_statement_columns': m20261205140000,
+  '20261208100000_create_statements': m20261208100000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

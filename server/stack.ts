@@ -33,6 +33,8 @@ import { smtpTransport, type MailTransport } from './mail/smtp-transport';
 import { statementRoutes } from './routes/statement-routes';
 import { StatementService } from './services/statement-service';
 import { StatementRepository } from './data/statement-repository';
+import { StatementLockRepository } from './data/statement-lock-repository';
+import { StatementLockService, type StatementLockOptions } from './services/statement-lock-service';
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
@@ -97,6 +99,8 @@ export interface Stack {
   files: FileStore;
   mail: MailService;
   notifications: NotificationService;
+  /** The monthly lock of statements (the job, restatements, late data). */
+  statementLocks: StatementLockService;
   /** Resolves when the modelled best of every site's last day is cached (the first day of traces opens without waiting). */
   landscapesWarm: Promise<void>;
   http: Server;
@@ -125,6 +129,8 @@ export interface StackOptions {
   mail?: Partial<MailOptions> & { transport?: MailTransport };
   /** Escalation delay, digest hour and clock (tests). */
   notifications?: Partial<NotificationOptions>;
+  /** The statement lock job's clock and interval; `autoLock: false` leaves the job stopped (tests sweep by hand). */
+  statements?: Partial<StatementLockOptions> & { autoLock?: boolean };
   /** How often open live sockets have their session checked again [ms]; default 30 s. */
   sessionRecheckMs?: number;
   /** Broker limits other than the defaults (tests). */
@@ -324,6 +330,20 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     { ...config.notifications, now: healthOpts.now, ...opts.notifications },
   );
   tickets.onEvent((e) => notifications.onTicketEvent(e));
+  const { autoLock, ...lockOpts } = opts.statements ?? {};
+  const statementLockRepo = new StatementLockRepository(db);
+  const statementNow = lockOpts.now ?? healthOpts.now;
+  const statements = new StatementService(new StatementRepository(db), admin, tickets, statementNow, statementLockRepo);
+  const statementLocks = new StatementLockService(
+    statementLockRepo,
+    statements,
+    mail,
+    auditLog,
+    (unitId) => directory.byUnitId(unitId),
+    log,
+    { now: statementNow, ...lockOpts },
+  );
+  rollups.onRolled((q) => statementLocks.onQuartersRolled(q));
   const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];
@@ -340,6 +360,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   commands.start();
   tickets.start();
   notifications.start();
+  if (autoLock !== false) statementLocks.start();
   void mail.resume().catch((err) => log.error({ err }, 'queued mail not resumed'));
   await health.start();
   brokerRef = broker;
@@ -380,7 +401,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       ticketFileRoutes(ticketFiles),
       demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),
       notificationRoutes(notifications, mail),
-      statementRoutes(new StatementService(new StatementRepository(db), admin, tickets, healthOpts.now), auditLog),
+      statementRoutes(statements, auditLog, statementLocks),
     ],
   });
   const http = createServer(app);
@@ -412,8 +433,10 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       await health.stop();
       tickets.stop();
       notifications.stop();
+      statementLocks.stop();
       await tickets.settle();
       await notifications.settle();
+      await statementLocks.settle();
       await mail.settle();
       mail.stop();
       rollups.stop();
@@ -441,6 +464,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     files: fileStore,
     mail,
     notifications,
+    statementLocks,
     landscapesWarm,
   };
 }

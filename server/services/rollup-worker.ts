@@ -26,6 +26,7 @@ export class RollupWorker {
   private unmodelled = new Map<number, Set<number>>();
   private running: Promise<void> | undefined;
   private timer: NodeJS.Timeout | undefined;
+  private readonly rolledListeners: ((quarters: ReadonlyMap<number, ReadonlySet<number>>) => void)[] = [];
   passes = 0;
 
   constructor(
@@ -47,6 +48,11 @@ export class RollupWorker {
       if (!set) this.dirtyMinutes.set(m, (set = new Set()));
       set.add(r.unitId);
     }
+  }
+
+  /** Called after each pass with the 15-minute buckets it rewrote (bucket start [ms] → unit ids), e.g. for late data. */
+  onRolled(listener: (quarters: ReadonlyMap<number, ReadonlySet<number>>) => void): void {
+    this.rolledListeners.push(listener);
   }
 
   start(): void {
@@ -160,6 +166,7 @@ export class RollupWorker {
       await this.rollupDays(quarters);
       if (this.modeller) for (const [q, ids] of quarters) addAll(this.unmodelled, q, ids);
       this.passes++;
+      for (const l of this.rolledListeners) l(quarters);
     } catch (err) {
       // Put the work back; the next pass retries it.
       for (const [m, ids] of minutes) {

@@ -1,4 +1,10 @@
-import type { MonthlyStatement, StatementMonthList, StatementTrend } from '../../shared/contracts/statements';
+import type {
+  MonthlyStatement,
+  StatementLockInfo,
+  StatementMonthList,
+  StatementTrend,
+  StatementVersionSummary,
+} from '../../shared/contracts/statements';
 import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module';
 import { csvLine } from '../../shared/csv/csv-field';
 import {
@@ -11,7 +17,8 @@ import {
   type LocalMonth,
 } from '../../shared/pv-performance';
 import type { StatementRepository } from '../data/statement-repository';
-import { badRequest } from '../errors/app-error';
+import type { StatementLockRepository, StoredStatement } from '../data/statement-lock-repository';
+import { badRequest, notFound } from '../errors/app-error';
 import type { AdminService } from './admin-service';
 import type { Caller } from './caller';
 import { computeStatement, DAYLIGHT_THRESHOLD_WM2 } from './statement-figures';
@@ -24,28 +31,42 @@ export const STATEMENT_MODEL = [
   'Losses are counted where buckets are modelled; the residual is what the named parts do not explain (soiling estimate, model error, partial shade, clipping).',
 ];
 
+const versionOf = (v: Omit<StoredStatement, 'content'>): StatementVersionSummary => ({
+  version: v.version,
+  state: v.state,
+  lockedAt: v.lockedAt.toISOString(),
+  lockedBy: v.lockedBy === null ? null : (v.lockedByName ?? `person ${v.lockedBy}`),
+  reason: v.reason,
+  checksum: v.checksum,
+});
+
 /**
- * Owners' monthly statements of a site (first part: the figures, the daily table, exclusions, tickets; the lock,
- * PDF and e-mail come later). Owners reach their own sites only (AdminService.getSite answers 404 elsewhere).
+ * Owners' monthly statements of a site: the figures, the daily table, exclusions and tickets, computed from the stored
+ * rollups while a month is open and served as stored once it is locked (statement-lock-service.ts). Owners reach their
+ * own sites only (AdminService.getSite answers 404 elsewhere).
  */
 export class StatementService {
   constructor(
     private readonly repo: StatementRepository,
-    private readonly admin: AdminService,
-    private readonly tickets: TicketService,
+    private readonly admin: Pick<AdminService, 'getSite'>,
+    private readonly tickets: Pick<TicketService, 'kpis'>,
     private readonly now: () => number = Date.now,
+    private readonly locks?: StatementLockRepository,
   ) {}
 
-  /** Months with data, newest first. */
+  /** Months with data (and locked months), newest first. */
   async months(c: Caller, siteId: number): Promise<StatementMonthList> {
     const site = await this.admin.getSite(c, siteId);
     const span = await this.repo.span(site.id);
     const current = monthOfInstant(this.now(), site.timeZone);
+    const locked = new Map((await this.locks?.lockedMonths(site.id))?.map((l) => [l.month, l]) ?? []);
     const months: StatementMonthList['months'] = [];
     if (span) {
       const last = monthOfInstant(span.lastMs, site.timeZone);
-      for (let m = monthOfInstant(span.firstMs, site.timeZone); m <= last && months.length < 240; m = nextMonthOf(m))
-        months.push({ month: m, partial: m >= current });
+      for (let m = monthOfInstant(span.firstMs, site.timeZone); m <= last && months.length < 240; m = nextMonthOf(m)) {
+        const l = locked.get(m);
+        months.push({ month: m, partial: m >= current, locked: !!l, version: l?.version ?? null, restatementSuggested: !!l?.suggested });
+      }
     }
     return { siteId: site.id, siteName: site.name, timeZone: site.timeZone, months: months.reverse() };
   }
@@ -94,7 +115,36 @@ export class StatementService {
     return { siteId: site.id, siteName: site.name, timeZone: site.timeZone, months };
   }
 
-  async statement(c: Caller, siteId: number, month: string): Promise<MonthlyStatement> {
+  /**
+   * The statement of a month: once locked, the stored version in force (or `version`) with its lock; while open,
+   * computed from the stored rollups (lock null).
+   */
+  async statement(c: Caller, siteId: number, month: string, version: number | null = null): Promise<MonthlyStatement> {
+    const site = await this.admin.getSite(c, siteId);
+    try {
+      parseMonth(month);
+    } catch (e) {
+      throw badRequest('The month is not valid.', { month: (e as Error).message });
+    }
+    const stored = await this.locks?.get(site.id, month, version);
+    if (stored) return this.served(stored);
+    if (version !== null) throw notFound(`Version ${version} of the statement for ${month}`);
+    return this.compute(c, siteId, month);
+  }
+
+  /** A stored version as served: its content with the lock and every version of the month. */
+  async served(stored: StoredStatement): Promise<MonthlyStatement> {
+    const versions = (await this.locks!.versions(stored.siteId, stored.month)).map(versionOf);
+    const lock: StatementLockInfo = {
+      ...versionOf(stored),
+      restatementSuggestedAt: stored.restatementSuggestedAt?.toISOString() ?? null,
+      versions,
+    };
+    return { ...(JSON.parse(stored.content) as Omit<MonthlyStatement, 'lock'>), lock };
+  }
+
+  /** The statement computed now from the stored rollups, tickets and alarms (what a lock stores); lock null. */
+  async compute(c: Caller, siteId: number, month: string): Promise<MonthlyStatement> {
     const site = await this.admin.getSite(c, siteId);
     let lm: LocalMonth;
     try {
@@ -140,6 +190,7 @@ export class StatementService {
     return {
       siteId: site.id,
       siteName: site.name,
+      ownerName: site.ownerName,
       month,
       timeZone: site.timeZone,
       from: isoWithOffset(lm.fromMs, site.timeZone),
@@ -165,6 +216,7 @@ export class StatementService {
         model: STATEMENT_MODEL,
         notes,
       },
+      lock: null,
     };
   }
 }

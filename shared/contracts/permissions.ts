@@ -54,6 +54,8 @@ export const PERMISSIONS = {
   readSites: ROLES,
   /** Monthly statements of a site and their CSV: owners for their own sites, staff for every site. */
   readStatements: ROLES,
+  /** Restate a locked month with a reason (a new version; the earlier stays readable, marked superseded). */
+  restateStatements: ['engineer', 'admin'],
   /** The owners' portfolio home (this month and the last twelve of each of their sites). */
   openPortfolio: ['owner'],
   /**

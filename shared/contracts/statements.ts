@@ -10,6 +10,11 @@ export interface StatementMonthSummary {
   month: string;
   /** Whether the month is still running (its figures are "so far"). */
   partial: boolean;
+  /** Whether the month is locked (its statement is stored and served as it was locked). */
+  locked: boolean;
+  /** The version served (1 = as first locked, higher = a restatement); null while unlocked. */
+  version: number | null;
+  restatementSuggested: boolean;
 }
 
 /** `GET /api/sites/:id/statements`. */
@@ -121,9 +126,32 @@ export interface StatementTickets {
   mttrH: number | null;
 }
 
+/** One stored version of a locked month. */
+export interface StatementVersionSummary {
+  version: number;
+  /** `locked` = the version in force; `superseded` = replaced by a restatement (still readable). */
+  state: 'locked' | 'superseded';
+  lockedAt: string;
+  /** Who locked or restated it; null = the automatic lock. */
+  lockedBy: string | null;
+  /** Why it was restated (null for the first version). */
+  reason: string | null;
+  /** SHA-256 (hex) of the canonical JSON of the content (every field but `lock`, object keys sorted). */
+  checksum: string;
+}
+
+/** How a served statement stands: null while the month is open (computed on each request). */
+export interface StatementLockInfo extends StatementVersionSummary {
+  /** When data for this month arrived after it was locked (engineers and admins may restate it). */
+  restatementSuggestedAt: string | null;
+  /** Every version of the month, newest first. */
+  versions: StatementVersionSummary[];
+}
+
 export interface MonthlyStatement {
   siteId: number;
   siteName: string;
+  ownerName: string;
   month: string;
   timeZone: string;
   /** Local start and end of the month, ISO 8601 with offset. */
@@ -144,7 +172,18 @@ export interface MonthlyStatement {
     model: string[];
     notes: string[];
   };
+  /** The lock of the month (not part of the checksummed content). */
+  lock: StatementLockInfo | null;
 }
+
+/** `POST /api/sites/:id/statements/:month/restate`. */
+export interface RestateRequest {
+  reason: string;
+}
+
+/** When a month locks: on the 3rd of the next month at 06:00 in the site's zone (grace for late data). */
+export const STATEMENT_LOCK_DAY = 3;
+export const STATEMENT_LOCK_HOUR = 6;
 
 /** One month of a site's trend (`GET /api/sites/:id/statement-trend`): the headline figures of its statement. */
 export interface StatementTrendMonth {

@@ -23,9 +23,11 @@ export async function startTestStack(opts: TestStackOptions = {}): Promise<Stack
     sessionSecret: 'test-secret-test-secret-test-secret-0',
   };
   // No background warming of the modelled best: a test stack lives seconds (landscape-warm.test.ts covers the warmer).
+  // No statement lock job either: tests that write past months would race it (statement-lock.test.ts sweeps by hand).
   const stack = await startStack(config, pino({ level: process.env['BW_TEST_LOG_LEVEL'] ?? 'silent' }), {
     warmLandscapes: false,
     ...opts.stack,
+    statements: { autoLock: false, ...opts.stack?.statements },
   });
   return {
     ...stack,

@@ -151,6 +151,10 @@ const ROUTES: Row[] = [
   row('GET /api/sites/:id/statements',             (w, s) => `/api/sites/${w[s].siteId}/statements`,                                     401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/statements/:month',      (w, s) => `/api/sites/${w[s].siteId}/statements/2026-06`,                             401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/statements/:month.csv',  (w, s) => `/api/sites/${w[s].siteId}/statements/2026-06.csv`,                         401, 200, 200, 200, 200, mine(200)),
+  row('GET /api/sites/:id/statements/:month.pdf',  (w, s) => `/api/sites/${w[s].siteId}/statements/2026-06.pdf`,                         401, 200, 200, 200, 200, mine(200)),
+  // June 2026 is not locked in this world: engineers and admins reach the service (409) and change nothing.
+  row('POST /api/sites/:id/statements/:month/restate', (w, s) => ({ path: `/api/sites/${w[s].siteId}/statements/2026-06/restate`, body: { reason: 'matrix' } }),
+                                                                                                                                          401, 409, 409, 403, 403, 403),
   row('GET /api/sites/:id/statement-trend',        (w, s) => `/api/sites/${w[s].siteId}/statement-trend`,                                401, 200, 200, 200, 200, mine(200)),
   row('GET /api/owners/:id/sla',                   (w, s) => `/api/owners/${w[s].ownerId}/sla`,                                          401, 200, 200, 200, 200, mine(200)),
   row('PUT /api/owners/:id/sla',                   (w, s) => ({ path: `/api/owners/${w[s].ownerId}/sla`, body: {} }),                     401, 200, 403, 403, 403, 403),
