@@ -47,6 +47,11 @@ fi
 # does it again.
 node --max-semi-space-size=64 --import tsx server/scripts/demo-history.ts fill ||
   echo "[start] the demo's past could not be generated (see above); starting without it, the next start tries again"
+
+# The demo's past months get their locked statements (silently, no mail); the server's lock job locks the newest due
+# month at its first sweep and mails only that one to each owner.
+node --import tsx server/scripts/statement-locks.ts past ||
+  echo "[start] the past months' statements could not be locked (see above); the server's lock job tries again"
 # The local mail service: every message the server sends lands in .data/mail/ (nothing leaves the machine).
 export BW_SMTP_HOST=127.0.0.1 BW_SMTP_PORT=${BW_SMTP_PORT:-2525}
 setsid node --import tsx server/scripts/mail-sink.ts &
