@@ -1,7 +1,7 @@
 import { HttpClient } from '@angular/common/http';
 import { inject, Injectable } from '@angular/core';
 import { Observable } from 'rxjs';
-import type { MonthlyStatement, StatementMonthList, StatementTrend } from '../../../shared/contracts/statements';
+import type { MonthlyStatement, RestateRequest, StatementMonthList, StatementTrend } from '../../../shared/contracts/statements';
 
 /** Owners' monthly statements of a site (owners: their own sites only, enforced by the server). */
 @Injectable({ providedIn: 'root' })
@@ -12,8 +12,14 @@ export class StatementApi {
     return this.http.get<StatementMonthList>(`/api/sites/${siteId}/statements`);
   }
 
-  statement(siteId: number, month: string): Observable<MonthlyStatement> {
-    return this.http.get<MonthlyStatement>(`/api/sites/${siteId}/statements/${month}`);
+  /** The statement of a month: the version in force, or an earlier `version` of a locked month. */
+  statement(siteId: number, month: string, version: number | null = null): Observable<MonthlyStatement> {
+    return this.http.get<MonthlyStatement>(`/api/sites/${siteId}/statements/${month}${version === null ? '' : `?version=${version}`}`);
+  }
+
+  /** Restates a locked month with a reason (engineers and admins): answers the new version. */
+  restate(siteId: number, month: string, reason: string): Observable<MonthlyStatement> {
+    return this.http.post<MonthlyStatement>(`/api/sites/${siteId}/statements/${month}/restate`, { reason } satisfies RestateRequest);
   }
 
   trend(siteId: number): Observable<StatementTrend> {
@@ -21,7 +27,12 @@ export class StatementApi {
   }
 
   /** Where the browser downloads a statement's CSV (a plain link: the session cookie goes with it). */
-  csvUrl(siteId: number, month: string): string {
-    return `/api/sites/${siteId}/statements/${month}.csv`;
+  csvUrl(siteId: number, month: string, version: number | null = null): string {
+    return `/api/sites/${siteId}/statements/${month}.csv${version === null ? '' : `?version=${version}`}`;
+  }
+
+  /** Where the browser downloads a statement's PDF (made on the server). */
+  pdfUrl(siteId: number, month: string, version: number | null = null): string {
+    return `/api/sites/${siteId}/statements/${month}.pdf${version === null ? '' : `?version=${version}`}`;
   }
 }

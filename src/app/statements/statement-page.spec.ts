@@ -3,8 +3,11 @@ import { TestBed } from '@angular/core/testing';
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { provideRouter } from '@angular/router';
+import { signal } from '@angular/core';
+import { Session } from '../auth/session';
 import { NgxEchartsDirective } from 'ngx-echarts';
-import type { MonthlyStatement, StatementFigures, StatementMonthList } from '../../../shared/contracts/statements';
+import type { Role } from '../../../shared/contracts/api';
+import type { MonthlyStatement, StatementFigures, StatementLockInfo, StatementMonthList } from '../../../shared/contracts/statements';
 import { StatementPage } from './statement-page';
 
 /** Stands in for the chart directive (no canvas in the test DOM); records the options it was given. */
@@ -53,14 +56,15 @@ const MONTHS: StatementMonthList = {
   siteName: 'Harbour Roof',
   timeZone: 'Europe/Berlin',
   months: [
-    { month: '2026-12', partial: true },
-    { month: '2026-11', partial: false },
+    { month: '2026-12', partial: true, locked: false, version: null, restatementSuggested: false },
+    { month: '2026-11', partial: false, locked: false, version: null, restatementSuggested: false },
   ],
 };
 
 const STATEMENT: MonthlyStatement = {
   siteId: 3,
   siteName: 'Harbour Roof',
+  ownerName: 'Quillmoor Energy Cooperative',
   month: '2026-11',
   timeZone: 'Europe/Berlin',
   from: '2026-11-01T00:00:00+01:00',
@@ -116,14 +120,46 @@ const STATEMENT: MonthlyStatement = {
     model: ['Modelled irradiance: the landscape engine over the site survey.'],
     notes: [],
   },
+  lock: null,
+};
+
+const V1 = { version: 1, lockedAt: '2026-12-03T05:00:00.000Z', lockedBy: null, reason: null, checksum: 'a'.repeat(64) };
+const V2 = {
+  version: 2,
+  lockedAt: '2026-12-05T09:00:00.000Z',
+  lockedBy: 'Ines Varga',
+  reason: 'Late readings of 12 November',
+  checksum: 'b'.repeat(64),
+};
+const LOCKED: StatementLockInfo = {
+  ...V1,
+  state: 'locked',
+  restatementSuggestedAt: '2026-12-04T10:00:00.000Z',
+  versions: [{ ...V1, state: 'locked' }],
+};
+const RESTATED: StatementLockInfo = {
+  ...V2,
+  state: 'locked',
+  restatementSuggestedAt: null,
+  versions: [
+    { ...V2, state: 'locked' },
+    { ...V1, state: 'superseded' },
+  ],
 };
 
 describe('StatementPage', () => {
   let http: HttpTestingController;
   afterEach(() => http.verify());
 
-  async function open(month?: string) {
-    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting(), provideRouter([])] });
+  async function open(month?: string, role: Role = 'owner') {
+    TestBed.configureTestingModule({
+      providers: [
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        provideRouter([]),
+        { provide: Session, useValue: { role: signal(role) } },
+      ],
+    });
     TestBed.overrideComponent(StatementPage, { remove: { imports: [NgxEchartsDirective] }, add: { imports: [ChartStub] } });
     http = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(StatementPage);
@@ -176,6 +212,72 @@ describe('StatementPage', () => {
       .flush({ error: { code: 'not_found', message: 'Site not found.' } }, { status: 404, statusText: 'Not Found' });
     await again.fixture.whenStable();
     expect(again.el.querySelector('h1')!.textContent).toContain('Statement not found');
+  });
+
+  it('says an unlocked past month is not locked yet, and links the PDF', async () => {
+    const { fixture, el } = await open('2026-11');
+    http.expectOne('/api/sites/3/statements').flush(MONTHS);
+    await fixture.whenStable();
+    http.expectOne('/api/sites/3/statements/2026-11').flush(STATEMENT);
+    await fixture.whenStable();
+    expect(el.querySelector('[data-testid="not-locked"]')!.textContent).toContain('locks on the 3rd of the next month at 06:00 site time');
+    expect(el.querySelector('[data-testid="pdf-link"]')!.getAttribute('href')).toBe('/api/sites/3/statements/2026-11.pdf');
+    expect(el.querySelector('[data-testid="lock"]')).toBeNull();
+  });
+
+  it('shows a locked month to an owner: version, checksum, restatement suggested, and no restate form', async () => {
+    const { fixture, el } = await open('2026-11');
+    http.expectOne('/api/sites/3/statements').flush(MONTHS);
+    await fixture.whenStable();
+    http.expectOne('/api/sites/3/statements/2026-11').flush({ ...STATEMENT, lock: LOCKED });
+    await fixture.whenStable();
+    const lock = el.querySelector('[data-testid="lock"]')!.textContent!.replace(/\s+/g, ' ');
+    expect(lock).toContain('Locked · version 1');
+    expect(lock).toContain('(automatic lock)');
+    expect(el.querySelector('[data-testid="checksum"]')!.textContent).toBe('a'.repeat(64));
+    expect(el.querySelector('[data-testid="restatement-suggested"]')!.textContent).toContain('Restatement suggested');
+    expect(el.querySelector('[data-testid="restate-form"]')).toBeNull();
+    expect(el.querySelector('[data-testid="not-locked"]')).toBeNull();
+  });
+
+  it('lets an engineer restate with a reason, then lists both versions and opens the superseded one', async () => {
+    const { fixture, el } = await open('2026-11', 'engineer');
+    http.expectOne('/api/sites/3/statements').flush(MONTHS);
+    await fixture.whenStable();
+    http.expectOne('/api/sites/3/statements/2026-11').flush({ ...STATEMENT, lock: LOCKED });
+    await fixture.whenStable();
+    (el.querySelector('[data-testid="restate"]') as HTMLButtonElement).click();
+    await fixture.whenStable();
+    expect(el.querySelector('[data-testid="restate-form"] [role="alert"]')!.textContent).toContain('Say why');
+    const input = el.querySelector('[data-testid="restate-form"] input') as HTMLInputElement;
+    input.value = 'Late readings of 12 November';
+    input.dispatchEvent(new Event('input'));
+    (el.querySelector('[data-testid="restate"]') as HTMLButtonElement).click();
+    const post = http.expectOne('/api/sites/3/statements/2026-11/restate');
+    expect(post.request.method).toBe('POST');
+    expect(post.request.body).toEqual({ reason: 'Late readings of 12 November' });
+    post.flush({ ...STATEMENT, lock: RESTATED });
+    http.expectOne('/api/sites/3/statements').flush({
+      ...MONTHS,
+      months: [MONTHS.months[0]!, { month: '2026-11', partial: false, locked: true, version: 2, restatementSuggested: false }],
+    });
+    await fixture.whenStable();
+    expect(el.querySelector('[data-testid="lock"]')!.textContent).toContain('Locked · version 2');
+    expect(el.querySelector('[data-testid="lock-reason"]')!.textContent).toContain('Late readings of 12 November');
+    expect(el.querySelector('[data-testid="restatement-suggested"]')).toBeNull();
+    const versions = [...el.querySelectorAll('[data-testid="versions"] button')] as HTMLButtonElement[];
+    expect(versions.map((b) => b.textContent!.replace(/\s+/g, ' ').trim())).toEqual([
+      'Version 2 · in force · 2026-12-05T09:00:00.000Z',
+      'Version 1 · superseded · 2026-12-03T05:00:00.000Z',
+    ]);
+    versions[1]!.click();
+    await fixture.whenStable();
+    http.expectOne('/api/sites/3/statements/2026-11?version=1').flush({ ...STATEMENT, lock: { ...RESTATED, ...V1, state: 'superseded' } });
+    await fixture.whenStable();
+    expect(el.querySelector('[data-testid="lock"]')!.textContent).toContain('superseded by a restatement');
+    expect(el.querySelector('[data-testid="restate-form"]')).toBeNull(); // only the version in force is restated
+    expect(el.querySelector('[data-testid="pdf-link"]')!.getAttribute('href')).toBe('/api/sites/3/statements/2026-11.pdf?version=1');
+    expect(el.querySelector('[data-testid="csv-link"]')!.getAttribute('href')).toBe('/api/sites/3/statements/2026-11.csv?version=1');
   });
 
   it('shows an error with a retry when the statement cannot be loaded', async () => {
