@@ -18,6 +18,9 @@ export interface StatementLockOptions {
 
 export const DEFAULT_STATEMENT_LOCK_OPTIONS: StatementLockOptions = { now: Date.now, intervalMs: 5 * 60_000 };
 
+/** How far back the lock job looks: the newest due month and the eleven before it (a year of statements). */
+export const LOCK_LOOKBACK_MONTHS = 12;
+
 /** The lock job acts as the system: staff scope (every site), no person. */
 const SYSTEM: Caller = { id: 0, role: 'admin', ownerId: null };
 
@@ -50,8 +53,8 @@ export interface SweepOptions {
 }
 
 /**
- * The monthly lock. A timer (one per server) locks each site's due months: every month from the site's first data up
- * to the newest due one that has no locked version yet. The newest due month is mailed to the owner's contact with the
+ * The monthly lock. A timer (one per server) locks each site's due months: every month of the last twelve due ones
+ * (from the site's first data on) that has no locked version yet; older months stay computed on request. The newest due month is mailed to the owner's contact with the
  * PDF attached; older months (a server that was down, the demo's past) lock silently, so a fresh start never mails
  * the whole past. Each lock stores the statement's canonical JSON and its SHA-256. Late data for a locked month
  * (buckets the rollup worker rewrites after the lock) marks it "restatement suggested"; engineers and admins restate
@@ -117,7 +120,10 @@ export class StatementLockService {
       if (site.firstMs === null) continue;
       const newest = newestDueMonth(nowMs, site.timeZone);
       const last = opts.leaveNewest ? previousMonthOf(newest) : newest;
-      for (let m = monthOfInstant(site.firstMs, site.timeZone); m <= last; m = nextMonthOf(m)) {
+      let first = newest;
+      for (let i = 1; i < LOCK_LOOKBACK_MONTHS; i++) first = previousMonthOf(first);
+      const firstData = monthOfInstant(site.firstMs, site.timeZone);
+      for (let m = firstData > first ? firstData : first; m <= last; m = nextMonthOf(m)) {
         if (this.locked.has(`${site.siteId}|${m}`)) continue;
         const mailed = !opts.leaveNewest && m === newest;
         try {

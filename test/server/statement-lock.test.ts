@@ -25,6 +25,8 @@ const site = { east: 0, west: 0 };
 const unitsOf: Record<'east' | 'west', number[]> = { east: [], west: [] };
 const Q = 15 * 60_000;
 const E_WH = 50; // energy of a daylight bucket [Wh]
+/** 2025-09 … 2026-10. */
+const EAST_MONTHS = Array.from({ length: 14 }, (_, i) => new Date(Date.UTC(2025, 8 + i, 1)).toISOString().slice(0, 7));
 const tmp = mkdtempSync(join(tmpdir(), 'bw-lock-'));
 
 type Agent = ReturnType<typeof request.agent>;
@@ -145,9 +147,7 @@ beforeAll(async () => {
       );
   await stack.units.load();
   const rows = [
-    ...dayRows(unitsOf.east, '2026-08-10', 'Asia/Tokyo'),
-    ...dayRows(unitsOf.east, '2026-09-10', 'Asia/Tokyo'),
-    ...dayRows(unitsOf.east, '2026-10-10', 'Asia/Tokyo'),
+    ...EAST_MONTHS.flatMap((m) => dayRows(unitsOf.east, `${m}-10`, 'Asia/Tokyo')),
     ...dayRows(unitsOf.west, '2026-10-10', 'America/Los_Angeles'),
   ];
   await db('telemetry_15m').insert(rows);
@@ -167,15 +167,18 @@ const get = async (who: string, path: string) => (await (await as(who)).get(path
 describe('the monthly lock', () => {
   it('on a fresh demo locks the past silently and mails only the newest due month', async () => {
     // The demo's seeding step (before the server starts): every due month but the newest, without mail.
+    // The job looks back twelve due months (October 2025 … September 2026): September 2025 stays unlocked.
     const seeded = await stack.statementLocks.sweep({ leaveNewest: true });
-    expect(seeded).toEqual([{ siteId: site.east, month: '2026-08', mailed: false }]);
+    expect(seeded).toEqual(EAST_MONTHS.slice(1, 12).map((month) => ({ siteId: site.east, month, mailed: false })));
     // The server's first sweep: the newest due month (September in Tokyo; October is due only at 06:00 on 3 November).
     const first = await stack.statementLocks.sweep();
     await settle();
     expect(first).toEqual([{ siteId: site.east, month: '2026-09', mailed: true }]);
     const mails = mailsTo('accounts@quillmoor.example');
     expect(mails.map((m) => m.subject)).toEqual(['Monthly statement: Lock test east roof, 2026-09']);
-    expect(await stack.db('statements').where({ site_id: site.east }).orderBy('month').pluck('silent')).toEqual([1, 0]);
+    const rows = await stack.db('statements').where({ site_id: site.east }).orderBy('month').select('month', 'silent');
+    expect(rows).toHaveLength(12); // the year of statements a fresh demo starts with
+    expect(rows.filter((r) => !r.silent).map((r) => r.month)).toEqual(['2026-09']);
   });
 
   it('locks at 06:00 on the 3rd in the site zone: Tokyo (east of UTC) before Los Angeles (west)', async () => {
@@ -214,11 +217,8 @@ describe('the monthly lock', () => {
     expect(recomputedChecksum(s)).toBe(s.lock!.checksum);
     expect(s.site.energyKwh).toBeCloseTo((2 * 48 * E_WH) / 1000, 6);
     const list = (await (await as(OWNER)).get(`/api/sites/${site.east}/statements`).expect(200)).body as StatementMonthList;
-    expect(list.months.filter((m) => m.locked).map((m) => [m.month, m.version])).toEqual([
-      ['2026-10', 1],
-      ['2026-09', 1],
-      ['2026-08', 1],
-    ]);
+    expect(list.months.filter((m) => m.locked).map((m) => m.month)).toEqual(EAST_MONTHS.slice(1).reverse());
+    expect(list.months.find((m) => m.month === '2025-09')).toMatchObject({ locked: false, version: null });
   });
 });
 
@@ -343,4 +343,44 @@ describe('late data and restatements', () => {
       .expect(409);
     expect(r.body.error.message).toMatch(/not locked yet/);
   });
+});
+
+describe("the demo start's lock step (server/scripts/statement-locks.ts)", () => {
+  it('locks every due month but the newest, silently, once', async () => {
+    const { createTestDatabase } = await import('../helpers/test-db');
+    const t = await createTestDatabase({ seed: true });
+    try {
+      const owner = (await t.db('owners').first('id')).id as number;
+      const [siteId] = await t.db('sites').insert({
+        owner_id: owner,
+        name: 'Script test roof',
+        latitude_deg: 35.68,
+        longitude_deg: 139.69,
+        elevation_m: 10,
+        time_zone: 'Asia/Tokyo',
+      });
+      const [unitId] = await t.db('units').insert({
+        serial: 'LCK-SCRIPT-0',
+        site_id: siteId,
+        rated_power_wp: 400,
+        detector_tilt_deg: 10,
+        firmware: 'test',
+        device_secret_hash: 'sha256:00',
+      });
+      await t.db('telemetry_15m').insert(EAST_MONTHS.flatMap((m) => dayRows([unitId!], `${m}-10`, 'Asia/Tokyo')));
+      const run = () =>
+        execFileSync('node', ['--import', 'tsx', 'server/scripts/statement-locks.ts', 'past', '--now', '2026-11-05T00:00:00Z'], {
+          encoding: 'utf8',
+          env: { ...process.env, BW_DB_NAME: t.config.db.database },
+        });
+      expect(run()).toContain('[statements] 11 past months locked silently');
+      expect(run()).toBe(''); // months locked already are left alone
+      const rows = await t.db('statements').where({ site_id: siteId }).orderBy('month').select('month', 'silent', 'state');
+      expect(rows.map((r) => r.month)).toEqual(EAST_MONTHS.slice(2, 13)); // November 2025 … September 2026; October is the server's
+      expect(rows.every((r) => r.silent && r.state === 'locked')).toBe(true);
+      expect(await t.db('mail_outbox').count({ n: '*' }).first()).toEqual({ n: 0 });
+    } finally {
+      await t.drop();
+    }
+  }, 60_000);
 });
