@@ -344,6 +344,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     { now: statementNow, ...lockOpts },
   );
   rollups.onRolled((q) => statementLocks.onQuartersRolled(q));
+  siteModel.onSurveySaved((siteId) => statementLocks.onSurveyChanged(siteId));
   const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];

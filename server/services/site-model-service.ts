@@ -25,9 +25,17 @@ export class SiteModelService {
     return s;
   }
 
+  private readonly surveyListeners: ((siteId: number) => void)[] = [];
+
+  /** Called after a site's survey is replaced (statements of locked months suggest a restatement). */
+  onSurveySaved(listener: (siteId: number) => void): void {
+    this.surveyListeners.push(listener);
+  }
+
   /** Replaces a site's survey (already validated) and records who did it. */
   async saveSurvey(by: Caller, siteId: number, survey: SiteSurvey): Promise<SiteSurvey> {
     if (!(await this.repo.saveSurvey(siteId, survey))) throw notFound('Site');
+    for (const l of this.surveyListeners) l(siteId);
     await this.audit.record(by, 'site-survey-update', `site:${siteId}`, {
       horizonPoints: survey.horizon.length,
       reflectors: survey.reflectors.length,

@@ -207,6 +207,28 @@ export class StatementLockService {
     }
   }
 
+  /**
+   * A site's survey changed: its locked months stay as they are (a statement keeps the model it was made with) and are
+   * marked "restatement suggested", so an engineer decides whether to restate them with the new survey.
+   */
+  onSurveyChanged(siteId: number): void {
+    const p = this.suggestForSite(siteId)
+      .catch((err) => this.log.error({ err, siteId }, 'restatement suggestion not stored'))
+      .finally(() => this.pending.delete(p));
+    this.pending.add(p);
+  }
+
+  private async suggestForSite(siteId: number): Promise<number> {
+    let n = 0;
+    for (const m of await this.repo.lockedMonths(siteId)) {
+      if (m.suggested) continue;
+      if (await this.repo.markSuggested(siteId, m.month, new Date(this.opts.now()))) n++;
+      this.locked.set(`${siteId}|${m.month}`, true);
+    }
+    if (n) this.log.info({ siteId, months: n }, 'survey changed: restatements suggested for the locked months');
+    return n;
+  }
+
   /** Mails a locked statement with its PDF to the owner's contact addresses (through the mail module's outbox). */
   private async mailLocked(s: MonthlyStatement): Promise<void> {
     if (!this.mail) return;

@@ -296,6 +296,25 @@ describe('late data and restatements', () => {
     expect(list.months.find((m) => m.month === '2026-09')!.restatementSuggested).toBe(false);
   });
 
+  it("suggests restating a site's locked months when its survey changes, and leaves their content alone", async () => {
+    const engineer = await as(ENGINEER);
+    const survey = (await engineer.get(`/api/sites/${site.west}/survey`).expect(200)).body;
+    const before = (await (await as(ENGINEER)).get(`/api/sites/${site.west}/statements`).expect(200)).body as StatementMonthList;
+    const locked = before.months.filter((m) => m.locked);
+    expect(locked.length).toBeGreaterThan(0);
+    expect(locked.some((m) => m.restatementSuggested)).toBe(false);
+    const content = await get(ENGINEER, `/api/sites/${site.west}/statements/${locked[0]!.month}`);
+    await engineer
+      .put(`/api/sites/${site.west}/survey`)
+      .send({ ...survey, horizon: [[0, 5]] })
+      .expect(200);
+    await settle();
+    const after = (await engineer.get(`/api/sites/${site.west}/statements`).expect(200)).body as StatementMonthList;
+    expect(after.months.filter((m) => m.locked).every((m) => m.restatementSuggested)).toBe(true);
+    const again = await get(ENGINEER, `/api/sites/${site.west}/statements/${locked[0]!.month}`);
+    expect(again.lock!.checksum).toBe(content.lock!.checksum);
+  });
+
   it('lets engineers restate with a reason: a new version, the old one superseded and still readable', async () => {
     const before = await get(OWNER, `/api/sites/${site.east}/statements/2026-10`);
     await (await as(OWNER)).post(`/api/sites/${site.east}/statements/2026-10/restate`).send({ reason: 'Late data' }).expect(403);
