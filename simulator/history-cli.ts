@@ -3,9 +3,10 @@
  * (server/scripts/demo-history.ts) to bulk-load. One JSON object per line on stdout (shared/contracts/history-stream.ts):
  *   { "k": "t", "serial", "sentMs", "r": [seq, ts, …] }    a report a unit sent (full rate; TELEMETRY_ROW_FIELDS order)
  *   { "k": "m", "serial", "leaf", "payload", "sentMs" }   another message a unit sent (events, weather; full rate)
- *   { "k": "q", "r": [serial, bucketMs, minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh] }
- *                                                           a unit's 15-minute interval (rollup level; W/m² to 0.1, W to
- *                                                           0.01, Wh to 0.001)
+ *   { "k": "q", "r": [serial, bucketMs, minutes, samples, poaAvgWm2, …] }
+ *                                                           a unit's 15-minute interval (rollup level; QUARTER_ROW_FIELDS
+ *                                                           order; W/m² to 0.1, W, °C and ° to 0.01, Wh and minutes to
+ *                                                           0.001)
  *   { "k": "w", …ModelWeather }                             a weather station reading (rollup level)
  *   { "k": "truth", "serial", "fault", "start", "end" }     a fault or observed condition of the window
  *   { "k": "end", "messages", "quarters", "seconds" }       last line
@@ -14,7 +15,7 @@
  *     [--serials A,B,…]   (only these units; default the whole demo fleet)
  */
 import { parseArgs } from 'node:util';
-import { TELEMETRY_ROW_FIELDS } from '../shared/contracts/history-stream';
+import { QUARTER_ROW_FIELDS, TELEMETRY_ROW_FIELDS, type HistoryQuarter } from '../shared/contracts/history-stream';
 import { parseInstant } from '../shared/solar-position';
 import { demoFleetSites } from './demo-fleet';
 import { fullRateHistory, HISTORY_FAULTS, rollupModelHistory } from './history';
@@ -54,14 +55,35 @@ const flush = () => {
   buf = [];
   bufLen = 0;
 };
-const line = (o: object) => {
-  const s = `${JSON.stringify(o)}\n`;
+const text = (s: string) => {
   buf.push(s);
   bufLen += s.length;
   if (bufLen > 1 << 20) flush();
 };
+const line = (o: object) => text(`${JSON.stringify(o)}\n`);
 
-const round = (x: number, per: number) => Math.round(x * per) / per;
+/** Steps per unit each quarter field is rounded to (what a rollup needs). */
+const ROUNDING: Record<Exclude<keyof HistoryQuarter, 'serial'>, number> = {
+  bucketMs: 1,
+  minutes: 1,
+  samples: 1,
+  poaAvgWm2: 10,
+  poaMaxWm2: 10,
+  dcPowerAvgW: 100,
+  energyWh: 1000,
+  moduleTempC: 100,
+  tiltDeg: 100,
+  azimuthDeg: 100,
+  seekingMin: 1000,
+  settledMin: 1000,
+  stowedMin: 1000,
+  modelUnitWm2: 10,
+  modelBestWm2: 10,
+  modelFixedWm2: 10,
+  modelSunWm2: 10,
+};
+/** The numeric fields in stream order (QUARTER_ROW_FIELDS after the serial) with their rounding. */
+const STEPS = QUARTER_ROW_FIELDS.slice(1).map((f) => [f, ROUNDING[f as Exclude<typeof f, 'serial'>]]) as [keyof typeof ROUNDING, number][];
 const t0 = performance.now();
 let messages = 0;
 let quarters = 0;
@@ -83,20 +105,12 @@ const truth =
       })
     : rollupModelHistory(sites, { fromMs, toMs, seed, faults }, (qs, ws) => {
         // Quarters are most of the stream: one compact row each, rounded to what a rollup needs.
-        for (const q of qs)
-          line({
-            k: 'q',
-            r: [
-              q.serial,
-              q.bucketMs,
-              q.minutes,
-              q.samples,
-              round(q.poaAvgWm2, 10),
-              round(q.poaMaxWm2, 10),
-              round(q.dcPowerAvgW, 100),
-              round(q.energyWh, 1000),
-            ],
-          });
+        for (const q of qs) {
+          // Written by hand, not through JSON.stringify of a row: quarters are most of the stream (millions of lines).
+          let t = `{"k":"q","r":[${JSON.stringify(q.serial)}`;
+          for (const [f, per] of STEPS) t += `,${Math.round(q[f] * per) / per}`;
+          text(`${t}]}\n`);
+        }
         for (const w of ws) line({ k: 'w', ...w });
         quarters += qs.length;
       });

@@ -13,6 +13,8 @@
  */
 import { MODULE_POWER_TEMP_COEFF_PER_K as TEMP_COEFF_PER_K } from '../shared/contracts/pv-module';
 import { bestReachableOrientationWith, type UnitLimits } from '../shared/landscape';
+import { fixedTwinOrientation, sunTwinOrientation } from '../shared/pv-performance/mount-twins';
+import { normalFromTiltAzimuth } from '../shared/sphere/directions';
 import { solarPosition } from '../shared/solar-position';
 import { isoUtc } from './clock';
 import { FAULT_MEAN_HOURS, type FaultKind, type FaultPlan, type TruthRecord } from './faults';
@@ -108,6 +110,24 @@ export interface ModelQuarter {
   poaMaxWm2: number;
   dcPowerAvgW: number;
   energyWh: number;
+  /** Mean module temperature [°C]. */
+  moduleTempC: number;
+  /** Mean orientation [°]: the best reachable one, flat (tilt 0) in wind stow. */
+  tiltDeg: number;
+  azimuthDeg: number;
+  /** Minutes per mode over the reported minutes (seeking while hunting, stowed in wind stow, settled otherwise). */
+  seekingMin: number;
+  settledMin: number;
+  stowedMin: number;
+  /**
+   * Modelled in-plane irradiance [W/m²] under the generator's own sky (so the model has no bias here): at the unit's
+   * orientation (its share of the best under a trap, drift, hunting or a dead detector; the horizontal value in stow),
+   * at the best reachable orientation, on the fixed-tilt and sun-following twins (shared/pv-performance/mount-twins.ts).
+   */
+  modelUnitWm2: number;
+  modelBestWm2: number;
+  modelFixedWm2: number;
+  modelSunWm2: number;
 }
 
 /** The site weather station's reading at an interval's midpoint (`serial`: the unit that carries the station). */
@@ -131,9 +151,19 @@ export interface RollupModelWindow {
   templateDays?: number;
 }
 
+/** What a unit travel gets under one slot's sky: best reachable orientation and irradiance, sun-following twin [°, W/m²]. */
+interface TravelSky {
+  wm2: number;
+  tiltDeg: number;
+  azimuthDeg: number;
+  sunWm2: number;
+}
+
 interface SlotSky {
-  /** Best reachable irradiance per unit-limits key [W/m²]. */
-  best: Map<string, number>;
+  /** Per unit-limits key. */
+  best: Map<string, TravelSky>;
+  /** Fixed-tilt twin of the site [W/m²]. */
+  fixedWm2: number;
   ghiWm2: number;
   dhiWm2: number;
   airTempC: number;
@@ -161,19 +191,34 @@ function templateSkies(site: FleetSiteSpec, days: number[], rng: Rng): SlotSky[]
   const parts = SCENARIOS[site.scenario]!.parts(site.site);
   const limits = new Map(site.units.map((u) => [limitsKey(unitLimits(u)), unitLimits(u)]));
   const loc = { latitudeDeg: site.site.latitudeDeg, longitudeDeg: site.site.longitudeDeg, elevationM: site.site.elevationM };
+  const fixed = fixedTwinOrientation(site.site.latitudeDeg);
+  const fixedNormal = normalFromTiltAzimuth(fixed.tiltDeg, fixed.azimuthDeg);
   const sample = (t: number): SlotSky => {
-    const best = new Map<string, number>();
+    const best = new Map<string, TravelSky>();
     if (!site.site.indoor && solarPosition(loc, t).elevationDeg <= -1) {
-      for (const key of limits.keys()) best.set(key, 0);
+      // At night a unit rests where the search over a dark sky ends (its lower limits).
+      for (const [key, l] of limits)
+        best.set(key, { wm2: 0, tiltDeg: l.tiltRangeDeg[0], azimuthDeg: l.azimuthRangeDeg[0] % 360, sunWm2: 0 });
       const airTempC = airTemperatureC(parts.airTemp.meanC, parts.airTemp.amplitudeC, site.site.longitudeDeg, t);
-      return { best, ghiWm2: 0, dhiWm2: 0, airTempC, windMs: parts.wind.meanMs, gustMs: parts.wind.meanMs * 1.4 };
+      return { best, fixedWm2: 0, ghiWm2: 0, dhiWm2: 0, airTempC, windMs: parts.wind.meanMs, gustMs: parts.wind.meanMs * 1.4 };
     }
     const c = world.at(t, 60);
-    for (const [key, l] of limits) best.set(key, bestReachableOrientationWith((n) => c.field.irradiance(n), l).wm2);
-    return { best, ...c.weather };
+    const e = (n: Parameters<typeof c.field.irradiance>[0]) => c.field.irradiance(n);
+    for (const [key, l] of limits) {
+      const b = bestReachableOrientationWith(e, l);
+      const sun = sunTwinOrientation(c.field.sky, l);
+      best.set(key, {
+        wm2: b.wm2,
+        tiltDeg: b.tiltDeg,
+        azimuthDeg: b.azimuthDeg,
+        sunWm2: e(normalFromTiltAzimuth(sun.tiltDeg, sun.azimuthDeg)),
+      });
+    }
+    return { best, fixedWm2: e(fixedNormal), ...c.weather };
   };
   const mean = (a: SlotSky, b: SlotSky): SlotSky => ({
-    best: new Map([...a.best].map(([k, v]) => [k, (v + b.best.get(k)!) / 2])),
+    best: new Map([...a.best].map(([k, v]) => [k, meanTravel(v, b.best.get(k)!, 0.5)])),
+    fixedWm2: (a.fixedWm2 + b.fixedWm2) / 2,
     ghiWm2: (a.ghiWm2 + b.ghiWm2) / 2,
     dhiWm2: (a.dhiWm2 + b.dhiWm2) / 2,
     airTempC: (a.airTempC + b.airTempC) / 2,
@@ -186,6 +231,21 @@ function templateSkies(site: FleetSiteSpec, days: number[], rng: Rng): SlotSky[]
       j % 2 === 0 ? samples[j / 2]! : mean(samples[(j - 1) / 2]!, samples[(j + 1) / 2] ?? samples[(j - 1) / 2]!),
     );
   });
+}
+
+/** Azimuth from a to b by the shorter way round, a share x of the way [°]. */
+const lerpAzimuth = (a: number, b: number, x: number) => {
+  const d = ((((b - a) % 360) + 540) % 360) - 180;
+  return (((a + d * x) % 360) + 360) % 360;
+};
+
+function meanTravel(a: TravelSky, b: TravelSky, x: number): TravelSky {
+  return {
+    wm2: a.wm2 + (b.wm2 - a.wm2) * x,
+    tiltDeg: a.tiltDeg + (b.tiltDeg - a.tiltDeg) * x,
+    azimuthDeg: lerpAzimuth(a.azimuthDeg, b.azimuthDeg, x),
+    sunWm2: a.sunWm2 + (b.sunWm2 - a.sunWm2) * x,
+  };
 }
 
 /** Fault windows of one unit over a time range: each kind a Poisson process at its rate, durations as the fleet draws them. */
@@ -270,20 +330,37 @@ export function rollupModelHistory(
       const { a, b } = skyAt(u.site.site.code);
       let factor = 1;
       let downMs = 0;
+      let huntMs = 0;
+      // Factors of faults that turn the unit away from its best (the model's in-plane value at its orientation drops too);
+      // soiling only dims what the unit measures and produces.
+      let turned = 1;
       for (const f of u.faults) {
         if (f.startMs >= q + QUARTER_MS) break;
         const o = overlapMs(q, q + QUARTER_MS, f.startMs, f.endMs);
         if (o <= 0) continue;
         if (MODEL_DOWNTIME_KINDS.has(f.kind)) downMs += o;
-        else factor *= 1 - (1 - (MODEL_FAULT_FACTOR[f.kind] ?? 1)) * (o / QUARTER_MS);
+        else {
+          const share = 1 - (1 - (MODEL_FAULT_FACTOR[f.kind] ?? 1)) * (o / QUARTER_MS);
+          factor *= share;
+          if (f.kind !== 'soiling') turned *= share;
+          if (f.kind === 'hunting') huntMs += o;
+        }
       }
       const minutes = Math.max(0, 15 - Math.round(Math.min(QUARTER_MS, downMs) / MINUTE_MS));
       if (minutes === 0) continue;
       // A unit in wind stow lies flat (tilt 0): it gets what a horizontal sensor on site reads.
-      const onPlane = (t: SlotSky) => (t.gustMs > u.stowGustMs ? t.ghiWm2 : t.best.get(u.key)!);
+      const stowed = (t: SlotSky) => t.gustMs > u.stowGustMs;
+      const onPlane = (t: SlotSky) => (stowed(t) ? t.ghiWm2 : t.best.get(u.key)!.wm2);
+      const ta = a.best.get(u.key)!;
+      const tb = b.best.get(u.key)!;
+      const best = lerp(ta.wm2, tb.wm2, x);
+      const atUnit = Math.max(0, lerp(onPlane(a), onPlane(b), x) * turned);
       const poa = Math.max(0, lerp(onPlane(a), onPlane(b), x) * factor);
       const moduleC = lerp(a.airTempC, b.airTempC, x) + poa * NOCT_RISE_K_PER_WM2;
       const dc = Math.max(0, ((u.ratedWp * poa) / 1000) * (1 + TEMP_COEFF_PER_K * (moduleC - 25)));
+      const stowShare = lerp(stowed(a) ? 1 : 0, stowed(b) ? 1 : 0, x);
+      const stowedMin = minutes * stowShare;
+      const seekingMin = (minutes - stowedMin) * Math.min(1, huntMs / QUARTER_MS);
       quarters.push({
         serial: u.spec.serial,
         bucketMs: q,
@@ -293,6 +370,17 @@ export function rollupModelHistory(
         poaMaxWm2: poa,
         dcPowerAvgW: dc,
         energyWh: (dc * minutes) / 60,
+        moduleTempC: moduleC,
+        tiltDeg: lerp(stowed(a) ? 0 : ta.tiltDeg, stowed(b) ? 0 : tb.tiltDeg, x),
+        azimuthDeg: lerpAzimuth(ta.azimuthDeg, tb.azimuthDeg, x),
+        seekingMin,
+        settledMin: minutes - stowedMin - seekingMin,
+        stowedMin,
+        modelUnitWm2: atUnit,
+        // The unit's own orientation is reachable, so the best is never below it.
+        modelBestWm2: Math.max(best, atUnit),
+        modelFixedWm2: lerp(a.fixedWm2, b.fixedWm2, x),
+        modelSunWm2: lerp(ta.sunWm2, tb.sunWm2, x),
       });
     }
     onSlot(quarters, weather);

@@ -12,6 +12,16 @@ export interface QuarterRow {
   poaMaxWm2: number;
   dcPowerAvgW: number;
   energyWh: number;
+  /** What the statements read (null: not known). */
+  moduleTempC: number | null;
+  tiltDeg: number | null;
+  azimuthDeg: number | null;
+  /** Minutes per mode, in `MODE_MINUTE_COLUMNS` order (seeking, settled, scanning, stowed, held, fault). */
+  modeMinutes: readonly [number, number, number, number, number, number] | null;
+  modelUnitWm2: number | null;
+  modelBestWm2: number | null;
+  modelFixedWm2: number | null;
+  modelSunWm2: number | null;
 }
 
 /** Progress of a fill of the demo's past (the `demo_history` table). */
@@ -47,7 +57,25 @@ interface RawConnection {
 }
 
 const WEATHER_COLUMNS: (keyof WeatherRow)[] = ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'];
-const QUARTER_COLUMNS = ['unit_id', 'bucket', 'minutes', 'samples', 'poa_avg_wm2', 'poa_max_wm2', 'dc_power_avg_w', 'energy_wh'];
+const MODE_MINUTE_COLUMNS = ['seeking_min', 'settled_min', 'scanning_min', 'stowed_min', 'held_min', 'fault_min'];
+const QUARTER_COLUMNS = [
+  'unit_id',
+  'bucket',
+  'minutes',
+  'samples',
+  'poa_avg_wm2',
+  'poa_max_wm2',
+  'dc_power_avg_w',
+  'energy_wh',
+  'module_temp_avg_c',
+  'tilt_avg_deg',
+  'azimuth_avg_deg',
+  ...MODE_MINUTE_COLUMNS,
+  'model_unit_wm2',
+  'model_best_wm2',
+  'model_fixed_wm2',
+  'model_sun_wm2',
+];
 const TIME_COLUMNS = new Set(['ts', 'received_at', 'bucket']);
 
 /** A finite number (JSON turns NaN into null, so a bad value must stop here, not become a zero). */
@@ -55,6 +83,9 @@ function num(x: number): number {
   if (!Number.isFinite(x)) throw new RangeError(`not a finite number: ${x}`);
   return x;
 }
+
+/** A nullable number as a CSV field (`\\N` for NULL). */
+const opt = (x: number | null | undefined): string | number => (x === null || x === undefined ? '\\N' : num(x));
 
 /**
  * One CSV field as LOAD DATA reads it (below): `\N` for NULL, times as epoch milliseconds (converted by the statement),
@@ -136,11 +167,40 @@ export class HistoryRepository {
     return this.load(
       'telemetry_15m',
       QUARTER_COLUMNS,
-      rows.map(
-        (r) =>
-          `${num(r.unitId)},${r.bucket.getTime()},${num(r.minutes)},${num(r.samples)},${num(r.poaAvgWm2)},${num(r.poaMaxWm2)},${num(r.dcPowerAvgW)},${num(r.energyWh)}\n`,
-      ),
+      // One template per row (no per-field array): the rollup-level past is millions of rows.
+      rows.map((r) => {
+        const m = r.modeMinutes;
+        const modes = m ? `${opt(m[0])},${opt(m[1])},${opt(m[2])},${opt(m[3])},${opt(m[4])},${opt(m[5])}` : '\\N,\\N,\\N,\\N,\\N,\\N';
+        return (
+          `${num(r.unitId)},${r.bucket.getTime()},${num(r.minutes)},${num(r.samples)},${num(r.poaAvgWm2)},${num(r.poaMaxWm2)},` +
+          `${num(r.dcPowerAvgW)},${num(r.energyWh)},${opt(r.moduleTempC)},${opt(r.tiltDeg)},${opt(r.azimuthDeg)},${modes},` +
+          `${opt(r.modelUnitWm2)},${opt(r.modelBestWm2)},${opt(r.modelFixedWm2)},${opt(r.modelSunWm2)}\n`
+        );
+      }),
     );
+  }
+
+  /**
+   * Buckets in [from, to) of some units rolled up from raw rows (they have a mean orientation) whose model columns are
+   * empty, newest first, with the units of each.
+   */
+  async unmodelledQuarters(unitIds: number[], from: Date, to: Date): Promise<{ bucket: Date; unitIds: number[] }[]> {
+    if (!unitIds.length || !(from < to)) return [];
+    const rows: { bucket: Date; unit_id: number }[] = await this.db('telemetry_15m')
+      .whereIn('unit_id', unitIds)
+      .andWhere('bucket', '>=', from)
+      .andWhere('bucket', '<', to)
+      .whereNull('model_best_wm2')
+      .whereNotNull('tilt_avg_deg')
+      .orderBy([{ column: 'bucket', order: 'desc' }, 'unit_id'])
+      .select('bucket', 'unit_id');
+    const out: { bucket: Date; unitIds: number[] }[] = [];
+    for (const r of rows) {
+      const last = out.at(-1);
+      if (last && last.bucket.getTime() === new Date(r.bucket).getTime()) last.unitIds.push(r.unit_id);
+      else out.push({ bucket: new Date(r.bucket), unitIds: [r.unit_id] });
+    }
+    return out;
   }
 
   /** Removes rollup-level quarters of some units in [from, to) before their raw rows are rolled up there. */

@@ -2,7 +2,8 @@
  * `demo-history.ts fill | background [--now <ISO>]`: the demo's generated past (server/services/demo-history.ts).
  *   fill         before the server starts: the rollup-level past, the newest day at full rate and their alarms (first
  *                seeding), or the gap since the last stored report (restart)
- *   background   while the product runs: the remaining full-rate days, newest first, with progress in the database
+ *   background   while the product runs: the statements' model columns of the full-rate buckets the fill left empty,
+ *                then the remaining full-rate days, newest first, with progress in the database
  * Both then give the past alarms the tickets the rules would have opened, worked and closed (seeds/demo-tickets.ts).
  * Environment: BW_DEMO_HISTORY_DAYS (full-rate days, default 7; 0 = none), BW_DEMO_HISTORY_SEED (default 1),
  * BW_DEMO_HISTORY_ROLLUP_DAYS (rollup-level days on first seeding, default 396 ≈ 13 months).
@@ -17,7 +18,12 @@ import { HoldRepository } from '../data/hold-repository';
 import { TelemetryRepository } from '../data/telemetry-repository';
 import { UnitRepository } from '../data/unit-repository';
 import { DemoHistory } from '../services/demo-history';
+import { QuarterModelService } from '../services/quarter-model-service';
 import { RollupWorker } from '../services/rollup-worker';
+import { SiteModelService } from '../services/site-model-service';
+import { AuditService } from '../services/audit-service';
+import { AuditRepository } from '../data/audit-repository';
+import { SiteModelRepository } from '../data/site-model-repository';
 import { UnitDirectory } from '../services/unit-directory';
 import { seedDemoTickets } from '../../seeds/demo-tickets';
 import { simulatorHistorySource } from './simulator-history';
@@ -53,6 +59,13 @@ const db = createDb(config.db);
 const log = pino({ level: 'silent' });
 const telemetry = new TelemetryRepository(db);
 const units = new UnitDirectory(new UnitRepository(db), new HoldRepository(db));
+// The full-rate days' buckets are modelled as the live rollup worker models them (the statements read those columns), in
+// the background phase.
+const quarterModel = new QuarterModelService(
+  telemetry,
+  new SiteModelService(new SiteModelRepository(db), new AuditService(new AuditRepository(db))),
+  log,
+);
 const history = new DemoHistory(
   new HistoryRepository(db),
   telemetry,
@@ -66,6 +79,7 @@ const history = new DemoHistory(
     rollupDays,
     faults: true,
     log: (l) => console.log(`[${l.replace(': ', '] ')}`),
+    modeller: quarterModel,
   },
 );
 /** The work orders the past alarms would have caused (seeds/demo-tickets.ts: bulk, idempotent, pages nobody). */
@@ -103,7 +117,7 @@ try {
   } else {
     const counts = await history.background();
     console.log(
-      `[history] background: ${counts.rawRows} reports, ${counts.alarms} alarms in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
+      `[history] background: ${counts.rawRows} reports, ${counts.modelled} buckets modelled, ${counts.alarms} alarms in ${((performance.now() - t0) / 1000).toFixed(1)} s`,
     );
     if (counts.alarms) await ticketsOfThePast(Date.now());
   }

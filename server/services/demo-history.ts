@@ -10,10 +10,12 @@
  *  - before the full-rate window, rollup level only (15-minute rows and daily energy) back to `lastMs`, or `rollupDays`
  *    on first seeding; the background days get rollup-level rows first and their raw rows replace them later;
  *  - alarms of the faults and traps in the generated past, all cleared (by the end of their condition plus the kind's
- *    clear delay, at the latest at `nowMs`).
+ *    clear delay, at the latest at `nowMs`);
+ *  - the statements' model columns: the rollup-level rows carry them from the generator; the full-rate days' buckets are
+ *    modelled by `HistoryOptions.modeller` in the background phase (the first phase's own day first).
  */
 import type { AlarmKind } from '../../shared/contracts/alarms';
-import { telemetryOfRow, type HistoryLine } from '../../shared/contracts/history-stream';
+import { quarterOfRow, telemetryOfRow, type HistoryLine } from '../../shared/contracts/history-stream';
 import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
 import type { AlarmRepository } from '../data/alarm-repository';
 import type { HistoryProgress, HistoryRepository, QuarterRow } from '../data/history-repository';
@@ -29,7 +31,7 @@ import {
 import type { Alarm } from '../health/alarm-types';
 import { DEFAULT_HEALTH_SETTINGS, type HealthSettings } from '../health/health-settings';
 import { readingsSnapshot } from '../health/unit-sample';
-import type { RollupWorker } from './rollup-worker';
+import type { QuarterModeller, RollupWorker } from './rollup-worker';
 import type { UnitDirectory, UnitInfo } from './unit-directory';
 
 const MINUTE_MS = 60_000;
@@ -65,6 +67,12 @@ export interface HistoryOptions {
   /** Progress lines ("history: day 3 of 7"). */
   log: (line: string) => void;
   settings?: HealthSettings;
+  /**
+   * Models the full-rate days' 15-minute buckets as the live rollup worker does (QuarterModelService: a sky per site and
+   * bucket, ≈ 12 ms each), in the background phase, so the first phase does not wait for it. Without it those buckets
+   * keep empty model columns (the rollup-level past comes modelled by the generator).
+   */
+  modeller?: QuarterModeller;
 }
 
 export interface HistoryPlan {
@@ -86,6 +94,8 @@ export interface LoadCounts {
   events: number;
   weather: number;
   alarms: number;
+  /** 15-minute buckets (units × buckets) given their model columns. */
+  modelled: number;
 }
 
 const floorQ = (ms: number) => Math.floor(ms / QUARTER_MS) * QUARTER_MS;
@@ -262,7 +272,7 @@ export class DemoHistory {
    */
   async fill(nowMs: number): Promise<{ plan: HistoryPlan | null; counts: LoadCounts; progressId?: number }> {
     await this.units.load();
-    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0 };
+    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0, modelled: 0 };
     // A first phase that did not finish (stopped or failed) is done again first: its plan gives the same rows again, and
     // the keys make what is already there harmless. Only then is the gap since its end measured.
     for (const p of await this.repo.unfinished()) {
@@ -341,9 +351,11 @@ export class DemoHistory {
   }
 
   /** Fills the full-rate days left by earlier fills (interrupted ones too), newest day first; returns what was stored. */
-  async background(): Promise<LoadCounts> {
+  async background(nowMs: number = Date.now()): Promise<LoadCounts> {
     await this.units.load();
-    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0 };
+    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0, modelled: 0 };
+    // The full-rate buckets the first phase left unmodelled (this start's and any earlier start's), newest first.
+    counts.modelled += await this.modelFullRate(nowMs - (Math.max(1, this.o.fullRateDays) + 1) * DAY_MS, nowMs);
     for (const p of await this.repo.unfinished()) {
       if (p.state !== 'background' || !p.backgroundFrom || !p.backgroundTo) continue;
       await this.backgroundOf(p, counts);
@@ -381,7 +393,7 @@ export class DemoHistory {
    * then the window's rollups by the server's own rollup code (rollup-level rows there removed first), then its alarms.
    */
   async loadFullRate(fromMs: number, toMs: number, nowMs: number, replacesRollups: boolean): Promise<LoadCounts> {
-    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0 };
+    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0, modelled: 0 };
     const bySerial = new Map(this.chosen().map((u) => [u.serial, u]));
     const ids = [...bySerial.values()].map((u) => u.id);
     const readings = new Map<number, Telemetry[]>();
@@ -450,6 +462,8 @@ export class DemoHistory {
     await writer.drain();
     if (replacesRollups) await this.repo.deleteQuarters(ids, new Date(ceilQ(fromMs)), new Date(toMs));
     await this.rollups.rebuildRange(ids, new Date(fromMs), new Date(toMs));
+    // Background days are modelled at once (they replaced modelled rollup-level rows); the first phase's day later.
+    if (replacesRollups) counts.modelled += await this.modelFullRate(fromMs, toMs);
     const at = (unitId: number, atMs: number) => {
       const list = readings.get(unitId);
       if (!list?.length) return undefined;
@@ -472,7 +486,7 @@ export class DemoHistory {
 
   /** The rollup-level past [fromMs, toMs): 15-minute rows, weather station readings and the faults' alarms. */
   async loadRollups(fromMs: number, toMs: number, nowMs: number): Promise<LoadCounts> {
-    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0 };
+    const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0, modelled: 0 };
     const bySerial = new Map(this.chosen().map((u) => [u.serial, u]));
     const truth: Extract<HistoryLine, { k: 'truth' }>[] = [];
     let quarters: QuarterRow[] = [];
@@ -506,10 +520,28 @@ export class DemoHistory {
     })) {
       if (line.k === 'truth') truth.push(line);
       else if (line.k === 'q') {
-        const [serial, bucketMs, minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh] = line.r;
-        const u = bySerial.get(serial);
+        const q = quarterOfRow(line.r);
+        const u = bySerial.get(q.serial);
         if (!u) continue;
-        quarters.push({ unitId: u.id, bucket: new Date(bucketMs), minutes, samples, poaAvgWm2, poaMaxWm2, dcPowerAvgW, energyWh });
+        quarters.push({
+          unitId: u.id,
+          bucket: new Date(q.bucketMs),
+          minutes: q.minutes,
+          samples: q.samples,
+          poaAvgWm2: q.poaAvgWm2,
+          poaMaxWm2: q.poaMaxWm2,
+          dcPowerAvgW: q.dcPowerAvgW,
+          energyWh: q.energyWh,
+          moduleTempC: q.moduleTempC,
+          tiltDeg: q.tiltDeg,
+          azimuthDeg: q.azimuthDeg,
+          // The rollup-level past has no scans, holds or faults reported as a mode (downtime is missing minutes).
+          modeMinutes: [q.seekingMin, q.settledMin, 0, q.stowedMin, 0, 0],
+          modelUnitWm2: q.modelUnitWm2,
+          modelBestWm2: q.modelBestWm2,
+          modelFixedWm2: q.modelFixedWm2,
+          modelSunWm2: q.modelSunWm2,
+        });
       } else if (line.k === 'w') {
         const u = bySerial.get(line.serial);
         if (!u?.weatherStation) continue;
@@ -532,6 +564,22 @@ export class DemoHistory {
       toMs,
     );
     return counts;
+  }
+
+  /**
+   * Models the closed buckets in [fromMs, toMs) that were rolled up from raw rows but have no model columns yet, newest
+   * first, as the live rollup worker does; returns how many unit buckets it modelled (0 without a modeller).
+   */
+  async modelFullRate(fromMs: number, toMs: number): Promise<number> {
+    if (!this.o.modeller) return 0;
+    const pending = await this.repo.unmodelledQuarters(this.unitIds(), new Date(ceilQ(fromMs)), new Date(floorQ(toMs)));
+    let n = 0;
+    for (const { bucket, unitIds } of pending) {
+      await this.o.modeller.modelQuarter(bucket.getTime(), unitIds);
+      n += unitIds.length;
+    }
+    if (n) this.o.log(`history: ${n} full-rate buckets modelled`);
+    return n;
   }
 
   /** Stores alarms not stored yet (same unit, kind and first-seen time): a re-run adds none twice. */
@@ -559,6 +607,7 @@ function addCounts(a: LoadCounts, b: LoadCounts): void {
   a.events += b.events;
   a.weather += b.weather;
   a.alarms += b.alarms;
+  a.modelled += b.modelled;
 }
 
 /** Runs writes with at most `limit` in flight: `add` waits for a free place, `drain` for all; the first error is thrown. */

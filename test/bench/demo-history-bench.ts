@@ -16,7 +16,12 @@ import { TelemetryRepository } from '../../server/data/telemetry-repository';
 import { UnitRepository } from '../../server/data/unit-repository';
 import { simulatorHistorySource } from '../../server/scripts/simulator-history';
 import { DemoHistory } from '../../server/services/demo-history';
+import { AuditRepository } from '../../server/data/audit-repository';
+import { SiteModelRepository } from '../../server/data/site-model-repository';
+import { AuditService } from '../../server/services/audit-service';
+import { QuarterModelService } from '../../server/services/quarter-model-service';
 import { RollupWorker } from '../../server/services/rollup-worker';
+import { SiteModelService } from '../../server/services/site-model-service';
 import { UnitDirectory } from '../../server/services/unit-directory';
 import { demoSerials } from '../../shared/demo-world';
 import { createTestDatabase } from '../helpers/test-db';
@@ -37,6 +42,8 @@ async function main() {
   try {
     const telemetry = new TelemetryRepository(t.db);
     const units = new UnitDirectory(new UnitRepository(t.db), new HoldRepository(t.db));
+    const siteModel = new SiteModelService(new SiteModelRepository(t.db), new AuditService(new AuditRepository(t.db)));
+    const modeller = new QuarterModelService(telemetry, siteModel, pino({ level: 'silent' }));
     const history = new DemoHistory(
       new HistoryRepository(t.db),
       telemetry,
@@ -44,7 +51,7 @@ async function main() {
       new RollupWorker(telemetry, units, pino({ level: 'silent' })),
       units,
       simulatorHistorySource(),
-      { seed: '1', fullRateDays: Number(args.days), rollupDays: Number(args['rollup-days']), faults: true, serials, log: say },
+      { seed: '1', fullRateDays: Number(args.days), rollupDays: Number(args['rollup-days']), faults: true, serials, log: say, modeller },
     );
     const now = Math.floor(Date.now() / 1000) * 1000;
     const t0 = performance.now();
