@@ -398,35 +398,18 @@ export class DemoHistory {
     const ids = [...bySerial.values()].map((u) => u.id);
     const readings = new Map<number, Telemetry[]>();
     const truth: Extract<HistoryLine, { k: 'truth' }>[] = [];
-    let raw: TelemetryRow[] = [];
-    let events: EventRow[] = [];
-    let weather: WeatherRow[] = [];
     const writer = new BoundedWriter(2);
+    const raw = new RowBatch<TelemetryRow>(25_000, writer, async (rows) => void (counts.rawRows += await this.repo.insertTelemetry(rows)));
+    const events = new RowBatch<EventRow>(
+      1000,
+      writer,
+      async (rows) => void (counts.events += (await this.telemetry.insertEvents(rows)).length),
+    );
+    const weather = new RowBatch<WeatherRow>(10_000, writer, async (rows) => void (counts.weather += await this.repo.insertWeather(rows)));
     const flush = async (final: boolean) => {
-      if (raw.length >= 25_000 || (final && raw.length)) {
-        const rows = raw;
-        raw = [];
-        await writer.add(async () => {
-          const n = await this.repo.insertTelemetry(rows);
-          counts.rawRows += n;
-        });
-      }
-      if (events.length >= 1000 || (final && events.length)) {
-        const rows = events;
-        events = [];
-        await writer.add(async () => {
-          const n = (await this.telemetry.insertEvents(rows)).length;
-          counts.events += n;
-        });
-      }
-      if (weather.length >= 10_000 || (final && weather.length)) {
-        const rows = weather;
-        weather = [];
-        await writer.add(async () => {
-          const n = await this.repo.insertWeather(rows);
-          counts.weather += n;
-        });
-      }
+      await raw.flush(final);
+      await events.flush(final);
+      await weather.flush(final);
     };
     for await (const line of this.source.run({
       mode: 'full',
@@ -489,26 +472,16 @@ export class DemoHistory {
     const counts: LoadCounts = { rawRows: 0, rollupRows: 0, events: 0, weather: 0, alarms: 0, modelled: 0 };
     const bySerial = new Map(this.chosen().map((u) => [u.serial, u]));
     const truth: Extract<HistoryLine, { k: 'truth' }>[] = [];
-    let quarters: QuarterRow[] = [];
-    let weather: WeatherRow[] = [];
     const writer = new BoundedWriter(2);
+    const quarters = new RowBatch<QuarterRow>(
+      50_000,
+      writer,
+      async (rows) => void (counts.rollupRows += await this.repo.insertQuarters(rows)),
+    );
+    const weather = new RowBatch<WeatherRow>(10_000, writer, async (rows) => void (counts.weather += await this.repo.insertWeather(rows)));
     const flush = async (final: boolean) => {
-      if (quarters.length >= 50_000 || (final && quarters.length)) {
-        const rows = quarters;
-        quarters = [];
-        await writer.add(async () => {
-          const n = await this.repo.insertQuarters(rows);
-          counts.rollupRows += n;
-        });
-      }
-      if (weather.length >= 10_000 || (final && weather.length)) {
-        const rows = weather;
-        weather = [];
-        await writer.add(async () => {
-          const n = await this.repo.insertWeather(rows);
-          counts.weather += n;
-        });
-      }
+      await quarters.flush(final);
+      await weather.flush(final);
     };
     for await (const line of this.source.run({
       mode: 'rollups',
@@ -611,6 +584,28 @@ function addCounts(a: LoadCounts, b: LoadCounts): void {
 }
 
 /** Runs writes with at most `limit` in flight: `add` waits for a free place, `drain` for all; the first error is thrown. */
+/** Rows gathered for one bulk insert, handed to the writer once `limit` are waiting (and whatever is left at the end). */
+class RowBatch<T> {
+  private rows: T[] = [];
+
+  constructor(
+    private readonly limit: number,
+    private readonly writer: BoundedWriter,
+    private readonly insert: (rows: T[]) => Promise<void>,
+  ) {}
+
+  push(row: T): void {
+    this.rows.push(row);
+  }
+
+  async flush(final: boolean): Promise<void> {
+    if (this.rows.length < this.limit && !(final && this.rows.length)) return;
+    const rows = this.rows;
+    this.rows = [];
+    await this.writer.add(() => this.insert(rows));
+  }
+}
+
 class BoundedWriter {
   private readonly inFlight = new Set<Promise<void>>();
   private error: unknown;
