@@ -1,8 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import request from 'supertest';
 import WebSocket from 'ws';
+import { signedIn } from '../helpers/signed-in';
 import { startTestStack } from '../helpers/test-stack';
-import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import { startLocalMailService, type LocalMailService, type ReceivedMail } from '../../server/mail/local-mail-service';
 import { ConfigError, loadConfig } from '../../server/config';
 import type { TicketView } from '../../shared/contracts/tickets';
@@ -39,18 +38,7 @@ afterAll(async () => {
   await sink?.close();
 });
 
-type Agent = ReturnType<typeof request.agent>;
-const agents = new Map<string, { agent: Agent; userId: number; cookie: string }>();
-async function as(email: string, password = DEMO_PASSWORD) {
-  const known = agents.get(email);
-  if (known) return known;
-  const agent = request.agent(stack.http);
-  const res = await agent.post('/api/auth/sign-in').send({ email, password }).expect(200);
-  const me = await agent.get('/api/me').expect(200);
-  const a = { agent, userId: me.body.id as number, cookie: String(res.headers['set-cookie']).split(';')[0]! };
-  agents.set(email, a);
-  return a;
-}
+const as = signedIn(() => stack.http);
 const ADMIN = 'admin@saltmarsh.example';
 const TECH = 'tech1@saltmarsh.example';
 const TECH2 = 'tech2@saltmarsh.example';

@@ -12,9 +12,9 @@ import { execFileSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { signedIn, type Agent } from '../helpers/signed-in';
 import { startTestStack } from '../helpers/test-stack';
 import { startLocalMailService, type LocalMailService, type ReceivedMail } from '../../server/mail/local-mail-service';
-import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import { localMidnightUtcMs } from '../../shared/pv-performance';
 import type { MonthlyStatement, StatementMonthList } from '../../shared/contracts/statements';
 
@@ -29,17 +29,8 @@ const E_WH = 50; // energy of a daylight bucket [Wh]
 const EAST_MONTHS = Array.from({ length: 14 }, (_, i) => new Date(Date.UTC(2025, 8 + i, 1)).toISOString().slice(0, 7));
 const tmp = mkdtempSync(join(tmpdir(), 'bw-lock-'));
 
-type Agent = ReturnType<typeof request.agent>;
-const agents = new Map<string, Agent>();
-async function as(email: string): Promise<Agent> {
-  let a = agents.get(email);
-  if (!a) {
-    a = request.agent(stack.http);
-    await a.post('/api/auth/sign-in').send({ email, password: DEMO_PASSWORD }).expect(200);
-    agents.set(email, a);
-  }
-  return a;
-}
+const signIn = signedIn(() => stack.http);
+const as = async (email: string): Promise<Agent> => (await signIn(email)).agent;
 const OWNER = 'owner@quillmoor.example';
 const OTHER_OWNER = 'owner@fenwicklane.example';
 const ENGINEER = 'engineer@saltmarsh.example';

@@ -7,8 +7,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
+import { signedIn, type Agent } from '../helpers/signed-in';
 import { startTestStack } from '../helpers/test-stack';
-import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import { localMonth } from '../../shared/pv-performance';
 import type { MonthlyStatement, StatementMonthList, StatementTrend } from '../../shared/contracts/statements';
 import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module';
@@ -21,17 +21,8 @@ const P0_WP = 420;
 const E0_WH = (P0_WP / 1000) * 0.8 * 800 * 0.25; // a normal daylight bucket: P0 × PR 0.8 × 800 W/m² × 0.25 h = 67.2 Wh
 const Q = 15 * 60_000;
 
-type Agent = ReturnType<typeof request.agent>;
-const agents = new Map<string, Agent>();
-async function as(email: string): Promise<Agent> {
-  let a = agents.get(email);
-  if (!a) {
-    a = request.agent(stack.http);
-    await a.post('/api/auth/sign-in').send({ email, password: DEMO_PASSWORD }).expect(200);
-    agents.set(email, a);
-  }
-  return a;
-}
+const signIn = signedIn(() => stack.http);
+const as = async (email: string): Promise<Agent> => (await signIn(email)).agent;
 const ADMIN = 'admin@saltmarsh.example';
 const OWNER = 'owner@quillmoor.example';
 const OTHER_OWNER = 'owner@fenwicklane.example';

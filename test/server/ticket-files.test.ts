@@ -1,10 +1,9 @@
 import { createHash, randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import request from 'supertest';
 import sharp from 'sharp';
+import { signedIn } from '../helpers/signed-in';
 import { startTestStack } from '../helpers/test-stack';
-import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import type { TicketFileView, TicketView } from '../../shared/contracts/tickets';
 import { whenAndWhere } from '../../server/services/upload-check';
 import { instantOfWallTime } from '../../server/services/local-time';
@@ -15,18 +14,7 @@ import type { TicketRepository } from '../../server/data/ticket-repository';
 import type { AdminService } from '../../server/services/admin-service';
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
-type Agent = ReturnType<typeof request.agent>;
-const agents = new Map<string, { agent: Agent; userId: number }>();
-async function as(email: string): Promise<{ agent: Agent; userId: number }> {
-  const known = agents.get(email);
-  if (known) return known;
-  const agent = request.agent(stack.http);
-  await agent.post('/api/auth/sign-in').send({ email, password: DEMO_PASSWORD }).expect(200);
-  const me = await agent.get('/api/me').expect(200);
-  const a = { agent, userId: me.body.id as number };
-  agents.set(email, a);
-  return a;
-}
+const as = signedIn(() => stack.http);
 const ADMIN = 'admin@saltmarsh.example';
 const ENGINEER = 'engineer@saltmarsh.example';
 const TECH = 'tech1@saltmarsh.example';

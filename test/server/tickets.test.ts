@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
+import { signedIn } from '../helpers/signed-in';
 import { startTestStack } from '../helpers/test-stack';
-import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import type { TicketView } from '../../shared/contracts/tickets';
 import type { AlarmView } from '../../shared/contracts/alarms';
 import type { UnitHolds } from '../../shared/contracts/holds';
@@ -16,18 +16,7 @@ afterAll(async () => {
   await stack?.stop();
 });
 
-type Agent = ReturnType<typeof request.agent>;
-const agents = new Map<string, { agent: Agent; userId: number }>();
-async function as(email: string): Promise<{ agent: Agent; userId: number }> {
-  const known = agents.get(email);
-  if (known) return known;
-  const agent = request.agent(stack.http);
-  await agent.post('/api/auth/sign-in').send({ email, password: DEMO_PASSWORD }).expect(200);
-  const me = await agent.get('/api/me').expect(200);
-  const a = { agent, userId: me.body.id as number };
-  agents.set(email, a);
-  return a;
-}
+const as = signedIn(() => stack.http);
 const ADMIN = 'admin@saltmarsh.example';
 const ENGINEER = 'engineer@saltmarsh.example';
 const TECH = 'tech1@saltmarsh.example';
