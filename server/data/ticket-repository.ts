@@ -106,6 +106,7 @@ export interface TicketFilter {
 export interface UnticketedAlarm {
   id: number;
   unitId: number | null;
+  serial: string | null;
   siteId: number;
   kind: string;
   severity: string;
@@ -237,14 +238,16 @@ export class TicketRepository {
   async unticketedActiveAlarms(severity: string, before: Date): Promise<UnticketedAlarm[]> {
     const rows = await this.db('alarms as al')
       .leftJoin('ticket_alarms as ta', 'ta.alarm_id', 'al.id')
+      .leftJoin('units as u', 'u.id', 'al.unit_id')
       .whereNull('ta.alarm_id')
       .where({ 'al.state': 'active', 'al.severity': severity })
       .where('al.raised_at', '<=', before)
       .orderBy('al.id')
-      .select('al.id', 'al.unit_id', 'al.site_id', 'al.kind', 'al.severity', 'al.message', 'al.evidence', 'al.raised_at');
+      .select('al.id', 'al.unit_id', 'u.serial', 'al.site_id', 'al.kind', 'al.severity', 'al.message', 'al.evidence', 'al.raised_at');
     return rows.map((r) => ({
       id: r.id,
       unitId: r.unit_id,
+      serial: r.serial ?? null,
       siteId: r.site_id,
       kind: r.kind,
       severity: r.severity,

@@ -306,6 +306,7 @@ export class TicketService {
           severity: a.severity,
           message: a.message,
           evidence: a.evidence,
+          serial: a.serial,
           raisedAt: a.raisedAt.toISOString(),
         }),
       );
@@ -330,7 +331,7 @@ export class TicketService {
    * reopen window (reopened), or a new one. `by` is the person who asked; null when an alarm rule did. Returns its id.
    */
   private async ticketForAlarm(
-    a: Pick<AlarmView, 'id' | 'unitId' | 'siteId' | 'kind' | 'severity' | 'message' | 'evidence' | 'raisedAt'>,
+    a: Pick<AlarmView, 'id' | 'unitId' | 'serial' | 'siteId' | 'kind' | 'severity' | 'message' | 'evidence' | 'raisedAt'>,
     by: number | null = null,
   ): Promise<number> {
     const now = new Date(this.opts.now());
@@ -362,14 +363,13 @@ export class TicketService {
       }
     }
     const severity = (ALARM_SEVERITIES as readonly string[]).includes(a.severity) ? (a.severity as AlarmSeverity) : 'P3';
-    const unit = a.unitId !== null ? await this.admin.getUnit({ id: 0, role: 'admin', ownerId: null }, a.unitId).catch(() => null) : null;
     const id = await this.repo.insert(
       {
         siteId: a.siteId,
         unitId: a.unitId,
         kind: a.kind,
         severity,
-        title: `${unit ? unit.serial : 'Site'}: ${a.message}`.slice(0, 200),
+        title: `${a.serial ?? 'Site'}: ${a.message}`.slice(0, 200),
         description: null,
         faultKey: key,
         openedAt: now,
@@ -498,8 +498,7 @@ export class TicketService {
     });
     if (!ok) {
       // Give the hold back unless the ticket is on site after all (a concurrent check-in of the same ticket won).
-      const now2 = await this.repo.get(t.id, { ownerId: null });
-      if (rule.hold === 'place' && now2?.state !== 'on-site')
+      if (rule.hold === 'place' && (await this.repo.get(t.id, { ownerId: null }))?.state !== 'on-site')
         await this.releaseHolds(c, t.id, unitIds, 'Check-in did not go through: the ticket had changed.');
       throw this.stale(t);
     }

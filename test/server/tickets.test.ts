@@ -312,6 +312,7 @@ describe('tickets from alarms', () => {
     let list = await ticketsOf('FSC-2401');
     expect(list).toHaveLength(1);
     expect(list[0]).toMatchObject({ state: 'new', kind: 'stall', severity: 'P2', openedBy: null, availabilityCategory: 'forced-outage' });
+    expect(list[0]!.title).toBe('FSC-2401: stall on FSC-2401');
     const b = await raise('FSC-2401', 'stall', 'P2');
     list = await ticketsOf('FSC-2401');
     expect(list).toHaveLength(1);
