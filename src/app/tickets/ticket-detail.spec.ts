@@ -118,7 +118,8 @@ describe('TicketDetail', () => {
   });
 
   it('offers an owner no moves, only the reading', async () => {
-    const { el } = await render('owner', ticket({ next: [] }));
+    const { el, q } = await render('owner', ticket({ next: [], lostEnergyKwh: 1.25 }));
+    expect(q('ticket-lost-energy')!.textContent).toContain('1.25 kWh DC');
     expect(el.querySelectorAll('[data-testid^="move-"]')).toHaveLength(0);
     expect(el.textContent).toContain('You can read this ticket');
     expect(el.querySelector('[data-testid="add-file"]')).toBeNull();

@@ -147,8 +147,10 @@ export class TicketDetail {
     'not-confirmed': 'not confirmed by the unit: check it on site',
   };
 
-  protected sinceHours(iso: string): number {
-    return Math.max(0, Math.round((Date.now() - Date.parse(iso)) / 360_000) / 10);
+  /** How long ago, in hours up to two days, then in days. */
+  protected since(iso: string): string {
+    const h = Math.max(0, (Date.now() - Date.parse(iso)) / 3600_000);
+    return h < 48 ? `${Math.round(h * 10) / 10} h` : `${Math.floor(h / 24)} days`;
   }
 
   constructor() {
