@@ -135,6 +135,8 @@ const envSchema = z.object({
     .string()
     .refine((v) => zones.has(v), 'an IANA time zone such as Europe/Berlin')
     .default('UTC'),
+  // Several servers on one database: what each hears goes through the database to the one running the comms watch.
+  BW_CLUSTER: onOff.default(false),
   BW_PUBLIC_URL: z.url({ protocol: /^https?$/, error: 'the dashboard address, such as https://ops.example.org' }).optional(),
 });
 
@@ -178,6 +180,8 @@ export interface Config {
   mail: MailConfig;
   /** The daily digest's local hour and zone; the dashboard address links in mails point to (when known). */
   notifications: { digestHour: number; digestTimeZone: string; publicUrl?: string };
+  /** Several servers share the database (and a session secret): units' last-heard times are shared for the comms watch. */
+  cluster: boolean;
 }
 
 export interface MailConfig {
@@ -215,6 +219,10 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
         ? 'BW_S3_BUCKET: required with BW_S3_ENDPOINT or S3 credentials (without all three, files go to the local store)'
         : null;
   if (s3Problem) throw new ConfigError(`Invalid configuration:\n  ${s3Problem}`);
+  if (e.BW_CLUSTER && e.BW_SESSION_SECRET === undefined)
+    throw new ConfigError(
+      'Invalid configuration:\n  BW_SESSION_SECRET: required with BW_CLUSTER (every server must accept the sessions the others sign)',
+    );
   return {
     host: e.BW_HOST,
     port: e.BW_PORT,
@@ -277,5 +285,6 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
       digestTimeZone: e.BW_DIGEST_TIME_ZONE,
       ...(e.BW_PUBLIC_URL ? { publicUrl: e.BW_PUBLIC_URL.replace(/\/$/, '') } : {}),
     },
+    cluster: e.BW_CLUSTER,
   };
 }

@@ -38,6 +38,10 @@ import { StatementLockService, type StatementLockOptions } from './services/stat
 import { AuthService } from './services/auth-service';
 import { AdminService } from './services/admin-service';
 import { SignInLimiter } from './services/sign-in-limiter';
+import { sharedAttemptCounter } from './data/sign-in-attempt-store';
+import { LeaderLock } from './data/leader-lock';
+import { UnitHeardRepository } from './data/unit-heard-repository';
+import { DEFAULT_LEADERSHIP_OPTIONS, Leadership, lockLostAfterS, type LeadershipOptions } from './services/leadership';
 import { Passwords } from './services/passwords';
 import { SessionEvents } from './services/session-events';
 import { deviceSecretMatches } from './services/device-secret';
@@ -101,6 +105,8 @@ export interface Stack {
   notifications: NotificationService;
   /** The monthly lock of statements (the job, restatements, late data). */
   statementLocks: StatementLockService;
+  /** Whether this server runs the once-only jobs now (one server at a time, by a database lock). */
+  leadership: Leadership;
   /** Resolves when the modelled best of every site's last day is cached (the first day of traces opens without waiting). */
   landscapesWarm: Promise<void>;
   http: Server;
@@ -135,6 +141,8 @@ export interface StackOptions {
   sessionRecheckMs?: number;
   /** Broker limits other than the defaults (tests). */
   brokerLimits?: Partial<BrokerLimits>;
+  /** Heartbeat and waits of the lock that picks the server running the once-only jobs (tests shorten them). */
+  leadership?: Partial<LeadershipOptions>;
 }
 
 export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel }), opts: StackOptions = {}): Promise<Stack> {
@@ -165,7 +173,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const sessionEvents = new SessionEvents();
   const auth = new AuthService(
     { users, sessions: new SessionRepository(db), audit },
-    new SignInLimiter(config.signInLimitPerMinute),
+    // Counted in the database, so the limit holds across several servers.
+    new SignInLimiter(sharedAttemptCounter(db, config.db.database, config.signInLimitPerMinute)),
     passwords,
     sessionEvents,
     {
@@ -203,7 +212,15 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const healthReads = new HealthReadRepository(db);
   const healthSettings = new HealthSettingsService(new HealthSettingsRepository(db), admin, log, healthOpts.now);
   const siteModels = new SiteModelCache(siteModel, log, healthOpts);
-  const health = new HealthService(new AlarmStore(alarmRepo, directory, live, log), siteModels, healthSettings, live, log, healthOpts);
+  const health = new HealthService(
+    new AlarmStore(alarmRepo, directory, live, log),
+    siteModels,
+    healthSettings,
+    live,
+    log,
+    healthOpts,
+    config.cluster ? { heard: new UnitHeardRepository(db), units: directory } : undefined,
+  );
   let commands: CommandService | undefined;
   const ingest = new IngestService(
     telemetry,
@@ -356,14 +373,43 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   }
   health.restore(restored);
   live.start();
+  // Rollups follow the readings this server stored (a unit's minutes are marked by the server that stored them).
   rollups.start();
-  retention.start();
   commands.start();
-  tickets.start();
-  notifications.start();
-  if (autoLock !== false) statementLocks.start();
-  void mail.resume().catch((err) => log.error({ err }, 'queued mail not resumed'));
   await health.start();
+  // The jobs that must run once in the fleet run where the lock is; a lone server takes it at once.
+  const leaderOpts = { ...DEFAULT_LEADERSHIP_OPTIONS, ...opts.leadership };
+  const leadership = new Leadership(new LeaderLock(config.db, 'once-jobs', lockLostAfterS(leaderOpts)), log, leaderOpts);
+  leadership.add({ name: 'retention', start: () => retention.start(), stop: () => retention.stop() });
+  leadership.add({ name: 'comms watch', start: () => health.watch(true), stop: () => health.watch(false) });
+  leadership.add({
+    name: 'ticket timers',
+    start: () => tickets.start(),
+    stop: () => tickets.stop(),
+  });
+  leadership.add({
+    name: 'notifications and digests',
+    start: () => notifications.start(),
+    stop: async () => {
+      notifications.stop();
+      await notifications.settle();
+    },
+  });
+  if (autoLock !== false)
+    leadership.add({
+      name: 'statement lock',
+      start: () => statementLocks.start(),
+      stop: async () => {
+        statementLocks.stop();
+        await statementLocks.settle();
+      },
+    });
+  leadership.add({
+    name: 'queued mail',
+    start: () => void mail.resume().catch((err) => log.error({ err }, 'queued mail not resumed')),
+    stop: () => undefined,
+  });
+  await leadership.start();
   brokerRef = broker;
 
   const alarmService = new AlarmService(alarmRepo, admin, live, healthOpts.now);
@@ -428,6 +474,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       commands!.stop();
       live.stop();
       landscapes.stopWarming();
+      await leadership.stop();
       await broker.close();
       await ingest.drain(5000);
       ingest.stop();
@@ -466,6 +513,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     mail,
     notifications,
     statementLocks,
+    leadership,
     landscapesWarm,
   };
 }

@@ -74,6 +74,11 @@ export class CommsDetector {
     };
   }
 
+  /** When the unit's last message arrived [ms], if it was ever heard. */
+  lastArrival(unitId: number): number | undefined {
+    return this.units.get(unitId)?.lastArrivalMs;
+  }
+
   known(): number[] {
     return [...this.units.keys()];
   }

@@ -188,6 +188,17 @@ export class HealthEngine {
     this.restoredGraceUntil.set(unit.unitId, graceUntilMs);
   }
 
+  /**
+   * What another server heard of a unit (the shared last-heard store): for the comms watch it counts as a message that
+   * arrived at `arrivalMs`, or as a last will at `offlineMs`. Nothing happens when it is not newer than what is known.
+   */
+  heardElsewhere(unit: UnitRef, arrivalMs: number, tsMs: number, offlineMs: number | null): void {
+    this.units.set(unit.unitId, unit);
+    const known = this.comms.lastArrival(unit.unitId);
+    if (known === undefined || arrivalMs > known) this.heard(unit, tsMs, false, this.settingsFor(unit.siteId), arrivalMs);
+    if (offlineMs !== null && offlineMs >= arrivalMs) this.comms.offline(unit.unitId, offlineMs);
+  }
+
   /** Periodic check on the clock (every few seconds): comms loss per unit, dark sites. */
   tick(): void {
     const now = this.opts.now();
@@ -298,10 +309,10 @@ export class HealthEngine {
     return this.book.open();
   }
 
-  private heard(unit: UnitRef, tsMs: number, isTelemetry: boolean, s: HealthSettings): void {
+  private heard(unit: UnitRef, tsMs: number, isTelemetry: boolean, s: HealthSettings, arrivalMs?: number): void {
     const now = this.opts.now();
     this.restoredGraceUntil.delete(unit.unitId);
-    this.comms.heard(unit.unitId, now, tsMs, isTelemetry);
+    this.comms.heard(unit.unitId, arrivalMs ?? now, tsMs, isTelemetry);
     // A message clears the unit's comms alarm at once (its clear delay applies).
     this.book.assess(this.subjectOf(unit), 'comms', false, now, timing(s.commsDelayOnMin, s.commsClearDelayMin), () => ({
       severity: 'P4',

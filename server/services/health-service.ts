@@ -15,7 +15,18 @@ import type { AlarmStore } from './alarm-store';
 import type { HealthSettingsService } from './health-settings-service';
 import type { LiveHub } from './live-hub';
 import type { SiteModelCache, SiteModelCacheOptions } from './site-model-cache';
-import { unitRefOf, type UnitInfo } from './unit-directory';
+import { unitRefOf, type UnitDirectory, type UnitInfo } from './unit-directory';
+
+/** Units' last-heard times shared between servers (server/data/unit-heard-repository.ts). */
+export interface SharedHeard {
+  write(rows: readonly { unitId: number; heardMs: number; tsMs: number; offlineMs: number | null }[]): Promise<void>;
+  since(
+    from: Date | null,
+  ): Promise<{ rows: { unitId: number; heardMs: number; tsMs: number; offlineMs: number | null }[]; newestWrite: Date | null }>;
+}
+
+/** Re-read this much before the newest shared write seen, so a write that committed late is not missed [ms]. */
+const HEARD_OVERLAP_MS = 10_000;
 
 export interface HealthServiceOptions extends SiteModelCacheOptions {
   /** Comms check interval [ms]. */
@@ -37,6 +48,12 @@ export class HealthService {
   readonly engine: HealthEngine;
   private readonly opts: HealthServiceOptions;
   private timer: NodeJS.Timeout | undefined;
+  /** This server runs the comms watch (it leads: server/services/leadership.ts); the others only feed their engine. */
+  private watching = false;
+  private cycling = false;
+  /** What this server heard since its last shared write (unit id → latest). */
+  private heardHere = new Map<number, { unitId: number; heardMs: number; tsMs: number; offlineMs: number | null }>();
+  private heardFrom: Date | null = null;
 
   constructor(
     private readonly store: AlarmStore,
@@ -45,6 +62,8 @@ export class HealthService {
     live: LiveHub,
     private readonly log: Logger,
     opts: Partial<HealthServiceOptions> = {},
+    /** Several servers: what each heard goes through the database to the one running the comms watch. */
+    private readonly shared?: { heard: SharedHeard; units: UnitDirectory },
   ) {
     this.opts = { ...DEFAULT_HEALTH_SERVICE_OPTIONS, ...opts };
     this.engine = new HealthEngine({
@@ -72,8 +91,71 @@ export class HealthService {
 
   async start(): Promise<void> {
     await this.settings.load();
-    this.timer = setInterval(() => this.tick(), this.opts.tickMs);
+    this.timer = setInterval(() => void this.cycle(), this.opts.tickMs);
     this.timer.unref();
+  }
+
+  /**
+   * Runs the comms watch here or not (one server at a time: the leader). A server that starts watching first reads
+   * every unit's shared last-heard time, so it judges units whose reports went to other servers.
+   */
+  watch(on: boolean): void {
+    this.watching = on;
+    if (on) this.heardFrom = null;
+  }
+
+  get isWatching(): boolean {
+    return this.watching;
+  }
+
+  /** One timer beat: share what was heard here, then (the watching server) take in the others' and judge. */
+  async cycle(): Promise<void> {
+    if (this.cycling) return;
+    this.cycling = true;
+    try {
+      if (this.shared) {
+        const rows = [...this.heardHere.values()];
+        this.heardHere = new Map();
+        await this.shared.heard.write(rows).catch((err) => {
+          // Kept for the next beat (newer news of a unit replaces it there).
+          for (const r of rows) if (!this.heardHere.has(r.unitId)) this.heardHere.set(r.unitId, r);
+          this.log.warn({ err }, 'sharing last-heard times failed');
+        });
+        if (this.watching) await this.takeInShared();
+      }
+      if (this.watching) this.tick();
+      else this.engine.book.pruneCleared();
+    } finally {
+      this.cycling = false;
+    }
+  }
+
+  private async takeInShared(): Promise<void> {
+    const { heard, units } = this.shared!;
+    let read;
+    try {
+      read = await heard.since(this.heardFrom && new Date(this.heardFrom.getTime() - HEARD_OVERLAP_MS));
+    } catch (err) {
+      this.log.warn({ err }, 'reading shared last-heard times failed');
+      return;
+    }
+    for (const r of read.rows) {
+      const unit = units.byUnitId(r.unitId);
+      if (unit) this.guard(() => this.engine.heardElsewhere(unitRefOf(unit), r.heardMs, r.tsMs, r.offlineMs));
+    }
+    if (read.newestWrite) this.heardFrom = read.newestWrite;
+  }
+
+  private noteHeard(unitId: number, tsMs: number, offline = false): void {
+    if (!this.shared) return;
+    const now = this.opts.now();
+    const was = this.heardHere.get(unitId);
+    this.heardHere.set(unitId, {
+      unitId,
+      heardMs: offline ? (was?.heardMs ?? now) : now,
+      tsMs: Math.max(tsMs, was?.tsMs ?? 0),
+      offlineMs: offline ? now : null,
+    });
   }
 
   /** Units' last stored messages at start-up ([unit, arrival ms, unit timestamp ms]): the comms watch covers them at once. */
@@ -94,14 +176,17 @@ export class HealthService {
 
   // ---- ingest listeners
   telemetry(unit: UnitInfo, t: Telemetry): void {
+    this.noteHeard(unit.id, Date.parse(t.ts));
     this.guard(() => this.engine.telemetry(unitRefOf(unit), t));
   }
 
   event(unit: UnitInfo, e: UnitEvent): void {
+    this.noteHeard(unit.id, Date.parse(e.ts));
     this.guard(() => this.engine.event(unitRefOf(unit), e));
   }
 
   status(unit: UnitInfo, st: UnitStatus): void {
+    this.noteHeard(unit.id, st.ts ? Date.parse(st.ts) : this.opts.now(), !st.online);
     this.guard(() => this.engine.status(unitRefOf(unit), st));
   }
 

@@ -1,15 +1,16 @@
-import { RateLimiterMemory, RateLimiterRes } from 'rate-limiter-flexible';
+import { RateLimiterMemory, RateLimiterRes, type RateLimiterAbstract } from 'rate-limiter-flexible';
 
 /**
  * Attempts per key (an account, a client address) over a fixed minute. An attempt is taken *before* the password is
  * checked, so a parallel burst cannot slip past the count; a successful attempt is given back, so only failures add up.
- * In memory: one server process serves the API, and a restart forgetting counts is acceptable.
+ * The server passes a counter kept in the database (server/data/sign-in-attempt-store.ts), shared by every server;
+ * given a number, the counts stay in this process.
  */
 export class SignInLimiter {
-  private readonly limiter: RateLimiterMemory;
+  private readonly limiter: RateLimiterAbstract;
 
-  constructor(limitPerMinute: number) {
-    this.limiter = new RateLimiterMemory({ points: limitPerMinute, duration: 60 });
+  constructor(limit: number | RateLimiterAbstract) {
+    this.limiter = typeof limit === 'number' ? new RateLimiterMemory({ points: limit, duration: 60 }) : limit;
   }
 
   /** Takes one attempt from each key; false when any key had none left. */

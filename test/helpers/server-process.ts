@@ -16,6 +16,8 @@ export interface ServerProcess {
   /** Whether it is still running. */
   alive(): boolean;
   kill(signal: NodeJS.Signals): Promise<number | null>;
+  /** Resolves with the first log line (parsed) whose `msg` is `msg`, seen since the start; rejects after `timeoutMs`. */
+  waitForLog(msg: string, timeoutMs: number): Promise<Record<string, unknown>>;
 }
 
 /** The real server (server/main.ts) as its own process on free ports, against the given database; resolves once it says it is ready. */
@@ -39,17 +41,37 @@ export async function startServerProcess(database: string, env: Record<string, s
       res(code);
     }),
   );
+  const logs: Record<string, unknown>[] = [];
+  const logWaiters = new Set<() => void>();
   const ready = await new Promise<{ url: string; brokerPort: number }>((res, rej) => {
     void exit.then((code) => rej(new Error(`server exited with ${code} before it was ready`)));
     createInterface({ input: proc.stdout! }).on('line', (line) => {
       try {
         const m = JSON.parse(line) as { msg?: string; url?: string; brokerPort?: number };
+        logs.push(m);
+        for (const w of logWaiters) w();
         if (m.msg === 'Brightward server ready' && m.url && m.brokerPort) res({ url: m.url, brokerPort: m.brokerPort });
       } catch {
         /* not a log line */
       }
     });
   });
+  const waitForLog = (msg: string, timeoutMs: number) =>
+    new Promise<Record<string, unknown>>((res, rej) => {
+      const look = () => {
+        const hit = logs.find((l) => l['msg'] === msg);
+        if (!hit) return;
+        logWaiters.delete(look);
+        clearTimeout(timer);
+        res(hit);
+      };
+      const timer = setTimeout(() => {
+        logWaiters.delete(look);
+        rej(new Error(`no "${msg}" in the server log within ${timeoutMs} ms`));
+      }, timeoutMs);
+      logWaiters.add(look);
+      look();
+    });
   return {
     proc,
     ...ready,
@@ -58,6 +80,7 @@ export async function startServerProcess(database: string, env: Record<string, s
       return kb ? Number(kb[1]) / 1024 : Number.NaN;
     },
     alive: () => !exited,
+    waitForLog,
     kill: async (signal) => {
       if (!exited) proc.kill(signal);
       return exit;

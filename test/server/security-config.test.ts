@@ -36,4 +36,10 @@ describe('security settings from the environment', () => {
       expect(() => loadConfig({ BW_ALLOWED_ORIGINS: bad }), bad).toThrow(/BW_ALLOWED_ORIGINS/);
     }
   });
+
+  it('refuses BW_CLUSTER without BW_SESSION_SECRET (each server would sign sessions the others reject)', () => {
+    expect(loadConfig({}).cluster).toBe(false);
+    expect(() => loadConfig({ BW_CLUSTER: '1' })).toThrow(/BW_SESSION_SECRET: required with BW_CLUSTER/);
+    expect(loadConfig({ BW_CLUSTER: 'on', BW_SESSION_SECRET: 'x'.repeat(32) }).cluster).toBe(true);
+  });
 });
