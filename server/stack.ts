@@ -52,6 +52,7 @@ import { IngestService, type IngestListeners, type IngestOptions } from './servi
 import { RollupWorker } from './services/rollup-worker';
 import { QuarterModelService } from './services/quarter-model-service';
 import { RetentionJob } from './services/retention-job';
+import { TelemetryPartitions } from './data/telemetry-partitions';
 import { LiveHub } from './services/live-hub';
 import { CommandService, type CommandOptions } from './services/command-service';
 import { countDenied, unitMessageHandler } from './consumers/mqtt-consumer';
@@ -362,7 +363,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   );
   rollups.onRolled((q) => statementLocks.onQuartersRolled(q));
   siteModel.onSurveySaved((siteId) => statementLocks.onSurveyChanged(siteId));
-  const retention = new RetentionJob(telemetry, config.ingest.retentionDays, log);
+  const retention = new RetentionJob(new TelemetryPartitions(db), config.ingest.retentionDays, log);
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];
   for (const row of await telemetry.latestPerUnit()) {

@@ -399,17 +399,6 @@ export class TelemetryRepository {
   }
 
   /** Deletes raw rows older than the retention, in chunks so the table is never locked for long. */
-  async purgeRawBefore(cutoff: Date, chunk = 50_000): Promise<number> {
-    let total = 0;
-    for (;;) {
-      const [res] = (await this.db.raw('DELETE FROM telemetry WHERE ts < ? LIMIT ?', [cutoff, chunk])) as unknown as [
-        { affectedRows: number },
-      ];
-      total += res.affectedRows;
-      if (res.affectedRows < chunk) return total;
-    }
-  }
-
   recent(unitId: number, from: Date, to: Date, limit = 20_000): Promise<TelemetryRow[]> {
     return this.db<TelemetryRow>('telemetry')
       .where('unit_id', unitId)
