@@ -88,6 +88,8 @@ export interface DemoSeedOptions {
 export interface DeviceSecretTools {
   newDeviceSecret(): string;
   hashDeviceSecret(secret: string): string;
+  /** The hash the external message engine checks (bcrypt); left out, units get none (tests that do not use the engine). */
+  engineSecretHash?(secret: string): string;
 }
 
 export interface DemoSeedResult {
@@ -130,6 +132,7 @@ export async function seedDemoWorld(db: Knex, tools: DeviceSecretTools, opts: De
           plan_y_m: Math.floor(i / 3) * 5,
           firmware: DEMO_UNIT.firmware,
           device_secret_hash: tools.hashDeviceSecret(deviceSecrets[serial]!),
+          engine_secret_hash: tools.engineSecretHash?.(deviceSecrets[serial]!) ?? null,
           weather_station: i === 0 && !s.indoor,
         };
       });
@@ -160,7 +163,10 @@ export async function rekeyDemoUnits(db: Knex, tools: DeviceSecretTools): Promis
       secrets[serial] = tools.newDeviceSecret();
       await trx('units')
         .where({ serial })
-        .update({ device_secret_hash: tools.hashDeviceSecret(secrets[serial]) });
+        .update({
+          device_secret_hash: tools.hashDeviceSecret(secrets[serial]),
+          engine_secret_hash: tools.engineSecretHash?.(secrets[serial]) ?? null,
+        });
     }
   });
   return secrets;

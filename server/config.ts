@@ -135,6 +135,13 @@ const envSchema = z.object({
     .string()
     .refine((v) => zones.has(v), 'an IANA time zone such as Europe/Berlin')
     .default('UTC'),
+  // The external message engine's folder (server/scripts/engine.sh): the server keeps the units' engine users there.
+  BW_ENGINE_DIR: z.string().min(1).optional(),
+  BW_ENGINE_USER: z
+    .string()
+    .regex(/^[a-z][a-z0-9-]{2,31}$/, 'lower-case letters, digits and - (not a unit serial)')
+    .default('bw-service'),
+  BW_ENGINE_PASSWORD: z.string().min(16, 'at least 16 characters').optional(),
   // Several servers on one database: what each hears goes through the database to the one running the comms watch.
   BW_CLUSTER: onOff.default(false),
   BW_PUBLIC_URL: z.url({ protocol: /^https?$/, error: 'the dashboard address, such as https://ops.example.org' }).optional(),
@@ -182,6 +189,8 @@ export interface Config {
   notifications: { digestHour: number; digestTimeZone: string; publicUrl?: string };
   /** Several servers share the database (and a session secret): units' last-heard times are shared for the comms watch. */
   cluster: boolean;
+  /** The external message engine's folder and the service user servers and workers connect as (unset: none). */
+  engine?: { dir: string; service: { user: string; password: string } };
 }
 
 export interface MailConfig {
@@ -219,6 +228,10 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
         ? 'BW_S3_BUCKET: required with BW_S3_ENDPOINT or S3 credentials (without all three, files go to the local store)'
         : null;
   if (s3Problem) throw new ConfigError(`Invalid configuration:\n  ${s3Problem}`);
+  if (e.BW_ENGINE_DIR !== undefined && e.BW_ENGINE_PASSWORD === undefined)
+    throw new ConfigError(
+      'Invalid configuration:\n  BW_ENGINE_PASSWORD: required with BW_ENGINE_DIR (the service user of the message engine)',
+    );
   if (e.BW_CLUSTER && e.BW_SESSION_SECRET === undefined)
     throw new ConfigError(
       'Invalid configuration:\n  BW_SESSION_SECRET: required with BW_CLUSTER (every server must accept the sessions the others sign)',
@@ -286,5 +299,8 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
       ...(e.BW_PUBLIC_URL ? { publicUrl: e.BW_PUBLIC_URL.replace(/\/$/, '') } : {}),
     },
     cluster: e.BW_CLUSTER,
+    ...(e.BW_ENGINE_DIR !== undefined && e.BW_ENGINE_PASSWORD !== undefined
+      ? { engine: { dir: e.BW_ENGINE_DIR, service: { user: e.BW_ENGINE_USER, password: e.BW_ENGINE_PASSWORD } } }
+      : {}),
   };
 }

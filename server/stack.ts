@@ -41,6 +41,7 @@ import { SignInLimiter } from './services/sign-in-limiter';
 import { sharedAttemptCounter } from './data/sign-in-attempt-store';
 import { LeaderLock } from './data/leader-lock';
 import { UnitHeardRepository } from './data/unit-heard-repository';
+import { EngineAuth } from './services/engine-auth';
 import { DEFAULT_LEADERSHIP_OPTIONS, Leadership, lockLostAfterS, type LeadershipOptions } from './services/leadership';
 import { Passwords } from './services/passwords';
 import { SessionEvents } from './services/session-events';
@@ -184,6 +185,14 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     },
   );
   let brokerRef: RunningBroker | undefined;
+  // The external message engine lets in exactly the enabled units, each confined to its own topics.
+  const engineAuth = config.engine ? new EngineAuth(units, config.engine.dir, config.engine.service, log) : undefined;
+  if (engineAuth)
+    await engineAuth.write().catch(async (err) => {
+      await fileStore.close();
+      await db.destroy();
+      throw new StartupError(`Cannot write the message engine's users in ${config.engine!.dir}: ${(err as Error).message}`);
+    });
   const directory = new UnitDirectory(units, new HoldRepository(db));
   await directory.load();
   const live = new LiveHub(directory);
@@ -192,6 +201,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     onUnitChanged: async (_unitId, change) => {
       await directory.load().catch((err) => log.error({ err }, 'unit directory reload failed'));
       live.onDirectoryChanged();
+      await engineAuth?.write().catch((err) => log.error({ err }, 'message engine users not rewritten'));
       // A disabled unit, a new secret or a new serial ends the unit's MQTT session at once (it must authenticate again).
       if (change.credentialsChanged || change.disabled) {
         for (const serial of new Set([change.serial, change.previousSerial ?? change.serial])) brokerRef?.disconnectUnit(serial);

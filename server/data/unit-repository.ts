@@ -17,6 +17,7 @@ interface UnitRow {
   firmware: string;
   disabled: number | boolean;
   device_secret_hash: string;
+  engine_secret_hash: string | null;
   on_hold?: number | boolean;
   weather_station?: number | boolean;
 }
@@ -83,24 +84,34 @@ export class UnitRepository {
     }));
   }
 
+  /** Every enabled unit whose secret the message engine can check (serial, bcrypt hash), by serial. */
+  async engineCredentials(): Promise<{ serial: string; engineSecretHash: string }[]> {
+    const rows: Pick<UnitRow, 'serial' | 'engine_secret_hash'>[] = await this.db('units')
+      .where({ disabled: false })
+      .whereNotNull('engine_secret_hash')
+      .orderBy('serial')
+      .select('serial', 'engine_secret_hash');
+    return rows.map((r) => ({ serial: r.serial, engineSecretHash: r.engine_secret_hash! }));
+  }
+
   async findBySerial(serial: string): Promise<{ id: number } | undefined> {
     return this.db('units').where({ serial }).first('id');
   }
 
-  async insert(unit: UnitInput & { deviceSecretHash: string }): Promise<number> {
+  async insert(unit: UnitInput & { deviceSecretHash: string; engineSecretHash?: string }): Promise<number> {
     const [id] = await this.db('units').insert(unitRow(unit));
     return id as number;
   }
 
-  async update(id: number, patch: Partial<UnitInput> & { deviceSecretHash?: string }): Promise<void> {
+  async update(id: number, patch: Partial<UnitInput> & { deviceSecretHash?: string; engineSecretHash?: string }): Promise<void> {
     const row = unitRow(patch);
     if (Object.keys(row).length) await this.db('units').where({ id }).update(row);
   }
 }
 
 /** The columns of the fields given. */
-function unitRow(i: Partial<UnitInput> & { deviceSecretHash?: string }): Partial<Omit<UnitRow, 'id'>> {
-  const map: Record<keyof UnitInput | 'deviceSecretHash', string> = {
+function unitRow(i: Partial<UnitInput> & { deviceSecretHash?: string; engineSecretHash?: string }): Partial<Omit<UnitRow, 'id'>> {
+  const map: Record<keyof UnitInput | 'deviceSecretHash' | 'engineSecretHash', string> = {
     serial: 'serial',
     siteId: 'site_id',
     ratedPowerWp: 'rated_power_wp',
@@ -115,6 +126,7 @@ function unitRow(i: Partial<UnitInput> & { deviceSecretHash?: string }): Partial
     disabled: 'disabled',
     weatherStation: 'weather_station',
     deviceSecretHash: 'device_secret_hash',
+    engineSecretHash: 'engine_secret_hash',
   };
   const r: Record<string, unknown> = {};
   for (const [k, col] of Object.entries(map)) if (i[k as keyof typeof map] !== undefined) r[col] = i[k as keyof typeof map];

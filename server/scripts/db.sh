@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # Private MariaDB for Brightward: its own data dir, socket, pid file and port on 127.0.0.1.
-# Usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler
+# Usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler|ensure-nats
 #   BW_DB_DIR   data folder (default .data/mariadb)      BW_DB_PORT  port (default 3307)
 #   BW_DB_NAME  database (default brightward)             BW_DB_USER / BW_DB_PASSWORD  app account
 #   BW_DB_SUPER set to 1 to grant the app account every privilege (throwaway test servers only)
@@ -89,5 +89,6 @@ case "${1:-}" in
   status) if running; then echo "running on 127.0.0.1:$PORT (pid $(cat "$PIDF"))"; else echo "stopped"; exit 1; fi ;;
   ensure-chromium) ensure_package chromium chromium ;;
   ensure-poppler) ensure_package pdftotext poppler-utils ;;
-  *) echo "usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler" >&2; exit 2 ;;
+  ensure-nats) ensure_package nats-server nats-server ;;
+  *) echo "usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler|ensure-nats" >&2; exit 2 ;;
 esac

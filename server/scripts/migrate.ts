@@ -4,7 +4,7 @@ import { loadConfig } from '../config';
 import { createDb, describeDbError, migrateLatest, type Db } from '../data/db';
 import { demoSerials } from '../../shared/demo-world';
 import { DEMO_OWNERS, rekeyDemoUnits, seedDemoWorld } from '../../seeds/demo-world';
-import { hashDeviceSecret, newDeviceSecret } from '../services/device-secret';
+import { engineSecretHash, hashDeviceSecret, newDeviceSecret } from '../services/device-secret';
 
 /**
  * `migrate.ts latest [--demo]` | `rollback` | `demo` | `reset`: schema changes, and — only when asked — the invented demo
@@ -16,7 +16,7 @@ import { hashDeviceSecret, newDeviceSecret } from '../services/device-secret';
 const DEMO_SECRETS_FILE = process.env['BW_DEMO_SECRETS_FILE'] ?? '.data/demo/device-secrets.json';
 
 async function seedDemo(db: Db, bcryptCost: number): Promise<void> {
-  const { seeded, deviceSecrets } = await seedDemoWorld(db, { newDeviceSecret, hashDeviceSecret }, { bcryptCost });
+  const { seeded, deviceSecrets } = await seedDemoWorld(db, { newDeviceSecret, hashDeviceSecret, engineSecretHash }, { bcryptCost });
   if (seeded) {
     writeSecrets(deviceSecrets);
     console.log(
@@ -25,7 +25,7 @@ async function seedDemo(db: Db, bcryptCost: number): Promise<void> {
     return;
   }
   if (!secretsCoverDemo()) {
-    writeSecrets(await rekeyDemoUnits(db, { newDeviceSecret, hashDeviceSecret }));
+    writeSecrets(await rekeyDemoUnits(db, { newDeviceSecret, hashDeviceSecret, engineSecretHash }));
     console.log(`[db] data present: demo seed skipped; demo units given new device secrets (${DEMO_SECRETS_FILE})`);
   } else {
     console.log('[db] data present: demo seed skipped');

@@ -16,7 +16,7 @@ import type { SiteRepository } from '../data/site-repository';
 import type { UnitRepository } from '../data/unit-repository';
 import { toUser, type UserRepository } from '../data/user-repository';
 import { scopeOf, type Caller } from './caller';
-import { hashDeviceSecret, newDeviceSecret } from './device-secret';
+import { engineSecretHash, hashDeviceSecret, newDeviceSecret } from './device-secret';
 import type { Passwords } from './passwords';
 import type { SessionRevoker } from './auth-service';
 
@@ -217,7 +217,11 @@ export class AdminService {
   async createUnit(by: Caller, input: UnitInput): Promise<{ unit: Unit; deviceSecret: string }> {
     await this.checkUnit(input);
     const deviceSecret = newDeviceSecret();
-    const id = await this.repo.units.insert({ ...input, deviceSecretHash: hashDeviceSecret(deviceSecret) });
+    const id = await this.repo.units.insert({
+      ...input,
+      deviceSecretHash: hashDeviceSecret(deviceSecret),
+      engineSecretHash: engineSecretHash(deviceSecret),
+    });
     await this.repo.audit.append({ userId: by.id, action: 'unit-create', target: `unit:${id}`, detail: input });
     await this.unitChanged(id, { credentialsChanged: false, disabled: input.disabled ?? false, serial: input.serial });
     return { unit: await this.getUnit(by, id), deviceSecret };
@@ -241,7 +245,10 @@ export class AdminService {
   async rotateDeviceSecret(by: Caller, id: number): Promise<{ deviceSecret: string }> {
     const unit = await this.getUnit(by, id);
     const deviceSecret = newDeviceSecret();
-    await this.repo.units.update(id, { deviceSecretHash: hashDeviceSecret(deviceSecret) });
+    await this.repo.units.update(id, {
+      deviceSecretHash: hashDeviceSecret(deviceSecret),
+      engineSecretHash: engineSecretHash(deviceSecret),
+    });
     await this.repo.audit.append({ userId: by.id, action: 'unit-secret-rotate', target: `unit:${id}` });
     await this.unitChanged(id, { credentialsChanged: true, disabled: unit.disabled, serial: unit.serial });
     return { deviceSecret };
