@@ -17,6 +17,8 @@ trap 'exit 130' INT TERM
 bash server/scripts/db.sh ensure-chromium || exit 1
 # The statement PDF tests read the PDF's text with pdftotext (Debian's poppler-utils).
 bash server/scripts/db.sh ensure-poppler || exit 1
+# The message engine tests start a NATS node of their own (Debian's nats-server).
+bash server/scripts/db.sh ensure-nats || exit 1
 if ! bash server/scripts/db.sh status >/dev/null 2>&1; then started=1; fi
 bash server/scripts/db.sh start || exit 1
 
