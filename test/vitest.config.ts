@@ -6,7 +6,8 @@ export default defineConfig({
   root: fileURLToPath(new URL('..', import.meta.url)),
   test: {
     include: ['test/**/*.test.ts'],
-    exclude: ['test/e2e/**', 'node_modules/**'],
+    // test/scale needs the clusters `npm run test:scale` starts.
+    exclude: ['test/e2e/**', 'test/scale/**', 'node_modules/**'],
     environment: 'node',
     testTimeout: 30_000,
     hookTimeout: 60_000,

@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # Private MariaDB for Brightward: its own data dir, socket, pid file and port on 127.0.0.1.
-# Usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler|ensure-nats
+# Usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler|ensure-nats|ensure-haproxy|ensure-galera|ensure-rsync
 #   BW_DB_DIR   data folder (default .data/mariadb)      BW_DB_PORT  port (default 3307)
 #   BW_DB_NAME  database (default brightward)             BW_DB_USER / BW_DB_PASSWORD  app account
 #   BW_DB_SUPER set to 1 to grant the app account every privilege (throwaway test servers only)
@@ -90,5 +90,8 @@ case "${1:-}" in
   ensure-chromium) ensure_package chromium chromium ;;
   ensure-poppler) ensure_package pdftotext poppler-utils ;;
   ensure-nats) ensure_package nats-server nats-server ;;
-  *) echo "usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler|ensure-nats" >&2; exit 2 ;;
+  ensure-haproxy) ensure_package haproxy haproxy ;;
+  ensure-galera) [ -f /usr/lib/galera/libgalera_smm.so ] || ensure_package libgalera_smm.so galera-4 ;;
+  ensure-rsync) ensure_package rsync rsync ;;
+  *) echo "usage: db.sh ensure|start|stop|status|ensure-chromium|ensure-poppler|ensure-nats|ensure-haproxy|ensure-galera|ensure-rsync" >&2; exit 2 ;;
 esac
