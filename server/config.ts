@@ -142,6 +142,12 @@ const envSchema = z.object({
     .regex(/^[a-z][a-z0-9-]{2,31}$/, 'lower-case letters, digits and - (not a unit serial)')
     .default('bw-service'),
   BW_ENGINE_PASSWORD: z.string().min(16, 'at least 16 characters').optional(),
+  // Ingest workers: how many partitions the engine splits the units' readings into (by site), and where its MQTT gateway is.
+  BW_ENGINE_PARTITIONS: z.coerce.number().int().min(1).max(64).default(2),
+  BW_ENGINE_MQTT_URLS: z
+    .string()
+    .default('mqtt://127.0.0.1:1885')
+    .refine((v) => v.split(',').every((u) => /^mqtts?:\/\/[^/\s]+:\d+$/.test(u.trim())), 'comma list of mqtt://host:port'),
   // Several servers on one database: what each hears goes through the database to the one running the comms watch.
   BW_CLUSTER: onOff.default(false),
   BW_PUBLIC_URL: z.url({ protocol: /^https?$/, error: 'the dashboard address, such as https://ops.example.org' }).optional(),
@@ -190,7 +196,7 @@ export interface Config {
   /** Several servers share the database (and a session secret): units' last-heard times are shared for the comms watch. */
   cluster: boolean;
   /** The external message engine's folder and the service user servers and workers connect as (unset: none). */
-  engine?: { dir: string; service: { user: string; password: string } };
+  engine?: { dir: string; service: { user: string; password: string }; partitions: number; mqttUrls: string[] };
 }
 
 export interface MailConfig {
@@ -300,7 +306,14 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     },
     cluster: e.BW_CLUSTER,
     ...(e.BW_ENGINE_DIR !== undefined && e.BW_ENGINE_PASSWORD !== undefined
-      ? { engine: { dir: e.BW_ENGINE_DIR, service: { user: e.BW_ENGINE_USER, password: e.BW_ENGINE_PASSWORD } } }
+      ? {
+          engine: {
+            dir: e.BW_ENGINE_DIR,
+            service: { user: e.BW_ENGINE_USER, password: e.BW_ENGINE_PASSWORD },
+            partitions: e.BW_ENGINE_PARTITIONS,
+            mqttUrls: e.BW_ENGINE_MQTT_URLS.split(',').map((u) => u.trim()),
+          },
+        }
       : {}),
   };
 }

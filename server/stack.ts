@@ -186,7 +186,9 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   );
   let brokerRef: RunningBroker | undefined;
   // The external message engine lets in exactly the enabled units, each confined to its own topics.
-  const engineAuth = config.engine ? new EngineAuth(units, config.engine.dir, config.engine.service, log) : undefined;
+  const engineAuth = config.engine
+    ? new EngineAuth(units, config.engine.dir, config.engine.service, log, config.engine.partitions)
+    : undefined;
   if (engineAuth)
     await engineAuth.write().catch(async (err) => {
       await fileStore.close();

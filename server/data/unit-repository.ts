@@ -84,14 +84,14 @@ export class UnitRepository {
     }));
   }
 
-  /** Every enabled unit whose secret the message engine can check (serial, bcrypt hash), by serial. */
-  async engineCredentials(): Promise<{ serial: string; engineSecretHash: string }[]> {
-    const rows: Pick<UnitRow, 'serial' | 'engine_secret_hash'>[] = await this.db('units')
+  /** Every enabled unit whose secret the message engine can check (serial, bcrypt hash, site), by serial. */
+  async engineCredentials(): Promise<{ serial: string; engineSecretHash: string; siteId: number }[]> {
+    const rows: Pick<UnitRow, 'serial' | 'engine_secret_hash' | 'site_id'>[] = await this.db('units')
       .where({ disabled: false })
       .whereNotNull('engine_secret_hash')
       .orderBy('serial')
-      .select('serial', 'engine_secret_hash');
-    return rows.map((r) => ({ serial: r.serial, engineSecretHash: r.engine_secret_hash! }));
+      .select('serial', 'engine_secret_hash', 'site_id');
+    return rows.map((r) => ({ serial: r.serial, engineSecretHash: r.engine_secret_hash!, siteId: r.site_id }));
   }
 
   async findBySerial(serial: string): Promise<{ id: number } | undefined> {

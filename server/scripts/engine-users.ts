@@ -12,7 +12,13 @@ if (!config.engine) {
 }
 const db = createDb(config.db);
 try {
-  const auth = new EngineAuth(new UnitRepository(db), config.engine.dir, config.engine.service, pino({ level: 'silent' }));
+  const auth = new EngineAuth(
+    new UnitRepository(db),
+    config.engine.dir,
+    config.engine.service,
+    pino({ level: 'silent' }),
+    config.engine.partitions,
+  );
   const { units, reloaded } = await auth.write();
   console.error(`[engine] users written: ${units} units${reloaded ? `, ${reloaded} running node(s) reloaded` : ''}`);
 } catch (err) {

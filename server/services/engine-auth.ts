@@ -32,6 +32,8 @@ export class EngineAuth {
     private readonly dir: string,
     private readonly service: { user: string; password: string },
     private readonly log: Logger,
+    /** Worker partitions the units' readings are re-published to, by site (0: none). */
+    private readonly partitions = 0,
   ) {
     this.servicePasswordHash = bcrypt.hashSync(service.password, 10);
   }
@@ -54,7 +56,7 @@ export class EngineAuth {
 
   private async writeNow(): Promise<{ units: number; reloaded: number }> {
     const units = await this.units.engineCredentials();
-    const text = natsAuthorization(units, { user: this.service.user, passwordHash: this.servicePasswordHash });
+    const text = natsAuthorization(units, { user: this.service.user, passwordHash: this.servicePasswordHash }, this.partitions);
     mkdirSync(this.dir, { recursive: true });
     const file = join(this.dir, ENGINE_AUTH_FILE);
     // Whole or not at all: a node reloading mid-write must never read half a file.

@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import { promisify } from 'node:util';
 import mqtt, { type MqttClient } from 'mqtt';
 import { pino } from 'pino';
-import { natsAuthorization, natsSubject } from '../../broker/nats-auth';
+import { natsAuthorization, natsSubject, sitePartition } from '../../broker/nats-auth';
 import { engineSecretHash } from '../../server/services/device-secret';
 import { EngineAuth } from '../../server/services/engine-auth';
 import { startStack, type Stack } from '../../server/stack';
@@ -64,6 +64,7 @@ beforeAll(async () => {
   mqttPort = await freePort();
   engineEnv = {
     BW_ENGINE_DIR: dir,
+    BW_ENGINE_PARTITIONS: '2',
     BW_ENGINE_PORT: String(await freePort()),
     BW_ENGINE_MQTT_PORT: String(mqttPort),
     BW_ENGINE_PASSWORD: SERVICE_PASSWORD,
@@ -76,7 +77,12 @@ beforeAll(async () => {
       port: 0,
       broker: { host: '127.0.0.1', port: 0 },
       sessionSecret: 'test-secret-test-secret-test-secret-0',
-      engine: { dir, service: { user: 'bw-service', password: SERVICE_PASSWORD } },
+      engine: {
+        dir,
+        service: { user: 'bw-service', password: SERVICE_PASSWORD },
+        partitions: 2,
+        mqttUrls: [`mqtt://127.0.0.1:${mqttPort}`],
+      },
     },
     pino({ level: 'silent' }),
     { warmLandscapes: false, statements: { autoLock: false } },
@@ -96,17 +102,27 @@ afterAll(async () => {
 describe('engine users from the unit table', () => {
   it('confines each unit to its own publish leaves and its own prefix, and checks bcrypt hashes only', () => {
     const hash = engineSecretHash('s');
-    const text = natsAuthorization([{ serial: UNIT, engineSecretHash: hash }], { user: 'bw-service', passwordHash: hash });
+    const text = natsAuthorization([{ serial: UNIT, engineSecretHash: hash, siteId: 1 }], { user: 'bw-service', passwordHash: hash });
     expect(text).toContain(
       `{ user: "${UNIT}", password: "${hash}", permissions: { publish: { allow: ["bw.v1.units.${UNIT}.telemetry", "bw.v1.units.${UNIT}.events", "bw.v1.units.${UNIT}.acks", "bw.v1.units.${UNIT}.status", "bw.v1.units.${UNIT}.weather"] }, subscribe: { allow: ["bw.v1.units.${UNIT}.>", "$MQTT.sub.>"] } } }`,
     );
-    expect(() => natsAuthorization([{ serial: 'bad serial"', engineSecretHash: hash }], { user: 's', passwordHash: hash })).toThrow(
-      /not a unit serial/,
-    );
-    expect(() => natsAuthorization([{ serial: UNIT, engineSecretHash: 'sha256:00' }], { user: 's', passwordHash: hash })).toThrow(
-      /not a bcrypt hash/,
-    );
+    expect(() =>
+      natsAuthorization([{ serial: 'bad serial"', engineSecretHash: hash, siteId: 1 }], { user: 's', passwordHash: hash }),
+    ).toThrow(/not a unit serial/);
+    expect(() =>
+      natsAuthorization([{ serial: UNIT, engineSecretHash: 'sha256:00', siteId: 1 }], { user: 's', passwordHash: hash }),
+    ).toThrow(/not a bcrypt hash/);
     expect(natsSubject(unitTopic(UNIT, 'telemetry'))).toBe(`bw.v1.units.${UNIT}.telemetry`);
+    // With worker partitions the unit's readings are re-published below its site's partition (site 3 of 2 → 1).
+    const mapped = natsAuthorization([{ serial: UNIT, engineSecretHash: hash, siteId: 3 }], { user: 's', passwordHash: hash }, 2);
+    expect(mapped).toContain(`  "bw.v1.units.${UNIT}.telemetry": "bw.s.1.v1.units.${UNIT}.telemetry"`);
+    expect(mapped).toContain(`  "bw.v1.units.${UNIT}.status": "bw.s.1.v1.units.${UNIT}.status"`);
+    expect(mapped).not.toContain(`"bw.v1.units.${UNIT}.commands":`);
+    expect(mapped).not.toContain(`"bw.v1.units.${UNIT}.acks":`);
+    // The engine checks the mapped subject: the unit may publish there (its own serial only), and its acks as before.
+    expect(mapped).toContain(
+      `publish: { allow: ["bw.s.1.v1.units.${UNIT}.telemetry", "bw.s.1.v1.units.${UNIT}.events", "bw.v1.units.${UNIT}.acks", "bw.s.1.v1.units.${UNIT}.status", "bw.s.1.v1.units.${UNIT}.weather"] }`,
+    );
   });
 
   it('rewrites once for a burst of changes that arrive while a write is under way', async () => {
@@ -117,7 +133,7 @@ describe('engine users from the unit table', () => {
         engineCredentials: async () => {
           reads++;
           await new Promise((r) => setTimeout(r, 50));
-          return [{ serial: UNIT, engineSecretHash: engineSecretHash('s') }];
+          return [{ serial: UNIT, engineSecretHash: engineSecretHash('s'), siteId: 1 }];
         },
       },
       scratch,
@@ -151,13 +167,16 @@ describe('units on the engine MQTT gateway (NATS 2.9)', () => {
     const got: string[] = [];
     srv.on('message', (topic, payload) => got.push(`${topic} ${String(payload)}`));
     await srv.subscribeAsync('bw/v1/units/#', { qos: 1 });
+    await srv.subscribeAsync('bw/s/#', { qos: 1 });
     const u = await connect(UNIT, testDeviceSecret(UNIT), `${UNIT}`);
     await u.publishAsync(unitTopic(UNIT, 'telemetry'), 'own', { qos: 1 });
     await u.publishAsync(unitTopic(OTHER, 'telemetry'), 'forged', { qos: 1 });
     await u.publishAsync(unitTopic(UNIT, 'commands'), 'self-command', { qos: 1 });
     await u.publishAsync(unitTopic(UNIT, 'events'), 'last', { qos: 1 });
     await waitFor(() => got.some((g) => g.endsWith(' last')), 5000);
-    expect(got).toEqual([`${unitTopic(UNIT, 'telemetry')} own`, `${unitTopic(UNIT, 'events')} last`]);
+    // Readings come out below the partition of the unit's site (BW_ENGINE_PARTITIONS=2), for the ingest workers.
+    const p = sitePartition(stack.units.get(UNIT)!.siteId, 2);
+    expect(got).toEqual([`bw/s/${p}/v1/units/${UNIT}/telemetry own`, `bw/s/${p}/v1/units/${UNIT}/events last`]);
   });
 
   it('subscribe to their own commands but not to another unit’s', async () => {
