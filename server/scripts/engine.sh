@@ -50,7 +50,8 @@ start() {
   [ -n "${BW_ENGINE_PASSWORD:-}" ] || { say "set BW_ENGINE_PASSWORD (the service user's password)"; exit 1; }
   mkdir -p "$DIR"
   chmod 700 "$DIR"
-  BW_ENGINE_DIR=$DIR node --import tsx server/scripts/engine-users.ts
+  # A benchmark writes its own users file (BW_ENGINE_USERS_WRITTEN=1); otherwise they come from the unit table.
+  [ "${BW_ENGINE_USERS_WRITTEN:-0}" = 1 ] || BW_ENGINE_DIR=$DIR node --import tsx server/scripts/engine-users.ts
   local i
   for i in $(seq 1 "$NODES"); do
     if running "$i"; then say "node $i already running (pid $(cat "$DIR/n$i.pid"))"; continue; fi
