@@ -144,10 +144,12 @@ const envSchema = z.object({
   BW_ENGINE_PASSWORD: z.string().min(16, 'at least 16 characters').optional(),
   // Ingest workers: how many partitions the engine splits the units' readings into (by site), and where its MQTT gateway is.
   BW_ENGINE_PARTITIONS: z.coerce.number().int().min(1).max(64).default(2),
-  BW_ENGINE_MQTT_URLS: z
+  BW_ENGINE_URLS: z
     .string()
-    .default('mqtt://127.0.0.1:1885')
-    .refine((v) => v.split(',').every((u) => /^mqtts?:\/\/[^/\s]+:\d+$/.test(u.trim())), 'comma list of mqtt://host:port'),
+    .default('nats://127.0.0.1:4222')
+    .refine((v) => v.split(',').every((u) => /^nats:\/\/[^/\s]+:\d+$/.test(u.trim())), 'comma list of nats://host:port'),
+  // How many copies of each reading the engine keeps (its JetStream stream; at most the number of engine nodes).
+  BW_ENGINE_REPLICAS: z.coerce.number().int().min(1).max(5).default(1),
   // Several servers on one database: what each hears goes through the database to the one running the comms watch.
   BW_CLUSTER: onOff.default(false),
   BW_PUBLIC_URL: z.url({ protocol: /^https?$/, error: 'the dashboard address, such as https://ops.example.org' }).optional(),
@@ -195,8 +197,11 @@ export interface Config {
   notifications: { digestHour: number; digestTimeZone: string; publicUrl?: string };
   /** Several servers share the database (and a session secret): units' last-heard times are shared for the comms watch. */
   cluster: boolean;
-  /** The external message engine's folder and the service user servers and workers connect as (unset: none). */
-  engine?: { dir: string; service: { user: string; password: string }; partitions: number; mqttUrls: string[] };
+  /**
+   * The external message engine (unset: none): its folder where the server keeps the units' users (servers only), the
+   * service user servers and workers connect as, the worker partitions, its client addresses and copies per reading.
+   */
+  engine?: { dir?: string; service: { user: string; password: string }; partitions: number; urls: string[]; replicas: number };
 }
 
 export interface MailConfig {
@@ -305,13 +310,14 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
       ...(e.BW_PUBLIC_URL ? { publicUrl: e.BW_PUBLIC_URL.replace(/\/$/, '') } : {}),
     },
     cluster: e.BW_CLUSTER,
-    ...(e.BW_ENGINE_DIR !== undefined && e.BW_ENGINE_PASSWORD !== undefined
+    ...(e.BW_ENGINE_PASSWORD !== undefined
       ? {
           engine: {
-            dir: e.BW_ENGINE_DIR,
+            ...(e.BW_ENGINE_DIR !== undefined ? { dir: e.BW_ENGINE_DIR } : {}),
             service: { user: e.BW_ENGINE_USER, password: e.BW_ENGINE_PASSWORD },
             partitions: e.BW_ENGINE_PARTITIONS,
-            mqttUrls: e.BW_ENGINE_MQTT_URLS.split(',').map((u) => u.trim()),
+            urls: e.BW_ENGINE_URLS.split(',').map((u) => u.trim()),
+            replicas: e.BW_ENGINE_REPLICAS,
           },
         }
       : {}),

@@ -186,14 +186,14 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   );
   let brokerRef: RunningBroker | undefined;
   // The external message engine lets in exactly the enabled units, each confined to its own topics.
-  const engineAuth = config.engine
+  const engineAuth = config.engine?.dir
     ? new EngineAuth(units, config.engine.dir, config.engine.service, log, config.engine.partitions)
     : undefined;
   if (engineAuth)
     await engineAuth.write().catch(async (err) => {
       await fileStore.close();
       await db.destroy();
-      throw new StartupError(`Cannot write the message engine's users in ${config.engine!.dir}: ${(err as Error).message}`);
+      throw new StartupError(`Cannot write the message engine's users in ${config.engine!.dir!}: ${(err as Error).message}`);
     });
   const directory = new UnitDirectory(units, new HoldRepository(db));
   await directory.load();

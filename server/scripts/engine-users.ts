@@ -6,7 +6,7 @@ import { EngineAuth } from '../services/engine-auth';
 
 /** Writes the message engine's users from the unit table (server/scripts/engine.sh runs it before the nodes start). */
 const config = loadConfig();
-if (!config.engine) {
+if (!config.engine?.dir) {
   console.error('[engine] set BW_ENGINE_DIR and BW_ENGINE_PASSWORD');
   process.exit(2);
 }

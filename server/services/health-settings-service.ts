@@ -24,7 +24,7 @@ export class HealthSettingsService {
 
   constructor(
     private readonly repo: HealthSettingsRepository,
-    private readonly admin: AdminService,
+    private readonly admin: Pick<AdminService, 'getSite'>,
     private readonly log: Logger,
     private readonly now: () => number,
   ) {}

@@ -6,6 +6,7 @@ import { createInterface } from 'node:readline';
 import { fileURLToPath } from 'node:url';
 
 const main = fileURLToPath(new URL('../../server/main.ts', import.meta.url));
+const workerMain = fileURLToPath(new URL('../../server/worker.ts', import.meta.url));
 
 export interface ServerProcess {
   proc: ChildProcess;
@@ -16,13 +17,25 @@ export interface ServerProcess {
   /** Whether it is still running. */
   alive(): boolean;
   kill(signal: NodeJS.Signals): Promise<number | null>;
-  /** Resolves with the first log line (parsed) whose `msg` is `msg`, seen since the start; rejects after `timeoutMs`. */
-  waitForLog(msg: string, timeoutMs: number): Promise<Record<string, unknown>>;
+  /**
+   * Resolves with the first log line (parsed) whose `msg` is `msg` (and that `match` accepts), seen since the start;
+   * rejects after `timeoutMs`.
+   */
+  waitForLog(msg: string, timeoutMs: number, match?: (line: Record<string, unknown>) => boolean): Promise<Record<string, unknown>>;
 }
 
 /** The real server (server/main.ts) as its own process on free ports, against the given database; resolves once it says it is ready. */
 export async function startServerProcess(database: string, env: Record<string, string> = {}): Promise<ServerProcess> {
-  const proc = spawn(process.execPath, ['--import', 'tsx', main], {
+  return startProcess(main, 'Brightward server ready', database, env);
+}
+
+/** An ingest worker (server/worker.ts) as its own process against the given database; `url` and `brokerPort` are empty. */
+export async function startWorkerProcess(database: string, env: Record<string, string>): Promise<ServerProcess> {
+  return startProcess(workerMain, 'Brightward worker ready', database, env);
+}
+
+async function startProcess(entry: string, readyMsg: string, database: string, env: Record<string, string>): Promise<ServerProcess> {
+  const proc = spawn(process.execPath, ['--import', 'tsx', entry], {
     env: {
       ...process.env,
       BW_DB_NAME: database,
@@ -50,16 +63,16 @@ export async function startServerProcess(database: string, env: Record<string, s
         const m = JSON.parse(line) as { msg?: string; url?: string; brokerPort?: number };
         logs.push(m);
         for (const w of logWaiters) w();
-        if (m.msg === 'Brightward server ready' && m.url && m.brokerPort) res({ url: m.url, brokerPort: m.brokerPort });
+        if (m.msg === readyMsg) res({ url: m.url ?? '', brokerPort: m.brokerPort ?? 0 });
       } catch {
         /* not a log line */
       }
     });
   });
-  const waitForLog = (msg: string, timeoutMs: number) =>
+  const waitForLog = (msg: string, timeoutMs: number, match: (line: Record<string, unknown>) => boolean = () => true) =>
     new Promise<Record<string, unknown>>((res, rej) => {
       const look = () => {
-        const hit = logs.find((l) => l['msg'] === msg);
+        const hit = logs.find((l) => l['msg'] === msg && match(l));
         if (!hit) return;
         logWaiters.delete(look);
         clearTimeout(timer);
