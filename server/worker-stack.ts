@@ -155,7 +155,12 @@ export async function startWorker(config: Config, log: Logger, opts: WorkerOptio
   };
   for (const p of opts.partitions) await lead(p);
   const standbyTimer = setTimeout(() => {
-    for (const p of opts.standby) if (!leads.has(p)) void lead(p).catch((err) => log.error({ err, partition: p }, 'standby failed'));
+    for (const p of opts.standby)
+      if (!leads.has(p))
+        void lead(p).then(
+          () => log.info({ partition: p, taking: taking.has(p) }, 'standing by for partition'),
+          (err) => log.error({ err, partition: p }, 'standby failed'),
+        );
   }, opts.standbyDelayMs ?? 3000);
   standbyTimer.unref();
 

@@ -31,6 +31,11 @@ async function main(): Promise<void> {
     console.error('Invalid configuration:\n  BW_WORKER_PARTITIONS: the partitions this worker takes (such as 0), or BW_WORKER_STANDBY');
     process.exit(2);
   }
+  const standbyDelay = process.env['BW_WORKER_STANDBY_DELAY_MS'];
+  if (standbyDelay !== undefined && !/^\d+$/.test(standbyDelay)) {
+    console.error(`Invalid configuration:\n  BW_WORKER_STANDBY_DELAY_MS: a whole number of milliseconds (not ${standbyDelay})`);
+    process.exit(2);
+  }
   const ackWait = process.env['BW_WORKER_ACK_WAIT_MS'];
   if (ackWait !== undefined && !(/^\d+$/.test(ackWait) && Number(ackWait) >= 1000)) {
     console.error(`Invalid configuration:\n  BW_WORKER_ACK_WAIT_MS: a whole number of milliseconds, at least 1000 (not ${ackWait})`);
@@ -42,6 +47,7 @@ async function main(): Promise<void> {
     worker = await startWorker(config, log, {
       partitions,
       standby,
+      ...(standbyDelay !== undefined ? { standbyDelayMs: Number(standbyDelay) } : {}),
       ...(ackWait !== undefined ? { consumer: { ackWaitMs: Number(ackWait) } } : {}),
     });
   } catch (err) {

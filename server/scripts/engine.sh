@@ -65,6 +65,9 @@ start() {
     done
     running "$i" || { say "node $i did not start; last lines of $DIR/n$i.log:"; tail -20 "$DIR/n$i.log" >&2 || true; exit 1; }
   done
+  # The readings stream exists before any unit publishes, so nothing is acknowledged to no one.
+  BW_ENGINE_URLS=${BW_ENGINE_URLS:-nats://127.0.0.1:$PORT} BW_ENGINE_REPLICAS=${BW_ENGINE_REPLICAS:-$(( NODES < 3 ? NODES : 3 ))} \
+    node --import tsx server/scripts/engine-stream.ts
   say "$NODES node(s) ready: clients 127.0.0.1:$PORT, MQTT 127.0.0.1:$MQTT_PORT (data $DIR)"
 }
 

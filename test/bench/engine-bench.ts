@@ -3,8 +3,8 @@
  *
  * The message engine alone (one NATS 2.9 node with JetStream and its MQTT gateway, started by server/scripts/engine.sh
  * in a temporary folder): units on raw sockets publish QoS 1 telemetry from separate processes at a rising rate; the
- * engine re-publishes each below its site's worker partition, where one MQTT subscriber per partition (QoS 1, the
- * service user) takes it. Per step: delivered messages/s, publish → PUBACK lag (the unit's wait), and the engine's CPU
+ * engine re-publishes each below its site's worker partition into the readings stream, from which one pull consumer per
+ * partition takes it as a worker does (server/consumers/engine-consumer.ts) and acknowledges it at once (no database). Per step: delivered messages/s, publish → PUBACK lag (the unit's wait), and the engine's CPU
  * per delivered message (from /proc, user + system). A step is sustained when delivery keeps up with the offered rate.
  * No database: the bench writes the engine's users itself (every unit with the same bench secret).
  */
@@ -16,8 +16,9 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs, promisify } from 'node:util';
 import bcrypt from 'bcryptjs';
-import mqtt from 'mqtt';
-import { natsAuthorization, partitionFilter } from '../../broker/nats-auth';
+import { pino } from 'pino';
+import { natsAuthorization } from '../../broker/nats-auth';
+import { EngineConsumer } from '../../server/consumers/engine-consumer';
 import { engineSecretHash } from '../../server/services/device-secret';
 
 const { values: args } = parseArgs({
@@ -61,10 +62,11 @@ const cpuSecondsOf = (pid: number) => {
 async function main() {
   const dir = mkdtempSync(join(tmpdir(), 'bw-engine-bench-'));
   const mqttPort = await freePort();
+  const natsPort = await freePort();
   const env = {
     ...process.env,
     BW_ENGINE_DIR: dir,
-    BW_ENGINE_PORT: String(await freePort()),
+    BW_ENGINE_PORT: String(natsPort),
     BW_ENGINE_MQTT_PORT: String(mqttPort),
     BW_ENGINE_PASSWORD: SERVICE_PASSWORD,
     BW_ENGINE_USERS_WRITTEN: '1',
@@ -80,19 +82,21 @@ async function main() {
   const engine = (cmd: string) => promisify(execFile)('bash', ['server/scripts/engine.sh', cmd], { env });
   await engine('start');
   const children: ChildProcess[] = [];
+  let closeConsumer = async () => undefined as void;
   try {
     const pid = Number(readFileSync(join(dir, 'n1.pid'), 'utf8'));
     let delivered = 0;
-    for (let p = 0; p < PARTITIONS; p++) {
-      const sub = await mqtt.connectAsync(`mqtt://127.0.0.1:${mqttPort}`, {
-        clientId: `bench-partition-${p}`,
-        username: 'bw-service',
-        password: SERVICE_PASSWORD,
-        reconnectPeriod: 0,
-      });
-      sub.on('message', () => delivered++);
-      await sub.subscribeAsync(partitionFilter(p), { qos: 1 });
-    }
+    const consumer = new EngineConsumer(
+      (_serial, _leaf, _payload, ack) => {
+        delivered++;
+        ack();
+      },
+      pino({ level: 'silent' }),
+      { urls: [`nats://127.0.0.1:${natsPort}`], user: 'bw-service', password: SERVICE_PASSWORD },
+    );
+    await consumer.open();
+    for (let p = 0; p < PARTITIONS; p++) await consumer.start(p);
+    closeConsumer = () => consumer.close();
     const counts: { published: number; acked: number; lags?: (l: number[]) => void }[] = [];
     const script = fileURLToPath(new URL('./unit-load.ts', import.meta.url));
     say(`connecting ${UNITS} units from ${PROCS} processes…`);
@@ -156,7 +160,7 @@ async function main() {
     const published = counts.reduce((s, c) => s + c.published, 0);
     const acked = counts.reduce((s, c) => s + c.acked, 0);
     const result = {
-      engine: 'nats-2.9-mqtt',
+      engine: 'nats-2.9-mqtt-jetstream',
       engineNodes: 1,
       units: UNITS,
       partitions: PARTITIONS,
@@ -170,6 +174,7 @@ async function main() {
     console.log(args.json ? JSON.stringify(result) : result);
   } finally {
     for (const c of children) c.kill('SIGTERM');
+    await closeConsumer().catch(() => undefined);
     await engine('stop').catch(() => undefined);
     rmSync(dir, { recursive: true, force: true });
   }
