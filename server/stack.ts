@@ -201,7 +201,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const healthOpts: HealthServiceOptions = { ...DEFAULT_HEALTH_SERVICE_OPTIONS, ...opts.health };
   const alarmRepo = new AlarmRepository(db);
   const healthReads = new HealthReadRepository(db);
-  const healthSettings = new HealthSettingsService(new HealthSettingsRepository(db), admin, log, healthOpts.now);
+  const healthSettings = new HealthSettingsService(new HealthSettingsRepository(db), admin, log, healthOpts.now, audit);
   const siteModels = new SiteModelCache(siteModel, log, healthOpts);
   const health = new HealthService(new AlarmStore(alarmRepo, directory, live, log), siteModels, healthSettings, live, log, healthOpts);
   let commands: CommandService | undefined;

@@ -14,6 +14,8 @@ export const PERMISSIONS = {
   commandMotion: ['admin', 'engineer', 'technician'],
   acknowledgeAlarms: ['technician', 'engineer', 'admin'],
   editHealthSettings: ['engineer', 'admin'],
+  /** The health settings screen: every threshold with its range and the history of changes (who, when, why). */
+  readHealthSettings: ['engineer', 'technician', 'admin'],
   /** Run the detectors on demand over stored data. */
   runDetectors: ['engineer', 'technician', 'admin'],
   editSurvey: ['admin', 'engineer'],

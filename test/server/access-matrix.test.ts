@@ -171,8 +171,9 @@ const ROUTES: Row[] = [
   row('POST /api/alarms/:id/acknowledge',          (w, s) => ({ path: `/api/alarms/${w[s].alarmId}/acknowledge`, body: {} }),             401, 200, 200, 200, 403, 403),
   row('GET /api/units/:id/scans/latest',           (w, s) => `/api/units/${unit(w, s)}/scans/latest`,                                     401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/health-settings',        (w, s) => `/api/sites/${w[s].siteId}/health-settings`,                                401, 200, 200, 200, 200, mine(200)),
-  row('PUT /api/sites/:id/health-settings',        (w, s) => ({ path: `/api/sites/${w[s].siteId}/health-settings`, body: { stowGustMs: 17 } }),
+  row('PUT /api/sites/:id/health-settings',        (w, s) => ({ path: `/api/sites/${w[s].siteId}/health-settings`, body: { stowGustMs: 17, reason: 'matrix' } }),
                                                                                                                                           401, 200, 200, 403, 403, 403),
+  row('GET /api/sites/:id/health-settings/history', (w, s) => `/api/sites/${w[s].siteId}/health-settings/history?limit=5`,               401, 200, 200, 200, 403, 403),
   row('POST /api/detectors/run',                   (w, s) => ({ path: '/api/detectors/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z', unitIds: [unit(w, s)] } }),
                                                                                                                                           401, 200, 200, 200, 403, 403),
   // The detectors' run under its old name: a permanent redirect for everyone signed in (the new path checks the role).
