@@ -94,6 +94,26 @@ export interface ScanResult {
   goto: { kind: 'goto'; tiltDeg: number; azimuthDeg: number };
 }
 
+/** `POST /api/detectors/run`: a range of at most 48 h and, optionally, the units (default every unit the caller sees). */
+export interface DetectorRunRequest {
+  from: string;
+  to: string;
+  unitIds?: number[];
+}
+
+/** What the detectors would raise over stored telemetry of the range, beside the alarms stored for it. */
+export interface DetectorRunResult {
+  from: string;
+  to: string;
+  units: number;
+  /** Telemetry reports read. */
+  reports: number;
+  /** The run's alarms (negative ids: nothing is stored). */
+  alarms: AlarmView[];
+  /** Stored alarms of those units (and site-wide alarms of their sites) open at some time in the range, oldest first. */
+  stored: AlarmView[];
+}
+
 /** The longest reason a health-settings change may carry. */
 export const HEALTH_SETTINGS_REASON_MAX = 500;
 

@@ -19,6 +19,8 @@ export const PERMISSIONS = {
   /** Run the detectors on demand over stored data. */
   runDetectors: ['engineer', 'technician', 'admin'],
   editSurvey: ['admin', 'engineer'],
+  /** Work out the detector tilt a site needs and send it to all the site's units. */
+  tuneDetectors: ['engineer', 'admin'],
   /** Ingest, broker and rollup counters. */
   readMetrics: ['admin', 'engineer', 'technician'],
   /** Traces and their raw CSV export. */
