@@ -8,6 +8,7 @@ import type {
 } from '../../shared/contracts/detector-tilt';
 import {
   dayDetectorTilt,
+  mergeDayDetectorTilts,
   recommendDetectorTilt,
   worstDay,
   type DayDetectorTilt,
@@ -129,16 +130,25 @@ export class DetectorTiltService {
     const days: DayDetectorTilt[] = [];
     for (let month = 1; month <= 12; month++) {
       const date = `${year}-${String(month).padStart(2, '0')}-${CANDIDATE_DAY}`;
-      days.push(dayDetectorTilt(await this.daySkies(site, date, COARSE.everyMs), { stepDeg: COARSE.stepDeg }));
-      await new Promise((r) => setImmediate(r)); // other requests get a turn between days
+      days.push(await this.judgeDay(await this.daySkies(site, date, COARSE.everyMs), COARSE.stepDeg));
     }
     const coarseWorst = worstDay(days);
     const worst =
       coarseWorst && coarseWorst.instants > 0
-        ? dayDetectorTilt(await this.daySkies(site, coarseWorst.date, FINE.everyMs), { stepDeg: FINE.stepDeg })
+        ? await this.judgeDay(await this.daySkies(site, coarseWorst.date, FINE.everyMs), FINE.stepDeg)
         : undefined;
     this.log.debug({ siteId: site.id, year, ms: Date.now() - started }, 'detector tilt of a year judged');
     return { days, worst };
+  }
+
+  /** A day judged one instant at a time (tens to a hundred ms each), giving other requests a turn in between. */
+  private async judgeDay(day: DaySkies, stepDeg: number): Promise<DayDetectorTilt> {
+    const parts: DayDetectorTilt[] = [];
+    for (const instant of day.instants) {
+      parts.push(dayDetectorTilt({ date: day.date, instants: [instant] }, { stepDeg }));
+      await new Promise((r) => setImmediate(r));
+    }
+    return mergeDayDetectorTilts(day.date, parts);
   }
 
   /** The clear-sky skies of a local date while the sun is up, every `everyMs`. */

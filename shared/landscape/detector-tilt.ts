@@ -80,6 +80,35 @@ export function dayDetectorTilt(day: DaySkies, options: DayDetectorTiltOptions =
   };
 }
 
+/**
+ * One day's result from results over parts of it (the same day judged a few instants at a time, so a caller can give
+ * other work a turn in between): the largest tilt, at its instant (the earliest of equals), counts added up.
+ */
+export function mergeDayDetectorTilts(date: string, parts: readonly DayDetectorTilt[]): DayDetectorTilt {
+  let out: DayDetectorTilt = {
+    date,
+    instants: 0,
+    singlePeakDetectorTiltDeg: null,
+    worstAtMs: null,
+    instantsWithoutSinglePeak: 0,
+    maxPeaks: 0,
+  };
+  for (const p of parts) {
+    const larger =
+      p.singlePeakDetectorTiltDeg !== null &&
+      (out.singlePeakDetectorTiltDeg === null || p.singlePeakDetectorTiltDeg > out.singlePeakDetectorTiltDeg);
+    out = {
+      date,
+      instants: out.instants + p.instants,
+      singlePeakDetectorTiltDeg: larger ? p.singlePeakDetectorTiltDeg : out.singlePeakDetectorTiltDeg,
+      worstAtMs: larger ? p.worstAtMs : out.worstAtMs,
+      instantsWithoutSinglePeak: out.instantsWithoutSinglePeak + p.instantsWithoutSinglePeak,
+      maxPeaks: Math.max(out.maxPeaks, p.maxPeaks),
+    };
+  }
+  return out;
+}
+
 /** How hard a day is: instants without any single-peak tilt first, then the largest tilt; a dark day asks nothing. */
 function severity(d: DayDetectorTilt): [number, number] {
   return [d.instantsWithoutSinglePeak, d.singlePeakDetectorTiltDeg ?? (d.instants ? 0 : -1)];

@@ -1,6 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { analyseLandscape, buildSky } from '../../shared/landscape/index';
-import { dayDetectorTilt, recommendDetectorTilt, worstDay, type DayDetectorTilt } from '../../shared/landscape/detector-tilt';
+import {
+  dayDetectorTilt,
+  mergeDayDetectorTilts,
+  recommendDetectorTilt,
+  worstDay,
+  type DayDetectorTilt,
+} from '../../shared/landscape/detector-tilt';
 import { testSkies } from './test-skies';
 
 const facade = buildSky(testSkies['clear sky with a glass facade reflecting the sun']!);
@@ -31,6 +37,19 @@ describe('dayDetectorTilt: the largest single-peak detector tilt over a day', ()
     expect(d.worstAtMs).toBe([at(8), at(10), at(12)][values.indexOf(Math.max(...values))]);
     expect(d).toMatchObject({ date: '2026-06-21', instants: 3, instantsWithoutSinglePeak: 0 });
     expect(d.maxPeaks).toBeGreaterThanOrEqual(2);
+  });
+
+  it('gives the same day judged an instant at a time and merged as judged at once', () => {
+    const instants = [
+      { atMs: at(8), sky: overcast },
+      { atMs: at(10), sky: facade },
+      { atMs: at(12), sky: twoFacades },
+      { atMs: at(14), sky: facade },
+    ];
+    const whole = dayDetectorTilt({ date: '2026-06-21', instants }, { stepDeg: 5, maxDetectorTiltDeg: 12 });
+    const parts = instants.map((i) => dayDetectorTilt({ date: '2026-06-21', instants: [i] }, { stepDeg: 5, maxDetectorTiltDeg: 12 }));
+    expect(mergeDayDetectorTilts('2026-06-21', parts)).toEqual(whole);
+    expect(whole.instants).toBe(4);
   });
 
   it('counts instants that no tilt up to the maximum makes single-peaked, and a dark day judges nothing', () => {
