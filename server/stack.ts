@@ -400,7 +400,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
         replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings, alarmRepo),
       }),
       auditRoutes(auditLog),
-      detectorTiltRoutes(admin, new DetectorTiltService(admin, siteModel, () => commands!, auditLog, log)),
+      detectorTiltRoutes(admin, new DetectorTiltService(admin, siteModel, () => commands!, auditLog, healthSettings, log)),
       ticketRoutes(tickets, alarmService, auditLog),
       ticketFileRoutes(ticketFiles),
       demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),

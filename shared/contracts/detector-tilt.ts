@@ -10,9 +10,11 @@ export interface DetectorTiltDay {
   date: string;
   /** Daylight instants judged. */
   instants: number;
+  /** Daylight instants left out: the modelled best below the site's trap threshold (traps are not judged then). */
+  instantsTooDim: number;
   /** The largest single-peak detector tilt over the day [°]; null when no instant has one (or the day is dark). */
   singlePeakDetectorTiltDeg: number | null;
-  /** Instants where no detector tilt up to 30° leaves a single peak. */
+  /** Instants where no detector tilt up to `maxDetectorTiltDeg` leaves a single peak. */
   instantsWithoutSinglePeak: number;
   /** The most maxima the raw landscape had at any instant of the day. */
   maxPeaks: number;
@@ -22,6 +24,10 @@ export interface DetectorTiltRecommendation {
   siteId: number;
   year: number;
   marginDeg: number;
+  /** Instants are judged only when the modelled best reaches this [W/m²] (the site's health setting for traps). */
+  minBestWm2: number;
+  /** The steepest detector tilt the search tried (what units take) [°]. */
+  maxDetectorTiltDeg: number;
   /** How the year was judged, in words (which days, how often, which model). */
   basis: string;
   /** The candidate days (coarse pass), in date order. */

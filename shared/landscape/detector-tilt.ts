@@ -10,7 +10,7 @@
  */
 import { WIRE_RANGES } from '../contracts/wire-format';
 import type { Sky } from '../sky-radiance/sky';
-import { analyseLandscape } from './index';
+import { analyseLandscape, computeLandscape } from './index';
 
 /** Margin added to the worst day's single-peak detector tilt [°] (covers the search's 0.5° grid and survey error). */
 export const DETECTOR_TILT_MARGIN_DEG = 2;
@@ -19,7 +19,7 @@ const GRID_DEG = 0.5;
 
 export interface DaySkies {
   date: string;
-  /** The skies of the day's instants to judge (daylight only; a day without any is dark). */
+  /** The skies of the day's instants to judge (a day without any, or with all too dim, is dark). */
   instants: { atMs: number; sky: Sky }[];
 }
 
@@ -32,12 +32,20 @@ export interface DayDetectorTiltOptions {
   tiltRangeDeg?: readonly [number, number];
   /** Reachable azimuth range [°], default the full circle. */
   azimuthRangeDeg?: readonly [number, number];
+  /**
+   * Instants whose modelled best (the landscape's maximum) is below this [W/m²] are not judged; default 0. Traps are
+   * only judged in enough light (the health setting `trapMinBestWm2`), and at dawn a bump of a few W/m² counts as a
+   * peak that no detector tilt removes, though no unit loses anything worth a visit on it.
+   */
+  minBestWm2?: number;
 }
 
 export interface DayDetectorTilt {
   date: string;
   /** Instants judged. */
   instants: number;
+  /** Instants left out because their modelled best was below `minBestWm2`. */
+  instantsTooDim: number;
   /** The largest single-peak detector tilt over the instants that have one [°]; null when none has (or none was judged). */
   singlePeakDetectorTiltDeg: number | null;
   /** The instant that needed it. */
@@ -56,13 +64,24 @@ export function dayDetectorTilt(day: DaySkies, options: DayDetectorTiltOptions =
   let worstAtMs: number | null = null;
   let without = 0;
   let maxPeaks = 0;
+  let judged = 0;
+  let tooDim = 0;
+  const range = {
+    ...(options.tiltRangeDeg ? { tiltRangeDeg: options.tiltRangeDeg } : {}),
+    ...(options.azimuthRangeDeg ? { azimuthRangeDeg: options.azimuthRangeDeg } : {}),
+  };
   for (const { atMs, sky } of day.instants) {
-    const r = analyseLandscape(sky, {
-      stepDeg,
-      maxDetectorTiltDeg,
-      ...(options.tiltRangeDeg ? { tiltRangeDeg: options.tiltRangeDeg } : {}),
-      ...(options.azimuthRangeDeg ? { azimuthRangeDeg: options.azimuthRangeDeg } : {}),
-    });
+    if (options.minBestWm2 && options.minBestWm2 > 0) {
+      const raw = computeLandscape(sky, { stepDeg, ...range });
+      let best = 0;
+      for (const v of raw.values) if (v > best) best = v;
+      if (best < options.minBestWm2) {
+        tooDim++;
+        continue;
+      }
+    }
+    judged++;
+    const r = analyseLandscape(sky, { stepDeg, maxDetectorTiltDeg, ...range });
     maxPeaks = Math.max(maxPeaks, r.localMaxima.length);
     if (r.minSinglePeakDetectorTiltDeg === null) without++;
     else if (worst === null || r.minSinglePeakDetectorTiltDeg > worst) {
@@ -72,7 +91,8 @@ export function dayDetectorTilt(day: DaySkies, options: DayDetectorTiltOptions =
   }
   return {
     date: day.date,
-    instants: day.instants.length,
+    instants: judged,
+    instantsTooDim: tooDim,
     singlePeakDetectorTiltDeg: worst,
     worstAtMs,
     instantsWithoutSinglePeak: without,
@@ -88,6 +108,7 @@ export function mergeDayDetectorTilts(date: string, parts: readonly DayDetectorT
   let out: DayDetectorTilt = {
     date,
     instants: 0,
+    instantsTooDim: 0,
     singlePeakDetectorTiltDeg: null,
     worstAtMs: null,
     instantsWithoutSinglePeak: 0,
@@ -100,6 +121,7 @@ export function mergeDayDetectorTilts(date: string, parts: readonly DayDetectorT
     out = {
       date,
       instants: out.instants + p.instants,
+      instantsTooDim: out.instantsTooDim + p.instantsTooDim,
       singlePeakDetectorTiltDeg: larger ? p.singlePeakDetectorTiltDeg : out.singlePeakDetectorTiltDeg,
       worstAtMs: larger ? p.worstAtMs : out.worstAtMs,
       instantsWithoutSinglePeak: out.instantsWithoutSinglePeak + p.instantsWithoutSinglePeak,

@@ -39,6 +39,21 @@ describe('dayDetectorTilt: the largest single-peak detector tilt over a day', ()
     expect(d.maxPeaks).toBeGreaterThanOrEqual(2);
   });
 
+  it('leaves out instants too dim to judge traps in (their modelled best below minBestWm2)', () => {
+    // The overcast test sky's best is about its 150 W/m² of diffuse light; the facade sky's is well above 700 W/m².
+    const instants = [
+      { atMs: at(8), sky: overcast },
+      { atMs: at(10), sky: facade },
+    ];
+    const all = dayDetectorTilt({ date: '2026-06-21', instants }, { stepDeg: 5 });
+    const bright = dayDetectorTilt({ date: '2026-06-21', instants }, { stepDeg: 5, minBestWm2: 400 });
+    expect(all).toMatchObject({ instants: 2, instantsTooDim: 0 });
+    expect(bright).toMatchObject({ instants: 1, instantsTooDim: 1, worstAtMs: at(10) });
+    expect(bright.singlePeakDetectorTiltDeg).toBe(all.singlePeakDetectorTiltDeg);
+    const dim = dayDetectorTilt({ date: '2026-06-21', instants }, { stepDeg: 5, minBestWm2: 5000 });
+    expect(dim).toMatchObject({ instants: 0, instantsTooDim: 2, singlePeakDetectorTiltDeg: null });
+  });
+
   it('gives the same day judged an instant at a time and merged as judged at once', () => {
     const instants = [
       { atMs: at(8), sky: overcast },
@@ -58,6 +73,7 @@ describe('dayDetectorTilt: the largest single-peak detector tilt over a day', ()
     expect(dayDetectorTilt({ date: '2026-12-21', instants: [] })).toEqual({
       date: '2026-12-21',
       instants: 0,
+      instantsTooDim: 0,
       singlePeakDetectorTiltDeg: null,
       worstAtMs: null,
       instantsWithoutSinglePeak: 0,
@@ -69,6 +85,7 @@ describe('dayDetectorTilt: the largest single-peak detector tilt over a day', ()
 const day = (date: string, tilt: number | null, without = 0, instants = 10): DayDetectorTilt => ({
   date,
   instants,
+  instantsTooDim: 0,
   singlePeakDetectorTiltDeg: tilt,
   worstAtMs: null,
   instantsWithoutSinglePeak: without,

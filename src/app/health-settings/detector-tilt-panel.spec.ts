@@ -73,6 +73,7 @@ describe('DetectorTiltPanel', () => {
       ['2026-12-21 (worst)', '8', '3', '14.5°'],
     ]);
     expect(el.querySelector('[data-testid="tilt-unit-QHL-2403"]')!.textContent).toContain('disabled');
+    expect(el.querySelector('[data-testid="tilt-lower"]')).toBeNull(); // every unit is set up with 6°, below 16.5°
     const send = el.querySelector('[data-testid="tilt-apply"]') as HTMLButtonElement;
     expect(send.textContent).toContain('Send 16.5° to 2 units');
     send.click();
@@ -101,8 +102,16 @@ describe('DetectorTiltPanel', () => {
       worstDay: { ...tiltRecommendation().worstDay!, singlePeakDetectorTiltDeg: null, instantsWithoutSinglePeak: 3 },
     });
     const { el } = await render({ recommendation: rec });
-    expect(el.querySelector('[data-testid="tilt-none"]')!.textContent).toContain('plan periodic scans');
+    expect(el.querySelector('[data-testid="tilt-none"]')!.textContent).toContain('No detector tilt up to 45°');
+    expect(el.querySelector('[data-testid="tilt-none"]')!.textContent).toContain('Plan periodic scans');
     expect(el.querySelector('[data-testid="tilt-apply"]')).toBeNull();
+  });
+
+  it('says when sending the recommendation lowers the tilt of units set up steeper', async () => {
+    const rec = tiltRecommendation({ recommendedDetectorTiltDeg: 10 });
+    rec.units[0]!.detectorTiltDeg = 20;
+    const { el } = await render({ recommendation: rec });
+    expect(el.querySelector('[data-testid="tilt-lower"]')!.textContent).toContain('1 unit is set up with a steeper tilt');
   });
 
   it('offers no sending to someone who may not', async () => {

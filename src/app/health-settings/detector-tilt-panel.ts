@@ -67,16 +67,24 @@ export function applySummary(units: readonly Pick<ApplyDetectorTiltUnit, 'status
           @if (r.worstDay; as w) {
             <p data-testid="tilt-why">
               The worst day, {{ w.date }}, needs {{ w.singlePeakDetectorTiltDeg ?? 0.5 }}° for one peak at every instant; plus the margin of
-              {{ r.marginDeg }}°{{ r.capped ? ', cut to the 45° units take' : '' }}.
+              {{ r.marginDeg }}°{{ r.capped ? ', cut to the ' + r.maxDetectorTiltDeg + '° units take' : '' }}.
+            </p>
+          }
+          @if (steeperUnits(); as n) {
+            <p class="quiet" data-testid="tilt-lower">
+              {{ n }} unit{{ n === 1 ? ' is' : 's are' }} set up with a steeper tilt. One peak needs no more than this, and a smaller tilt
+              sees the sky more finely; keep the steeper tilt where units track well.
             </p>
           }
         } @else if (r.worstDay) {
           <div class="notice caution" role="note" data-testid="tilt-none">
             <mat-icon aria-hidden="true">warning</mat-icon>
             <p>
-              No detector tilt up to 30° leaves one peak on {{ r.worstDay.date }} ({{ r.worstDay.instantsWithoutSinglePeak }} of
-              {{ r.worstDay.instants }} instants). A steeper tilt will not help: plan periodic scans so units find the brightest
-              orientation.
+              No detector tilt up to {{ r.maxDetectorTiltDeg }}° (the steepest units take) leaves one peak on {{ r.worstDay.date }} ({{
+                r.worstDay.instantsWithoutSinglePeak
+              }}
+              of {{ r.worstDay.instants }} instants in enough light): a second bright spot, such as a facade's reflection, lies too far from
+              the first for the detectors to merge them. Plan periodic scans so units find the brightest orientation.
             </p>
           </div>
         } @else {
@@ -103,7 +111,7 @@ export function applySummary(units: readonly Pick<ApplyDetectorTiltUnit, 'status
                   <td>
                     {{
                       d.instantsWithoutSinglePeak
-                        ? 'none up to 30°'
+                        ? 'none up to ' + r.maxDetectorTiltDeg + '°'
                         : d.singlePeakDetectorTiltDeg === null
                           ? 'dark'
                           : d.singlePeakDetectorTiltDeg + '°'
@@ -222,6 +230,12 @@ export class DetectorTiltPanel {
   protected readonly rows = computed(() => {
     const byUnit = new Map((this.applied() ?? []).map((u) => [u.unitId, u]));
     return (this.recommendation()?.units ?? []).map((u) => ({ ...u, result: byUnit.get(u.id) ?? null }));
+  });
+  /** Enabled units set up with a steeper tilt than the recommendation (sending it lowers theirs). */
+  protected readonly steeperUnits = computed(() => {
+    const r = this.recommendation();
+    const rec = r?.recommendedDetectorTiltDeg;
+    return rec === null || rec === undefined ? 0 : r!.units.filter((u) => !u.disabled && u.detectorTiltDeg > rec).length;
   });
   protected readonly enabledUnits = computed(() => (this.recommendation()?.units ?? []).filter((u) => !u.disabled).length);
   protected readonly summary = computed(() => applySummary(this.applied() ?? []));
