@@ -23,6 +23,12 @@ export function unitText(unit: string): string {
   return unit === '(fraction)' ? 'share 0–1' : unit;
 }
 
+/** "5–35 m/s", "0–30°", "0.5–0.99 share 0–1". */
+export function rangeText(row: Pick<SettingRow, 'min' | 'max' | 'unit'>): string {
+  const unit = unitText(row.unit);
+  return `${row.min}–${row.max}${unit === '°' ? '°' : ` ${unit}`}`;
+}
+
 /** "16 m/s", "0.85 (share 0–1)", "3 units". */
 export function valueText(value: number | null, unit: string): string {
   if (value === null) return '—';

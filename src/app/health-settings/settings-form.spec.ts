@@ -1,6 +1,6 @@
 import { TestBed } from '@angular/core/testing';
 import { siteSettings } from '../testing/health-settings-fixtures';
-import { overridesOf, settingRows, valueProblem } from './setting-rows';
+import { overridesOf, rangeText, settingRows, valueProblem } from './setting-rows';
 import { SettingsForm, type SettingsSave } from './settings-form';
 
 async function render(canEdit: boolean, overrides: Record<string, number> = {}, fieldErrors: Record<string, string> = {}) {
@@ -35,6 +35,11 @@ describe('setting rows', () => {
     expect(rows[1]!.integer).toBe(true);
   });
 
+  it('writes ranges with their unit, degrees without a space', () => {
+    expect(rangeText({ min: 0, max: 30, unit: '°' })).toBe('0–30°');
+    expect(rangeText({ min: 5, max: 35, unit: 'm/s' })).toBe('5–35 m/s');
+  });
+
   it('checks a typed value as the server does, and keeps only values that differ from their default', () => {
     const rows = settingRows(siteSettings());
     const [trap, many, gust] = rows as [(typeof rows)[0], (typeof rows)[0], (typeof rows)[0]];
@@ -58,7 +63,7 @@ describe('SettingsForm', () => {
     expect(gust).toContain('Site value; default 18 m/s · allowed 5–35 m/s');
     expect(gust).toContain('the manufacturer’s limit governs');
     expect(el.querySelector('[data-testid="setting-trapRatio"]')!.textContent).toContain('Default 0.85 · allowed 0.5–0.99 share 0–1');
-    expect(el.querySelector('[data-testid="setting-trapManyUnits"]')!.textContent).toContain('whole numbers');
+    expect(el.querySelector('[data-testid="setting-trapManyUnits"]')!.textContent).toContain('allowed 1–500 units, whole numbers');
   });
 
   it('lets an engineer save only valid changes with a reason, and sends the overrides that differ from the defaults', async () => {

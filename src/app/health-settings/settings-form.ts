@@ -4,7 +4,7 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { HEALTH_SETTINGS_REASON_MAX, type SiteHealthSettings } from '../../../shared/contracts/alarms';
-import { overridesOf, sameOverrides, settingRows, unitText, valueProblem, valueText, type SettingRow } from './setting-rows';
+import { overridesOf, rangeText, sameOverrides, settingRows, valueProblem, valueText, type SettingRow } from './setting-rows';
 
 /** What the viewer asked to save. */
 export interface SettingsSave {
@@ -37,7 +37,7 @@ export interface SettingsSave {
             <li [attr.data-testid]="'setting-' + row.key" [class.changed]="isChanged(row)">
               <div class="words">
                 <span class="label">{{ row.label }}</span>
-                <span class="why">{{ row.why }}</span>
+                <span class="about">{{ row.why }}</span>
               </div>
               <div class="value">
                 @if (canEdit()) {
@@ -69,7 +69,7 @@ export interface SettingsSave {
                 }
                 <span class="quiet" [id]="'range-' + row.key">
                   {{ row.override === null ? 'Default' : 'Site value; default' }} {{ valueText(row.defaultValue, row.unit) }} · allowed
-                  {{ row.min }}–{{ row.max }} {{ unitText(row.unit) }}{{ row.integer ? ', whole numbers' : '' }}
+                  {{ rangeText(row) }}{{ row.integer ? ', whole numbers' : '' }}
                 </span>
                 @if (canEdit() && draftValue(row) !== row.defaultValue) {
                   <button mat-button type="button" class="use-default" (click)="edit(row.key, '' + row.defaultValue)">
@@ -138,6 +138,10 @@ export interface SettingsSave {
       .label {
         font: var(--mat-sys-title-small);
       }
+      .about {
+        font: var(--mat-sys-body-small);
+        color: var(--mat-sys-on-surface-variant);
+      }
       .value {
         flex: 1 1 260px;
         display: flex;
@@ -195,7 +199,7 @@ export class SettingsForm {
 
   protected readonly reasonMax = HEALTH_SETTINGS_REASON_MAX;
   protected readonly valueText = valueText;
-  protected readonly unitText = unitText;
+  protected readonly rangeText = rangeText;
   protected readonly rows = computed(() => settingRows(this.settings()));
   protected readonly groups = computed(() => {
     const out: { name: string; rows: SettingRow[] }[] = [];

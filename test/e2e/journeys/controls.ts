@@ -26,7 +26,8 @@ export const controlsJourney: Journey = {
         text.includes('Ravi Lindqvist') && text.includes('Stow above gust: default (18 m/s) → 16 m/s'),
         `history entry (${text.slice(0, 160)})`,
       );
-      await page.screenshot({ path: join(output, 'health-settings.png'), fullPage: true, animations: 'disabled' });
+      await page.getByRole('heading', { name: 'Health settings', level: 1 }).scrollIntoViewIfNeeded();
+      await page.screenshot({ path: join(output, 'health-settings.png'), animations: 'disabled' });
     });
 
     await check('putting the threshold back to its default is one more entry', async () => {
