@@ -31,6 +31,7 @@ export const ACTION_LOOKS: Readonly<Record<string, ActionLook>> = {
   'hold-release': { label: 'Released a maintenance hold', icon: 'play_circle' },
   'alarm-acknowledge': { label: 'Acknowledged an alarm', icon: 'done_all' },
   'health-settings-update': { label: 'Changed health settings', icon: 'tune' },
+  'detector-tilt-apply': { label: "Sent a detector tilt to a site's units", icon: 'settings_input_antenna' },
   'trace-export': { label: 'Exported traces as CSV', icon: 'download' },
   'statement-export': { label: 'Exported a monthly statement as CSV', icon: 'download' },
 };
@@ -74,7 +75,10 @@ export function detailText(entry: AuditLogEntry, time: (iso: string) => string):
   const d = entry.detail;
   if (d === null || d === undefined) return '';
   if (!isRecord(d)) return show(d);
-  if (isRecord(d['before']) && isRecord(d['after'])) return changes(d['before'], d['after']);
+  if (isRecord(d['before']) && isRecord(d['after'])) {
+    const why = typeof d['reason'] === 'string' && d['reason'] ? ` — why: ${d['reason']}` : '';
+    return changes(d['before'], d['after']) + why;
+  }
   if (entry.action === 'trace-export' && typeof d['from'] === 'string' && typeof d['to'] === 'string') {
     return `${time(d['from'])} to ${time(d['to'])}`;
   }
