@@ -304,7 +304,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
         ),
       ),
     log,
-    opts.commands,
+    { onConfigured: (unitId, config, by, commandId) => admin.recordConfigured(unitId, config, by, commandId), ...opts.commands },
   );
   const ticketRepo = new TicketRepository(db);
   const ticketFiles = new TicketFileService(

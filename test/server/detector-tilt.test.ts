@@ -119,6 +119,12 @@ describe('POST /api/sites/:id/detector-tilt', () => {
       .send({ kind: 'hold', note: 'Detector cleaning' })
       .expect(201);
     const auditBefore = Number((await stack.db('audit_log').where({ action: 'command' }).count({ n: '*' }).first())!.n);
+    const tiltBefore = Object.fromEntries(
+      (await stack.db('units').whereIn('serial', ['QHL-2401', 'QHL-2402']).select('serial', 'detector_tilt_deg')).map((u) => [
+        u.serial,
+        Number(u.detector_tilt_deg),
+      ]),
+    ) as Record<string, number>;
 
     const r = (await eng.agent.post(`/api/sites/${siteId}/detector-tilt`).send({ detectorTiltDeg: 14.5, confirm: true }).expect(200))
       .body as ApplyDetectorTiltResult;
@@ -138,6 +144,22 @@ describe('POST /api/sites/:id/detector-tilt', () => {
     await waitFor(async () => (await statusOf('QHL-2402')) === 'rejected', 3000, 'QHL-2402 refused');
     await waitFor(async () => (await statusOf('QHL-2403')) === 'timed-out', 5000, 'QHL-2403 timed out');
     expect(await statusOf('QHL-2404')).toBe('queued');
+    // A unit that carried the settings out is recorded with its new detector tilt (what the trap detector and the
+    // scans judge it by); one that refused keeps its old one.
+    const tiltOf = async (serial: string) =>
+      Number((await stack.db('units').where({ serial }).first('detector_tilt_deg')).detector_tilt_deg);
+    await waitFor(async () => (await tiltOf('QHL-2401')) === 14.5, 3000, 'QHL-2401 recorded with its new tilt');
+    expect(await tiltOf('QHL-2402')).toBe(tiltBefore['QHL-2402']);
+    expect(stack.units.get('QHL-2401')!.detectorTiltDeg).toBe(14.5);
+    const recorded = await stack
+      .db('audit_log')
+      .where({ action: 'unit-configured', target: `unit:${id('QHL-2401')}` })
+      .first('user_id', 'detail');
+    expect(recorded.user_id).toBe(eng.userId);
+    expect(typeof recorded.detail === 'string' ? JSON.parse(recorded.detail) : recorded.detail).toMatchObject({
+      commandId: bySerial['QHL-2401']!.commandId,
+      detectorTiltDeg: { from: tiltBefore['QHL-2401'], to: 14.5 },
+    });
     const sent = await stack.db('commands').where({ id: bySerial['QHL-2401']!.commandId }).first('kind', 'params', 'issued_by');
     expect(sent.kind).toBe('configure');
     expect(typeof sent.params === 'string' ? JSON.parse(sent.params) : sent.params).toEqual({ config: { detectorTiltDeg: 14.5 } });

@@ -21,6 +21,7 @@ export const ACTION_LOOKS: Readonly<Record<string, ActionLook>> = {
   'site-survey-update': { label: 'Changed a site survey', icon: 'landscape' },
   'unit-create': { label: 'Added a unit', icon: 'solar_power' },
   'unit-update': { label: 'Changed a unit', icon: 'solar_power' },
+  'unit-configured': { label: 'A unit took new settings', icon: 'tune' },
   'unit-secret-rotate': { label: 'Issued a new device secret', icon: 'vpn_key' },
   'sign-out': { label: 'Signed out', icon: 'logout' },
   'password-change': { label: 'Changed their own password', icon: 'password' },
