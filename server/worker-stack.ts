@@ -88,7 +88,13 @@ export async function startWorker(config: Config, log: Logger, opts: WorkerOptio
   const noSettingsRoutes = {
     getSite: () => Promise.reject(new Error('a worker serves no settings routes')),
   };
-  const healthSettings = new HealthSettingsService(new HealthSettingsRepository(db), noSettingsRoutes, log, healthOpts.now);
+  const healthSettings = new HealthSettingsService(
+    new HealthSettingsRepository(db),
+    noSettingsRoutes,
+    log,
+    healthOpts.now,
+    new AuditRepository(db),
+  );
   const health = new HealthService(
     new AlarmStore(new AlarmRepository(db), directory, live, log),
     new SiteModelCache(siteModel, log, healthOpts),
