@@ -40,6 +40,7 @@ import * as m20261207100400 from './20261207100400_create_ticket_notices';
 import * as m20261207100500 from './20261207100500_create_digest_runs';
 import * as m20261205140000 from './20261205140000_add_telemetry_15m_statement_columns';
 import * as m20261208100000 from './20261208100000_create_statements';
+import * as m20261209100000 from './20261209100000_create_survey_revisions';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -87,6 +88,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261207100500_create_digest_runs': m20261207100500,
   '20261205140000_add_telemetry_15m_statement_columns': m20261205140000,
   '20261208100000_create_statements': m20261208100000,
+  '20261209100000_create_survey_revisions': m20261209100000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

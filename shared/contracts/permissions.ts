@@ -17,6 +17,8 @@ export const PERMISSIONS = {
   /** Run the detectors on demand over stored data. */
   runDetectors: ['engineer', 'technician', 'admin'],
   editSurvey: ['admin', 'engineer'],
+  /** Proposed survey corrections fitted to a site's scans (proposing, accepting and rejecting them is `editSurvey`). */
+  readSurveyRevisions: ['admin', 'engineer', 'technician'],
   /** Ingest, broker and rollup counters. */
   readMetrics: ['admin', 'engineer', 'technician'],
   /** Traces and their raw CSV export. */
