@@ -16,7 +16,7 @@ const where = { latitudeDeg: demo.latitude_deg, longitudeDeg: demo.longitude_deg
 const truth = DEMO_SURVEYS['QHL']!;
 const wrong = perturbSurvey(truth, demo.albedo, 'high', 3);
 const SCANS_UTC = [6, 9, 12, 15];
-let clock = Date.parse('2026-06-12T11:00:00Z');
+const clock = Date.parse('2026-06-12T11:00:00Z');
 
 let stack: Awaited<ReturnType<typeof startTestStack>>;
 let siteId: number;
