@@ -36,12 +36,12 @@ export interface NewSurveyRevision {
   audit: Record<string, unknown>;
 }
 
-/** One complete scan of a unit: its samples `[tiltDeg, azimuthDeg, poaWm2]` and when it ran. */
+/** One complete scan of a unit: its rows of samples `[tiltDeg, azimuthDeg, poaWm2]` as reported, and when it ended. */
 export interface StoredScan {
   unitId: number;
   commandId: string;
-  startedAt: Date;
   completedAt: Date;
+  rows: { ts: number; samples: [number, number, number][] }[];
   samples: [number, number, number][];
 }
 
@@ -136,9 +136,13 @@ export class SurveyRevisionRepository {
         .whereRaw("JSON_UNQUOTE(JSON_EXTRACT(body, '$.commandId')) = ?", [commandId])
         .orderBy('ts')
         .select('ts', 'body');
-      const samples = rows.flatMap((r) => json<{ samples?: [number, number, number][] }>(r.body).samples ?? []);
+      const reported = rows.map((r) => ({
+        ts: new Date(r.ts).getTime(),
+        samples: json<{ samples?: [number, number, number][] }>(r.body).samples ?? [],
+      }));
+      const samples = reported.flatMap((r) => r.samples);
       if (!samples.length) continue;
-      out.push({ unitId: Number(d.unit_id), commandId, startedAt: new Date(rows[0]!.ts), completedAt: new Date(d.ts), samples });
+      out.push({ unitId: Number(d.unit_id), commandId, completedAt: new Date(d.ts), rows: reported, samples });
     }
     return out;
   }

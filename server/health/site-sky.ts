@@ -6,6 +6,7 @@
 import type { SiteSurvey } from '../../shared/contracts/survey';
 import { analyseLandscape, bestReachableOrientation, detectorReadings, type Sky } from '../../shared/landscape';
 import { parseSkyFile, resolveSkyFile, type ResolvedSky } from '../../shared/sky-file';
+import { sunSeenFromSite } from '../../shared/sky-radiance';
 import type { SiteModel } from './site-model';
 
 /** Where a site is and how bright its ground is. */
@@ -26,9 +27,10 @@ export interface SiteWeather {
 /**
  * The sky file of a site at an instant: the same description the command line accepts. Magnitudes come from the
  * station reading when there is one, else from the clear-sky model. Indoor sites: the walls are the horizon profile and
- * the lamps are modelled as on; daylight comes through the roof.
+ * the lamps are modelled as on; daylight comes through the roof. `diffuseOnly` passes the station's DHI alone (a shaded
+ * station: see `siteSky`).
  */
-export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather | null) {
+export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather | null, diffuseOnly = false) {
   return parseSkyFile({
     site: { latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM },
     time: new Date(atMs).toISOString(),
@@ -37,13 +39,36 @@ export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, wea
     horizon: survey.horizon,
     reflectors: survey.reflectors,
     lamps: survey.lamps,
-    ...(weather ? { ghiWm2: weather.ghiWm2, ...(weather.dhiWm2 !== null ? { dhiWm2: weather.dhiWm2 } : {}) } : {}),
+    ...(weather
+      ? {
+          ...(diffuseOnly ? {} : { ghiWm2: weather.ghiWm2 }),
+          ...(weather.dhiWm2 !== null ? { dhiWm2: weather.dhiWm2 } : {}),
+        }
+      : {}),
   });
 }
 
-/** The resolved (built) sky of a site at an instant. */
+/**
+ * A shaded station's diffuse above this multiple of the clear-sky diffuse is taken as overcast (no beam); at or below it
+ * the sky is taken as clear enough for the clear-sky beam. This product's rule: a station behind the horizon measures
+ * the diffuse sky only, so nothing it reads tells the beam apart.
+ */
+export const SHADED_STATION_CLEAR_DIFFUSE_FACTOR = 1.5;
+
+/**
+ * The resolved (built) sky of a site at an instant. A station reading taken while the survey puts the sun behind the
+ * site's horizon or a facade holds no beam (GHI is diffuse only), so it is not read as "no beam": under a sky whose
+ * diffuse looks clear the beam is the clear-sky model's and the diffuse the station's; under an overcast one, none.
+ */
 export function siteSky(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather | null): ResolvedSky {
-  return resolveSkyFile(siteSkyFile(site, survey, atMs, weather));
+  const resolved = resolveSkyFile(siteSkyFile(site, survey, atMs, weather));
+  if (!weather || !resolved.input.sun || resolved.input.sun.elevationDeg <= 0) return resolved;
+  if (sunSeenFromSite(resolved.sky)) return withImagesOnStation(site, survey, atMs, weather, resolved);
+  const clear = resolveSkyFile(siteSkyFile(site, survey, atMs, null));
+  const dhiWm2 = weather.dhiWm2 ?? weather.ghiWm2;
+  if (dhiWm2 > SHADED_STATION_CLEAR_DIFFUSE_FACTOR * (clear.input.dhiWm2 ?? 0)) return resolved;
+  // DHI alone: the sky file takes the beam from the clear-sky model (shared/sky-file).
+  return resolveSkyFile(siteSkyFile(site, survey, atMs, { ghiWm2: weather.ghiWm2, dhiWm2 }, true));
 }
 
 /**
@@ -73,4 +98,31 @@ export function siteModelOf(resolved: ResolvedSky, indoor: boolean, atMs: number
 /** The brightest reachable orientation of a sky with tilt up to `maxTiltDeg`, any azimuth (shared/landscape/best-orientation.ts). */
 export function globalMaxOf(sky: Sky, maxTiltDeg: number) {
   return bestReachableOrientation(sky, { tiltRangeDeg: [0, maxTiltDeg], azimuthRangeDeg: [0, 360] });
+}
+
+/**
+ * A station in sun under a facade's image of the sun reads the image too: GHI − DHI = DNI·(v·cos Z + Σ ρ·sin e_image),
+ * v the disc's visible fraction (derived from the sky's composition, shared/README.md "Sky model"), where reading it as
+ * beam alone (GHI − DHI = DNI·cos Z) would make the beam too bright by the images. The beam is solved for with the
+ * images the survey places, and the sky built again with it.
+ */
+function withImagesOnStation(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather, resolved: ResolvedSky): ResolvedSky {
+  const sun = resolved.input.sun!;
+  const dni = sun.dniWm2 ?? 0;
+  const images = resolved.sky.pointSources.filter((p) => p.kind === 'sun-image');
+  if (!(dni > 0) || !images.length || weather.dhiWm2 === null) return resolved;
+  const cosZ = Math.sin((sun.elevationDeg * Math.PI) / 180);
+  const disc = resolved.sky.pointSources.find((p) => p.kind === 'sun');
+  const visible = disc ? disc.irradianceWm2 / dni : 0;
+  const perDni = visible * cosZ + images.reduce((g, p) => g + (p.irradianceWm2 / dni) * Math.max(0, p.direction[2]), 0);
+  if (!(perDni > 0)) return resolved;
+  const beam = Math.max(0, (weather.ghiWm2 - weather.dhiWm2) / perDni);
+  return resolveSkyFile(
+    parseSkyFile({
+      ...siteSkyFile(site, survey, atMs, null),
+      sun: { azimuthDeg: sun.azimuthDeg, elevationDeg: sun.elevationDeg, dniWm2: beam },
+      ghiWm2: weather.ghiWm2,
+      dhiWm2: weather.dhiWm2,
+    }),
+  );
 }

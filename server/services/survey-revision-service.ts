@@ -3,7 +3,7 @@ import type { SurveyRevision, SurveyRevisionParameter } from '../../shared/contr
 import { fitSurveyCorrections, type FitEpoch, type SurveyFitResult } from '../../shared/survey-fit';
 import type { StoredScan, StoredSurveyRevision, SurveyRevisionRepository } from '../data/survey-revision-repository';
 import { AppError, conflict, notFound } from '../errors/app-error';
-import { rebuildScan } from '../health/scan-rebuild';
+import { scanEpoch, scanSpan } from '../health/scan-epochs';
 import { siteSky } from '../health/site-sky';
 import type { AdminService } from './admin-service';
 import type { Caller } from './caller';
@@ -27,7 +27,7 @@ export const DEFAULT_SURVEY_REVISION_OPTIONS: SurveyRevisionOptions = {
   now: Date.now,
   maxTiltDeg: 85,
   minScans: 3,
-  maxScans: 8,
+  maxScans: 12,
   settledWindowMs: 120_000,
 };
 
@@ -36,12 +36,14 @@ const DAYLIGHT_SCAN_WM2 = 50;
 const DAY_MS = 86_400_000;
 const r1 = (x: number) => Math.round(x * 10) / 10;
 const r3 = (x: number) => Math.round(x * 1000) / 1000;
-const roundFor = (kind: SurveyRevisionParameter['kind'], x: number) => (kind === 'albedo' || kind === 'reflectance' ? r3(x) : r1(x));
+const roundFor = (kind: SurveyRevisionParameter['kind'], x: number) =>
+  kind === 'albedo' || kind === 'reflectance' || kind === 'stationScale' ? r3(x) : r1(x);
 
 /** What is stored in a revision's `fit` column. */
 interface StoredFit {
   parameters: SurveyRevisionParameter[];
   modelError: SurveyRevision['modelError'];
+  checkError: SurveyRevision['checkError'];
   fit: SurveyRevision['fit'];
 }
 
@@ -94,27 +96,31 @@ export class SurveyRevisionService {
     const inputs = await this.siteModel.inputs(site.id);
     const unitIds = await this.repo.unitIds(site.id);
     const now = this.opts.now();
-    const scans = (await this.repo.recentScans(unitIds, new Date(now - days * DAY_MS), this.opts.maxScans * 4))
-      .filter((s) => s.samples.length >= 8 && Math.max(...s.samples.map((x) => x[2])) >= DAYLIGHT_SCAN_WM2)
-      .slice(0, this.opts.maxScans);
+    const skyOf = (survey: SiteSurvey, albedo: number, e: FitEpoch) => siteSky({ ...inputs.site, albedo }, survey, e.atMs, e.weather).sky;
+    // Daylight scans with enough samples, newest first.
+    const scans: StoredScan[] = [];
+    const epochs: FitEpoch[] = [];
+    for (const s of await this.repo.recentScans(unitIds, new Date(now - days * DAY_MS), this.opts.maxScans * 4)) {
+      if (scans.length >= this.opts.maxScans) break;
+      if (s.samples.length < 8 || Math.max(...s.samples.map((x) => x[2])) < DAYLIGHT_SCAN_WM2) continue;
+      scans.push(s);
+      epochs.push(await this.epochOf(site.id, s, unitIds));
+    }
     if (scans.length < this.opts.minScans)
       throw new AppError(
         422,
         'too_few_scans',
-        `A survey revision needs at least ${this.opts.minScans} complete daylight scans of this site's units from the last ${days} days; ` +
-          `${scans.length === 1 ? 'there is 1' : `there are ${scans.length}`}. Send scans at different times of day, then propose again.`,
+        `A survey revision needs at least ${this.opts.minScans} complete daylight scans of this site's units from the last ${days} days; ${scans.length === 1 ? 'there is 1' : `there are ${scans.length}`}. Send scans at different times of day, then propose again.`,
         { scans: `${scans.length} of at least ${this.opts.minScans}` },
       );
     if (this.running.has(site.id)) throw conflict('A survey fit for this site is already running; wait for its proposal.');
     this.running.add(site.id);
     try {
-      const epochs: FitEpoch[] = [];
-      for (const s of scans) epochs.push(await this.epochOf(site.id, s, unitIds));
       const result = await fitSurveyCorrections({
         survey: inputs.survey,
         albedo: inputs.site.albedo,
         epochs,
-        skyOf: (survey, albedo, e) => siteSky({ ...inputs.site, albedo }, survey, e.atMs, e.weather).sky,
+        skyOf,
         limits: { tiltRangeDeg: [0, this.opts.maxTiltDeg], azimuthRangeDeg: [0, 360] },
         // The engine is CPU work: other requests and the ingest get a turn between sky builds.
         pause: () => new Promise((r) => setImmediate(r)),
@@ -185,27 +191,21 @@ export class SurveyRevisionService {
     throw conflict(`This revision is already ${now?.state ?? 'decided'}; only a proposed revision can be accepted or rejected.`);
   }
 
-  /** A scan as the fit sees it: its samples and the settled reports of the site's other units at its middle. */
+  /** A scan as the fit sees it (server/health/scan-epochs.ts): its samples and the site's other units' settled reports. */
   private async epochOf(siteId: number, s: StoredScan, unitIds: number[]): Promise<FitEpoch> {
-    const atMs = (s.startedAt.getTime() + s.completedAt.getTime()) / 2;
+    const span = scanSpan(s.rows);
     const weather =
-      (await this.siteModel.weatherMean(siteId, s.startedAt.getTime(), s.completedAt.getTime() + 1)) ??
-      (await this.siteModel.weatherNear(siteId, atMs));
+      (await this.siteModel.weatherMean(siteId, span.fromMs, span.toMs + 1)) ?? (await this.siteModel.weatherNear(siteId, span.atMs));
     const settled = await this.repo.settledNear(
       unitIds.filter((u) => u !== s.unitId),
-      new Date(atMs),
+      new Date(span.atMs),
       this.opts.settledWindowMs,
     );
-    const max = rebuildScan(s.samples).globalMax;
-    return {
-      atMs,
+    return scanEpoch(
+      span,
       weather,
-      samples: [
-        ...s.samples.map(([tiltDeg, azimuthDeg, poaWm2]) => ({ tiltDeg, azimuthDeg, poaWm2 })),
-        ...settled.map((x) => ({ tiltDeg: x.tiltDeg, azimuthDeg: x.azimuthDeg, poaWm2: x.poaWm2 })),
-      ],
-      measuredMax: { tiltDeg: max.tiltDeg, azimuthDeg: max.azimuthDeg },
-    };
+      settled.map((x) => ({ tiltDeg: x.tiltDeg, azimuthDeg: x.azimuthDeg, poaWm2: x.poaWm2 })),
+    );
   }
 }
 
@@ -222,13 +222,22 @@ function storedFitOf(r: SurveyFitResult, scans: StoredScan[]): StoredFit {
       unit: p.unit,
       before: p.before,
       after: roundFor(p.kind, p.after),
-      uncertainty: p.uncertainty === null ? null : p.kind === 'albedo' || p.kind === 'reflectance' ? r3(p.uncertainty) : r1(p.uncertainty),
+      uncertainty: p.uncertainty === null ? null : roundFor(p.kind, p.uncertainty),
       bounds: [roundFor(p.kind, p.bounds[0]), roundFor(p.kind, p.bounds[1])],
       status: p.status,
     })),
-    modelError: { before: err(r.before), after: err(r.after) },
+    modelError: { before: err(r.before), after: err(r.after), afterStationScaled: err(r.afterStationScaled) },
+    checkError: r.check
+      ? {
+          scans: r.check.epochs,
+          before: err(r.check.before),
+          after: err(r.check.after),
+          afterStationScaled: err(r.check.afterStationScaled),
+        }
+      : null,
     fit: {
-      scans: scans.length,
+      scans: scans.length - r.epochsLeftOut,
+      scansLeftOut: r.epochsLeftOut,
       samples: r.samples,
       iterations: r.iterations,
       converged: r.converged,
@@ -252,6 +261,7 @@ function viewOf(r: StoredSurveyRevision): SurveyRevision {
     reason: r.reason,
     parameters: f.parameters,
     modelError: f.modelError,
+    checkError: f.checkError ?? null,
     fit: f.fit,
     baseSurvey: r.baseSurvey,
     baseAlbedo: r.baseAlbedo,

@@ -12,15 +12,17 @@ export type SurveyRevisionState = (typeof SURVEY_REVISION_STATES)[number];
 /** One corrected quantity: the surveyed value, the proposed one ± one standard error, and the bounds of the fit. */
 export interface SurveyRevisionParameter {
   key: string;
-  kind: 'albedo' | 'reflectance' | 'facadeAzimuth' | 'horizonSector';
+  /** `stationScale` is a factor on the weather station's readings: reported, never applied (the station wants checking). */
+  kind: 'albedo' | 'reflectance' | 'facadeAzimuth' | 'horizonSector' | 'stationScale';
   label: string;
   unit: '' | '°';
   before: number;
   after: number;
-  /** One standard error of `after`; null when the value ended at a bound or the scans do not see it. */
+  /** One standard error of `after`; null when the value ended at a bound, the scans do not see it, or it was not confirmed. */
   uncertainty: number | null;
   bounds: [number, number];
-  status: 'fitted' | 'at-bound' | 'not-observable';
+  /** `not-confirmed`: fitted, but the held-out scans fit better without it, so it stays as surveyed. */
+  status: 'fitted' | 'at-bound' | 'not-observable' | 'not-confirmed';
 }
 
 export interface SurveyModelError {
@@ -42,10 +44,15 @@ export interface SurveyRevision {
   decidedBy: { id: number; name: string } | null;
   reason: string | null;
   parameters: SurveyRevisionParameter[];
-  modelError: { before: SurveyModelError; after: SurveyModelError };
+  /** `after`: the revised survey with the station as it reads (what accepting gives); `afterStationScaled`: with the fitted station scale too. */
+  modelError: { before: SurveyModelError; after: SurveyModelError; afterStationScaled: SurveyModelError };
+  /** The same on the scans held out of the fit (every fourth); null with fewer than four scans. */
+  checkError: { scans: number; before: SurveyModelError; after: SurveyModelError; afterStationScaled: SurveyModelError } | null;
   fit: {
-    /** Scans fitted (each with the settled readings of the site's other units at the time). */
+    /** Scans used (each with the settled readings of the site's other units at the time), held-out ones included. */
     scans: number;
+    /** Scans left out: the sun within 1.5° of a horizon or facade edge. */
+    scansLeftOut: number;
     samples: number;
     iterations: number;
     converged: boolean;

@@ -5,7 +5,10 @@
  * - `reflectors.<i>.normalAzimuthDeg`: each facade's normal azimuth, within ±15° (where it sends the sun's image);
  * - `horizon.<from>-<to>`: the mean elevation of the surveyed horizon points in each 30° azimuth sector, within ±10°;
  *   a correction shifts every point of the sector by the same amount (each point then kept in 0…90°). Sectors without
- *   a surveyed point have no parameter (nothing to shift).
+ *   a surveyed point have no parameter (nothing to shift);
+ * - `station.scale`: a factor on the weather station's GHI and DHI as the model reads them, 0.8…1.2. Not part of the
+ *   survey (accepting never applies it): a nuisance parameter, so that a miscalibrated station is not made up for by
+ *   wrong reflectances and albedo; a value away from 1 says the station wants checking.
  * The bounds hold a survey taken with ordinary care (horizon heights to a few degrees, facade orientation from a map,
  * reflectance from a glazing sheet: common practice) with room to spare; a fit that ends on one says so.
  * Angles in degrees (azimuth clockwise from north), reflectances and albedo as fractions.
@@ -15,10 +18,10 @@ import type { SiteSurvey } from '../contracts/survey';
 /** Width of a horizon sector [°]. */
 export const HORIZON_SECTOR_DEG = 30;
 
-export type CorrectionKind = 'albedo' | 'reflectance' | 'facadeAzimuth' | 'horizonSector';
+export type CorrectionKind = 'albedo' | 'reflectance' | 'facadeAzimuth' | 'horizonSector' | 'stationScale';
 
 export interface CorrectionParameter {
-  /** Stable key: `albedo`, `reflectors.0.reflectance`, `reflectors.0.normalAzimuthDeg`, `horizon.90-120`. */
+  /** Stable key: `albedo`, `reflectors.0.reflectance`, `reflectors.0.normalAzimuthDeg`, `horizon.90-120`, `station.scale`. */
   key: string;
   kind: CorrectionKind;
   /** What a person reads: "Facade 1 reflectance", "Horizon 90–120° (mean height)". */
@@ -53,6 +56,16 @@ export function correctionParameters(survey: SiteSurvey, albedo: number): Correc
       stepSize: 0.01,
     },
   ];
+  out.push({
+    key: 'station.scale',
+    kind: 'stationScale',
+    label: 'Weather-station scale (not part of the survey)',
+    unit: '',
+    value: 1,
+    lower: 0.8,
+    upper: 1.2,
+    stepSize: 0.005,
+  });
   survey.reflectors.forEach((r, i) => {
     out.push({
       key: `reflectors.${i}.reflectance`,
@@ -97,7 +110,7 @@ export function correctionParameters(survey: SiteSurvey, albedo: number): Correc
   return out;
 }
 
-/** The survey and albedo with the parameters set to `values` (one per parameter, in order). */
+/** The survey and albedo with the parameters set to `values` (one per parameter, in order; the station scale is not the survey's). */
 export function applyCorrections(
   survey: SiteSurvey,
   params: readonly CorrectionParameter[],
@@ -111,6 +124,7 @@ export function applyCorrections(
     const v = values[k]!;
     if (!Number.isFinite(v)) throw new RangeError(`${p.key}: must be a finite number; got ${v}`);
     if (p.kind === 'albedo') albedo = v;
+    else if (p.kind === 'stationScale') return;
     else if (p.kind === 'reflectance') reflectors[p.reflector!]!.reflectance = clamp(v, 0, 1);
     else if (p.kind === 'facadeAzimuth') reflectors[p.reflector!]!.normalAzimuthDeg = wrap360(v);
     else {
@@ -120,4 +134,10 @@ export function applyCorrections(
   });
   if (Number.isNaN(albedo)) throw new RangeError('params: must include albedo');
   return { survey: { ...survey, horizon, reflectors }, albedo };
+}
+
+/** The station scale among `values` (1 when the parameters have none). */
+export function stationScaleOf(params: readonly CorrectionParameter[], values: readonly number[]): number {
+  const k = params.findIndex((p) => p.kind === 'stationScale');
+  return k < 0 ? 1 : values[k]!;
 }

@@ -1,6 +1,6 @@
 /**
  * Survey corrections from a site's own units: the facade reflectances and azimuths, the horizon heights per sector and
- * the ground albedo that make the site model (the landscape engine fed with the survey and the station's weather) agree
+ * the ground albedo (with a scale on the station's readings as a nuisance parameter) that make the site model (the landscape engine fed with the survey and the station's weather) agree
  * best with what the units measured — the samples of their scans and their settled in-plane readings — estimated by
  * bounded Levenberg–Marquardt least squares with the covariance of the estimate (levenberg-marquardt-1963.ts, which
  * cites Levenberg 1944, Marquardt 1963, Kanzow et al. 2004 and Seber & Wild 1989).
@@ -9,19 +9,47 @@
  * the estimator runs exactly the model the server runs and copies none of it; in-plane irradiance is the engine's
  * `irradianceAt`, the brightest orientation its `bestReachableOrientation`.
  *
- * Residual of a sample: (measured − modelled) / σ with σ = 10 W/m² + 5 % of the measured value (a reference cell's
- * calibration and the few minutes a scan takes while the sun moves; common practice for field irradiance sensors, the
- * split from memory). Parameters the measurements cannot see (moving one across its whole range changes the weighted
+ * Residual of a sample: (measured − modelled) / σ with σ = 5 W/m² + 2 % of the measured value (a reference cell's
+ * calibration and the minutes a scan takes while the sun moves; common practice for field irradiance sensors, the split
+ * from memory). Parameters the measurements cannot see (moving one across its whole range changes the weighted
  * residuals by less than 1 in total) are left at the survey's value and reported as not observable.
  *
+ * The survey itself is evidence too: each parameter adds the residual (θ − θ_survey)/τ, τ being what a survey taken with
+ * ordinary care is within (one standard deviation: horizon height 3°, facade azimuth 5°, reflectance 0.15, albedo 0.1,
+ * station scale 0.05; this product's choice). This is Tikhonov regularisation toward the survey (A. N. Tikhonov (1963),
+ * "Solution of incorrectly formulated problems and the regularization method", Soviet Mathematics Doklady 4,
+ * 1035–1038), or the posterior mode under a Gaussian prior: a parameter the scans see only weakly stays near the survey
+ * instead of absorbing small differences between the model and the world, and its uncertainty stays near τ.
+ *
+ * Epochs with the sun within 1.5° of an edge — where the disc or one of its facade images appears or vanishes — are
+ * left out: a scan takes minutes while the sun moves about a degree every four, so one instant does not describe it
+ * there, and a horizon or facade parameter would bend to fit the difference. An epoch the corrections themselves bring
+ * near an edge is left out as well, and the fit made once more without it.
+ *
+ * Corrections are checked on scans the fit did not see: with at least four usable epochs, every fourth in time order is
+ * held out; after the fit, each correction in turn (largest first, in units of τ) is taken back to the survey's value
+ * when that makes the held-out epochs fit better (their weighted sum of squares falls by more than 1) (cross-validation: M. Stone (1974), "Cross-validatory choice and
+ * assessment of statistical predictions", Journal of the Royal Statistical Society B 36(2), 111–147). A correction the
+ * held-out scans do not confirm is reported as such, at the survey's value. The held-out model error is reported beside
+ * the fitted one: an engineer reads there whether the revision predicts scans it was not fitted to.
+ *
  * Model error, before and after: the mean |measured − modelled| in-plane irradiance over the samples [W/m²], and the
- * mean angle between each scan's measured brightest orientation and the model's brightest reachable one [°].
+ * mean angle between each scan's measured brightest orientation and the model's brightest reachable one [°]. `after` is
+ * the revised survey with the station read as it is (what accepting gives); `afterStationScaled` with the fitted scale
+ * on the station too (what a recalibrated station would add).
  */
 import type { SiteSurvey } from '../contracts/survey';
 import { bestReachableOrientation, irradianceAt, type Sky, type UnitLimits } from '../landscape';
+import { sunNearEdge } from '../sky-radiance/sun-visibility';
 import { normalFromTiltAzimuth } from '../sphere/directions';
 import { levenbergMarquardt, type LmOptions } from './levenberg-marquardt-1963';
-import { applyCorrections, correctionParameters, type CorrectionKind, type CorrectionParameter } from './survey-corrections';
+import {
+  applyCorrections,
+  correctionParameters,
+  stationScaleOf,
+  type CorrectionKind,
+  type CorrectionParameter,
+} from './survey-corrections';
 
 /** One measurement of in-plane irradiance at an orientation [°, W/m²]. */
 export interface FitSample {
@@ -60,7 +88,7 @@ export interface ModelError {
   globalMaxErrorDeg: number | null;
 }
 
-export type EstimateStatus = 'fitted' | 'at-bound' | 'not-observable';
+export type EstimateStatus = 'fitted' | 'at-bound' | 'not-observable' | 'not-confirmed';
 
 export interface ParameterEstimate {
   key: string;
@@ -81,7 +109,14 @@ export interface SurveyFitResult {
   parameters: ParameterEstimate[];
   before: ModelError;
   after: ModelError;
+  afterStationScaled: ModelError;
+  /** The fitted factor on the station's readings (1 = as reported). */
+  stationScale: number;
+  /** Model error on the held-out epochs (null with fewer than CHECK_EVERY usable epochs). */
+  check: { epochs: number; before: ModelError; after: ModelError; afterStationScaled: ModelError } | null;
   epochs: number;
+  /** Epochs left out: the sun within EDGE_MARGIN_DEG of a horizon or facade edge (module comment). */
+  epochsLeftOut: number;
   samples: number;
   iterations: number;
   evaluations: number;
@@ -101,8 +136,29 @@ export function angleBetweenNormalsDeg(a: { tiltDeg: number; azimuthDeg: number 
   return (Math.acos(Math.min(1, Math.max(-1, c))) * 180) / Math.PI;
 }
 
+/** Sun–edge margin below which an epoch is left out [°]: about the sun's motion during a scan (module comment). */
+export const EDGE_MARGIN_DEG = 1.5;
+
+/** One epoch in this many (in time order) is held out to check the corrections on (module comment). */
+export const CHECK_EVERY = 4;
+
+/** τ per kind of parameter: how far a careful survey may be off, one standard deviation (module comment). */
+export const PRIOR_WIDTH: Record<CorrectionKind, number> = {
+  albedo: 0.1,
+  reflectance: 0.15,
+  facadeAzimuth: 5,
+  horizonSector: 3,
+  stationScale: 0.05,
+};
+
+/** The epoch with the station's readings scaled (the model is fed GHI and DHI × scale). */
+function scaledEpoch(e: FitEpoch, scale: number): FitEpoch {
+  if (scale === 1 || e.weather === null) return e;
+  return { ...e, weather: { ghiWm2: e.weather.ghiWm2 * scale, dhiWm2: e.weather.dhiWm2 === null ? null : e.weather.dhiWm2 * scale } };
+}
+
 /** σ of a sample [W/m²] (module comment). */
-export const sampleSigmaWm2 = (poaWm2: number) => 10 + 0.05 * Math.abs(poaWm2);
+export const sampleSigmaWm2 = (poaWm2: number) => 5 + 0.02 * Math.abs(poaWm2);
 
 /** Model error of a survey and albedo against the epochs (also used to score a survey on epochs not fitted). */
 export async function modelError(
@@ -112,13 +168,14 @@ export async function modelError(
   skyOf: SkyOf,
   limits: UnitLimits = DEFAULT_LIMITS,
   pause: () => Promise<void> = noPause,
+  stationScale = 1,
 ): Promise<ModelError> {
   let abs = 0;
   let n = 0;
   let angle = 0;
   let scans = 0;
   for (const e of epochs) {
-    const sky = skyOf(survey, albedo, e);
+    const sky = skyOf(survey, albedo, scaledEpoch(e, stationScale));
     for (const s of e.samples) {
       abs += Math.abs(s.poaWm2 - irradianceAt(sky, s.tiltDeg, s.azimuthDeg));
       n++;
@@ -148,18 +205,40 @@ function checkInput(i: SurveyFitInput): void {
 /** Estimates the survey corrections (module comment). Throws RangeError naming a bad input. */
 export async function fitSurveyCorrections(input: SurveyFitInput): Promise<SurveyFitResult> {
   checkInput(input);
+  const first = await fitOnce(input, new Set());
+  // The corrections may have moved an edge onto the sun or an image in some epoch (a facade turned by a few degrees):
+  // those epochs are left out too and the fit is made again from the survey, once.
+  const moved = new Set(input.epochs.filter((e) => sunNearEdge(input.skyOf(first.survey, first.albedo, e), EDGE_MARGIN_DEG)));
+  const newlyNear = input.epochs.filter((e) => moved.has(e) && !sunNearEdge(input.skyOf(input.survey, input.albedo, e), EDGE_MARGIN_DEG));
+  if (!newlyNear.length) return first;
+  const usable = input.epochs.filter((e) => !moved.has(e) && !sunNearEdge(input.skyOf(input.survey, input.albedo, e), EDGE_MARGIN_DEG));
+  return usable.length ? fitOnce(input, new Set(newlyNear)) : first;
+}
+
+async function fitOnce(input: SurveyFitInput, leaveOut: ReadonlySet<FitEpoch>): Promise<SurveyFitResult> {
   const pause = input.pause ?? noPause;
   const limits = input.limits ?? DEFAULT_LIMITS;
   const all = correctionParameters(input.survey, input.albedo);
-  const samples = input.epochs.flatMap((e) => e.samples);
+  // A scan lasts minutes while the sun moves: near an edge (the disc or a facade image appearing or vanishing within
+  // the margin) one instant does not describe it, and a horizon or facade parameter would bend to fit the difference.
+  const usable = input.epochs
+    .filter((e) => !leaveOut.has(e) && !sunNearEdge(input.skyOf(input.survey, input.albedo, e), EDGE_MARGIN_DEG))
+    .sort((a, b) => a.atMs - b.atMs);
+  if (!usable.length) throw new RangeError('epochs: in every epoch the sun is near a horizon or facade edge; scan at other times of day');
+  // Every CHECK_EVERY-th epoch (in time order) is held out to check the corrections on (module comment).
+  const held = usable.length >= CHECK_EVERY;
+  const epochs = usable.filter((_, i) => !held || i % CHECK_EVERY !== CHECK_EVERY - 1);
+  const checkEpochs = held ? usable.filter((_, i) => i % CHECK_EVERY === CHECK_EVERY - 1) : [];
+  const samples = epochs.flatMap((e) => e.samples);
   const sigma = Float64Array.from(samples, (s) => sampleSigmaWm2(s.poaWm2));
 
   const modelled = async (values: readonly number[]): Promise<Float64Array> => {
     const { survey, albedo } = applyCorrections(input.survey, all, values);
+    const scale = stationScaleOf(all, values);
     const out = new Float64Array(samples.length);
     let i = 0;
-    for (const e of input.epochs) {
-      const sky = input.skyOf(survey, albedo, e);
+    for (const e of epochs) {
+      const sky = input.skyOf(survey, albedo, scaledEpoch(e, scale));
       for (const s of e.samples) out[i++] = irradianceAt(sky, s.tiltDeg, s.azimuthDeg);
       await pause();
     }
@@ -202,17 +281,61 @@ export async function fitSurveyCorrections(input: SurveyFitInput): Promise<Surve
         lower: free.map((p) => p.lower),
         upper: free.map((p) => p.upper),
         stepSizes: free.map((p) => p.stepSize),
-        residuals: async (x) => weighted(await modelled(full(x))),
+        // The samples' residuals, then one per parameter pulling it toward the survey (module comment).
+        residuals: async (x) => {
+          const r = weighted(await modelled(full(x)));
+          const out = new Float64Array(r.length + free.length);
+          out.set(r);
+          free.forEach(
+            (p, c) => (out[r.length + c] = (x[c]! - p.value) / (PRIOR_WIDTH[p.kind] * Number(globalThis.process?.env['TMP_TAU'] ?? 1))),
+          );
+          return out;
+        },
       },
       input.lm,
     );
     values = full(lm.theta);
   }
+  // Cross-validation against the held-out epochs: a correction that does not make them fit better is taken back.
+  const reverted = new Set<number>();
+  if (checkEpochs.length && lm) {
+    const checkCost = async (v: readonly number[]) => {
+      const { survey, albedo } = applyCorrections(input.survey, all, v);
+      const scale = stationScaleOf(all, v);
+      let cost = 0;
+      for (const e of checkEpochs) {
+        const sky = input.skyOf(survey, albedo, scaledEpoch(e, scale));
+        for (const x of e.samples) cost += ((x.poaWm2 - irradianceAt(sky, x.tiltDeg, x.azimuthDeg)) / sampleSigmaWm2(x.poaWm2)) ** 2;
+        await pause();
+      }
+      return cost;
+    };
+    let current = values.slice();
+    let cost = await checkCost(current);
+    const order = all
+      .map((p, k) => ({ k, moved: Math.abs(current[k]! - p.value) / PRIOR_WIDTH[p.kind] }))
+      .filter((x) => x.moved > 0)
+      .sort((a, b) => b.moved - a.moved);
+    for (const { k } of order) {
+      const trial = current.slice();
+      trial[k] = all[k]!.value;
+      const c = await checkCost(trial);
+      // Taken back only on evidence: the held-out weighted squares fall by more than 1 (one σ² of one sample). A correction
+      // the held-out scans cannot see either way keeps its fitted value.
+      if (c < cost - 1) {
+        current = trial;
+        cost = c;
+        reverted.add(k);
+      }
+    }
+    values = current;
+  }
   const revised = applyCorrections(input.survey, all, values);
   const freeIndex = new Map(free.map((p, c) => [p.key, c]));
   const parameters = all.map((p, k): ParameterEstimate => {
     const c = freeIndex.get(p.key);
-    const status: EstimateStatus = c === undefined ? 'not-observable' : lm!.atBound[c] ? 'at-bound' : 'fitted';
+    const status: EstimateStatus =
+      c === undefined ? 'not-observable' : reverted.has(k) ? 'not-confirmed' : lm!.atBound[c] ? 'at-bound' : 'fitted';
     return {
       key: p.key,
       kind: p.kind,
@@ -220,20 +343,35 @@ export async function fitSurveyCorrections(input: SurveyFitInput): Promise<Surve
       unit: p.unit,
       before: p.value,
       after: values[k]!,
-      uncertainty: c === undefined ? null : lm!.standardErrors[c]!,
+      uncertainty: c === undefined || reverted.has(k) ? null : lm!.standardErrors[c]!,
       bounds: [p.lower, p.upper],
       status,
     };
   });
-  const before = await modelError(input.survey, input.albedo, input.epochs, input.skyOf, limits, pause);
-  const after = await modelError(revised.survey, revised.albedo, input.epochs, input.skyOf, limits, pause);
+  const before = await modelError(input.survey, input.albedo, epochs, input.skyOf, limits, pause);
+  const after = await modelError(revised.survey, revised.albedo, epochs, input.skyOf, limits, pause);
+  const stationScale = stationScaleOf(all, values);
+  const afterStationScaled =
+    stationScale === 1 ? after : await modelError(revised.survey, revised.albedo, epochs, input.skyOf, limits, pause, stationScale);
+  const check = checkEpochs.length
+    ? {
+        epochs: checkEpochs.length,
+        before: await modelError(input.survey, input.albedo, checkEpochs, input.skyOf, limits, pause),
+        after: await modelError(revised.survey, revised.albedo, checkEpochs, input.skyOf, limits, pause),
+        afterStationScaled: await modelError(revised.survey, revised.albedo, checkEpochs, input.skyOf, limits, pause, stationScale),
+      }
+    : null;
   return {
     survey: revised.survey,
     albedo: revised.albedo,
     parameters,
     before,
     after,
-    epochs: input.epochs.length,
+    afterStationScaled,
+    stationScale,
+    check,
+    epochs: epochs.length,
+    epochsLeftOut: input.epochs.length - usable.length,
     samples: samples.length,
     iterations: lm?.iterations ?? 0,
     evaluations: (lm?.evaluations ?? 0) + 1 + all.length,

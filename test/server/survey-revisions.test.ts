@@ -129,7 +129,7 @@ describe('survey revisions', () => {
     const eng = await as('engineer@saltmarsh.example');
     const res = await eng.post(`/api/sites/${emptySiteId}/survey-revisions/propose`).send({}).expect(422);
     expect(res.body.error.code).toBe('too_few_scans');
-    expect(res.body.error.message).toMatch(/at least 3 complete daylight scans .* last 30 days; there are 0/);
+    expect(res.body.error.message).toMatch(/at least 3 complete daylight scans of this site's units from the last 30 days; there are 0/);
     // The scans of QHL are two days old: a one-day window holds none of them.
     const recent = await eng.post(`/api/sites/${siteId}/survey-revisions/propose`).send({ days: 1 }).expect(422);
     expect(recent.body.error.message).toMatch(/last 1 days; there are 0/);
@@ -150,7 +150,10 @@ describe('survey revisions', () => {
       decidedAt: null,
       outcome: null,
     });
-    expect(p.fit).toMatchObject({ scans: 4, samples: 4 * 48, converged: true });
+    // Four scans: each is fitted, held out to check the fit on (one in four, from four usable ones) or left out with the sun
+    // near a horizon or facade edge.
+    expect(p.fit.scans + p.fit.scansLeftOut).toBe(4);
+    expect(p.fit.samples).toBe((p.fit.scans - (p.checkError?.scans ?? 0)) * 48);
     expect(p.fit.sources.map((s) => s.commandId).sort()).toEqual(['scan-12', 'scan-15', 'scan-6', 'scan-9']);
     expect(p.baseSurvey).toEqual(before.survey);
     expect(p.modelError.after.meanAbsWm2).toBeLessThan(p.modelError.before.meanAbsWm2);

@@ -1,6 +1,13 @@
 import { describe, expect, it } from 'vitest';
 import { irradianceAt } from '../../shared/landscape';
-import { applyCorrections, correctionParameters, fitSurveyCorrections, levenbergMarquardt, type FitEpoch } from '../../shared/survey-fit';
+import {
+  applyCorrections,
+  correctionParameters,
+  fitSurveyCorrections,
+  levenbergMarquardt,
+  sampleSigmaWm2,
+  type FitEpoch,
+} from '../../shared/survey-fit';
 import type { SiteSurvey } from '../../shared/contracts/survey';
 import { DEMO_SITES } from '../../shared/demo-world';
 import { DEMO_SURVEYS } from '../../seeds/demo-world';
@@ -77,7 +84,7 @@ function synthetic(hoursUtc: number[], seed: number): FitEpoch[] {
     for (const t of [10, 30, 50, 70])
       for (let a = 0; a < 360; a += 30) {
         const v = irradianceAt(sky, t, a);
-        e.samples.push({ tiltDeg: t, azimuthDeg: a, poaWm2: Math.max(0, v + gauss() * (10 + 0.05 * v)) });
+        e.samples.push({ tiltDeg: t, azimuthDeg: a, poaWm2: Math.max(0, v + gauss() * sampleSigmaWm2(v)) });
       }
     return e;
   });
@@ -131,7 +138,10 @@ describe('survey corrections from scans (synthetic site)', () => {
     expect(r.residualVariance).toBeGreaterThan(0.7);
     expect(r.residualVariance).toBeLessThan(1.4);
     expect(r.after.meanAbsWm2).toBeLessThan(r.before.meanAbsWm2 * 0.8);
-    expect(r.samples).toBe(6 * 48);
+    // Every epoch is fitted, held out (one in four) or left out with the sun near an edge.
+    expect(r.samples).toBe(r.epochs * 48);
+    expect(r.epochs + (r.check?.epochs ?? 0) + r.epochsLeftOut).toBe(6);
+    expect(r.check!.after.meanAbsWm2).toBeLessThan(r.check!.before.meanAbsWm2);
   }, 60_000);
 
   it('holds a correction larger than its bound at the bound, says so, and leaves unseen horizon sectors as surveyed', async () => {
