@@ -14,6 +14,7 @@ import { AuditRepository } from './data/audit-repository';
 import { SessionRepository } from './data/session-repository';
 import { AuditService } from './services/audit-service';
 import { auditRoutes } from './routes/audit-routes';
+import { detectorTiltRoutes } from './routes/detector-tilt-routes';
 import { TicketRepository } from './data/ticket-repository';
 import { TicketService, type TicketOptions } from './services/ticket-service';
 import { ticketRoutes } from './routes/ticket-routes';
@@ -64,6 +65,7 @@ import { HoldRepository } from './data/hold-repository';
 import { AlarmStore } from './services/alarm-store';
 import { AlarmService } from './services/alarm-service';
 import { HealthSettingsService } from './services/health-settings-service';
+import { DetectorTiltService } from './services/detector-tilt-service';
 import { HealthReplay } from './services/health-replay';
 import { ScanService } from './services/scan-service';
 import { SiteModelCache } from './services/site-model-cache';
@@ -206,7 +208,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const healthOpts: HealthServiceOptions = { ...DEFAULT_HEALTH_SERVICE_OPTIONS, ...opts.health };
   const alarmRepo = new AlarmRepository(db);
   const healthReads = new HealthReadRepository(db);
-  const healthSettings = new HealthSettingsService(new HealthSettingsRepository(db), admin, log, healthOpts.now);
+  const healthSettings = new HealthSettingsService(new HealthSettingsRepository(db), admin, log, healthOpts.now, audit);
   const siteModels = new SiteModelCache(siteModel, log, healthOpts);
   const health = new HealthService(new AlarmStore(alarmRepo, directory, live, log), siteModels, healthSettings, live, log, healthOpts);
   let commands: CommandService | undefined;
@@ -307,7 +309,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
         ),
       ),
     log,
-    opts.commands,
+    { onConfigured: (unitId, config, by, commandId) => admin.recordConfigured(unitId, config, by, commandId), ...opts.commands },
   );
   const ticketRepo = new TicketRepository(db);
   const ticketFiles = new TicketFileService(
@@ -407,9 +409,10 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
         settings: healthSettings,
         alarms: alarmService,
         scans: new ScanService(healthReads, admin, directory, siteModels),
-        replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings),
+        replay: new HealthReplay(healthReads, admin, directory, siteModels, healthSettings, alarmRepo),
       }),
       auditRoutes(auditLog),
+      detectorTiltRoutes(admin, new DetectorTiltService(admin, siteModel, () => commands!, auditLog, healthSettings, log)),
       ticketRoutes(tickets, alarmService, auditLog),
       ticketFileRoutes(ticketFiles),
       demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),

@@ -93,6 +93,30 @@ export class AlarmRepository {
     return ((await q) as AlarmListRow[]).map(toView);
   }
 
+  /**
+   * Alarms that were raised before `to` and not cleared before `from` (open at some time in the range): the units'
+   * own and, for the given sites, the site-wide ones (a dark site). Oldest first, at most `limit`.
+   */
+  async overlapping(
+    scope: SiteScope,
+    f: { unitIds: number[]; siteIds: number[]; from: Date; to: Date; limit: number },
+  ): Promise<AlarmView[]> {
+    if (!f.unitIds.length && !f.siteIds.length) return [];
+    const q = this.base(scope)
+      .where('a.raised_at', '<', f.to)
+      .where((w) => w.whereNull('a.cleared_at').orWhere('a.cleared_at', '>=', f.from))
+      .where((w) => {
+        if (f.unitIds.length) w.whereIn('a.unit_id', f.unitIds);
+        if (f.siteIds.length) w.orWhere((x) => x.whereNull('a.unit_id').whereIn('a.site_id', f.siteIds));
+      })
+      .orderBy([
+        { column: 'a.raised_at', order: 'asc' },
+        { column: 'a.id', order: 'asc' },
+      ])
+      .limit(f.limit);
+    return ((await q) as AlarmListRow[]).map(toView);
+  }
+
   async get(id: number, scope: SiteScope): Promise<AlarmView | undefined> {
     const row = (await this.base(scope).where('a.id', id).first()) as AlarmListRow | undefined;
     return row ? toView(row) : undefined;

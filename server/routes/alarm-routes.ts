@@ -1,5 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
+import { HEALTH_SETTINGS_REASON_MAX } from '../../shared/contracts/alarms';
 import { healthSettingsOverrideSchema } from '../health/health-settings';
 import type { AdminService } from '../services/admin-service';
 import type { AlarmService } from '../services/alarm-service';
@@ -14,6 +15,24 @@ const listQuery = z.strictObject({
   unitId: z.coerce.number().int().positive('Must be a positive whole number.').optional(),
   state: z.enum(['active', 'cleared'], 'Must be active or cleared.').optional(),
   limit: z.coerce.number().int().min(1, 'Must be between 1 and 1000.').max(1000, 'Must be between 1 and 1000.').optional(),
+});
+
+/** A save: the overrides and, beside them, why they change (the settings' names never collide with `reason`). */
+const settingsSave = healthSettingsOverrideSchema.safeExtend({
+  reason: z
+    .string({ error: 'Required: say why the settings change (it goes to the audit log).' })
+    .trim()
+    .min(1, 'Required: say why the settings change (it goes to the audit log).')
+    .max(HEALTH_SETTINGS_REASON_MAX, `Must be at most ${HEALTH_SETTINGS_REASON_MAX} characters.`),
+});
+
+const historyQuery = z.strictObject({
+  limit: z.coerce
+    .number({ error: 'Must be between 1 and 200.' })
+    .int('Must be between 1 and 200.')
+    .min(1, 'Must be between 1 and 200.')
+    .max(200, 'Must be between 1 and 200.')
+    .default(50),
 });
 
 const scanQuery = z.strictObject({ commandId: z.string().min(1).max(64).optional() });
@@ -40,7 +59,8 @@ export interface AlarmRouteDeps {
  *   POST /alarms/:id/acknowledge               technician, engineer, admin
  *   GET  /units/:id/scans/latest[?commandId]   the unit's scan rebuilt: measured maximum, local maxima, model, goto offer
  *   GET  /sites/:id/health-settings            defaults, the site's overrides, effective values
- *   PUT  /sites/:id/health-settings            engineer, admin: replaces the site's overrides
+ *   PUT  /sites/:id/health-settings            engineer, admin: replaces the site's overrides; `reason` required
+ *   GET  /sites/:id/health-settings/history    technician, engineer, admin: the saved changes from the audit log
  *   POST /detectors/run { from, to, unitIds? } engineer, technician, admin: the alarms the detectors raise over stored data
  *   POST /health/run                           the old name of /detectors/run: 308 there (`/api/health` is the liveness check)
  */
@@ -71,9 +91,13 @@ export function alarmRoutes(d: AlarmRouteDeps): Router {
   r.put('/sites/:id/health-settings', requireRole('editHealthSettings'), async (req, res) => {
     const siteId = id(req.params);
     await d.admin.getSite(callerOf(req), siteId); // an unknown site is a 404 before its body is judged
-    res.json(
-      await d.settings.saveSiteSettings(callerOf(req), siteId, parse(healthSettingsOverrideSchema, req.body, 'The health settings')),
-    );
+    const { reason, ...overrides } = parse(settingsSave, req.body, 'The health settings');
+    res.json(await d.settings.saveSiteSettings(callerOf(req), siteId, overrides, reason));
+  });
+
+  r.get('/sites/:id/health-settings/history', requireRole('readHealthSettings'), async (req, res) => {
+    const siteId = id(req.params);
+    res.json(await d.settings.history(callerOf(req), siteId, parse(historyQuery, req.query).limit));
   });
 
   r.post('/detectors/run', requireRole('runDetectors'), async (req, res) => {

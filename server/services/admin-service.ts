@@ -238,6 +238,24 @@ export class AdminService {
     return this.getUnit(by, id);
   }
 
+  /**
+   * A unit carried out a `configure` sent by `byUserId`: its record takes the settings the unit keeps a copy of (today
+   * the detector tilt), audited as `unit-configured` with old → new, and every copy of the unit is refreshed.
+   */
+  async recordConfigured(unitId: number, config: { detectorTiltDeg?: number }, byUserId: number, commandId: string): Promise<void> {
+    if (config.detectorTiltDeg === undefined) return;
+    const current = await this.repo.units.findById(unitId, { ownerId: null });
+    if (!current || current.detectorTiltDeg === config.detectorTiltDeg) return;
+    await this.repo.units.update(unitId, { detectorTiltDeg: config.detectorTiltDeg });
+    await this.repo.audit.append({
+      userId: byUserId,
+      action: 'unit-configured',
+      target: `unit:${unitId}`,
+      detail: { commandId, detectorTiltDeg: { from: current.detectorTiltDeg, to: config.detectorTiltDeg } },
+    });
+    await this.unitChanged(unitId, { credentialsChanged: false, disabled: current.disabled, serial: current.serial });
+  }
+
   async rotateDeviceSecret(by: Caller, id: number): Promise<{ deviceSecret: string }> {
     const unit = await this.getUnit(by, id);
     const deviceSecret = newDeviceSecret();

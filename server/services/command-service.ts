@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto';
 import type { Logger } from 'pino';
 import type { CommandView, IssueCommandRequest } from '../../shared/contracts/live';
 import type { HolderKind, HoldView, UnitHolds } from '../../shared/contracts/holds';
-import type { Command, CommandAck } from '../../shared/contracts/wire';
+import type { Command, CommandAck, UnitConfig } from '../../shared/contracts/wire';
 import { HOLD_COMMANDS as HOLD_KINDS, MOTION_COMMANDS, WIRE_VERSION, type CommandKind } from '../../shared/contracts/wire-format';
 import { may } from '../../shared/contracts/permissions';
 import { commandWords } from '../../shared/contracts/plain-words';
@@ -18,6 +18,11 @@ export interface CommandOptions {
   /** A command queued for an offline unit expires after this long [ms] (holds and releases do not expire). */
   queueTimeoutMs: number;
   now: () => number;
+  /**
+   * A unit carried out a `configure` (answered `done`): the settings it now runs with, and who sent them. The unit
+   * record follows (its detector tilt is what the trap detector and the scans judge it by).
+   */
+  onConfigured?: (unitId: number, config: UnitConfig, byUserId: number, commandId: string) => Promise<void>;
 }
 
 export const DEFAULT_COMMAND_OPTIONS: CommandOptions = { ackTimeoutMs: 30_000, queueTimeoutMs: 10 * 60_000, now: Date.now };
@@ -443,6 +448,11 @@ export class CommandService {
       await this.store.commands.update(cmd.id, { status: 'acknowledged', ackedAt: at });
     } else {
       await this.store.commands.update(cmd.id, { status: 'completed', ackedAt: cmd.ackedAt ?? at, finishedAt: at });
+      const config = cmd.kind === 'configure' ? (cmd.params as { config?: UnitConfig } | null)?.config : undefined;
+      if (config && this.opts.onConfigured)
+        await this.opts
+          .onConfigured(unit.id, config, cmd.issuedBy, cmd.id)
+          .catch((err) => this.log.error({ err, unitId: unit.id, commandId: cmd.id }, 'configured settings not recorded on the unit'));
     }
     await this.emit(cmd.id);
   }

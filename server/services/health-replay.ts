@@ -1,11 +1,12 @@
-import type { AlarmView } from '../../shared/contracts/alarms';
+import type { DetectorRunRequest, DetectorRunResult } from '../../shared/contracts/alarms';
+import type { AlarmRepository } from '../data/alarm-repository';
 import type { HealthReadRepository } from '../data/health-read-repository';
 import { badRequest, notFound } from '../errors/app-error';
 import { alarmView } from '../health/alarm-view';
 import { HealthEngine } from '../health/health-engine';
 import type { SiteModel } from '../health/site-model';
 import type { AdminService } from './admin-service';
-import type { Caller } from './caller';
+import { scopeOf, type Caller } from './caller';
 import type { HealthSettingsService } from './health-settings-service';
 import type { SiteModelCache } from './site-model-cache';
 import { unitRefOf, type UnitDirectory, type UnitInfo } from './unit-directory';
@@ -16,19 +17,11 @@ const RUN_MAX_ROWS = 400_000;
 /** One site model per this much of the range [ms]. */
 const SLOT_MS = 10 * 60_000;
 
-export interface RunRequest {
-  from: string;
-  to: string;
-  unitIds?: number[];
-}
+/** Most stored alarms a run lists beside its own. */
+const STORED_MAX = 1000;
 
-export interface RunResult {
-  from: string;
-  to: string;
-  units: number;
-  reports: number;
-  alarms: AlarmView[];
-}
+export type RunRequest = DetectorRunRequest;
+export type RunResult = DetectorRunResult;
 
 /** The detectors run over stored telemetry of a range, on their own engine (nothing is stored or pushed). */
 export class HealthReplay {
@@ -38,11 +31,13 @@ export class HealthReplay {
     private readonly units: UnitDirectory,
     private readonly models: SiteModelCache,
     private readonly settings: HealthSettingsService,
+    private readonly stored: AlarmRepository,
   ) {}
 
   /**
-   * Runs the detectors over stored telemetry of a range (not persisted): the alarms they would have raised. Models come
-   * from the site survey with the stored weather, one per 10 minutes.
+   * Runs the detectors over stored telemetry of a range (not persisted): the alarms they would have raised, beside the
+   * alarms stored for the same units and range. Models come from the site survey with the stored weather, one per 10
+   * minutes.
    */
   async runRange(c: Caller, req: RunRequest): Promise<RunResult> {
     const from = Date.parse(req.from);
@@ -87,6 +82,20 @@ export class HealthReplay {
     clock = to;
     engine.tick();
     const alarms = engine.book.all().map((a, i) => alarmView(-(i + 1), a));
-    return { from: new Date(from).toISOString(), to: new Date(to).toISOString(), units: infos.length, reports: rows.length, alarms };
+    const stored = await this.stored.overlapping(scopeOf(c), {
+      unitIds: infos.map((u) => u.id),
+      siteIds: [...new Set(infos.map((u) => u.siteId))],
+      from: new Date(from),
+      to: new Date(to),
+      limit: STORED_MAX,
+    });
+    return {
+      from: new Date(from).toISOString(),
+      to: new Date(to).toISOString(),
+      units: infos.length,
+      reports: rows.length,
+      alarms,
+      stored,
+    };
   }
 }

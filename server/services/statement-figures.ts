@@ -38,9 +38,14 @@ import type {
   StatementFigures,
   StatementUnit,
 } from '../../shared/contracts/statements';
-import type { StatementAlarm, StatementQuarter, StatementTicket, StatementUnit as UnitRow } from '../data/statement-repository';
+import {
+  QUARTER_MS,
+  type StatementAlarm,
+  type StatementColumns,
+  type StatementTicket,
+  type StatementUnit as UnitRow,
+} from '../data/statement-repository';
 
-export const QUARTER_MS = 15 * 60_000;
 /** In-plane irradiance above which a bucket is daylight (counts for availability) [W/m²]; common practice. */
 export const DAYLIGHT_THRESHOLD_WM2 = 50;
 
@@ -50,7 +55,8 @@ export interface StatementInput {
   /** Buckets before this instant count (the month so far) [ms]. */
   untilMs: number;
   units: readonly UnitRow[];
-  quarters: readonly StatementQuarter[];
+  /** The month's 15-minute rows of the units (StatementRepository.quarterColumns over [month.fromMs, month.toMs)). */
+  columns: StatementColumns;
   tickets: readonly StatementTicket[];
   alarms: readonly StatementAlarm[];
   gammaPerK: number;
@@ -210,14 +216,49 @@ function figuresOf(s: Sums, p0Kwp: number): StatementFigures {
   };
 }
 
-const NO_PIECES: DownPiece[] = [];
-
 interface DownPiece {
   minutes: number;
   category: AvailabilityCategory;
   source: ExclusionSource;
   ticketId: number | null;
   lostKwh: number;
+}
+
+/**
+ * The downtime pieces of a daylight bucket, in order comms, wind stow, hold, fault, stall (`stalledMin` > 0), each with
+ * its "at best" loss (`kBestKwhPerMin` × minutes). A ticket covering the bucket's midpoint gives every piece its category.
+ */
+function downPieces(
+  tickets: readonly StatementTicket[],
+  midMs: number,
+  kBestKwhPerMin: number,
+  minutes: number,
+  stowedMin: number,
+  heldMin: number,
+  faultMin: number,
+  stalledMin: number,
+): DownPiece[] {
+  let ticket: StatementTicket | undefined;
+  for (const t of tickets)
+    if (covers(t.fromMs, t.toMs, midMs)) {
+      ticket = t;
+      break;
+    }
+  const out: DownPiece[] = [];
+  const add = (mins: number, category: AvailabilityCategory, source: ExclusionSource) => {
+    if (mins <= 0) return;
+    out.push(
+      ticket
+        ? { minutes: mins, category: ticket.category, source: 'ticket', ticketId: ticket.id, lostKwh: kBestKwhPerMin * mins }
+        : { minutes: mins, category, source, ticketId: null, lostKwh: kBestKwhPerMin * mins },
+    );
+  };
+  add(15 - minutes, 'forced-outage', 'comms');
+  add(stowedMin, 'out-of-environmental-specification', 'wind-stow');
+  add(heldMin, 'scheduled-maintenance', 'hold');
+  add(faultMin, 'forced-outage', 'fault');
+  add(stalledMin, 'forced-outage', 'stall');
+  return out;
 }
 
 /**
@@ -236,19 +277,27 @@ export function zenithEstimateDeg(latitudeDeg: number, longitudeDeg: number, utc
   return (Math.acos(Math.max(-1, Math.min(1, c))) * 180) / Math.PI;
 }
 
+const NO_PIECES: DownPiece[] = [];
+const nz = (x: number) => (x === x ? x : 0); // NaN (NULL) → 0
+
 /** Computes a site's statement figures for one local month (the month so far when `untilMs` falls inside it). */
 export function computeStatement(input: StatementInput): StatementResult {
   const { month, units } = input;
+  const c = input.columns;
   const from = month.fromMs;
+  if (c.fromMs !== from) throw new RangeError(`columns start at ${c.fromMs}, the month at ${from}`);
   const until = Math.min(month.toMs, Math.floor(input.untilMs / QUARTER_MS) * QUARTER_MS);
-  const nB = Math.max(0, Math.ceil((until - from) / QUARTER_MS));
-  const nAll = Math.round((month.toMs - from) / QUARTER_MS);
-  const byUnit = new Map<number, (StatementQuarter | undefined)[]>(units.map((u) => [u.id, new Array(nAll)]));
-  for (const q of input.quarters) {
-    const k = (q.bucketMs - from) / QUARTER_MS;
-    const list = byUnit.get(q.unitId);
-    if (list && Number.isInteger(k) && k >= 0 && k < nAll) list[k] = q;
-  }
+  const nB = Math.min(c.buckets, Math.max(0, Math.ceil((until - from) / QUARTER_MS)));
+  const nAll = c.buckets;
+  const slotOfId = new Map(c.unitIds.map((id, slot) => [id, slot]));
+  /** Each unit's first element in the columns, or −1 when the columns do not hold it (no rows). */
+  const baseOf = units.map((u) => {
+    const slot = slotOfId.get(u.id);
+    return slot === undefined ? -1 : slot * nAll;
+  });
+  const { minutes: cMin, poaAvgWm2: cPoa, energyWh: cE, moduleTempC: cT, settledMin: cSettled } = c;
+  const { stowedMin: cStowed, heldMin: cHeld, faultMin: cFault } = c;
+  const { modelUnitWm2: cMU, modelBestWm2: cMB, modelFixedWm2: cMF, modelSunWm2: cMS } = c;
 
   // Site-level per bucket: daylight, and a reference irradiance for units without a model.
   const daylight = new Uint8Array(nB);
@@ -257,25 +306,36 @@ export function computeStatement(input: StatementInput): StatementResult {
   const siteFixed = new Float64Array(nB).fill(NaN);
   const siteSun = new Float64Array(nB).fill(NaN);
   const siteBest = new Float64Array(nB).fill(NaN);
-  const where = { latitudeDeg: input.site.latitudeDeg, longitudeDeg: input.site.longitudeDeg };
   for (let i = 0; i < nB; i++) {
-    const b = from + i * QUARTER_MS;
     let best = -1;
     let poa = -1;
-    for (const m of byUnit.values()) {
-      const q = m[i];
-      if (!q) continue;
-      if (q.modelBestWm2 !== null) best = Math.max(best, q.modelBestWm2);
-      if (q.modelFixedWm2 !== null && q.modelSunWm2 !== null && q.modelBestWm2 !== null) {
-        siteBest[i] = Math.max(q.modelBestWm2, Number.isNaN(siteBest[i]!) ? 0 : siteBest[i]!);
-        siteFixed[i] = Math.max(q.modelFixedWm2, Number.isNaN(siteFixed[i]!) ? 0 : siteFixed[i]!);
-        siteSun[i] = Math.max(q.modelSunWm2, Number.isNaN(siteSun[i]!) ? 0 : siteSun[i]!);
+    let sB = NaN;
+    let sF = NaN;
+    let sS = NaN;
+    for (const base of baseOf) {
+      if (base < 0) continue;
+      const ix = base + i;
+      const mins = cMin[ix]!;
+      if (mins !== mins) continue; // no row
+      const mB = cMB[ix]!;
+      if (mB === mB) {
+        best = Math.max(best, mB);
+        const mF = cMF[ix]!;
+        const mS = cMS[ix]!;
+        if (mF === mF && mS === mS) {
+          sB = Math.max(mB, sB === sB ? sB : 0);
+          sF = Math.max(mF, sF === sF ? sF : 0);
+          sS = Math.max(mS, sS === sS ? sS : 0);
+        }
       }
-      if (q.minutes > 0) poa = Math.max(poa, q.poaAvgWm2);
+      if (mins > 0) poa = Math.max(poa, cPoa[ix]!);
     }
+    siteBest[i] = sB;
+    siteFixed[i] = sF;
+    siteSun[i] = sS;
     let g = best >= 0 ? best : poa;
     if (g < 0) {
-      const z = zenithEstimateDeg(where.latitudeDeg, where.longitudeDeg, b + QUARTER_MS / 2);
+      const z = zenithEstimateDeg(input.site.latitudeDeg, input.site.longitudeDeg, from + i * QUARTER_MS + QUARTER_MS / 2);
       g = z < 90 ? clearSkyGhiHaurwitz(z) : 0;
     }
     refWm2[i] = g;
@@ -290,15 +350,16 @@ export function computeStatement(input: StatementInput): StatementResult {
 
   // First pass: each unit's PR, for the site's median PR of the month.
   const prs: number[] = [];
-  for (const u of units) {
+  for (const [n, u] of units.entries()) {
+    const base = baseOf[n]!;
+    if (base < 0) continue;
     let e = 0;
     let h = 0;
-    const list = byUnit.get(u.id)!;
     for (let i = 0; i < nB; i++) {
-      const q = list[i];
-      if (!q) continue;
-      e += q.energyWh / 1000;
-      h += (q.poaAvgWm2 * q.minutes) / 60 / 1000;
+      const mins = cMin[base + i]!;
+      if (mins !== mins) continue;
+      e += cE[base + i]! / 1000;
+      h += (cPoa[base + i]! * mins) / 60 / 1000;
     }
     const p0 = u.ratedPowerWp / 1000;
     if (h > 0 && p0 > 0) prs.push(e / p0 / h);
@@ -310,10 +371,12 @@ export function computeStatement(input: StatementInput): StatementResult {
   const daySums = month.days.map(() => emptySums());
   const unitOut: StatementUnit[] = [];
   const exclusions: StatementExclusion[] = [];
+  // A unit's sums of its current day: each bucket adds here once; a finished day folds into the unit's and the day's.
+  const cur = emptySums();
 
-  for (const u of units) {
+  for (const [n, u] of units.entries()) {
+    const base = baseOf[n]!;
     const p0 = u.ratedPowerWp / 1000;
-    const rows = byUnit.get(u.id)!;
     const sums = emptySums();
     const unitTickets = input.tickets.filter(
       (t) => (t.unitId === null || t.unitId === u.id) && !IN_SERVICE_CATEGORIES.includes(t.category),
@@ -327,90 +390,94 @@ export function computeStatement(input: StatementInput): StatementResult {
       open = null;
     };
 
-    const bucket = emptySums();
     /** kWh per (W/m² · minute) at the site's median PR. */
     const kPr = (prMed * p0) / 60 / 1000;
+    clearSums(cur);
+    cur.periods.clear();
+    let curDay = nB > 0 ? dayOf[0]! : 0;
     for (let i = 0; i < nB; i++) {
+      if (dayOf[i] !== curDay) {
+        addInto(sums, cur);
+        addInto(daySums[curDay]!, cur);
+        clearSums(cur);
+        cur.periods.clear();
+        curDay = dayOf[i]!;
+      }
       const b = from + i * QUARTER_MS;
       const mid = b + QUARTER_MS / 2;
-      const q = rows[i];
-      const ds = daySums[dayOf[i]!]!;
-      const minutes = Math.min(15, q?.minutes ?? 0);
-      const e = q ? q.energyWh / 1000 : 0;
-      const hi = q ? (q.poaAvgWm2 * minutes) / 60 / 1000 : 0;
-      clearSums(bucket);
-      bucket.energyKwh = e;
-      bucket.p0HiKwh = p0 * hi;
-      bucket.minutes = minutes;
-      bucket.expectedMinutes = 15;
-      if (q && q.moduleTempC !== null && hi > 0) {
-        bucket.prStcNum = e;
-        bucket.prStcDen = p0 * temperatureFactor(input.gammaPerK, q.moduleTempC) * hi;
+      const ix = base < 0 ? -1 : base + i;
+      const reported = ix >= 0 ? cMin[ix]! : NaN;
+      const hasRow = reported === reported;
+      const minutes = hasRow ? Math.min(15, reported) : 0;
+      const e = hasRow ? cE[ix]! / 1000 : 0;
+      const hi = hasRow ? (cPoa[ix]! * minutes) / 60 / 1000 : 0;
+      cur.energyKwh += e;
+      cur.p0HiKwh += p0 * hi;
+      cur.minutes += minutes;
+      cur.expectedMinutes += 15;
+      if (hasRow && hi > 0) {
+        const tC = cT[ix]!;
+        if (tC === tC) {
+          cur.prStcNum += e;
+          cur.prStcDen += p0 * temperatureFactor(input.gammaPerK, tC) * hi;
+        }
       }
-      const isDay = daylight[i] === 1;
-      const rowModelled = !!q && q.modelBestWm2 !== null && q.modelUnitWm2 !== null && q.modelFixedWm2 !== null && q.modelSunWm2 !== null;
+      const mU = hasRow ? cMU[ix]! : NaN;
+      const mB = hasRow ? cMB[ix]! : NaN;
+      const mF = hasRow ? cMF[ix]! : NaN;
+      const mS = hasRow ? cMS[ix]! : NaN;
+      const rowModelled = hasRow && mU === mU && mB === mB && mF === mF && mS === mS;
       // A bucket without a row borrows the site's modelled values (its peers'), so downtime without data is counted.
-      const borrowed = !q && !Number.isNaN(siteBest[i]!);
-      const modelled = rowModelled || borrowed;
-      const stowed = q?.stowedMin ?? 0;
-      const held = q?.heldMin ?? 0;
-      const fault = q?.faultMin ?? 0;
+      const borrowed = !hasRow && siteBest[i] === siteBest[i];
+      const stowed = hasRow ? nz(cStowed[ix]!) : 0;
+      const held = hasRow ? nz(cHeld[ix]!) : 0;
+      const fault = hasRow ? nz(cFault[ix]!) : 0;
       const producing = Math.max(0, minutes - stowed - held - fault);
-      const stalled = producing > 0 && stalls.length > 0 && stalls.some((a) => covers(a.fromMs, a.toMs, mid));
-      const gBest = rowModelled ? q.modelBestWm2! : borrowed ? siteBest[i]! : refWm2[i]!;
-      const atBest = (mins: number, g = gBest) => kPr * g * mins;
+      let stalled = false;
+      if (producing > 0) for (const a of stalls) if (covers(a.fromMs, a.toMs, mid)) stalled = true;
+      const gBest = rowModelled ? mB : borrowed ? siteBest[i]! : refWm2[i]!;
+      /** kWh per minute at the best orientation, at the site's median PR. */
+      const kBest = kPr * gBest;
 
       if (borrowed) {
-        bucket.modelledBest = atBest(15);
-        bucket.downtime = atBest(15);
-        bucket.fixedTwin = atBest(15, siteFixed[i]!);
-        bucket.sunTwin = atBest(15, siteSun[i]!);
+        cur.modelledBest += kBest * 15;
+        cur.downtime += kBest * 15;
+        cur.fixedTwin += kPr * siteFixed[i]! * 15;
+        cur.sunTwin += kPr * siteSun[i]! * 15;
       } else if (rowModelled) {
-        const mU = q.modelUnitWm2!;
         const ratioOk = mU > 1 && e > 0;
-        const bestProd = ratioOk ? (e * q.modelBestWm2!) / mU : atBest(producing);
+        const bestProd = ratioOk ? (e * mB) / mU : kBest * producing;
         const gap = Math.max(0, bestProd - e);
-        bucket.modelledBest = bestProd + atBest(15 - producing);
-        bucket.measuredModelled = e;
-        const settledMostly = (q.settledMin ?? 0) >= producing / 2 && producing > 0;
-        if (stalled) bucket.downtime += gap;
-        else if (settledMostly && mU < TRAP_RATIO * q.modelBestWm2!) bucket.trapped += gap;
-        bucket.downtime += atBest(15 - minutes + fault);
-        bucket.held += atBest(held);
-        bucket.stowed += atBest(stowed);
-        if (soilings.some((a) => covers(a.fromMs, a.toMs, mid))) bucket.soiling += Math.max(0, prMed * p0 * hi - e);
-        const twin = (g: number) => (ratioOk ? (e * g) / mU : atBest(producing, g)) + atBest(15 - producing, g);
-        bucket.fixedTwin = twin(q.modelFixedWm2!);
-        bucket.sunTwin = twin(q.modelSunWm2!);
+        cur.modelledBest += bestProd + kBest * (15 - producing);
+        cur.measuredModelled += e;
+        const settledMostly = nz(cSettled[ix]!) >= producing / 2 && producing > 0;
+        if (stalled) cur.downtime += gap;
+        else if (settledMostly && mU < TRAP_RATIO * mB) cur.trapped += gap;
+        cur.downtime += kBest * (15 - minutes + fault);
+        cur.held += kBest * held;
+        cur.stowed += kBest * stowed;
+        if (soilings.length)
+          for (const a of soilings)
+            if (covers(a.fromMs, a.toMs, mid)) {
+              cur.soiling += Math.max(0, prMed * p0 * hi - e);
+              break;
+            }
+        const down = kPr * (15 - producing);
+        cur.fixedTwin += (ratioOk ? (e * mF) / mU : kPr * mF * producing) + down * mF;
+        cur.sunTwin += (ratioOk ? (e * mS) / mU : kPr * mS * producing) + down * mS;
       }
 
-      if (isDay) {
-        bucket.daylightBuckets = 1;
-        bucket.modelledDaylightBuckets = modelled ? 1 : 0;
-        const ticket = unitTickets.length ? unitTickets.find((t) => covers(t.fromMs, t.toMs, mid)) : undefined;
-        const piece = (mins: number, category: AvailabilityCategory, source: ExclusionSource): DownPiece | null =>
-          mins > 0
-            ? ticket
-              ? { minutes: mins, category: ticket.category, source: 'ticket', ticketId: ticket.id, lostKwh: atBest(mins) }
-              : { minutes: mins, category, source, ticketId: null, lostKwh: atBest(mins) }
-            : null;
+      if (daylight[i] === 1) {
+        cur.daylightBuckets += 1;
+        if (rowModelled || borrowed) cur.modelledDaylightBuckets += 1;
         const anyDown = minutes < 15 || stowed > 0 || held > 0 || fault > 0 || stalled;
-        const pieces = anyDown
-          ? [
-              piece(15 - minutes, 'forced-outage', 'comms'),
-              piece(stowed, 'out-of-environmental-specification', 'wind-stow'),
-              piece(held, 'scheduled-maintenance', 'hold'),
-              piece(fault, 'forced-outage', 'fault'),
-              stalled ? piece(producing, 'forced-outage', 'stall') : null,
-            ].filter((p): p is DownPiece => p !== null)
-          : NO_PIECES;
-        if (stalled) pieces[pieces.length - 1]!.lostKwh = Math.max(0, atBest(producing) - e);
-        for (const target of [sums, ds]) {
-          for (const p of pieces) addPeriod(target, p.category, p.minutes * 60_000, 0, p.lostKwh);
-          addPeriod(target, null, (stalled ? 0 : producing) * 60_000, e, 0);
-        }
+        const pieces = anyDown ? downPieces(unitTickets, mid, kBest, minutes, stowed, held, fault, stalled ? producing : 0) : NO_PIECES;
+        if (stalled) pieces[pieces.length - 1]!.lostKwh = Math.max(0, kBest * producing - e);
+        for (const p of pieces) addPeriod(cur, p.category, p.minutes * 60_000, 0, p.lostKwh);
+        addPeriod(cur, null, (stalled ? 0 : producing) * 60_000, e, 0);
         // The exclusion list: one interval per run of buckets with the same category, source and ticket.
-        const main = pieces.sort((a, c) => c.minutes - a.minutes)[0];
+        let main: DownPiece | undefined;
+        for (const p of pieces) if (!main || p.minutes > main.minutes) main = p;
         if (!main) flush();
         else {
           const same =
@@ -429,13 +496,17 @@ export function computeStatement(input: StatementInput): StatementResult {
               lostKwh: 0,
             };
           }
-          open!.minutes += pieces.reduce((s, p) => s + p.minutes, 0);
-          open!.lostKwh += pieces.reduce((s, p) => s + p.lostKwh, 0);
+          for (const p of pieces) {
+            open!.minutes += p.minutes;
+            open!.lostKwh += p.lostKwh;
+          }
           openEndMs = b + QUARTER_MS;
         }
       } else flush();
-      addInto(sums, bucket);
-      addInto(ds, bucket);
+    }
+    if (nB > 0) {
+      addInto(sums, cur);
+      addInto(daySums[curDay]!, cur);
     }
     flush();
     sums.p0Kwp = p0;

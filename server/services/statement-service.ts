@@ -156,8 +156,8 @@ export class StatementService {
     const nowMs = this.now();
     if (lm.fromMs > nowMs) throw badRequest('The month has not begun.', { month: `${month} starts after today in ${site.timeZone}.` });
     const units = await this.repo.units(site.id);
-    const [quarters, tickets, alarms, kpis] = await Promise.all([
-      this.repo.quarters(
+    const [columns, tickets, alarms, kpis] = await Promise.all([
+      this.repo.quarterColumns(
         units.map((u) => u.id),
         lm.fromMs,
         lm.toMs,
@@ -171,7 +171,7 @@ export class StatementService {
       month: lm,
       untilMs: nowMs,
       units,
-      quarters,
+      columns,
       tickets,
       alarms,
       gammaPerK: MODULE_POWER_TEMP_COEFF_PER_K,

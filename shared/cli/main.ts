@@ -2,7 +2,7 @@
  * `brightward` — the engineer's command line for the irradiance landscape engine.
  *
  *   brightward sun --lat <deg> --lon <deg> --time <ISO 8601 with offset> [--elev <m>] [--pressure <hPa>]
- *                  [--temp <°C>] [--delta-t <s>] [--slope <deg> --surface-azimuth <deg clockwise from north>]
+ *                  [--temp <°C>] [--delta-t <s>] [--delta-ut1 <s>] [--slope <deg> --surface-azimuth <deg clockwise from north>]
  *   brightward landscape --sky <file.json> [--step <deg>] [--detector-tilt <deg>]
  *   brightward kpi --p0-kwp <kWp> --hi-kwh-m2 <kWh/m²> --eout-kwh <kWh> [--gamma-pct-per-k <%/K> --tmod-c <°C>]
  *
@@ -17,6 +17,7 @@ import { skyFromFile } from '../sky-file/index';
 import {
   formatInstant,
   incidenceAngleDeg,
+  MAX_ABS_DELTA_UT1_S,
   parseInstant,
   solarPosition,
   spaEventsForLocalDate,
@@ -26,7 +27,7 @@ import {
 class InputError extends Error {}
 
 const USAGE = `usage:
-  brightward sun --lat <deg> --lon <deg> --time <ISO 8601 with offset> [--elev <m>] [--pressure <hPa>] [--temp <°C>] [--delta-t <s>] [--slope <deg> --surface-azimuth <deg>]
+  brightward sun --lat <deg> --lon <deg> --time <ISO 8601 with offset> [--elev <m>] [--pressure <hPa>] [--temp <°C>] [--delta-t <s>] [--delta-ut1 <s>] [--slope <deg> --surface-azimuth <deg>]
   brightward landscape --sky <file.json> [--step <deg>] [--detector-tilt <deg>]
   brightward kpi --p0-kwp <kWp> --hi-kwh-m2 <kWh/m²> --eout-kwh <kWh> [--gamma-pct-per-k <%/K> --tmod-c <°C>]`;
 
@@ -49,6 +50,20 @@ function numberOption(
   if (!Number.isFinite(v)) throw new InputError(`--${name}: must be a finite number in ${range}; got ${JSON.stringify(raw)}`);
   if ((exclusiveLo ? v <= lo : v < lo) || v > hi) throw new InputError(`--${name}: must be in ${range}; got ${v}`);
   return v;
+}
+
+/**
+ * UT1 − UTC [s]: leap seconds keep it within 0.9 s, so a larger value is a mistake (ΔT given here, or milliseconds),
+ * and the message says what the option means.
+ */
+function deltaUt1Option(values: Record<string, unknown>): number {
+  try {
+    return numberOption(values, 'delta-ut1', -MAX_ABS_DELTA_UT1_S, MAX_ABS_DELTA_UT1_S);
+  } catch (e) {
+    throw new InputError(
+      `${(e as Error).message} (UT1 − UTC in seconds, within ±${MAX_ABS_DELTA_UT1_S} s: leap seconds keep UTC that close to UT1; ΔT = TT − UT1 is --delta-t)`,
+    );
+  }
 }
 
 /** Round for output and refuse non-finite numbers anywhere. */
@@ -77,6 +92,7 @@ function runSun(args: string[]): unknown {
       pressure: { type: 'string' },
       temp: { type: 'string' },
       'delta-t': { type: 'string' },
+      'delta-ut1': { type: 'string' },
       slope: { type: 'string' },
       'surface-azimuth': { type: 'string' },
     },
@@ -98,6 +114,7 @@ function runSun(args: string[]): unknown {
     pressureHpa: values.pressure === undefined ? undefined : numberOption(values, 'pressure', 300, 1100),
     temperatureC: values.temp === undefined ? undefined : numberOption(values, 'temp', -90, 60),
     deltaTS: values['delta-t'] === undefined ? undefined : numberOption(values, 'delta-t', -8000, 8000),
+    deltaUt1S: values['delta-ut1'] === undefined ? undefined : deltaUt1Option(values),
   };
   const hasSlope = values.slope !== undefined;
   const hasAz = values['surface-azimuth'] !== undefined;
@@ -110,13 +127,16 @@ function runSun(args: string[]): unknown {
     zenithDeg: p.zenithDeg,
     azimuthDeg: p.azimuthDeg,
     elevationDeg: p.elevationDeg,
+    zenithNoRefractionDeg: p.zenithNoRefractionDeg,
+    elevationNoRefractionDeg: p.elevationNoRefractionDeg,
+    refractionDeg: p.spa.refractionCorrectionDeg,
   };
   if (hasSlope) {
     const slope = numberOption(values, 'slope', 0, 180);
     const surfaceAzimuth = numberOption(values, 'surface-azimuth', 0, 360);
     out.incidenceDeg = incidenceAngleDeg(p.zenithDeg, p.azimuthDeg, slope, surfaceAzimuth);
   }
-  const ev = sunEventsOfLocalDay(site, instant.unixMs, instant.offsetMinutes, { deltaTS: p.deltaTS });
+  const ev = sunEventsOfLocalDay(site, instant.unixMs, instant.offsetMinutes, { deltaTS: p.deltaTS, deltaUt1S: p.deltaUt1S });
   const fmt = (ms: number | null) => (ms === null ? null : formatInstant(ms, instant.offsetMinutes));
   const a2 = spaEventsForLocalDate(site, instant.unixMs, instant.offsetMinutes, p.deltaTS);
   Object.assign(out, {
@@ -137,6 +157,7 @@ function runSun(args: string[]): unknown {
     equationOfTimeMin: p.equationOfTimeMin,
     earthSunDistanceAu: p.earthSunDistanceAu,
     deltaTS: p.deltaTS,
+    deltaUt1S: p.deltaUt1S,
     pressureHpa: p.pressureHpa,
     temperatureC: p.temperatureC,
     time: formatInstant(instant.unixMs, instant.offsetMinutes),

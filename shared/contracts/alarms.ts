@@ -94,6 +94,53 @@ export interface ScanResult {
   goto: { kind: 'goto'; tiltDeg: number; azimuthDeg: number };
 }
 
+/** `POST /api/detectors/run`: a range of at most 48 h and, optionally, the units (default every unit the caller sees). */
+export interface DetectorRunRequest {
+  from: string;
+  to: string;
+  unitIds?: number[];
+}
+
+/** What the detectors would raise over stored telemetry of the range, beside the alarms stored for it. */
+export interface DetectorRunResult {
+  from: string;
+  to: string;
+  units: number;
+  /** Telemetry reports read. */
+  reports: number;
+  /** The run's alarms (negative ids: nothing is stored). */
+  alarms: AlarmView[];
+  /** Stored alarms of those units (and site-wide alarms of their sites) open at some time in the range, oldest first. */
+  stored: AlarmView[];
+}
+
+/** The longest reason a health-settings change may carry. */
+export const HEALTH_SETTINGS_REASON_MAX = 500;
+
+/**
+ * `PUT /api/sites/:id/health-settings`: the site's new overrides (every setting left out takes its default) and why they
+ * change (required; written to the audit log with the change).
+ */
+export type HealthSettingsSave = Record<string, number | string> & { reason: string };
+
+/** One saved change of a site's health settings, read from the audit log. */
+export interface HealthSettingsChange {
+  at: string;
+  /** Who saved it; null when that person no longer exists. */
+  by: { id: number; name: string } | null;
+  /** Why; null for changes saved before a reason was asked for. */
+  reason: string | null;
+  /** Each setting whose override changed: `null` means the default (no override). */
+  changes: { key: string; from: number | null; to: number | null }[];
+}
+
+/** `GET /api/sites/:id/health-settings/history?limit`: newest first, with how many there are in all. */
+export interface HealthSettingsHistory {
+  siteId: number;
+  total: number;
+  entries: HealthSettingsChange[];
+}
+
 /** `GET|PUT /api/sites/:id/health-settings`. */
 export interface SiteHealthSettings {
   defaults: Record<string, number>;

@@ -14,11 +14,15 @@ export const PERMISSIONS = {
   commandMotion: ['admin', 'engineer', 'technician'],
   acknowledgeAlarms: ['technician', 'engineer', 'admin'],
   editHealthSettings: ['engineer', 'admin'],
+  /** The health settings screen: every threshold with its range and the history of changes (who, when, why). */
+  readHealthSettings: ['engineer', 'technician', 'admin'],
   /** Run the detectors on demand over stored data. */
   runDetectors: ['engineer', 'technician', 'admin'],
   editSurvey: ['admin', 'engineer'],
   /** Proposed survey corrections fitted to a site's scans (proposing, accepting and rejecting them is `editSurvey`). */
   readSurveyRevisions: ['admin', 'engineer', 'technician'],
+  /** Work out the detector tilt a site needs and send it to all the site's units. */
+  tuneDetectors: ['engineer', 'admin'],
   /** Ingest, broker and rollup counters. */
   readMetrics: ['admin', 'engineer', 'technician'],
   /** Traces and their raw CSV export. */

@@ -42,7 +42,15 @@ export interface SolarPositionOptions {
   temperatureC?: number;
   /** ΔT = TT − UT1 (s). Default: Espenak & Meeus 2006 polynomial for the year. */
   deltaTS?: number;
+  /**
+   * ΔUT1 = UT1 − UTC (s), |ΔUT1| ≤ 0.9 (UTC is kept within 0.9 s of UT1 by leap seconds; IERS Bulletin A publishes the
+   * value). Default 0: the instant is taken as UT1, up to 0.9 s off (≈ 0.004° of hour angle).
+   */
+  deltaUt1S?: number;
 }
+
+/** Largest |ΔUT1| [s]: leap seconds keep UTC within 0.9 s of UT1. */
+export const MAX_ABS_DELTA_UT1_S = 0.9;
 
 /** Sun position in the engine's conventions. */
 export interface SunPosition {
@@ -50,12 +58,15 @@ export interface SunPosition {
   elevationDeg: number;
   /** Clockwise from true north. */
   azimuthDeg: number;
-  /** Without refraction. */
+  /** Without refraction (e0 of SPA eq. 41). */
   elevationNoRefractionDeg: number;
+  /** 90° − elevationNoRefractionDeg: the zenith angle without refraction. */
+  zenithNoRefractionDeg: number;
   declinationDeg: number;
   equationOfTimeMin: number;
   earthSunDistanceAu: number;
   deltaTS: number;
+  deltaUt1S: number;
   pressureHpa: number;
   temperatureC: number;
   spa: SpaResult;
@@ -87,11 +98,14 @@ export function solarPosition(site: Site, unixMs: number, options: SolarPosition
   if (options.pressureHpa !== undefined) requireRange(options.pressureHpa, 'pressureHpa', 0, 5000);
   if (options.temperatureC !== undefined) requireRange(options.temperatureC, 'temperatureC', -273, 6000);
   if (options.deltaTS !== undefined) requireRange(options.deltaTS, 'deltaTS', -8000, 8000);
+  if (options.deltaUt1S !== undefined) requireRange(options.deltaUt1S, 'deltaUt1S', -MAX_ABS_DELTA_UT1_S, MAX_ABS_DELTA_UT1_S);
   const deltaTS = options.deltaTS ?? deltaTSecondsEspenakMeeus(decimalYear(unixMs));
+  const deltaUt1S = options.deltaUt1S ?? 0;
   const pressureHpa = options.pressureHpa ?? standardPressureHpa(site.elevationM);
   const temperatureC = options.temperatureC ?? 15;
   const spa = spaSolarPosition({
     unixMs,
+    deltaUt1S,
     deltaTS,
     latitudeDeg: site.latitudeDeg,
     longitudeDeg: site.longitudeDeg,
@@ -104,10 +118,12 @@ export function solarPosition(site: Site, unixMs: number, options: SolarPosition
     elevationDeg: spa.elevationDeg,
     azimuthDeg: spa.azimuthDeg,
     elevationNoRefractionDeg: spa.elevationNoRefractionDeg,
+    zenithNoRefractionDeg: 90 - spa.elevationNoRefractionDeg,
     declinationDeg: spa.topocentricDeclinationDeg,
     equationOfTimeMin: spa.equationOfTimeMin,
     earthSunDistanceAu: spa.earthRadiusVectorAu,
     deltaTS,
+    deltaUt1S,
     pressureHpa,
     temperatureC,
     spa,
@@ -158,9 +174,11 @@ export function sunEventsOfLocalDay(site: Site, unixMs: number, offsetMinutes: n
   const start = localDayStartUnixMs(unixMs, offsetMinutes);
   const deltaTS = options.deltaTS ?? deltaTSecondsEspenakMeeus(decimalYear(start + 43_200_000));
   const h0 = -(0.26667 + 0.5667);
+  const deltaUt1S = options.deltaUt1S ?? 0;
   const geo = (t: number) =>
     spaSolarPosition({
       unixMs: t,
+      deltaUt1S,
       deltaTS,
       latitudeDeg: site.latitudeDeg,
       longitudeDeg: site.longitudeDeg,

@@ -104,6 +104,20 @@ export const routes: Routes = [
         loadComponent: () => import('./landscape/landscape-view').then((m) => m.LandscapeView),
       },
       {
+        path: 'health-settings',
+        title: 'Health settings · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/health-settings') },
+        loadComponent: () => import('./health-settings/health-settings-page').then((m) => m.HealthSettingsPage),
+      },
+      {
+        path: 'replay',
+        title: 'Detector replay · Brightward',
+        canActivate: [roleGuard],
+        data: { roles: rolesFor('/replay') },
+        loadComponent: () => import('./replay/detector-replay').then((m) => m.DetectorReplay),
+      },
+      {
         path: 'sites',
         canActivate: [roleGuard],
         data: { roles: rolesFor('/sites') },

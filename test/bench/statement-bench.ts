@@ -14,7 +14,7 @@ import { parseArgs } from 'node:util';
 import request from 'supertest';
 import { DEMO_PASSWORD } from '../../seeds/demo-world';
 import { HistoryRepository, type QuarterRow } from '../../server/data/history-repository';
-import { StatementRepository } from '../../server/data/statement-repository';
+import { emptyStatementColumns, StatementRepository } from '../../server/data/statement-repository';
 import { computeStatement } from '../../server/services/statement-figures';
 import { MODULE_POWER_TEMP_COEFF_PER_K } from '../../shared/contracts/pv-module';
 import { localMonth } from '../../shared/pv-performance';
@@ -160,11 +160,11 @@ async function main() {
     const repo = new StatementRepository(db);
     const units = await repo.units(siteId!);
     const reads: number[] = [];
-    let quarters: Awaited<ReturnType<StatementRepository['quarters']>> = [];
+    let columns = emptyStatementColumns(unitIds, lm.fromMs, lm.toMs);
     for (let r = 0; r < RUNS; r++) {
-      const t = await timed(() => repo.quarters(unitIds, lm.fromMs, lm.toMs));
+      const t = await timed(() => repo.quarterColumns(unitIds, lm.fromMs, lm.toMs));
       reads.push(t.ms);
-      quarters = t.value;
+      columns = t.value;
     }
     const [tk, al] = await Promise.all([repo.tickets(siteId!, lm.fromMs, lm.toMs), repo.alarms(siteId!, lm.fromMs, lm.toMs)]);
     const sums: number[] = [];
@@ -175,7 +175,7 @@ async function main() {
         month: lm,
         untilMs: Date.now(),
         units,
-        quarters,
+        columns,
         tickets: tk,
         alarms: al,
         gammaPerK: MODULE_POWER_TEMP_COEFF_PER_K,
@@ -193,7 +193,7 @@ async function main() {
     }
 
     say(
-      `statement of ${MONTH} for ${UNITS} units (${quarters.length.toLocaleString('en')} rows, ${tk.length} tickets): ` +
+      `statement of ${MONTH} for ${UNITS} units (${columns.rows.toLocaleString('en')} rows, ${tk.length} tickets): ` +
         `median ${ms} ms over ${RUNS} runs (min ${Math.round(Math.min(...times))}, max ${Math.round(Math.max(...times))}; first ${Math.round(first.ms)}); target ≤ 500 ms`,
     );
     say(`  read of the month's rows: median ${Math.round(median(reads))} ms; arithmetic: median ${Math.round(median(sums))} ms`);

@@ -16,6 +16,7 @@ import type { E2e, Journey } from './harness';
 import { accountJourney } from './journeys/account';
 import { adminJourney } from './journeys/admin';
 import { alarmsJourney } from './journeys/alarms';
+import { controlsJourney } from './journeys/controls';
 import { auditJourney } from './journeys/audit';
 import { fleetBoardJourney } from './journeys/fleet-board';
 import { landscapeJourney } from './journeys/landscape';
@@ -47,6 +48,7 @@ const JOURNEYS: readonly Journey[] = [
   alarmsJourney,
   tracesJourney,
   landscapeJourney,
+  controlsJourney,
   ticketsJourney,
   notificationsJourney,
   plainWordsJourney,

@@ -94,17 +94,24 @@ describe('alarms over HTTP', () => {
     const before = (await eng.get(`/api/sites/${siteId}/health-settings`).expect(200)).body;
     expect(before.effective.trapRatio).toBe(before.defaults.trapRatio);
     expect(before.ranges.stowGustMs).toEqual({ min: 5, max: 35, unit: 'm/s' });
-    const saved = (await eng.put(`/api/sites/${siteId}/health-settings`).send({ trapRatio: 0.8, stowGustMs: 16 }).expect(200)).body;
+    const saved = (
+      await eng.put(`/api/sites/${siteId}/health-settings`).send({ trapRatio: 0.8, stowGustMs: 16, reason: 'Tighter traps' }).expect(200)
+    ).body;
     expect(saved.effective).toMatchObject({ trapRatio: 0.8, stowGustMs: 16 });
     expect(saved.overrides).toEqual({ trapRatio: 0.8, stowGustMs: 16 });
-    await eng.put(`/api/sites/${siteId}/health-settings`).send({ trapRatio: 2 }).expect(400);
+    await eng.put(`/api/sites/${siteId}/health-settings`).send({ trapRatio: 2, reason: 'Out of range' }).expect(400);
     // A gust limit no wind reaches would silently switch the not-stowed (P1) alarm off.
-    const huge = await eng.put(`/api/sites/${siteId}/health-settings`).send({ stowGustMs: 1e300 });
+    const huge = await eng.put(`/api/sites/${siteId}/health-settings`).send({ stowGustMs: 1e300, reason: 'Out of range' });
     expect(huge.status).toBe(400);
     expect(huge.body.error.fields).toEqual({ stowGustMs: 'Must be between 5 and 35 m/s.' });
     expect((await eng.get(`/api/sites/${siteId}/health-settings`).expect(200)).body.effective.stowGustMs).toBe(16);
-    await eng.put(`/api/sites/${siteId}/health-settings`).send({ noSuchSetting: 1 }).expect(400);
-    await (await as('tech1@saltmarsh.example')).put(`/api/sites/${siteId}/health-settings`).send({ trapRatio: 0.8 }).expect(403);
+    await eng.put(`/api/sites/${siteId}/health-settings`).send({ noSuchSetting: 1, reason: 'Unknown' }).expect(400);
+    await (
+      await as('tech1@saltmarsh.example')
+    )
+      .put(`/api/sites/${siteId}/health-settings`)
+      .send({ trapRatio: 0.8, reason: 'Not mine to change' })
+      .expect(403);
   });
 
   it('runs the detectors on demand over a stored range (engineer), and refuses an empty or too long range', async () => {

@@ -148,6 +148,11 @@ const ROUTES: Row[] = [
   row('GET /api/sites/:id/landscape',              (w, s) => `/api/sites/${w[s].siteId}/landscape?at=${HOUR}&stepDeg=10&grid=false`,     401, 200, 200, 200, 200, 403),
   row('GET /api/sites/:id/landscape/best',         (w, s) => `/api/sites/${w[s].siteId}/landscape/best?at=${HOUR}`,                      401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/landscape/day',          (w, s) => `/api/sites/${w[s].siteId}/landscape/day?date=2026-12-21`,                  401, 200, 200, 200, 200, 403),
+  // The detector tilt a site needs, and sending it to all its units: engineers and admins. Without `confirm` the send
+  // is refused (400) after the role check, so the matrix sends nothing.
+  row('GET /api/sites/:id/detector-tilt',          (w, s) => `/api/sites/${w[s].siteId}/detector-tilt?year=2026`,                         401, 200, 200, 403, 403, 403),
+  row('POST /api/sites/:id/detector-tilt',         (w, s) => ({ path: `/api/sites/${w[s].siteId}/detector-tilt`, body: { detectorTiltDeg: 12 } }),
+                                                                                                                                          401, 400, 400, 403, 403, 403),
 
   // Alarms and health: read in scope; acknowledged by the control room; settings by engineers and admins.
   // Tickets: read in scope; opened by the control room; moved by whoever the lifecycle names (tickets.test.ts has the table).
@@ -181,8 +186,9 @@ const ROUTES: Row[] = [
   row('POST /api/alarms/:id/acknowledge',          (w, s) => ({ path: `/api/alarms/${w[s].alarmId}/acknowledge`, body: {} }),             401, 200, 200, 200, 403, 403),
   row('GET /api/units/:id/scans/latest',           (w, s) => `/api/units/${unit(w, s)}/scans/latest`,                                     401, 200, 200, 200, 200, mine(200)),
   row('GET /api/sites/:id/health-settings',        (w, s) => `/api/sites/${w[s].siteId}/health-settings`,                                401, 200, 200, 200, 200, mine(200)),
-  row('PUT /api/sites/:id/health-settings',        (w, s) => ({ path: `/api/sites/${w[s].siteId}/health-settings`, body: { stowGustMs: 17 } }),
+  row('PUT /api/sites/:id/health-settings',        (w, s) => ({ path: `/api/sites/${w[s].siteId}/health-settings`, body: { stowGustMs: 17, reason: 'matrix' } }),
                                                                                                                                           401, 200, 200, 403, 403, 403),
+  row('GET /api/sites/:id/health-settings/history', (w, s) => `/api/sites/${w[s].siteId}/health-settings/history?limit=5`,               401, 200, 200, 200, 403, 403),
   row('POST /api/detectors/run',                   (w, s) => ({ path: '/api/detectors/run', body: { from: '2026-06-10T08:00:00Z', to: '2026-06-10T08:10:00Z', unitIds: [unit(w, s)] } }),
                                                                                                                                           401, 200, 200, 200, 403, 403),
   // The detectors' run under its old name: a permanent redirect for everyone signed in (the new path checks the role).

@@ -66,16 +66,16 @@ describe('what is written to the audit log', () => {
     expect(await auditRows('alarm-acknowledge')).toHaveLength(before + 1);
   });
 
-  it('a health-settings change: who, which site, the overrides before and after; a refused change writes nothing', async () => {
+  it('a health-settings change: who, which site, the overrides before and after, why; a refused change writes nothing', async () => {
     const eng = await as('engineer@saltmarsh.example');
-    await eng.put(`/api/sites/${ids.site}/health-settings`).send({ stowGustMs: 16 }).expect(200);
-    await eng.put(`/api/sites/${ids.site}/health-settings`).send({ stowGustMs: 15, trapRatio: 0.8 }).expect(200);
+    await eng.put(`/api/sites/${ids.site}/health-settings`).send({ stowGustMs: 16, reason: 'Gusty site' }).expect(200);
+    await eng.put(`/api/sites/${ids.site}/health-settings`).send({ stowGustMs: 15, trapRatio: 0.8, reason: 'Facade traps' }).expect(200);
     const rows = await auditRows('health-settings-update');
     expect(rows.map((r) => r.user_id)).toEqual([ids.eng, ids.eng]);
     expect(rows.map((r) => r.target)).toEqual([`site:${ids.site}`, `site:${ids.site}`]);
-    expect(detailOf(rows[1]!)).toEqual({ before: { stowGustMs: 16 }, after: { stowGustMs: 15, trapRatio: 0.8 } });
+    expect(detailOf(rows[1]!)).toEqual({ before: { stowGustMs: 16 }, after: { stowGustMs: 15, trapRatio: 0.8 }, reason: 'Facade traps' });
 
-    const refused = await eng.put(`/api/sites/${ids.site}/health-settings`).send({ stowGustMs: 1e300 });
+    const refused = await eng.put(`/api/sites/${ids.site}/health-settings`).send({ stowGustMs: 1e300, reason: 'Too far' });
     expect(refused.status).toBe(400);
     expect(refused.body.error.fields).toEqual({ stowGustMs: 'Must be between 5 and 35 m/s.' });
     expect(await auditRows('health-settings-update')).toHaveLength(2);

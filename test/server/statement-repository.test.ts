@@ -1,4 +1,4 @@
-/** The statements' read of 15-minute rows (a prepared statement, rows as arrays): every column back as stored, NULLs as null. */
+/** The statements' read of 15-minute rows (a prepared statement, rows as arrays, into columns): every value as stored, NULLs as NaN. */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { StatementRepository } from '../../server/data/statement-repository';
 import { createTestDatabase, type TestDatabase } from '../helpers/test-db';
@@ -42,48 +42,68 @@ afterAll(async () => {
   await t?.drop();
 });
 
-describe('StatementRepository.quarters', () => {
-  it('reads the asked units in the window with every column as stored and NULLs as null', async () => {
-    const rows = await new StatementRepository(t.db).quarters([ids[0]!, ids[1]!], B - 3_600_000, B + 3_600_000);
-    rows.sort((a, b) => a.unitId - b.unitId);
-    expect(rows).toEqual([
-      {
-        unitId: ids[0],
-        bucketMs: B,
-        minutes: 15,
-        poaAvgWm2: 612.5,
-        energyWh: 57.5625,
-        moduleTempC: 31.25,
-        seekingMin: 1.5,
-        settledMin: 12,
-        scanningMin: 0.5,
-        stowedMin: 0.25,
-        heldMin: 0.5,
-        faultMin: 0.25,
-        modelUnitWm2: 640.1,
-        modelBestWm2: 655.2,
-        modelFixedWm2: 480.3,
-        modelSunWm2: 650.4,
-      },
-      {
-        unitId: ids[1],
-        bucketMs: B,
-        minutes: 7,
-        poaAvgWm2: 612.5,
-        energyWh: 57.5625,
-        moduleTempC: null,
-        seekingMin: null,
-        settledMin: null,
-        scanningMin: null,
-        stowedMin: null,
-        heldMin: null,
-        faultMin: null,
-        modelUnitWm2: null,
-        modelBestWm2: null,
-        modelFixedWm2: null,
-        modelSunWm2: null,
-      },
-    ]);
-    expect(await new StatementRepository(t.db).quarters([], B - 3_600_000, B + 3_600_000)).toEqual([]);
+describe('StatementRepository.quarterColumns', () => {
+  const FROM = B - 3_600_000;
+  const TO = B + 3_600_000;
+  const K = (B - FROM) / 900_000; // the rows' bucket index: 4
+
+  it('reads the asked units in the window into their columns as stored, NULL and no row as NaN', async () => {
+    const c = await new StatementRepository(t.db).quarterColumns([ids[0]!, ids[1]!], FROM, TO);
+    expect(c.buckets).toBe(8);
+    expect(c.rows).toBe(2);
+    expect(c.unitIds).toEqual([ids[0], ids[1]]);
+    const at = (slot: number) => slot * c.buckets + K;
+    const values = (ix: number) => ({
+      minutes: c.minutes[ix],
+      poaAvgWm2: c.poaAvgWm2[ix],
+      energyWh: c.energyWh[ix],
+      moduleTempC: c.moduleTempC[ix],
+      settledMin: c.settledMin[ix],
+      stowedMin: c.stowedMin[ix],
+      heldMin: c.heldMin[ix],
+      faultMin: c.faultMin[ix],
+      modelUnitWm2: c.modelUnitWm2[ix],
+      modelBestWm2: c.modelBestWm2[ix],
+      modelFixedWm2: c.modelFixedWm2[ix],
+      modelSunWm2: c.modelSunWm2[ix],
+    });
+    expect(values(at(0))).toEqual({
+      minutes: 15,
+      poaAvgWm2: 612.5,
+      energyWh: 57.5625,
+      moduleTempC: 31.25,
+      settledMin: 12,
+      stowedMin: 0.25,
+      heldMin: 0.5,
+      faultMin: 0.25,
+      modelUnitWm2: 640.1,
+      modelBestWm2: 655.2,
+      modelFixedWm2: 480.3,
+      modelSunWm2: 650.4,
+    });
+    // An older row: the statement columns are NULL.
+    expect(values(at(1))).toEqual({
+      minutes: 7,
+      poaAvgWm2: 612.5,
+      energyWh: 57.5625,
+      moduleTempC: NaN,
+      settledMin: NaN,
+      stowedMin: NaN,
+      heldMin: NaN,
+      faultMin: NaN,
+      modelUnitWm2: NaN,
+      modelBestWm2: NaN,
+      modelFixedWm2: NaN,
+      modelSunWm2: NaN,
+    });
+    // Every other bucket of both units has no row.
+    const filled = [...c.minutes.keys()].filter((ix) => !Number.isNaN(c.minutes[ix]));
+    expect(filled).toEqual([at(0), at(1)]);
+  });
+
+  it('answers empty columns for no units', async () => {
+    const c = await new StatementRepository(t.db).quarterColumns([], FROM, TO);
+    expect(c.rows).toBe(0);
+    expect(c.minutes.length).toBe(0);
   });
 });

@@ -57,6 +57,56 @@ describe('brightward sun', () => {
     expect(r.stdout).not.toMatch(/NaN|Infinity/);
   });
 
+  const spaExample = [
+    '--lat',
+    '39.742476',
+    '--lon',
+    '-105.1786',
+    '--elev',
+    '1830.14',
+    '--pressure',
+    '820',
+    '--temp',
+    '11',
+    '--delta-t',
+    '67',
+  ];
+
+  it('prints the unrefracted zenith and elevation beside the refracted ones (SPA worked example, ΔUT1 = 0)', () => {
+    const r = cli('sun', ...spaExample, '--delta-ut1', '0', '--time', '2003-10-17T12:30:30-07:00');
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.deltaUt1S).toBe(0);
+    expect(Math.abs(out.elevationNoRefractionDeg - 39.872046)).toBeLessThan(1e-6); // Table A5.1 e0
+    expect(Math.abs(out.refractionDeg - 0.016332)).toBeLessThan(1e-6); // Table A5.1 Δe
+    expect(Math.abs(out.elevationDeg - 39.888378)).toBeLessThan(1e-6); // Table A5.1 e
+    expect(Math.abs(out.zenithNoRefractionDeg - (90 - 39.872046))).toBeLessThan(1e-6); // derived: 90° − e0 (report eq. 44 without Δe)
+    expect(Math.abs(out.zenithDeg - 50.11162)).toBeLessThan(1e-5); // Table A5.1 θ
+  });
+
+  it('takes ΔUT1 as UT1 − UTC: +0.5 s is the same sun as the instant 0.5 s later with ΔUT1 = 0', () => {
+    // Derived from the report's time scales (eq. 4–5: JD from UT = UTC + ΔUT1, JDE = JD + ΔT/86400), with ΔT held.
+    const shifted = JSON.parse(cli('sun', ...spaExample, '--delta-ut1', '0.5', '--time', '2003-10-17T12:30:30-07:00').stdout);
+    const later = JSON.parse(cli('sun', ...spaExample, '--time', '2003-10-17T12:30:30.500-07:00').stdout);
+    const base = JSON.parse(cli('sun', ...spaExample, '--time', '2003-10-17T12:30:30-07:00').stdout);
+    expect(shifted.deltaUt1S).toBe(0.5);
+    expect(shifted.zenithDeg).toBeCloseTo(later.zenithDeg, 6);
+    expect(shifted.azimuthDeg).toBeCloseTo(later.azimuthDeg, 6);
+    expect(shifted.elevationNoRefractionDeg).toBeCloseTo(later.elevationNoRefractionDeg, 6);
+    // Half a second moves the sun measurably: the azimuth changes by about 0.5 s × 15″/s ≈ 0.002° at this hour.
+    expect(Math.abs(shifted.azimuthDeg - base.azimuthDeg)).toBeGreaterThan(0.001);
+    expect(Math.abs(shifted.azimuthDeg - base.azimuthDeg)).toBeLessThan(0.004);
+  });
+
+  for (const v of ['0.95', '-1', '67', 'abc']) {
+    it(`refuses --delta-ut1 ${v}, saying what ΔUT1 is`, () => {
+      const r = cli('sun', ...spaExample, '--delta-ut1', v, '--time', '2003-10-17T12:30:30-07:00');
+      expect(r.code).toBe(2);
+      expect(r.stdout).toBe('');
+      expect(r.stderr).toMatch(/--delta-ut1: must be (a finite number )?in \[-0\.9, 0\.9\].*UT1 − UTC in seconds/);
+    });
+  }
+
   const bad: [string[], RegExp][] = [
     [['--lat', '91', '--lon', '0', '--time', '2020-01-01T00:00:00Z'], /--lat: must be in \[-90, 90\]/],
     [['--lat', 'NaN', '--lon', '0', '--time', '2020-01-01T00:00:00Z'], /--lat: must be a finite number/],

@@ -140,6 +140,7 @@ describe('bad input to solar position', () => {
     expect(() => solarPosition({ ...site, longitudeDeg: Number.NaN }, 0)).toThrow(/longitudeDeg/);
     expect(() => solarPosition(site, Number.POSITIVE_INFINITY)).toThrow(/time/);
     expect(() => solarPosition(site, 0, { pressureHpa: -1 })).toThrow(/pressureHpa/);
+    expect(() => solarPosition(site, 0, { deltaUt1S: 0.95 })).toThrow(/deltaUt1S: must be a finite number in \[-0.9, 0.9\]/);
     expect(() => sunEventsOfLocalDay({ ...site, latitudeDeg: -91 }, 0, 0)).toThrow(/latitudeDeg/);
   });
 });

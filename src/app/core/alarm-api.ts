@@ -1,7 +1,15 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { inject, Injectable } from '@angular/core';
 import { catchError, map, Observable, of } from 'rxjs';
-import type { AlarmLiveItem, AlarmView, ScanResult, SiteHealthSettings } from '../../../shared/contracts/alarms';
+import type {
+  AlarmLiveItem,
+  AlarmView,
+  DetectorRunRequest,
+  DetectorRunResult,
+  HealthSettingsHistory,
+  ScanResult,
+  SiteHealthSettings,
+} from '../../../shared/contracts/alarms';
 import { toApiProblem } from '../ui/api-error';
 
 export type { AlarmView } from '../../../shared/contracts/alarms';
@@ -57,7 +65,20 @@ export class AlarmApi {
     return this.http.get<SiteHealthSettings>(`/api/sites/${siteId}/health-settings`);
   }
 
-  saveHealthSettings(siteId: number, overrides: Record<string, number>): Observable<SiteHealthSettings> {
-    return this.http.put<SiteHealthSettings>(`/api/sites/${siteId}/health-settings`, overrides);
+  /** Replaces the site's overrides (a setting left out takes its default); the reason goes to the audit log. */
+  saveHealthSettings(siteId: number, overrides: Record<string, number>, reason: string): Observable<SiteHealthSettings> {
+    return this.http.put<SiteHealthSettings>(`/api/sites/${siteId}/health-settings`, { ...overrides, reason });
+  }
+
+  /** The site's saved changes of its health settings, newest first. */
+  healthSettingsHistory(siteId: number, limit = 50): Observable<HealthSettingsHistory> {
+    return this.http.get<HealthSettingsHistory>(`/api/sites/${siteId}/health-settings/history`, {
+      params: new HttpParams().set('limit', limit),
+    });
+  }
+
+  /** The detectors run over stored telemetry of a range (nothing stored), beside the alarms stored for it. */
+  runDetectors(request: DetectorRunRequest): Observable<DetectorRunResult> {
+    return this.http.post<DetectorRunResult>('/api/detectors/run', request);
   }
 }

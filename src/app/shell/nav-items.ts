@@ -22,6 +22,8 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/sites', label: 'Sites', icon: 'location_city', group: 'Fleet', roles: rolesWith('readSites') },
   { path: '/traces', label: 'Trace explorer', icon: 'query_stats', group: 'Fleet', roles: rolesWith('readTraces') },
   { path: '/landscape', label: 'Landscape', icon: 'landscape', group: 'Fleet', roles: rolesWith('openLandscape') },
+  { path: '/health-settings', label: 'Health settings', icon: 'tune', group: 'Fleet', roles: rolesWith('readHealthSettings') },
+  { path: '/replay', label: 'Detector replay', icon: 'replay', group: 'Fleet', roles: rolesWith('runDetectors') },
   { path: '/notifications', label: 'Notifications', icon: 'notifications', group: 'Fleet', roles: rolesWith('receiveNotifications') },
   { path: '/admin/people', label: 'People', icon: 'group', group: 'Administration', roles: rolesWith('administer') },
   { path: '/admin/owners', label: 'Owners', icon: 'handshake', group: 'Administration', roles: rolesWith('administer') },

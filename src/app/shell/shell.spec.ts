@@ -24,7 +24,16 @@ describe('Shell', () => {
   it('lists only the pages a technician may use, with the name and role', async () => {
     const { element } = await renderAs('technician');
     const labels = [...element.querySelectorAll('[data-testid="main-nav"] a [matListItemTitle]')].map((s) => s.textContent!.trim());
-    expect(labels).toEqual(['Fleet board', 'Alarms', 'Tickets', 'Sites', 'Trace explorer', 'Notifications']);
+    expect(labels).toEqual([
+      'Fleet board',
+      'Alarms',
+      'Tickets',
+      'Sites',
+      'Trace explorer',
+      'Health settings',
+      'Detector replay',
+      'Notifications',
+    ]);
     expect(element.querySelector('[data-testid="role-chip"]')!.textContent).toContain('O&M technician');
     expect(element.querySelector('[data-testid="user-menu"]')!.textContent).toContain('Mara Okonjo');
     expect(element.textContent).not.toContain('Administration');
@@ -42,6 +51,8 @@ describe('Shell', () => {
       '/sites',
       '/traces',
       '/landscape',
+      '/health-settings',
+      '/replay',
       '/notifications',
       '/admin/people',
       '/admin/owners',

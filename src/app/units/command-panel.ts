@@ -4,6 +4,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
+import { RouterLink } from '@angular/router';
 import type { UnitConfig } from '../../../shared/contracts/wire';
 import { WIRE_RANGES } from '../../../shared/contracts/wire-format';
 import type { CommandChoice } from './commands';
@@ -37,7 +38,7 @@ export function settingsFromForm(fields: Record<keyof UnitConfig, number | null>
 /** Commands for one unit: the go-to target, one button per command with why it is not offered, and the settings form. */
 @Component({
   selector: 'bw-command-panel',
-  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule],
+  imports: [FormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, RouterLink],
   template: `
     <section class="panel" aria-labelledby="cmd-title">
       <h2 id="cmd-title">Commands</h2>
@@ -95,6 +96,12 @@ export function settingsFromForm(fields: Record<keyof UnitConfig, number | null>
         >
           <h3 id="settings-title">Unit settings</h3>
           <p class="hint">Fill in only what should change; the unit keeps the rest.</p>
+          @if (tuneSiteId() !== null) {
+            <p class="hint" data-testid="site-tilt-link">
+              The detector tilt this site needs over the year, for all its units at once:
+              <a routerLink="/health-settings" [queryParams]="{ site: tuneSiteId() }">Health settings</a>.
+            </p>
+          }
           <div class="setting-fields">
             <mat-form-field subscriptSizing="dynamic">
               <mat-label>Detector tilt</mat-label>
@@ -235,6 +242,8 @@ export class CommandPanel {
   readonly busy = input(false);
   /** Whether the viewer may send new settings. */
   readonly canConfigure = input(false);
+  /** The unit's site, when the viewer may work out and send the site's detector tilt (a link to it); null otherwise. */
+  readonly tuneSiteId = input<number | null>(null);
   /** The go-to target; the view starts it at the modelled best and a trap finding may set it. */
   readonly gotoTilt = model<number | null>(null);
   readonly gotoAzimuth = model<number | null>(null);

@@ -1,6 +1,7 @@
 import { TestBed } from '@angular/core/testing';
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting, type TestRequest } from '@angular/common/http/testing';
+import { MATERIAL_ANIMATIONS } from '@angular/material/core';
 import { provideRouter } from '@angular/router';
 import { provideEchartsCore } from 'ngx-echarts';
 import type { Me, Role, Site, Unit } from '../../../shared/contracts/api';
@@ -83,6 +84,7 @@ async function renderUnitView(role: Role) {
       provideHttpClient(),
       provideHttpClientTesting(),
       provideRouter([]),
+      { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } },
       // Charts never draw here: the library is never loaded.
       provideEchartsCore({ echarts: () => new Promise<never>(() => undefined) }),
       { provide: LIVE_SOCKET_FACTORY, useValue: () => new FakeSocket() as unknown as WebSocket },
@@ -114,7 +116,7 @@ async function renderUnitView(role: Role) {
     for (const r of http.match(() => true)) answer(r);
     await fixture.whenStable();
   }
-  return { el: fixture.nativeElement as HTMLElement, asked };
+  return { el: fixture.nativeElement as HTMLElement, asked, fixture };
 }
 
 describe('UnitView for each role', () => {
@@ -145,7 +147,53 @@ describe('UnitView for each role', () => {
     expect(el.querySelector('[data-testid="read-only-note"]')).toBeNull();
     expect(el.querySelector('bw-command-panel')).not.toBeNull();
     expect(el.querySelector('bw-command-history')).not.toBeNull();
+    expect(el.querySelector('[data-testid="site-tilt-link"]')).toBeNull(); // the site's detector tilt is the engineers'
     expect(asked).toContain('/api/units/5/commands');
     expect([...el.querySelectorAll('.values dt')].map((d) => d.textContent!.trim())).toContain('DC power');
+  });
+
+  it('sends new settings only after a confirmation naming the unit and the settings, with the cautions and the people-clear check', async () => {
+    const { el, fixture } = await renderUnitView('engineer');
+    expect(el.querySelector('[data-testid="site-tilt-link"] a')!.getAttribute('href')).toBe('/health-settings?site=1');
+    const type = async (name: string, value: string) => {
+      const input = el.querySelector(`[data-testid="settings-form"] input[name="${name}"]`) as HTMLInputElement;
+      input.value = value;
+      input.dispatchEvent(new Event('input'));
+      await fixture.whenStable();
+    };
+    await type('detectorTiltDeg', '16.5');
+    await type('deadbandWm2', '4');
+    (el.querySelector('[data-testid="cmd-configure"]') as HTMLButtonElement).click();
+    await fixture.whenStable();
+    const dialog = document.querySelector('mat-dialog-container')!;
+    expect(dialog.textContent).toContain('Send new settings — QHL-2405?');
+    expect(dialog.querySelector('[data-testid="command-description"]')!.textContent).toContain('detector tilt 16.5°');
+    expect(dialog.querySelector('[data-testid="command-description"]')!.textContent).toContain('deadband 4 W/m²');
+    expect(dialog.querySelector('[data-testid="command-caution"]')!.textContent).toContain('may start to move at once');
+    expect(dialog.querySelector('[data-testid="command-caution"]')!.textContent).toContain('not a lockout');
+    const confirm = dialog.querySelector('[data-testid="confirm"]') as HTMLButtonElement;
+    expect(confirm.disabled).toBe(true);
+    (dialog.querySelector('[data-testid="people-clear"] input') as HTMLInputElement).click();
+    await fixture.whenStable();
+    confirm.click();
+    await new Promise((r) => setTimeout(r, 50)); // the dialog closes, then the view sends
+    await fixture.whenStable();
+    const post = http!.expectOne((r) => r.method === 'POST' && r.url === '/api/units/5/commands');
+    expect(post.request.body).toEqual({ kind: 'configure', config: { detectorTiltDeg: 16.5, deadbandWm2: 4 }, confirm: true });
+    post.flush({
+      id: 'c1',
+      unitId: 5,
+      kind: 'configure',
+      params: { config: { detectorTiltDeg: 16.5, deadbandWm2: 4 } },
+      status: 'sent',
+      reason: null,
+      issuedBy: { id: 3, name: 'Priya Halvorsen' },
+      issuedAt: '2026-06-21T10:00:00Z',
+      sentAt: '2026-06-21T10:00:00Z',
+      ackedAt: null,
+      finishedAt: null,
+      expiresAt: null,
+    });
+    await fixture.whenStable();
   });
 });

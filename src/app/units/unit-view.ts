@@ -146,6 +146,7 @@ export class UnitView {
   protected readonly ago = ago;
   protected readonly withUnit = withUnit;
   protected readonly canSendCommands = computed(() => may(this.session.role(), 'commandMotion'));
+  protected readonly canTuneSite = computed(() => may(this.session.role(), 'tuneDetectors'));
   protected readonly holderNames = holderNames;
   /** The unit has reported and is offline now: commands wait in the queue. */
   protected readonly offline = computed(() => {

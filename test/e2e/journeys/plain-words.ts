@@ -176,6 +176,16 @@ export const plainWordsJourney: Journey = {
         ready: (p) => p.getByTestId('landscape-summary').waitFor({ timeout: 15_000 }),
         roles: ['admin', 'engineer'],
       },
+      {
+        path: `/health-settings?site=${siteId}`,
+        ready: (p) => p.locator('[data-testid="history-empty"], [data-testid="history-entry"]').first().waitFor(),
+        roles: ['admin', 'engineer', 'technician'],
+      },
+      {
+        path: `/replay?site=${siteId}`,
+        ready: (p) => p.getByTestId('replay-not-run').waitFor(),
+        roles: ['admin', 'engineer', 'technician'],
+      },
       { path: '/portfolio', ready: heading('Your portfolio'), roles: ['owner'] },
       { path: `/sites/${siteId}/statements`, ready: heading(/^Monthly statement · /), roles: [...STAFF, 'owner'] },
       { path: '/admin/people', ready: (p) => p.locator('tr.mat-mdc-row').first().waitFor(), roles: ['admin'] },

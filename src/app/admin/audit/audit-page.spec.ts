@@ -163,6 +163,12 @@ describe('audit words', () => {
     expect(detailText(entry({ action: 'health-settings-update', detail: { before: { a: 1 }, after: { a: 1 } } }), time)).toBe('No change');
     expect(
       detailText(
+        entry({ action: 'health-settings-update', detail: { before: {}, after: { stowGustMs: 16 }, reason: 'Gusty roof edge' } }),
+        time,
+      ),
+    ).toBe('stow gust [m/s] default → 16 — why: Gusty roof edge');
+    expect(
+      detailText(
         entry({ action: 'trace-export', detail: { serial: 'QHL-2401', from: '2026-06-10T08:00:00.000Z', to: '2026-06-10T09:00:00.000Z' } }),
         time,
       ),

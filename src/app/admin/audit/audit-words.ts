@@ -21,6 +21,7 @@ export const ACTION_LOOKS: Readonly<Record<string, ActionLook>> = {
   'site-survey-update': { label: 'Changed a site survey', icon: 'landscape' },
   'unit-create': { label: 'Added a unit', icon: 'solar_power' },
   'unit-update': { label: 'Changed a unit', icon: 'solar_power' },
+  'unit-configured': { label: 'A unit took new settings', icon: 'tune' },
   'unit-secret-rotate': { label: 'Issued a new device secret', icon: 'vpn_key' },
   'sign-out': { label: 'Signed out', icon: 'logout' },
   'password-change': { label: 'Changed their own password', icon: 'password' },
@@ -31,6 +32,7 @@ export const ACTION_LOOKS: Readonly<Record<string, ActionLook>> = {
   'hold-release': { label: 'Released a maintenance hold', icon: 'play_circle' },
   'alarm-acknowledge': { label: 'Acknowledged an alarm', icon: 'done_all' },
   'health-settings-update': { label: 'Changed health settings', icon: 'tune' },
+  'detector-tilt-apply': { label: "Sent a detector tilt to a site's units", icon: 'settings_input_antenna' },
   'trace-export': { label: 'Exported traces as CSV', icon: 'download' },
   'statement-export': { label: 'Exported a monthly statement as CSV', icon: 'download' },
 };
@@ -74,7 +76,10 @@ export function detailText(entry: AuditLogEntry, time: (iso: string) => string):
   const d = entry.detail;
   if (d === null || d === undefined) return '';
   if (!isRecord(d)) return show(d);
-  if (isRecord(d['before']) && isRecord(d['after'])) return changes(d['before'], d['after']);
+  if (isRecord(d['before']) && isRecord(d['after'])) {
+    const why = typeof d['reason'] === 'string' && d['reason'] ? ` — why: ${d['reason']}` : '';
+    return changes(d['before'], d['after']) + why;
+  }
   if (entry.action === 'trace-export' && typeof d['from'] === 'string' && typeof d['to'] === 'string') {
     return `${time(d['from'])} to ${time(d['to'])}`;
   }
