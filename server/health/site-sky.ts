@@ -4,9 +4,9 @@
  * (the offline evaluation, a test) can feed it the same inputs and get the same model.
  */
 import type { SiteSurvey } from '../../shared/contracts/survey';
-import { analyseLandscape, bestReachableOrientation, detectorReadings, type Sky } from '../../shared/landscape';
+import { analyseLandscape, bestReachableOrientation, detectorReadings, extendedRadiance, type Sky } from '../../shared/landscape';
+import { directionFromAzimuthElevation, type Vec3 } from '../../shared/sphere/directions';
 import { parseSkyFile, resolveSkyFile, type ResolvedSky } from '../../shared/sky-file';
-import { sunSeenFromSite } from '../../shared/sky-radiance';
 import type { SiteModel } from './site-model';
 
 /** Where a site is and how bright its ground is. */
@@ -27,10 +27,9 @@ export interface SiteWeather {
 /**
  * The sky file of a site at an instant: the same description the command line accepts. Magnitudes come from the
  * station reading when there is one, else from the clear-sky model. Indoor sites: the walls are the horizon profile and
- * the lamps are modelled as on; daylight comes through the roof. `diffuseOnly` passes the station's DHI alone (a shaded
- * station: see `siteSky`).
+ * the lamps are modelled as on; daylight comes through the roof.
  */
-export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather | null, diffuseOnly = false) {
+export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather | null) {
   return parseSkyFile({
     site: { latitudeDeg: site.latitudeDeg, longitudeDeg: site.longitudeDeg, elevationM: site.elevationM },
     time: new Date(atMs).toISOString(),
@@ -39,36 +38,86 @@ export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, wea
     horizon: survey.horizon,
     reflectors: survey.reflectors,
     lamps: survey.lamps,
-    ...(weather
-      ? {
-          ...(diffuseOnly ? {} : { ghiWm2: weather.ghiWm2 }),
-          ...(weather.dhiWm2 !== null ? { dhiWm2: weather.dhiWm2 } : {}),
-        }
-      : {}),
+    ...(weather ? { ghiWm2: weather.ghiWm2, ...(weather.dhiWm2 !== null ? { dhiWm2: weather.dhiWm2 } : {}) } : {}),
   });
 }
 
-/**
- * A shaded station's diffuse above this multiple of the clear-sky diffuse is taken as overcast (no beam); at or below it
- * the sky is taken as clear enough for the clear-sky beam. This product's rule: a station behind the horizon measures
- * the diffuse sky only, so nothing it reads tells the beam apart.
- */
-export const SHADED_STATION_CLEAR_DIFFUSE_FACTOR = 1.5;
+/** Diffuse fraction (DHI / GHI) from which the sky counts as cloud-covered (common practice; from memory). */
+const OVERCAST_DIFFUSE_FRACTION = 0.8;
+
+/** Beam the station reads on its horizontal sensor per W/m² of DNI below which it tells nothing about the beam. */
+const MIN_STATION_BEAM_VIEW = 0.02;
+
+/** Horizontal irradiance of a sky's sun and sun images [W/m²] (Lambert's law: normal irradiance × cos zenith). */
+function sharpHorizontalWm2(sky: Sky): number {
+  let e = 0;
+  for (const p of sky.pointSources) if (p.kind !== 'lamp') e += p.irradianceWm2 * Math.max(0, p.direction[2]);
+  return e;
+}
 
 /**
- * The resolved (built) sky of a site at an instant. A station reading taken while the survey puts the sun behind the
- * site's horizon or a facade holds no beam (GHI is diffuse only), so it is not read as "no beam": under a sky whose
- * diffuse looks clear the beam is the clear-sky model's and the diffuse the station's; under an overcast one, none.
+ * The resolved (built) sky of a site at an instant. With a station reading of GHI and DHI the beam is what makes the
+ * station's GHI − DHI, seen from the site with its survey: the sun where the horizon leaves it visible plus the facades'
+ * images of it (a station next to a glazed facade reads the image too, and dividing GHI − DHI by cos Z alone would
+ * brighten the modelled sun by it). When the survey hides the sun and its images from the station, the reading says
+ * nothing about the beam, which then comes from the clear-sky model (the sky file's "DHI only" rule) with the measured DHI.
  */
 export function siteSky(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather | null): ResolvedSky {
-  const resolved = resolveSkyFile(siteSkyFile(site, survey, atMs, weather));
-  if (!weather || !resolved.input.sun || resolved.input.sun.elevationDeg <= 0) return resolved;
-  if (sunSeenFromSite(resolved.sky)) return withImagesOnStation(site, survey, atMs, weather, resolved);
-  const clear = resolveSkyFile(siteSkyFile(site, survey, atMs, null));
-  const dhiWm2 = weather.dhiWm2 ?? weather.ghiWm2;
-  if (dhiWm2 > SHADED_STATION_CLEAR_DIFFUSE_FACTOR * (clear.input.dhiWm2 ?? 0)) return resolved;
-  // DHI alone: the sky file takes the beam from the clear-sky model (shared/sky-file).
-  return resolveSkyFile(siteSkyFile(site, survey, atMs, { ghiWm2: weather.ghiWm2, dhiWm2 }, true));
+  const naive = resolveSkyFile(siteSkyFile(site, survey, atMs, weather));
+  const sun = naive.input.sun;
+  if (!weather || weather.dhiWm2 === null || !sun || sun.elevationDeg <= 0) return naive;
+  const measuredDhi = Math.min(weather.dhiWm2, weather.ghiWm2);
+  // The sky is given its beam and dome; its ground then takes the GHI they make (the engine's own rule, stated as the
+  // sky's GHI so the model reports the GHI it has), as the station's GHI is read behind the survey's obstructions.
+  let seen = survey;
+  const upZ = Math.max(0, directionFromAzimuthElevation(sun.azimuthDeg, sun.elevationDeg)[2]);
+  const at = (dhiWm2: number, dniWm2: number) => {
+    const file = siteSkyFile(site, seen, atMs, { ghiWm2: Math.max(weather.ghiWm2, dhiWm2), dhiWm2 });
+    const ghiWm2 = dniWm2 * upZ + Math.min(2000, dhiWm2);
+    return resolveSkyFile({ ...file, ghiWm2, sun: { azimuthDeg: sun.azimuthDeg, elevationDeg: sun.elevationDeg, dniWm2 } });
+  };
+  // The station's view of the beam: the sharp horizontal irradiance of this sky per W/m² of DNI.
+  const probeDni = 1000;
+  const view = sharpHorizontalWm2(at(measuredDhi, probeDni).sky) / probeDni;
+  // The survey's sky type is the site's usual (clear) sky. Light nearly all diffuse at a station that could see the sun
+  // means a cloud-covered sky, whose radiance is taken as uniform: the isotropic diffuse sky of Liu & Jordan (1963),
+  // "The long-term average performance of flat-plate solar-energy collectors", Solar Energy 7(2):53–74 (reference from
+  // memory). In the shade of the survey's obstructions, all-diffuse light says nothing about cloud.
+  const seesSun = view >= MIN_STATION_BEAM_VIEW;
+  if (seesSun && weather.ghiWm2 > 0 && measuredDhi / weather.ghiWm2 >= OVERCAST_DIFFUSE_FRACTION)
+    seen = { ...survey, skyType: 'isotropic' };
+  const { ghiWm2: _ghi, ...dhiOnly } = siteSkyFile(site, seen, atMs, { ghiWm2: weather.ghiWm2, dhiWm2: measuredDhi });
+  const dniWm2 = seesSun
+    ? Math.min(1500, Math.max(0, weather.ghiWm2 - measuredDhi) / view)
+    : (resolveSkyFile(dhiOnly).input.sun?.dniWm2 ?? 0);
+  // The sky file's DHI is the unobstructed dome's; the station reads the dome less what the survey hides, plus the
+  // obstructions and facades as it sees them. Linear in the dome's DHI: two probes give the dome that reads as measured
+  // (kept within half and twice the reading).
+  const withDome = diffuseHorizontalWm2(at(measuredDhi, dniWm2).sky);
+  const withoutDome = diffuseHorizontalWm2(at(0, dniWm2).sky);
+  const domeDhi =
+    measuredDhi > 0 && withDome - withoutDome > 1e-6
+      ? Math.min(2 * measuredDhi, Math.max(0.5 * measuredDhi, (measuredDhi * (measuredDhi - withoutDome)) / (withDome - withoutDome)))
+      : measuredDhi;
+  return at(domeDhi, dniWm2);
+}
+
+/** Upward directions of a Fibonacci lattice on the hemisphere, for the station's diffuse reading. */
+const HEMISPHERE: readonly Vec3[] = (() => {
+  const n = 1024;
+  const golden = Math.PI * (3 - Math.sqrt(5));
+  return Array.from({ length: n }, (_, i) => {
+    const z = 1 - (i + 0.5) / n;
+    const r = Math.sqrt(1 - z * z);
+    return [r * Math.cos(golden * i), r * Math.sin(golden * i), z] as Vec3;
+  });
+})();
+
+/** Horizontal irradiance of a sky's extended radiance (dome, obstructions, facades) [W/m²], by equal-area quadrature. */
+function diffuseHorizontalWm2(sky: Sky): number {
+  let e = 0;
+  for (const d of HEMISPHERE) e += extendedRadiance(sky, d) * d[2];
+  return (e * 2 * Math.PI) / HEMISPHERE.length;
 }
 
 /**
@@ -98,31 +147,4 @@ export function siteModelOf(resolved: ResolvedSky, indoor: boolean, atMs: number
 /** The brightest reachable orientation of a sky with tilt up to `maxTiltDeg`, any azimuth (shared/landscape/best-orientation.ts). */
 export function globalMaxOf(sky: Sky, maxTiltDeg: number) {
   return bestReachableOrientation(sky, { tiltRangeDeg: [0, maxTiltDeg], azimuthRangeDeg: [0, 360] });
-}
-
-/**
- * A station in sun under a facade's image of the sun reads the image too: GHI − DHI = DNI·(v·cos Z + Σ ρ·sin e_image),
- * v the disc's visible fraction (derived from the sky's composition, shared/README.md "Sky model"), where reading it as
- * beam alone (GHI − DHI = DNI·cos Z) would make the beam too bright by the images. The beam is solved for with the
- * images the survey places, and the sky built again with it.
- */
-function withImagesOnStation(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather, resolved: ResolvedSky): ResolvedSky {
-  const sun = resolved.input.sun!;
-  const dni = sun.dniWm2 ?? 0;
-  const images = resolved.sky.pointSources.filter((p) => p.kind === 'sun-image');
-  if (!(dni > 0) || !images.length || weather.dhiWm2 === null) return resolved;
-  const cosZ = Math.sin((sun.elevationDeg * Math.PI) / 180);
-  const disc = resolved.sky.pointSources.find((p) => p.kind === 'sun');
-  const visible = disc ? disc.irradianceWm2 / dni : 0;
-  const perDni = visible * cosZ + images.reduce((g, p) => g + (p.irradianceWm2 / dni) * Math.max(0, p.direction[2]), 0);
-  if (!(perDni > 0)) return resolved;
-  const beam = Math.max(0, (weather.ghiWm2 - weather.dhiWm2) / perDni);
-  return resolveSkyFile(
-    parseSkyFile({
-      ...siteSkyFile(site, survey, atMs, null),
-      sun: { azimuthDeg: sun.azimuthDeg, elevationDeg: sun.elevationDeg, dniWm2: beam },
-      ghiWm2: weather.ghiWm2,
-      dhiWm2: weather.dhiWm2,
-    }),
-  );
 }
