@@ -28,9 +28,11 @@
  *
  * Corrections are checked on scans the fit did not see: with at least four usable epochs, every fourth in time order is
  * held out; after the fit, each correction in turn (largest first, in units of τ) is taken back to the survey's value
- * when that makes the held-out epochs fit better (their weighted sum of squares falls by more than 1) (cross-validation: M. Stone (1974), "Cross-validatory choice and
- * assessment of statistical predictions", Journal of the Royal Statistical Society B 36(2), 111–147). A correction the
- * held-out scans do not confirm is reported as such, at the survey's value. The held-out model error is reported beside
+ * when that makes the held-out epochs fit better (their weighted sum of squares falls by more than 1), and when the
+ * corrections together do not fit them better than the survey by that much, none is proposed (cross-validation:
+ * M. Stone (1974), "Cross-validatory choice and assessment of statistical predictions", Journal of the Royal
+ * Statistical Society B 36(2), 111–147). A correction the held-out scans do not confirm is reported as such, at the
+ * survey's value. The held-out model error is reported beside
  * the fitted one: an engineer reads there whether the revision predicts scans it was not fitted to.
  *
  * Model error, before and after: the mean |measured − modelled| in-plane irradiance over the samples [W/m²], and the
@@ -327,6 +329,13 @@ async function fitOnce(input: SurveyFitInput, leaveOut: ReadonlySet<FitEpoch>): 
         cost = c;
         reverted.add(k);
       }
+    }
+    // The revision as a whole must predict the held-out epochs better than the survey does, else nothing is proposed.
+    if (cost > (await checkCost(start)) - 1) {
+      all.forEach((p, k) => {
+        if (current[k] !== p.value) reverted.add(k);
+      });
+      current = start.slice();
     }
     values = current;
   }

@@ -253,6 +253,18 @@ describe('proposed survey corrections panel', () => {
     );
   });
 
+  it('offers nothing to accept when the scans confirm no correction', async () => {
+    const f = await render('engineer');
+    const unchanged = revision().parameters.map((p) =>
+      p.kind === 'stationScale' ? p : { ...p, after: p.before, uncertainty: null, status: 'not-confirmed' as const },
+    );
+    http.expectOne(list).flush([revision({ parameters: unchanged })]);
+    await f.whenStable();
+    expect(text(f, 'nothing-changes')).toMatch(/confirm no correction/);
+    expect((el(f).querySelector('[data-testid="accept-revision"]') as HTMLButtonElement).disabled).toBe(true);
+    expect((el(f).querySelector('[data-testid="reject-revision"]') as HTMLButtonElement).disabled).toBe(false);
+  });
+
   it('lets a technician read proposals but not propose or decide', async () => {
     const f = await render('technician');
     http.expectOne(list).flush([revision()]);

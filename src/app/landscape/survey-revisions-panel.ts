@@ -94,6 +94,10 @@ export class SurveyRevisionsPanel {
   protected readonly history = computed(() => (this.revisions() ?? []).filter((r) => r.state !== 'proposed'));
   protected readonly stationScale = computed(() => this.open()?.parameters.find((p) => p.kind === 'stationScale') ?? null);
   protected readonly surveyParameters = computed(() => this.open()?.parameters.filter((p) => p.kind !== 'stationScale') ?? []);
+  /** Every survey quantity stays as surveyed (none fitted, or none confirmed): accepting would change nothing. */
+  protected readonly nothingChanges = computed(() =>
+    this.surveyParameters().every((p) => p.status === 'not-observable' || p.status === 'not-confirmed' || p.after === p.before),
+  );
   protected readonly stateWords = STATE_WORDS;
   protected readonly changeText = changeText;
   protected readonly statusOf = statusOf;
