@@ -1,6 +1,6 @@
 import type { SiteSurvey } from '../../shared/contracts/survey';
 import type { SurveyRevision, SurveyRevisionParameter } from '../../shared/contracts/survey-revisions';
-import { fitSurveyCorrections, type FitEpoch, type SurveyFitResult } from '../../shared/survey-fit';
+import { fitSurveyCorrections, TooFewEpochs, type FitEpoch, type SurveyFitResult } from '../../shared/survey-fit';
 import type { StoredScan, StoredSurveyRevision, SurveyRevisionRepository } from '../data/survey-revision-repository';
 import { AppError, conflict, notFound } from '../errors/app-error';
 import { scanEpoch, scanSpan } from '../health/scan-epochs';
@@ -122,8 +122,18 @@ export class SurveyRevisionService {
         epochs,
         skyOf,
         limits: { tiltRangeDeg: [0, this.opts.maxTiltDeg], azimuthRangeDeg: [0, 360] },
+        minEpochs: this.opts.minScans,
         // The engine is CPU work: other requests and the ingest get a turn between sky builds.
         pause: () => new Promise((r) => setImmediate(r)),
+      }).catch((err: unknown) => {
+        if (!(err instanceof TooFewEpochs)) throw err;
+        throw new AppError(
+          422,
+          'too_few_scans',
+          `A survey revision needs at least ${err.needed} scans taken with the sun clear of the site's horizon and facade edges; ` +
+            `${err.usable === 1 ? 'there is 1' : `there are ${err.usable}`} of the ${scans.length} from the last ${days} days. Send scans at other times of day, then propose again.`,
+          { scans: `${err.usable} of at least ${err.needed}` },
+        );
       });
       const stored = storedFitOf(result, scans);
       const id = await this.repo.insertProposal({

@@ -4,6 +4,7 @@ export {
   fitSurveyCorrections,
   modelError,
   sampleSigmaWm2,
+  TooFewEpochs,
   type EstimateStatus,
   type FitEpoch,
   type FitSample,

@@ -81,6 +81,18 @@ export interface SurveyFitInput {
   /** Called between model evaluations (a caller on an event loop gives other work a turn). */
   pause?: () => Promise<void>;
   lm?: LmOptions;
+  /** Fewest epochs left once those with the sun near an edge are out (default 1); fewer is a TooFewEpochs error. */
+  minEpochs?: number;
+}
+
+/** Too few epochs to fit once those with the sun near an edge are left out. */
+export class TooFewEpochs extends RangeError {
+  constructor(
+    readonly usable: number,
+    readonly needed: number,
+  ) {
+    super(`epochs: ${usable} usable (the sun clear of horizon and facade edges), at least ${needed} needed; scan at other times of day`);
+  }
 }
 
 export interface ModelError {
@@ -214,7 +226,7 @@ export async function fitSurveyCorrections(input: SurveyFitInput): Promise<Surve
   const newlyNear = input.epochs.filter((e) => moved.has(e) && !sunNearEdge(input.skyOf(input.survey, input.albedo, e), EDGE_MARGIN_DEG));
   if (!newlyNear.length) return first;
   const usable = input.epochs.filter((e) => !moved.has(e) && !sunNearEdge(input.skyOf(input.survey, input.albedo, e), EDGE_MARGIN_DEG));
-  return usable.length ? fitOnce(input, new Set(newlyNear)) : first;
+  return usable.length >= Math.max(1, input.minEpochs ?? 1) ? fitOnce(input, new Set(newlyNear)) : first;
 }
 
 async function fitOnce(input: SurveyFitInput, leaveOut: ReadonlySet<FitEpoch>): Promise<SurveyFitResult> {
@@ -226,7 +238,7 @@ async function fitOnce(input: SurveyFitInput, leaveOut: ReadonlySet<FitEpoch>): 
   const usable = input.epochs
     .filter((e) => !leaveOut.has(e) && !sunNearEdge(input.skyOf(input.survey, input.albedo, e), EDGE_MARGIN_DEG))
     .sort((a, b) => a.atMs - b.atMs);
-  if (!usable.length) throw new RangeError('epochs: in every epoch the sun is near a horizon or facade edge; scan at other times of day');
+  if (usable.length < Math.max(1, input.minEpochs ?? 1)) throw new TooFewEpochs(usable.length, Math.max(1, input.minEpochs ?? 1));
   // Every CHECK_EVERY-th epoch (in time order) is held out to check the corrections on (module comment).
   const held = usable.length >= CHECK_EVERY;
   const epochs = usable.filter((_, i) => !held || i % CHECK_EVERY !== CHECK_EVERY - 1);

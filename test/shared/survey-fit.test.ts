@@ -159,6 +159,13 @@ describe('survey corrections from scans (synthetic site)', () => {
     for (const p of unseen) expect(p.after).toBe(p.before);
   }, 60_000);
 
+  it('refuses to fit fewer epochs than asked for once those with the sun at an edge are left out, saying how many are usable', async () => {
+    const e = synthetic([12], 1);
+    await expect(fitSurveyCorrections({ survey: truth, albedo: 0.3, epochs: e, skyOf, minEpochs: 3 })).rejects.toThrow(
+      /epochs: 1 usable \(the sun clear of horizon and facade edges\), at least 3 needed/,
+    );
+  });
+
   it('refuses measurements that are not numbers, naming the sample', async () => {
     const e = synthetic([12], 1);
     e[0]!.samples[3] = { tiltDeg: 10, azimuthDeg: Number.NaN, poaWm2: 100 };
