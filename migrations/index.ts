@@ -44,6 +44,7 @@ import * as m20261209100000 from './20261209100000_create_sign_in_attempts';
 import * as m20261209100100 from './20261209100100_create_unit_heard';
 import * as m20261209110000 from './20261209110000_partition_telemetry_by_month';
 import * as m20261209120000 from './20261209120000_add_units_engine_secret_hash';
+import * as m20261209130000 from './20261209130000_create_survey_revisions';
 
 /**
  * Every migration, by name. Listed statically (not read from disk) so the same list works under tsx, vitest and a
@@ -95,6 +96,7 @@ const migrations: Record<string, Knex.Migration> = {
   '20261209100100_create_unit_heard': m20261209100100,
   '20261209110000_partition_telemetry_by_month': m20261209110000,
   '20261209120000_add_units_engine_secret_hash': m20261209120000,
+  '20261209130000_create_survey_revisions': m20261209130000,
 };
 
 export const migrationSource: Knex.MigrationSource<string> = {

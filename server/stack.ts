@@ -81,6 +81,9 @@ import { traceRoutes } from './routes/trace-routes';
 import { landscapeRoutes } from './routes/landscape-routes';
 import { TraceService } from './services/trace-service';
 import { LandscapeService } from './services/landscape-service';
+import { SurveyRevisionRepository } from './data/survey-revision-repository';
+import { SurveyRevisionService, type SurveyRevisionOptions } from './services/survey-revision-service';
+import { surveyRevisionRoutes } from './routes/survey-revision-routes';
 import { TraceRepository } from './data/trace-repository';
 import { unitTopic } from '../shared/contracts/topics';
 import { createApp } from './app';
@@ -147,6 +150,8 @@ export interface StackOptions {
   brokerLimits?: Partial<BrokerLimits>;
   /** Heartbeat and waits of the lock that picks the server running the once-only jobs (tests shorten them). */
   leadership?: Partial<LeadershipOptions>;
+  /** Survey revisions' clock and scan counts (tests). */
+  surveyRevisions?: Partial<SurveyRevisionOptions>;
 }
 
 export async function startStack(config: Config, log: Logger = pino({ level: config.logLevel }), opts: StackOptions = {}): Promise<Stack> {
@@ -377,6 +382,13 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   );
   rollups.onRolled((q) => statementLocks.onQuartersRolled(q));
   siteModel.onSurveySaved((siteId) => statementLocks.onSurveyChanged(siteId));
+  // A new survey is a new model for the detectors at once (not after the cache's refresh interval).
+  siteModel.onSurveySaved((siteId) => siteModels.invalidate(siteId));
+  const surveyRevisions = new SurveyRevisionService(new SurveyRevisionRepository(db), admin, siteModel, siteModels, health, {
+    now: healthOpts.now,
+    maxTiltDeg: healthOpts.maxTiltDeg,
+    ...opts.surveyRevisions,
+  });
   const retention = new RetentionJob(new TelemetryPartitions(db), config.ingest.retentionDays, log);
   // A restart keeps the fleet: the live picture and the comms watch start from each unit's last stored report.
   const restored: [UnitInfo, number, number][] = [];
@@ -465,6 +477,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       demoHistoryRoutes(new DemoHistoryStatus(new HistoryRepository(db))),
       notificationRoutes(notifications, mail),
       statementRoutes(statements, auditLog, statementLocks),
+      surveyRevisionRoutes(surveyRevisions),
     ],
   });
   const http = createServer(app);

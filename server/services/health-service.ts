@@ -11,6 +11,8 @@ import type { Logger } from 'pino';
 import type { AlarmView } from '../../shared/contracts/alarms';
 import type { Telemetry, UnitEvent, UnitStatus, Weather } from '../../shared/contracts/wire';
 import { HealthEngine } from '../health/health-engine';
+import type { SiteModel } from '../health/site-model';
+import { latestTrapReadings, trapUnderModel, type TrapVerdict } from '../health/trap-reassess';
 import type { AlarmStore } from './alarm-store';
 import type { HealthSettingsService } from './health-settings-service';
 import type { LiveHub } from './live-hub';
@@ -199,6 +201,33 @@ export class HealthService {
   tick(): void {
     this.guard(() => this.engine.tick());
     this.engine.book.pruneCleared();
+  }
+
+  /**
+   * Judges the site's open trap alarms again against a new model (its survey changed): each alarm's latest readings
+   * against `modelAt` their instant (server/health/trap-reassess.ts). Those the new model would not raise are cleared now
+   * with `reason(verdict)`; the rest stay open and the detector goes on with the new model.
+   */
+  async reassessTraps(
+    siteId: number,
+    modelAt: (atMs: number) => Promise<SiteModel>,
+    reason: (v: TrapVerdict) => string,
+  ): Promise<{ reassessed: number; cleared: number }> {
+    const open = this.engine.openAlarms().filter((a) => a.kind === 'trap' && a.siteId === siteId && a.unitId !== null);
+    const settings = this.settings.forSite(siteId);
+    let cleared = 0;
+    let reassessed = 0;
+    for (const a of open) {
+      const r = latestTrapReadings(a);
+      if (!r) continue;
+      const v = trapUnderModel(r, await modelAt(Date.parse(r.ts)), settings);
+      reassessed++;
+      if (v.holds || a.state !== 'active') continue;
+      this.engine.book.clear({ unitId: a.unitId, serial: a.serial, siteId: a.siteId }, 'trap', this.opts.now(), reason(v));
+      cleared++;
+    }
+    await this.store.flush();
+    return { reassessed, cleared };
   }
 
   /** Settled alarm writes (tests wait for them). */

@@ -21,6 +21,8 @@ export interface SiteModelCacheOptions {
 export class SiteModelCache {
   private readonly models = new Map<number, { model: SiteModel; builtMs: number }>();
   private readonly building = new Map<number, Promise<void>>();
+  /** Bumped when a site's survey changes, so a build begun from the old survey is not kept. */
+  private readonly generation = new Map<number, number>();
 
   constructor(
     private readonly siteModel: SiteModelService,
@@ -52,13 +54,25 @@ export class SiteModelCache {
     return globalMaxOf(resolved.sky, this.opts.maxTiltDeg);
   }
 
+  /** Forgets a site's model (its survey changed): the next report asks for a new one, built from the new survey. */
+  invalidate(siteId: number): void {
+    this.models.delete(siteId);
+    this.generation.set(siteId, (this.generation.get(siteId) ?? 0) + 1);
+    this.building.delete(siteId);
+  }
+
   private refresh(siteId: number): void {
     if (this.building.has(siteId)) return;
     const now = this.opts.now();
+    const gen = this.generation.get(siteId) ?? 0;
     const p = this.build(siteId, now)
-      .then((model) => void this.models.set(siteId, { model, builtMs: now }))
+      .then((model) => {
+        if ((this.generation.get(siteId) ?? 0) === gen) this.models.set(siteId, { model, builtMs: now });
+      })
       .catch((err) => this.log.warn({ err, siteId }, 'site model for health failed'))
-      .finally(() => this.building.delete(siteId));
+      .finally(() => {
+        if (this.building.get(siteId) === p) this.building.delete(siteId);
+      });
     this.building.set(siteId, p);
   }
 }

@@ -35,13 +35,21 @@ export class SiteModelService {
   /** Replaces a site's survey (already validated) and records who did it. */
   async saveSurvey(by: Caller, siteId: number, survey: SiteSurvey): Promise<SiteSurvey> {
     if (!(await this.repo.saveSurvey(siteId, survey))) throw notFound('Site');
-    for (const l of this.surveyListeners) l(siteId);
+    this.surveyChanged(siteId);
     await this.audit.record(by, 'site-survey-update', `site:${siteId}`, {
       horizonPoints: survey.horizon.length,
       reflectors: survey.reflectors.length,
       lamps: survey.lamps.length,
     });
     return survey;
+  }
+
+  /**
+   * Tells the survey listeners that a site's survey changed by another path than `saveSurvey` (an accepted survey
+   * revision, written in its own transaction): they react exactly as to a save.
+   */
+  surveyChanged(siteId: number): void {
+    for (const l of this.surveyListeners) l(siteId);
   }
 
   /** Mean station weather of a site over [fromMs, toMs), or null without readings. */

@@ -19,6 +19,8 @@ export const PERMISSIONS = {
   /** Run the detectors on demand over stored data. */
   runDetectors: ['engineer', 'technician', 'admin'],
   editSurvey: ['admin', 'engineer'],
+  /** Proposed survey corrections fitted to a site's scans (proposing, accepting and rejecting them is `editSurvey`). */
+  readSurveyRevisions: ['admin', 'engineer', 'technician'],
   /** Work out the detector tilt a site needs and send it to all the site's units. */
   tuneDetectors: ['engineer', 'admin'],
   /** Ingest, broker and rollup counters. */

@@ -17,3 +17,4 @@ export { buildReflector, reflectorContains, type Reflector, type ReflectorInput 
 export { buildLamp, type Lamp, type LampInput } from './lamps';
 export { sunDiscVisibleFraction, SUN_ANGULAR_RADIUS_DEG } from './sun-disc';
 export { perezSkyDiffuse, PEREZ_1990_COEFFICIENTS, type PerezResult } from './transposition-perez-1990';
+export { sunNearEdge, sunSeenFromSite } from './sun-visibility';

@@ -130,6 +130,16 @@ const ROUTES: Row[] = [
   row('GET /api/sites/:id/survey',                 (w, s) => `/api/sites/${w[s].siteId}/survey`,                                         401, 200, 200, 200, 200, mine(200)),
   row('PUT /api/sites/:id/survey',                 (w, s) => ({ path: `/api/sites/${w[s].siteId}/survey`, body: w[s].survey }),           401, 200, 200, 403, 403, 403),
 
+  // Survey revisions: never shown to owners (404, their own site too) or crews (403); technicians read; engineers and
+  // admins propose (this world has one three-sample scan per site: 422, too few scans) and decide (no such revision: 404).
+  row('GET /api/sites/:id/survey-revisions',       (w, s) => `/api/sites/${w[s].siteId}/survey-revisions`,                               401, 200, 200, 200, 403, 404),
+  row('GET /api/sites/:id/survey-revisions/:revisionId', (w, s) => `/api/sites/${w[s].siteId}/survey-revisions/999999`,                  401, 404, 404, 404, 403, 404),
+  row('POST /api/sites/:id/survey-revisions/propose', (w, s) => ({ path: `/api/sites/${w[s].siteId}/survey-revisions/propose`, body: {} }), 401, 422, 422, 403, 403, 404),
+  row('POST /api/sites/:id/survey-revisions/:revisionId/accept', (w, s) => ({ path: `/api/sites/${w[s].siteId}/survey-revisions/999999/accept`, body: { reason: 'matrix' } }),
+                                                                                                                                          401, 404, 404, 403, 403, 404),
+  row('POST /api/sites/:id/survey-revisions/:revisionId/reject', (w, s) => ({ path: `/api/sites/${w[s].siteId}/survey-revisions/999999/reject`, body: { reason: 'matrix' } }),
+                                                                                                                                          401, 404, 404, 403, 403, 404),
+
   // Traces: engineers, technicians, admins.
   row('GET /api/units/:id/traces',                 (w, s) => `/api/units/${unit(w, s)}/traces?${range}&points=10`,                        401, 200, 200, 200, 403, 403),
   row('GET /api/units/:id/traces.csv',             (w, s) => `/api/units/${unit(w, s)}/traces.csv?${range}`,                              401, 200, 200, 200, 403, 403),

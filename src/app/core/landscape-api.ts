@@ -3,8 +3,9 @@ import { inject, Injectable } from '@angular/core';
 import { Observable } from 'rxjs';
 import type { SiteSurvey } from '../../../shared/contracts/survey';
 import type { LandscapeDay, SiteLandscape } from '../../../shared/contracts/landscape';
+import type { SurveyRevision } from '../../../shared/contracts/survey-revisions';
 
-/** A site's modelled landscape (now, over a day, its best) and the survey it is computed from. */
+/** A site's modelled landscape (now, over a day, its best), the survey it is computed from, and proposed corrections to it. */
 @Injectable({ providedIn: 'root' })
 export class LandscapeApi {
   private readonly http = inject(HttpClient);
@@ -32,5 +33,18 @@ export class LandscapeApi {
 
   saveSurvey(siteId: number, survey: SiteSurvey): Observable<SiteSurvey> {
     return this.http.put<SiteSurvey>(`/api/sites/${siteId}/survey`, survey);
+  }
+
+  surveyRevisions(siteId: number): Observable<SurveyRevision[]> {
+    return this.http.get<SurveyRevision[]>(`/api/sites/${siteId}/survey-revisions`);
+  }
+
+  /** Fits corrections to the site's recent scans (takes up to a minute on the server). */
+  proposeSurveyRevision(siteId: number): Observable<SurveyRevision> {
+    return this.http.post<SurveyRevision>(`/api/sites/${siteId}/survey-revisions/propose`, {});
+  }
+
+  decideSurveyRevision(siteId: number, revisionId: number, decision: 'accept' | 'reject', reason: string): Observable<SurveyRevision> {
+    return this.http.post<SurveyRevision>(`/api/sites/${siteId}/survey-revisions/${revisionId}/${decision}`, { reason });
   }
 }

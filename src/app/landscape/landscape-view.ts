@@ -26,6 +26,7 @@ import { toApiProblem } from '../ui/api-error';
 import { localDateOf, zonedMidnightUtc } from '../traces/trace-charts';
 import { dayOptions, heatmapOptions, maximaMarks } from './landscape-charts';
 import { SurveyEditor } from './survey-editor';
+import { SurveyRevisionsPanel } from './survey-revisions-panel';
 
 /** Minutes after local midnight → "HH:MM". */
 export function minutesLabel(m: number): string {
@@ -49,6 +50,7 @@ export function minutesLabel(m: number): string {
     NgxEchartsDirective,
     RouterLink,
     SurveyEditor,
+    SurveyRevisionsPanel,
   ],
   templateUrl: './landscape-view.html',
   styleUrl: './landscape-view.scss',
@@ -190,6 +192,15 @@ export class LandscapeView {
         this.dayLoading.set(false);
       },
     });
+  }
+
+  /** Bumped when a revision becomes the survey: the editor is made anew and loads the new survey. */
+  protected readonly surveyVersion = signal(0);
+
+  /** A survey revision was accepted: the survey changed on the server. */
+  protected revisionAccepted(): void {
+    this.surveyVersion.update((v) => v + 1);
+    this.surveySaved();
   }
 
   /** The survey was saved: the model changed, so recompute. */
