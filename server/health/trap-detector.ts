@@ -52,6 +52,12 @@ export class TrapDetector {
     if (!pairOk(t.tiltPlusWm2, t.tiltMinusWm2) || !pairOk(t.azimuthPlusWm2, t.azimuthMinusWm2)) return judged(false);
     const best = m.globalMax.wm2;
     if (best < s.trapMinBestWm2) return judged(false);
+    const ratio = t.poaWm2 / best;
+    // The modelled readings cost a harmonic evaluation per detector: they are asked for only where the answer depends
+    // on them. At or above the trap ratio with no trap open, the answer is false whatever the pairs read; between the
+    // two ratios with a trap open, it is "unknown" whatever they read (the same answers as the checks below give).
+    if (ratio >= s.trapRatio && !ctx.open) return judged(false);
+    if (ratio >= s.trapRatio && ratio < s.trapClearRatio) return judged(null);
     // The pairs must read what the model says they should read here: a unit balanced on a drifting detector is a sensor
     // fault (the drift detector's), not a trap.
     const mr = m.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
@@ -62,7 +68,6 @@ export class TrapDetector {
       !pairAgrees(t.azimuthPlusWm2, t.azimuthMinusWm2, mr.azimuthPlusWm2, mr.azimuthMinusWm2)
     )
       return judged(ctx.open ? null : false);
-    const ratio = t.poaWm2 / best;
     if (ratio >= s.trapClearRatio) return judged(false);
     if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
     const peers = ctx.peers.filter(

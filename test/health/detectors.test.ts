@@ -1,6 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { T0, UNIT, feed, modelOf, peer, report, sunLandscape, testEngine } from './synthetic';
 import { rawWordsIn } from '../helpers/raw-words';
+import { TrapDetector } from '../../server/health/trap-detector';
+import { DEFAULT_HEALTH_SETTINGS } from '../../server/health/health-settings';
+import type { SiteModel } from '../../server/health/site-model';
 
 /** The text people read of an alarm: its message and its advice. */
 const words = (a: { message: string; advice: string }) => `${a.message} ${a.advice}`;
@@ -9,6 +12,7 @@ const words = (a: { message: string; advice: string }) => `${a.message} ${a.advi
 const irr = sunLandscape(180, 50);
 const model = (at: number) => modelOf(irr, at);
 const MIN = 60_000;
+const onTrapHere = { tiltDeg: 70, azimuthDeg: 80 };
 
 describe('trap detector', () => {
   // A second bright spot (a facade reflection) at tilt 60°, azimuth 80°: a local maximum well below the sun's.
@@ -93,6 +97,41 @@ describe('trap detector', () => {
     feed(e, end, 10, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
     expect(e.cleared.map((a) => a.kind)).toEqual(['trap']);
     expect(e.cleared[0]!.clearedMs! - end).toBe(3 * MIN);
+  });
+});
+
+describe('trap detector: what it asks the model', () => {
+  const settings = DEFAULT_HEALTH_SETTINGS;
+  const counted = (at: number) => {
+    const m = modelOf(irr, at);
+    const calls = { n: 0 };
+    const readings = m.readings;
+    return { calls, model: { ...m, readings: (t: number, a: number, d: number) => (calls.n++, readings(t, a, d)) } };
+  };
+  const ctx = (m: SiteModel, open: boolean) => ({ model: m, daylight: true, peers: [], otherCause: null, open, trappedAtSite: 0 });
+  // The model's readings cost a harmonic evaluation per detector; most units, most of the day, are not trapped.
+  it('a healthy unit at its peak (ratio ≥ trap ratio, no trap open) is judged false without asking for modelled readings', () => {
+    const { calls, model: m } = counted(T0);
+    const r = new TrapDetector().assess(UNIT, report(irr, T0, { tiltDeg: 40, azimuthDeg: 180 }), T0, ctx(m, false), settings);
+    expect(r.condition).toBe(false);
+    expect(calls.n).toBe(0);
+  });
+  it('with a trap open, between the trap and the clear ratio the answer is unknown (hysteresis) without asking; above it, it asks', () => {
+    const best = modelOf(irr, T0).globalMax.wm2;
+    // The same landscape scaled so the unit at the peak reads 0.86 of the model's best (between 0.85 and 0.88).
+    const { calls, model: m } = counted(T0);
+    const between = { ...report(irr, T0, { tiltDeg: 40, azimuthDeg: 180 }), poaWm2: 0.86 * best };
+    expect(new TrapDetector().assess(UNIT, between, T0, ctx(m, true), settings).condition).toBe(null);
+    expect(calls.n).toBe(0);
+    const above = report(irr, T0, { tiltDeg: 40, azimuthDeg: 180 });
+    expect(new TrapDetector().assess(UNIT, above, T0, ctx(m, true), settings).condition).toBe(false);
+    expect(calls.n).toBe(1);
+  });
+  it('a unit below the trap ratio is checked against the modelled readings (and is trapped here)', () => {
+    const { calls, model: m } = counted(T0);
+    const r = new TrapDetector().assess(UNIT, report(irr, T0, onTrapHere), T0, ctx(m, false), settings);
+    expect(calls.n).toBe(1);
+    expect(r.condition).toBe(true);
   });
 });
 
