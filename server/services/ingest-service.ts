@@ -1,16 +1,13 @@
 import type { Logger } from 'pino';
+import type { CommandAck, Telemetry, UnitEvent, UnitStatus, Weather } from '../../shared/contracts/wire';
 import {
-  ackSchema,
-  eventSchema,
-  statusSchema,
-  telemetrySchema,
-  weatherSchema,
-  type CommandAck,
-  type Telemetry,
-  type UnitEvent,
-  type UnitStatus,
-  type Weather,
-} from '../../shared/contracts/wire';
+  ackValidator,
+  eventValidator,
+  statusValidator,
+  telemetryValidator,
+  weatherValidator,
+  type WireValidator,
+} from '../../shared/contracts/wire-validators';
 import { MAX_PAYLOAD_BYTES } from '../../shared/contracts/wire-format';
 import {
   eventRowKey,
@@ -128,13 +125,6 @@ interface HeldWeather {
   ack: Acknowledge | undefined;
 }
 
-/** A wire schema as the ingest uses it (the zod schemas of shared/contracts/wire have this shape). */
-interface PayloadSchema<T> {
-  safeParse(
-    value: unknown,
-  ): { success: true; data: T } | { success: false; error: { issues: readonly { path: readonly PropertyKey[]; message: string }[] } };
-}
-
 /**
  * Validates unit messages and writes them to MariaDB in batched multi-row inserts, one commit per statement (a group
  * commit). A stored message is acknowledged only after its batch committed, so a reading the unit got a PUBACK for is
@@ -230,7 +220,7 @@ export class IngestService {
     }
     switch (leaf) {
       case 'telemetry': {
-        const t = this.validate(serial, telemetrySchema, json);
+        const t = this.validate(serial, telemetryValidator, json);
         if (!t) return refuse('invalid_payload');
         const ts = Date.parse(t.ts);
         const bad = this.checkTime(serial, ts);
@@ -240,7 +230,7 @@ export class IngestService {
         break;
       }
       case 'events': {
-        const e = this.validate(serial, eventSchema, json);
+        const e = this.validate(serial, eventValidator, json);
         if (!e) return refuse('invalid_payload');
         const ts = Date.parse(e.ts);
         const bad = this.checkTime(serial, ts);
@@ -252,7 +242,7 @@ export class IngestService {
         // Only the unit that carries its site's station may report the site's weather (fake gusts would raise stow alarms).
         if (!unit.weatherStation)
           return refuse(this.reject(serial, 'weather_denied', "this unit does not carry its site's weather station"));
-        const w = this.validate(serial, weatherSchema, json);
+        const w = this.validate(serial, weatherValidator, json);
         if (!w) return refuse('invalid_payload');
         const ts = Date.parse(w.ts);
         const bad = this.checkTime(serial, ts);
@@ -261,7 +251,7 @@ export class IngestService {
         break;
       }
       case 'acks': {
-        const a = this.validate(serial, ackSchema, json);
+        const a = this.validate(serial, ackValidator, json);
         if (!a) return refuse('invalid_payload');
         const answered = this.listeners.ack?.(unit, a);
         if (answered)
@@ -273,7 +263,7 @@ export class IngestService {
         return null;
       }
       case 'status': {
-        const s = this.validate(serial, statusSchema, json);
+        const s = this.validate(serial, statusValidator, json);
         if (!s) return refuse('invalid_payload');
         this.listeners.status?.(unit, s);
         return refuse(null);
@@ -291,7 +281,7 @@ export class IngestService {
     this.reject(serial, reason, topic ? `publish to ${topic}` : 'packet over the size limit');
   }
 
-  private validate<T>(serial: string, schema: PayloadSchema<T>, json: unknown): T | null {
+  private validate<T>(serial: string, schema: WireValidator<T>, json: unknown): T | null {
     const r = schema.safeParse(json);
     if (r.success) return r.data;
     const first = r.error.issues[0]!;
