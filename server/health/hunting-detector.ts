@@ -27,24 +27,34 @@ export interface MotionStats {
 
 /** Reversals, path and net motion of a sequence of orientations. */
 export function motionStats(samples: readonly { atMs: number; tiltDeg: number; azimuthDeg: number }[], stepDeg: number): MotionStats {
+  // Tilt and weighted azimuth in scalars (no arrays per step: this runs over the whole window on every report).
   let reversals = 0;
   let path = 0;
-  const lastSign = [0, 0];
-  const acc = [0, 0];
+  let lastSignTilt = 0;
+  let lastSignAzimuth = 0;
+  let accTilt = 0;
+  let accAzimuth = 0;
   for (let i = 1; i < samples.length; i++) {
     const a = samples[i - 1]!;
     const b = samples[i]!;
     const w = Math.max(0.2, Math.sin((((a.tiltDeg + b.tiltDeg) / 2) * Math.PI) / 180));
-    const d = [b.tiltDeg - a.tiltDeg, azimuthDelta(a.azimuthDeg, b.azimuthDeg) * w];
-    for (let k = 0; k < 2; k++) {
-      path += Math.abs(d[k]!);
-      acc[k]! += d[k]!;
-      if (Math.abs(acc[k]!) >= stepDeg) {
-        const sign = Math.sign(acc[k]!);
-        if (lastSign[k] !== 0 && sign !== lastSign[k]) reversals++;
-        lastSign[k] = sign;
-        acc[k] = 0;
-      }
+    const dTilt = b.tiltDeg - a.tiltDeg;
+    const dAzimuth = azimuthDelta(a.azimuthDeg, b.azimuthDeg) * w;
+    path += Math.abs(dTilt);
+    accTilt += dTilt;
+    if (Math.abs(accTilt) >= stepDeg) {
+      const sign = Math.sign(accTilt);
+      if (lastSignTilt !== 0 && sign !== lastSignTilt) reversals++;
+      lastSignTilt = sign;
+      accTilt = 0;
+    }
+    path += Math.abs(dAzimuth);
+    accAzimuth += dAzimuth;
+    if (Math.abs(accAzimuth) >= stepDeg) {
+      const sign = Math.sign(accAzimuth);
+      if (lastSignAzimuth !== 0 && sign !== lastSignAzimuth) reversals++;
+      lastSignAzimuth = sign;
+      accAzimuth = 0;
     }
   }
   const first = samples[0];

@@ -16,6 +16,7 @@ import type { HealthSettingsService } from './health-settings-service';
 import type { LiveHub } from './live-hub';
 import type { SiteModelCache, SiteModelCacheOptions } from './site-model-cache';
 import { unitRefOf, type UnitInfo } from './unit-directory';
+import type { UnitRef } from '../health/unit-sample';
 
 export interface HealthServiceOptions extends SiteModelCacheOptions {
   /** Comms check interval [ms]. */
@@ -37,6 +38,8 @@ export class HealthService {
   readonly engine: HealthEngine;
   private readonly opts: HealthServiceOptions;
   private timer: NodeJS.Timeout | undefined;
+  /** The engine's reference of each unit, made again only when what it holds changed (the engine keys state on it). */
+  private readonly refs = new WeakMap<UnitInfo, UnitRef>();
 
   constructor(
     private readonly store: AlarmStore,
@@ -94,15 +97,15 @@ export class HealthService {
 
   // ---- ingest listeners
   telemetry(unit: UnitInfo, t: Telemetry): void {
-    this.guard(() => this.engine.telemetry(unitRefOf(unit), t));
+    this.guard(() => this.engine.telemetry(this.refOf(unit), t));
   }
 
   event(unit: UnitInfo, e: UnitEvent): void {
-    this.guard(() => this.engine.event(unitRefOf(unit), e));
+    this.guard(() => this.engine.event(this.refOf(unit), e));
   }
 
   status(unit: UnitInfo, st: UnitStatus): void {
-    this.guard(() => this.engine.status(unitRefOf(unit), st));
+    this.guard(() => this.engine.status(this.refOf(unit), st));
   }
 
   /** A reading of the site's weather station, from the unit that carries it: the stow watch hears it at once. */
@@ -119,6 +122,22 @@ export class HealthService {
   /** Settled alarm writes (tests wait for them). */
   flush(): Promise<void> {
     return this.store.flush();
+  }
+
+  private refOf(u: UnitInfo): UnitRef {
+    const r = this.refs.get(u);
+    if (
+      r &&
+      r.unitId === u.id &&
+      r.serial === u.serial &&
+      r.siteId === u.siteId &&
+      r.detectorTiltDeg === u.detectorTiltDeg &&
+      r.onHold === u.onHold
+    )
+      return r;
+    const fresh = unitRefOf(u);
+    this.refs.set(u, fresh);
+    return fresh;
   }
 
   private guard(f: () => void): void {
