@@ -16,6 +16,7 @@ import {
   telemetryRowOf,
   weatherRowKey,
   weatherRowOf,
+  type Added,
   type EventRow,
   type TelemetryRepository,
   type TelemetryRow,
@@ -353,29 +354,27 @@ export class IngestService {
    * message in it). What committed is acknowledged and announced; what failed goes back, in order, to be retried.
    */
   private async write(batch: number, t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
-    let newTelemetry: Set<string> | undefined;
-    let newEvents: Set<string> | undefined;
-    let newWeather: Set<string> | undefined;
+    let newTelemetry: Added | undefined;
+    let newEvents: Added | undefined;
+    let newWeather: Added | undefined;
     let failure: unknown;
     try {
-      newTelemetry = new Set(await this.repo.insertTelemetry(t.map((x) => x.row)));
-      newEvents = new Set(await this.repo.insertEvents(e.map((x) => x.row)));
-      newWeather = new Set(await this.repo.insertWeather(w.map((x) => x.row)));
+      newTelemetry = await this.repo.insertTelemetry(t.map((x) => x.row));
+      newEvents = await this.repo.insertEvents(e.map((x) => x.row));
+      newWeather = await this.repo.insertWeather(w.map((x) => x.row));
     } catch (err) {
       failure = err;
     }
     const tDone = newTelemetry !== undefined;
-    const storedCount = newTelemetry?.size ?? 0;
+    const storedCount = newTelemetry?.count ?? 0;
     const eDone = newEvents !== undefined;
     const wDone = failure === undefined;
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
     this.inOrder(batch, () => {
       // Weather first: a gust demands a stow of the units whose reports of the same batch are judged next.
-      if (newWeather)
-        for (const x of w) if (newWeather.delete(weatherRowKey(x.row))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
-      if (newTelemetry)
-        for (const x of t) if (newTelemetry.delete(telemetryRowKey(x.row))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
-      if (newEvents) for (const x of e) if (newEvents.delete(eventRowKey(x.row))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+      if (newWeather) this.announceNew(w, newWeather, weatherRowKey, (x) => this.listeners.weather?.(x.unit, x.w));
+      if (newTelemetry) this.announceNew(t, newTelemetry, telemetryRowKey, (x) => this.listeners.stored?.(x.unit, x.t));
+      if (newEvents) this.announceNew(e, newEvents, eventRowKey, (x) => this.listeners.event?.(x.unit, x.e));
     });
     if (tDone) {
       this.counters.stored += storedCount;
@@ -411,12 +410,19 @@ export class IngestService {
     }
   }
 
-  /** A listener's failure is logged and never undoes a commit or withholds an acknowledgement. */
-  private announce(call: () => void): void {
-    try {
-      call();
-    } catch (err) {
-      this.log.error({ err }, 'ingest listener failed');
+  /**
+   * Announces the rows of a batch that the insert added, each once (a key is crossed off when announced: a batch may
+   * hold a reading and its resend). A listener's failure is logged and never undoes a commit or withholds an
+   * acknowledgement.
+   */
+  private announceNew<X extends { row: R }, R>(items: X[], added: Added, keyOf: (row: R) => string, call: (x: X) => void): void {
+    for (const x of items) {
+      if (added.keys !== null && !added.keys.delete(keyOf(x.row))) continue;
+      try {
+        call(x);
+      } catch (err) {
+        this.log.error({ err }, 'ingest listener failed');
+      }
     }
   }
 
