@@ -51,7 +51,7 @@ export class HealthEngine {
   /** Units restored from the store at start-up, not judged before this time unless heard first [ms]. */
   private readonly restoredGraceUntil = new Map<number, number>();
   private readonly settingsFor: (siteId: number) => HealthSettings;
-  private readonly subjects = new WeakMap<UnitRef, AlarmSubject>();
+  private readonly subjects = new Map<number, { ref: UnitRef; subject: AlarmSubject }>();
 
   constructor(private readonly opts: HealthEngineOptions) {
     this.book = new AlarmBook(opts.listeners);
@@ -312,6 +312,7 @@ export class HealthEngine {
     for (const d of [this.trap, this.stall, this.drift, this.hunting, this.soiling, this.comms]) d.forget(unitId);
     if (u) this.peers.get(u.siteId)?.delete(unitId);
     this.units.delete(unitId);
+    this.subjects.delete(unitId);
   }
 
   openAlarms(): Alarm[] {
@@ -328,8 +329,10 @@ export class HealthEngine {
 
   /** The alarm subject of a unit, one per unit reference (the book is asked about it several times per report). */
   private subjectOf(u: UnitRef): AlarmSubject {
-    let subject = this.subjects.get(u);
-    if (!subject) this.subjects.set(u, (subject = { unitId: u.unitId, serial: u.serial, siteId: u.siteId }));
+    const hit = this.subjects.get(u.unitId);
+    if (hit?.ref === u) return hit.subject;
+    const subject: AlarmSubject = { unitId: u.unitId, serial: u.serial, siteId: u.siteId };
+    this.subjects.set(u.unitId, { ref: u, subject });
     return subject;
   }
 }

@@ -39,7 +39,7 @@ export class HealthService {
   private readonly opts: HealthServiceOptions;
   private timer: NodeJS.Timeout | undefined;
   /** The engine's reference of each unit, made again only when what it holds changed (the engine keys state on it). */
-  private readonly refs = new WeakMap<UnitInfo, UnitRef>();
+  private readonly refs = new Map<number, UnitRef>();
 
   constructor(
     private readonly store: AlarmStore,
@@ -125,18 +125,10 @@ export class HealthService {
   }
 
   private refOf(u: UnitInfo): UnitRef {
-    const r = this.refs.get(u);
-    if (
-      r &&
-      r.unitId === u.id &&
-      r.serial === u.serial &&
-      r.siteId === u.siteId &&
-      r.detectorTiltDeg === u.detectorTiltDeg &&
-      r.onHold === u.onHold
-    )
-      return r;
+    const r = this.refs.get(u.id);
+    if (r && r.serial === u.serial && r.siteId === u.siteId && r.detectorTiltDeg === u.detectorTiltDeg && r.onHold === u.onHold) return r;
     const fresh = unitRefOf(u);
-    this.refs.set(u, fresh);
+    this.refs.set(u.id, fresh);
     return fresh;
   }
 

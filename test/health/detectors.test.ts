@@ -295,10 +295,39 @@ describe('comms detector and stow watch', () => {
   });
 });
 
+describe('hunting window', () => {
+  it('counts reversals of motion of at least the step, path and net motion (tilt and sin(tilt)-weighted azimuth)', async () => {
+    const { motionStats } = await import('../../server/health/hunting-detector');
+    // Tilt 30 → 33 → 30 → 33 → 30 at one minute apart: 3 reversals of 3° steps in 4 min = 45 per hour, path 12°, net 0.
+    const zigzag = [30, 33, 30, 33, 30].map((tiltDeg, i) => ({ atMs: T0 + i * MIN, tiltDeg, azimuthDeg: 180 }));
+    expect(motionStats(zigzag, 2)).toEqual({ reversalsPerHour: 45, pathDeg: 12, netDeg: 0, spanMin: 4 });
+    // Azimuth 180 → 190 at tilt 30°: weighted by sin 30° = 0.5, so 5° of path; below a 6° step there is no reversal.
+    const az = [180, 190, 180].map((azimuthDeg, i) => ({ atMs: T0 + i * MIN, tiltDeg: 30, azimuthDeg }));
+    const st = motionStats(az, 6);
+    expect(st.reversalsPerHour).toBe(0);
+    expect(st.pathDeg).toBeCloseTo(10, 12);
+  });
+  it('a window that slid and grew gives the same statistics as one built from the samples it still holds', async () => {
+    const { SampleWindow, motionStats } = await import('../../server/health/hunting-detector');
+    const w = new SampleWindow();
+    const kept: { atMs: number; tiltDeg: number; azimuthDeg: number }[] = [];
+    for (let i = 0; i < 300; i++) {
+      const s = { atMs: T0 + i * 5000, tiltDeg: 30 + 4 * Math.sin(i / 3), azimuthDeg: (350 + 7 * i) % 360 };
+      w.push(s.atMs, s.tiltDeg, s.azimuthDeg, 500 + i);
+      kept.push(s);
+      w.dropOlder(s.atMs, 10 * MIN);
+      while (s.atMs - kept[0]!.atMs > 10 * MIN) kept.shift();
+      if (i % 37 === 0) expect(w.motionStats(2)).toEqual(motionStats(kept, 2));
+    }
+    expect(w.length).toBe(kept.length);
+    expect(w.poaValues()).toEqual(kept.map((_, k) => 500 + 300 - kept.length + k));
+  });
+});
+
 describe('hunting under changing light', () => {
   it('measures light variation as standard deviation over mean', async () => {
     const { lightVariation } = await import('../../server/health/hunting-detector');
-    expect(lightVariation([{ poaWm2: 500 }, { poaWm2: 500 }])).toBe(0);
-    expect(lightVariation([{ poaWm2: 300 }, { poaWm2: 700 }])).toBeCloseTo(0.4, 10);
+    expect(lightVariation([500, 500])).toBe(0);
+    expect(lightVariation([300, 700])).toBeCloseTo(0.4, 10);
   });
 });
