@@ -295,6 +295,29 @@ describe('comms detector and stow watch', () => {
   });
 });
 
+describe('drift detector: what it asks the model', () => {
+  it('works out the modelled readings once per model and orientation: a settled unit sampled again costs no harmonic evaluation', async () => {
+    const { DriftDetector } = await import('../../server/health/drift-detector');
+    let calls = 0;
+    const base = modelOf(irr, T0);
+    const counted = { ...base, readings: (t: number, a: number, d: number) => (calls++, base.readings(t, a, d)) };
+    const d = new DriftDetector();
+    const at = (k: number) => T0 + k * 15_000;
+    const here = { tiltDeg: 40, azimuthDeg: 180 };
+    d.assess(UNIT, report(irr, at(0), here), at(0), counted, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(5); // here and the four orientations around it
+    d.assess(UNIT, report(irr, at(1), here), at(1), counted, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(5);
+    // It moved: worked out again.
+    d.assess(UNIT, report(irr, at(2), { tiltDeg: 41, azimuthDeg: 180 }), at(2), counted, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(10);
+    // A new model (the site's was rebuilt): again.
+    const rebuilt = { ...counted };
+    d.assess(UNIT, report(irr, at(3), { tiltDeg: 41, azimuthDeg: 180 }), at(3), rebuilt, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(15);
+  });
+});
+
 describe('hunting window', () => {
   it('counts reversals of motion of at least the step, path and net motion (tilt and sin(tilt)-weighted azimuth)', async () => {
     const { motionStats } = await import('../../server/health/hunting-detector');
