@@ -58,6 +58,12 @@ export interface BrokerOptions {
    * (the unit resends on its next connection). Until then aedes reads nothing more from that connection.
    */
   onMessage?: (unit: UnitPrincipal, leaf: UnitPublishLeaf, payload: Buffer, done: MessageDone) => void;
+  /**
+   * Whether a message handed to `onMessage` also goes on to aedes's subscribers (default true). A server whose only
+   * reader of unit messages is `onMessage` turns it off: no subscriber could match them, and aedes's routing of each
+   * one (offline queues, topic match, the publish event) is then work for nobody. Wills and retained messages always go on.
+   */
+  forwardTaken?: boolean;
   onClientGone?: (principal: Principal, clientId: string) => void;
   /** A publish the ACL refused, or a packet over the size limit from an authenticated client. */
   onDenied?: (principal: Principal | undefined, topic: string, reason: DenyReason) => void;
@@ -123,6 +129,10 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     disconnectedByServer: 0,
   };
   const principals = new WeakMap<Client, Principal>();
+  /** A unit's topic prefix, built once per connection (every publish is checked against it). */
+  const prefixes = new WeakMap<Client, string>();
+  /** Unit messages handed to `onMessage` (packets, by identity) that need not reach subscribers. */
+  const taken = new WeakSet<PublishPacket>();
   const wills = new WeakMap<Client, ConnectPacket['will'] | null>();
   const authenticated = new WeakSet<Client>();
   const settlePending = new WeakMap<Client, () => void>();
@@ -147,12 +157,12 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     done(err, false);
   };
 
+  const publishLeaves: ReadonlySet<string> = new Set(UNIT_PUBLISH_LEAVES);
   /** The leaf a unit may publish to, or null when the topic is not one of its own publish topics. */
-  const ownLeaf = (serial: string, topic: string): UnitPublishLeaf | null => {
-    const prefix = opts.unitPrefix(serial);
+  const ownLeaf = (prefix: string, topic: string): UnitPublishLeaf | null => {
     if (!topic.startsWith(prefix)) return null;
     const leaf = topic.slice(prefix.length);
-    return (UNIT_PUBLISH_LEAVES as readonly string[]).includes(leaf) ? (leaf as UnitPublishLeaf) : null;
+    return publishLeaves.has(leaf) ? (leaf as UnitPublishLeaf) : null;
   };
 
   /** Releases PUBACKs of one connection in the order its publishes arrived (MQTT 3.1.1 §4.6), whatever order their batches commit in. */
@@ -216,7 +226,9 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       const p = principals.get(client);
       if (p?.kind === 'service') return done(null);
       if (!p) return done(new BrokerRefusal('publish before authentication'));
-      const leaf = ownLeaf(p.serial, packet.topic);
+      let prefix = prefixes.get(client);
+      if (prefix === undefined) prefixes.set(client, (prefix = opts.unitPrefix(p.serial)));
+      const leaf = ownLeaf(prefix, packet.topic);
       // Own publish topics only, at QoS 0 or 1, retained only on status. (Whether a unit may report its site's weather
       // is the ingest's call: it depends on the unit's current settings, and a mismatch must not cut the unit off.)
       const reason: DenyReason | null = leaf === null || packet.qos > 1 ? 'acl' : packet.retain && leaf !== 'status' ? 'retain' : null;
@@ -238,6 +250,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
         }
         return done(null);
       }
+      if (opts.forwardTaken === false && !packet.retain) taken.add(packet);
       inOrder(client, (release) => handler(p, leaf, payload, release), done);
     },
     authorizeSubscribe: (client, sub, done) => {
@@ -250,6 +263,19 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       done(null, null); // a null subscription answers SUBACK 0x80 (failure) and keeps the client connected
     },
   });
+
+  if (opts.forwardTaken === false) {
+    // aedes acknowledges a QoS 1 publish and then publishes it to its subscribers through this method (aedes 1.2,
+    // lib/handlers/publish.js); a message the ingest took ends here instead, with the same asynchronous completion.
+    type Publish = (packet: PublishPacket, client?: Client | null | ((err?: Error) => void), done?: (err?: Error | null) => void) => void;
+    const target = aedes as unknown as { publish: Publish };
+    const publish = target.publish.bind(aedes);
+    target.publish = (packet, client, done) => {
+      if (typeof client === 'function' || !taken.has(packet)) return publish(packet, client, done);
+      taken.delete(packet);
+      if (done) process.nextTick(done, null);
+    };
+  }
 
   aedes.on('connackSent', (packet, client) => {
     if (packet.returnCode !== 0) return;
