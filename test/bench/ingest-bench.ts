@@ -1,5 +1,5 @@
 /**
- * `npm run bench:ingest [-- --units 10000 --rates 2000,5000,8000,10000,12000 --window 30 --json]`
+ * `npm run bench:ingest [-- --units 10000 --rates 2000,5000,8000,10000,12000 --window 30 --cpu-profile <file> --json]`
  *
  * Units publish telemetry (QoS 1) from separate processes at a rising aggregate rate into the embedded broker; the
  * in-process ingest writes to MariaDB. For each step we measure committed rows/s, publish → commit lag and
@@ -9,7 +9,8 @@
  * after commit); publish → PUBACK, measured by the load processes, is what a unit waits for its acknowledgement.
  */
 import { fork, type ChildProcess } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
+import { Session } from 'node:inspector/promises';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
 import { pino } from 'pino';
@@ -34,6 +35,8 @@ const { values: args } = parseArgs({
     window: { type: 'string', default: '30' },
     warmup: { type: 'string', default: '5' },
     processes: { type: 'string', default: '2' },
+    // Writes a V8 CPU profile (the profiler behind node --cpu-prof) of the server's measured window of the first step.
+    'cpu-profile': { type: 'string' },
     json: { type: 'boolean', default: false },
   },
 });
@@ -83,6 +86,24 @@ async function healthyReading(stack: Stack, siteId: number, detectorTiltDeg: num
     azimuthDeg: r1(best.azimuthDeg),
     // 400 Wp at about 85 % of its rating per kW/m²
     dcPowerW: r1((400 * 0.85 * r.panelWm2) / 1000),
+  };
+}
+
+/** The V8 sampling profiler on this process between `start` and `stopTo(file)` (a `.cpuprofile`, as node --cpu-prof writes). */
+function windowProfiler() {
+  const session = new Session();
+  return {
+    async start() {
+      session.connect();
+      await session.post('Profiler.enable');
+      await session.post('Profiler.start');
+    },
+    async stopTo(file: string) {
+      const { profile } = await session.post('Profiler.stop');
+      writeFileSync(file, JSON.stringify(profile));
+      session.disconnect();
+      say(`CPU profile of the measured window: ${file} (summary: node --import tsx test/bench/profile-summary.ts ${file})`);
+    },
   };
 }
 
@@ -205,6 +226,7 @@ async function main() {
     mariadb: () => (Number.isInteger(mariadbPid) ? [mariadbPid] : []),
   });
 
+  const profiler = windowProfiler();
   const steps: Record<string, number | boolean | null>[] = [];
   let best: (typeof steps)[number] | undefined;
   for (const rate of RATES) {
@@ -213,6 +235,7 @@ async function main() {
     commitLags.length = 0;
     const c0 = committed;
     const backlog0 = published() - committed;
+    if (args['cpu-profile'] && rate === RATES[0]) await profiler.start();
     cpu.mark();
     const machine0 = machineBusySeconds();
     const cpuServer0 = process.cpuUsage();
@@ -227,6 +250,7 @@ async function main() {
     const serverCpu = process.cpuUsage(cpuServer0);
     const split = cpu.read();
     const machine1 = machineBusySeconds();
+    if (args['cpu-profile'] && rate === RATES[0]) await profiler.stopTo(args['cpu-profile']);
     socketLags = await new Promise<number[]>((res) => {
       socketLagsReady = res;
       watcher.send({ type: 'measure', on: false });
