@@ -166,25 +166,30 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   };
 
   /** Releases PUBACKs of one connection in the order its publishes arrived (MQTT 3.1.1 §4.6), whatever order their batches commit in. */
-  const inOrder = (client: Client, run: (release: MessageDone) => void, done: (err: Error | null) => void) => {
-    let q = ackQueues.get(client);
-    if (!q) ackQueues.set(client, (q = []));
+  const inOrder = (
+    client: Client,
+    handler: NonNullable<BrokerOptions['onMessage']>,
+    p: UnitPrincipal,
+    leaf: UnitPublishLeaf,
+    payload: Buffer,
+    done: (err: Error | null) => void,
+  ) => {
+    let queue = ackQueues.get(client);
+    if (!queue) ackQueues.set(client, (queue = []));
     const slot = { done, ready: false, err: null as Error | null };
-    q.push(slot);
-    const queue = q;
-    let released = false;
+    queue.push(slot);
+    const q = queue;
     const release: MessageDone = (err) => {
-      if (released) return;
-      released = true;
+      if (slot.ready) return;
       slot.ready = true;
       slot.err = err ? new BrokerRefusal(`message not taken: ${err.message}`) : null;
-      while (queue.length && queue[0]!.ready) {
-        const s = queue.shift()!;
+      while (q.length && q[0]!.ready) {
+        const s = q.shift()!;
         s.done(s.err);
       }
     };
     try {
-      run(release);
+      handler(p, leaf, payload, release);
     } catch (err) {
       release(err as Error);
     }
@@ -251,7 +256,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
         return done(null);
       }
       if (opts.forwardTaken === false && !packet.retain) taken.add(packet);
-      inOrder(client, (release) => handler(p, leaf, payload, release), done);
+      inOrder(client, handler, p, leaf, payload, done);
     },
     authorizeSubscribe: (client, sub, done) => {
       const p = client ? principals.get(client) : undefined;

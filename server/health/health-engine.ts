@@ -19,7 +19,7 @@ import type { SiteModel, SiteModelProvider } from './site-model';
 import { SoilingDetector } from './soiling-detector';
 import { StallDetector } from './stall-detector';
 import { StowWatch } from './stow-watch';
-import { TrapDetector, type PeerReading } from './trap-detector';
+import { TrapDetector, type PeerReading, type TrapContext } from './trap-detector';
 import { NO_DETAIL, round1, type Assessment, type UnitRef } from './unit-sample';
 
 export interface HealthEngineOptions {
@@ -46,7 +46,7 @@ export class HealthEngine {
   private readonly stow = new StowWatch();
   private readonly units = new Map<number, UnitRef>();
   private readonly peers = new Map<number, Map<number, PeerReading>>();
-  private readonly siteSnapshots = new Map<number, { atMs: number; peers?: PeerReading[]; trapped?: number }>();
+  private readonly siteSnapshots = new Map<number, SiteSnapshot>();
   private readonly darkSites = new Set<number>();
   /** Units restored from the store at start-up, not judged before this time unless heard first [ms]. */
   private readonly restoredGraceUntil = new Map<number, number>();
@@ -60,15 +60,17 @@ export class HealthEngine {
 
   /** Whether production checks run at a site now (modelled best orientation bright enough; sun up outdoors). */
   /** Lazily computed, briefly cached peer readings and trapped-unit count of a site. */
-  private siteSnapshot(siteId: number, atMs: number, sitePeers: Map<number, PeerReading>) {
+  private siteSnapshot(siteId: number, atMs: number, sitePeers: Map<number, PeerReading>): SiteSnapshot {
     let snap = this.siteSnapshots.get(siteId);
-    if (!snap || Math.abs(atMs - snap.atMs) > SITE_SNAPSHOT_MS) this.siteSnapshots.set(siteId, (snap = { atMs }));
-    const current = snap;
-    return {
-      peers: () => (current.peers ??= [...sitePeers.values()]),
-      trapped: () =>
-        (current.trapped ??= [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length),
-    };
+    if (!snap || Math.abs(atMs - snap.atMs) > SITE_SNAPSHOT_MS)
+      this.siteSnapshots.set(siteId, (snap = new SiteSnapshot(atMs, sitePeers, this)));
+    else snap.sitePeers = sitePeers;
+    return snap;
+  }
+
+  /** Whether a unit's trap condition holds now (for a site's count of trapped units). */
+  trapHolding(unitId: number): boolean {
+    return this.book.holding(this.subjectOf(this.units.get(unitId)!), 'trap');
   }
 
   static daylight(m: SiteModel | undefined, s: HealthSettings): boolean {
@@ -120,24 +122,7 @@ export class HealthEngine {
     this.put(
       subject,
       'trap',
-      this.trap.assess(
-        unit,
-        t,
-        atMs,
-        {
-          model,
-          daylight,
-          get peers() {
-            return site.peers();
-          },
-          otherCause,
-          open: this.isOpen(subject, 'trap'),
-          get trappedAtSite() {
-            return site.trapped();
-          },
-        },
-        s,
-      ),
+      this.trap.assess(unit, t, atMs, new TrapView(model, daylight, site, otherCause, this.isOpen(subject, 'trap')), s),
       atMs,
       tm.trap,
       suppressed,
@@ -334,6 +319,40 @@ export class HealthEngine {
     const subject: AlarmSubject = { unitId: u.unitId, serial: u.serial, siteId: u.siteId };
     this.subjects.set(u.unitId, { ref: u, subject });
     return subject;
+  }
+}
+
+/** A site's peer readings and trapped-unit count, worked out on first demand and shared for a couple of seconds. */
+class SiteSnapshot {
+  private peerList?: PeerReading[];
+  private trappedCount?: number;
+  constructor(
+    readonly atMs: number,
+    public sitePeers: Map<number, PeerReading>,
+    private readonly engine: HealthEngine,
+  ) {}
+  peers(): PeerReading[] {
+    return (this.peerList ??= [...this.sitePeers.values()]);
+  }
+  trapped(): number {
+    return (this.trappedCount ??= [...this.sitePeers.keys()].filter((id) => this.engine.trapHolding(id)).length);
+  }
+}
+
+/** What the trap detector is told of a report's context; the site-wide figures are asked for only when it needs them. */
+class TrapView implements TrapContext {
+  constructor(
+    readonly model: SiteModel | undefined,
+    readonly daylight: boolean,
+    private readonly site: SiteSnapshot,
+    readonly otherCause: string | null,
+    readonly open: boolean,
+  ) {}
+  get peers(): readonly PeerReading[] {
+    return this.site.peers();
+  }
+  get trappedAtSite(): number {
+    return this.site.trapped();
   }
 }
 

@@ -106,6 +106,12 @@ export interface IngestCounters {
 /** Called once a message may be acknowledged to the unit (its row committed); with an error, it must not be. */
 export type Acknowledge = (err?: Error) => void;
 
+/** A message answered at once (refused, or handled without a row): acknowledged now, so the unit does not resend it. */
+function refused(ack: Acknowledge | undefined, reason: RejectReason | null): RejectReason | null {
+  ack?.();
+  return reason;
+}
+
 interface HeldTelemetry {
   row: TelemetryRow;
   unit: UnitInfo;
@@ -204,56 +210,52 @@ export class IngestService {
   /** Validates one message and buffers it (see `receive`). Returns the reject reason, or null when accepted. */
   accept(serial: string, leaf: string, payload: Buffer, ack?: Acknowledge): RejectReason | null {
     this.counters.received++;
-    const refuse = (reason: RejectReason | null): RejectReason | null => {
-      ack?.();
-      return reason;
-    };
     if (payload.length > MAX_PAYLOAD_BYTES)
-      return refuse(this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`));
+      return refused(ack, this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`));
     const unit = this.units.get(serial);
-    if (!unit) return refuse(this.reject(serial, 'unknown_unit', 'no unit has this serial'));
-    if (unit.disabled) return refuse(this.reject(serial, 'disabled_unit', 'unit is disabled'));
+    if (!unit) return refused(ack, this.reject(serial, 'unknown_unit', 'no unit has this serial'));
+    if (unit.disabled) return refused(ack, this.reject(serial, 'disabled_unit', 'unit is disabled'));
     let json: unknown;
     try {
       json = JSON.parse(payload.toString('utf8'));
     } catch {
-      return refuse(this.reject(serial, 'malformed_json', 'payload is not JSON'));
+      return refused(ack, this.reject(serial, 'malformed_json', 'payload is not JSON'));
     }
     switch (leaf) {
       case 'telemetry': {
         const t = this.validate(serial, telemetryValidator, json);
-        if (!t) return refuse('invalid_payload');
+        if (!t) return refused(ack, 'invalid_payload');
         const ts = Date.parse(t.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return refuse(bad);
+        if (bad) return refused(ack, bad);
         this.telemetry.push({ row: telemetryRowOf(unit.id, t, ts, this.opts.now()), unit, t, tsMs: ts, ack });
         this.listeners.telemetry?.(unit, t);
         break;
       }
       case 'events': {
         const e = this.validate(serial, eventValidator, json);
-        if (!e) return refuse('invalid_payload');
+        if (!e) return refused(ack, 'invalid_payload');
         const ts = Date.parse(e.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return refuse(bad);
+        if (bad) return refused(ack, bad);
         this.events.push({ row: eventRowOf(unit.id, e, ts), unit, e, ack });
         break;
       }
       case 'weather': {
         // Only the unit that carries its site's station may report the site's weather (fake gusts would raise stow alarms).
         if (!unit.weatherStation)
-          return refuse(this.reject(serial, 'weather_denied', "this unit does not carry its site's weather station"));
+          return refused(ack, this.reject(serial, 'weather_denied', "this unit does not carry its site's weather station"));
         const w = this.validate(serial, weatherValidator, json);
-        if (!w) return refuse('invalid_payload');
+        if (!w) return refused(ack, 'invalid_payload');
         const ts = Date.parse(w.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return refuse(bad);
+        if (bad) return refused(ack, bad);
         this.weather.push({ row: weatherRowOf(unit.siteId, w, ts), unit, w, ack });
         break;
       }
       case 'acks': {
         const a = this.validate(serial, ackValidator, json);
-        if (!a) return refuse('invalid_payload');
+        if (!a) return refused(ack, 'invalid_payload');
         const answered = this.listeners.ack?.(unit, a);
         if (answered)
           answered.then(
@@ -265,12 +267,12 @@ export class IngestService {
       }
       case 'status': {
         const s = this.validate(serial, statusValidator, json);
-        if (!s) return refuse('invalid_payload');
+        if (!s) return refused(ack, 'invalid_payload');
         this.listeners.status?.(unit, s);
-        return refuse(null);
+        return refused(ack, null);
       }
       default:
-        return refuse(this.reject(serial, 'unknown_topic', `no such leaf "${leaf}"`));
+        return refused(ack, this.reject(serial, 'unknown_topic', `no such leaf "${leaf}"`));
     }
     this.schedule();
     return null;
