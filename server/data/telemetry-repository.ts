@@ -150,6 +150,11 @@ export interface QuarterModelValues {
 
 const QUARTER_MS = 15 * MINUTE_MS;
 
+/** A pooled mysql2 connection, as Knex hands it out. */
+interface RawConnection {
+  query(sql: string, cb: (err: Error | null, res: unknown) => void): void;
+}
+
 /** The rows RETURNING named, as `Added` (their keys only when some rows were not added: in a full batch they cost time). */
 function added(out: Record<string, unknown>[], given: number, keyOf: (r: Record<string, unknown>) => string): Added {
   return { count: out.length, keys: out.length === given ? null : new Set(out.map(keyOf)) };
@@ -256,9 +261,10 @@ export class TelemetryRepository {
   }
 
   /**
-   * The statement is formatted here by mysql2's own escaping, with the connection's UTC time zone (`timezone: 'Z'` in
-   * db.ts), and handed to Knex without bindings: Knex would otherwise walk the 18,000 values of a full batch once more
-   * to rewrite its placeholders before mysql2 formats them anyway.
+   * The statement is formatted once by mysql2's own escaping, with the connection's UTC time zone (`timezone: 'Z'` in
+   * db.ts), and sent on a pooled connection directly: through Knex, the 18,000 values of a full batch would be walked
+   * once more to rewrite placeholders and the whole text scanned again for its debug log. A connection that fails is
+   * marked by Knex's own error handler and not handed out again.
    */
   private async insertIgnoreReturning(
     table: string,
@@ -267,10 +273,15 @@ export class TelemetryRepository {
     key: string[],
   ): Promise<Record<string, unknown>[]> {
     const { sql, values } = this.statement(table, cols, rows);
-    const [res] = (await this.db.raw(
-      format(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values, false, 'Z'),
-    )) as unknown as [Record<string, unknown>[]];
-    return res;
+    const text = format(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values, false, 'Z');
+    const conn = (await this.db.client.acquireConnection()) as RawConnection;
+    try {
+      return await new Promise<Record<string, unknown>[]>((resolve, reject) =>
+        conn.query(text, (err, res) => (err ? reject(err) : resolve(res as Record<string, unknown>[]))),
+      );
+    } finally {
+      await this.db.client.releaseConnection(conn);
+    }
   }
 
   /** Recomputes the 1-minute rollup of one minute bucket (epoch ms of the minute start) for the given units. */
