@@ -141,7 +141,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const revocations = new Map<string, number>();
   /** Connections already counted: a connection closed for a fault counts once, by its first one. */
   const counted = new WeakSet<Client>();
-  const ackQueues = new WeakMap<Client, { done: (err: Error | null) => void; ready: boolean; err: Error | null }[]>();
+  const ackQueues = new WeakMap<Client, AckSlot[]>();
 
   const refuse = (
     client: Client,
@@ -176,22 +176,14 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   ) => {
     let queue = ackQueues.get(client);
     if (!queue) ackQueues.set(client, (queue = []));
-    const slot = { done, ready: false, err: null as Error | null };
+    const slot: AckSlot = { done, ready: false, err: null };
     queue.push(slot);
     const q = queue;
-    const release: MessageDone = (err) => {
-      if (slot.ready) return;
-      slot.ready = true;
-      slot.err = err ? new BrokerRefusal(`message not taken: ${err.message}`) : null;
-      while (q.length && q[0]!.ready) {
-        const s = q.shift()!;
-        s.done(s.err);
-      }
-    };
     try {
-      handler(p, leaf, payload, release);
+      // An inline arrow: a named one would be renamed at run time on every message (tsx keeps function names).
+      handler(p, leaf, payload, (err) => releaseSlot(q, slot, err));
     } catch (err) {
-      release(err as Error);
+      releaseSlot(q, slot, err as Error);
     }
   };
 
@@ -402,6 +394,24 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       await Promise.all(servers.map((s) => new Promise<void>((res) => s.close(() => res()))));
     },
   };
+}
+
+/** A publish waiting for its PUBACK, in a connection's queue. */
+interface AckSlot {
+  done: (err: Error | null) => void;
+  ready: boolean;
+  err: Error | null;
+}
+
+/** Marks a slot released (once) and lets out every PUBACK at the head of the queue that is ready, in order. */
+function releaseSlot(queue: AckSlot[], slot: AckSlot, err?: Error): void {
+  if (slot.ready) return;
+  slot.ready = true;
+  slot.err = err ? new BrokerRefusal(`message not taken: ${err.message}`) : null;
+  while (queue.length && queue[0]!.ready) {
+    const s = queue.shift()!;
+    s.done(s.err);
+  }
 }
 
 function payloadOf(packet: PublishPacket): Buffer {
