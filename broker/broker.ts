@@ -129,10 +129,8 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     disconnectedByServer: 0,
   };
   const principals = new WeakMap<Client, Principal>();
-  /** A unit's topic prefix, built once per connection (every publish is checked against it). */
-  const prefixes = new WeakMap<Client, string>();
-  /** Unit messages handed to `onMessage` (packets, by identity) that need not reach subscribers. */
-  const taken = new WeakSet<PublishPacket>();
+  /** A unit connection's topic prefix (built once: every publish is checked against it) and its publishes awaiting PUBACK. */
+  const unitConns = new WeakMap<Client, { prefix: string; queue: AckSlot[] }>();
   const wills = new WeakMap<Client, ConnectPacket['will'] | null>();
   const authenticated = new WeakSet<Client>();
   const settlePending = new WeakMap<Client, () => void>();
@@ -141,7 +139,6 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const revocations = new Map<string, number>();
   /** Connections already counted: a connection closed for a fault counts once, by its first one. */
   const counted = new WeakSet<Client>();
-  const ackQueues = new WeakMap<Client, AckSlot[]>();
 
   const refuse = (
     client: Client,
@@ -167,18 +164,15 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
 
   /** Releases PUBACKs of one connection in the order its publishes arrived (MQTT 3.1.1 §4.6), whatever order their batches commit in. */
   const inOrder = (
-    client: Client,
+    q: AckSlot[],
     handler: NonNullable<BrokerOptions['onMessage']>,
     p: UnitPrincipal,
     leaf: UnitPublishLeaf,
     payload: Buffer,
     done: (err: Error | null) => void,
   ) => {
-    let queue = ackQueues.get(client);
-    if (!queue) ackQueues.set(client, (queue = []));
     const slot: AckSlot = { done, ready: false, err: null };
-    queue.push(slot);
-    const q = queue;
+    q.push(slot);
     try {
       // An inline arrow: a named one would be renamed at run time on every message (tsx keeps function names).
       handler(p, leaf, payload, (err) => releaseSlot(q, slot, err));
@@ -223,9 +217,9 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       const p = principals.get(client);
       if (p?.kind === 'service') return done(null);
       if (!p) return done(new BrokerRefusal('publish before authentication'));
-      let prefix = prefixes.get(client);
-      if (prefix === undefined) prefixes.set(client, (prefix = opts.unitPrefix(p.serial)));
-      const leaf = ownLeaf(prefix, packet.topic);
+      let conn = unitConns.get(client);
+      if (!conn) unitConns.set(client, (conn = { prefix: opts.unitPrefix(p.serial), queue: [] }));
+      const leaf = ownLeaf(conn.prefix, packet.topic);
       // Own publish topics only, at QoS 0 or 1, retained only on status. (Whether a unit may report its site's weather
       // is the ingest's call: it depends on the unit's current settings, and a mismatch must not cut the unit off.)
       const reason: DenyReason | null = leaf === null || packet.qos > 1 ? 'acl' : packet.retain && leaf !== 'status' ? 'retain' : null;
@@ -247,8 +241,8 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
         }
         return done(null);
       }
-      if (opts.forwardTaken === false && !packet.retain) taken.add(packet);
-      inOrder(client, handler, p, leaf, payload, done);
+      if (opts.forwardTaken === false && !packet.retain) (packet as TakenPacket)[TAKEN] = true;
+      inOrder(conn.queue, handler, p, leaf, payload, done);
     },
     authorizeSubscribe: (client, sub, done) => {
       const p = client ? principals.get(client) : undefined;
@@ -268,8 +262,7 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     const target = aedes as unknown as { publish: Publish };
     const publish = target.publish.bind(aedes);
     target.publish = (packet, client, done) => {
-      if (typeof client === 'function' || !taken.has(packet)) return publish(packet, client, done);
-      taken.delete(packet);
+      if (typeof client === 'function' || (packet as TakenPacket)[TAKEN] !== true) return publish(packet, client, done);
       if (done) process.nextTick(done, null);
     };
   }
@@ -395,6 +388,10 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     },
   };
 }
+
+/** Marks a unit's publish the ingest took (a property of aedes's packet: cheaper than a weak set per message). */
+const TAKEN = Symbol('taken by onMessage');
+type TakenPacket = PublishPacket & { [TAKEN]?: true };
 
 /** A publish waiting for its PUBACK, in a connection's queue. */
 interface AckSlot {
