@@ -58,6 +58,12 @@ export interface BrokerOptions {
    * (the unit resends on its next connection). Until then aedes reads nothing more from that connection.
    */
   onMessage?: (unit: UnitPrincipal, leaf: UnitPublishLeaf, payload: Buffer, done: MessageDone) => void;
+  /**
+   * Whether a message handed to `onMessage` also goes on to aedes's subscribers (default true). A server whose only
+   * reader of unit messages is `onMessage` turns it off: no subscriber could match them, and aedes's routing of each
+   * one (offline queues, topic match, the publish event) is then work for nobody. Wills and retained messages always go on.
+   */
+  forwardTaken?: boolean;
   onClientGone?: (principal: Principal, clientId: string) => void;
   /** A publish the ACL refused, or a packet over the size limit from an authenticated client. */
   onDenied?: (principal: Principal | undefined, topic: string, reason: DenyReason) => void;
@@ -123,6 +129,8 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     disconnectedByServer: 0,
   };
   const principals = new WeakMap<Client, Principal>();
+  /** A unit connection's topic prefix (built once: every publish is checked against it) and its publishes awaiting PUBACK. */
+  const unitConns = new WeakMap<Client, { prefix: string; queue: AckSlot[] }>();
   const wills = new WeakMap<Client, ConnectPacket['will'] | null>();
   const authenticated = new WeakSet<Client>();
   const settlePending = new WeakMap<Client, () => void>();
@@ -131,7 +139,6 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
   const revocations = new Map<string, number>();
   /** Connections already counted: a connection closed for a fault counts once, by its first one. */
   const counted = new WeakSet<Client>();
-  const ackQueues = new WeakMap<Client, { done: (err: Error | null) => void; ready: boolean; err: Error | null }[]>();
 
   const refuse = (
     client: Client,
@@ -147,36 +154,30 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
     done(err, false);
   };
 
+  const publishLeaves: ReadonlySet<string> = new Set(UNIT_PUBLISH_LEAVES);
   /** The leaf a unit may publish to, or null when the topic is not one of its own publish topics. */
-  const ownLeaf = (serial: string, topic: string): UnitPublishLeaf | null => {
-    const prefix = opts.unitPrefix(serial);
+  const ownLeaf = (prefix: string, topic: string): UnitPublishLeaf | null => {
     if (!topic.startsWith(prefix)) return null;
     const leaf = topic.slice(prefix.length);
-    return (UNIT_PUBLISH_LEAVES as readonly string[]).includes(leaf) ? (leaf as UnitPublishLeaf) : null;
+    return publishLeaves.has(leaf) ? (leaf as UnitPublishLeaf) : null;
   };
 
   /** Releases PUBACKs of one connection in the order its publishes arrived (MQTT 3.1.1 §4.6), whatever order their batches commit in. */
-  const inOrder = (client: Client, run: (release: MessageDone) => void, done: (err: Error | null) => void) => {
-    let q = ackQueues.get(client);
-    if (!q) ackQueues.set(client, (q = []));
-    const slot = { done, ready: false, err: null as Error | null };
+  const inOrder = (
+    q: AckSlot[],
+    handler: NonNullable<BrokerOptions['onMessage']>,
+    p: UnitPrincipal,
+    leaf: UnitPublishLeaf,
+    payload: Buffer,
+    done: (err: Error | null) => void,
+  ) => {
+    const slot: AckSlot = { done, ready: false, err: null };
     q.push(slot);
-    const queue = q;
-    let released = false;
-    const release: MessageDone = (err) => {
-      if (released) return;
-      released = true;
-      slot.ready = true;
-      slot.err = err ? new BrokerRefusal(`message not taken: ${err.message}`) : null;
-      while (queue.length && queue[0]!.ready) {
-        const s = queue.shift()!;
-        s.done(s.err);
-      }
-    };
     try {
-      run(release);
+      // An inline arrow: a named one would be renamed at run time on every message (tsx keeps function names).
+      handler(p, leaf, payload, (err) => releaseSlot(q, slot, err));
     } catch (err) {
-      release(err as Error);
+      releaseSlot(q, slot, err as Error);
     }
   };
 
@@ -216,7 +217,9 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       const p = principals.get(client);
       if (p?.kind === 'service') return done(null);
       if (!p) return done(new BrokerRefusal('publish before authentication'));
-      const leaf = ownLeaf(p.serial, packet.topic);
+      let conn = unitConns.get(client);
+      if (!conn) unitConns.set(client, (conn = { prefix: opts.unitPrefix(p.serial), queue: [] }));
+      const leaf = ownLeaf(conn.prefix, packet.topic);
       // Own publish topics only, at QoS 0 or 1, retained only on status. (Whether a unit may report its site's weather
       // is the ingest's call: it depends on the unit's current settings, and a mismatch must not cut the unit off.)
       const reason: DenyReason | null = leaf === null || packet.qos > 1 ? 'acl' : packet.retain && leaf !== 'status' ? 'retain' : null;
@@ -238,7 +241,8 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
         }
         return done(null);
       }
-      inOrder(client, (release) => handler(p, leaf, payload, release), done);
+      if (opts.forwardTaken === false && !packet.retain) (packet as TakenPacket)[TAKEN] = true;
+      inOrder(conn.queue, handler, p, leaf, payload, done);
     },
     authorizeSubscribe: (client, sub, done) => {
       const p = client ? principals.get(client) : undefined;
@@ -250,6 +254,18 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       done(null, null); // a null subscription answers SUBACK 0x80 (failure) and keeps the client connected
     },
   });
+
+  if (opts.forwardTaken === false) {
+    // aedes acknowledges a QoS 1 publish and then publishes it to its subscribers through this method (aedes 1.2,
+    // lib/handlers/publish.js); a message the ingest took ends here instead, with the same asynchronous completion.
+    type Publish = (packet: PublishPacket, client?: Client | null | ((err?: Error) => void), done?: (err?: Error | null) => void) => void;
+    const target = aedes as unknown as { publish: Publish };
+    const publish = target.publish.bind(aedes);
+    target.publish = (packet, client, done) => {
+      if (typeof client === 'function' || (packet as TakenPacket)[TAKEN] !== true) return publish(packet, client, done);
+      if (done) process.nextTick(done, null);
+    };
+  }
 
   aedes.on('connackSent', (packet, client) => {
     if (packet.returnCode !== 0) return;
@@ -371,6 +387,28 @@ export async function startBroker(opts: BrokerOptions): Promise<RunningBroker> {
       await Promise.all(servers.map((s) => new Promise<void>((res) => s.close(() => res()))));
     },
   };
+}
+
+/** Marks a unit's publish the ingest took (a property of aedes's packet: cheaper than a weak set per message). */
+const TAKEN = Symbol('taken by onMessage');
+type TakenPacket = PublishPacket & { [TAKEN]?: true };
+
+/** A publish waiting for its PUBACK, in a connection's queue. */
+interface AckSlot {
+  done: (err: Error | null) => void;
+  ready: boolean;
+  err: Error | null;
+}
+
+/** Marks a slot released (once) and lets out every PUBACK at the head of the queue that is ready, in order. */
+function releaseSlot(queue: AckSlot[], slot: AckSlot, err?: Error): void {
+  if (slot.ready) return;
+  slot.ready = true;
+  slot.err = err ? new BrokerRefusal(`message not taken: ${err.message}`) : null;
+  while (queue.length && queue[0]!.ready) {
+    const s = queue.shift()!;
+    s.done(s.err);
+  }
 }
 
 function payloadOf(packet: PublishPacket): Buffer {

@@ -307,6 +307,8 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
     unitPrefix,
     limits: { ...(config.broker.connectTimeoutMs ? { connectTimeoutMs: config.broker.connectTimeoutMs } : {}), ...opts.brokerLimits },
     onMessage: unitMessageHandler(ingest, log),
+    // The ingest is the only reader of unit messages (units may subscribe only to their own commands).
+    forwardTaken: false,
     onDenied: countDenied(ingest),
     authenticate: async (username, password): Promise<Principal | null> => {
       const u = await units.findCredentials(username);

@@ -1,4 +1,4 @@
-import type { Knex } from 'knex';
+import { format, type SqlValue } from 'mysql2';
 import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
 import { UNIT_MODES } from '../../shared/contracts/wire-format';
 import type { Db } from './db';
@@ -150,6 +150,16 @@ export interface QuarterModelValues {
 
 const QUARTER_MS = 15 * MINUTE_MS;
 
+/** A pooled mysql2 connection, as Knex hands it out. */
+interface RawConnection {
+  query(sql: string, cb: (err: Error | null, res: unknown) => void): void;
+}
+
+/** The rows RETURNING named, as `Added` (their keys only when some rows were not added: in a full batch they cost time). */
+function added(out: Record<string, unknown>[], given: number, keyOf: (r: Record<string, unknown>) => string): Added {
+  return { count: out.length, keys: out.length === given ? null : new Set(out.map(keyOf)) };
+}
+
 /** Identity of a telemetry row (its primary key), as the ingest compares rows. */
 export const telemetryKey = (unitId: number, ts: Date) => `${unitId}|${ts.getTime()}`;
 /** Identities of stored rows, as the insert methods return them for the rows that were new. */
@@ -161,56 +171,60 @@ export const weatherKey = (siteId: number, ts: Date) => `${siteId}|${ts.getTime(
 /** Identity of a unit event row (its primary key). */
 export const eventKey = (unitId: number, ts: Date, kind: string) => `${unitId}|${ts.getTime()}|${kind}`;
 
+/**
+ * What a multi-row `INSERT IGNORE` added: `count` rows, and which of them (`keys`, see the `…RowKey` functions) — or
+ * `keys: null` when it added every row it was given (the usual case: nothing in the batch was a resend).
+ */
+export interface Added {
+  count: number;
+  keys: Set<string> | null;
+}
+
 /** Raw telemetry and its rollups. Inserts are `INSERT IGNORE` on the (unit, ts) key: a resend never duplicates. */
 export class TelemetryRepository {
   constructor(private readonly db: Db) {}
 
   /**
-   * Multi-row `INSERT IGNORE` on the primary key, one statement (one commit) per call; returns the keys of the rows that
-   * were new (`INSERT IGNORE … RETURNING` names only the rows actually inserted), so a resend is never announced twice.
+   * Multi-row `INSERT IGNORE` on the primary key, one statement (one commit) per call; says which rows were new
+   * (`INSERT IGNORE … RETURNING` names only the rows actually inserted), so a resend is never announced twice.
    */
-  async insertTelemetry(rows: TelemetryRow[]): Promise<string[]> {
-    if (!rows.length) return [];
-    const out = await this.insertIgnoreReturning(
-      this.db,
-      'telemetry',
-      TELEMETRY_COLUMNS as string[],
-      rows as unknown as Record<string, unknown>[],
-      ['unit_id', 'ts'],
-    );
-    return out.map((r) => telemetryKey(Number(r['unit_id']), r['ts'] as Date));
+  async insertTelemetry(rows: TelemetryRow[]): Promise<Added> {
+    if (!rows.length) return { count: 0, keys: null };
+    const out = await this.insertIgnoreReturning('telemetry', TELEMETRY_COLUMNS as string[], rows as unknown as Record<string, unknown>[], [
+      'unit_id',
+      'ts',
+    ]);
+    return added(out, rows.length, (r) => telemetryKey(Number(r['unit_id']), r['ts'] as Date));
   }
 
   /** Like insertTelemetry, for unit events (key: unit, ts, kind). */
-  async insertEvents(rows: EventRow[]): Promise<string[]> {
-    if (!rows.length) return [];
+  async insertEvents(rows: EventRow[]): Promise<Added> {
+    if (!rows.length) return { count: 0, keys: null };
     const out = await this.insertIgnoreReturning(
-      this.db,
       'unit_events',
       ['unit_id', 'ts', 'kind', 'body'],
       rows as unknown as Record<string, unknown>[],
       ['unit_id', 'ts', 'kind'],
     );
-    return out.map((r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])));
+    return added(out, rows.length, (r) => eventKey(Number(r['unit_id']), r['ts'] as Date, String(r['kind'])));
   }
 
   /** Like insertTelemetry, for site weather readings (key: site, ts). */
-  async insertWeather(rows: WeatherRow[]): Promise<string[]> {
-    if (!rows.length) return [];
+  async insertWeather(rows: WeatherRow[]): Promise<Added> {
+    if (!rows.length) return { count: 0, keys: null };
     const out = await this.insertIgnoreReturning(
-      this.db,
       'weather',
       ['site_id', 'ts', 'ghi_wm2', 'dhi_wm2', 'air_temp_c', 'wind_ms', 'gust_ms'],
       rows as unknown as Record<string, unknown>[],
       ['site_id', 'ts'],
     );
-    return out.map((r) => weatherKey(Number(r['site_id']), r['ts'] as Date));
+    return added(out, rows.length, (r) => weatherKey(Number(r['site_id']), r['ts'] as Date));
   }
 
-  private statement(table: string, cols: string[], rows: Record<string, unknown>[]): { sql: string; values: Knex.RawBinding[] } {
+  private statement(table: string, cols: string[], rows: Record<string, unknown>[]): { sql: string; values: SqlValue[] } {
     const tuple = `(${cols.map(() => '?').join(',')})`;
-    const values: Knex.RawBinding[] = [];
-    for (const r of rows) for (const c of cols) values.push(r[c] as Knex.RawBinding);
+    const values: SqlValue[] = [];
+    for (const r of rows) for (const c of cols) values.push(r[c] as SqlValue);
     return {
       sql: `INSERT IGNORE INTO \`${table}\` (${cols.map((c) => `\`${c}\``).join(',')}) VALUES ${rows.map(() => tuple).join(',')}`,
       values,
@@ -246,18 +260,28 @@ export class TelemetryRepository {
     }));
   }
 
+  /**
+   * The statement is formatted once by mysql2's own escaping, with the connection's UTC time zone (`timezone: 'Z'` in
+   * db.ts), and sent on a pooled connection directly: through Knex, the 18,000 values of a full batch would be walked
+   * once more to rewrite placeholders and the whole text scanned again for its debug log. A connection that fails is
+   * marked by Knex's own error handler and not handed out again.
+   */
   private async insertIgnoreReturning(
-    db: Knex,
     table: string,
     cols: string[],
     rows: Record<string, unknown>[],
     key: string[],
   ): Promise<Record<string, unknown>[]> {
     const { sql, values } = this.statement(table, cols, rows);
-    const [res] = (await db.raw(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values)) as unknown as [
-      Record<string, unknown>[],
-    ];
-    return res;
+    const text = format(`${sql} RETURNING ${key.map((c) => `\`${c}\``).join(',')}`, values, false, 'Z');
+    const conn = (await this.db.client.acquireConnection()) as RawConnection;
+    try {
+      return await new Promise<Record<string, unknown>[]>((resolve, reject) =>
+        conn.query(text, (err, res) => (err ? reject(err) : resolve(res as Record<string, unknown>[]))),
+      );
+    } finally {
+      await this.db.client.releaseConnection(conn);
+    }
   }
 
   /** Recomputes the 1-minute rollup of one minute bucket (epoch ms of the minute start) for the given units. */

@@ -35,8 +35,12 @@ interface Track {
 
 export const subjectKey = (s: AlarmSubject) => (s.unitId === null ? `site:${s.siteId}` : `unit:${s.unitId}`);
 
+/** A subject as a number (units by id, sites below zero): the book is asked several times per report, so no strings. */
+const subjectId = (s: AlarmSubject): number => (s.unitId === null ? -1 - s.siteId : s.unitId);
+
 export class AlarmBook {
-  private readonly tracks = new Map<string, Track>();
+  /** Tracks by subject, then kind. */
+  private readonly tracks = new Map<number, Map<AlarmKind, Track>>();
   private readonly history: Alarm[] = [];
   private readonly listeners: AlarmBookListeners[] = [];
 
@@ -61,12 +65,14 @@ export class AlarmBook {
     detail: () => AlarmDetail,
     suppressed = false,
   ): Alarm | null {
-    const key = `${subjectKey(subject)}/${kind}`;
-    let t = this.tracks.get(key);
+    const id = subjectId(subject);
+    let kinds = this.tracks.get(id);
+    let t = kinds?.get(kind);
     if (!t) {
       if (condition !== true) return null;
       t = { pendingSinceMs: null, absentSinceMs: null, open: null, lastUpdateMs: -Infinity };
-      this.tracks.set(key, t);
+      if (!kinds) this.tracks.set(id, (kinds = new Map()));
+      kinds.set(kind, t);
     }
     if (condition === null) return t.open;
     if (condition) {
@@ -93,7 +99,7 @@ export class AlarmBook {
         const a: Alarm = {
           ...subject,
           ...d,
-          key: `${key}@${atMs}`,
+          key: `${subjectKey(subject)}/${kind}@${atMs}`,
           kind,
           state: 'active',
           firstSeenMs: t.pendingSinceMs,
@@ -113,37 +119,44 @@ export class AlarmBook {
     t.pendingSinceMs = null;
     if (t.open) {
       t.absentSinceMs ??= atMs;
-      if (atMs - t.absentSinceMs >= timing.clearDelayMs) this.close(key, t, atMs, 'condition ended');
+      if (atMs - t.absentSinceMs >= timing.clearDelayMs) this.close(id, kind, t, atMs, 'condition ended');
     } else {
-      this.tracks.delete(key);
+      this.forget(id, kind);
     }
     return null;
   }
 
   /** Clears an open alarm now (e.g. superseded by a site alarm). */
   clear(subject: AlarmSubject, kind: AlarmKind, atMs: number, reason: string): void {
-    const key = `${subjectKey(subject)}/${kind}`;
-    const t = this.tracks.get(key);
-    if (t?.open) this.close(key, t, atMs, reason);
+    const id = subjectId(subject);
+    const t = this.tracks.get(id)?.get(kind);
+    if (t?.open) this.close(id, kind, t, atMs, reason);
   }
 
-  private close(key: string, t: Track, atMs: number, reason: string): void {
+  private close(id: number, kind: AlarmKind, t: Track, atMs: number, reason: string): void {
     const a = t.open!;
     a.state = 'cleared';
     a.clearedMs = atMs;
     a.clearReason = reason;
-    this.tracks.delete(key);
+    this.forget(id, kind);
     for (const l of this.listeners) l.cleared?.(a);
+  }
+
+  private forget(id: number, kind: AlarmKind): void {
+    const kinds = this.tracks.get(id);
+    if (!kinds) return;
+    kinds.delete(kind);
+    if (!kinds.size) this.tracks.delete(id);
   }
 
   /** The open alarm of a subject and kind, if any. */
   openAlarm(subject: AlarmSubject, kind: AlarmKind): Alarm | null {
-    return this.tracks.get(`${subjectKey(subject)}/${kind}`)?.open ?? null;
+    return this.tracks.get(subjectId(subject))?.get(kind)?.open ?? null;
   }
 
   /** Whether the condition of a subject and kind is holding now (pending or open). */
   holding(subject: AlarmSubject, kind: AlarmKind): boolean {
-    const t = this.tracks.get(`${subjectKey(subject)}/${kind}`);
+    const t = this.tracks.get(subjectId(subject))?.get(kind);
     return !!t && (t.open !== null || t.pendingSinceMs !== null) && t.absentSinceMs === null;
   }
 

@@ -10,7 +10,7 @@
 import { detectorWords } from '../../shared/contracts/plain-words';
 import type { Telemetry } from '../../shared/contracts/wire';
 import type { HealthSettings } from './health-settings';
-import type { SiteModel } from './site-model';
+import type { ModelReadings, SiteModel } from './site-model';
 import { judged, median, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
 
 export const DETECTORS = ['tiltPlus', 'tiltMinus', 'azimuthPlus', 'azimuthMinus'] as const;
@@ -20,6 +20,19 @@ interface UnitState {
   window: { atMs: number; x: (number | null)[] }[];
   judgedMs: number;
   sampledMs: number;
+  /** The modelled readings last worked out for the unit, and what they were for (a settled unit asks the same again). */
+  modelled?: ModelledHere;
+}
+
+/** Modelled readings at a unit's orientation (`here`) and around it (`around`, worked out only when asked for). */
+interface ModelledHere {
+  model: SiteModel;
+  tiltDeg: number;
+  azimuthDeg: number;
+  detectorTiltDeg: number;
+  toleranceDeg: number;
+  here: ModelReadings;
+  around?: ModelReadings[];
 }
 
 /** Reports closer together than this add no sample (the window needs a few dozen, not every report) [ms]. */
@@ -46,19 +59,40 @@ export class DriftDetector {
     while (u.window.length && atMs - u.window[0]!.atMs > windowMs) u.window.shift();
     if (!daylight || !model || t.mode === 'fault' || atMs - u.sampledMs < SAMPLE_EVERY_MS) return judged(null);
     u.sampledMs = atMs;
-    const m = model.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
+    // The model's readings cost a harmonic evaluation per normal (25 here); a settled unit points the same way report
+    // after report and a site model serves minutes, so they are worked out again only when one of those changed.
+    const tol = s.driftPointingToleranceDeg;
+    let mh = u.modelled;
+    if (
+      !mh ||
+      mh.model !== model ||
+      mh.tiltDeg !== t.tiltDeg ||
+      mh.azimuthDeg !== t.azimuthDeg ||
+      mh.detectorTiltDeg !== unit.detectorTiltDeg ||
+      mh.toleranceDeg !== tol
+    ) {
+      const here = model.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
+      u.modelled = mh = {
+        model,
+        tiltDeg: t.tiltDeg,
+        azimuthDeg: t.azimuthDeg,
+        detectorTiltDeg: unit.detectorTiltDeg,
+        toleranceDeg: tol,
+        here,
+      };
+    }
+    const m = mh.here;
     if (m.panelWm2 < s.driftMinWm2 || t.poaWm2 < s.driftMinWm2) return judged(null);
     const ref = t.poaWm2 / m.panelWm2;
     if (Math.abs(ref - 1) > s.driftModelAgreement) return judged(null);
     // Smooth enough here that the pointing uncertainty cannot explain a deviation?
-    const tol = s.driftPointingToleranceDeg;
     const azTol = tol / Math.max(0.2, Math.sin((t.tiltDeg * Math.PI) / 180));
-    const around = [
+    const around = (mh.around ??= [
       model.readings(t.tiltDeg + tol, t.azimuthDeg, unit.detectorTiltDeg),
       model.readings(Math.max(0, t.tiltDeg - tol), t.azimuthDeg, unit.detectorTiltDeg),
       model.readings(t.tiltDeg, t.azimuthDeg + azTol, unit.detectorTiltDeg),
       model.readings(t.tiltDeg, t.azimuthDeg - azTol, unit.detectorTiltDeg),
-    ];
+    ]);
     const steep = (d: 'panel' | Detector) =>
       around.some((r) => Math.abs(r[`${d}Wm2` as const] / m[`${d}Wm2` as const] - 1) > s.driftMaxModelChange);
     if (steep('panel')) return judged(null);

@@ -19,8 +19,8 @@ import type { SiteModel, SiteModelProvider } from './site-model';
 import { SoilingDetector } from './soiling-detector';
 import { StallDetector } from './stall-detector';
 import { StowWatch } from './stow-watch';
-import { TrapDetector, type PeerReading } from './trap-detector';
-import { round1, type Assessment, type UnitRef } from './unit-sample';
+import { TrapDetector, type PeerReading, type TrapContext } from './trap-detector';
+import { NO_DETAIL, round1, type Assessment, type UnitRef } from './unit-sample';
 
 export interface HealthEngineOptions {
   /** Arrival clock [ms] (the server's wall clock, or the simulator's time offline). */
@@ -46,11 +46,12 @@ export class HealthEngine {
   private readonly stow = new StowWatch();
   private readonly units = new Map<number, UnitRef>();
   private readonly peers = new Map<number, Map<number, PeerReading>>();
-  private readonly siteSnapshots = new Map<number, { atMs: number; peers?: PeerReading[]; trapped?: number }>();
+  private readonly siteSnapshots = new Map<number, SiteSnapshot>();
   private readonly darkSites = new Set<number>();
   /** Units restored from the store at start-up, not judged before this time unless heard first [ms]. */
   private readonly restoredGraceUntil = new Map<number, number>();
   private readonly settingsFor: (siteId: number) => HealthSettings;
+  private readonly subjects = new Map<number, { ref: UnitRef; subject: AlarmSubject }>();
 
   constructor(private readonly opts: HealthEngineOptions) {
     this.book = new AlarmBook(opts.listeners);
@@ -59,15 +60,17 @@ export class HealthEngine {
 
   /** Whether production checks run at a site now (modelled best orientation bright enough; sun up outdoors). */
   /** Lazily computed, briefly cached peer readings and trapped-unit count of a site. */
-  private siteSnapshot(siteId: number, atMs: number, sitePeers: Map<number, PeerReading>) {
+  private siteSnapshot(siteId: number, atMs: number, sitePeers: Map<number, PeerReading>): SiteSnapshot {
     let snap = this.siteSnapshots.get(siteId);
-    if (!snap || Math.abs(atMs - snap.atMs) > SITE_SNAPSHOT_MS) this.siteSnapshots.set(siteId, (snap = { atMs }));
-    const current = snap;
-    return {
-      peers: () => (current.peers ??= [...sitePeers.values()]),
-      trapped: () =>
-        (current.trapped ??= [...sitePeers.keys()].filter((id) => this.book.holding(this.subjectOf(this.units.get(id)!), 'trap')).length),
-    };
+    if (!snap || Math.abs(atMs - snap.atMs) > SITE_SNAPSHOT_MS)
+      this.siteSnapshots.set(siteId, (snap = new SiteSnapshot(atMs, sitePeers, this)));
+    else snap.sitePeers = sitePeers;
+    return snap;
+  }
+
+  /** Whether a unit's trap condition holds now (for a site's count of trapped units). */
+  trapHolding(unitId: number): boolean {
+    return this.book.holding(this.subjectOf(this.units.get(unitId)!), 'trap');
   }
 
   static daylight(m: SiteModel | undefined, s: HealthSettings): boolean {
@@ -87,58 +90,60 @@ export class HealthEngine {
     sitePeers.set(unit.unitId, { unitId: unit.unitId, poaWm2: t.poaWm2, mode: t.mode, atMs });
     const subject = this.subjectOf(unit);
     const suppressed = this.darkSites.has(unit.siteId);
-    const open = (k: AlarmKind) => this.book.openAlarm(subject, k) !== null;
-    const put = (kind: AlarmKind, a: Assessment, delayOnMin: number, clearDelayMin: number) =>
-      this.book.assess(subject, kind, a.condition, atMs, timing(delayOnMin, clearDelayMin), a.detail, suppressed);
+    const tm = timingsOf(s);
 
-    put('stall', this.stall.assess(unit, t, atMs, s, this.stow.demanding(unit.siteId)), s.stallDelayOnMin, s.stallClearDelayMin);
-    put('drift', this.drift.assess(unit, t, atMs, model, daylight, open('drift'), s), s.driftDelayOnMin, s.driftClearDelayMin);
+    this.put(subject, 'stall', this.stall.assess(unit, t, atMs, s, this.stow.demanding(unit.siteId)), atMs, tm.stall, suppressed);
+    this.put(
+      subject,
+      'drift',
+      this.drift.assess(unit, t, atMs, model, daylight, this.isOpen(subject, 'drift'), s),
+      atMs,
+      tm.drift,
+      suppressed,
+    );
     // A drifting or dead detector makes the controller chase a false differential: that shows as back-and-forth motion,
     // but the cause is the sensor, so hunting is not raised on top while a drift condition holds or its alarm is open
     // (consequential alarms are suppressed under their cause: common practice).
-    const sensorFault = this.book.holding(subject, 'drift') || open('drift');
-    const huntingNow = this.hunting.assess(unit, t, atMs, daylight, open('hunting'), s);
-    this.book.assess(
-      subject,
-      'hunting',
-      huntingNow.condition,
-      atMs,
-      timing(s.huntingDelayOnMin, s.huntingClearDelayMin),
-      huntingNow.detail,
-      suppressed || sensorFault,
-    );
+    const sensorFault = this.book.holding(subject, 'drift') || this.isOpen(subject, 'drift');
+    const huntingNow = this.hunting.assess(unit, t, atMs, daylight, this.isOpen(subject, 'hunting'), s);
+    this.put(subject, 'hunting', huntingNow, atMs, tm.hunting, suppressed || sensorFault);
     // Parent/child suppression: a stall, drift or hunting condition that holds, or a stall or drift alarm still open (a
     // drive or sensor fault changes where the unit can balance until it is repaired), explains a deficit; the unit gets
     // no trap alarm on top. A hunting unit that has come to rest on a local maximum is trapped like any other.
-    const otherCause = CAUSES.find((k) => this.book.holding(subject, k) || (k !== 'hunting' && open(k))) ?? null;
+    let otherCause: AlarmKind | null = null;
+    for (const k of CAUSES)
+      if (this.book.holding(subject, k) || (k !== 'hunting' && this.isOpen(subject, k))) {
+        otherCause = k;
+        break;
+      }
     // Site-wide figures cost one pass over the site's units: computed only when the trap detector asks, and shared by the
     // reports of the site within the same couple of seconds (a large site would otherwise make each report O(units)).
     const site = this.siteSnapshot(unit.siteId, atMs, sitePeers);
-    put(
+    this.put(
+      subject,
       'trap',
-      this.trap.assess(
-        unit,
-        t,
-        atMs,
-        {
-          model,
-          daylight,
-          get peers() {
-            return site.peers();
-          },
-          otherCause,
-          open: open('trap'),
-          get trappedAtSite() {
-            return site.trapped();
-          },
-        },
-        s,
-      ),
-      s.trapDelayOnMin,
-      s.trapClearDelayMin,
+      this.trap.assess(unit, t, atMs, new TrapView(model, daylight, site, otherCause, this.isOpen(subject, 'trap')), s),
+      atMs,
+      tm.trap,
+      suppressed,
     );
-    put('soiling', this.soiling.assess(unit, t, atMs, daylight, open('soiling'), s), s.soilingDelayOnMin, s.soilingClearDelayMin);
-    put('not-stowed', this.stow.assess(unit, t, atMs, s), s.stowArrivalMin, 0);
+    this.put(
+      subject,
+      'soiling',
+      this.soiling.assess(unit, t, atMs, daylight, this.isOpen(subject, 'soiling'), s),
+      atMs,
+      tm.soiling,
+      suppressed,
+    );
+    this.put(subject, 'not-stowed', this.stow.assess(unit, t, atMs, s), atMs, tm.notStowed, suppressed);
+  }
+
+  private isOpen(subject: AlarmSubject, kind: AlarmKind): boolean {
+    return this.book.openAlarm(subject, kind) !== null;
+  }
+
+  private put(subject: AlarmSubject, kind: AlarmKind, a: Assessment, atMs: number, t: AlarmTiming, suppressed: boolean): void {
+    this.book.assess(subject, kind, a.condition, atMs, t, a.detail, suppressed);
   }
 
   event(unit: UnitRef, e: UnitEvent): void {
@@ -303,6 +308,7 @@ export class HealthEngine {
     for (const d of [this.trap, this.stall, this.drift, this.hunting, this.soiling, this.comms]) d.forget(unitId);
     if (u) this.peers.get(u.siteId)?.delete(unitId);
     this.units.delete(unitId);
+    this.subjects.delete(unitId);
   }
 
   openAlarms(): Alarm[] {
@@ -314,17 +320,80 @@ export class HealthEngine {
     this.restoredGraceUntil.delete(unit.unitId);
     this.comms.heard(unit.unitId, arrivalMs ?? now, tsMs, isTelemetry);
     // A message clears the unit's comms alarm at once (its clear delay applies).
-    this.book.assess(this.subjectOf(unit), 'comms', false, now, timing(s.commsDelayOnMin, s.commsClearDelayMin), () => ({
-      severity: 'P4',
-      message: '',
-      advice: '',
-      evidence: {},
-    }));
+    this.book.assess(this.subjectOf(unit), 'comms', false, now, timingsOf(s).comms, NO_DETAIL);
   }
 
+  /** The alarm subject of a unit, one per unit reference (the book is asked about it several times per report). */
   private subjectOf(u: UnitRef): AlarmSubject {
-    return { unitId: u.unitId, serial: u.serial, siteId: u.siteId };
+    const hit = this.subjects.get(u.unitId);
+    if (hit?.ref === u) return hit.subject;
+    const subject: AlarmSubject = { unitId: u.unitId, serial: u.serial, siteId: u.siteId };
+    this.subjects.set(u.unitId, { ref: u, subject });
+    return subject;
   }
+}
+
+/** A site's peer readings and trapped-unit count, worked out on first demand and shared for a couple of seconds. */
+class SiteSnapshot {
+  private peerList?: PeerReading[];
+  private trappedCount?: number;
+  constructor(
+    readonly atMs: number,
+    public sitePeers: Map<number, PeerReading>,
+    private readonly engine: HealthEngine,
+  ) {}
+  peers(): PeerReading[] {
+    return (this.peerList ??= [...this.sitePeers.values()]);
+  }
+  trapped(): number {
+    return (this.trappedCount ??= [...this.sitePeers.keys()].filter((id) => this.engine.trapHolding(id)).length);
+  }
+}
+
+/** What the trap detector is told of a report's context; the site-wide figures are asked for only when it needs them. */
+class TrapView implements TrapContext {
+  constructor(
+    readonly model: SiteModel | undefined,
+    readonly daylight: boolean,
+    private readonly site: SiteSnapshot,
+    readonly otherCause: string | null,
+    readonly open: boolean,
+  ) {}
+  get peers(): readonly PeerReading[] {
+    return this.site.peers();
+  }
+  get trappedAtSite(): number {
+    return this.site.trapped();
+  }
+}
+
+interface KindTimings {
+  stall: AlarmTiming;
+  drift: AlarmTiming;
+  hunting: AlarmTiming;
+  trap: AlarmTiming;
+  soiling: AlarmTiming;
+  notStowed: AlarmTiming;
+  comms: AlarmTiming;
+}
+
+/** Each kind's delays under a site's settings, worked out once per settings object (settings are replaced, never edited). */
+const timingsBySettings = new WeakMap<HealthSettings, KindTimings>();
+function timingsOf(s: HealthSettings): KindTimings {
+  let tm = timingsBySettings.get(s);
+  if (!tm) {
+    tm = {
+      stall: timing(s.stallDelayOnMin, s.stallClearDelayMin),
+      drift: timing(s.driftDelayOnMin, s.driftClearDelayMin),
+      hunting: timing(s.huntingDelayOnMin, s.huntingClearDelayMin),
+      trap: timing(s.trapDelayOnMin, s.trapClearDelayMin),
+      soiling: timing(s.soilingDelayOnMin, s.soilingClearDelayMin),
+      notStowed: timing(s.stowArrivalMin, 0),
+      comms: timing(s.commsDelayOnMin, s.commsClearDelayMin),
+    };
+    timingsBySettings.set(s, tm);
+  }
+  return tm;
 }
 
 const timing = (delayOnMin: number, clearDelayMin: number): AlarmTiming => ({

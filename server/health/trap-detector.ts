@@ -32,6 +32,12 @@ export interface TrapContext {
 
 const PEER_MAX_AGE_MS = 120_000;
 
+/** Both detectors of a pair read something (neither a small fraction of the other). */
+const pairOk = (a: number, b: number, s: HealthSettings) => Math.min(a, b) >= s.trapPairSanity * Math.max(a, b);
+/** A pair's ratio agrees with the modelled ratio at the unit's orientation (or the model cannot say). */
+const pairAgrees = (p: number, q: number, mp: number, mq: number, s: HealthSettings) =>
+  mp <= 0 || mq <= 0 || q <= 0 || Math.abs(p / q / (mp / mq) - 1) <= s.trapPairModelTolerance;
+
 export class TrapDetector {
   private readonly lastSettledMs = new Map<number, number>();
 
@@ -48,21 +54,23 @@ export class TrapDetector {
       if (last !== undefined && atMs - last < s.trapSeekGraceMin * 60_000) return judged(null);
       return judged(false);
     }
-    const pairOk = (a: number, b: number) => Math.min(a, b) >= s.trapPairSanity * Math.max(a, b);
-    if (!pairOk(t.tiltPlusWm2, t.tiltMinusWm2) || !pairOk(t.azimuthPlusWm2, t.azimuthMinusWm2)) return judged(false);
+    if (!pairOk(t.tiltPlusWm2, t.tiltMinusWm2, s) || !pairOk(t.azimuthPlusWm2, t.azimuthMinusWm2, s)) return judged(false);
     const best = m.globalMax.wm2;
     if (best < s.trapMinBestWm2) return judged(false);
+    const ratio = t.poaWm2 / best;
+    // The modelled readings cost a harmonic evaluation per detector: they are asked for only where the answer depends
+    // on them. At or above the trap ratio with no trap open, the answer is false whatever the pairs read; between the
+    // two ratios with a trap open, it is "unknown" whatever they read (the same answers as the checks below give).
+    if (ratio >= s.trapRatio && !ctx.open) return judged(false);
+    if (ratio >= s.trapRatio && ratio < s.trapClearRatio) return judged(null);
     // The pairs must read what the model says they should read here: a unit balanced on a drifting detector is a sensor
     // fault (the drift detector's), not a trap.
     const mr = m.readings(t.tiltDeg, t.azimuthDeg, unit.detectorTiltDeg);
-    const pairAgrees = (p: number, q: number, mp: number, mq: number) =>
-      mp <= 0 || mq <= 0 || q <= 0 || Math.abs(p / q / (mp / mq) - 1) <= s.trapPairModelTolerance;
     if (
-      !pairAgrees(t.tiltPlusWm2, t.tiltMinusWm2, mr.tiltPlusWm2, mr.tiltMinusWm2) ||
-      !pairAgrees(t.azimuthPlusWm2, t.azimuthMinusWm2, mr.azimuthPlusWm2, mr.azimuthMinusWm2)
+      !pairAgrees(t.tiltPlusWm2, t.tiltMinusWm2, mr.tiltPlusWm2, mr.tiltMinusWm2, s) ||
+      !pairAgrees(t.azimuthPlusWm2, t.azimuthMinusWm2, mr.azimuthPlusWm2, mr.azimuthMinusWm2, s)
     )
       return judged(ctx.open ? null : false);
-    const ratio = t.poaWm2 / best;
     if (ratio >= s.trapClearRatio) return judged(false);
     if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
     const peers = ctx.peers.filter(

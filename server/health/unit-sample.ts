@@ -19,7 +19,12 @@ export interface Assessment {
 }
 
 export const NO_DETAIL = (): AlarmDetail => ({ severity: 'P4', message: '', advice: '', evidence: {} });
-export const judged = (condition: boolean | null, detail: () => AlarmDetail = NO_DETAIL): Assessment => ({ condition, detail });
+/** The answers without detail, made once (every detector gives one on every report). */
+const HOLDS: Assessment = Object.freeze({ condition: true, detail: NO_DETAIL });
+const ABSENT: Assessment = Object.freeze({ condition: false, detail: NO_DETAIL });
+const UNKNOWN: Assessment = Object.freeze({ condition: null, detail: NO_DETAIL });
+export const judged = (condition: boolean | null, detail: () => AlarmDetail = NO_DETAIL): Assessment =>
+  detail !== NO_DETAIL ? { condition, detail } : condition === true ? HOLDS : condition === false ? ABSENT : UNKNOWN;
 
 /** Telemetry fields kept in an evidence snapshot. */
 export function readingsSnapshot(t: Telemetry) {

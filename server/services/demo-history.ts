@@ -403,7 +403,7 @@ export class DemoHistory {
     const events = new RowBatch<EventRow>(
       1000,
       writer,
-      async (rows) => void (counts.events += (await this.telemetry.insertEvents(rows)).length),
+      async (rows) => void (counts.events += (await this.telemetry.insertEvents(rows)).count),
     );
     const weather = new RowBatch<WeatherRow>(10_000, writer, async (rows) => void (counts.weather += await this.repo.insertWeather(rows)));
     const flush = async (final: boolean) => {

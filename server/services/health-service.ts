@@ -18,6 +18,7 @@ import type { HealthSettingsService } from './health-settings-service';
 import type { LiveHub } from './live-hub';
 import type { SiteModelCache, SiteModelCacheOptions } from './site-model-cache';
 import { unitRefOf, type UnitDirectory, type UnitInfo } from './unit-directory';
+import type { UnitRef } from '../health/unit-sample';
 
 /** Units' last-heard times shared between servers (server/data/unit-heard-repository.ts). */
 export interface SharedHeard {
@@ -56,6 +57,8 @@ export class HealthService {
   /** What this server heard since its last shared write (unit id → latest). */
   private heardHere = new Map<number, { unitId: number; heardMs: number; tsMs: number; offlineMs: number | null }>();
   private heardFrom: Date | null = null;
+  /** The engine's reference of each unit, made again only when what it holds changed (the engine keys state on it). */
+  private readonly refs = new Map<number, UnitRef>();
 
   constructor(
     private readonly store: AlarmStore,
@@ -143,14 +146,16 @@ export class HealthService {
     }
     for (const r of read.rows) {
       const unit = units.byUnitId(r.unitId);
-      if (unit) this.guard(() => this.engine.heardElsewhere(unitRefOf(unit), r.heardMs, r.tsMs, r.offlineMs));
+      if (unit) this.guard(() => this.engine.heardElsewhere(this.refOf(unit), r.heardMs, r.tsMs, r.offlineMs));
     }
     if (read.newestWrite) this.heardFrom = read.newestWrite;
   }
 
-  private noteHeard(unitId: number, tsMs: number, offline = false): void {
+  /** `ts`: the message's own time (ISO), else now. Parsed only when servers share what they heard (hot path). */
+  private noteHeard(unitId: number, ts: string | undefined, offline = false): void {
     if (!this.shared) return;
     const now = this.opts.now();
+    const tsMs = ts ? Date.parse(ts) : now;
     const was = this.heardHere.get(unitId);
     this.heardHere.set(unitId, {
       unitId,
@@ -163,7 +168,7 @@ export class HealthService {
   /** Units' last stored messages at start-up ([unit, arrival ms, unit timestamp ms]): the comms watch covers them at once. */
   restore(last: [UnitInfo, number, number][]): void {
     const graceUntil = this.opts.now() + this.opts.restoreGraceMs;
-    for (const [unit, arrivalMs, tsMs] of last) this.engine.restore(unitRefOf(unit), arrivalMs, tsMs, graceUntil);
+    for (const [unit, arrivalMs, tsMs] of last) this.engine.restore(this.refOf(unit), arrivalMs, tsMs, graceUntil);
   }
 
   async stop(): Promise<void> {
@@ -178,18 +183,18 @@ export class HealthService {
 
   // ---- ingest listeners
   telemetry(unit: UnitInfo, t: Telemetry): void {
-    this.noteHeard(unit.id, Date.parse(t.ts));
-    this.guard(() => this.engine.telemetry(unitRefOf(unit), t));
+    this.noteHeard(unit.id, t.ts);
+    this.guard(() => this.engine.telemetry(this.refOf(unit), t));
   }
 
   event(unit: UnitInfo, e: UnitEvent): void {
-    this.noteHeard(unit.id, Date.parse(e.ts));
-    this.guard(() => this.engine.event(unitRefOf(unit), e));
+    this.noteHeard(unit.id, e.ts);
+    this.guard(() => this.engine.event(this.refOf(unit), e));
   }
 
   status(unit: UnitInfo, st: UnitStatus): void {
-    this.noteHeard(unit.id, st.ts ? Date.parse(st.ts) : this.opts.now(), !st.online);
-    this.guard(() => this.engine.status(unitRefOf(unit), st));
+    this.noteHeard(unit.id, st.ts, !st.online);
+    this.guard(() => this.engine.status(this.refOf(unit), st));
   }
 
   /** A reading of the site's weather station, from the unit that carries it: the stow watch hears it at once. */
@@ -233,6 +238,14 @@ export class HealthService {
   /** Settled alarm writes (tests wait for them). */
   flush(): Promise<void> {
     return this.store.flush();
+  }
+
+  private refOf(u: UnitInfo): UnitRef {
+    const r = this.refs.get(u.id);
+    if (r && r.serial === u.serial && r.siteId === u.siteId && r.detectorTiltDeg === u.detectorTiltDeg && r.onHold === u.onHold) return r;
+    const fresh = unitRefOf(u);
+    this.refs.set(u.id, fresh);
+    return fresh;
   }
 
   private guard(f: () => void): void {

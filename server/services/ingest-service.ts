@@ -1,16 +1,13 @@
 import type { Logger } from 'pino';
+import type { CommandAck, Telemetry, UnitEvent, UnitStatus, Weather } from '../../shared/contracts/wire';
 import {
-  ackSchema,
-  eventSchema,
-  statusSchema,
-  telemetrySchema,
-  weatherSchema,
-  type CommandAck,
-  type Telemetry,
-  type UnitEvent,
-  type UnitStatus,
-  type Weather,
-} from '../../shared/contracts/wire';
+  ackValidator,
+  eventValidator,
+  statusValidator,
+  telemetryValidator,
+  weatherValidator,
+  type WireValidator,
+} from '../../shared/contracts/wire-validators';
 import { MAX_PAYLOAD_BYTES } from '../../shared/contracts/wire-format';
 import {
   eventRowKey,
@@ -19,6 +16,7 @@ import {
   telemetryRowOf,
   weatherRowKey,
   weatherRowOf,
+  type Added,
   type EventRow,
   type TelemetryRepository,
   type TelemetryRow,
@@ -108,6 +106,12 @@ export interface IngestCounters {
 /** Called once a message may be acknowledged to the unit (its row committed); with an error, it must not be. */
 export type Acknowledge = (err?: Error) => void;
 
+/** A message answered at once (refused, or handled without a row): acknowledged now, so the unit does not resend it. */
+function refused(ack: Acknowledge | undefined, reason: RejectReason | null): RejectReason | null {
+  ack?.();
+  return reason;
+}
+
 interface HeldTelemetry {
   row: TelemetryRow;
   unit: UnitInfo;
@@ -126,13 +130,6 @@ interface HeldWeather {
   unit: UnitInfo;
   w: Weather;
   ack: Acknowledge | undefined;
-}
-
-/** A wire schema as the ingest uses it (the zod schemas of shared/contracts/wire have this shape). */
-interface PayloadSchema<T> {
-  safeParse(
-    value: unknown,
-  ): { success: true; data: T } | { success: false; error: { issues: readonly { path: readonly PropertyKey[]; message: string }[] } };
 }
 
 /**
@@ -213,56 +210,52 @@ export class IngestService {
   /** Validates one message and buffers it (see `receive`). Returns the reject reason, or null when accepted. */
   accept(serial: string, leaf: string, payload: Buffer, ack?: Acknowledge): RejectReason | null {
     this.counters.received++;
-    const refuse = (reason: RejectReason | null): RejectReason | null => {
-      ack?.();
-      return reason;
-    };
     if (payload.length > MAX_PAYLOAD_BYTES)
-      return refuse(this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`));
+      return refused(ack, this.reject(serial, 'oversized', `${payload.length} bytes > ${MAX_PAYLOAD_BYTES}`));
     const unit = this.units.get(serial);
-    if (!unit) return refuse(this.reject(serial, 'unknown_unit', 'no unit has this serial'));
-    if (unit.disabled) return refuse(this.reject(serial, 'disabled_unit', 'unit is disabled'));
+    if (!unit) return refused(ack, this.reject(serial, 'unknown_unit', 'no unit has this serial'));
+    if (unit.disabled) return refused(ack, this.reject(serial, 'disabled_unit', 'unit is disabled'));
     let json: unknown;
     try {
       json = JSON.parse(payload.toString('utf8'));
     } catch {
-      return refuse(this.reject(serial, 'malformed_json', 'payload is not JSON'));
+      return refused(ack, this.reject(serial, 'malformed_json', 'payload is not JSON'));
     }
     switch (leaf) {
       case 'telemetry': {
-        const t = this.validate(serial, telemetrySchema, json);
-        if (!t) return refuse('invalid_payload');
+        const t = this.validate(serial, telemetryValidator, json);
+        if (!t) return refused(ack, 'invalid_payload');
         const ts = Date.parse(t.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return refuse(bad);
+        if (bad) return refused(ack, bad);
         this.telemetry.push({ row: telemetryRowOf(unit.id, t, ts, this.opts.now()), unit, t, tsMs: ts, ack });
         this.listeners.telemetry?.(unit, t);
         break;
       }
       case 'events': {
-        const e = this.validate(serial, eventSchema, json);
-        if (!e) return refuse('invalid_payload');
+        const e = this.validate(serial, eventValidator, json);
+        if (!e) return refused(ack, 'invalid_payload');
         const ts = Date.parse(e.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return refuse(bad);
+        if (bad) return refused(ack, bad);
         this.events.push({ row: eventRowOf(unit.id, e, ts), unit, e, ack });
         break;
       }
       case 'weather': {
         // Only the unit that carries its site's station may report the site's weather (fake gusts would raise stow alarms).
         if (!unit.weatherStation)
-          return refuse(this.reject(serial, 'weather_denied', "this unit does not carry its site's weather station"));
-        const w = this.validate(serial, weatherSchema, json);
-        if (!w) return refuse('invalid_payload');
+          return refused(ack, this.reject(serial, 'weather_denied', "this unit does not carry its site's weather station"));
+        const w = this.validate(serial, weatherValidator, json);
+        if (!w) return refused(ack, 'invalid_payload');
         const ts = Date.parse(w.ts);
         const bad = this.checkTime(serial, ts);
-        if (bad) return refuse(bad);
+        if (bad) return refused(ack, bad);
         this.weather.push({ row: weatherRowOf(unit.siteId, w, ts), unit, w, ack });
         break;
       }
       case 'acks': {
-        const a = this.validate(serial, ackSchema, json);
-        if (!a) return refuse('invalid_payload');
+        const a = this.validate(serial, ackValidator, json);
+        if (!a) return refused(ack, 'invalid_payload');
         const answered = this.listeners.ack?.(unit, a);
         if (answered)
           answered.then(
@@ -273,13 +266,13 @@ export class IngestService {
         return null;
       }
       case 'status': {
-        const s = this.validate(serial, statusSchema, json);
-        if (!s) return refuse('invalid_payload');
+        const s = this.validate(serial, statusValidator, json);
+        if (!s) return refused(ack, 'invalid_payload');
         this.listeners.status?.(unit, s);
-        return refuse(null);
+        return refused(ack, null);
       }
       default:
-        return refuse(this.reject(serial, 'unknown_topic', `no such leaf "${leaf}"`));
+        return refused(ack, this.reject(serial, 'unknown_topic', `no such leaf "${leaf}"`));
     }
     this.schedule();
     return null;
@@ -291,7 +284,7 @@ export class IngestService {
     this.reject(serial, reason, topic ? `publish to ${topic}` : 'packet over the size limit');
   }
 
-  private validate<T>(serial: string, schema: PayloadSchema<T>, json: unknown): T | null {
+  private validate<T>(serial: string, schema: WireValidator<T>, json: unknown): T | null {
     const r = schema.safeParse(json);
     if (r.success) return r.data;
     const first = r.error.issues[0]!;
@@ -363,29 +356,27 @@ export class IngestService {
    * message in it). What committed is acknowledged and announced; what failed goes back, in order, to be retried.
    */
   private async write(batch: number, t: HeldTelemetry[], e: HeldEvent[], w: HeldWeather[]): Promise<void> {
-    let newTelemetry: Set<string> | undefined;
-    let newEvents: Set<string> | undefined;
-    let newWeather: Set<string> | undefined;
+    let newTelemetry: Added | undefined;
+    let newEvents: Added | undefined;
+    let newWeather: Added | undefined;
     let failure: unknown;
     try {
-      newTelemetry = new Set(await this.repo.insertTelemetry(t.map((x) => x.row)));
-      newEvents = new Set(await this.repo.insertEvents(e.map((x) => x.row)));
-      newWeather = new Set(await this.repo.insertWeather(w.map((x) => x.row)));
+      newTelemetry = await this.repo.insertTelemetry(t.map((x) => x.row));
+      newEvents = await this.repo.insertEvents(e.map((x) => x.row));
+      newWeather = await this.repo.insertWeather(w.map((x) => x.row));
     } catch (err) {
       failure = err;
     }
     const tDone = newTelemetry !== undefined;
-    const storedCount = newTelemetry?.size ?? 0;
+    const storedCount = newTelemetry?.count ?? 0;
     const eDone = newEvents !== undefined;
     const wDone = failure === undefined;
     // Exactly once: only rows this batch inserted are announced (a batch may hold a reading and its resend).
     this.inOrder(batch, () => {
       // Weather first: a gust demands a stow of the units whose reports of the same batch are judged next.
-      if (newWeather)
-        for (const x of w) if (newWeather.delete(weatherRowKey(x.row))) this.announce(() => this.listeners.weather?.(x.unit, x.w));
-      if (newTelemetry)
-        for (const x of t) if (newTelemetry.delete(telemetryRowKey(x.row))) this.announce(() => this.listeners.stored?.(x.unit, x.t));
-      if (newEvents) for (const x of e) if (newEvents.delete(eventRowKey(x.row))) this.announce(() => this.listeners.event?.(x.unit, x.e));
+      if (newWeather) this.announceNew(w, newWeather, weatherRowKey, (x) => this.listeners.weather?.(x.unit, x.w));
+      if (newTelemetry) this.announceNew(t, newTelemetry, telemetryRowKey, (x) => this.listeners.stored?.(x.unit, x.t));
+      if (newEvents) this.announceNew(e, newEvents, eventRowKey, (x) => this.listeners.event?.(x.unit, x.e));
     });
     if (tDone) {
       this.counters.stored += storedCount;
@@ -421,12 +412,19 @@ export class IngestService {
     }
   }
 
-  /** A listener's failure is logged and never undoes a commit or withholds an acknowledgement. */
-  private announce(call: () => void): void {
-    try {
-      call();
-    } catch (err) {
-      this.log.error({ err }, 'ingest listener failed');
+  /**
+   * Announces the rows of a batch that the insert added, each once (a key is crossed off when announced: a batch may
+   * hold a reading and its resend). A listener's failure is logged and never undoes a commit or withholds an
+   * acknowledgement.
+   */
+  private announceNew<X extends { row: R }, R>(items: X[], added: Added, keyOf: (row: R) => string, call: (x: X) => void): void {
+    for (const x of items) {
+      if (added.keys !== null && !added.keys.delete(keyOf(x.row))) continue;
+      try {
+        call(x);
+      } catch (err) {
+        this.log.error({ err }, 'ingest listener failed');
+      }
     }
   }
 

@@ -60,22 +60,21 @@ export class LiveHub {
     const s = this.ensure(unit);
     // Resent buffers arrive oldest first; only newer reports change the live picture.
     if (s.lastReportAt && t.ts <= s.lastReportAt) return;
-    Object.assign(s, {
-      online: true,
-      lastReportAt: t.ts,
-      mode: t.mode,
-      poaWm2: t.poaWm2,
-      dcPowerW: t.dcPowerW,
-      tiltDeg: t.tiltDeg,
-      azimuthDeg: t.azimuthDeg,
-      cmdTiltDeg: t.cmdTiltDeg,
-      cmdAzimuthDeg: t.cmdAzimuthDeg,
-      tiltDiffWm2: t.tiltPlusWm2 - t.tiltMinusWm2,
-      azimuthDiffWm2: t.azimuthPlusWm2 - t.azimuthMinusWm2,
-      moduleTempC: t.moduleTempC,
-      onHold: unit.onHold,
-      holds: unit.holds,
-    });
+    // Field by field (no object per report: every report of the fleet comes through here).
+    s.online = true;
+    s.lastReportAt = t.ts;
+    s.mode = t.mode;
+    s.poaWm2 = t.poaWm2;
+    s.dcPowerW = t.dcPowerW;
+    s.tiltDeg = t.tiltDeg;
+    s.azimuthDeg = t.azimuthDeg;
+    s.cmdTiltDeg = t.cmdTiltDeg;
+    s.cmdAzimuthDeg = t.cmdAzimuthDeg;
+    s.tiltDiffWm2 = t.tiltPlusWm2 - t.tiltMinusWm2;
+    s.azimuthDiffWm2 = t.azimuthPlusWm2 - t.azimuthMinusWm2;
+    s.moduleTempC = t.moduleTempC;
+    s.onHold = unit.onHold;
+    s.holds = unit.holds;
     this.dirty.add(unit.id);
   }
 

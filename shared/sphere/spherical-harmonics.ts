@@ -23,22 +23,52 @@ export function legendreIndex(l: number, m: number): number {
   return (l * (l + 1)) / 2 + m;
 }
 
+/** The recurrence factors of P̄_lm that depend on l and m alone, per order (computed once: the square roots dominated). */
+interface LegendreFactors {
+  /** √((2m+1)/(2m)) for m ≥ 1: P̄_mm = factor · sin θ · P̄_m−1,m−1. */
+  diagonal: Float64Array;
+  /** √(2m+3): P̄_m+1,m = factor · x · P̄_mm. */
+  next: Float64Array;
+  /** a_lm = √((4l²−1)/(l²−m²)) and b_lm = √(((l−1)²−m²)/(4(l−1)²−1)), at legendreIndex(l, m), for l ≥ m + 2. */
+  a: Float64Array;
+  b: Float64Array;
+}
+
+const legendreFactors = new Map<number, LegendreFactors>();
+
+function factorsFor(order: number): LegendreFactors {
+  let f = legendreFactors.get(order);
+  if (f) return f;
+  const n = ((order + 1) * (order + 2)) / 2;
+  f = { diagonal: new Float64Array(order + 1), next: new Float64Array(order + 1), a: new Float64Array(n), b: new Float64Array(n) };
+  for (let m = 0; m <= order; m++) {
+    if (m > 0) f.diagonal[m] = Math.sqrt((2 * m + 1) / (2 * m));
+    f.next[m] = Math.sqrt(2 * m + 3);
+    for (let l = m + 2; l <= order; l++) {
+      f.a[legendreIndex(l, m)] = Math.sqrt((4 * l * l - 1) / (l * l - m * m));
+      f.b[legendreIndex(l, m)] = Math.sqrt(((l - 1) * (l - 1) - m * m) / (4 * (l - 1) * (l - 1) - 1));
+    }
+  }
+  legendreFactors.set(order, f);
+  return f;
+}
+
 /** Fill `out` (length ≥ (order+1)(order+2)/2) with P̄_lm(x) for 0 ≤ m ≤ l ≤ order. */
 export function normalizedLegendre(order: number, x: number, out: Float64Array): Float64Array {
+  const { diagonal, next, a, b } = factorsFor(order);
   const s = Math.sqrt(Math.max(0, 1 - x * x));
   let pmm = Math.sqrt(1 / (4 * Math.PI));
   for (let m = 0; m <= order; m++) {
-    if (m > 0) pmm *= Math.sqrt((2 * m + 1) / (2 * m)) * s;
+    if (m > 0) pmm *= diagonal[m]! * s;
     out[legendreIndex(m, m)] = pmm;
     if (m === order) break;
     let p1 = pmm;
-    let p2 = x * Math.sqrt(2 * m + 3) * pmm;
+    let p2 = x * next[m]! * pmm;
     out[legendreIndex(m + 1, m)] = p2;
     for (let l = m + 2; l <= order; l++) {
-      const a = Math.sqrt((4 * l * l - 1) / (l * l - m * m));
-      const b = Math.sqrt(((l - 1) * (l - 1) - m * m) / (4 * (l - 1) * (l - 1) - 1));
-      const p = a * (x * p2 - b * p1);
-      out[legendreIndex(l, m)] = p;
+      const k = legendreIndex(l, m);
+      const p = a[k]! * (x * p2 - b[k]! * p1);
+      out[k] = p;
       p1 = p2;
       p2 = p;
     }
@@ -86,18 +116,29 @@ export function evaluateSh(
   const phi = Math.atan2(d[1], d[0]);
   const c1 = Math.cos(phi);
   const s1 = Math.sin(phi);
-  let cm = 1;
-  let sm = 0;
+  // Indices step through the triangular Legendre table (k) and the coefficient layout (q = l² + l) as l rises, in
+  // the same order of summation as Σ_m Σ_l, so the result is the same to the last bit as indexing each term afresh.
   let sum = 0;
-  for (let m = 0; m <= order; m++) {
+  for (let l = 0, k = 0, q = 0; l <= order; l++) {
+    sum += scratch[k]! * coefficients[q]!;
+    k += l + 1;
+    q += 2 * l + 2;
+  }
+  let cm = c1;
+  let sm = s1;
+  for (let m = 1; m <= order; m++) {
     let ac = 0;
     let as = 0;
+    let k = legendreIndex(m, m);
+    let q = m * m + m;
     for (let l = m; l <= order; l++) {
-      const p = scratch[legendreIndex(l, m)]!;
-      ac += p * coefficients[shIndex(l, m)]!;
-      if (m > 0) as += p * coefficients[shIndex(l, -m)]!;
+      const p = scratch[k]!;
+      ac += p * coefficients[q + m]!;
+      as += p * coefficients[q - m]!;
+      k += l + 1;
+      q += 2 * l + 2;
     }
-    sum += m === 0 ? ac : Math.SQRT2 * (ac * cm + as * sm);
+    sum += Math.SQRT2 * (ac * cm + as * sm);
     const cn = cm * c1 - sm * s1;
     sm = sm * c1 + cm * s1;
     cm = cn;

@@ -7,6 +7,18 @@ import { connect, type Socket } from 'node:net';
 import mqttPacket from 'mqtt-packet';
 import { unitTopic } from '../../shared/contracts/topics';
 
+/** The values a unit reports (the rest of its report is fixed); the parent may send its own before the load starts. */
+export interface UnitLoadReading {
+  tiltPlusWm2: number;
+  tiltMinusWm2: number;
+  azimuthPlusWm2: number;
+  azimuthMinusWm2: number;
+  poaWm2: number;
+  tiltDeg: number;
+  azimuthDeg: number;
+  dcPowerW: number;
+}
+
 interface Conn {
   serial: string;
   topic: string;
@@ -21,6 +33,16 @@ interface Conn {
 const [port, password, ...serials] = process.argv.slice(2);
 const conns: Conn[] = [];
 let rate = 0;
+let r: UnitLoadReading = {
+  tiltPlusWm2: 612,
+  tiltMinusWm2: 600,
+  azimuthPlusWm2: 605,
+  azimuthMinusWm2: 603,
+  poaWm2: 644,
+  tiltDeg: 35.2,
+  azimuthDeg: 171,
+  dcPowerW: 252,
+};
 let published = 0;
 let acked = 0;
 let cursor = 0;
@@ -67,7 +89,7 @@ async function open(serial: string): Promise<Conn> {
 function publishOne(c: Conn): void {
   const now = Date.now();
   c.lastTs = Math.max(now, c.lastTs + 1);
-  const payload = `{"v":1,"seq":${c.seq++},"ts":"${new Date(c.lastTs).toISOString()}","tiltPlusWm2":612,"tiltMinusWm2":600,"azimuthPlusWm2":605,"azimuthMinusWm2":603,"poaWm2":644,"tiltDeg":35.2,"azimuthDeg":171,"cmdTiltDeg":35,"cmdAzimuthDeg":171,"tiltMotorA":0.1,"azimuthMotorA":0.05,"dcPowerW":252,"moduleTempC":31,"mode":"settled","firmware":"2.4.1"}`;
+  const payload = `{"v":1,"seq":${c.seq++},"ts":"${new Date(c.lastTs).toISOString()}","tiltPlusWm2":${r.tiltPlusWm2},"tiltMinusWm2":${r.tiltMinusWm2},"azimuthPlusWm2":${r.azimuthPlusWm2},"azimuthMinusWm2":${r.azimuthMinusWm2},"poaWm2":${r.poaWm2},"tiltDeg":${r.tiltDeg},"azimuthDeg":${r.azimuthDeg},"cmdTiltDeg":${r.tiltDeg},"cmdAzimuthDeg":${r.azimuthDeg},"tiltMotorA":0.1,"azimuthMotorA":0.05,"dcPowerW":${r.dcPowerW},"moduleTempC":31,"mode":"settled","firmware":"2.4.1"}`;
   const messageId = c.nextId;
   c.nextId = c.nextId >= 65535 ? 1 : c.nextId + 1;
   c.sentAt.set(messageId, now);
@@ -92,7 +114,8 @@ setInterval(() => {
 // The parent may be gone (it failed); then this process ends instead of throwing on the closed channel.
 setInterval(() => (process.connected ? process.send?.({ type: 'counts', published, acked }) : process.exit(0)), 200);
 
-process.on('message', (m: { type: string; rate?: number; on?: boolean }) => {
+process.on('message', (m: { type: string; rate?: number; on?: boolean; reading?: UnitLoadReading }) => {
+  if (m.type === 'reading' && m.reading) r = m.reading;
   if (m.type === 'measure') {
     measuring = m.on ?? false;
     if (measuring) ackLags = [];

@@ -165,3 +165,37 @@ describe('memory before authentication', () => {
     for (const u of units) u.c.destroy();
   });
 });
+
+describe('messages the ingest took', () => {
+  it('with forwardTaken: false they are acknowledged but routed to no subscriber; a retained status and a will still are', async () => {
+    const taken: string[] = [];
+    const { b, got } = await broker({
+      forwardTaken: false,
+      onMessage: (unit, leaf, payload, done) => {
+        taken.push(`${unit.serial} ${leaf} ${payload.toString()}`);
+        done();
+      },
+    });
+    const u = await rawConnect(b.port, 'U-0040', secret('U-0040'), { will: statusWill('U-0040') });
+    u.c.send(qos1(unitTopic('U-0040', 'telemetry'), '{"n":1}', 11));
+    expect((await u.c.next('puback')).messageId).toBe(11);
+    u.c.send({ ...qos1(unitTopic('U-0040', 'status'), '{"v":1,"online":true}', 12), retain: true });
+    expect((await u.c.next('puback')).messageId).toBe(12);
+    expect(taken).toEqual(['U-0040 telemetry {"n":1}', 'U-0040 status {"v":1,"online":true}']);
+    await waitFor(() => got.length === 1, 2000, 'the retained status');
+    expect(got).toEqual([`${unitTopic('U-0040', 'status')} {"v":1,"online":true}`]);
+    u.c.destroy();
+    await waitFor(() => got.length === 2, 2000, 'the will');
+    expect(got[1]).toBe(`${unitTopic('U-0040', 'status')} {"v":1,"online":false}`);
+  });
+
+  it('by default they go on to subscribers as well', async () => {
+    const { b, got } = await broker({ onMessage: (_u, _l, _p, done) => done() });
+    const u = await rawConnect(b.port, 'U-0041', secret('U-0041'));
+    u.c.send(qos1(unitTopic('U-0041', 'telemetry'), '{"n":2}', 3));
+    expect((await u.c.next('puback')).messageId).toBe(3);
+    await waitFor(() => got.length === 1, 2000, 'the telemetry');
+    expect(got).toEqual([`${unitTopic('U-0041', 'telemetry')} {"n":2}`]);
+    u.c.destroy();
+  });
+});

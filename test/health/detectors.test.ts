@@ -1,6 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { T0, UNIT, feed, modelOf, peer, report, sunLandscape, testEngine } from './synthetic';
 import { rawWordsIn } from '../helpers/raw-words';
+import { TrapDetector } from '../../server/health/trap-detector';
+import { DEFAULT_HEALTH_SETTINGS } from '../../server/health/health-settings';
+import type { SiteModel } from '../../server/health/site-model';
 
 /** The text people read of an alarm: its message and its advice. */
 const words = (a: { message: string; advice: string }) => `${a.message} ${a.advice}`;
@@ -9,6 +12,7 @@ const words = (a: { message: string; advice: string }) => `${a.message} ${a.advi
 const irr = sunLandscape(180, 50);
 const model = (at: number) => modelOf(irr, at);
 const MIN = 60_000;
+const onTrapHere = { tiltDeg: 70, azimuthDeg: 80 };
 
 describe('trap detector', () => {
   // A second bright spot (a facade reflection) at tilt 60°, azimuth 80°: a local maximum well below the sun's.
@@ -93,6 +97,41 @@ describe('trap detector', () => {
     feed(e, end, 10, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
     expect(e.cleared.map((a) => a.kind)).toEqual(['trap']);
     expect(e.cleared[0]!.clearedMs! - end).toBe(3 * MIN);
+  });
+});
+
+describe('trap detector: what it asks the model', () => {
+  const settings = DEFAULT_HEALTH_SETTINGS;
+  const counted = (at: number) => {
+    const m = modelOf(irr, at);
+    const calls = { n: 0 };
+    const readings = m.readings;
+    return { calls, model: { ...m, readings: (t: number, a: number, d: number) => (calls.n++, readings(t, a, d)) } };
+  };
+  const ctx = (m: SiteModel, open: boolean) => ({ model: m, daylight: true, peers: [], otherCause: null, open, trappedAtSite: 0 });
+  // The model's readings cost a harmonic evaluation per detector; most units, most of the day, are not trapped.
+  it('a healthy unit at its peak (ratio ≥ trap ratio, no trap open) is judged false without asking for modelled readings', () => {
+    const { calls, model: m } = counted(T0);
+    const r = new TrapDetector().assess(UNIT, report(irr, T0, { tiltDeg: 40, azimuthDeg: 180 }), T0, ctx(m, false), settings);
+    expect(r.condition).toBe(false);
+    expect(calls.n).toBe(0);
+  });
+  it('with a trap open, between the trap and the clear ratio the answer is unknown (hysteresis) without asking; above it, it asks', () => {
+    const best = modelOf(irr, T0).globalMax.wm2;
+    // The same landscape scaled so the unit at the peak reads 0.86 of the model's best (between 0.85 and 0.88).
+    const { calls, model: m } = counted(T0);
+    const between = { ...report(irr, T0, { tiltDeg: 40, azimuthDeg: 180 }), poaWm2: 0.86 * best };
+    expect(new TrapDetector().assess(UNIT, between, T0, ctx(m, true), settings).condition).toBe(null);
+    expect(calls.n).toBe(0);
+    const above = report(irr, T0, { tiltDeg: 40, azimuthDeg: 180 });
+    expect(new TrapDetector().assess(UNIT, above, T0, ctx(m, true), settings).condition).toBe(false);
+    expect(calls.n).toBe(1);
+  });
+  it('a unit below the trap ratio is checked against the modelled readings (and is trapped here)', () => {
+    const { calls, model: m } = counted(T0);
+    const r = new TrapDetector().assess(UNIT, report(irr, T0, onTrapHere), T0, ctx(m, false), settings);
+    expect(calls.n).toBe(1);
+    expect(r.condition).toBe(true);
   });
 });
 
@@ -256,10 +295,62 @@ describe('comms detector and stow watch', () => {
   });
 });
 
+describe('drift detector: what it asks the model', () => {
+  it('works out the modelled readings once per model and orientation: a settled unit sampled again costs no harmonic evaluation', async () => {
+    const { DriftDetector } = await import('../../server/health/drift-detector');
+    let calls = 0;
+    const base = modelOf(irr, T0);
+    const counted = { ...base, readings: (t: number, a: number, d: number) => (calls++, base.readings(t, a, d)) };
+    const d = new DriftDetector();
+    const at = (k: number) => T0 + k * 15_000;
+    const here = { tiltDeg: 40, azimuthDeg: 180 };
+    d.assess(UNIT, report(irr, at(0), here), at(0), counted, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(5); // here and the four orientations around it
+    d.assess(UNIT, report(irr, at(1), here), at(1), counted, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(5);
+    // It moved: worked out again.
+    d.assess(UNIT, report(irr, at(2), { tiltDeg: 41, azimuthDeg: 180 }), at(2), counted, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(10);
+    // A new model (the site's was rebuilt): again.
+    const rebuilt = { ...counted };
+    d.assess(UNIT, report(irr, at(3), { tiltDeg: 41, azimuthDeg: 180 }), at(3), rebuilt, true, false, DEFAULT_HEALTH_SETTINGS);
+    expect(calls).toBe(15);
+  });
+});
+
+describe('hunting window', () => {
+  it('counts reversals of motion of at least the step, path and net motion (tilt and sin(tilt)-weighted azimuth)', async () => {
+    const { motionStats } = await import('../../server/health/hunting-detector');
+    // Tilt 30 → 33 → 30 → 33 → 30 at one minute apart: 3 reversals of 3° steps in 4 min = 45 per hour, path 12°, net 0.
+    const zigzag = [30, 33, 30, 33, 30].map((tiltDeg, i) => ({ atMs: T0 + i * MIN, tiltDeg, azimuthDeg: 180 }));
+    expect(motionStats(zigzag, 2)).toEqual({ reversalsPerHour: 45, pathDeg: 12, netDeg: 0, spanMin: 4 });
+    // Azimuth 180 → 190 at tilt 30°: weighted by sin 30° = 0.5, so 5° of path; below a 6° step there is no reversal.
+    const az = [180, 190, 180].map((azimuthDeg, i) => ({ atMs: T0 + i * MIN, tiltDeg: 30, azimuthDeg }));
+    const st = motionStats(az, 6);
+    expect(st.reversalsPerHour).toBe(0);
+    expect(st.pathDeg).toBeCloseTo(10, 12);
+  });
+  it('a window that slid and grew gives the same statistics as one built from the samples it still holds', async () => {
+    const { SampleWindow, motionStats } = await import('../../server/health/hunting-detector');
+    const w = new SampleWindow();
+    const kept: { atMs: number; tiltDeg: number; azimuthDeg: number }[] = [];
+    for (let i = 0; i < 300; i++) {
+      const s = { atMs: T0 + i * 5000, tiltDeg: 30 + 4 * Math.sin(i / 3), azimuthDeg: (350 + 7 * i) % 360 };
+      w.push(s.atMs, s.tiltDeg, s.azimuthDeg, 500 + i);
+      kept.push(s);
+      w.dropOlder(s.atMs, 10 * MIN);
+      while (s.atMs - kept[0]!.atMs > 10 * MIN) kept.shift();
+      if (i % 37 === 0) expect(w.motionStats(2)).toEqual(motionStats(kept, 2));
+    }
+    expect(w.length).toBe(kept.length);
+    expect(w.poaValues()).toEqual(kept.map((_, k) => 500 + 300 - kept.length + k));
+  });
+});
+
 describe('hunting under changing light', () => {
   it('measures light variation as standard deviation over mean', async () => {
     const { lightVariation } = await import('../../server/health/hunting-detector');
-    expect(lightVariation([{ poaWm2: 500 }, { poaWm2: 500 }])).toBe(0);
-    expect(lightVariation([{ poaWm2: 300 }, { poaWm2: 700 }])).toBeCloseTo(0.4, 10);
+    expect(lightVariation([500, 500])).toBe(0);
+    expect(lightVariation([300, 700])).toBeCloseTo(0.4, 10);
   });
 });

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { pino } from 'pino';
 import { IngestService } from '../../server/services/ingest-service';
-import { telemetryKey, type TelemetryRepository, type TelemetryRow } from '../../server/data/telemetry-repository';
+import { telemetryKey, type Added, type TelemetryRepository, type TelemetryRow } from '../../server/data/telemetry-repository';
 import type { UnitDirectory, UnitInfo } from '../../server/services/unit-directory';
 import { sample, waitFor } from '../helpers/fake-unit';
 
@@ -19,21 +19,24 @@ const unit: UnitInfo = {
 };
 const directory = { get: (serial: string) => (serial === unit.serial ? unit : undefined) } as unknown as UnitDirectory;
 
+/** What an insert reports when it added the rows of these keys (listed: the repository may also say "all" with null). */
+const addedOf = (keys: string[]): Added => ({ count: keys.length, keys: new Set(keys) });
+
 /** A repository whose commits the test releases one by one, in any order; it remembers stored keys like the primary key would. */
 function heldRepository() {
   const stored = new Set<string>();
   const pending: { rows: TelemetryRow[]; commit: () => void; fail: (err: Error) => void }[] = [];
   const repo = {
     insertTelemetry: (rows: TelemetryRow[]) =>
-      new Promise<string[]>((res, rej) => {
+      new Promise<Added>((res, rej) => {
         pending.push({
           rows,
-          commit: () => res(rows.map((r) => telemetryKey(r.unit_id, r.ts)).filter((k) => !stored.has(k) && (stored.add(k), true))),
+          commit: () => res(addedOf(rows.map((r) => telemetryKey(r.unit_id, r.ts)).filter((k) => !stored.has(k) && (stored.add(k), true)))),
           fail: rej,
         });
       }),
-    insertEvents: async () => [],
-    insertWeather: async () => [],
+    insertEvents: async () => addedOf([]),
+    insertWeather: async () => addedOf([]),
   } as unknown as TelemetryRepository;
   return { repo, pending };
 }
@@ -126,13 +129,13 @@ describe('ingest acknowledgement and announcements', () => {
     const repo = {
       insertTelemetry: async (rows: TelemetryRow[]) => {
         telemetryCalls.push(rows.length);
-        return rows.map((r) => telemetryKey(r.unit_id, r.ts));
+        return addedOf(rows.map((r) => telemetryKey(r.unit_id, r.ts)));
       },
       insertEvents: async (rows: unknown[]) => {
         if (rows.length && eventCalls++ === 0) throw Object.assign(new Error('gone'), { code: 'ECONNRESET' });
-        return [];
+        return addedOf([]);
       },
-      insertWeather: async () => [],
+      insertWeather: async () => addedOf([]),
     } as unknown as TelemetryRepository;
     const ingest = new IngestService(repo, directory, pino({ level: 'silent' }), {}, { batchRows: 10, flushMs: 5, flushConcurrency: 1 });
     const acked: string[] = [];

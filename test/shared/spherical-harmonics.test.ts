@@ -142,3 +142,27 @@ describe('order-2 basis with the printed constants', () => {
     expect(Math.abs(up - (127 * Math.PI) / 192) / ((127 * Math.PI) / 192)).toBeLessThan(5e-6);
   });
 });
+
+describe('evaluation at one direction', () => {
+  // Σ c_lm Y_lm(d) is the definition (the module's header); realShBasis gives every Y_lm(d), so the two must agree up to
+  // the rounding of a different summation order.
+  it('evaluateSh equals the term-by-term sum Σ c_lm Y_lm(d) at orders 0, 1, 7 and 24 (definition of the expansion)', () => {
+    for (const order of [0, 1, 7, 24]) {
+      const c = new Float64Array(shCount(order)).map((_, i) => Math.sin(1.7 * i + 0.3) / (1 + i / 30));
+      for (let i = 0; i < 200; i++) {
+        const d = directionFromAzimuthElevation((i * 137.5) % 360, -89 + ((i * 61) % 179));
+        const y = realShBasis(order, d);
+        let direct = 0;
+        for (let k = 0; k < c.length; k++) direct += c[k]! * y[k]!;
+        expect(Math.abs(evaluateSh(order, c, d) - direct)).toBeLessThan(1e-12 * (1 + Math.abs(direct)));
+      }
+    }
+  });
+  it('at the zenith only m = 0 terms survive: Σ_l c_l0 √((2l+1)/4π) (P_l(1) = 1)', () => {
+    const order = 24;
+    const c = new Float64Array(shCount(order)).map((_, i) => 1 + (i % 5));
+    let expected = 0;
+    for (let l = 0; l <= order; l++) expected += c[shIndex(l, 0)]! * Math.sqrt((2 * l + 1) / (4 * Math.PI));
+    expect(Math.abs(evaluateSh(order, c, [0, 0, 1]) - expected)).toBeLessThan(1e-12 * expected);
+  });
+});
