@@ -4,7 +4,8 @@
  * (the offline evaluation, a test) can feed it the same inputs and get the same model.
  */
 import type { SiteSurvey } from '../../shared/contracts/survey';
-import { analyseLandscape, bestReachableOrientation, detectorReadings, type Sky } from '../../shared/landscape';
+import { analyseLandscape, bestReachableOrientation, detectorReadings, extendedRadiance, type Sky } from '../../shared/landscape';
+import type { Vec3 } from '../../shared/sphere/directions';
 import { parseSkyFile, resolveSkyFile, type ResolvedSky } from '../../shared/sky-file';
 import type { SiteModel } from './site-model';
 
@@ -41,9 +42,70 @@ export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, wea
   });
 }
 
-/** The resolved (built) sky of a site at an instant. */
+/** Beam the station reads on its horizontal sensor per W/m² of DNI below which it tells nothing about the beam. */
+const MIN_STATION_BEAM_VIEW = 0.02;
+
+/** Horizontal irradiance of a sky's sun and sun images [W/m²] (Lambert's law: normal irradiance × cos zenith). */
+function sharpHorizontalWm2(sky: Sky): number {
+  let e = 0;
+  for (const p of sky.pointSources) if (p.kind !== 'lamp') e += p.irradianceWm2 * Math.max(0, p.direction[2]);
+  return e;
+}
+
+/**
+ * The resolved (built) sky of a site at an instant. With a station reading of GHI and DHI the beam is what makes the
+ * station's GHI − DHI, seen from the site with its survey: the sun where the horizon leaves it visible plus the facades'
+ * images of it (a station next to a glazed facade reads the image too, and dividing GHI − DHI by cos Z alone would
+ * brighten the modelled sun by it). When the survey hides the sun and its images from the station, the reading says
+ * nothing about the beam, which then comes from the clear-sky model (the sky file's "DHI only" rule) with the measured DHI.
+ */
 export function siteSky(site: SkySite, survey: SiteSurvey, atMs: number, weather: SiteWeather | null): ResolvedSky {
-  return resolveSkyFile(siteSkyFile(site, survey, atMs, weather));
+  const naive = resolveSkyFile(siteSkyFile(site, survey, atMs, weather));
+  const sun = naive.input.sun;
+  if (!weather || weather.dhiWm2 === null || !sun || sun.elevationDeg <= 0) return naive;
+  const measuredDhi = Math.min(weather.dhiWm2, weather.ghiWm2);
+  // The sky is given its beam and dome; its ground then takes the GHI they make (the engine's own rule), as the
+  // station's GHI is read behind the survey's obstructions.
+  const at = (dhiWm2: number, dniWm2: number) => {
+    const { ghiWm2: _measured, ...file } = siteSkyFile(site, survey, atMs, { ghiWm2: Math.max(weather.ghiWm2, dhiWm2), dhiWm2 });
+    return resolveSkyFile({ ...file, sun: { azimuthDeg: sun.azimuthDeg, elevationDeg: sun.elevationDeg, dniWm2 } });
+  };
+  // The station's view of the beam: the sharp horizontal irradiance of this sky per W/m² of DNI.
+  const probeDni = 1000;
+  const view = sharpHorizontalWm2(at(measuredDhi, probeDni).sky) / probeDni;
+  const { ghiWm2: _ghi, ...dhiOnly } = siteSkyFile(site, survey, atMs, { ghiWm2: weather.ghiWm2, dhiWm2: measuredDhi });
+  const dniWm2 =
+    view >= MIN_STATION_BEAM_VIEW
+      ? Math.min(1500, Math.max(0, weather.ghiWm2 - measuredDhi) / view)
+      : (resolveSkyFile(dhiOnly).input.sun?.dniWm2 ?? 0);
+  // The sky file's DHI is the unobstructed dome's; the station reads the dome less what the survey hides, plus the
+  // obstructions and facades as it sees them. Linear in the dome's DHI: two probes give the dome that reads as measured
+  // (kept within half and twice the reading).
+  const withDome = diffuseHorizontalWm2(at(measuredDhi, dniWm2).sky);
+  const withoutDome = diffuseHorizontalWm2(at(0, dniWm2).sky);
+  const domeDhi =
+    measuredDhi > 0 && withDome - withoutDome > 1e-6
+      ? Math.min(2 * measuredDhi, Math.max(0.5 * measuredDhi, (measuredDhi * (measuredDhi - withoutDome)) / (withDome - withoutDome)))
+      : measuredDhi;
+  return at(domeDhi, dniWm2);
+}
+
+/** Upward directions of a Fibonacci lattice on the hemisphere, for the station's diffuse reading. */
+const HEMISPHERE: readonly Vec3[] = (() => {
+  const n = 1024;
+  const golden = Math.PI * (3 - Math.sqrt(5));
+  return Array.from({ length: n }, (_, i) => {
+    const z = 1 - (i + 0.5) / n;
+    const r = Math.sqrt(1 - z * z);
+    return [r * Math.cos(golden * i), r * Math.sin(golden * i), z] as Vec3;
+  });
+})();
+
+/** Horizontal irradiance of a sky's extended radiance (dome, obstructions, facades) [W/m²], by equal-area quadrature. */
+function diffuseHorizontalWm2(sky: Sky): number {
+  let e = 0;
+  for (const d of HEMISPHERE) e += extendedRadiance(sky, d) * d[2];
+  return (e * 2 * Math.PI) / HEMISPHERE.length;
 }
 
 /**

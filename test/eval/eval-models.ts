@@ -111,6 +111,8 @@ export function siteModels(o: {
   sites: readonly EvalSite[];
   surveyError: SurveyErrorLevel;
   seed: number;
+  /** Keep the model's full landscape analysis for trap evidence (slow; it never changes what is detected). */
+  evidence?: boolean;
 }): EvalModelProvider {
   const { modelRefreshMs, modelMaxAgeMs, maxTiltDeg } = DEFAULT_HEALTH_SERVICE_OPTIONS;
   const info = new Map<number, { site: SiteInfo; given: SurveyedSite; station: StationError }>();
@@ -135,7 +137,8 @@ export function siteModels(o: {
       weather,
     );
     built++;
-    return siteModelOf(resolved, site.indoor, atMs, maxTiltDeg);
+    const model = siteModelOf(resolved, site.indoor, atMs, maxTiltDeg);
+    return o.evidence ? model : { ...model, analyse: undefined };
   };
   return {
     surveys: new Map([...info].map(([id, s]) => [id, s.given])),

@@ -164,7 +164,7 @@ export function runEval(o: EvalOptions): EvalRun {
   const surveyError = o.surveyError ?? 'none';
   const provider: EvalModelProvider =
     model === 'site'
-      ? siteModels({ now: () => fleet.now(), sites: evalSites, surveyError, seed: o.seed })
+      ? siteModels({ now: () => fleet.now(), sites: evalSites, surveyError, seed: o.seed, evidence: !!o.evidence })
       : truthModels(fleet, evalSites, !!o.evidence);
 
   const settings = o.settings ?? DEFAULT_HEALTH_SETTINGS;
