@@ -59,7 +59,9 @@ export interface HealthSettings {
   saturationWm2: number;
   /** Samples are used only where the model agrees with the reference cell within this fraction. */
   driftModelAgreement: number;
-  /** …and the modelled reading of the detector is at least this [W/m²]. */
+  /** …and the modelled reading of the detector (and the panel's, measured and modelled) is at least this [W/m²]. Low
+   * enough for the shade of a tower or a late afternoon, where a dead detector must still be found; detector noise
+   * (a few tenths of a W/m², common practice) stays well under the tolerance there. */
   driftMinWm2: number;
   /** Pointing uncertainty of a reported orientation (backlash, encoder resolution) [°]. */
   driftPointingToleranceDeg: number;
@@ -156,7 +158,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   deadFraction: 0.1,
   saturationWm2: 4990,
   driftModelAgreement: 0.1,
-  driftMinWm2: 100,
+  driftMinWm2: 40,
   driftPointingToleranceDeg: 0.5,
   driftMaxModelChange: 0.02,
   driftWindowMin: 10,

@@ -3,8 +3,8 @@
  * its in-plane irradiance is well below (a) the modelled global maximum of its site at that instant and (b) what its site
  * peers get. When every peer is as low (a site-wide trap, e.g. all units on a facade reflection) the peer comparison cannot
  * help; the model is then trusted only where it is confirmed at the unit's own orientation (measured and modelled in-plane
- * irradiance agree). Not while stowed, held, scanning or in fault; not at night; not when another open cause (stall,
- * drift, hunting) explains the deficit.
+ * irradiance agree), and so it is when fewer than two peers can be compared. Not while stowed, held, scanning or in
+ * fault; not at night; not when another open cause (stall, drift, hunting) explains the deficit.
  */
 import type { Telemetry } from '../../shared/contracts/wire';
 import type { HealthSettings } from './health-settings';
@@ -75,7 +75,9 @@ export class TrapDetector {
             s.trapPeerQuantile,
           )
         : null;
-    const belowPeers = peerHigh === null || t.poaWm2 < s.trapPeerRatio * peerHigh;
+    // Without two comparable peers (a small site, the others stowed or away) the peers cannot speak against the model,
+    // so the model must be confirmed at the unit's own orientation, as for a site-wide trap.
+    const belowPeers = peerHigh !== null && t.poaWm2 < s.trapPeerRatio * peerHigh;
     const here = mr.panelWm2;
     const modelConfirmed = here > 0 && Math.abs(t.poaWm2 / here - 1) <= s.trapModelAgreement;
     if (!belowPeers && !modelConfirmed) return judged(ctx.open ? null : false);
@@ -110,7 +112,7 @@ export class TrapDetector {
           lossWm2: round1(lossWm2),
           lossPct: round1(lossPct),
           peers: { count: peers.length, upperQuartileWm2: peerHigh === null ? null : round1(peerHigh) },
-          siteWide: !belowPeers,
+          siteWide: peerHigh !== null && !belowPeers,
           detectorTiltDeg: unit.detectorTiltDeg,
         },
       };
