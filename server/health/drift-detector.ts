@@ -79,14 +79,15 @@ export class DriftDetector {
     });
     // A pair is judged as a pair: a model whose slope is off where the unit points (a sky shaped otherwise than
     // modelled, a stale model under passing cloud) skews the two detectors of a pair opposite ways, while a drifting
-    // detector departs alone. So a detector's departure counts net of its partner's ((x − 1) + (x_partner − 1)), and
-    // is charged to whichever of the two departs further. A dead or saturated reading needs no partner.
+    // detector departs alone. So a detector's departure counts net of its partner's (x · x_partner − 1: a skew
+    // multiplies one by what it divides the other), and is charged to whichever of the two departs further. A dead or
+    // saturated reading needs no partner.
     const devs = medians.map((v, i) => {
       if (v === null) return null;
       if (v === Infinity || v < s.deadFraction) return Math.abs(v - 1);
       const p = medians[PARTNER[i]!];
       if (p === null || p === undefined || p === Infinity || p < s.deadFraction) return null;
-      return Math.abs(v - 1) >= Math.abs(p - 1) ? Math.abs(v - 1 + (p - 1)) : 0;
+      return Math.abs(v - 1) >= Math.abs(p - 1) ? Math.abs(v * p - 1) : 0;
     });
     const known = devs.filter((v): v is number => v !== null);
     if (known.length === 0) return judged(null);

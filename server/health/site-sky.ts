@@ -42,6 +42,9 @@ export function siteSkyFile(site: SkySite, survey: SiteSurvey, atMs: number, wea
   });
 }
 
+/** Diffuse fraction (DHI / GHI) from which the sky counts as cloud-covered (common practice; from memory). */
+const OVERCAST_DIFFUSE_FRACTION = 0.8;
+
 /** Beam the station reads on its horizontal sensor per W/m² of DNI below which it tells nothing about the beam. */
 const MIN_STATION_BEAM_VIEW = 0.02;
 
@@ -66,18 +69,25 @@ export function siteSky(site: SkySite, survey: SiteSurvey, atMs: number, weather
   const measuredDhi = Math.min(weather.dhiWm2, weather.ghiWm2);
   // The sky is given its beam and dome; its ground then takes the GHI they make (the engine's own rule), as the
   // station's GHI is read behind the survey's obstructions.
+  let seen = survey;
   const at = (dhiWm2: number, dniWm2: number) => {
-    const { ghiWm2: _measured, ...file } = siteSkyFile(site, survey, atMs, { ghiWm2: Math.max(weather.ghiWm2, dhiWm2), dhiWm2 });
+    const { ghiWm2: _measured, ...file } = siteSkyFile(site, seen, atMs, { ghiWm2: Math.max(weather.ghiWm2, dhiWm2), dhiWm2 });
     return resolveSkyFile({ ...file, sun: { azimuthDeg: sun.azimuthDeg, elevationDeg: sun.elevationDeg, dniWm2 } });
   };
   // The station's view of the beam: the sharp horizontal irradiance of this sky per W/m² of DNI.
   const probeDni = 1000;
   const view = sharpHorizontalWm2(at(measuredDhi, probeDni).sky) / probeDni;
-  const { ghiWm2: _ghi, ...dhiOnly } = siteSkyFile(site, survey, atMs, { ghiWm2: weather.ghiWm2, dhiWm2: measuredDhi });
-  const dniWm2 =
-    view >= MIN_STATION_BEAM_VIEW
-      ? Math.min(1500, Math.max(0, weather.ghiWm2 - measuredDhi) / view)
-      : (resolveSkyFile(dhiOnly).input.sun?.dniWm2 ?? 0);
+  // The survey's sky type is the site's usual (clear) sky. Light nearly all diffuse at a station that could see the sun
+  // means a cloud-covered sky, whose radiance is taken as uniform: the isotropic diffuse sky of Liu & Jordan (1963),
+  // "The long-term average performance of flat-plate solar-energy collectors", Solar Energy 7(2):53–74 (reference from
+  // memory). In the shade of the survey's obstructions, all-diffuse light says nothing about cloud.
+  const seesSun = view >= MIN_STATION_BEAM_VIEW;
+  if (seesSun && weather.ghiWm2 > 0 && measuredDhi / weather.ghiWm2 >= OVERCAST_DIFFUSE_FRACTION)
+    seen = { ...survey, skyType: 'isotropic' };
+  const { ghiWm2: _ghi, ...dhiOnly } = siteSkyFile(site, seen, atMs, { ghiWm2: weather.ghiWm2, dhiWm2: measuredDhi });
+  const dniWm2 = seesSun
+    ? Math.min(1500, Math.max(0, weather.ghiWm2 - measuredDhi) / view)
+    : (resolveSkyFile(dhiOnly).input.sun?.dniWm2 ?? 0);
   // The sky file's DHI is the unobstructed dome's; the station reads the dome less what the survey hides, plus the
   // obstructions and facades as it sees them. Linear in the dome's DHI: two probes give the dome that reads as measured
   // (kept within half and twice the reading).

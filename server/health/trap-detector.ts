@@ -62,9 +62,6 @@ export class TrapDetector {
       !pairAgrees(t.azimuthPlusWm2, t.azimuthMinusWm2, mr.azimuthPlusWm2, mr.azimuthMinusWm2)
     )
       return judged(ctx.open ? null : false);
-    const ratio = t.poaWm2 / best;
-    if (ratio >= s.trapClearRatio) return judged(false);
-    if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
     const peers = ctx.peers.filter(
       (p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'),
     );
@@ -75,6 +72,12 @@ export class TrapDetector {
             s.trapPeerQuantile,
           )
         : null;
+    // A brighter orientation is what the model says or what the peers measure, whichever is more: a model dimmer than
+    // the site (a facade that mirrors more than surveyed) must not hide a unit well below units facing the peak.
+    const bestSeen = Math.max(best, peerHigh ?? 0);
+    const ratio = t.poaWm2 / bestSeen;
+    if (ratio >= s.trapClearRatio) return judged(false);
+    if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
     // Without two comparable peers (a small site, the others stowed or away) the peers cannot speak against the model,
     // so the model must be confirmed at the unit's own orientation, as for a site-wide trap.
     const belowPeers = peerHigh !== null && t.poaWm2 < s.trapPeerRatio * peerHigh;
@@ -84,8 +87,8 @@ export class TrapDetector {
     return judged(true, () => {
       const a = m.analyse?.() ?? {};
       const minTilt = a.minSinglePeakDetectorTiltDeg ?? m.minSinglePeakDetectorTiltDeg;
-      const lossWm2 = best - t.poaWm2;
-      const lossPct = (lossWm2 / best) * 100;
+      const lossWm2 = bestSeen - t.poaWm2;
+      const lossPct = (lossWm2 / bestSeen) * 100;
       const g = m.globalMax;
       const tiltAdvice =
         minTilt == null
@@ -96,8 +99,11 @@ export class TrapDetector {
       return {
         severity: ctx.trappedAtSite >= s.trapManyUnits ? 'P2' : 'P3',
         message:
-          `Settled at tilt ${round1(t.tiltDeg)}°, azimuth ${round1(t.azimuthDeg)}° on ${round1(t.poaWm2)} W/m² while the brightest orientation ` +
-          `(tilt ${round1(g.tiltDeg)}°, azimuth ${round1(g.azimuthDeg)}°) gets ${round1(best)} W/m²: losing ${round1(lossWm2)} W/m² (${round1(lossPct)} %).`,
+          `Settled at tilt ${round1(t.tiltDeg)}°, azimuth ${round1(t.azimuthDeg)}° on ${round1(t.poaWm2)} W/m² while ` +
+          (bestSeen > best
+            ? `its site's units get up to ${round1(bestSeen)} W/m², more than the modelled brightest orientation (tilt ${round1(g.tiltDeg)}°, azimuth ${round1(g.azimuthDeg)}°, ${round1(best)} W/m²)`
+            : `the brightest orientation (tilt ${round1(g.tiltDeg)}°, azimuth ${round1(g.azimuthDeg)}°) gets ${round1(best)} W/m²`) +
+          `: losing ${round1(lossWm2)} W/m² (${round1(lossPct)} %).`,
         advice: `Send a scan, then go to the brightest orientation it finds; ${tiltAdvice}.`,
         evidence: {
           readings: readingsSnapshot(t),

@@ -75,6 +75,17 @@ describe('trap detector', () => {
     expect(ok.raised.filter((a) => a.kind === 'trap')).toHaveLength(1);
   });
 
+  it('takes the peers’ light as the best when the model is dimmer than what they measure (a facade brighter than surveyed)', () => {
+    // The model says half of what the site gets; the unit sits at about 0.73 of the best while three peers face the sun.
+    const dim = (n: readonly number[]) => 0.5 * irr(n);
+    const e = testEngine((at) => modelOf(dim, at));
+    feed(e, T0, 30, [
+      { unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 110 }) },
+      ...[1, 2, 3].map((i) => ({ unit: peer(i), make: (at: number) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) })),
+    ]);
+    expect(e.raised.filter((a) => a.kind === 'trap').map((a) => a.serial)).toEqual([UNIT.serial]);
+  });
+
   it('does not raise for a unit balanced on a drifting detector (its pair disagrees with the model here)', () => {
     // One tilt detector reads 12 % low: the pair's ratio departs from the modelled ratio by more than the tolerance.
     const e = testEngine(model);

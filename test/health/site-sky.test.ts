@@ -85,3 +85,12 @@ describe('site sky: beam magnitude from a station that sees facades and obstruct
     expect(hidden.input.dhiWm2 / clear.input.dhiWm2).toBeCloseTo(1, 1);
   });
 });
+
+describe('site sky: the dome under cloud', () => {
+  it('is uniform when the station reads the light nearly all diffuse (Liu & Jordan 1963), the survey’s usual sky otherwise', () => {
+    const usual = { skyType: 12 as const, horizon: [], reflectors: [], lamps: [] };
+    expect(siteSky(site, usual, noon, { ghiWm2: 300, dhiWm2: 280 }).input.skyType).toBe('isotropic');
+    expect(siteSky(site, usual, noon, { ghiWm2: 800, dhiWm2: 120 }).input.skyType).toBe(12);
+    expect(siteSky(site, usual, noon, null).input.skyType).toBe(12);
+  });
+});
