@@ -35,7 +35,7 @@ export interface HealthSettings {
   trapManyUnits: number;
   /** Traps are judged only while the modelled best orientation gets at least this [W/m²]: below it a 15 % deficit is a few tens of W/m², within model and sensor error and not worth a visit (a stricter gate than the daylight gate). */
   trapMinBestWm2: number;
-  /** A settled unit's detector pairs must agree with the model at its orientation: each pair's ratio (plus over minus) within this fraction of the modelled ratio. A larger mismatch means the unit balanced on a drifting or shaded detector, a sensor fault the drift detector reports, not a trap. */
+  /** A settled unit's detector pairs must agree with the model at its orientation: each pair's ratio (plus over minus) within this fraction of the modelled ratio. A larger mismatch means the unit balanced on a drifting or shaded detector, a sensor fault the drift detector reports, not a trap. Wider than the drift tolerance: the modelled ratio is only as good as the survey (at dawn under a survey off by the `high` evaluation error, trapped units' pairs read 5–12 % off the model). */
   trapPairModelTolerance: number;
 
   // ---- actuator stall / slip
@@ -145,7 +145,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   trapPairSanity: 0.05,
   trapManyUnits: 3,
   trapMinBestWm2: 150,
-  trapPairModelTolerance: 0.06,
+  trapPairModelTolerance: 0.1,
 
   motorOverCurrentA: 3,
   stallAngleErrorDeg: 1,

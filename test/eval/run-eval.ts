@@ -5,7 +5,8 @@
  * Scoring (per detector kind):
  *  - an alarm matches a truth record of its kind on the same unit when the alarm's open interval overlaps the record's
  *    interval extended by `graceMin` after its end (clear delays and late reports);
- *  - precision = matching alarms / alarms of the kind; recall = eligible records matched / eligible records;
+ *  - precision = matching alarms / alarms of the kind; recall = eligible records matched / eligible records (a comms
+ *    loss is also matched by a site-comms alarm of its site, which suppresses the units' own);
  *    delay = raise time − record start of the first matching alarm (median, minutes);
  *  - a record is eligible for recall when it lasted at least the kind's minimum observable time (`MIN_OBSERVABLE_MIN`:
  *    an alarm philosophy with a delay-on cannot, by design, raise on a shorter condition) and is not cut off by the end of
@@ -303,6 +304,7 @@ export function score(i: ScoreInput): EvalResult {
     if (!s) siteSerials.set(r.siteId, (s = new Set()));
     s.add(r.serial);
   }
+  const siteDark = i.alarms.filter((a) => a.kind === 'site-comms');
   const detectors = {} as Record<ScoredKind, KindScore>;
   for (const kind of SCORED_KINDS) {
     const as = i.alarms.filter((a) => a.kind === kind);
@@ -330,7 +332,10 @@ export function score(i: ScoreInput): EvalResult {
     const delays: number[] = [];
     let found = 0;
     for (const t of eligible) {
-      const hits = as.filter((a) => a.serial === t.serial && overlaps(a, t));
+      // A comms loss while the whole site is dark is reported by the one site alarm, which suppresses the units' own.
+      const hits = [...as, ...(kind === 'comms' ? siteDark : [])].filter(
+        (a) => (a.serial === t.serial || (a.serial === null && siteSerials.get(a.siteId)?.has(t.serial))) && overlaps(a, t),
+      );
       if (hits.length) {
         found++;
         delays.push((Math.min(...hits.map((a) => a.raisedMs)) - t.startMs) / 60_000);
