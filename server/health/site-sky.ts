@@ -5,7 +5,7 @@
  */
 import type { SiteSurvey } from '../../shared/contracts/survey';
 import { analyseLandscape, bestReachableOrientation, detectorReadings, extendedRadiance, type Sky } from '../../shared/landscape';
-import type { Vec3 } from '../../shared/sphere/directions';
+import { directionFromAzimuthElevation, type Vec3 } from '../../shared/sphere/directions';
 import { parseSkyFile, resolveSkyFile, type ResolvedSky } from '../../shared/sky-file';
 import type { SiteModel } from './site-model';
 
@@ -67,12 +67,14 @@ export function siteSky(site: SkySite, survey: SiteSurvey, atMs: number, weather
   const sun = naive.input.sun;
   if (!weather || weather.dhiWm2 === null || !sun || sun.elevationDeg <= 0) return naive;
   const measuredDhi = Math.min(weather.dhiWm2, weather.ghiWm2);
-  // The sky is given its beam and dome; its ground then takes the GHI they make (the engine's own rule), as the
-  // station's GHI is read behind the survey's obstructions.
+  // The sky is given its beam and dome; its ground then takes the GHI they make (the engine's own rule, stated as the
+  // sky's GHI so the model reports the GHI it has), as the station's GHI is read behind the survey's obstructions.
   let seen = survey;
+  const upZ = Math.max(0, directionFromAzimuthElevation(sun.azimuthDeg, sun.elevationDeg)[2]);
   const at = (dhiWm2: number, dniWm2: number) => {
-    const { ghiWm2: _measured, ...file } = siteSkyFile(site, seen, atMs, { ghiWm2: Math.max(weather.ghiWm2, dhiWm2), dhiWm2 });
-    return resolveSkyFile({ ...file, sun: { azimuthDeg: sun.azimuthDeg, elevationDeg: sun.elevationDeg, dniWm2 } });
+    const file = siteSkyFile(site, seen, atMs, { ghiWm2: Math.max(weather.ghiWm2, dhiWm2), dhiWm2 });
+    const ghiWm2 = dniWm2 * upZ + Math.min(2000, dhiWm2);
+    return resolveSkyFile({ ...file, ghiWm2, sun: { azimuthDeg: sun.azimuthDeg, elevationDeg: sun.elevationDeg, dniWm2 } });
   };
   // The station's view of the beam: the sharp horizontal irradiance of this sky per W/m² of DNI.
   const probeDni = 1000;
