@@ -13,7 +13,7 @@ export interface SiteModelInputs {
 }
 
 /** How far back a station reading still describes the site's weather [ms]. */
-const WEATHER_NEAR_MS = 15 * 60_000;
+export const WEATHER_NEAR_MS = 15 * 60_000;
 
 /** What the site model is computed from: a site's location and survey, and its stored weather-station readings. */
 export class SiteModelRepository {

@@ -14,6 +14,8 @@ import type { ModelReadings, SiteModel } from './site-model';
 import { judged, median, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
 
 export const DETECTORS = ['tiltPlus', 'tiltMinus', 'azimuthPlus', 'azimuthMinus'] as const;
+/** Index of each detector's partner in its pair. */
+const PARTNER = [1, 0, 3, 2] as const;
 type Detector = (typeof DETECTORS)[number];
 
 interface UnitState {
@@ -109,12 +111,21 @@ export class DriftDetector {
       const xs = u.window.map((w) => w.x[i]!).filter((v): v is number => v !== null);
       return xs.length >= 5 ? median(xs) : null;
     });
-    const known = medians.filter((v): v is number => v !== null);
+    // A pair is judged as a pair: a model whose slope is off where the unit points (a sky shaped otherwise than
+    // modelled, a stale model under passing cloud) skews the two detectors of a pair opposite ways, while a drifting
+    // detector departs alone. So a detector's departure counts net of its partner's (x · x_partner − 1: a skew
+    // multiplies one by what it divides the other), and is charged to whichever of the two departs further. A dead or
+    // saturated reading needs no partner.
+    const devs = medians.map((v, i) => {
+      if (v === null) return null;
+      if (v === Infinity || v < s.deadFraction) return Math.abs(v - 1);
+      const p = medians[PARTNER[i]!];
+      if (p === null || p === undefined || p === Infinity || p < s.deadFraction) return null;
+      return Math.abs(v - 1) >= Math.abs(p - 1) ? Math.abs(v * p - 1) : 0;
+    });
+    const known = devs.filter((v): v is number => v !== null);
     if (known.length === 0) return judged(null);
-    const worst = medians.reduce<{ i: number; dev: number }>(
-      (b, v, i) => (v !== null && Math.abs(v - 1) > b.dev ? { i, dev: Math.abs(v - 1) } : b),
-      { i: -1, dev: 0 },
-    );
+    const worst = devs.reduce<{ i: number; dev: number }>((b, d, i) => (d !== null && d > b.dev ? { i, dev: d } : b), { i: -1, dev: 0 });
     if (worst.dev > s.driftTolerance) {
       const name = DETECTORS[worst.i]!;
       const words = detectorWords(name);

@@ -35,7 +35,7 @@ export interface HealthSettings {
   trapManyUnits: number;
   /** Traps are judged only while the modelled best orientation gets at least this [W/m²]: below it a 15 % deficit is a few tens of W/m², within model and sensor error and not worth a visit (a stricter gate than the daylight gate). */
   trapMinBestWm2: number;
-  /** A settled unit's detector pairs must agree with the model at its orientation: each pair's ratio (plus over minus) within this fraction of the modelled ratio. A larger mismatch means the unit balanced on a drifting or shaded detector, a sensor fault the drift detector reports, not a trap. */
+  /** A settled unit's detector pairs must agree with the model at its orientation: each pair's ratio (plus over minus) within this fraction of the modelled ratio. A larger mismatch means the unit balanced on a drifting or shaded detector, a sensor fault the drift detector reports, not a trap. Wider than the drift tolerance: the modelled ratio is only as good as the survey (at dawn under a survey off by the `high` evaluation error, trapped units' pairs read 5–12 % off the model). */
   trapPairModelTolerance: number;
 
   // ---- actuator stall / slip
@@ -59,7 +59,9 @@ export interface HealthSettings {
   saturationWm2: number;
   /** Samples are used only where the model agrees with the reference cell within this fraction. */
   driftModelAgreement: number;
-  /** …and the modelled reading of the detector is at least this [W/m²]. */
+  /** …and the modelled reading of the detector (and the panel's, measured and modelled) is at least this [W/m²]. Low
+   * enough for the shade of a tower or a late afternoon, where a dead detector must still be found; detector noise
+   * (a few tenths of a W/m², common practice) stays well under the tolerance there. */
   driftMinWm2: number;
   /** Pointing uncertainty of a reported orientation (backlash, encoder resolution) [°]. */
   driftPointingToleranceDeg: number;
@@ -143,7 +145,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   trapPairSanity: 0.05,
   trapManyUnits: 3,
   trapMinBestWm2: 150,
-  trapPairModelTolerance: 0.06,
+  trapPairModelTolerance: 0.1,
 
   motorOverCurrentA: 3,
   stallAngleErrorDeg: 1,
@@ -156,7 +158,7 @@ export const DEFAULT_HEALTH_SETTINGS: Readonly<HealthSettings> = Object.freeze({
   deadFraction: 0.1,
   saturationWm2: 4990,
   driftModelAgreement: 0.1,
-  driftMinWm2: 100,
+  driftMinWm2: 40,
   driftPointingToleranceDeg: 0.5,
   driftMaxModelChange: 0.02,
   driftWindowMin: 10,

@@ -3,8 +3,8 @@
  * its in-plane irradiance is well below (a) the modelled global maximum of its site at that instant and (b) what its site
  * peers get. When every peer is as low (a site-wide trap, e.g. all units on a facade reflection) the peer comparison cannot
  * help; the model is then trusted only where it is confirmed at the unit's own orientation (measured and modelled in-plane
- * irradiance agree). Not while stowed, held, scanning or in fault; not at night; not when another open cause (stall,
- * drift, hunting) explains the deficit.
+ * irradiance agree), and so it is when fewer than two peers can be compared. Not while stowed, held, scanning or in
+ * fault; not at night; not when another open cause (stall, drift, hunting) explains the deficit.
  */
 import type { Telemetry } from '../../shared/contracts/wire';
 import type { HealthSettings } from './health-settings';
@@ -57,7 +57,20 @@ export class TrapDetector {
     if (!pairOk(t.tiltPlusWm2, t.tiltMinusWm2, s) || !pairOk(t.azimuthPlusWm2, t.azimuthMinusWm2, s)) return judged(false);
     const best = m.globalMax.wm2;
     if (best < s.trapMinBestWm2) return judged(false);
-    const ratio = t.poaWm2 / best;
+    const peers = ctx.peers.filter(
+      (p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'),
+    );
+    const peerHigh =
+      peers.length >= 2
+        ? quantile(
+            peers.map((p) => p.poaWm2),
+            s.trapPeerQuantile,
+          )
+        : null;
+    // A brighter orientation is what the model says or what the peers measure, whichever is more: a model dimmer than
+    // the site (a facade that mirrors more than surveyed) must not hide a unit well below units facing the peak.
+    const bestSeen = Math.max(best, peerHigh ?? 0);
+    const ratio = t.poaWm2 / bestSeen;
     // The modelled readings cost a harmonic evaluation per detector: they are asked for only where the answer depends
     // on them. At or above the trap ratio with no trap open, the answer is false whatever the pairs read; between the
     // two ratios with a trap open, it is "unknown" whatever they read (the same answers as the checks below give).
@@ -73,25 +86,17 @@ export class TrapDetector {
       return judged(ctx.open ? null : false);
     if (ratio >= s.trapClearRatio) return judged(false);
     if (ratio >= s.trapRatio) return judged(ctx.open ? null : false);
-    const peers = ctx.peers.filter(
-      (p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'),
-    );
-    const peerHigh =
-      peers.length >= 2
-        ? quantile(
-            peers.map((p) => p.poaWm2),
-            s.trapPeerQuantile,
-          )
-        : null;
-    const belowPeers = peerHigh === null || t.poaWm2 < s.trapPeerRatio * peerHigh;
+    // Without two comparable peers (a small site, the others stowed or away) the peers cannot speak against the model,
+    // so the model must be confirmed at the unit's own orientation, as for a site-wide trap.
+    const belowPeers = peerHigh !== null && t.poaWm2 < s.trapPeerRatio * peerHigh;
     const here = mr.panelWm2;
     const modelConfirmed = here > 0 && Math.abs(t.poaWm2 / here - 1) <= s.trapModelAgreement;
     if (!belowPeers && !modelConfirmed) return judged(ctx.open ? null : false);
     return judged(true, () => {
       const a = m.analyse?.() ?? {};
       const minTilt = a.minSinglePeakDetectorTiltDeg ?? m.minSinglePeakDetectorTiltDeg;
-      const lossWm2 = best - t.poaWm2;
-      const lossPct = (lossWm2 / best) * 100;
+      const lossWm2 = bestSeen - t.poaWm2;
+      const lossPct = (lossWm2 / bestSeen) * 100;
       const g = m.globalMax;
       const tiltAdvice =
         minTilt == null
@@ -102,8 +107,11 @@ export class TrapDetector {
       return {
         severity: ctx.trappedAtSite >= s.trapManyUnits ? 'P2' : 'P3',
         message:
-          `Settled at tilt ${round1(t.tiltDeg)}°, azimuth ${round1(t.azimuthDeg)}° on ${round1(t.poaWm2)} W/m² while the brightest orientation ` +
-          `(tilt ${round1(g.tiltDeg)}°, azimuth ${round1(g.azimuthDeg)}°) gets ${round1(best)} W/m²: losing ${round1(lossWm2)} W/m² (${round1(lossPct)} %).`,
+          `Settled at tilt ${round1(t.tiltDeg)}°, azimuth ${round1(t.azimuthDeg)}° on ${round1(t.poaWm2)} W/m² while ` +
+          (bestSeen > best
+            ? `its site's units get up to ${round1(bestSeen)} W/m², more than the modelled brightest orientation (tilt ${round1(g.tiltDeg)}°, azimuth ${round1(g.azimuthDeg)}°, ${round1(best)} W/m²)`
+            : `the brightest orientation (tilt ${round1(g.tiltDeg)}°, azimuth ${round1(g.azimuthDeg)}°) gets ${round1(best)} W/m²`) +
+          `: losing ${round1(lossWm2)} W/m² (${round1(lossPct)} %).`,
         advice: `Send a scan, then go to the brightest orientation it finds; ${tiltAdvice}.`,
         evidence: {
           readings: readingsSnapshot(t),
@@ -118,7 +126,7 @@ export class TrapDetector {
           lossWm2: round1(lossWm2),
           lossPct: round1(lossPct),
           peers: { count: peers.length, upperQuartileWm2: peerHigh === null ? null : round1(peerHigh) },
-          siteWide: !belowPeers,
+          siteWide: peerHigh !== null && !belowPeers,
           detectorTiltDeg: unit.detectorTiltDeg,
         },
       };

@@ -47,4 +47,20 @@ describe('evaluation scoring: observability of a fault', () => {
     const r = score({ ...base, alarms: [alarm], truth, seen: new Map([['U1', driven]]), stallAxis });
     expect(r.detectors.stall).toMatchObject({ eligible: 1, recall: 1, precision: 1, medianDelayMin: 12 });
   });
+
+  it('finds a comms loss by the site alarm when the whole site went dark (the units’ own alarms are suppressed then)', () => {
+    const truth = [{ serial: 'U1', fault: 'comms-loss' as const, start: iso(T0), end: iso(T0 + 40 * MIN) }];
+    const site = {
+      kind: 'site-comms',
+      serial: null,
+      unitId: null,
+      siteId: 1,
+      raisedMs: T0 + 6 * MIN,
+      firstSeenMs: T0 + MIN,
+      clearedMs: T0 + 41 * MIN,
+    };
+    const r = score({ ...base, alarms: [site as unknown as Alarm], truth });
+    expect(r.detectors.comms).toMatchObject({ eligible: 1, found: 1, recall: 1, alarms: 0 });
+    expect(r.falseAlarms).toBe(0);
+  });
 });

@@ -9,28 +9,43 @@ import type { FaultKind } from '../../simulator/faults';
 import type { Rng } from '../../simulator/rng';
 import type { SiteInfo } from '../../simulator/scenarios';
 
+/**
+ * `lesser-peak`: the unit is sent into the basin of a lesser peak of its true landscape, as an operator's go-to to the
+ * wrong place would (target even), or as a crew leaves it after maintenance (target odd: held for `holdS`, then parked
+ * there and released). It then stays trapped as long as that basin lasts; the simulator's trap observer records it.
+ */
+export type EvalFaultKind = FaultKind | 'lesser-peak';
+
 export interface ScheduledFault {
   serial: string;
-  kind: FaultKind;
+  kind: EvalFaultKind;
   startMs: number;
   durationS: number;
   target: number;
+  /** Maintenance hold before a `lesser-peak` relocation [s] (0: a go-to). */
+  holdS?: number;
 }
 
 /**
  * Kinds injected, and how long each lasts [h] (uniform in the range). Soiling runs from its start to a cleaning.
- * Traps are not injected: the scenarios' skies (facade reflections, courtyard shade, lamps, broken cloud) trap units with
- * narrow detectors by themselves, and the simulator records every trap it observes as truth. (The simulator's injected
- * "trap" narrows the detectors to 4°, which is a change of detector geometry the drift detector rightly reports.)
+ * Traps come two ways: the scenarios' skies (facade reflections, courtyard shade, lamps, broken cloud) trap units with
+ * narrow detectors by themselves, and `lesser-peak` sends a unit into the basin of a lesser peak (its hours are the time
+ * left to it before the next fault); the simulator records every trap it observes as truth. (The simulator's injected
+ * "trap" narrows the detectors to 4°, which is a change of detector geometry the drift detector rightly reports, so it
+ * is not used.)
  */
-export const EVAL_FAULTS: { kind: FaultKind; hours: [number, number] }[] = [
+export const EVAL_FAULTS: { kind: EvalFaultKind; hours: [number, number] }[] = [
   { kind: 'stall', hours: [1, 3] },
   { kind: 'drift', hours: [3, 10] },
   { kind: 'dead-detector', hours: [2, 5] },
   { kind: 'hunting', hours: [1, 3] },
   { kind: 'comms-loss', hours: [0.25, 1.5] },
   { kind: 'soiling', hours: [40, 96] },
+  { kind: 'lesser-peak', hours: [2, 6] },
 ];
+
+/** Maintenance hold before a unit is left in a lesser peak's basin [min] (uniform). */
+export const MAINTENANCE_HOLD_MIN: [number, number] = [20, 60];
 
 const HOUR = 3_600_000;
 
@@ -66,7 +81,9 @@ export function scheduleFaults(input: ScheduleInput): ScheduledFault[] {
       while (start < input.endMs && !(sunAbove(u.site, start, 15) && sunAbove(u.site, start + HOUR, 15))) start += HOUR / 4;
       if (start + HOUR > input.endMs) break;
       const durationS = Math.round(Math.min(hours * HOUR, f.kind === 'soiling' ? input.endMs - start : hours * HOUR) / 1000);
-      out.push({ serial: u.serial, kind: f.kind, startMs: start, durationS, target: Math.floor(rng.next() * 4) });
+      const target = Math.floor(rng.next() * 4);
+      const holdS = f.kind === 'lesser-peak' && target % 2 === 1 ? Math.round(rng.uniform(...MAINTENANCE_HOLD_MIN) * 60) : undefined;
+      out.push({ serial: u.serial, kind: f.kind, startMs: start, durationS, target, ...(holdS !== undefined ? { holdS } : {}) });
       if (f.kind === 'soiling') soiled = true;
       t = start + durationS * 1000 + rng.uniform(1, 4) * HOUR;
     }

@@ -5,7 +5,8 @@
  * Scoring (per detector kind):
  *  - an alarm matches a truth record of its kind on the same unit when the alarm's open interval overlaps the record's
  *    interval extended by `graceMin` after its end (clear delays and late reports);
- *  - precision = matching alarms / alarms of the kind; recall = eligible records matched / eligible records;
+ *  - precision = matching alarms / alarms of the kind; recall = eligible records matched / eligible records (a comms
+ *    loss is also matched by a site-comms alarm of its site, which suppresses the units' own);
  *    delay = raise time − record start of the first matching alarm (median, minutes);
  *  - a record is eligible for recall when it lasted at least the kind's minimum observable time (`MIN_OBSERVABLE_MIN`:
  *    an alarm philosophy with a delay-on cannot, by design, raise on a shorter condition) and is not cut off by the end of
@@ -18,22 +19,22 @@
  * a best reachable irradiance of at least 150 W/m², no drive or sensor fault, for 10 min), not the injected "knock" that
  * may or may not trap the unit; `drift` includes dead detectors; `comms` is the injected comms loss.
  */
-import { detectorNormals } from '../../shared/landscape/detector-pairs';
 import { DETECTOR_TILTS_DEG } from '../../shared/demo-world';
 import { DEMO_SCENARIO_BY_SITE, demoSiteInfo } from '../../simulator/demo-fleet';
 import { createFleet, type FleetSiteSpec } from '../../simulator/fleet';
 import type { TruthRecord } from '../../simulator/faults';
 import { createRng } from '../../simulator/rng';
 import { isoUtc } from '../../simulator/clock';
-import type { SkyField } from '../../simulator/sky-field';
-import { analyseLandscape } from '../../shared/landscape';
 import type { Telemetry, UnitEvent, Weather } from '../../shared/contracts/wire';
 import type { Alarm } from '../../server/health/alarm-types';
 import { HealthEngine } from '../../server/health/health-engine';
 import { DEFAULT_HEALTH_SETTINGS, type HealthSettings } from '../../server/health/health-settings';
-import type { SiteModel, SiteModelProvider } from '../../server/health/site-model';
 import { azimuthDelta, median, type UnitRef } from '../../server/health/unit-sample';
+import { wilsonInterval } from '../../shared/statistics/wilson-1927';
+import type { SurveyErrorLevel } from '../../simulator/survey-error';
 import { scheduleFaults, type ScheduledFault } from './fault-schedule';
+import { siteModels, truthModels, type EvalModel, type EvalModelProvider } from './eval-models';
+import { createRelocations } from './relocations';
 
 export const SCORED_KINDS = ['trap', 'stall', 'drift', 'hunting', 'comms', 'soiling'] as const;
 export type ScoredKind = (typeof SCORED_KINDS)[number];
@@ -64,6 +65,10 @@ export interface EvalOptions {
   settings?: HealthSettings;
   /** Compute the full landscape analysis for trap evidence (slower). */
   evidence?: boolean;
+  /** Where the detectors' site model comes from (default `truth`, the simulator's own sky). */
+  model?: EvalModel;
+  /** Error of the survey and station readings the `site` model is given (default `none`). */
+  surveyError?: SurveyErrorLevel;
   /** Sees every telemetry report with the fleet (diagnostics). */
   observe?: (unit: UnitRef, t: Telemetry, fleet: ReturnType<typeof createFleet>) => void;
 }
@@ -75,16 +80,27 @@ export interface KindScore {
   alarms: number;
   truths: number;
   eligible: number;
+  /** Alarms that match a truth record (precision = matched / alarms). */
+  matched: number;
+  /** Eligible records found by an alarm (recall = found / eligible). */
+  found: number;
+  /** 95 % Wilson score intervals [low, high] of precision and recall (Wilson 1927); null without alarms / eligible records. */
+  precisionCi95: [number, number] | null;
+  recallCi95: [number, number] | null;
 }
 
 export interface EvalResult {
   seed: number;
+  model: EvalModel;
+  surveyError: SurveyErrorLevel;
   unitDays: number;
   detectors: Record<ScoredKind, KindScore>;
   falseAlarmsPer100UnitDays: number;
   falseAlarms: number;
   otherAlarms: Record<string, number>;
   injected: number;
+  /** Units sent into the basin of a lesser peak of their true landscape (by a go-to, or left there after maintenance). */
+  relocated: { scheduled: number; placed: number };
   faultFree: boolean;
   runtimeS: number;
 }
@@ -132,8 +148,6 @@ export function runEval(o: EvalOptions): EvalRun {
   const sites = evalFleetSites(o.units);
   const fleet = createFleet({ sites, startUnixMs: startMs }, { rng: createRng(o.seed) });
   const siteIdOf = new Map(sites.map((s, i) => [s.site.code, i + 1]));
-  const codeOf = new Map(sites.map((s, i) => [i + 1, s.site.code]));
-  const indoorOf = new Map(sites.map((s, i) => [i + 1, s.site.indoor]));
   const refs = new Map<string, UnitRef>();
   let nextId = 1;
   for (const s of sites)
@@ -146,53 +160,13 @@ export function runEval(o: EvalOptions): EvalRun {
       });
   const serialOf = new Map([...refs.values()].map((r) => [r.unitId, r.serial]));
 
-  // Model provider: the simulator's own sky at the latest step (in this benchmark the model is the world; the server
-  // models the sky from the site survey and weather instead — see server/health/README.md). Reports within 10 s of it may use it.
-  const current = new Map<number, { field: SkyField; model: SiteModel }>();
-  const analyses = new Map<string, ReturnType<NonNullable<SiteModel['analyse']>>>();
-  const provider: SiteModelProvider = {
-    siteModel(siteId, atMs) {
-      const code = codeOf.get(siteId)!;
-      const c = fleet.conditions(code);
-      if (!c || Math.abs(c.unixMs - atMs) > 10_000) return undefined;
-      const hit = current.get(siteId);
-      if (hit && hit.field === c.field) {
-        hit.model.atMs = c.unixMs;
-        return hit.model;
-      }
-      const field = c.field;
-      const hourKey = `${code}@${Math.floor(c.unixMs / 3_600_000)}`;
-      const model: SiteModel = {
-        atMs: c.unixMs,
-        sunElevationDeg: c.sunElevationDeg,
-        indoor: indoorOf.get(siteId)!,
-        globalMax: fleet.bestReachable(field),
-        readings(tiltDeg, azimuthDeg, detectorTiltDeg) {
-          const n = detectorNormals(tiltDeg, azimuthDeg, detectorTiltDeg);
-          return {
-            panelWm2: field.irradiance(n.panel),
-            tiltPlusWm2: field.irradiance(n.tiltPlus),
-            tiltMinusWm2: field.irradiance(n.tiltMinus),
-            azimuthPlusWm2: field.irradiance(n.azimuthPlus),
-            azimuthMinusWm2: field.irradiance(n.azimuthMinus),
-          };
-        },
-        analyse: o.evidence
-          ? () => {
-              let a = analyses.get(hourKey);
-              if (!a) {
-                const r = analyseLandscape(field.sky, { stepDeg: 2, tiltRangeDeg: [0, 85] });
-                a = { localMaxima: r.localMaxima, minSinglePeakDetectorTiltDeg: r.minSinglePeakDetectorTiltDeg };
-                analyses.set(hourKey, a);
-              }
-              return a;
-            }
-          : undefined,
-      };
-      current.set(siteId, { field, model });
-      return model;
-    },
-  };
+  const evalSites = sites.map((s) => ({ siteId: siteIdOf.get(s.site.code)!, site: s.site }));
+  const model = o.model ?? 'truth';
+  const surveyError = o.surveyError ?? 'none';
+  const provider: EvalModelProvider =
+    model === 'site'
+      ? siteModels({ now: () => fleet.now(), sites: evalSites, surveyError, seed: o.seed, evidence: !!o.evidence })
+      : truthModels(fleet, evalSites, !!o.evidence);
 
   const settings = o.settings ?? DEFAULT_HEALTH_SETTINGS;
   const engine = new HealthEngine({ now: () => fleet.now(), models: provider, settingsFor: () => settings });
@@ -205,6 +179,7 @@ export function runEval(o: EvalOptions): EvalRun {
         rng: createRng(`eval-faults:${o.seed}`),
         faultFreeShare: o.faultFreeShare ?? 0.25,
       });
+  const relocations = createRelocations(fleet, refs);
   let next = 0;
   const stepS = 5;
   const injectedKeys = new Set<string>();
@@ -215,10 +190,15 @@ export function runEval(o: EvalOptions): EvalRun {
   while (fleet.now() < endMs) {
     while (next < schedule.length && schedule[next]!.startMs <= fleet.now()) {
       const f = schedule[next++]!;
+      if (f.kind === 'lesser-peak') {
+        relocations.add(f);
+        continue;
+      }
       fleet.injectFault(f.serial, f.kind, f.durationS, f.target);
       injectedKeys.add(`${f.serial}|${f.kind}|${isoUtc(fleet.now())}`);
       if (f.kind === 'stall') stallAxis.set(`${f.serial}|${isoUtc(fleet.now())}`, f.target % 2 === 0 ? 'tilt' : 'azimuth');
     }
+    relocations.step();
     const msgs = fleet.step(stepS);
     for (const m of msgs) {
       const ref = refs.get(m.serial)!;
@@ -241,7 +221,10 @@ export function runEval(o: EvalOptions): EvalRun {
         engine.telemetry(ref, t);
         o.observe?.(ref, m.payload as Telemetry, fleet);
       } else if (m.leaf === 'events') engine.event(ref, m.payload as UnitEvent);
-      else if (m.leaf === 'weather') engine.weather(ref.siteId, m.payload as Weather, ref);
+      else if (m.leaf === 'weather') {
+        provider.weather(ref.siteId, m.payload as Weather);
+        engine.weather(ref.siteId, m.payload as Weather, ref);
+      }
     }
     engine.tick();
   }
@@ -262,7 +245,10 @@ export function runEval(o: EvalOptions): EvalRun {
     hours: o.hours,
   });
   result.seed = o.seed;
+  result.model = model;
+  result.surveyError = surveyError;
   result.injected = schedule.length;
+  result.relocated = relocations.counts();
   result.faultFree = !!o.faultFree;
   result.runtimeS = Math.round((performance.now() - t0) / 100) / 10;
   return { result, alarms, truth, schedule, serialOf };
@@ -318,6 +304,7 @@ export function score(i: ScoreInput): EvalResult {
     if (!s) siteSerials.set(r.siteId, (s = new Set()));
     s.add(r.serial);
   }
+  const siteDark = i.alarms.filter((a) => a.kind === 'site-comms');
   const detectors = {} as Record<ScoredKind, KindScore>;
   for (const kind of SCORED_KINDS) {
     const as = i.alarms.filter((a) => a.kind === kind);
@@ -345,7 +332,10 @@ export function score(i: ScoreInput): EvalResult {
     const delays: number[] = [];
     let found = 0;
     for (const t of eligible) {
-      const hits = as.filter((a) => a.serial === t.serial && overlaps(a, t));
+      // A comms loss while the whole site is dark is reported by the one site alarm, which suppresses the units' own.
+      const hits = [...as, ...(kind === 'comms' ? siteDark : [])].filter(
+        (a) => (a.serial === t.serial || (a.serial === null && siteSerials.get(a.siteId)?.has(t.serial))) && overlaps(a, t),
+      );
       if (hits.length) {
         found++;
         delays.push((Math.min(...hits.map((a) => a.raisedMs)) - t.startMs) / 60_000);
@@ -358,6 +348,10 @@ export function score(i: ScoreInput): EvalResult {
       alarms: as.length,
       truths: ts.length,
       eligible: eligible.length,
+      matched: tp,
+      found,
+      precisionCi95: ci95(tp, as.length),
+      recallCi95: ci95(found, eligible.length),
     };
   }
   const isFalse = (a: Alarm) => {
@@ -370,15 +364,22 @@ export function score(i: ScoreInput): EvalResult {
   for (const a of i.alarms) if (!(SCORED_KINDS as readonly string[]).includes(a.kind)) otherAlarms[a.kind] = (otherAlarms[a.kind] ?? 0) + 1;
   return {
     seed: 0,
+    model: 'truth',
+    surveyError: 'none',
     unitDays: round3(unitDays),
     detectors,
     falseAlarmsPer100UnitDays: round3((falseAlarms / unitDays) * 100),
     falseAlarms,
     otherAlarms,
     injected: 0,
+    relocated: { scheduled: 0, placed: 0 },
     faultFree: false,
     runtimeS: 0,
   };
 }
 
 const round3 = (x: number) => Math.round(x * 1000) / 1000;
+const ci95 = (k: number, n: number): [number, number] | null => {
+  const w = wilsonInterval(k, n);
+  return w ? [round3(w.low), round3(w.high)] : null;
+};

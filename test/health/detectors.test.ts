@@ -67,6 +67,29 @@ describe('trap detector', () => {
     expect(e.raised.filter((a) => a.kind === 'trap')).toHaveLength(0);
   });
 
+  it('without peers to compare with, raises only where the model is confirmed at the unit (a small site, a model too bright)', () => {
+    // One unit at its site: the model says 1.4× what it measures everywhere, the unit on the true peak.
+    const bright = (n: readonly number[]) => 1.4 * irr(n);
+    const e = testEngine((at) => modelOf(bright, at));
+    feed(e, T0, 30, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) }]);
+    expect(e.raised.filter((a) => a.kind === 'trap')).toHaveLength(0);
+    // The same lone unit on the trap with the model right: trapped.
+    const ok = testEngine(model);
+    feed(ok, T0, 30, [{ unit: UNIT, make: (at) => report(irr, at, onTrap) }]);
+    expect(ok.raised.filter((a) => a.kind === 'trap')).toHaveLength(1);
+  });
+
+  it('takes the peers’ light as the best when the model is dimmer than what they measure (a facade brighter than surveyed)', () => {
+    // The model says half of what the site gets; the unit sits at about 0.73 of the best while three peers face the sun.
+    const dim = (n: readonly number[]) => 0.5 * irr(n);
+    const e = testEngine((at) => modelOf(dim, at));
+    feed(e, T0, 30, [
+      { unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 40, azimuthDeg: 110 }) },
+      ...[1, 2, 3].map((i) => ({ unit: peer(i), make: (at: number) => report(irr, at, { tiltDeg: 40, azimuthDeg: 180 }) })),
+    ]);
+    expect(e.raised.filter((a) => a.kind === 'trap').map((a) => a.serial)).toEqual([UNIT.serial]);
+  });
+
   it('does not raise for a unit balanced on a drifting detector (its pair disagrees with the model here)', () => {
     // One tilt detector reads 12 % low: the pair's ratio departs from the modelled ratio by more than the tolerance.
     const e = testEngine(model);
@@ -188,6 +211,26 @@ describe('drift detector', () => {
       expect(d[0]!.message).toMatch(finding === 'dead' ? /^The azimuth detector \+ reads / : /^The tilt detector − reads /);
       expect(rawWordsIn(words(d[0]!))).toEqual([]);
     }
+  });
+
+  it('finds a dead detector in dim light too (the shade of a tower: every orientation under 100 W/m²)', () => {
+    // Best orientation about 110 W/m², the unit flat on about 94 W/m².
+    const dim = sunLandscape(180, 50, 70, 40);
+    const e = testEngine((at) => modelOf(dim, at));
+    feed(e, T0, 40, [{ unit: UNIT, make: (at) => report(dim, at, { tiltDeg: 0, azimuthDeg: 180, gains: [0.001, 1, 1, 1] }) }]);
+    const d = e.raised.filter((a) => a.kind === 'drift');
+    expect(d).toHaveLength(1);
+    expect(d[0]!.evidence).toMatchObject({ detector: 'tiltPlus', finding: 'dead' });
+  });
+
+  it('takes a pair skewed both ways (one high, its partner as low: the model’s slope off where the unit points) for model error, not drift', () => {
+    const e = testEngine(model);
+    feed(e, T0, 60, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 35, azimuthDeg: 170, gains: [1.15, 0.86, 1, 1] }) }]);
+    expect(e.raised).toHaveLength(0);
+    // One detector of the pair off by as much, its partner right: drift.
+    const one = testEngine(model);
+    feed(one, T0, 60, [{ unit: UNIT, make: (at) => report(irr, at, { tiltDeg: 35, azimuthDeg: 170, gains: [1.15, 1, 1, 1] }) }]);
+    expect(one.raised.filter((a) => a.kind === 'drift').map((a) => (a.evidence as { detector: string }).detector)).toEqual(['tiltPlus']);
   });
 
   it('accepts the usual calibration spread (±2 %) and stays quiet', () => {
