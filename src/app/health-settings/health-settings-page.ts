@@ -6,15 +6,14 @@ import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatSelectModule } from '@angular/material/select';
-import { ActivatedRoute, Router, RouterLink } from '@angular/router';
-import type { Site } from '../../../shared/contracts/api';
+import { Router, RouterLink } from '@angular/router';
 import type { HealthSettingsHistory, SiteHealthSettings } from '../../../shared/contracts/alarms';
 import type { ApplyDetectorTiltUnit, DetectorTiltRecommendation } from '../../../shared/contracts/detector-tilt';
 import { may } from '../../../shared/contracts/permissions';
 import { Session } from '../auth/session';
 import { AlarmApi } from '../core/alarm-api';
 import { DetectorTiltApi } from '../core/detector-tilt-api';
-import { SiteApi } from '../core/site-api';
+import { SiteChoice } from '../sites/site-choice';
 import { LiveConnection } from '../live/live-connection';
 import { toApiProblem } from '../ui/api-error';
 import { Notify } from '../ui/notify';
@@ -47,19 +46,18 @@ import { SettingsHistory } from './settings-history';
 })
 export class HealthSettingsPage {
   private readonly alarmApi = inject(AlarmApi);
-  private readonly siteApi = inject(SiteApi);
   private readonly tiltApi = inject(DetectorTiltApi);
   private readonly session = inject(Session);
-  private readonly route = inject(ActivatedRoute);
   private readonly router = inject(Router);
   private readonly dialog = inject(MatDialog);
   private readonly notify = inject(Notify);
   private readonly live = inject(LiveConnection);
   private readonly destroyRef = inject(DestroyRef);
 
-  protected readonly sites = signal<Site[]>([]);
-  protected readonly sitesLoaded = signal(false);
-  protected readonly sitesProblem = signal<string | null>(null);
+  private readonly siteChoice = new SiteChoice((id) => this.chooseSite(id));
+  protected readonly sites = this.siteChoice.sites;
+  protected readonly sitesLoaded = this.siteChoice.loaded;
+  protected readonly sitesProblem = this.siteChoice.problem;
   protected readonly siteId = signal<number | null>(null);
   protected readonly site = computed(() => this.sites().find((s) => s.id === this.siteId()) ?? null);
 
@@ -94,17 +92,7 @@ export class HealthSettingsPage {
   }
 
   protected loadSites(): void {
-    this.sitesProblem.set(null);
-    this.siteApi.list().subscribe({
-      next: (sites) => {
-        this.sites.set(sites);
-        this.sitesLoaded.set(true);
-        const wanted = Number(this.route.snapshot.queryParamMap.get('site'));
-        const first = sites.find((s) => s.id === wanted) ?? sites[0];
-        if (first) this.chooseSite(first.id);
-      },
-      error: (e: unknown) => this.sitesProblem.set(toApiProblem(e).message),
-    });
+    this.siteChoice.load();
   }
 
   protected chooseSite(id: number): void {

@@ -13,7 +13,6 @@ import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { Subject, Subscription, debounceTime } from 'rxjs';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
-import type { Site } from '../../../shared/contracts/api';
 import { may } from '../../../shared/contracts/permissions';
 import { Session } from '../auth/session';
 import type { LandscapeDay, SiteLandscape } from '../../../shared/contracts/landscape';
@@ -21,7 +20,7 @@ import { LandscapeApi } from '../core/landscape-api';
 import { readPalette } from '../live/tone-palette';
 import { siteTime, utcTime } from '../live/unit-status';
 import { ColourScheme } from '../shell/colour-scheme';
-import { SiteApi } from '../core/site-api';
+import { SiteChoice } from '../sites/site-choice';
 import { toApiProblem } from '../ui/api-error';
 import { localDateOf, zonedMidnightUtc } from '../traces/trace-charts';
 import { dayOptions, heatmapOptions, maximaMarks } from './landscape-charts';
@@ -58,16 +57,18 @@ export function minutesLabel(m: number): string {
 })
 export class LandscapeView {
   private readonly api = inject(LandscapeApi);
-  private readonly siteApi = inject(SiteApi);
   private readonly route = inject(ActivatedRoute);
   private readonly router = inject(Router);
   private readonly scheme = inject(ColourScheme);
 
   private readonly session = inject(Session);
-  protected readonly sites = signal<Site[]>([]);
-  /** Whether the site list has arrived (an empty list then means there are no sites). */
-  protected readonly sitesLoaded = signal(false);
-  protected readonly sitesProblem = signal<string | null>(null);
+  private readonly siteChoice = new SiteChoice(
+    (id) => this.chooseSite(id),
+    (sites) => sites.find((s) => !s.indoor) ?? sites[0],
+  );
+  protected readonly sites = this.siteChoice.sites;
+  protected readonly sitesLoaded = this.siteChoice.loaded;
+  protected readonly sitesProblem = this.siteChoice.problem;
   protected readonly canAddSites = computed(() => may(this.session.role(), 'administer'));
   protected readonly siteId = signal<number | null>(null);
   protected readonly date = signal(localDateOf(Date.now(), 'UTC'));
@@ -116,17 +117,7 @@ export class LandscapeView {
   }
 
   protected loadSites(): void {
-    this.sitesProblem.set(null);
-    this.siteApi.list().subscribe({
-      next: (sites) => {
-        this.sites.set(sites);
-        this.sitesLoaded.set(true);
-        const wanted = Number(this.route.snapshot.queryParamMap.get('site'));
-        const first = sites.find((s) => s.id === wanted) ?? sites.find((s) => !s.indoor) ?? sites[0];
-        if (first) this.chooseSite(first.id);
-      },
-      error: (e: unknown) => this.sitesProblem.set(toApiProblem(e).message),
-    });
+    this.siteChoice.load();
   }
 
   protected chooseSite(id: number): void {

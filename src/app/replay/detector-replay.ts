@@ -6,11 +6,11 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
-import { ActivatedRoute, Router, RouterLink } from '@angular/router';
-import type { Site, Unit } from '../../../shared/contracts/api';
+import { Router, RouterLink } from '@angular/router';
+import type { Unit } from '../../../shared/contracts/api';
 import type { DetectorRunResult } from '../../../shared/contracts/alarms';
 import { AlarmApi } from '../core/alarm-api';
-import { SiteApi } from '../core/site-api';
+import { SiteChoice } from '../sites/site-choice';
 import { UnitApi } from '../core/unit-api';
 import { utcTime } from '../live/unit-status';
 import { localDateOf, zonedMidnightUtc } from '../traces/trace-charts';
@@ -51,15 +51,14 @@ export function replayRange(date: string, start: string, hours: number, timeZone
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class DetectorReplay {
-  private readonly siteApi = inject(SiteApi);
   private readonly unitApi = inject(UnitApi);
   private readonly alarmApi = inject(AlarmApi);
-  private readonly route = inject(ActivatedRoute);
   private readonly router = inject(Router);
 
-  protected readonly sites = signal<Site[]>([]);
-  protected readonly sitesLoaded = signal(false);
-  protected readonly sitesProblem = signal<string | null>(null);
+  private readonly siteChoice = new SiteChoice((id) => this.chooseSite(id));
+  protected readonly sites = this.siteChoice.sites;
+  protected readonly sitesLoaded = this.siteChoice.loaded;
+  protected readonly sitesProblem = this.siteChoice.problem;
   protected readonly siteId = signal<number | null>(null);
   protected readonly site = computed(() => this.sites().find((s) => s.id === this.siteId()) ?? null);
   protected readonly zone = computed(() => this.site()?.timeZone ?? 'UTC');
@@ -84,17 +83,7 @@ export class DetectorReplay {
   }
 
   protected loadSites(): void {
-    this.sitesProblem.set(null);
-    this.siteApi.list().subscribe({
-      next: (sites) => {
-        this.sites.set(sites);
-        this.sitesLoaded.set(true);
-        const wanted = Number(this.route.snapshot.queryParamMap.get('site'));
-        const first = sites.find((s) => s.id === wanted) ?? sites[0];
-        if (first) this.chooseSite(first.id);
-      },
-      error: (e: unknown) => this.sitesProblem.set(toApiProblem(e).message),
-    });
+    this.siteChoice.load();
   }
 
   protected chooseSite(id: number): void {
