@@ -19,7 +19,7 @@ import type { SiteModel, SiteModelProvider } from './site-model';
 import { SoilingDetector } from './soiling-detector';
 import { StallDetector } from './stall-detector';
 import { StowWatch } from './stow-watch';
-import { TrapDetector, type PeerReading, type TrapContext } from './trap-detector';
+import { PeerLevels, TrapDetector, type PeerReading, type TrapContext } from './trap-detector';
 import { NO_DETAIL, round1, type Assessment, type UnitRef } from './unit-sample';
 
 export interface HealthEngineOptions {
@@ -335,15 +335,15 @@ export class HealthEngine {
 
 /** A site's peer readings and trapped-unit count, worked out on first demand and shared for a couple of seconds. */
 class SiteSnapshot {
-  private peerList?: PeerReading[];
+  private levels?: PeerLevels;
   private trappedCount?: number;
   constructor(
     readonly atMs: number,
     public sitePeers: Map<number, PeerReading>,
     private readonly engine: HealthEngine,
   ) {}
-  peers(): PeerReading[] {
-    return (this.peerList ??= [...this.sitePeers.values()]);
+  peerLevels(): PeerLevels {
+    return (this.levels ??= PeerLevels.of(this.sitePeers.values(), this.atMs));
   }
   trapped(): number {
     return (this.trappedCount ??= [...this.sitePeers.keys()].filter((id) => this.engine.trapHolding(id)).length);
@@ -359,8 +359,8 @@ class TrapView implements TrapContext {
     readonly otherCause: string | null,
     readonly open: boolean,
   ) {}
-  get peers(): readonly PeerReading[] {
-    return this.site.peers();
+  get peerLevels(): PeerLevels {
+    return this.site.peerLevels();
   }
   get trappedAtSite(): number {
     return this.site.trapped();

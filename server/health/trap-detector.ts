@@ -9,7 +9,7 @@
 import type { Telemetry } from '../../shared/contracts/wire';
 import type { HealthSettings } from './health-settings';
 import type { SiteModel } from './site-model';
-import { judged, MOTION_FREE_MODES, quantile, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
+import { judged, MOTION_FREE_MODES, readingsSnapshot, round1, type Assessment, type UnitRef } from './unit-sample';
 
 export interface PeerReading {
   unitId: number;
@@ -18,10 +18,59 @@ export interface PeerReading {
   atMs: number;
 }
 
+/**
+ * The in-plane irradiance of a site's comparable peers (settled or seeking, heard within two minutes), sorted once per
+ * site snapshot so that each report asks for its peers' quantile in O(log n), leaving itself out, instead of sorting
+ * the whole site again (a site of 10,000 units made every report cost milliseconds).
+ */
+export class PeerLevels {
+  static readonly none = new PeerLevels([], new Map());
+  private constructor(
+    private readonly sortedWm2: readonly number[],
+    private readonly ownWm2: ReadonlyMap<number, number>,
+  ) {}
+
+  static of(peers: Iterable<PeerReading>, atMs: number): PeerLevels {
+    const own = new Map<number, number>();
+    for (const p of peers)
+      if (Math.abs(atMs - p.atMs) <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking')) own.set(p.unitId, p.poaWm2);
+    return new PeerLevels(
+      [...own.values()].sort((a, b) => a - b),
+      own,
+    );
+  }
+
+  /** Peers other than `unitId`, and their linear-interpolated quantile q (null with fewer than two). */
+  without(unitId: number, q: number): { count: number; quantileWm2: number | null } {
+    const own = this.ownWm2.get(unitId);
+    const s = this.sortedWm2;
+    // Leave out one copy of the unit's own value: index skip at its first position.
+    const skip = own === undefined ? s.length : lowerBound(s, own);
+    const n = own === undefined ? s.length : s.length - 1;
+    if (n < 2) return { count: n, quantileWm2: null };
+    const at = (i: number) => s[i < skip ? i : i + 1]!;
+    const pos = (n - 1) * q;
+    const lo = Math.floor(pos);
+    const hi = Math.ceil(pos);
+    return { count: n, quantileWm2: at(lo) + (at(hi) - at(lo)) * (pos - lo) };
+  }
+}
+
+function lowerBound(s: readonly number[], x: number): number {
+  let lo = 0;
+  let hi = s.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (s[mid]! < x) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
 export interface TrapContext {
   model: SiteModel | undefined;
   daylight: boolean;
-  peers: readonly PeerReading[];
+  peerLevels: PeerLevels;
   /** Another condition holding on the unit that explains a deficit (its kind), or null. */
   otherCause: string | null;
   /** Whether a trap alarm is open on the unit (hysteresis band). */
@@ -57,16 +106,8 @@ export class TrapDetector {
     if (!pairOk(t.tiltPlusWm2, t.tiltMinusWm2, s) || !pairOk(t.azimuthPlusWm2, t.azimuthMinusWm2, s)) return judged(false);
     const best = m.globalMax.wm2;
     if (best < s.trapMinBestWm2) return judged(false);
-    const peers = ctx.peers.filter(
-      (p) => p.unitId !== unit.unitId && atMs - p.atMs <= PEER_MAX_AGE_MS && (p.mode === 'settled' || p.mode === 'seeking'),
-    );
-    const peerHigh =
-      peers.length >= 2
-        ? quantile(
-            peers.map((p) => p.poaWm2),
-            s.trapPeerQuantile,
-          )
-        : null;
+    const peers = ctx.peerLevels.without(unit.unitId, s.trapPeerQuantile);
+    const peerHigh = peers.quantileWm2;
     // A brighter orientation is what the model says or what the peers measure, whichever is more: a model dimmer than
     // the site (a facade that mirrors more than surveyed) must not hide a unit well below units facing the peak.
     const bestSeen = Math.max(best, peerHigh ?? 0);
@@ -125,7 +166,7 @@ export class TrapDetector {
           },
           lossWm2: round1(lossWm2),
           lossPct: round1(lossPct),
-          peers: { count: peers.length, upperQuartileWm2: peerHigh === null ? null : round1(peerHigh) },
+          peers: { count: peers.count, upperQuartileWm2: peerHigh === null ? null : round1(peerHigh) },
           siteWide: peerHigh !== null && !belowPeers,
           detectorTiltDeg: unit.detectorTiltDeg,
         },

@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { T0, UNIT, feed, modelOf, peer, report, sunLandscape, testEngine } from './synthetic';
 import { rawWordsIn } from '../helpers/raw-words';
-import { TrapDetector } from '../../server/health/trap-detector';
+import { PeerLevels, TrapDetector } from '../../server/health/trap-detector';
+import { quantile } from '../../server/health/unit-sample';
 import { DEFAULT_HEALTH_SETTINGS } from '../../server/health/health-settings';
 import type { SiteModel } from '../../server/health/site-model';
 
@@ -131,7 +132,14 @@ describe('trap detector: what it asks the model', () => {
     const readings = m.readings;
     return { calls, model: { ...m, readings: (t: number, a: number, d: number) => (calls.n++, readings(t, a, d)) } };
   };
-  const ctx = (m: SiteModel, open: boolean) => ({ model: m, daylight: true, peers: [], otherCause: null, open, trappedAtSite: 0 });
+  const ctx = (m: SiteModel, open: boolean) => ({
+    model: m,
+    daylight: true,
+    peerLevels: PeerLevels.none,
+    otherCause: null,
+    open,
+    trappedAtSite: 0,
+  });
   // The model's readings cost a harmonic evaluation per detector; most units, most of the day, are not trapped.
   it('a healthy unit at its peak (ratio ≥ trap ratio, no trap open) is judged false without asking for modelled readings', () => {
     const { calls, model: m } = counted(T0);
@@ -395,5 +403,37 @@ describe('hunting under changing light', () => {
     const { lightVariation } = await import('../../server/health/hunting-detector');
     expect(lightVariation([500, 500])).toBe(0);
     expect(lightVariation([300, 700])).toBeCloseTo(0.4, 10);
+  });
+});
+
+describe('peer levels of a site', () => {
+  // The quantile each report needs is read from one sorted copy per site snapshot; it must equal sorting the peers
+  // other than the unit itself (what a report did before, at O(n log n) each).
+  const reading = (unitId: number, poaWm2: number, mode = 'settled', atMs = T0) => ({ unitId, poaWm2, mode, atMs });
+
+  it('equals the quantile of the other comparable peers, whoever asks', () => {
+    let x = 12345;
+    const rand = () => (x = (x * 1103515245 + 12345) % 2 ** 31) / 2 ** 31;
+    const peers = Array.from({ length: 40 }, (_, i) =>
+      reading(i + 1, Math.round(rand() * 1000), rand() < 0.2 ? 'stowed' : 'settled', T0 - Math.round(rand() * 200_000)),
+    );
+    // Two units on the same value: leaving one out must leave the other in.
+    peers.push(reading(41, peers[0]!.poaWm2), reading(42, peers[0]!.poaWm2));
+    const levels = PeerLevels.of(peers, T0);
+    for (const asking of [1, 7, 41, 42, 99]) {
+      const others = peers.filter((p) => p.unitId !== asking && T0 - p.atMs <= 120_000 && p.mode === 'settled').map((p) => p.poaWm2);
+      for (const q of [0.5, 0.75, 1]) {
+        const got = levels.without(asking, q);
+        expect(got.count).toBe(others.length);
+        expect(got.quantileWm2).toBeCloseTo(quantile(others, q), 9);
+      }
+    }
+  });
+
+  it('has no quantile with fewer than two other peers', () => {
+    const levels = PeerLevels.of([reading(1, 500), reading(2, 600)], T0);
+    expect(levels.without(1, 0.75)).toEqual({ count: 1, quantileWm2: null });
+    expect(levels.without(3, 0.75)).toEqual({ count: 2, quantileWm2: 575 });
+    expect(PeerLevels.none.without(1, 0.75)).toEqual({ count: 0, quantileWm2: null });
   });
 });
