@@ -14,7 +14,7 @@ import { UnitDirectory, type UnitInfo } from './services/unit-directory';
 import { IngestService } from './services/ingest-service';
 import { RollupWorker } from './services/rollup-worker';
 import { QuarterModelService } from './services/quarter-model-service';
-import { LiveHub } from './services/live-hub';
+import { RelayingLiveHub } from './services/live-relay';
 import { HealthService, DEFAULT_HEALTH_SERVICE_OPTIONS } from './services/health-service';
 import { HealthSettingsService } from './services/health-settings-service';
 import { SiteModelCache } from './services/site-model-cache';
@@ -72,7 +72,14 @@ export async function startWorker(config: Config, log: Logger, opts: WorkerOptio
   // Units and sites change on the servers: follow them (a unit not known yet is looked up at once on its first reading).
   const reload = setInterval(() => void directory.load().catch((err) => log.warn({ err }, 'unit directory reload failed')), 10_000);
   reload.unref();
-  const live = new LiveHub(directory);
+  // Built before the consumer opens its connection: the bus drops live events until then.
+  let consumerRef: EngineConsumer | undefined;
+  const live = new RelayingLiveHub(directory, {
+    publish: (subject, data) => consumerRef?.bus().publish(subject, data),
+    subscribe: () => {
+      throw new Error('a worker does not follow live events');
+    },
+  });
   const telemetry = new TelemetryRepository(db);
   const siteModel = new SiteModelService(new SiteModelRepository(db), new AuditService(new AuditRepository(db)));
   const rollups = new RollupWorker(
@@ -133,6 +140,7 @@ export async function startWorker(config: Config, log: Logger, opts: WorkerOptio
     replicas: engine.replicas,
     ...opts.consumer,
   });
+  consumerRef = consumer;
   try {
     await consumer.open();
   } catch (err) {

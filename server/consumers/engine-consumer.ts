@@ -1,4 +1,5 @@
 import { AckPolicy, DeliverPolicy, RetentionPolicy, StorageType, connect, nanos, type ConsumerMessages, type NatsConnection } from 'nats';
+import type { LiveBus } from '../services/live-relay';
 import type { Logger } from 'pino';
 import type { Acknowledge } from '../services/ingest-service';
 
@@ -116,6 +117,24 @@ export class EngineConsumer {
     r.messages.stop();
     await r.done;
     this.log.info({ partition }, 'no longer taking readings of partition');
+  }
+
+  /**
+   * Core NATS on the same connection, for the live relay: a publish before `open` or while reconnecting is dropped
+   * (live state is at most once; the next report repairs it).
+   */
+  bus(): LiveBus {
+    return {
+      publish: (subject, data) => {
+        if (this.nc && !this.nc.isClosed()) this.nc.publish(subject, data);
+      },
+      subscribe: (subject, onMessage) => {
+        if (!this.nc) throw new Error('the engine consumer is not open');
+        return this.nc.subscribe(subject, {
+          callback: (err, msg) => void (err ? this.log.warn({ err }, 'live subscription failed') : onMessage(msg.data)),
+        });
+      },
+    };
   }
 
   async close(): Promise<void> {

@@ -35,7 +35,7 @@ export class LiveHub {
   private timer: NodeJS.Timeout | undefined;
 
   constructor(
-    private readonly units: UnitDirectory,
+    protected readonly units: UnitDirectory,
     /** Each unit is pushed at most once per slot of this length [ms]. */
     private readonly coalesceMs = 1000,
     /** How often changed units are looked at [ms]; bounds the added latency. */
