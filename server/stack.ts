@@ -43,6 +43,8 @@ import { sharedAttemptCounter } from './data/sign-in-attempt-store';
 import { LeaderLock } from './data/leader-lock';
 import { UnitHeardRepository } from './data/unit-heard-repository';
 import { EngineAuth } from './services/engine-auth';
+import { followLive } from './services/live-relay';
+import { openLiveBus } from './consumers/live-bus';
 import { DEFAULT_LEADERSHIP_OPTIONS, Leadership, lockLostAfterS, type LeadershipOptions } from './services/leadership';
 import { Passwords } from './services/passwords';
 import { SessionEvents } from './services/session-events';
@@ -482,6 +484,15 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
       surveyRevisionRoutes(surveyRevisions),
     ],
   });
+  // With the message engine, units' readings go to the ingest workers: their live events reach this server's dashboards
+  // through the engine (core NATS `bw.live.<siteId>`).
+  const liveBus = config.engine
+    ? openLiveBus(
+        { urls: config.engine.urls, user: config.engine.service.user, password: config.engine.service.password },
+        log,
+        (bus) => void followLive(bus, live, directory, (err) => log.warn({ err }, 'live event dropped')),
+      )
+    : undefined;
   const http = createServer(app);
   const liveSocket = attachLiveSocket(http, auth, live, sessionEvents, log, {
     allowedOrigins,
@@ -500,6 +511,7 @@ export async function startStack(config: Config, log: Logger = pino({ level: con
   const stop = () =>
     (stopping ??= (async () => {
       liveSocket.close();
+      await liveBus?.close();
       http.closeAllConnections();
       await new Promise<void>((res) => http.close(() => res()));
       commands!.stop();
