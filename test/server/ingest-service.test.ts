@@ -2,22 +2,11 @@ import { describe, expect, it } from 'vitest';
 import { pino } from 'pino';
 import { IngestService } from '../../server/services/ingest-service';
 import { telemetryKey, type Added, type TelemetryRepository, type TelemetryRow } from '../../server/data/telemetry-repository';
-import type { UnitDirectory, UnitInfo } from '../../server/services/unit-directory';
+import { directoryOf, unitInfo } from '../helpers/live-fixtures';
 import { sample, waitFor } from '../helpers/fake-unit';
 
-const unit: UnitInfo = {
-  id: 7,
-  serial: 'T-0007',
-  siteId: 1,
-  ownerId: 1,
-  timeZone: 'UTC',
-  disabled: false,
-  onHold: false,
-  holds: [],
-  detectorTiltDeg: 20,
-  weatherStation: false,
-};
-const directory = { get: (serial: string) => (serial === unit.serial ? unit : undefined) } as unknown as UnitDirectory;
+const unit = { ...unitInfo(7, 1, 1), serial: 'T-0007' };
+const directory = directoryOf([unit]);
 
 /** What an insert reports when it added the rows of these keys (listed: the repository may also say "all" with null). */
 const addedOf = (keys: string[]): Added => ({ count: keys.length, keys: new Set(keys) });

@@ -1,43 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { LiveHub } from '../../server/services/live-hub';
-import type { UnitDirectory, UnitInfo } from '../../server/services/unit-directory';
 import type { LiveServerMessage } from '../../shared/contracts/live';
-import type { Telemetry } from '../../shared/contracts/wire';
+import { directoryOf, telemetryReport, unitInfo } from '../helpers/live-fixtures';
 
-const unit = (id: number, ownerId: number, siteId: number): UnitInfo => ({
-  id,
-  serial: `LH-${id}`,
-  siteId,
-  ownerId,
-  timeZone: 'UTC',
-  disabled: false,
-  onHold: false,
-  holds: [],
-  detectorTiltDeg: 20,
-  weatherStation: false,
-});
-const units = [unit(1, 1, 10), unit(2, 1, 10), unit(3, 2, 20)];
-const directory = { all: () => units, byUnitId: (id: number) => units.find((u) => u.id === id) } as unknown as UnitDirectory;
-const report = (ts: string): Telemetry => ({
-  v: 1,
-  seq: 1,
-  ts,
-  mode: 'seeking',
-  tiltMotorA: 0,
-  azimuthMotorA: 0,
-  firmware: '2.4.1',
-  poaWm2: 700,
-  dcPowerW: 250,
-  tiltDeg: 30,
-  azimuthDeg: 180,
-  cmdTiltDeg: 30,
-  cmdAzimuthDeg: 180,
-  tiltPlusWm2: 710,
-  tiltMinusWm2: 700,
-  azimuthPlusWm2: 705,
-  azimuthMinusWm2: 705,
-  moduleTempC: 20,
-});
+const units = [unitInfo(1, 1, 10, 'LH'), unitInfo(2, 1, 10, 'LH'), unitInfo(3, 2, 20, 'LH')];
+const directory = directoryOf(units);
+const report = (ts: string) => telemetryReport({ ts });
 
 function listen(hub: LiveHub, caller: { id: number; role: 'technician' | 'owner'; ownerId: number | null }) {
   const got: LiveServerMessage[] = [];

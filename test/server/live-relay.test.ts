@@ -1,44 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { LiveHub } from '../../server/services/live-hub';
 import { followLive, RelayingLiveHub, type LiveBus } from '../../server/services/live-relay';
-import type { UnitDirectory, UnitInfo } from '../../server/services/unit-directory';
 import type { LiveServerMessage } from '../../shared/contracts/live';
-import type { Telemetry } from '../../shared/contracts/wire';
+import { directoryOf, telemetryReport, unitInfo } from '../helpers/live-fixtures';
 
-const unit = (id: number, ownerId: number, siteId: number): UnitInfo => ({
-  id,
-  serial: `LR-${id}`,
-  siteId,
-  ownerId,
-  timeZone: 'UTC',
-  disabled: false,
-  onHold: false,
-  holds: [],
-  detectorTiltDeg: 20,
-  weatherStation: false,
-});
-const units = [unit(1, 1, 10), unit(2, 2, 20)];
-const directory = { all: () => units, byUnitId: (id: number) => units.find((u) => u.id === id) } as unknown as UnitDirectory;
-const report: Telemetry = {
-  v: 1,
-  seq: 1,
-  ts: '2026-06-01T12:00:00.000Z',
-  mode: 'seeking',
-  tiltMotorA: 0,
-  azimuthMotorA: 0,
-  firmware: '2.4.1',
-  poaWm2: 700,
-  dcPowerW: 250,
-  tiltDeg: 30,
-  azimuthDeg: 180,
-  cmdTiltDeg: 31,
-  cmdAzimuthDeg: 181,
-  tiltPlusWm2: 710,
-  tiltMinusWm2: 700,
-  azimuthPlusWm2: 705,
-  azimuthMinusWm2: 704,
-  moduleTempC: 20,
-};
+const units = [unitInfo(1, 1, 10, 'LR'), unitInfo(2, 2, 20, 'LR')];
+const directory = directoryOf(units);
+const report = telemetryReport({ cmdTiltDeg: 31, cmdAzimuthDeg: 181, azimuthMinusWm2: 704 });
 
 /** An in-process stand-in for core NATS: `bw.live.>` matches every subject below `bw.live.`. */
 function memoryBus(): LiveBus & { subjects: string[] } {
